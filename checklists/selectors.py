@@ -1,0 +1,54 @@
+"""Reads over checklists and sheets that own their joins."""
+
+from django.db.models import Q, QuerySet
+
+from checklists.models import Checklist, ChecklistVersion, CheckSheet
+from compliance.models import Job
+
+
+def visible_checklists(organisation_id: int | None) -> QuerySet[Checklist]:
+    return Checklist.objects.filter(Q(organisation=None) | Q(organisation_id=organisation_id))
+
+
+def current_versions(organisation_id: int | None) -> dict[str, list[ChecklistVersion]]:
+    """The newest published version of each checklist the organisation uses, by subject kind.
+
+    An organisation's own checklist replaces the default one with the same key.
+    """
+    versions = (
+        ChecklistVersion.objects.filter(
+            status=ChecklistVersion.Status.PUBLISHED,
+            checklist__in=visible_checklists(organisation_id),
+        )
+        .select_related("checklist")
+        .order_by("checklist__key", "checklist__organisation_id", "-number")
+    )
+    newest: dict[str, ChecklistVersion] = {}
+    for version in versions:
+        key = version.checklist.key
+        current = newest.get(key)
+        own = version.checklist.organisation_id is not None
+        if current is None or (own and current.checklist.organisation_id is None):
+            newest[key] = version
+    by_kind: dict[str, list[ChecklistVersion]] = {}
+    for version in newest.values():
+        by_kind.setdefault(version.checklist.applies_to, []).append(version)
+    return by_kind
+
+
+def latest_sheets(job: Job) -> dict[str, CheckSheet]:
+    """The newest sheet for each requirement key (checklist key @ subject) of a job."""
+    latest: dict[str, CheckSheet] = {}
+    for sheet in (
+        CheckSheet.objects.filter(job=job).select_related("version__checklist").order_by("id")
+    ):
+        latest[sheet.requirement] = sheet
+    return latest
+
+
+def sheets_for(organisation_id: int | None) -> QuerySet[CheckSheet]:
+    return (
+        CheckSheet.objects.filter(job__organisation_id=organisation_id)
+        .select_related("version__checklist", "filled_by", "anchor", "equipment", "job")
+        .prefetch_related("entries")
+    )

@@ -1,0 +1,275 @@
+"""Publishing checklist versions and recording check sheets."""
+
+import datetime as dt
+import difflib
+import json
+import uuid
+from typing import Any
+
+from django.core.exceptions import ValidationError
+from django.db import IntegrityError, transaction
+from django.utils import timezone
+
+from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
+from checklists.schema import content_hash, validate_items
+from checklists.verdicts import EntryError, SheetOutcome, evaluate
+from compliance.errors import InvalidTransition, NotPermitted
+from compliance.models import Anchor, Equipment, Job, JobState, Organisation, User
+from compliance.selectors import drops_of
+from compliance.services import apply_sheet_outcome
+
+
+def _check_calc_names(items: list[dict[str, Any]]) -> None:
+    from compliance.engineering import CALCULATIONS
+
+    errors = {
+        f"items[{i}].calc": f"Unknown calculation {item['calc']!r}."
+        for i, item in enumerate(items)
+        if item.get("kind") == "calc" and item.get("calc") not in CALCULATIONS
+    }
+    if errors:
+        raise ValidationError(errors)
+
+
+def create_draft(
+    *, checklist: Checklist, items: list[dict[str, Any]], by: User | None, notes: str = ""
+) -> ChecklistVersion:
+    """Start a new draft version numbered after the newest existing one."""
+    validate_items(items)
+    with transaction.atomic():
+        last = checklist.versions.order_by("-number").values_list("number", flat=True).first()
+        version = ChecklistVersion(
+            checklist=checklist, number=(last or 0) + 1, items=items, notes=notes, created_by=by
+        )
+        version.full_clean(exclude=["content_hash"])
+        version.save()
+    return version
+
+
+def update_draft(*, version: ChecklistVersion, items: list[dict[str, Any]]) -> ChecklistVersion:
+    validate_items(items)
+    version.items = items
+    version.save()  # refuses a published version
+    return version
+
+
+def publish_version(*, version: ChecklistVersion, by: User | None) -> ChecklistVersion:
+    """Seal a draft: validate, hash and freeze it. Publishing twice is refused."""
+    if by is not None and not by.can_supervise:
+        raise NotPermitted("Only a supervisor or an admin can publish a checklist.")
+    with transaction.atomic():
+        version = (
+            ChecklistVersion.objects.select_for_update()
+            .select_related("checklist")
+            .get(pk=version.pk)
+        )
+        if version.status == ChecklistVersion.Status.PUBLISHED:
+            raise InvalidTransition(f"{version} is already published.")
+        validate_items(version.items)
+        _check_calc_names(version.items)
+        version.content_hash = content_hash(version.hashed_content())
+        version.status = ChecklistVersion.Status.PUBLISHED
+        version.published_at = timezone.now()
+        version.published_by = by
+        version.save()
+    return version
+
+
+def ensure_published(
+    *,
+    key: str,
+    title: str,
+    applies_to: str,
+    description: str,
+    items: list[dict[str, Any]],
+    organisation: Organisation | None = None,
+) -> ChecklistVersion:
+    """Load a checklist definition: publish a new version only when its content changed."""
+    checklist, _ = Checklist.objects.get_or_create(
+        key=key,
+        organisation=organisation,
+        defaults={"title": title, "applies_to": applies_to, "description": description},
+    )
+    latest = checklist.versions.filter(status="published").order_by("-number").first()
+    if latest is not None and latest.items == items:
+        return latest
+    return publish_version(version=create_draft(checklist=checklist, items=items, by=None), by=None)
+
+
+def diff_versions(a: ChecklistVersion, b: ChecklistVersion) -> dict[str, Any]:
+    """A readable diff: items added, removed and changed by key, plus a unified text diff."""
+    items_a = {i["key"]: i for i in a.items}
+    items_b = {i["key"]: i for i in b.items}
+    changed = []
+    for key in items_a.keys() & items_b.keys():
+        if items_a[key] != items_b[key]:
+            fields = sorted(
+                k
+                for k in items_a[key].keys() | items_b[key].keys()
+                if items_a[key].get(k) != items_b[key].get(k)
+            )
+            changed.append(
+                {
+                    "key": key,
+                    "fields": fields,
+                    "before": {f: items_a[key].get(f) for f in fields},
+                    "after": {f: items_b[key].get(f) for f in fields},
+                }
+            )
+    text_a = json.dumps(a.items, indent=2, sort_keys=True).splitlines()
+    text_b = json.dumps(b.items, indent=2, sort_keys=True).splitlines()
+    return {
+        "from": {"id": a.pk, "number": a.number, "content_hash": a.content_hash},
+        "to": {"id": b.pk, "number": b.number, "content_hash": b.content_hash},
+        "added": [items_b[k] for k in items_b if k not in items_a],
+        "removed": [items_a[k] for k in items_a if k not in items_b],
+        "changed": sorted(changed, key=lambda c: c["key"]),
+        "unified": "\n".join(
+            difflib.unified_diff(text_a, text_b, f"v{a.number}", f"v{b.number}", lineterm="")
+        ),
+    }
+
+
+def sheet_context(
+    job: Job, subject_kind: str, anchor: Anchor | None, equipment: Equipment | None
+) -> dict[str, dict[str, Any]]:
+    """The numbers a sheet's limits and calculations may draw on."""
+    profile = job.site.profile
+    context: dict[str, dict[str, Any]] = {"profile": dict(profile.thresholds)}
+    if equipment is not None:
+        context["equipment"] = dict(equipment.ratings)
+    drops = drops_of(job)
+    drop = next(
+        (
+            d
+            for d in drops
+            if (anchor is not None and anchor.pk in (d.anchor_id, d.safety_anchor_id))
+            or (
+                equipment is not None
+                and equipment.pk in (d.robot_id, d.tether_id, d.safety_line_id, d.hose_id)
+            )
+        ),
+        drops[0] if drops else None,
+    )
+    if drop is not None:
+        for kind in ("robot", "tether", "safety_line", "hose"):
+            context[kind] = dict(getattr(drop, kind).ratings)
+        tied = anchor if anchor is not None else drop.safety_anchor
+        cert = tied.current_certification()
+        context["anchor"] = {"rated_capacity_kn": cert.rated_capacity_kn if cert else None}
+        context["drop"] = {
+            "length_m": drop.length_m,
+            "height_m": job.site.height_m,
+            "terrain": job.site.terrain,
+        }
+    else:
+        context["drop"] = {"height_m": job.site.height_m, "terrain": job.site.terrain}
+    return context
+
+
+def _subject_for(
+    job: Job, version: ChecklistVersion, anchor: Anchor | None, equipment: Equipment | None
+) -> str:
+    kind = version.checklist.applies_to
+    if kind == "site":
+        if anchor or equipment:
+            raise ValidationError({"subject": "A site check has no anchor or equipment."})
+    elif kind == "anchor":
+        if anchor is None or equipment is not None:
+            raise ValidationError({"anchor": "This checklist is for an anchor; name one."})
+        if anchor.site_id != job.site_id:
+            raise ValidationError({"anchor": "This anchor is not on the job's site."})
+    else:
+        if equipment is None or anchor is not None:
+            raise ValidationError({"equipment": f"This checklist is for a {kind}; name one."})
+        if equipment.organisation_id != job.organisation_id:
+            raise ValidationError({"equipment": "Unknown equipment."})
+        if equipment.kind != kind:
+            raise ValidationError(
+                {"equipment": f"This checklist is for a {kind}, not a {equipment.kind}."}
+            )
+    return kind
+
+
+def record_sheet(
+    *,
+    job: Job,
+    version: ChecklistVersion,
+    by: User,
+    entries: dict[str, Any],
+    client_uuid: uuid.UUID | None = None,
+    anchor: Anchor | None = None,
+    equipment: Equipment | None = None,
+    device_time: dt.datetime | None = None,
+    remarks: str = "",
+) -> tuple[CheckSheet, bool]:
+    """Record a filled sheet exactly once per client uuid; return (sheet, created).
+
+    Invalid input raises ValidationError keyed by field and stores nothing.
+    """
+    if not by.can_write:
+        raise NotPermitted("Auditors have read-only access.")
+    client_uuid = client_uuid or uuid.uuid4()
+    existing = CheckSheet.objects.filter(client_uuid=client_uuid).first()
+    if existing is not None:
+        if existing.job_id != job.pk or existing.filled_by.organisation_id != by.organisation_id:
+            raise ValidationError({"client_uuid": "This id belongs to another record."})
+        return existing, False
+    if job.organisation_id != by.organisation_id:
+        raise ValidationError({"job": "Unknown job."})
+    if version.status != ChecklistVersion.Status.PUBLISHED:
+        raise ValidationError({"version": "Sheets can only be filled against a published version."})
+    if version.checklist.organisation_id not in (None, job.organisation_id):
+        raise ValidationError({"version": "Unknown checklist version."})
+    if job.state == JobState.CLOSED:
+        raise InvalidTransition("This job is closed; its sheets can no longer change.")
+    subject_kind = _subject_for(job, version, anchor, equipment)
+    if not isinstance(entries, dict):
+        raise ValidationError({"entries": "Entries are an object keyed by item key."})
+    try:
+        outcome: SheetOutcome = evaluate(
+            version.items, entries, sheet_context(job, subject_kind, anchor, equipment)
+        )
+    except EntryError as exc:
+        raise ValidationError({exc.field: exc.message}) from None
+    try:
+        with transaction.atomic():
+            sheet = CheckSheet.objects.create(
+                client_uuid=client_uuid,
+                job=job,
+                version=version,
+                version_hash=version.content_hash,
+                subject_kind=subject_kind,
+                anchor=anchor,
+                equipment=equipment,
+                filled_by=by,
+                device_time=device_time,
+                verdict=outcome.verdict,
+                blocking_failures=len(outcome.blocking_failures),
+                remarks=remarks,
+            )
+            ItemEntry.objects.bulk_create(
+                [
+                    ItemEntry(
+                        sheet=sheet,
+                        item_key=r.key,
+                        kind=r.kind,
+                        value=r.value,
+                        unit=r.unit,
+                        verdict=r.verdict,
+                        blocking=r.blocking,
+                        margin=r.margin,
+                        message=r.message,
+                        working=r.working,
+                    )
+                    for r in outcome.items
+                ]
+            )
+            apply_sheet_outcome(sheet=sheet, outcome=outcome, by=by)
+    except IntegrityError:
+        # A concurrent retry of the same batch won the race: return its copy.
+        existing = CheckSheet.objects.filter(client_uuid=client_uuid).first()
+        if existing is None:
+            raise
+        return existing, False
+    return sheet, True

@@ -1,0 +1,271 @@
+"""The verdict engine: turns a sheet's entries into a verdict per item, against its version.
+
+Pure of the database: the caller supplies the items, the entries and a context of numbers
+(profile thresholds, equipment ratings, the drop) that limits and calculations draw from.
+"""
+
+import math
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from typing import Any
+
+from checklists.units import UnitMismatch, to_unit
+
+TICK_VALUES = ("pass", "fail", "na")
+
+
+class EntryError(ValueError):
+    """A malformed entry; ``field`` is the path to name in a 400 answer."""
+
+    def __init__(self, field: str, message: str) -> None:
+        super().__init__(f"{field}: {message}")
+        self.field = field
+        self.message = message
+
+
+@dataclass(frozen=True)
+class ItemResult:
+    key: str
+    kind: str
+    label: str
+    blocking: bool
+    verdict: str  # pass / fail / na / recorded
+    value: Any
+    unit: str = ""
+    margin: float | None = None
+    message: str = ""
+    working: dict[str, Any] = field(default_factory=dict)
+
+    @property
+    def failed_blocking(self) -> bool:
+        return self.blocking and self.verdict == "fail"
+
+
+@dataclass(frozen=True)
+class SheetOutcome:
+    items: tuple[ItemResult, ...]
+
+    @property
+    def verdict(self) -> str:
+        return "fail" if any(i.verdict == "fail" for i in self.items) else "pass"
+
+    @property
+    def blocking_failures(self) -> tuple[ItemResult, ...]:
+        return tuple(i for i in self.items if i.failed_blocking)
+
+
+class MissingSource(LookupError):
+    pass
+
+
+def _number(value: Any, field_path: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        raise EntryError(field_path, "Must be a number.")
+    if not math.isfinite(value):
+        raise EntryError(field_path, "Must be a finite number.")
+    return float(value)
+
+
+def resolve(
+    source: Mapping[str, Any],
+    context: Mapping[str, Mapping[str, Any]],
+    readings: Mapping[str, Any],
+    outputs: Mapping[str, Mapping[str, Any]],
+) -> Any:
+    """Look up the number a limit or calculation input names."""
+    ((kind, ref),) = source.items()
+    if kind == "value":
+        return ref
+    if kind == "reading":
+        if ref not in readings:
+            raise MissingSource(f"reading {ref!r} has no value")
+        return readings[ref]
+    if kind == "output":
+        item_key, _, out_key = ref.partition(".")
+        try:
+            return outputs[item_key][out_key]
+        except KeyError:
+            raise MissingSource(f"output {ref!r} is not available") from None
+    namespace = context.get(kind)
+    if namespace is None or namespace.get(ref) is None:
+        raise MissingSource(f"{kind} has no {ref!r} recorded")
+    value = namespace[ref]
+    if kind == "profile" and isinstance(value, Mapping):
+        return value["value"]
+    return value
+
+
+def _check_limits(
+    item: Mapping[str, Any],
+    value: float,
+    context: Mapping[str, Any],
+    readings: Mapping[str, Any],
+    outputs: Mapping[str, Any],
+) -> tuple[str, float | None, str, dict[str, Any]]:
+    limits = item.get("limits") or {}
+    used: dict[str, Any] = {}
+    margins: list[float] = []
+    problems: list[str] = []
+    unit = item.get("unit", "")
+    for bound in ("min", "max"):
+        if bound not in limits:
+            continue
+        try:
+            limit = float(resolve(limits[bound], context, readings, outputs))
+        except MissingSource as exc:
+            return "fail", None, f"Limit cannot be found ({exc}); treated as failed.", used
+        used[bound] = {"value": limit, "source": limits[bound]}
+        if bound == "min":
+            margins.append((value - limit) / abs(limit) if limit else value - limit)
+            if value < limit:
+                problems.append(f"{value:g} {unit} is below the minimum of {limit:g} {unit}")
+        else:
+            margins.append((limit - value) / abs(limit) if limit else limit - value)
+            if value > limit:
+                problems.append(f"{value:g} {unit} is above the maximum of {limit:g} {unit}")
+    margin = min(margins) if margins else None
+    if problems:
+        return "fail", margin, "; ".join(problems) + ".", used
+    return ("pass" if used else "recorded"), margin, "", used
+
+
+def evaluate(
+    items: list[Mapping[str, Any]],
+    entries: Mapping[str, Mapping[str, Any]],
+    context: Mapping[str, Mapping[str, Any]],
+) -> SheetOutcome:
+    """Evaluate every item in order; raise EntryError for malformed or missing entries."""
+    from compliance.engineering import CalcInputError, UnknownCalculation, run
+
+    known = {item["key"] for item in items}
+    for key in entries:
+        if key not in known:
+            raise EntryError(f"entries.{key}", "Not an item of this checklist version.")
+
+    readings: dict[str, Any] = {}
+    outputs: dict[str, dict[str, Any]] = {}
+    results: list[ItemResult] = []
+    for item in items:
+        key, kind, blocking = item["key"], item["kind"], bool(item["blocking"])
+        path = f"entries.{key}"
+        entry = entries.get(key)
+        base = {"key": key, "kind": kind, "label": item["label"], "blocking": blocking}
+
+        if kind == "calc":
+            try:
+                inputs = {
+                    name: resolve(src, context, readings, outputs)
+                    for name, src in item["inputs"].items()
+                }
+            except MissingSource as exc:
+                results.append(
+                    ItemResult(
+                        **base, verdict="fail", value=None, message=f"Cannot compute: {exc}."
+                    )
+                )
+                continue
+            try:
+                calc = run(item["calc"], inputs)
+            except (CalcInputError, UnknownCalculation) as exc:
+                results.append(
+                    ItemResult(
+                        **base,
+                        verdict="fail",
+                        value=None,
+                        message=f"Cannot compute: {exc}.",
+                        working={"inputs": inputs},
+                    )
+                )
+                continue
+            data = calc.to_dict()
+            outputs[key] = data["outputs"]
+            message = "" if data["verdict"] == "pass" else f"Fails: {data['governing']}."
+            results.append(
+                ItemResult(
+                    **base,
+                    verdict=data["verdict"],
+                    value=data["outputs"],
+                    margin=data["margin"],
+                    message=message,
+                    working=data,
+                )
+            )
+            continue
+
+        if entry is None:
+            if kind in ("note", "photo") and not item.get("required", False):
+                results.append(ItemResult(**base, verdict="recorded", value=None))
+                continue
+            raise EntryError(path, "This item needs an entry.")
+        if not isinstance(entry, Mapping):
+            raise EntryError(path, "An entry is an object with a value.")
+        value = entry.get("value")
+
+        if kind == "tick":
+            if value not in TICK_VALUES:
+                raise EntryError(f"{path}.value", "A tick is pass, fail or na.")
+            if value == "na" and not item.get("allow_na", False):
+                raise EntryError(f"{path}.value", "This item cannot be marked not applicable.")
+            verdict = {"pass": "pass", "fail": "fail", "na": "na"}[value]
+            message = f"Marked failed: {item['label']}." if value == "fail" else ""
+            results.append(ItemResult(**base, verdict=verdict, value=value, message=message))
+        elif kind == "reading":
+            number = _number(value, f"{path}.value")
+            given = entry.get("unit", item["unit"])
+            if not isinstance(given, str):
+                raise EntryError(f"{path}.unit", "A unit is a text.")
+            try:
+                number_si = to_unit(number, given, item["unit"])
+            except UnitMismatch as exc:
+                raise EntryError(f"{path}.unit", str(exc)) from None
+            readings[key] = number_si
+            verdict, margin, message, used = _check_limits(
+                item, number_si, context, readings, outputs
+            )
+            working = {"limits": used}
+            if given != item["unit"]:
+                working["as_entered"] = {"value": number, "unit": given}
+            results.append(
+                ItemResult(
+                    **base,
+                    verdict=verdict,
+                    value=number_si,
+                    unit=item["unit"],
+                    margin=margin,
+                    message=message,
+                    working=working,
+                )
+            )
+        elif kind == "series":
+            if not isinstance(value, list) or len(value) < int(item.get("min_samples", 3)):
+                raise EntryError(
+                    f"{path}.value",
+                    f"A series is a list of at least {item.get('min_samples', 3)} "
+                    "[seconds, reading] pairs.",
+                )
+            samples: list[list[float]] = []
+            for n, pair in enumerate(value):
+                if not isinstance(pair, list | tuple) or len(pair) != 2:
+                    raise EntryError(f"{path}.value[{n}]", "Each sample is [seconds, reading].")
+                t = _number(pair[0], f"{path}.value[{n}][0]")
+                v = _number(pair[1], f"{path}.value[{n}][1]")
+                if samples and t <= samples[-1][0]:
+                    raise EntryError(f"{path}.value[{n}][0]", "Sample times must increase.")
+                samples.append([t, v])
+            readings[key] = samples
+            results.append(ItemResult(**base, verdict="recorded", value=samples, unit=item["unit"]))
+        elif kind == "photo":
+            photos = value if isinstance(value, list) else []
+            if not all(isinstance(p, str) for p in photos):
+                raise EntryError(f"{path}.value", "A photo entry is a list of photo ids.")
+            if item.get("required", False) and not photos:
+                results.append(
+                    ItemResult(**base, verdict="fail", value=photos, message="A photo is required.")
+                )
+            else:
+                results.append(ItemResult(**base, verdict="recorded", value=photos))
+        elif kind == "note":
+            if value is not None and not isinstance(value, str):
+                raise EntryError(f"{path}.value", "A note is a text.")
+            results.append(ItemResult(**base, verdict="recorded", value=value or ""))
+    return SheetOutcome(items=tuple(results))

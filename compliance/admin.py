@@ -1,0 +1,84 @@
+"""Admin for the registers; append-only records are shown but never changed or deleted here."""
+
+from typing import Any
+
+from django.contrib import admin
+from django.contrib.auth.admin import UserAdmin
+from django.http import HttpRequest
+
+from compliance import models
+
+
+class AppendOnlyAdmin(admin.ModelAdmin):
+    def has_change_permission(self, request: HttpRequest, obj: Any = None) -> bool:
+        return False
+
+    def has_delete_permission(self, request: HttpRequest, obj: Any = None) -> bool:
+        return False
+
+
+@admin.register(models.User)
+class PersonAdmin(UserAdmin):
+    fieldsets = (*UserAdmin.fieldsets, ("Parapet", {"fields": ("organisation", "role")}))
+    list_display = ("username", "first_name", "last_name", "organisation", "role")
+    list_filter = ("organisation", "role")
+
+
+@admin.register(models.Organisation)
+class OrganisationAdmin(admin.ModelAdmin):
+    list_display = ("name", "kind")
+
+
+@admin.register(models.JurisdictionProfile)
+class ProfileAdmin(AppendOnlyAdmin):
+    list_display = ("key", "name", "content_hash")
+
+
+class CertificationInline(admin.TabularInline):
+    model = models.AnchorCertification
+    extra = 0
+    can_delete = False
+
+    def has_change_permission(self, request: HttpRequest, obj: Any = None) -> bool:
+        return False
+
+
+@admin.register(models.Site)
+class SiteAdmin(admin.ModelAdmin):
+    list_display = ("name", "organisation", "height_m", "profile")
+
+
+@admin.register(models.Anchor)
+class AnchorAdmin(admin.ModelAdmin):
+    list_display = ("label", "site", "x_m", "y_m")
+    list_filter = ("site",)
+    inlines = [CertificationInline]
+
+
+@admin.register(models.Equipment)
+class EquipmentAdmin(admin.ModelAdmin):
+    list_display = ("label", "kind", "organisation", "in_service", "next_inspection_due")
+    list_filter = ("kind", "organisation")
+
+
+class DropInline(admin.TabularInline):
+    model = models.Drop
+    extra = 0
+
+
+@admin.register(models.Job)
+class JobAdmin(admin.ModelAdmin):
+    list_display = ("site", "date", "state", "supervisor")
+    list_filter = ("state", "site")
+    readonly_fields = ("state",)
+    inlines = [DropInline]
+
+
+for model in (
+    models.JobTransition,
+    models.Hold,
+    models.HoldClearance,
+    models.AnchorCertification,
+    models.DropLog,
+):
+    admin.site.register(model, AppendOnlyAdmin)

@@ -1,0 +1,320 @@
+"""Input parsing and output shapes for the API; no serializer saves domain state itself."""
+
+import math
+from typing import Any
+
+from rest_framework import serializers
+
+from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
+from compliance.models import (
+    Anchor,
+    AnchorCertification,
+    Drop,
+    Equipment,
+    Hold,
+    Job,
+    JobTransition,
+    JurisdictionProfile,
+    Site,
+    User,
+)
+from compliance.ratings import EQUIPMENT_KINDS
+
+
+class FiniteFloatField(serializers.FloatField):
+    def to_internal_value(self, data: Any) -> float:
+        value = super().to_internal_value(data)
+        if not math.isfinite(value):
+            raise serializers.ValidationError("Must be a finite number.")
+        return value
+
+
+class UserSerializer(serializers.ModelSerializer):
+    name = serializers.CharField(source="display_name", read_only=True)
+    organisation = serializers.CharField(source="organisation.name", read_only=True, default=None)
+
+    class Meta:
+        model = User
+        fields = ["id", "username", "name", "role", "organisation"]
+
+
+class ProfileSerializer(serializers.ModelSerializer):
+    class Meta:
+        model = JurisdictionProfile
+        fields = ["key", "name", "thresholds", "cautions", "content_hash"]
+
+
+class SiteSerializer(serializers.ModelSerializer):
+    profile = serializers.SlugRelatedField(
+        slug_field="key", queryset=JurisdictionProfile.objects.all()
+    )
+
+    class Meta:
+        model = Site
+        fields = ["id", "name", "address", "height_m", "storeys", "profile", "roof_outline"]
+
+
+class CertificationSerializer(serializers.ModelSerializer):
+    rated_capacity_kn = FiniteFloatField()
+    recorded_by = serializers.CharField(
+        source="recorded_by.display_name", read_only=True, default=None
+    )
+
+    class Meta:
+        model = AnchorCertification
+        fields = [
+            "id",
+            "certifier",
+            "certifier_company",
+            "rated_capacity_kn",
+            "certified_on",
+            "valid_until",
+            "document",
+            "recorded_by",
+            "recorded_at",
+        ]
+        read_only_fields = ["recorded_at", "document"]
+
+    def validate_rated_capacity_kn(self, value: float) -> float:
+        if value <= 0:
+            raise serializers.ValidationError("Rated capacity must be greater than zero.")
+        return value
+
+    def validate(self, attrs: dict[str, Any]) -> dict[str, Any]:
+        if attrs["valid_until"] <= attrs["certified_on"]:
+            raise serializers.ValidationError(
+                {"valid_until": "Must be after the certification date."}
+            )
+        return attrs
+
+
+class AnchorSerializer(serializers.ModelSerializer):
+    certification = serializers.SerializerMethodField()
+
+    class Meta:
+        model = Anchor
+        fields = ["id", "site", "label", "x_m", "y_m", "description", "certification"]
+
+    def get_certification(self, anchor: Anchor) -> dict[str, Any] | None:
+        cert = anchor.current_certification()
+        return CertificationSerializer(cert).data if cert else None
+
+
+class EquipmentSerializer(serializers.ModelSerializer):
+    kind = serializers.ChoiceField(choices=EQUIPMENT_KINDS)
+
+    class Meta:
+        model = Equipment
+        fields = [
+            "id",
+            "kind",
+            "label",
+            "serial",
+            "ratings",
+            "made_on",
+            "next_inspection_due",
+            "in_service",
+        ]
+
+
+class DropSerializer(serializers.ModelSerializer):
+    length_m = FiniteFloatField()
+
+    class Meta:
+        model = Drop
+        fields = [
+            "id",
+            "label",
+            "robot",
+            "anchor",
+            "safety_anchor",
+            "tether",
+            "safety_line",
+            "hose",
+            "length_m",
+        ]
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        request = self.context.get("request")
+        org = getattr(getattr(request, "user", None), "organisation_id", None)
+        for name in ("robot", "tether", "safety_line", "hose"):
+            self.fields[name].queryset = Equipment.objects.filter(organisation_id=org)
+        for name in ("anchor", "safety_anchor"):
+            self.fields[name].queryset = Anchor.objects.filter(site__organisation_id=org)
+
+
+class TransitionSerializer(serializers.ModelSerializer):
+    by = serializers.CharField(source="by.display_name", default=None)
+
+    class Meta:
+        model = JobTransition
+        fields = ["from_state", "to_state", "by", "at", "reason"]
+
+
+class HoldSerializer(serializers.ModelSerializer):
+    cleared_at = serializers.DateTimeField(source="clearance.at", default=None)
+    cleared_by_sheet = serializers.IntegerField(source="clearance.sheet_id", default=None)
+
+    class Meta:
+        model = Hold
+        fields = [
+            "id",
+            "requirement",
+            "item_key",
+            "reason",
+            "sheet",
+            "opened_at",
+            "cleared_at",
+            "cleared_by_sheet",
+        ]
+
+    def to_representation(self, instance: Hold) -> dict[str, Any]:
+        if not hasattr(instance, "clearance"):
+            data = super().to_representation(instance)
+            return {**data, "cleared_at": None, "cleared_by_sheet": None}
+        return super().to_representation(instance)
+
+
+class JobSerializer(serializers.ModelSerializer):
+    site_name = serializers.CharField(source="site.name", read_only=True)
+    supervisor_name = serializers.CharField(source="supervisor.display_name", read_only=True)
+
+    class Meta:
+        model = Job
+        fields = [
+            "id",
+            "site",
+            "site_name",
+            "date",
+            "state",
+            "supervisor",
+            "supervisor_name",
+            "notes",
+        ]
+        read_only_fields = ["state"]
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        request = self.context.get("request")
+        org = getattr(getattr(request, "user", None), "organisation_id", None)
+        self.fields["site"].queryset = Site.objects.filter(organisation_id=org)
+        self.fields["supervisor"].queryset = User.objects.filter(
+            organisation_id=org, role__in=["supervisor", "admin"]
+        )
+
+
+class ItemEntrySerializer(serializers.ModelSerializer):
+    class Meta:
+        model = ItemEntry
+        fields = [
+            "item_key",
+            "kind",
+            "value",
+            "unit",
+            "verdict",
+            "blocking",
+            "margin",
+            "message",
+            "working",
+        ]
+
+
+class SheetSerializer(serializers.ModelSerializer):
+    checklist = serializers.CharField(source="version.checklist.key")
+    version_number = serializers.IntegerField(source="version.number")
+    filled_by = serializers.CharField(source="filled_by.display_name")
+    entries = ItemEntrySerializer(many=True)
+
+    class Meta:
+        model = CheckSheet
+        fields = [
+            "id",
+            "client_uuid",
+            "job",
+            "checklist",
+            "version",
+            "version_number",
+            "version_hash",
+            "subject_kind",
+            "anchor",
+            "equipment",
+            "filled_by",
+            "device_time",
+            "received_at",
+            "verdict",
+            "blocking_failures",
+            "remarks",
+            "entries",
+        ]
+
+
+class SheetInputSerializer(serializers.Serializer):
+    client_uuid = serializers.UUIDField(required=False)
+    job = serializers.PrimaryKeyRelatedField(queryset=Job.objects.none())
+    version = serializers.PrimaryKeyRelatedField(queryset=ChecklistVersion.objects.none())
+    anchor = serializers.PrimaryKeyRelatedField(
+        queryset=Anchor.objects.none(), required=False, allow_null=True
+    )
+    equipment = serializers.PrimaryKeyRelatedField(
+        queryset=Equipment.objects.none(), required=False, allow_null=True
+    )
+    device_time = serializers.DateTimeField(required=False, allow_null=True)
+    remarks = serializers.CharField(required=False, allow_blank=True, max_length=4000)
+    entries = serializers.DictField(child=serializers.JSONField())
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        request = self.context.get("request")
+        org = getattr(getattr(request, "user", None), "organisation_id", None)
+        from checklists.selectors import visible_checklists
+
+        self.fields["job"].queryset = Job.objects.filter(organisation_id=org).select_related(
+            "site__profile"
+        )
+        self.fields["version"].queryset = ChecklistVersion.objects.filter(
+            checklist__in=visible_checklists(org)
+        ).select_related("checklist")
+        self.fields["anchor"].queryset = Anchor.objects.filter(site__organisation_id=org)
+        self.fields["equipment"].queryset = Equipment.objects.filter(organisation_id=org)
+
+
+class ChecklistVersionSerializer(serializers.ModelSerializer):
+    checklist = serializers.CharField(source="checklist.key", read_only=True)
+    applies_to = serializers.CharField(source="checklist.applies_to", read_only=True)
+    title = serializers.CharField(source="checklist.title", read_only=True)
+
+    class Meta:
+        model = ChecklistVersion
+        fields = [
+            "id",
+            "checklist",
+            "title",
+            "applies_to",
+            "number",
+            "status",
+            "items",
+            "notes",
+            "content_hash",
+            "created_at",
+            "published_at",
+        ]
+        read_only_fields = ["number", "status", "content_hash", "created_at", "published_at"]
+
+
+class ChecklistSerializer(serializers.ModelSerializer):
+    versions = serializers.SerializerMethodField()
+    default = serializers.SerializerMethodField()
+
+    class Meta:
+        model = Checklist
+        fields = ["id", "key", "title", "applies_to", "description", "default", "versions"]
+
+    def get_default(self, checklist: Checklist) -> bool:
+        return checklist.organisation_id is None
+
+    def get_versions(self, checklist: Checklist) -> list[dict[str, Any]]:
+        return [
+            {"id": v.pk, "number": v.number, "status": v.status, "content_hash": v.content_hash}
+            for v in checklist.versions.all()
+        ]

@@ -1,0 +1,22 @@
+from django.urls import include, path
+from rest_framework.routers import DefaultRouter
+
+from compliance.api import views
+
+router = DefaultRouter()
+router.register("profiles", views.ProfileViewSet, basename="profile")
+router.register("sites", views.SiteViewSet, basename="site")
+router.register("anchors", views.AnchorViewSet, basename="anchor")
+router.register("equipment", views.EquipmentViewSet, basename="equipment")
+router.register("jobs", views.JobViewSet, basename="job")
+router.register("checklists", views.ChecklistViewSet, basename="checklist")
+router.register("checklist-versions", views.ChecklistVersionViewSet, basename="checklist-version")
+router.register("sheets", views.SheetViewSet, basename="sheet")
+
+urlpatterns = [
+    path("auth/login/", views.session_login, name="login"),
+    path("auth/logout/", views.session_logout, name="logout"),
+    path("auth/token/", views.token_login, name="token"),
+    path("me/", views.me, name="me"),
+    path("", include(router.urls)),
+]

@@ -1,0 +1,395 @@
+"""Thin API views: parse, call one service or selector, shape the answer."""
+
+from typing import Any
+
+from django.contrib.auth import authenticate, login, logout
+from django.db.models import Prefetch, QuerySet
+from django.shortcuts import get_object_or_404
+from drf_spectacular.utils import extend_schema, inline_serializer
+from rest_framework import mixins, serializers, status, viewsets
+from rest_framework.authtoken.models import Token
+from rest_framework.decorators import action, api_view, permission_classes, throttle_classes
+from rest_framework.permissions import AllowAny, IsAuthenticated
+from rest_framework.request import Request
+from rest_framework.response import Response
+from rest_framework.throttling import ScopedRateThrottle
+
+from checklists import services as checklist_services
+from checklists.models import Checklist, ChecklistVersion
+from checklists.selectors import sheets_for, visible_checklists
+from compliance import services
+from compliance.api import serializers as s
+from compliance.api.permissions import OrganisationMember, SupervisorWrites
+from compliance.models import (
+    Anchor,
+    AnchorCertification,
+    Equipment,
+    Job,
+    JurisdictionProfile,
+    Site,
+    User,
+)
+from compliance.selectors import job_readiness, jobs_for
+
+
+class LoginThrottle(ScopedRateThrottle):
+    scope = "login"
+
+    def get_cache_key(self, request: Request, view: Any) -> str | None:
+        ident = f"{self.get_ident(request)}:{str(request.data.get('username', ''))[:150]}"
+        return self.cache_format % {"scope": self.scope, "ident": ident}
+
+
+class LoginInput(serializers.Serializer):
+    username = serializers.CharField(max_length=150)
+    password = serializers.CharField(max_length=256)
+
+
+@extend_schema(request=LoginInput, responses=s.UserSerializer)
+@api_view(["POST"])
+@permission_classes([AllowAny])
+@throttle_classes([LoginThrottle])
+def session_login(request: Request) -> Response:
+    """Sign in with a session cookie (the phone app)."""
+    data = LoginInput(data=request.data)
+    data.is_valid(raise_exception=True)
+    user = authenticate(request, **data.validated_data)
+    if user is None:
+        return Response(
+            {"detail": "Wrong username or password."}, status=status.HTTP_400_BAD_REQUEST
+        )
+    login(request, user)
+    return Response(s.UserSerializer(user).data)
+
+
+@extend_schema(request=None, responses={204: None})
+@api_view(["POST"])
+@permission_classes([IsAuthenticated])
+def session_logout(request: Request) -> Response:
+    logout(request)
+    return Response(status=status.HTTP_204_NO_CONTENT)
+
+
+@extend_schema(
+    request=LoginInput, responses=inline_serializer("Token", {"token": serializers.CharField()})
+)
+@api_view(["POST"])
+@permission_classes([AllowAny])
+@throttle_classes([LoginThrottle])
+def token_login(request: Request) -> Response:
+    """Exchange a username and password for an API token (scripts)."""
+    data = LoginInput(data=request.data)
+    data.is_valid(raise_exception=True)
+    user = authenticate(request, **data.validated_data)
+    if user is None:
+        return Response(
+            {"detail": "Wrong username or password."}, status=status.HTTP_400_BAD_REQUEST
+        )
+    token, _ = Token.objects.get_or_create(user=user)
+    return Response({"token": token.key})
+
+
+@extend_schema(responses=s.UserSerializer)
+@api_view(["GET"])
+@permission_classes([IsAuthenticated])
+def me(request: Request) -> Response:
+    return Response(s.UserSerializer(request.user).data)
+
+
+class ProfileViewSet(viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.ProfileSerializer
+    permission_classes = [OrganisationMember]
+    lookup_field = "key"
+    queryset = JurisdictionProfile.objects.order_by("key")
+
+
+class OrgScoped:
+    request: Request
+
+    @property
+    def org_id(self) -> int | None:
+        return self.request.user.organisation_id
+
+
+class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.SiteSerializer
+    permission_classes = [SupervisorWrites]
+
+    def get_queryset(self) -> QuerySet[Site]:
+        return (
+            Site.objects.filter(organisation_id=self.org_id)
+            .select_related("profile")
+            .order_by("name")
+        )
+
+    def perform_create(self, serializer: s.SiteSerializer) -> None:
+        serializer.save(organisation_id=self.org_id)
+
+
+class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.AnchorSerializer
+    permission_classes = [SupervisorWrites]
+
+    def get_queryset(self) -> QuerySet[Anchor]:
+        qs = Anchor.objects.filter(site__organisation_id=self.org_id).prefetch_related(
+            Prefetch(
+                "certifications", queryset=AnchorCertification.objects.select_related("recorded_by")
+            )
+        )
+        site = self.request.query_params.get("site")
+        if site and site.isdigit():
+            qs = qs.filter(site_id=int(site))
+        return qs
+
+    def get_serializer(self, *args: Any, **kwargs: Any) -> s.AnchorSerializer:
+        serializer = super().get_serializer(*args, **kwargs)
+        if hasattr(serializer, "fields") and "site" in serializer.fields:
+            serializer.fields["site"].queryset = Site.objects.filter(organisation_id=self.org_id)
+        return serializer
+
+    @extend_schema(request=s.CertificationSerializer, responses={201: s.CertificationSerializer})
+    @action(detail=True, methods=["post"])
+    def certifications(self, request: Request, pk: str | None = None) -> Response:
+        """Add a certification (append-only; an old one is never edited)."""
+        anchor = self.get_object()
+        data = s.CertificationSerializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        cert = services.record_certification(anchor=anchor, by=request.user, **data.validated_data)
+        return Response(s.CertificationSerializer(cert).data, status=status.HTTP_201_CREATED)
+
+
+class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.EquipmentSerializer
+    permission_classes = [SupervisorWrites]
+
+    def get_queryset(self) -> QuerySet[Equipment]:
+        qs = Equipment.objects.filter(organisation_id=self.org_id)
+        kind = self.request.query_params.get("kind")
+        return qs.filter(kind=kind) if kind else qs
+
+    def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        data = self.get_serializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        item = services.create_equipment(by=request.user, **data.validated_data)
+        return Response(self.get_serializer(item).data, status=status.HTTP_201_CREATED)
+
+
+def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
+    readiness = job_readiness(job)
+    return {
+        **s.JobSerializer(job, context=context).data,
+        "drops": s.DropSerializer(readiness.drops, many=True, context=context).data,
+        "requirements": [r.as_dict() for r in readiness.requirements],
+        "blockers": [r.as_dict() for r in readiness.blockers],
+        "holds": s.HoldSerializer(readiness.holds, many=True).data,
+        "cautions": job.site.profile.cautions,
+    }
+
+
+class ReasonInput(serializers.Serializer):
+    reason = serializers.CharField(required=False, allow_blank=True, max_length=2000)
+
+
+class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.JobSerializer
+    permission_classes = [OrganisationMember]
+
+    def get_queryset(self) -> QuerySet[Job]:
+        qs = jobs_for(self.request.user)
+        date = self.request.query_params.get("date")
+        if date:
+            qs = qs.filter(date=date) if _is_date(date) else qs.none()
+        return qs
+
+    def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        data = self.get_serializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        job = services.create_job(by=request.user, **data.validated_data)
+        return Response(
+            job_detail_data(job, self.get_serializer_context()), status=status.HTTP_201_CREATED
+        )
+
+    def retrieve(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        return Response(job_detail_data(self.get_object(), self.get_serializer_context()))
+
+    def _act(self, request: Request, service: Any, **extra: Any) -> Response:
+        job = self.get_object()
+        service(job=job, by=request.user, **extra)
+        job.refresh_from_db()
+        return Response(job_detail_data(job, self.get_serializer_context()))
+
+    @extend_schema(request=None)
+    @action(detail=True, methods=["post"])
+    def start(self, request: Request, pk: str | None = None) -> Response:
+        """Start work; 409 with the reasons when a check is missing or failed."""
+        return self._act(request, services.start_job)
+
+    @extend_schema(request=ReasonInput)
+    @action(detail=True, methods=["post"])
+    def pause(self, request: Request, pk: str | None = None) -> Response:
+        data = ReasonInput(data=request.data)
+        data.is_valid(raise_exception=True)
+        return self._act(request, services.pause_job, reason=data.validated_data.get("reason", ""))
+
+    @extend_schema(request=ReasonInput)
+    @action(detail=True, methods=["post"])
+    def close(self, request: Request, pk: str | None = None) -> Response:
+        data = ReasonInput(data=request.data)
+        data.is_valid(raise_exception=True)
+        return self._act(request, services.close_job, reason=data.validated_data.get("reason", ""))
+
+    @extend_schema(request=s.DropSerializer, responses={201: s.DropSerializer})
+    @action(detail=True, methods=["post"])
+    def drops(self, request: Request, pk: str | None = None) -> Response:
+        job = self.get_object()
+        data = s.DropSerializer(data=request.data, context=self.get_serializer_context())
+        data.is_valid(raise_exception=True)
+        drop = services.add_drop(job=job, by=request.user, **data.validated_data)
+        return Response(s.DropSerializer(drop).data, status=status.HTTP_201_CREATED)
+
+    @extend_schema(responses=s.TransitionSerializer(many=True))
+    @action(detail=True, methods=["get"])
+    def transitions(self, request: Request, pk: str | None = None) -> Response:
+        job = self.get_object()
+        rows = job.transitions.select_related("by").order_by("at", "id")
+        return Response(s.TransitionSerializer(rows, many=True).data)
+
+
+def _is_date(text: str) -> bool:
+    import datetime as dt
+
+    try:
+        dt.date.fromisoformat(text)
+    except ValueError:
+        return False
+    return True
+
+
+class ChecklistViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.ChecklistSerializer
+    permission_classes = [SupervisorWrites]
+
+    def get_queryset(self) -> QuerySet[Checklist]:
+        return visible_checklists(self.org_id).prefetch_related(
+            Prefetch("versions", queryset=ChecklistVersion.objects.order_by("number"))
+        )
+
+    def perform_create(self, serializer: s.ChecklistSerializer) -> None:
+        serializer.save(organisation_id=self.org_id)
+
+    @extend_schema(
+        request=s.ChecklistVersionSerializer, responses={201: s.ChecklistVersionSerializer}
+    )
+    @action(detail=True, methods=["post"])
+    def versions(self, request: Request, pk: str | None = None) -> Response:
+        """Start a draft version of one of the organisation's own checklists."""
+        checklist = self.get_object()
+        if checklist.organisation_id != self.org_id:
+            return Response(
+                {"detail": "Default checklists change only by a new release of Parapet."},
+                status=status.HTTP_403_FORBIDDEN,
+            )
+        data = s.ChecklistVersionSerializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        version = checklist_services.create_draft(
+            checklist=checklist,
+            items=data.validated_data["items"],
+            by=request.user,
+            notes=data.validated_data.get("notes", ""),
+        )
+        return Response(s.ChecklistVersionSerializer(version).data, status=status.HTTP_201_CREATED)
+
+
+class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.ChecklistVersionSerializer
+    permission_classes = [SupervisorWrites]
+    http_method_names = ["get", "patch", "post", "head", "options"]
+
+    def get_queryset(self) -> QuerySet[ChecklistVersion]:
+        qs = ChecklistVersion.objects.filter(
+            checklist__in=visible_checklists(self.org_id)
+        ).select_related("checklist")
+        status_ = self.request.query_params.get("status")
+        return qs.filter(status=status_) if status_ else qs
+
+    def partial_update(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        version = self.get_object()
+        if (
+            version.status == ChecklistVersion.Status.PUBLISHED
+            or version.checklist.organisation_id != self.org_id
+        ):
+            return Response(
+                {"detail": "A published version never changes; start a new draft."},
+                status=status.HTTP_409_CONFLICT,
+            )
+        data = self.get_serializer(version, data=request.data, partial=True)
+        data.is_valid(raise_exception=True)
+        version = checklist_services.update_draft(
+            version=version, items=data.validated_data.get("items", version.items)
+        )
+        return Response(self.get_serializer(version).data)
+
+    @extend_schema(request=None)
+    @action(detail=True, methods=["post"])
+    def publish(self, request: Request, pk: str | None = None) -> Response:
+        version = self.get_object()
+        if version.checklist.organisation_id != self.org_id:
+            return Response(
+                {"detail": "Default checklists are published with Parapet."},
+                status=status.HTTP_403_FORBIDDEN,
+            )
+        version = checklist_services.publish_version(version=version, by=request.user)
+        return Response(self.get_serializer(version).data)
+
+    @extend_schema(responses=inline_serializer("VersionDiff", {"added": serializers.ListField()}))
+    @action(detail=True, methods=["get"])
+    def diff(self, request: Request, pk: str | None = None) -> Response:
+        """Compare with ``?against=<version id>`` (default: the previous version)."""
+        version = self.get_object()
+        against = request.query_params.get("against")
+        qs = self.get_queryset()
+        if against:
+            other = get_object_or_404(qs, pk=against) if against.isdigit() else None
+            if other is None:
+                return Response({"against": ["A version id is a whole number."]}, status=400)
+        else:
+            other = (
+                qs.filter(checklist=version.checklist, number__lt=version.number)
+                .order_by("-number")
+                .first()
+            )
+            if other is None:
+                return Response(
+                    {"against": ["This is the first version; name one to compare."]}, status=400
+                )
+        return Response(checklist_services.diff_versions(other, version))
+
+
+class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
+    serializer_class = s.SheetSerializer
+    permission_classes = [OrganisationMember]
+
+    def get_queryset(self) -> QuerySet[Any]:
+        qs = sheets_for(self.org_id).order_by("id")
+        job = self.request.query_params.get("job")
+        if job:
+            qs = qs.filter(job_id=int(job)) if job.isdigit() else qs.none()
+        return qs
+
+    @extend_schema(
+        request=s.SheetInputSerializer, responses={201: s.SheetSerializer, 200: s.SheetSerializer}
+    )
+    def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        """Record a filled sheet; the same client_uuid sent again returns the stored copy."""
+        data = s.SheetInputSerializer(data=request.data, context=self.get_serializer_context())
+        data.is_valid(raise_exception=True)
+        sheet, created = checklist_services.record_sheet(by=request.user, **data.validated_data)
+        sheet = self.get_queryset().get(pk=sheet.pk)
+        return Response(
+            s.SheetSerializer(sheet).data,
+            status=status.HTTP_201_CREATED if created else status.HTTP_200_OK,
+        )
+
+
+def users_queryset(user: User) -> QuerySet[User]:
+    return User.objects.filter(organisation_id=user.organisation_id)

@@ -1,0 +1,192 @@
+"""Loading the invented demo scenario (fixtures/demo/scenario.json) through the real services."""
+
+import datetime as dt
+import json
+from pathlib import Path
+from typing import Any
+
+from django.conf import settings
+from django.db import transaction
+from django.utils import timezone
+
+from checklists.selectors import current_versions
+from checklists.services import record_sheet
+from compliance import services
+from compliance.models import (
+    Anchor,
+    AnchorCertification,
+    Drop,
+    DropLog,
+    Equipment,
+    Job,
+    JurisdictionProfile,
+    Organisation,
+    Site,
+    User,
+)
+from compliance.profiles import load_defaults
+from compliance.selectors import job_requirements
+
+
+def scenario_path() -> Path:
+    return Path(settings.PARAPET_FIXTURES_DIR) / "demo" / "scenario.json"
+
+
+def _entries(version_items: list[dict[str, Any]], readings: dict[str, Any]) -> dict[str, Any]:
+    entries: dict[str, Any] = {}
+    for item in version_items:
+        key, kind = item["key"], item["kind"]
+        if kind == "tick":
+            entries[key] = {"value": "pass"}
+        elif kind in ("reading", "series"):
+            entries[key] = {"value": readings[key], "unit": item["unit"]}
+    return entries
+
+
+def _fill(
+    job: Job,
+    by: User,
+    readings: dict[str, dict[str, Any]],
+    only: str | None = None,
+    equipment: Equipment | None = None,
+    extra: dict[str, Any] | None = None,
+    remarks: str = "",
+) -> None:
+    versions = {
+        v.checklist.key: v for vs in current_versions(job.organisation_id).values() for v in vs
+    }
+    for req in job_requirements(job):
+        if only and (req.checklist_key != only or req.subject.equipment != equipment):
+            continue
+        version = versions[req.checklist_key]
+        values = {**readings.get(req.checklist_key, {}), **((extra or {}) if only else {})}
+        record_sheet(
+            job=job,
+            version=version,
+            by=by,
+            entries=_entries(version.items, values),
+            anchor=req.subject.anchor,
+            equipment=req.subject.equipment,
+            remarks=remarks,
+        )
+
+
+@transaction.atomic
+def load_demo(path: Path | None = None) -> Organisation:
+    """Create the demo organisation and its history; a second call changes nothing."""
+    data = json.loads((path or scenario_path()).read_text(encoding="utf-8"))
+    existing = Organisation.objects.filter(name=data["organisation"]).first()
+    if existing is not None:
+        return existing
+    load_defaults()
+    org = Organisation.objects.create(name=data["organisation"])
+    people: dict[str, User] = {}
+    for person in data["people"]:
+        user = User(
+            username=person["username"],
+            first_name=person["first_name"],
+            last_name=person["last_name"],
+            role=person["role"],
+            organisation=org,
+            is_staff=person.get("superuser", False),
+            is_superuser=person.get("superuser", False),
+        )
+        user.set_password(data["password"])
+        user.save()
+        people[user.username] = user
+    site_data = data["site"]
+    site = Site.objects.create(
+        organisation=org,
+        name=site_data["name"],
+        address=site_data["address"],
+        height_m=site_data["height_m"],
+        storeys=site_data["storeys"],
+        terrain=site_data["terrain"],
+        profile=JurisdictionProfile.objects.get(key=site_data["profile"]),
+        roof_outline=site_data["roof_outline"],
+    )
+    today = timezone.localdate()
+    anchors: dict[str, Anchor] = {}
+    for a in data["anchors"]:
+        anchor = Anchor.objects.create(site=site, label=a["label"], x_m=a["x_m"], y_m=a["y_m"])
+        certified_on = today - dt.timedelta(days=420 if a.get("expired") else 120)
+        AnchorCertification.objects.create(
+            anchor=anchor,
+            certifier=data["certifier"]["name"],
+            certifier_company=data["certifier"]["company"],
+            rated_capacity_kn=a["capacity_kn"],
+            certified_on=certified_on,
+            valid_until=certified_on + dt.timedelta(days=365),
+            recorded_by=people["rhea"],
+        )
+        anchors[a["label"]] = anchor
+    kit: dict[str, Equipment] = {}
+    for e in data["equipment"]:
+        kit[e["label"]] = services.create_equipment(
+            by=people["rhea"],
+            kind=e["kind"],
+            label=e["label"],
+            serial=e.get("serial", ""),
+            ratings=e["ratings"],
+            next_inspection_due=today + dt.timedelta(days=90),
+        )
+    drops = {d["label"]: d for d in data["drops"]}
+    supervisor, operator = people["rhea"], people["tomas"]
+    for day in data["days"]:
+        date = today + dt.timedelta(days=day["offset"])
+        job = services.create_job(
+            site=site, date=date, supervisor=supervisor, by=supervisor, notes=day.get("remarks", "")
+        )
+        job.crew.set([operator, people["ana"]])
+        for label in day["drops"]:
+            d = drops[label]
+            services.add_drop(
+                job=job,
+                by=supervisor,
+                label=label,
+                robot=kit[d["robot"]],
+                anchor=anchors[d["anchor"]],
+                safety_anchor=anchors[d["safety_anchor"]],
+                tether=kit[d["tether"]],
+                safety_line=kit[d["safety_line"]],
+                hose=kit[d["hose"]],
+                length_m=d["length_m"],
+            )
+        if not day.get("fill", True):
+            continue
+        _fill(job, operator, data["readings"])
+        services.start_job(job=job, by=operator)
+        failure = day.get("failure")
+        if failure:
+            robot = kit[failure["robot"]]
+            _fill(
+                job,
+                operator,
+                data["readings"],
+                only=failure["checklist"],
+                equipment=robot,
+                extra=failure["readings"],
+                remarks=failure["remarks"],
+            )
+            _fill(
+                job,
+                operator,
+                data["readings"],
+                only=failure["checklist"],
+                equipment=robot,
+                remarks=day["repair"]["remarks"],
+            )
+            services.start_job(job=job, by=operator)
+        for label in day["done"]:
+            DropLog.objects.create(
+                drop=Drop.objects.get(job=job, label=label),
+                by=operator,
+                note="Drop cleaned top to bottom.",
+            )
+        services.close_job(job=job, by=supervisor)
+    return org
+
+
+def demo_logins() -> list[tuple[str, str, str]]:
+    data = json.loads(scenario_path().read_text(encoding="utf-8"))
+    return [(p["username"], data["password"], p["role"]) for p in data["people"]]

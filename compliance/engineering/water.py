@@ -1,0 +1,188 @@
+"""water-line: pressure at the robot's valve on a hose fed by gravity from a roof tank.
+
+Static pressure ρ·g·h; friction loss by Darcy-Weisbach, f = 64/Re below Re 2300, Colebrook-White
+(solved by iteration) from Re 4000, and in the band between the larger of the two, so the loss
+is never under-stated. Flowing pressure = static - friction loss (velocity head and fittings
+are not counted). Margin: the lesser of hose rating / static - 1 and flowing / nozzle
+minimum - 1.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from typing import Final
+
+from .calculation import Calculation
+from .constants import M3_PER_L, M_PER_MM, PA_PER_KPA, S_PER_MIN, G
+from .inputs import AtMostFractionOf, Inputs, number
+from .result import CalcResult, Check, OutputValue, ratio_margin
+from .water_properties import density_kgm3, viscosity_pas
+from .working import num
+
+NAME = "water-line"
+
+LAMINAR_BELOW_RE: Final = 2300.0
+TURBULENT_FROM_RE: Final = 4000.0
+"""Transitional band 2300-4000: common practice, from memory (pipe-flow textbooks)."""
+
+
+def colebrook(reynolds: float, relative_roughness: float) -> float:
+    """Darcy friction factor from Colebrook-White, 1/√f = -2·log10(ε/(3.7·D) + 2.51/(Re·√f)).
+
+    Solved by fixed-point iteration on 1/√f from the Swamee-Jain (1976) estimate; converges to
+    machine precision in a few steps for Re above 2000.
+    """
+    a = relative_roughness / 3.7
+    b = 2.51 / reynolds
+    x = -2.0 * math.log10(a + 5.74 / reynolds**0.9)
+    for _ in range(100):
+        nxt = -2.0 * math.log10(a + b * x)
+        if abs(nxt - x) <= 1e-15 * abs(nxt):
+            x = nxt
+            break
+        x = nxt
+    return 1.0 / (x * x)
+
+
+def friction_factor(reynolds: float, relative_roughness: float) -> tuple[float, str]:
+    """Darcy friction factor and flow regime ('laminar', 'transitional', 'turbulent')."""
+    if reynolds < LAMINAR_BELOW_RE:
+        return 64.0 / reynolds, "laminar"
+    turbulent = colebrook(reynolds, relative_roughness)
+    if reynolds < TURBULENT_FROM_RE:
+        return max(64.0 / reynolds, turbulent), "transitional"
+    return turbulent, "turbulent"
+
+
+FIELDS = (
+    number(
+        "drop_m",
+        "m",
+        "height of the tank's water surface above the valve",
+        at_least=0.0,
+        at_most=1000.0,
+        limit_reason="plausibility bound",
+    ),
+    number(
+        "hose_id_mm",
+        "mm",
+        "hose inside diameter",
+        greater_than=0.0,
+        at_most=300.0,
+        limit_reason="plausibility bound",
+    ),
+    number("hose_length_m", "m", "hose length from tank to valve", greater_than=0.0),
+    number("flow_lpm", "L/min", "water flow through the hose", at_least=0.0),
+    number("roughness_mm", "mm", "hose wall absolute roughness", at_least=0.0),
+    number(
+        "water_temp_c",
+        "°C",
+        "water temperature",
+        at_least=0.0,
+        at_most=60.0,
+        limit_reason="the water property model covers 0-60 °C",
+    ),
+    number("hose_rating_kpa", "kPa", "hose working pressure rating", greater_than=0.0),
+    number("nozzle_min_kpa", "kPa", "least pressure the nozzles need", greater_than=0.0),
+)
+
+RULES = (
+    AtMostFractionOf(
+        "roughness_mm", "hose_id_mm", 0.05, "relative roughness beyond the Moody chart's range"
+    ),
+)
+
+
+def compute(values: Inputs) -> CalcResult:
+    drop_m = values.number("drop_m")
+    diameter_m = values.number("hose_id_mm") * M_PER_MM
+    length_m = values.number("hose_length_m")
+    flow_lpm = values.number("flow_lpm")
+    roughness_m = values.number("roughness_mm") * M_PER_MM
+    temp_c = values.number("water_temp_c")
+    rating_kpa = values.number("hose_rating_kpa")
+    nozzle_kpa = values.number("nozzle_min_kpa")
+
+    rho = density_kgm3(temp_c)
+    mu = viscosity_pas(temp_c)
+    area_m2 = math.pi * diameter_m**2 / 4.0
+    flow_m3s = flow_lpm * M3_PER_L / S_PER_MIN
+    velocity = flow_m3s / area_m2
+    reynolds = rho * velocity * diameter_m / mu
+    static_kpa = rho * G * drop_m / PA_PER_KPA
+    steps = [
+        f"water at {num(temp_c)} °C: ρ = {num(rho)} kg/m³, μ = {num(mu)} Pa·s",
+        f"static = ρ·g·h = {num(rho)} × {num(G)} × {num(drop_m)} m = {num(static_kpa)} kPa",
+        f"velocity = {num(flow_lpm)} L/min / 60000 / (π × ({num(diameter_m)} m)² / 4)"
+        f" = {num(velocity)} m/s",
+        f"Re = ρ·v·D/μ = {num(rho)} × {num(velocity)} × {num(diameter_m)} / {num(mu)}"
+        f" = {num(reynolds)}",
+    ]
+    f: float | None
+    if reynolds == 0.0:
+        f, regime, loss_kpa = None, "none", 0.0
+        steps.append("no flow: no friction loss")
+    else:
+        f, regime = friction_factor(reynolds, roughness_m / diameter_m)
+        if regime == "laminar":
+            steps.append(f"laminar (Re < 2300): f = 64 / {num(reynolds)} = {num(f)}")
+        elif regime == "transitional":
+            steps.append(
+                f"transitional (2300 ≤ Re < 4000): f = larger of 64/Re = {num(64.0 / reynolds)}"
+                f" and Colebrook-White = {num(colebrook(reynolds, roughness_m / diameter_m))},"
+                f" so {num(f)} (never under-states the loss)"
+            )
+        else:
+            steps.append(
+                f"turbulent (Re ≥ 4000): Colebrook-White with ε/D = {num(roughness_m)} /"
+                f" {num(diameter_m)} = {num(roughness_m / diameter_m)}, solved by iteration:"
+                f" f = {num(f)}"
+            )
+        loss_kpa = f * (length_m / diameter_m) * rho * velocity**2 / 2.0 / PA_PER_KPA
+        steps.append(
+            f"friction loss = f·(L/D)·ρ·v²/2 = {num(f)} × ({num(length_m)} / {num(diameter_m)})"
+            f" × {num(rho)} × {num(velocity)}² / 2 = {num(loss_kpa)} kPa"
+        )
+    flowing_kpa = static_kpa - loss_kpa
+    max_drop_m = rating_kpa * PA_PER_KPA / (rho * G)
+    water_kg = rho * area_m2 * length_m
+    steps += [
+        f"flowing = {num(static_kpa)} - {num(loss_kpa)} = {num(flowing_kpa)} kPa"
+        f" (nozzles need {num(nozzle_kpa)} kPa; velocity head and fittings not counted)",
+        f"deepest valve within the rating = {num(rating_kpa)} kPa × 1000 / ({num(rho)} ×"
+        f" {num(G)}) = {num(max_drop_m)} m (drop {num(drop_m)} m)",
+        f"water in hose = {num(rho)} × {num(area_m2)} m² × {num(length_m)} m = {num(water_kg)} kg",
+    ]
+    if flowing_kpa < 0.0:
+        steps.append("friction loss exceeds the static head: gravity cannot drive this flow")
+    outputs: dict[str, OutputValue] = {
+        "static_kpa": static_kpa,
+        "friction_loss_kpa": loss_kpa,
+        "flowing_kpa": flowing_kpa,
+        "reynolds": reynolds,
+        "flow_regime": regime,
+        "velocity_ms": velocity,
+        "friction_factor": f,
+        "max_drop_m": max_drop_m,
+        "water_in_hose_kg": water_kg,
+        "water_density_kgm3": rho,
+        "water_viscosity_pa_s": mu,
+    }
+    checks = [
+        Check("hose_rating", ratio_margin(rating_kpa, static_kpa)),
+        Check("nozzle_pressure", flowing_kpa / nozzle_kpa - 1.0),
+    ]
+    return CalcResult.build(
+        name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
+    )
+
+
+CALCULATION = Calculation(
+    name=NAME, title="Water line pressure", fields=FIELDS, rules=RULES, compute=compute
+)
+
+
+def water_line(inputs: Mapping[str, object]) -> CalcResult:
+    """Validate `inputs` and run the water-line calculation."""
+    return CALCULATION.run(inputs)

@@ -1,0 +1,45 @@
+"""Formatting of the working (formula with numbers substituted) shown on screens and PDFs."""
+
+from __future__ import annotations
+
+import math
+
+
+def num(value: float | int, figures: int = 4) -> str:
+    """A number to `figures` significant figures in plain notation, trailing zeros dropped.
+
+    Only the text is rounded; calculations never round. Very large or very small magnitudes use
+    scientific notation so the text stays short.
+    """
+    if isinstance(value, bool):
+        raise TypeError("num() takes a number, not a bool")
+    if isinstance(value, int):
+        return str(value)
+    if math.isnan(value):
+        return "undefined"
+    if math.isinf(value):
+        return "infinite" if value > 0 else "-infinite"
+    if value == 0.0:
+        return "0"
+    exponent = math.floor(math.log10(abs(value)))
+    if exponent >= 9 or exponent < -6:
+        mantissa = f"{value:.{figures - 1}e}"
+        head, _, tail = mantissa.partition("e")
+        if "." in head:
+            head = head.rstrip("0").rstrip(".")
+        return f"{head}e{int(tail)}"
+    decimals = figures - 1 - exponent
+    rounded = round(value, decimals)
+    if rounded != 0.0 and math.floor(math.log10(abs(rounded))) > exponent:
+        decimals -= 1
+    if decimals <= 0:
+        return f"{rounded:.0f}"
+    text = f"{rounded:.{decimals}f}"
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def pct(fraction: float) -> str:
+    """A relative margin as a signed percentage, e.g. 0.254 -> '+25.4 %'."""
+    if not math.isfinite(fraction):
+        return num(fraction)
+    return f"{'+' if fraction >= 0 else '-'}{num(abs(fraction) * 100.0, 3)} %"

@@ -1,0 +1,337 @@
+"""Core registers: organisations, people, sites, anchors, equipment, jobs, drops, holds.
+
+Safety records (certifications, transitions, holds, clearances, drop logs) are append-only.
+"""
+
+import datetime as dt
+import uuid
+from typing import Any
+
+from django.contrib.auth.models import AbstractUser
+from django.core.exceptions import ValidationError
+from django.db import models
+from django.db.models import Q
+
+from compliance.append_only import AppendOnlyModel
+from compliance.ratings import EQUIPMENT_KINDS, validate_ratings
+
+
+class Organisation(models.Model):
+    class Kind(models.TextChoices):
+        CONTRACTOR = "contractor", "Facade contractor"
+        OWNER = "owner", "Building owner"
+
+    name = models.CharField(max_length=200, unique=True)
+    kind = models.CharField(max_length=20, choices=Kind.choices, default=Kind.CONTRACTOR)
+    created_at = models.DateTimeField(auto_now_add=True)
+
+    def __str__(self) -> str:
+        return self.name
+
+
+class Role(models.TextChoices):
+    OPERATOR = "operator", "Operator"
+    SUPERVISOR = "supervisor", "Supervisor (competent person)"
+    AUDITOR = "auditor", "Auditor (read only)"
+    ADMIN = "admin", "Organisation admin"
+
+
+class User(AbstractUser):
+    """A person who signs in; belongs to one organisation with one role."""
+
+    organisation = models.ForeignKey(
+        Organisation, null=True, blank=True, on_delete=models.PROTECT, related_name="people"
+    )
+    role = models.CharField(max_length=20, choices=Role.choices, default=Role.OPERATOR)
+
+    @property
+    def display_name(self) -> str:
+        return self.get_full_name() or self.username
+
+    @property
+    def can_write(self) -> bool:
+        return self.role != Role.AUDITOR
+
+    @property
+    def can_supervise(self) -> bool:
+        return self.role in (Role.SUPERVISOR, Role.ADMIN)
+
+
+class JurisdictionProfile(models.Model):
+    """Thresholds and cautions of one jurisdiction, loaded from fixtures/profiles."""
+
+    key = models.SlugField(max_length=50, unique=True)
+    name = models.CharField(max_length=200)
+    thresholds = models.JSONField(help_text="{key: {value, unit, source}}")
+    cautions = models.TextField()
+    content_hash = models.CharField(max_length=64)
+
+    def __str__(self) -> str:
+        return self.name
+
+    def threshold(self, key: str) -> float:
+        return float(self.thresholds[key]["value"])
+
+
+class Site(models.Model):
+    organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="sites")
+    name = models.CharField(max_length=200)
+    address = models.CharField(max_length=300, blank=True)
+    height_m = models.FloatField(help_text="Roof height above ground, m.")
+    storeys = models.PositiveIntegerField(null=True, blank=True)
+    profile = models.ForeignKey(JurisdictionProfile, on_delete=models.PROTECT, related_name="+")
+    terrain = models.CharField(
+        max_length=3,
+        choices=[
+            ("0", "0 sea"),
+            ("I", "I open flat"),
+            ("II", "II low vegetation"),
+            ("III", "III suburban"),
+            ("IV", "IV urban"),
+        ],
+        default="IV",
+        help_text="Terrain category around the building (EN 1991-1-4 Table 4.1).",
+    )
+    roof_outline = models.JSONField(default=list, blank=True, help_text="[[x_m, y_m], ...]")
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(fields=["organisation", "name"], name="site_name_unique"),
+            models.CheckConstraint(condition=Q(height_m__gt=0), name="site_height_positive"),
+        ]
+
+    def __str__(self) -> str:
+        return self.name
+
+
+class Anchor(models.Model):
+    site = models.ForeignKey(Site, on_delete=models.PROTECT, related_name="anchors")
+    label = models.CharField(max_length=40)
+    x_m = models.FloatField(default=0)
+    y_m = models.FloatField(default=0)
+    description = models.CharField(max_length=200, blank=True)
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(fields=["site", "label"], name="anchor_label_unique"),
+        ]
+        ordering = ["site_id", "label"]
+
+    def __str__(self) -> str:
+        return f"{self.site.name} {self.label}"
+
+    def current_certification(self) -> "AnchorCertification | None":
+        """The newest certification; uses the prefetched list when there is one."""
+        certs = list(self.certifications.all())
+        return max(certs, key=lambda c: (c.certified_on, c.pk)) if certs else None
+
+
+class AnchorCertification(AppendOnlyModel):
+    """One certification of an anchor by a competent or qualified person (append-only)."""
+
+    anchor = models.ForeignKey(Anchor, on_delete=models.PROTECT, related_name="certifications")
+    certifier = models.CharField(max_length=200)
+    certifier_company = models.CharField(max_length=200, blank=True)
+    rated_capacity_kn = models.FloatField()
+    certified_on = models.DateField()
+    valid_until = models.DateField()
+    document = models.FileField(upload_to="certificates/", blank=True)
+    recorded_by = models.ForeignKey(
+        User, null=True, blank=True, on_delete=models.PROTECT, related_name="+"
+    )
+    recorded_at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        constraints = [
+            models.CheckConstraint(
+                condition=Q(rated_capacity_kn__gt=0), name="certification_capacity_positive"
+            ),
+            models.CheckConstraint(
+                condition=Q(valid_until__gt=models.F("certified_on")),
+                name="certification_valid_after_certified",
+            ),
+        ]
+
+    def is_valid_on(self, day: dt.date) -> bool:
+        return self.certified_on <= day <= self.valid_until
+
+
+class Equipment(models.Model):
+    organisation = models.ForeignKey(
+        Organisation, on_delete=models.PROTECT, related_name="equipment"
+    )
+    kind = models.CharField(
+        max_length=20, choices=[(k, k.replace("_", " ")) for k in EQUIPMENT_KINDS]
+    )
+    label = models.CharField(max_length=80)
+    serial = models.CharField(max_length=80, blank=True)
+    ratings = models.JSONField(default=dict)
+    made_on = models.DateField(null=True, blank=True)
+    next_inspection_due = models.DateField(null=True, blank=True)
+    in_service = models.BooleanField(default=True)
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(
+                fields=["organisation", "label"], name="equipment_label_unique"
+            ),
+        ]
+        ordering = ["kind", "label"]
+        verbose_name_plural = "equipment"
+
+    def __str__(self) -> str:
+        return f"{self.label} ({self.kind})"
+
+    def clean(self) -> None:
+        validate_ratings(self.kind, self.ratings)
+
+
+class JobState(models.TextChoices):
+    PLANNED = "planned", "Planned"
+    CLEARED = "cleared", "Cleared to start"
+    WORKING = "working", "Working"
+    HELD = "held", "Stop work (held)"
+    CLOSED = "closed", "Closed"
+
+
+OPEN_STATES = (JobState.PLANNED, JobState.CLEARED, JobState.WORKING, JobState.HELD)
+
+
+class Job(models.Model):
+    """One day's work at one site."""
+
+    organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="jobs")
+    site = models.ForeignKey(Site, on_delete=models.PROTECT, related_name="jobs")
+    date = models.DateField()
+    state = models.CharField(max_length=10, choices=JobState.choices, default=JobState.PLANNED)
+    supervisor = models.ForeignKey(User, on_delete=models.PROTECT, related_name="supervised_jobs")
+    crew = models.ManyToManyField(User, related_name="jobs", blank=True)
+    notes = models.TextField(blank=True)
+    created_at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        ordering = ["-date", "id"]
+        indexes = [models.Index(fields=["organisation", "date"])]
+
+    def __str__(self) -> str:
+        return f"{self.site.name} {self.date:%Y-%m-%d}"
+
+
+class Drop(models.Model):
+    """A planned vertical strip of facade worked from one anchor pair."""
+
+    job = models.ForeignKey(Job, on_delete=models.PROTECT, related_name="drops")
+    label = models.CharField(max_length=40)
+    robot = models.ForeignKey(Equipment, on_delete=models.PROTECT, related_name="+")
+    anchor = models.ForeignKey(Anchor, on_delete=models.PROTECT, related_name="+")
+    safety_anchor = models.ForeignKey(Anchor, on_delete=models.PROTECT, related_name="+")
+    tether = models.ForeignKey(Equipment, on_delete=models.PROTECT, related_name="+")
+    safety_line = models.ForeignKey(Equipment, on_delete=models.PROTECT, related_name="+")
+    hose = models.ForeignKey(Equipment, on_delete=models.PROTECT, related_name="+")
+    length_m = models.FloatField(help_text="Height of the strip worked, m.")
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(fields=["job", "label"], name="drop_label_unique"),
+            models.CheckConstraint(condition=Q(length_m__gt=0), name="drop_length_positive"),
+            models.CheckConstraint(
+                condition=~Q(anchor=models.F("safety_anchor")),
+                name="drop_safety_anchor_independent",
+            ),
+        ]
+        ordering = ["job_id", "label"]
+
+    def __str__(self) -> str:
+        return self.label
+
+    def clean(self) -> None:
+        errors: dict[str, str] = {}
+        expected = {
+            "robot": "robot",
+            "tether": "tether",
+            "safety_line": "safety_line",
+            "hose": "hose",
+        }
+        for field, kind in expected.items():
+            item = getattr(self, field, None)
+            if item is not None and item.kind != kind:
+                errors[field] = f"Must be a {kind.replace('_', ' ')}, not a {item.kind}."
+            if (
+                item is not None
+                and self.job_id
+                and item.organisation_id != self.job.organisation_id
+            ):
+                errors[field] = "Unknown equipment."
+        for field in ("anchor", "safety_anchor"):
+            anchor = getattr(self, field, None)
+            if anchor is not None and self.job_id and anchor.site_id != self.job.site_id:
+                errors[field] = "This anchor is not on the job's site."
+        if self.anchor_id and self.anchor_id == self.safety_anchor_id:
+            errors["safety_anchor"] = "The safety line needs an anchor independent of the tether's."
+        if errors:
+            raise ValidationError(errors)
+
+
+class JobTransition(AppendOnlyModel):
+    """Who moved a job from which state to which, when and why."""
+
+    job = models.ForeignKey(Job, on_delete=models.PROTECT, related_name="transitions")
+    from_state = models.CharField(max_length=10, choices=JobState.choices)
+    to_state = models.CharField(max_length=10, choices=JobState.choices)
+    by = models.ForeignKey(User, null=True, blank=True, on_delete=models.PROTECT, related_name="+")
+    at = models.DateTimeField(auto_now_add=True)
+    reason = models.TextField()
+
+    class Meta:
+        ordering = ["at", "id"]
+
+
+class Hold(AppendOnlyModel):
+    """Stop work on a job, opened by a failed blocking item; cleared by a HoldClearance."""
+
+    job = models.ForeignKey(Job, on_delete=models.PROTECT, related_name="holds")
+    requirement = models.CharField(max_length=200, help_text="checklist key @ subject")
+    item_key = models.CharField(max_length=80)
+    reason = models.TextField()
+    sheet = models.ForeignKey(
+        "checklists.CheckSheet", on_delete=models.PROTECT, related_name="holds_opened"
+    )
+    opened_at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        ordering = ["opened_at", "id"]
+
+
+class HoldClearance(AppendOnlyModel):
+    """A hold cleared by a new passing sheet for the same requirement."""
+
+    hold = models.OneToOneField(Hold, on_delete=models.PROTECT, related_name="clearance")
+    sheet = models.ForeignKey(
+        "checklists.CheckSheet", on_delete=models.PROTECT, related_name="holds_cleared"
+    )
+    by = models.ForeignKey(User, null=True, blank=True, on_delete=models.PROTECT, related_name="+")
+    at = models.DateTimeField(auto_now_add=True)
+
+
+class DropLog(AppendOnlyModel):
+    """A drop worked, logged from the roof."""
+
+    client_uuid = models.UUIDField(unique=True, default=uuid.uuid4)
+    drop = models.ForeignKey(Drop, on_delete=models.PROTECT, related_name="logs")
+    by = models.ForeignKey(User, on_delete=models.PROTECT, related_name="+")
+    device_time = models.DateTimeField(null=True, blank=True)
+    received_at = models.DateTimeField(auto_now_add=True)
+    note = models.CharField(max_length=500, blank=True)
+
+
+def organisation_of(obj: Any) -> int | None:
+    """The organisation id that owns a row, for object-level permission checks."""
+    for path in ("organisation_id", "site.organisation_id", "job.organisation_id"):
+        target = obj
+        for part in path.split("."):
+            target = getattr(target, part, None)
+            if target is None:
+                break
+        if target is not None:
+            return int(target)
+    return None

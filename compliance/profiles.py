@@ -1,0 +1,66 @@
+"""Loading jurisdiction profiles and default checklists from fixtures/."""
+
+import hashlib
+import json
+from pathlib import Path
+from typing import Any
+
+from django.conf import settings
+from django.db import transaction
+
+from compliance.models import JurisdictionProfile
+
+
+def _read(path: Path) -> dict[str, Any]:
+    return json.loads(path.read_text(encoding="utf-8"))
+
+
+def load_profiles(directory: Path | None = None) -> list[JurisdictionProfile]:
+    """Create or refresh each profile from its JSON file; every threshold must name a source."""
+    directory = directory or Path(settings.PARAPET_FIXTURES_DIR) / "profiles"
+    profiles = []
+    for path in sorted(directory.glob("*.json")):
+        data = _read(path)
+        for key, threshold in data["thresholds"].items():
+            if not str(threshold.get("source", "")).strip():
+                raise ValueError(f"{path.name}: threshold {key} names no source.")
+            float(threshold["value"])
+        digest = hashlib.sha256(
+            json.dumps(data, sort_keys=True, separators=(",", ":")).encode()
+        ).hexdigest()
+        profile, _ = JurisdictionProfile.objects.update_or_create(
+            key=data["key"],
+            defaults={
+                "name": data["name"],
+                "thresholds": data["thresholds"],
+                "cautions": data["cautions"],
+                "content_hash": digest,
+            },
+        )
+        profiles.append(profile)
+    return profiles
+
+
+def load_default_checklists(directory: Path | None = None) -> list[Any]:
+    from checklists.services import ensure_published
+
+    directory = directory or Path(settings.PARAPET_FIXTURES_DIR) / "checklists"
+    versions = []
+    with transaction.atomic():
+        for path in sorted(directory.glob("*.json")):
+            data = _read(path)
+            versions.append(
+                ensure_published(
+                    key=data["key"],
+                    title=data["title"],
+                    applies_to=data["applies_to"],
+                    description=data.get("description", ""),
+                    items=data["items"],
+                )
+            )
+    return versions
+
+
+def load_defaults() -> None:
+    load_profiles()
+    load_default_checklists()

@@ -1,0 +1,96 @@
+"""Kind-specific equipment ratings: which numbers each kind of equipment must carry.
+
+Ratings are stored as JSON on the equipment row and validated here, so a checklist can draw a
+limit from "the hose's pressure rating" without each kind needing its own table.
+"""
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+from django.core.exceptions import ValidationError
+
+
+@dataclass(frozen=True)
+class Rating:
+    key: str
+    label: str
+    required: bool = True
+    positive: bool = True
+    text: bool = False
+
+
+EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
+    "robot": (
+        Rating("mass_kg", "mass without water, kg"),
+        Rating("cup_diameter_m", "suction cup diameter, m"),
+        Rating("cups_engaged", "cups engaged at once"),
+        Rating("friction", "cup-on-glass friction coefficient"),
+        Rating("projected_area_m2", "area facing the wind, m²"),
+        Rating("drag_coefficient", "drag coefficient"),
+        Rating("max_wind_ms", "maker's in-service wind limit, m/s"),
+        Rating("nozzle_min_kpa", "least water pressure at the robot's valve, kPa"),
+        Rating("working_vacuum_kpa", "maker's working vacuum, kPa", required=False),
+    ),
+    "tether": (
+        Rating("mbs_kn", "minimum breaking strength, kN"),
+        Rating("wll_kn", "working load limit, kN"),
+        Rating("ea_kn", "axial stiffness EA, kN"),
+        Rating("kg_per_m", "self-weight, kg/m"),
+        Rating("length_m", "length, m"),
+        Rating("retire_after_years", "retire after, years", required=False),
+    ),
+    "safety_line": (
+        Rating("mbs_kn", "minimum breaking strength, kN"),
+        Rating("ea_kn", "axial stiffness EA, kN"),
+        Rating("kg_per_m", "self-weight, kg/m"),
+        Rating("length_m", "length, m"),
+        Rating("retire_after_years", "retire after, years", required=False),
+    ),
+    "hose": (
+        Rating("id_mm", "inner diameter, mm"),
+        Rating("rating_kpa", "pressure rating, kPa"),
+        Rating("kg_per_m", "empty self-weight, kg/m"),
+        Rating("length_m", "length, m"),
+        Rating("roughness_mm", "wall roughness, mm"),
+    ),
+    "estop": (Rating("location", "where the stop is fitted", positive=False, text=True),),
+}
+
+EQUIPMENT_KINDS = tuple(EQUIPMENT_RATINGS)
+ESTOP_LOCATIONS = ("roof", "remote", "robot")
+
+
+def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:
+    """Check a ratings object for an equipment kind; raise ValidationError keyed per rating."""
+    if kind not in EQUIPMENT_RATINGS:
+        raise ValidationError({"kind": f"Unknown equipment kind {kind!r}."})
+    if not isinstance(ratings, dict):
+        raise ValidationError({"ratings": "Ratings must be an object."})
+    spec = {r.key: r for r in EQUIPMENT_RATINGS[kind]}
+    errors: dict[str, str] = {}
+    for key in ratings:
+        if key not in spec:
+            errors[f"ratings.{key}"] = f"Not a rating of a {kind}."
+    for rating in spec.values():
+        value = ratings.get(rating.key)
+        field = f"ratings.{rating.key}"
+        if value is None:
+            if rating.required:
+                errors[field] = f"Required for a {kind}: {rating.label}."
+            continue
+        if rating.text:
+            if not isinstance(value, str) or not value.strip():
+                errors[field] = "Must be a non-empty text."
+            elif kind == "estop" and value not in ESTOP_LOCATIONS:
+                errors[field] = f"Must be one of {', '.join(ESTOP_LOCATIONS)}."
+            continue
+        if isinstance(value, bool) or not isinstance(value, int | float):
+            errors[field] = "Must be a number."
+        elif not math.isfinite(value):
+            errors[field] = "Must be a finite number."
+        elif rating.positive and value <= 0:
+            errors[field] = "Must be greater than zero."
+    if errors:
+        raise ValidationError(errors)
+    return ratings

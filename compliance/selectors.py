@@ -1,0 +1,230 @@
+"""Reads that are more than a one-liner: what a job needs, what blocks it, list querysets."""
+
+from collections.abc import Iterable
+from dataclasses import dataclass
+
+from django.db.models import Prefetch, QuerySet
+
+from compliance.errors import Reason
+from compliance.models import Anchor, AnchorCertification, Drop, Equipment, Hold, Job, User
+
+
+@dataclass(frozen=True)
+class Subject:
+    kind: str  # anchor, robot, tether, safety_line, hose, site
+    anchor: Anchor | None = None
+    equipment: Equipment | None = None
+
+    @property
+    def ref(self) -> str:
+        if self.kind == "anchor":
+            return f"anchor:{self.anchor.pk}"  # type: ignore[union-attr]
+        if self.kind == "site":
+            return "site"
+        return f"equipment:{self.equipment.pk}"  # type: ignore[union-attr]
+
+    @property
+    def label(self) -> str:
+        if self.anchor is not None:
+            return f"anchor {self.anchor.label}"
+        if self.equipment is not None:
+            return f"{self.equipment.kind.replace('_', ' ')} {self.equipment.label}"
+        return "site"
+
+
+@dataclass(frozen=True)
+class Requirement:
+    checklist_key: str
+    checklist_title: str
+    version_id: int
+    subject: Subject
+    satisfied: bool
+    latest_sheet_id: int | None
+    latest_verdict: str | None
+
+    @property
+    def key(self) -> str:
+        return f"{self.checklist_key}@{self.subject.ref}"
+
+    def as_dict(self) -> dict[str, object]:
+        return {
+            "key": self.key,
+            "checklist": self.checklist_key,
+            "title": self.checklist_title,
+            "version": self.version_id,
+            "subject_kind": self.subject.kind,
+            "subject": self.subject.label,
+            "anchor": self.subject.anchor.pk if self.subject.anchor else None,
+            "equipment": self.subject.equipment.pk if self.subject.equipment else None,
+            "satisfied": self.satisfied,
+            "latest_sheet": self.latest_sheet_id,
+            "latest_verdict": self.latest_verdict,
+        }
+
+
+def drops_of(job: Job) -> list[Drop]:
+    return list(
+        Drop.objects.filter(job=job)
+        .select_related("robot", "tether", "safety_line", "hose", "anchor", "safety_anchor")
+        .prefetch_related(
+            Prefetch("anchor__certifications", queryset=AnchorCertification.objects.all()),
+            Prefetch("safety_anchor__certifications", queryset=AnchorCertification.objects.all()),
+        )
+    )
+
+
+def job_subjects(drops: Iterable[Drop]) -> list[Subject]:
+    """Every distinct anchor and piece of equipment the job's drops use, then the site."""
+    subjects: dict[str, Subject] = {}
+    for drop in drops:
+        for anchor in (drop.anchor, drop.safety_anchor):
+            subjects.setdefault(f"a{anchor.pk}", Subject("anchor", anchor=anchor))
+        for item in (drop.robot, drop.tether, drop.safety_line, drop.hose):
+            subjects.setdefault(f"e{item.pk}", Subject(item.kind, equipment=item))
+    subjects["site"] = Subject("site")
+    return list(subjects.values())
+
+
+def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirement]:
+    """Which sheets the job needs, and whether the newest sheet for each passes."""
+    from checklists.selectors import current_versions, latest_sheets
+
+    drops = drops_of(job) if drops is None else drops
+    versions = current_versions(job.organisation_id)
+    latest = latest_sheets(job)
+    requirements = []
+    for subject in job_subjects(drops):
+        for version in versions.get(subject.kind, []):
+            key = f"{version.checklist.key}@{subject.ref}"
+            sheet = latest.get(key)
+            requirements.append(
+                Requirement(
+                    checklist_key=version.checklist.key,
+                    checklist_title=version.checklist.title,
+                    version_id=version.pk,
+                    subject=subject,
+                    satisfied=sheet is not None and sheet.blocking_failures == 0,
+                    latest_sheet_id=sheet.pk if sheet else None,
+                    latest_verdict=sheet.verdict if sheet else None,
+                )
+            )
+    return requirements
+
+
+def open_holds(job: Job) -> list[Hold]:
+    return list(Hold.objects.filter(job=job, clearance__isnull=True).select_related("sheet"))
+
+
+def job_blockers(
+    job: Job, drops: list[Drop] | None = None, requirements: list[Requirement] | None = None
+) -> list[Reason]:
+    """Everything that keeps the job from starting, in plain words."""
+    drops = drops_of(job) if drops is None else drops
+    reasons: list[Reason] = []
+    if not drops:
+        reasons.append(Reason("no_drops", "No drops are planned for this job."))
+    for hold in open_holds(job):
+        reasons.append(Reason("open_hold", f"Stop work: {hold.reason}", hold.requirement))
+    profile = job.site.profile
+    min_capacity = profile.threshold("min_anchor_capacity_kn")
+    seen: set[int] = set()
+    for drop in drops:
+        for anchor in (drop.anchor, drop.safety_anchor):
+            if anchor.pk in seen:
+                continue
+            seen.add(anchor.pk)
+            cert = anchor.current_certification()
+            ref = f"anchor:{anchor.pk}"
+            if cert is None:
+                reasons.append(
+                    Reason(
+                        "anchor_uncertified",
+                        f"Anchor {anchor.label} has no certification on record.",
+                        ref,
+                    )
+                )
+            elif not cert.is_valid_on(job.date):
+                reasons.append(
+                    Reason(
+                        "anchor_certification_expired",
+                        f"Anchor {anchor.label}'s certification expired on "
+                        f"{cert.valid_until:%Y-%m-%d}.",
+                        ref,
+                    )
+                )
+            elif cert.rated_capacity_kn < min_capacity:
+                reasons.append(
+                    Reason(
+                        "anchor_capacity_low",
+                        f"Anchor {anchor.label} is rated {cert.rated_capacity_kn:g} kN, below the "
+                        f"profile's minimum of {min_capacity:g} kN.",
+                        ref,
+                    )
+                )
+        for item in (drop.robot, drop.tether, drop.safety_line, drop.hose):
+            if item.pk in seen:
+                continue
+            seen.add(item.pk)
+            if not item.in_service:
+                reasons.append(
+                    Reason(
+                        "equipment_out_of_service",
+                        f"{item.label} is out of service.",
+                        f"equipment:{item.pk}",
+                    )
+                )
+            if item.next_inspection_due and item.next_inspection_due < job.date:
+                reasons.append(
+                    Reason(
+                        "equipment_inspection_overdue",
+                        f"{item.label}'s periodic inspection was due on "
+                        f"{item.next_inspection_due:%Y-%m-%d}."
+                        f"equipment:{item.pk}",
+                    )
+                )
+    for req in job_requirements(job, drops) if requirements is None else requirements:
+        if req.latest_sheet_id is None:
+            reasons.append(
+                Reason(
+                    "sheet_missing",
+                    f"{req.checklist_title} for {req.subject.label} has not been done.",
+                    req.key,
+                )
+            )
+        elif not req.satisfied:
+            reasons.append(
+                Reason(
+                    "sheet_failed",
+                    f"{req.checklist_title} for {req.subject.label} failed a blocking item.",
+                    req.key,
+                )
+            )
+    return reasons
+
+
+def jobs_for(user: User) -> QuerySet[Job]:
+    return (
+        Job.objects.filter(organisation_id=user.organisation_id)
+        .select_related("site", "site__profile", "supervisor")
+        .order_by("-date", "id")
+    )
+
+
+@dataclass(frozen=True)
+class Readiness:
+    drops: list[Drop]
+    requirements: list[Requirement]
+    blockers: list[Reason]
+    holds: list[Hold]
+
+
+def job_readiness(job: Job) -> Readiness:
+    """Drops, requirements, blockers and all holds of a job in a fixed number of queries."""
+    drops = drops_of(job)
+    requirements = job_requirements(job, drops)
+    return Readiness(
+        drops=drops,
+        requirements=requirements,
+        blockers=job_blockers(job, drops, requirements),
+        holds=list(Hold.objects.filter(job=job).select_related("clearance")),
+    )

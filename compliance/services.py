@@ -1,0 +1,217 @@
+"""Every action that changes the state of a job or a register, with its audit entry."""
+
+import datetime as dt
+from typing import TYPE_CHECKING, Any
+
+from django.db import transaction
+
+from compliance.errors import InvalidTransition, JobBlocked, NotPermitted, Reason
+from compliance.models import (
+    Anchor,
+    AnchorCertification,
+    Drop,
+    Equipment,
+    Hold,
+    HoldClearance,
+    Job,
+    JobState,
+    JobTransition,
+    Site,
+    User,
+)
+from compliance.selectors import job_blockers, job_requirements
+
+if TYPE_CHECKING:
+    from checklists.models import CheckSheet
+    from checklists.verdicts import SheetOutcome
+
+
+def _require_writer(user: User) -> None:
+    if not user.can_write:
+        raise NotPermitted("Auditors have read-only access.")
+
+
+def _transition(job: Job, to_state: str, by: User | None, reason: str) -> Job:
+    JobTransition.objects.create(
+        job=job, from_state=job.state, to_state=to_state, by=by, reason=reason
+    )
+    job.state = to_state
+    job.save(update_fields=["state"])
+    return job
+
+
+def _locked(job: Job) -> Job:
+    return Job.objects.select_for_update().select_related("site__profile").get(pk=job.pk)
+
+
+def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
+    _require_writer(by)
+    with transaction.atomic():
+        job = Job(
+            organisation_id=site.organisation_id,
+            site=site,
+            date=date,
+            supervisor=supervisor,
+            notes=notes,
+        )
+        job.full_clean()
+        job.save()
+        JobTransition.objects.create(
+            job=job,
+            from_state=JobState.PLANNED,
+            to_state=JobState.PLANNED,
+            by=by,
+            reason="Job planned.",
+        )
+    return job
+
+
+def add_drop(
+    *,
+    job: Job,
+    by: User,
+    label: str,
+    robot: Equipment,
+    anchor: Anchor,
+    safety_anchor: Anchor,
+    tether: Equipment,
+    safety_line: Equipment,
+    hose: Equipment,
+    length_m: float,
+) -> Drop:
+    _require_writer(by)
+    if job.state not in (JobState.PLANNED, JobState.CLEARED):
+        raise InvalidTransition("Drops can be planned only before work starts.")
+    with transaction.atomic():
+        drop = Drop(
+            job=job,
+            label=label,
+            robot=robot,
+            anchor=anchor,
+            safety_anchor=safety_anchor,
+            tether=tether,
+            safety_line=safety_line,
+            hose=hose,
+            length_m=length_m,
+        )
+        drop.full_clean()
+        drop.save()
+        job = _locked(job)
+        if job.state == JobState.CLEARED:
+            _transition(job, JobState.PLANNED, by, f"Drop {label} added; its checks are needed.")
+    return drop
+
+
+def start_job(*, job: Job, by: User) -> Job:
+    """Move a job to working, or raise JobBlocked with every reason it cannot start."""
+    _require_writer(by)
+    with transaction.atomic():
+        job = _locked(job)
+        if job.state == JobState.WORKING:
+            return job
+        if job.state == JobState.CLOSED:
+            raise InvalidTransition("This job is closed.")
+        reasons = job_blockers(job)
+        if reasons:
+            raise JobBlocked(reasons)
+        return _transition(job, JobState.WORKING, by, "Pre-start checks passed; work started.")
+
+
+def pause_job(*, job: Job, by: User, reason: str = "") -> Job:
+    _require_writer(by)
+    with transaction.atomic():
+        job = _locked(job)
+        if job.state != JobState.WORKING:
+            raise InvalidTransition(f"Only a working job can be paused; this one is {job.state}.")
+        return _transition(job, JobState.CLEARED, by, reason or "Work paused.")
+
+
+def close_job(*, job: Job, by: User, reason: str = "") -> Job:
+    _require_writer(by)
+    with transaction.atomic():
+        job = _locked(job)
+        if job.state == JobState.CLOSED:
+            raise InvalidTransition("This job is already closed.")
+        if job.state == JobState.HELD and not reason.strip():
+            raise InvalidTransition("Closing a held job needs a reason.")
+        return _transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")
+
+
+def apply_sheet_outcome(*, sheet: "CheckSheet", outcome: "SheetOutcome", by: User) -> Job:
+    """Open holds for failed blocking items, or clear this requirement's holds on a pass."""
+    job = _locked(sheet.job)
+    requirement = sheet.requirement
+    failures = outcome.blocking_failures
+    if failures:
+        if job.state == JobState.CLOSED:
+            return job
+        for item in failures:
+            Hold.objects.create(
+                job=job,
+                requirement=requirement,
+                item_key=item.key,
+                sheet=sheet,
+                reason=f"{item.label}: {item.message or 'failed'}",
+            )
+        if job.state != JobState.HELD:
+            names = ", ".join(i.label for i in failures)
+            _transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
+        return job
+    for hold in Hold.objects.filter(job=job, requirement=requirement, clearance__isnull=True):
+        HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
+    return refresh_readiness(job=job, by=by)
+
+
+def refresh_readiness(*, job: Job, by: User | None) -> Job:
+    """Move a held or planned job to cleared (or back to planned) from what it now has."""
+    if job.state not in (JobState.PLANNED, JobState.HELD, JobState.CLEARED):
+        return job
+    if Hold.objects.filter(job=job, clearance__isnull=True).exists():
+        return job
+    ready = not job_blockers(job)
+    if job.state == JobState.HELD:
+        target = JobState.CLEARED if ready else JobState.PLANNED
+        return _transition(job, target, by, "Every hold cleared by a passing re-check.")
+    if job.state == JobState.PLANNED and ready:
+        return _transition(job, JobState.CLEARED, by, "Every required pre-start check passed.")
+    if job.state == JobState.CLEARED and not ready:
+        return _transition(job, JobState.PLANNED, by, "A required check is no longer satisfied.")
+    return job
+
+
+def record_certification(*, anchor: Anchor, by: User, **fields: Any) -> AnchorCertification:
+    _require_writer(by)
+    if not by.can_supervise:
+        raise NotPermitted("Only a supervisor or an admin records anchor certifications.")
+    with transaction.atomic():
+        cert = AnchorCertification(anchor=anchor, recorded_by=by, **fields)
+        cert.full_clean()
+        cert.save()
+    return cert
+
+
+def create_equipment(*, by: User, **fields: Any) -> Equipment:
+    _require_writer(by)
+    with transaction.atomic():
+        item = Equipment(organisation_id=by.organisation_id, **fields)
+        item.full_clean()
+        item.save()
+    return item
+
+
+def requirements_summary(job: Job) -> list[dict[str, object]]:
+    return [r.as_dict() for r in job_requirements(job)]
+
+
+__all__ = [
+    "Reason",
+    "add_drop",
+    "apply_sheet_outcome",
+    "close_job",
+    "create_equipment",
+    "create_job",
+    "pause_job",
+    "record_certification",
+    "refresh_readiness",
+    "start_job",
+]

@@ -1,0 +1,135 @@
+"""Parapet settings: every deploy-specific value comes from the environment.
+
+The defaults run the demo on SQLite with background tasks executed in-process.
+"""
+
+from pathlib import Path
+
+import environ
+
+BASE_DIR = Path(__file__).resolve().parent.parent
+
+env = environ.Env()
+environ.Env.read_env(BASE_DIR / ".env", overwrite=False) if (BASE_DIR / ".env").exists() else None
+
+DEBUG = env.bool("DJANGO_DEBUG", default=True)
+SECRET_KEY = env.str(
+    "DJANGO_SECRET_KEY", default="insecure-demo-key-change-me-in-production-0123456789"
+)
+ALLOWED_HOSTS = env.list("DJANGO_ALLOWED_HOSTS", default=["127.0.0.1", "localhost", "testserver"])
+CSRF_TRUSTED_ORIGINS = env.list("DJANGO_CSRF_TRUSTED_ORIGINS", default=[])
+
+INSTALLED_APPS = [
+    "django.contrib.admin",
+    "django.contrib.auth",
+    "django.contrib.contenttypes",
+    "django.contrib.sessions",
+    "django.contrib.messages",
+    "django.contrib.staticfiles",
+    "rest_framework",
+    "rest_framework.authtoken",
+    "drf_spectacular",
+    "compliance",
+    "checklists",
+]
+
+MIDDLEWARE = [
+    "django.middleware.security.SecurityMiddleware",
+    "whitenoise.middleware.WhiteNoiseMiddleware",
+    "django.contrib.sessions.middleware.SessionMiddleware",
+    "django.middleware.common.CommonMiddleware",
+    "django.middleware.csrf.CsrfViewMiddleware",
+    "django.contrib.auth.middleware.AuthenticationMiddleware",
+    "django.contrib.messages.middleware.MessageMiddleware",
+    "django.middleware.clickjacking.XFrameOptionsMiddleware",
+]
+
+ROOT_URLCONF = "compliance.urls"
+WSGI_APPLICATION = "compliance.wsgi.application"
+
+TEMPLATES = [
+    {
+        "BACKEND": "django.template.backends.django.DjangoTemplates",
+        "DIRS": [BASE_DIR / "compliance" / "templates"],
+        "APP_DIRS": True,
+        "OPTIONS": {
+            "context_processors": [
+                "django.template.context_processors.request",
+                "django.contrib.auth.context_processors.auth",
+                "django.contrib.messages.context_processors.messages",
+            ],
+        },
+    },
+]
+
+DATABASES = {"default": env.db("DATABASE_URL", default=f"sqlite:///{BASE_DIR / 'db.sqlite3'}")}
+DATABASES["default"]["ATOMIC_REQUESTS"] = False
+if DATABASES["default"]["ENGINE"] == "django.db.backends.postgresql":
+    DATABASES["default"].setdefault("CONN_MAX_AGE", env.int("DATABASE_CONN_MAX_AGE", default=0))
+
+AUTH_USER_MODEL = "compliance.User"
+PASSWORD_HASHERS = [
+    "django.contrib.auth.hashers.Argon2PasswordHasher",
+    "django.contrib.auth.hashers.PBKDF2PasswordHasher",
+]
+AUTH_PASSWORD_VALIDATORS = [
+    {"NAME": "django.contrib.auth.password_validation.MinimumLengthValidator"},
+    {"NAME": "django.contrib.auth.password_validation.CommonPasswordValidator"},
+]
+
+LANGUAGE_CODE = "en"
+TIME_ZONE = env.str("PARAPET_TIME_ZONE", default="UTC")
+USE_I18N = True
+USE_TZ = True
+
+STATIC_URL = "/static/"
+STATIC_ROOT = BASE_DIR / "staticfiles"
+STATICFILES_DIRS = [BASE_DIR / "compliance" / "static"]
+MEDIA_URL = "/media/"
+MEDIA_ROOT = env.path("PARAPET_MEDIA_ROOT", default=BASE_DIR / "var" / "media")
+DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
+
+REST_FRAMEWORK = {
+    "DEFAULT_AUTHENTICATION_CLASSES": [
+        "rest_framework.authentication.SessionAuthentication",
+        "rest_framework.authentication.TokenAuthentication",
+    ],
+    "DEFAULT_PERMISSION_CLASSES": ["rest_framework.permissions.IsAuthenticated"],
+    "DEFAULT_SCHEMA_CLASS": "drf_spectacular.openapi.AutoSchema",
+    "DEFAULT_PAGINATION_CLASS": "rest_framework.pagination.LimitOffsetPagination",
+    "PAGE_SIZE": 50,
+    "EXCEPTION_HANDLER": "compliance.api.errors.exception_handler",
+    "DEFAULT_THROTTLE_RATES": {"login": env.str("PARAPET_LOGIN_RATE", default="20/min")},
+}
+SPECTACULAR_SETTINGS = {
+    "TITLE": "Parapet API",
+    "DESCRIPTION": (
+        "Pre-start checks, holds and daily records for facade-access crews. Parapet records and "
+        "computes; it does not replace local regulations, the equipment maker's manual or a "
+        "licensed engineer's certification."
+    ),
+    "VERSION": "1",
+    "SERVE_INCLUDE_SCHEMA": False,
+    "COMPONENT_SPLIT_REQUEST": True,
+}
+
+# Celery: with no broker configured, tasks run in the calling process.
+CELERY_BROKER_URL = env.str("CELERY_BROKER_URL", default="")
+CELERY_RESULT_BACKEND = env.str("CELERY_RESULT_BACKEND", default="") or None
+CELERY_TASK_ALWAYS_EAGER = not CELERY_BROKER_URL
+CELERY_TASK_EAGER_PROPAGATES = True
+CELERY_TASK_ACKS_LATE = True
+CELERY_TASK_REJECT_ON_WORKER_LOST = True
+CELERY_TIMEZONE = "UTC"
+
+CACHES = {"default": env.cache("CACHE_URL", default="locmemcache://")}
+
+PARAPET_FIXTURES_DIR = BASE_DIR / "fixtures"
+PARAPET_DEFAULT_PROFILE = env.str("PARAPET_DEFAULT_PROFILE", default="generic")
+
+LOGGING = {
+    "version": 1,
+    "disable_existing_loggers": False,
+    "handlers": {"console": {"class": "logging.StreamHandler"}},
+    "root": {"handlers": ["console"], "level": env.str("PARAPET_LOG_LEVEL", default="WARNING")},
+}

@@ -1,0 +1,114 @@
+import pytest
+from rest_framework.test import APIClient
+
+from checklists.models import ChecklistVersion
+from compliance.models import Job
+from tests.factories import (
+    JobFactory,
+    UserFactory,
+    make_drop,
+    published_checklist,
+    reading,
+    tick,
+)
+
+
+@pytest.fixture
+def api() -> APIClient:
+    return APIClient()
+
+
+def client_for(user) -> APIClient:
+    client = APIClient()
+    client.force_authenticate(user)
+    return client
+
+
+@pytest.fixture
+def job(db) -> Job:
+    job = JobFactory()
+    make_drop(job)
+    return job
+
+
+@pytest.fixture
+def operator(job):
+    return UserFactory(organisation=job.organisation, role="operator")
+
+
+@pytest.fixture
+def supervisor(job):
+    return job.supervisor
+
+
+@pytest.fixture
+def simple_checklists(db) -> dict[str, ChecklistVersion]:
+    """One small checklist per subject kind: a blocking tick and, for anchors, a limit."""
+    return {
+        "anchor": published_checklist(
+            "anchor-check",
+            "anchor",
+            [
+                tick("sound"),
+                reading("tag_capacity", "kN", {"min": {"profile": "min_anchor_capacity_kn"}}),
+            ],
+        ),
+        "robot": published_checklist(
+            "robot-check", "robot", [tick("stops_work"), tick("cups", blocking=False)]
+        ),
+        "tether": published_checklist("tether-check", "tether", [tick("sheath")]),
+        "safety_line": published_checklist("line-check", "safety_line", [tick("sheath")]),
+        "hose": published_checklist(
+            "hose-check",
+            "hose",
+            [
+                tick("condition"),
+                reading("valve_pressure", "kPa", {"max": {"equipment": "rating_kpa"}}),
+            ],
+        ),
+        "site": published_checklist(
+            "site-check",
+            "site",
+            [
+                tick("zone_closed"),
+                reading("roof_wind", "m/s", {"max": {"profile": "max_wind_ms"}}),
+            ],
+        ),
+    }
+
+
+PASSING = {
+    "anchor": {"sound": {"value": "pass"}, "tag_capacity": {"value": 22.2, "unit": "kN"}},
+    "robot": {"stops_work": {"value": "pass"}, "cups": {"value": "pass"}},
+    "tether": {"sheath": {"value": "pass"}},
+    "safety_line": {"sheath": {"value": "pass"}},
+    "hose": {"condition": {"value": "pass"}, "valve_pressure": {"value": 900, "unit": "kPa"}},
+    "site": {"zone_closed": {"value": "pass"}, "roof_wind": {"value": 6.5, "unit": "m/s"}},
+}
+
+
+def fill_all(job: Job, versions: dict[str, ChecklistVersion], by, overrides: dict | None = None):
+    """Record a passing sheet for every requirement of the job (overrides per subject kind)."""
+    from checklists.services import record_sheet
+    from compliance.selectors import job_requirements
+
+    sheets = []
+    for req in job_requirements(job):
+        entries = dict(PASSING[req.subject.kind])
+        entries.update((overrides or {}).get(req.subject.kind, {}))
+        sheet, _ = record_sheet(
+            job=job,
+            version=versions[req.subject.kind],
+            by=by,
+            entries=entries,
+            anchor=req.subject.anchor,
+            equipment=req.subject.equipment,
+        )
+        sheets.append(sheet)
+    return sheets
+
+
+@pytest.fixture(autouse=True)
+def _fast_password_hashing(settings):
+    """Argon2 stays the production hasher (tested on its own); tests hash fast."""
+    settings.PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]

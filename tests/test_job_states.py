@@ -1,0 +1,229 @@
+"""Every path into and out of hold, blocked starts, and the append-only transition log."""
+
+import datetime as dt
+
+import pytest
+from django.utils import timezone
+
+from checklists.services import record_sheet
+from compliance.append_only import AppendOnlyViolation
+from compliance.errors import InvalidTransition, JobBlocked
+from compliance.models import Hold, JobState, JobTransition
+from compliance.selectors import job_requirements
+from compliance.services import close_job, pause_job, start_job
+from tests.conftest import PASSING, fill_all
+from tests.factories import (
+    AnchorFactory,
+    CertificationFactory,
+    JobFactory,
+    UserFactory,
+    make_drop,
+)
+
+pytestmark = pytest.mark.django_db
+
+
+def _hose_requirement(job):
+    return next(r for r in job_requirements(job) if r.subject.kind == "hose")
+
+
+def _fail_hose(job, versions, by):
+    req = _hose_requirement(job)
+    entries = {**PASSING["hose"], "valve_pressure": {"value": 3000, "unit": "kPa"}}
+    sheet, _ = record_sheet(
+        job=job, version=versions["hose"], by=by, entries=entries, equipment=req.subject.equipment
+    )
+    return sheet
+
+
+def _pass_hose(job, versions, by):
+    req = _hose_requirement(job)
+    sheet, _ = record_sheet(
+        job=job,
+        version=versions["hose"],
+        by=by,
+        entries=PASSING["hose"],
+        equipment=req.subject.equipment,
+    )
+    return sheet
+
+
+def test_job_with_no_sheets_cannot_start(job, simple_checklists, operator):
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=job, by=operator)
+    codes = [r.code for r in caught.value.reasons]
+    # one requirement per anchor (2), robot, tether, safety line, hose, site: all missing
+    assert codes.count("sheet_missing") == 7
+    job.refresh_from_db()
+    assert job.state == JobState.PLANNED
+
+
+def test_all_passing_sheets_clear_then_start(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    start_job(job=job, by=operator)
+    job.refresh_from_db()
+    assert job.state == JobState.WORKING
+    states = list(job.transitions.values_list("from_state", "to_state"))
+    assert states[-2:] == [("planned", "cleared"), ("cleared", "working")]
+
+
+def test_failed_blocking_item_before_start_holds_the_job(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    _fail_hose(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=job, by=operator)
+    assert {"open_hold", "sheet_failed"} <= {r.code for r in caught.value.reasons}
+
+
+def test_failed_blocking_item_while_working_holds_at_once(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    sheet = _fail_hose(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    hold = Hold.objects.get(job=job)
+    assert hold.sheet == sheet and hold.item_key == "valve_pressure"
+    assert "above the maximum of 2500 kPa" in hold.reason
+    last = job.transitions.last()
+    assert (last.from_state, last.to_state) == ("working", "held")
+    assert last.by == operator and "valve pressure" in last.reason
+
+
+def test_non_blocking_failure_does_not_hold(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator, overrides={"robot": {"cups": {"value": "fail"}}})
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    assert not Hold.objects.filter(job=job).exists()
+
+
+def test_only_a_new_passing_sheet_clears_the_hold(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    _fail_hose(job, simple_checklists, operator)
+    # a passing sheet for some other requirement does not clear it
+    site_req = next(r for r in job_requirements(job) if r.subject.kind == "site")
+    record_sheet(job=job, version=simple_checklists["site"], by=operator, entries=PASSING["site"])
+    job.refresh_from_db()
+    assert job.state == JobState.HELD and site_req
+    # pausing or starting a held job is refused
+    with pytest.raises(InvalidTransition):
+        pause_job(job=job, by=operator)
+    with pytest.raises(JobBlocked):
+        start_job(job=job, by=operator)
+    repair = _pass_hose(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    hold = Hold.objects.get(job=job)
+    assert hold.clearance.sheet == repair
+    start_job(job=job, by=operator)
+    job.refresh_from_db()
+    assert job.state == JobState.WORKING
+
+
+def test_hold_cleared_goes_to_planned_when_other_checks_still_missing(
+    job, simple_checklists, operator
+):
+    _fail_hose(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    _pass_hose(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.PLANNED
+
+
+def test_two_failures_need_both_requirements_to_pass(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    _fail_hose(job, simple_checklists, operator)
+    record_sheet(
+        job=job,
+        version=simple_checklists["site"],
+        by=operator,
+        entries={**PASSING["site"], "zone_closed": {"value": "fail"}},
+    )
+    assert Hold.objects.filter(job=job).count() == 2
+    _pass_hose(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    record_sheet(job=job, version=simple_checklists["site"], by=operator, entries=PASSING["site"])
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+
+
+def test_expired_certification_blocks_start(simple_checklists):
+    job = JobFactory()
+    drop = make_drop(job, certified=False)
+    operator = UserFactory(organisation=job.organisation)
+    today = timezone.localdate()
+    CertificationFactory(
+        anchor=drop.anchor,
+        certified_on=today - dt.timedelta(days=400),
+        valid_until=today - dt.timedelta(days=1),
+    )
+    CertificationFactory(anchor=drop.safety_anchor)
+    fill_all(job, simple_checklists, operator)
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=job, by=operator)
+    reasons = caught.value.reasons
+    assert [r.code for r in reasons] == ["anchor_certification_expired"]
+    assert f"Anchor {drop.anchor.label}" in reasons[0].message
+    # a new certification (never an edit of the old one) lets the job start
+    CertificationFactory(anchor=drop.anchor, certified_on=today)
+    start_job(job=job, by=operator)
+    job.refresh_from_db()
+    assert job.state == JobState.WORKING
+
+
+def test_uncertified_and_low_capacity_anchors_block(job, simple_checklists, operator):
+    drop = job.drops.first()
+    weak = AnchorFactory(site=job.site)
+    CertificationFactory(anchor=weak, rated_capacity_kn=8.0)
+    drop.safety_anchor = weak
+    drop.save()
+    bare = AnchorFactory(site=job.site)
+    drop.anchor = bare
+    drop.save()
+    fill_all(job, simple_checklists, operator)
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=job, by=operator)
+    assert {r.code for r in caught.value.reasons} == {"anchor_uncertified", "anchor_capacity_low"}
+
+
+def test_pause_and_close(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    pause_job(job=job, by=operator, reason="Lunch")
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    close_job(job=job, by=operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLOSED
+    with pytest.raises(InvalidTransition):
+        start_job(job=job, by=operator)
+
+
+def test_closing_a_held_job_needs_a_reason(job, simple_checklists, operator):
+    _fail_hose(job, simple_checklists, operator)
+    job.refresh_from_db()
+    with pytest.raises(InvalidTransition):
+        close_job(job=job, by=operator)
+    close_job(job=job, by=operator, reason="Hose burst; replacement tomorrow.")
+    job.refresh_from_db()
+    assert job.state == JobState.CLOSED
+
+
+def test_transition_log_is_append_only(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    row = JobTransition.objects.filter(job=job).first()
+    row.reason = "rewritten"
+    with pytest.raises(AppendOnlyViolation):
+        row.save()
+    with pytest.raises(AppendOnlyViolation):
+        row.delete()
+    with pytest.raises(AppendOnlyViolation):
+        JobTransition.objects.filter(job=job).update(reason="x")
+    with pytest.raises(AppendOnlyViolation):
+        JobTransition.objects.filter(job=job).delete()
