@@ -179,7 +179,12 @@ def evaluate(
                 continue
             data = calc.to_dict()
             outputs[key] = data["outputs"]
-            message = "" if data["verdict"] == "pass" else f"Fails: {data['governing']}."
+            message = ""
+            if data["verdict"] != "pass":
+                check = str(data["governing"]).replace("_", " ")
+                margin = data["margin"]
+                short = f" (margin {margin:+.0%})" if isinstance(margin, float) else ""
+                message = f"fails its {check} check{short}"
             results.append(
                 ItemResult(
                     **base,

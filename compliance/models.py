@@ -335,3 +335,15 @@ def organisation_of(obj: Any) -> int | None:
         if target is not None:
             return int(target)
     return None
+
+
+class SyncReceipt(AppendOnlyModel):
+    """The answer given to one client record, kept so a retried batch gets the same answer."""
+
+    client_uuid = models.UUIDField(unique=True)
+    kind = models.CharField(max_length=20)
+    user = models.ForeignKey(User, on_delete=models.PROTECT, related_name="+")
+    status = models.CharField(max_length=10)  # applied / rejected
+    result = models.JSONField()
+    device_time = models.DateTimeField(null=True, blank=True)
+    received_at = models.DateTimeField(auto_now_add=True)

@@ -85,6 +85,7 @@ USE_TZ = True
 STATIC_URL = "/static/"
 STATIC_ROOT = BASE_DIR / "staticfiles"
 STATICFILES_DIRS = [BASE_DIR / "compliance" / "static"]
+WHITENOISE_USE_FINDERS = env.bool("WHITENOISE_USE_FINDERS", default=True)
 MEDIA_URL = "/media/"
 MEDIA_ROOT = env.path("PARAPET_MEDIA_ROOT", default=BASE_DIR / "var" / "media")
 DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"

@@ -2,8 +2,13 @@ from django.contrib import admin
 from django.urls import include, path
 from drf_spectacular.views import SpectacularAPIView
 
+from compliance import app_views
+
 urlpatterns = [
     path("admin/", admin.site.urls),
     path("api/v1/", include("compliance.api.urls")),
     path("api/schema/", SpectacularAPIView.as_view(), name="schema"),
+    path("sw.js", app_views.service_worker, name="service-worker"),
+    path("manifest.webmanifest", app_views.manifest, name="manifest"),
+    path("", app_views.app_shell, name="app"),
 ]

@@ -18,5 +18,8 @@ urlpatterns = [
     path("auth/logout/", views.session_logout, name="logout"),
     path("auth/token/", views.token_login, name="token"),
     path("me/", views.me, name="me"),
+    path("calc/<slug:name>/", views.calculate, name="calc"),
+    path("sync/", views.sync, name="sync"),
+    path("photos/", views.upload_photo, name="photos"),
     path("", include(router.urls)),
 ]

@@ -3,12 +3,19 @@
 from typing import Any
 
 from django.contrib.auth import authenticate, login, logout
-from django.db.models import Prefetch, QuerySet
+from django.db.models import Prefetch, Q, QuerySet
 from django.shortcuts import get_object_or_404
 from drf_spectacular.utils import extend_schema, inline_serializer
 from rest_framework import mixins, serializers, status, viewsets
 from rest_framework.authtoken.models import Token
-from rest_framework.decorators import action, api_view, permission_classes, throttle_classes
+from rest_framework.decorators import (
+    action,
+    api_view,
+    parser_classes,
+    permission_classes,
+    throttle_classes,
+)
+from rest_framework.parsers import MultiPartParser
 from rest_framework.permissions import AllowAny, IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
@@ -27,7 +34,6 @@ from compliance.models import (
     Job,
     JurisdictionProfile,
     Site,
-    User,
 )
 from compliance.selectors import job_readiness, jobs_for
 
@@ -94,6 +100,94 @@ def token_login(request: Request) -> Response:
 @permission_classes([IsAuthenticated])
 def me(request: Request) -> Response:
     return Response(s.UserSerializer(request.user).data)
+
+
+class SyncInput(serializers.Serializer):
+    records = serializers.ListField(child=serializers.JSONField(), max_length=200)
+
+
+@extend_schema(
+    request=SyncInput,
+    responses=inline_serializer(
+        "SyncResult",
+        {
+            "results": serializers.ListField(),
+            "jobs": serializers.ListField(),
+            "server_time": serializers.DateTimeField(),
+        },
+    ),
+)
+@api_view(["POST"])
+@permission_classes([OrganisationMember])
+def sync(request: Request) -> Response:
+    """Apply a batch of records made offline; each once, whatever the number of retries."""
+    from django.utils import timezone
+
+    from compliance.sync import apply_record
+
+    data = SyncInput(data=request.data)
+    data.is_valid(raise_exception=True)
+    results = [apply_record(request.user, record) for record in data.validated_data["records"]]
+    touched = {r["job"] for r in results if isinstance(r.get("job"), int)}
+    today = timezone.localdate()
+    jobs = (
+        Job.objects.filter(organisation_id=request.user.organisation_id)
+        .filter(Q(date=today) | Q(pk__in=touched))
+        .order_by("date", "id")
+        .values("id", "state", "date")
+    )
+    return Response({"results": results, "jobs": list(jobs), "server_time": timezone.now()})
+
+
+class PhotoInput(serializers.Serializer):
+    client_uuid = serializers.UUIDField()
+    job = serializers.IntegerField()
+    sheet_uuid = serializers.UUIDField(required=False, allow_null=True)
+    item_key = serializers.CharField(required=False, allow_blank=True, max_length=80)
+    image = serializers.FileField()
+
+
+class PhotoOutput(serializers.Serializer):
+    client_uuid = serializers.UUIDField()
+    job = serializers.IntegerField(source="job_id")
+    sheet_uuid = serializers.UUIDField()
+    item_key = serializers.CharField()
+    sha256 = serializers.CharField()
+    width = serializers.IntegerField()
+    height = serializers.IntegerField()
+    uploaded_at = serializers.DateTimeField()
+
+
+@extend_schema(request={"multipart/form-data": PhotoInput}, responses={201: PhotoOutput})
+@api_view(["POST"])
+@permission_classes([OrganisationMember])
+@parser_classes([MultiPartParser])
+def upload_photo(request: Request) -> Response:
+    """Store a roof photo once per client uuid; it is re-encoded and its metadata dropped."""
+    from checklists.photos import store_photo
+
+    data = PhotoInput(data=request.data)
+    data.is_valid(raise_exception=True)
+    values = data.validated_data
+    job = Job.objects.filter(organisation_id=request.user.organisation_id, pk=values["job"]).first()
+    if job is None:
+        return Response({"job": ["Unknown job."]}, status=status.HTTP_400_BAD_REQUEST)
+    photo, created = store_photo(
+        by=request.user,
+        job=job,
+        image=values["image"],
+        client_uuid=values["client_uuid"],
+        sheet_uuid=values.get("sheet_uuid"),
+        item_key=values.get("item_key", ""),
+    )
+    return Response(PhotoOutput(photo).data, status=201 if created else 200)
+
+
+class ReadOnlyCalc(IsAuthenticated):
+    """Calculations change nothing, so an auditor may run them too."""
+
+    def has_permission(self, request: Request, view: Any) -> bool:
+        return super().has_permission(request, view) and bool(request.user.organisation_id)
 
 
 class ProfileViewSet(viewsets.ReadOnlyModelViewSet):
@@ -391,5 +485,28 @@ class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVie
         )
 
 
-def users_queryset(user: User) -> QuerySet[User]:
-    return User.objects.filter(organisation_id=user.organisation_id)
+@extend_schema(
+    request=inline_serializer("CalcInput", {"vacuum_kpa": serializers.FloatField(required=False)}),
+    responses=inline_serializer("CalcResult", {"verdict": serializers.CharField()}),
+)
+@api_view(["POST"])
+@permission_classes([OrganisationMember | ReadOnlyCalc])
+def calculate(request: Request, name: str) -> Response:
+    """Run a named calculation on the JSON object posted; the answer shows its working."""
+    from compliance.engineering import CALCULATIONS, CalcInputError, run
+
+    if name not in CALCULATIONS:
+        return Response(
+            {"detail": f"No calculation named {name!r}.", "calculations": sorted(CALCULATIONS)},
+            status=status.HTTP_404_NOT_FOUND,
+        )
+    if not isinstance(request.data, dict):
+        return Response(
+            {"non_field_errors": ["Send a JSON object of inputs."]},
+            status=status.HTTP_400_BAD_REQUEST,
+        )
+    try:
+        result = run(name, dict(request.data))
+    except CalcInputError as exc:
+        return Response({exc.field: [exc.message]}, status=status.HTTP_400_BAD_REQUEST)
+    return Response(result.to_dict())

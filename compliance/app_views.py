@@ -1,0 +1,38 @@
+"""Serves the phone app built by Vite into compliance/static/app/ (see frontend/)."""
+
+from pathlib import Path
+
+from django.conf import settings
+from django.http import FileResponse, Http404, HttpRequest, HttpResponse
+from django.views.decorators.csrf import ensure_csrf_cookie
+from django.views.decorators.http import require_GET
+
+APP_DIR = Path(settings.BASE_DIR) / "compliance" / "static" / "app"
+
+
+def _file(name: str, content_type: str) -> FileResponse:
+    path = APP_DIR / name
+    if not path.is_file():
+        raise Http404("The phone app is not built; run `make setup`.")
+    response = FileResponse(path.open("rb"), content_type=content_type)
+    response["Cache-Control"] = "no-cache"
+    return response
+
+
+@require_GET
+@ensure_csrf_cookie
+def app_shell(request: HttpRequest) -> HttpResponse:
+    """The single page of the phone app; sets the CSRF cookie the app sends back."""
+    return _file("index.html", "text/html; charset=utf-8")
+
+
+@require_GET
+def service_worker(request: HttpRequest) -> HttpResponse:
+    response = _file("sw.js", "application/javascript")
+    response["Service-Worker-Allowed"] = "/"
+    return response
+
+
+@require_GET
+def manifest(request: HttpRequest) -> HttpResponse:
+    return _file("manifest.webmanifest", "application/manifest+json")

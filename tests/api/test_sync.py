@@ -1,0 +1,237 @@
+"""The offline queue's endpoint: every record applied once, however often the batch is sent."""
+
+import io
+import uuid
+
+import pytest
+from django.urls import reverse
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+from PIL import Image
+
+from checklists.models import CheckSheet, Photo
+from compliance.models import DropLog, JobTransition, SyncReceipt
+from compliance.selectors import job_requirements
+from tests.conftest import PASSING, client_for, fill_all
+
+pytestmark = pytest.mark.django_db
+
+
+def sheet_record(job, version, entries, subject=None, key=None):
+    data = {
+        "job": job.pk,
+        "version": version.pk,
+        "entries": entries,
+        "device_time": "2026-12-02T07:05:00+01:00",
+    }
+    if subject is not None and subject.anchor is not None:
+        data["anchor"] = subject.anchor.pk
+    if subject is not None and subject.equipment is not None:
+        data["equipment"] = subject.equipment.pk
+    return {"type": "sheet", "client_uuid": key or str(uuid.uuid4()), "data": data}
+
+
+def site_record(job, versions, entries=None, key=None):
+    return sheet_record(job, versions["site"], entries or PASSING["site"], key=key)
+
+
+def sync(client, records):
+    response = client.post(reverse("sync"), {"records": records}, format="json")
+    assert response.status_code == 200, response.json()
+    return response.json()
+
+
+def test_a_batch_applies_and_reports_per_record(job, simple_checklists, operator):
+    client = client_for(operator)
+    good = site_record(job, simple_checklists)
+    bad = site_record(job, simple_checklists, {"zone_closed": {"value": "perhaps"}})
+    body = sync(client, [good, bad])
+    first, second = body["results"]
+    assert first["status"] == "applied" and first["verdict"] == "pass"
+    assert second["status"] == "rejected"
+    assert "entries.zone_closed.value" in second["errors"]
+    assert {"id": job.pk, "state": "planned", "date": job.date.isoformat()} in body["jobs"]
+    assert body["server_time"]
+    sheet = CheckSheet.objects.get(client_uuid=good["client_uuid"])
+    assert sheet.device_time.isoformat() == "2026-12-02T06:05:00+00:00"
+
+
+def test_a_retried_batch_changes_nothing(job, simple_checklists, operator):
+    client = client_for(operator)
+    records = [site_record(job, simple_checklists) for _ in range(3)]
+    first = sync(client, records)
+    counts = (CheckSheet.objects.count(), SyncReceipt.objects.count())
+    again = sync(client, records)
+    assert (CheckSheet.objects.count(), SyncReceipt.objects.count()) == counts == (3, 3)
+    assert [r["sheet"] for r in first["results"]] == [r["sheet"] for r in again["results"]]
+    assert all(r.get("duplicate") for r in again["results"])
+
+
+def test_a_batch_cut_off_half_way_then_resent_whole(job, simple_checklists, operator):
+    """The phone sent records 1-2 of 4, lost the answer, then sent all 4."""
+    client = client_for(operator)
+    records = [site_record(job, simple_checklists) for _ in range(4)]
+    sync(client, records[:2])
+    body = sync(client, records)
+    assert [r.get("duplicate", False) for r in body["results"]] == [True, True, False, False]
+    assert CheckSheet.objects.count() == 4
+
+
+def test_failing_then_passing_records_hold_and_clear(job, simple_checklists, operator):
+    client = client_for(operator)
+    fill_all(job, simple_checklists, operator)
+    start = {
+        "type": "job_action",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {"job": job.pk, "action": "start"},
+    }
+    failing = site_record(
+        job, simple_checklists, {**PASSING["site"], "zone_closed": {"value": "fail"}}
+    )
+    passing = site_record(job, simple_checklists)
+    body = sync(client, [start, failing])
+    assert body["results"][0]["state"] == "working"
+    assert next(j for j in body["jobs"] if j["id"] == job.pk)["state"] == "held"
+    body = sync(client, [start, failing, passing])
+    assert next(j for j in body["jobs"] if j["id"] == job.pk)["state"] == "cleared"
+    # the start was applied once only
+    assert JobTransition.objects.filter(job=job, to_state="working").count() == 1
+
+
+def test_blocked_start_is_rejected_with_reasons(job, simple_checklists, operator):
+    body = sync(
+        client_for(operator),
+        [
+            {
+                "type": "job_action",
+                "client_uuid": str(uuid.uuid4()),
+                "data": {"job": job.pk, "action": "start"},
+            }
+        ],
+    )
+    result = body["results"][0]
+    assert result["status"] == "rejected"
+    assert result["reasons"][0]["code"] == "sheet_missing"
+
+
+def test_drop_log_while_working(job, simple_checklists, operator):
+    client = client_for(operator)
+    drop = job.drops.first()
+    log = {
+        "type": "drop_log",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {"drop": drop.pk, "note": "done"},
+    }
+    assert sync(client, [log])["results"][0]["status"] == "rejected"
+    fill_all(job, simple_checklists, operator)
+    client.post(reverse("job-start", args=[job.pk]))
+    log["client_uuid"] = str(uuid.uuid4())
+    assert sync(client, [log, log])["results"][1]["duplicate"] is True
+    assert DropLog.objects.filter(drop=drop).count() == 1
+
+
+@pytest.mark.parametrize(
+    ("record", "field"),
+    [
+        ("not an object", "record"),
+        ({"type": "sheet", "data": {}}, "client_uuid"),
+        ({"type": "sheet", "client_uuid": "nope", "data": {}}, "client_uuid"),
+        ({"type": "teleport", "client_uuid": str(uuid.uuid4()), "data": {}}, "type"),
+        ({"type": "sheet", "client_uuid": str(uuid.uuid4()), "data": []}, "data"),
+        ({"type": "sheet", "client_uuid": str(uuid.uuid4()), "data": {"job": "x"}}, "job"),
+        ({"type": "sheet", "client_uuid": str(uuid.uuid4()), "data": {"job": 99999}}, "job"),
+        ({"type": "drop_log", "client_uuid": str(uuid.uuid4()), "data": {"drop": 99999}}, "drop"),
+        ({"type": "job_action", "client_uuid": str(uuid.uuid4()), "data": {"job": None}}, "job"),
+    ],
+)
+def test_malformed_records_are_rejected_by_field(job, operator, record, field):
+    body = sync(client_for(operator), [record])
+    assert body["results"][0]["status"] == "rejected"
+    assert field in body["results"][0]["errors"]
+
+
+def test_bad_device_time_is_rejected(job, simple_checklists, operator):
+    record = site_record(job, simple_checklists)
+    record["data"]["device_time"] = "yesterday"
+    result = sync(client_for(operator), [record])["results"][0]
+    assert result["status"] == "rejected" and "device_time" in result["errors"]
+
+
+def test_another_organisations_job_is_unknown(simple_checklists, job):
+    from tests.factories import JobFactory, UserFactory, make_drop
+
+    other = JobFactory()
+    make_drop(other)
+    stranger = UserFactory(organisation=other.organisation)
+    result = sync(client_for(stranger), [site_record(job, simple_checklists)])["results"][0]
+    assert result["status"] == "rejected" and result["errors"] == {"job": ["Unknown job."]}
+    assert job.sheets.count() == 0
+
+
+def test_sync_queries_grow_per_record_not_per_row(
+    job, simple_checklists, operator, django_assert_max_num_queries
+):
+    client = client_for(operator)
+    fill_all(job, simple_checklists, operator)
+    with django_assert_max_num_queries(60):
+        sync(client, [site_record(job, simple_checklists)])
+
+
+@settings(
+    max_examples=15, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
+)
+@given(order=st.permutations(list(range(5))), repeats=st.lists(st.integers(0, 4), max_size=6))
+def test_any_order_and_repetition_of_records_stores_each_once(
+    job, simple_checklists, operator, order, repeats
+):
+    """Property: whatever order and repetition the phone sends, each record lands once."""
+    client = client_for(operator)
+    records = [site_record(job, simple_checklists) for _ in range(5)]
+    sent = [records[i] for i in order] + [records[i] for i in repeats]
+    sync(client, sent)
+    sync(client, list(reversed(sent)))
+    for record in records:
+        assert CheckSheet.objects.filter(client_uuid=record["client_uuid"]).count() == 1
+
+
+def _png(size=(64, 48)) -> io.BytesIO:
+    data = io.BytesIO()
+    Image.new("RGB", size, (200, 30, 30)).save(data, format="PNG")
+    data.seek(0)
+    data.name = "defect.png"
+    return data
+
+
+def test_photo_upload_is_reencoded_and_idempotent(job, operator, tmp_path, settings):
+    settings.MEDIA_ROOT = tmp_path
+    client = client_for(operator)
+    key = str(uuid.uuid4())
+    body = {"client_uuid": key, "job": job.pk, "item_key": "anchor_photo", "image": _png()}
+    first = client.post(reverse("photos"), body, format="multipart")
+    assert first.status_code == 201, first.json()
+    body["image"] = _png()
+    again = client.post(reverse("photos"), body, format="multipart")
+    assert again.status_code == 200
+    photo = Photo.objects.get(client_uuid=key)
+    assert (photo.width, photo.height) == (64, 48)
+    with Image.open(photo.image.path) as stored:
+        assert stored.format == "JPEG"
+    assert Photo.objects.count() == 1
+
+
+def test_a_file_that_is_not_an_image_is_refused(job, operator, tmp_path, settings):
+    settings.MEDIA_ROOT = tmp_path
+    fake = io.BytesIO(b"#!/bin/sh\necho not a photo\n")
+    fake.name = "photo.jpg"
+    response = client_for(operator).post(
+        reverse("photos"),
+        {"client_uuid": str(uuid.uuid4()), "job": job.pk, "image": fake},
+        format="multipart",
+    )
+    assert response.status_code == 400 and "image" in response.json()
+    assert Photo.objects.count() == 0
+
+
+def test_requirements_of_default_subjects(job, simple_checklists):
+    kinds = sorted(r.subject.kind for r in job_requirements(job))
+    assert kinds == ["anchor", "anchor", "hose", "robot", "safety_line", "site", "tether"]

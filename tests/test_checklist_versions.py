@@ -1,0 +1,226 @@
+"""Published versions are immutable and hashed; sheets pin the version they were filled against."""
+
+import pytest
+from django.core.exceptions import ValidationError
+from django.core.management import call_command
+from django.urls import reverse
+
+from checklists.models import Checklist, ChecklistVersion
+from checklists.schema import content_hash
+from checklists.services import create_draft, diff_versions, publish_version, record_sheet
+from compliance.append_only import AppendOnlyViolation
+from compliance.errors import InvalidTransition, NotPermitted
+from tests.conftest import PASSING, client_for
+from tests.factories import UserFactory, reading, tick
+
+pytestmark = pytest.mark.django_db
+
+
+@pytest.fixture
+def own_checklist(job):
+    return Checklist.objects.create(
+        key="own-site", title="Own site check", applies_to="site", organisation=job.organisation
+    )
+
+
+def test_publishing_seals_the_content_hash(own_checklist, supervisor):
+    draft = create_draft(checklist=own_checklist, items=[tick("zone_closed")], by=supervisor)
+    assert draft.status == "draft" and draft.content_hash == ""
+    version = publish_version(version=draft, by=supervisor)
+    assert version.status == "published"
+    assert version.content_hash == content_hash(version.hashed_content())
+    assert len(version.content_hash) == 64
+
+
+def test_a_published_version_cannot_be_edited_or_deleted(own_checklist, supervisor):
+    version = publish_version(
+        version=create_draft(checklist=own_checklist, items=[tick("a")], by=supervisor),
+        by=supervisor,
+    )
+    version.items = [tick("b")]
+    with pytest.raises(AppendOnlyViolation):
+        version.save()
+    with pytest.raises(AppendOnlyViolation):
+        version.delete()
+    version.refresh_from_db()
+    assert [i["key"] for i in version.items] == ["a"]
+    with pytest.raises(InvalidTransition):
+        publish_version(version=version, by=supervisor)
+
+
+def test_editing_a_published_version_through_the_api_is_refused(own_checklist, supervisor):
+    version = publish_version(
+        version=create_draft(checklist=own_checklist, items=[tick("a")], by=supervisor),
+        by=supervisor,
+    )
+    client = client_for(supervisor)
+    url = reverse("checklist-version-detail", args=[version.pk])
+    response = client.patch(url, {"items": [tick("b")]}, format="json")
+    assert response.status_code == 409
+    version.refresh_from_db()
+    assert version.items == [tick("a")]
+
+
+def test_operators_cannot_publish(own_checklist, operator):
+    draft = create_draft(checklist=own_checklist, items=[tick("a")], by=None)
+    with pytest.raises(NotPermitted):
+        publish_version(version=draft, by=operator)
+    response = client_for(operator).post(reverse("checklist-version-publish", args=[draft.pk]))
+    assert response.status_code == 403
+
+
+def test_draft_then_publish_then_new_version_through_the_api(own_checklist, supervisor):
+    client = client_for(supervisor)
+    response = client.post(
+        reverse("checklist-versions", args=[own_checklist.pk]),
+        {"items": [tick("zone_closed")]},
+        format="json",
+    )
+    assert response.status_code == 201, response.json()
+    v1 = response.json()["id"]
+    response = client.patch(
+        reverse("checklist-version-detail", args=[v1]),
+        {"items": [tick("zone_closed"), tick("signs")]},
+        format="json",
+    )
+    assert response.status_code == 200
+    assert (
+        client.post(reverse("checklist-version-publish", args=[v1])).json()["status"] == "published"
+    )
+    response = client.post(
+        reverse("checklist-versions", args=[own_checklist.pk]),
+        {"items": [tick("zone_closed", blocking=False), tick("radios")]},
+        format="json",
+    )
+    v2 = response.json()["id"]
+    assert response.json()["number"] == 2
+    client.post(reverse("checklist-version-publish", args=[v2]))
+    diff = client.get(reverse("checklist-version-diff", args=[v2])).json()
+    assert [i["key"] for i in diff["added"]] == ["radios"]
+    assert [i["key"] for i in diff["removed"]] == ["signs"]
+    assert diff["changed"] == [
+        {
+            "key": "zone_closed",
+            "fields": ["blocking"],
+            "before": {"blocking": True},
+            "after": {"blocking": False},
+        }
+    ]
+    assert '-    "blocking": true' in diff["unified"]
+
+
+def test_malformed_items_are_refused_with_the_field(own_checklist, supervisor):
+    bad = [tick("ok"), {"key": "Bad Key", "kind": "dial", "label": "", "blocking": "yes"}]
+    with pytest.raises(ValidationError) as caught:
+        create_draft(checklist=own_checklist, items=bad, by=supervisor)
+    fields = caught.value.message_dict
+    assert {
+        "items[1].key",
+        "items[1].kind",
+        "items[1].label",
+        "items[1].reason",
+        "items[1].blocking",
+    } <= set(fields)
+    assert not own_checklist.versions.exists()
+
+
+def test_unknown_calculation_cannot_be_published(own_checklist, supervisor):
+    item = {
+        "key": "c",
+        "kind": "calc",
+        "label": "c",
+        "reason": "r",
+        "blocking": True,
+        "calc": "no-such-calc",
+        "inputs": {},
+    }
+    draft = create_draft(checklist=own_checklist, items=[item], by=supervisor)
+    with pytest.raises(ValidationError) as caught:
+        publish_version(version=draft, by=supervisor)
+    assert "items[0].calc" in caught.value.message_dict
+
+
+def test_sheet_stays_pinned_to_its_version(job, own_checklist, supervisor, operator):
+    v1 = publish_version(
+        version=create_draft(checklist=own_checklist, items=[tick("zone_closed")], by=supervisor),
+        by=supervisor,
+    )
+    sheet, _ = record_sheet(
+        job=job, version=v1, by=operator, entries={"zone_closed": {"value": "pass"}}
+    )
+    v2 = publish_version(
+        version=create_draft(
+            checklist=own_checklist, items=[tick("zone_closed"), tick("signs")], by=supervisor
+        ),
+        by=supervisor,
+    )
+    sheet.refresh_from_db()
+    assert sheet.version == v1 and sheet.version_hash == v1.content_hash != v2.content_hash
+    body = client_for(operator).get(reverse("sheet-detail", args=[sheet.pk])).json()
+    assert body["version"] == v1.pk and body["version_number"] == 1
+
+
+def test_sheet_against_a_draft_is_refused(job, own_checklist, operator):
+    draft = create_draft(checklist=own_checklist, items=[tick("zone_closed")], by=None)
+    response = client_for(operator).post(
+        reverse("sheet-list"),
+        {
+            "job": job.pk,
+            "version": draft.pk,
+            "entries": {"zone_closed": {"value": "pass"}},
+        },
+        format="json",
+    )
+    assert response.status_code == 400
+    assert "version" in response.json()
+    assert job.sheets.count() == 0
+
+
+def test_newest_own_version_replaces_the_default_with_the_same_key(job, simple_checklists):
+    from checklists.selectors import current_versions
+
+    own = Checklist.objects.create(
+        key="site-check", title="Our site check", applies_to="site", organisation=job.organisation
+    )
+    mine = publish_version(version=create_draft(checklist=own, items=[tick("x")], by=None), by=None)
+    site_versions = current_versions(job.organisation_id)["site"]
+    assert site_versions == [mine]
+    assert current_versions(None)["site"] == [simple_checklists["site"]]
+
+
+def test_default_checklists_load_and_reload_without_new_versions(db):
+    call_command("load_defaults")
+    first = set(ChecklistVersion.objects.values_list("pk", "content_hash"))
+    assert len(first) == 9
+    call_command("load_defaults")
+    assert set(ChecklistVersion.objects.values_list("pk", "content_hash")) == first
+    keys = set(Checklist.objects.values_list("key", flat=True))
+    assert keys == {
+        "anchor-pre-use",
+        "tether-pre-use",
+        "safety-line-pre-use",
+        "emergency-stops",
+        "vacuum-hold",
+        "water-line",
+        "weather",
+        "exclusion-zone",
+        "rescue-comms",
+    }
+    for version in ChecklistVersion.objects.all():
+        assert all(item["reason"].strip() for item in version.items)
+
+
+def test_diff_lists_changed_fields():
+    a = ChecklistVersion(number=1, items=[tick("x"), reading("p", "kPa")])
+    b = ChecklistVersion(number=2, items=[tick("x"), reading("p", "bar")])
+    diff = diff_versions(a, b)
+    assert diff["changed"][0]["fields"] == ["unit"]
+    assert diff["added"] == diff["removed"] == []
+
+
+def test_passing_entries_fixture_is_complete(simple_checklists, job):
+    operator = UserFactory(organisation=job.organisation)
+    sheet, created = record_sheet(
+        job=job, version=simple_checklists["site"], by=operator, entries=PASSING["site"]
+    )
+    assert created and sheet.verdict == "pass"
