@@ -263,15 +263,15 @@ def _check_bounds(spec: Field, value: float, what: str = "") -> None:
             problem = "cannot be negative" if value < 0.0 else "must be greater than zero"
             raise CalcInputError(spec.name, f"{prefix}{problem}")
         raise CalcInputError(
-            spec.name, f"{prefix}must be greater than {num(spec.greater_than)}{unit}"
+            spec.name, f"{prefix}must be greater than {num(spec.greater_than, 6)}{unit}"
         )
     if spec.at_least is not None and value < spec.at_least:
         if spec.at_least == 0.0:
             raise CalcInputError(spec.name, f"{prefix}cannot be negative")
-        raise CalcInputError(spec.name, f"{prefix}must be at least {num(spec.at_least)}{unit}")
+        raise CalcInputError(spec.name, f"{prefix}must be at least {num(spec.at_least, 6)}{unit}")
     if spec.at_most is not None and value > spec.at_most:
         raise CalcInputError(
-            spec.name, f"{prefix}must be at most {num(spec.at_most)}{unit}{reason}"
+            spec.name, f"{prefix}must be at most {num(spec.at_most, 6)}{unit}{reason}"
         )
 
 

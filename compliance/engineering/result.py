@@ -21,8 +21,9 @@ Verdict = Literal["pass", "fail"]
 class Check:
     """One limit a calculation tests: `margin` is capacity/demand - 1 (None when unbounded).
 
-    A check passes when its margin is None or at least zero. A `gate` check (a sanity condition
-    such as "no sample already below the limit") only governs when it fails.
+    A check passes when its margin is None or at least zero. A `gate` check (a measured condition
+    such as "no sample already below the limit") governs only when it fails, and then it governs
+    ahead of any failing prediction.
     """
 
     key: str
@@ -44,10 +45,11 @@ def ratio_margin(capacity: float, demand: float) -> float | None:
 def decide(checks: Sequence[Check]) -> tuple[Verdict, float | None, str]:
     """Verdict, governing margin and governing check key from a calculation's checks.
 
-    Any failing check fails the calculation and the failing check with the least margin
-    governs; otherwise the non-gate check with the least finite margin governs.
+    Any failing check fails the calculation: a failing gate check governs if there is one, else
+    the failing check with the least margin; when all pass, the non-gate check with the least
+    finite margin governs.
     """
-    failing = [c for c in checks if not c.passed]
+    failing = [c for c in checks if not c.passed and c.gate] or [c for c in checks if not c.passed]
     if failing:
         worst = min(failing, key=lambda c: c.margin if c.margin is not None else math.inf)
         return "fail", worst.margin, worst.key

@@ -139,7 +139,11 @@ def compute(values: Inputs) -> CalcResult:
                 f" {num(diameter_m)} = {num(roughness_m / diameter_m)}, solved by iteration:"
                 f" f = {num(f)}"
             )
-        loss_kpa = f * (length_m / diameter_m) * rho * velocity**2 / 2.0 / PA_PER_KPA
+        if regime == "laminar":
+            # f·(L/D)·ρ·v²/2 with f = 64/Re, written so a creeping flow cannot overflow.
+            loss_kpa = 32.0 * mu * length_m * velocity / diameter_m**2 / PA_PER_KPA
+        else:
+            loss_kpa = f * (length_m / diameter_m) * rho * velocity**2 / 2.0 / PA_PER_KPA
         steps.append(
             f"friction loss = f·(L/D)·ρ·v²/2 = {num(f)} × ({num(length_m)} / {num(diameter_m)})"
             f" × {num(rho)} × {num(velocity)}² / 2 = {num(loss_kpa)} kPa"
