@@ -5,7 +5,7 @@ BIN := $(VENV)/bin
 HOST ?= 127.0.0.1
 PORT ?= 8000
 
-.PHONY: setup demo test lint frontend chromium
+.PHONY: setup demo test lint frontend system-packages
 
 $(BIN)/python:
 	$(PY) -m venv $(VENV)
@@ -18,8 +18,14 @@ $(VENV)/.installed: pyproject.toml | $(BIN)/python
 frontend:
 	@if [ -f frontend/package.json ]; then cd frontend && npm ci --no-audit --no-fund --silent && npm run --silent build; fi
 
-chromium:
-	@[ -x /usr/bin/chromium ] || (apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null)
+# Debian packages the tests use: Chromium (browser tests), poppler-utils (pdfsig, pdftoppm),
+# qpdf, and DejaVu fonts for the PDFs. Installed only when missing.
+SYSTEM_PACKAGES := chromium:/usr/bin/chromium poppler-utils:/usr/bin/pdfsig qpdf:/usr/bin/qpdf \
+	fonts-dejavu-core:/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf
+system-packages:
+	@missing=""; for entry in $(SYSTEM_PACKAGES); do [ -e "$${entry#*:}" ] || missing="$$missing $${entry%%:*}"; done; \
+	if [ -n "$$missing" ]; then echo "apt-get install$$missing"; apt-get update -qq && \
+	DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $$missing >/dev/null; fi
 
 setup: $(VENV)/.installed frontend
 
@@ -31,5 +37,5 @@ lint: $(VENV)/.installed
 	$(BIN)/ruff format --check .
 	$(BIN)/mypy
 
-test: setup chromium lint
+test: setup system-packages lint
 	$(BIN)/python -m pytest $(PYTEST_ARGS)

@@ -74,11 +74,26 @@ class JobAdmin(admin.ModelAdmin):
     inlines = [DropInline]
 
 
+@admin.register(models.DailyRecord)
+class DailyRecordAdmin(AppendOnlyAdmin):
+    list_display = ("site", "sequence", "kind", "job", "signer_name", "signed_at", "seal")
+    list_filter = ("site", "kind")
+
+
+@admin.register(models.SigningCredential)
+class SigningCredentialAdmin(AppendOnlyAdmin):
+    list_display = ("organisation", "subject", "fingerprint_sha256", "not_after", "active")
+    exclude = ("encrypted_key_pem",)
+
+
 for model in (
     models.JobTransition,
     models.Hold,
     models.HoldClearance,
-    models.AnchorCertification,
     models.DropLog,
+    models.AnchorCertification,
+    models.RecordPdf,
+    models.Notice,
+    models.SyncReceipt,
 ):
     admin.site.register(model, AppendOnlyAdmin)

@@ -12,6 +12,7 @@ from django.utils import timezone
 from checklists.selectors import current_versions
 from checklists.services import record_sheet
 from compliance import services
+from compliance.daily_records import sign_daily_record
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -26,6 +27,7 @@ from compliance.models import (
 )
 from compliance.profiles import load_defaults
 from compliance.selectors import job_requirements
+from compliance.signing import create_self_signed
 
 
 def scenario_path() -> Path:
@@ -94,6 +96,7 @@ def load_demo(path: Path | None = None) -> Organisation:
         user.set_password(data["password"])
         user.save()
         people[user.username] = user
+    create_self_signed(organisation=org)
     site_data = data["site"]
     site = Site.objects.create(
         organisation=org,
@@ -184,6 +187,13 @@ def load_demo(path: Path | None = None) -> Organisation:
                 note="Drop cleaned top to bottom.",
             )
         services.close_job(job=job, by=supervisor)
+        sign_daily_record(
+            job=job,
+            by=supervisor,
+            password=data["password"],
+            meaning="reviewed_safe",
+            remarks=day.get("remarks", ""),
+        )
     return org
 
 

@@ -347,3 +347,97 @@ class SyncReceipt(AppendOnlyModel):
     result = models.JSONField()
     device_time = models.DateTimeField(null=True, blank=True)
     received_at = models.DateTimeField(auto_now_add=True)
+
+
+class SigningCredential(models.Model):
+    """An organisation's document-signing certificate and its key (encrypted at rest)."""
+
+    organisation = models.ForeignKey(
+        Organisation, on_delete=models.PROTECT, related_name="signing_credentials"
+    )
+    certificate_pem = models.TextField()
+    encrypted_key_pem = models.TextField()
+    fingerprint_sha256 = models.CharField(max_length=64, unique=True)
+    subject = models.CharField(max_length=300)
+    not_after = models.DateTimeField()
+    self_signed = models.BooleanField(default=False)
+    active = models.BooleanField(default=True)
+    created_at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        ordering = ["-created_at", "-id"]
+
+    def __str__(self) -> str:
+        return self.subject
+
+
+class DailyRecord(AppendOnlyModel):
+    """The sealed, signed record of one job-day (or an addendum to one); never edited."""
+
+    class Kind(models.TextChoices):
+        RECORD = "record", "Daily record"
+        ADDENDUM = "addendum", "Addendum"
+
+    kind = models.CharField(max_length=10, choices=Kind.choices, default=Kind.RECORD)
+    organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="+")
+    site = models.ForeignKey(Site, on_delete=models.PROTECT, related_name="daily_records")
+    job = models.ForeignKey(Job, on_delete=models.PROTECT, related_name="daily_records")
+    amends = models.ForeignKey(
+        "self", null=True, blank=True, on_delete=models.PROTECT, related_name="addenda"
+    )
+    sequence = models.PositiveIntegerField(help_text="Position in the site's chain, from 1.")
+    previous_seal = models.CharField(max_length=64, blank=True)
+    canonical_json = models.TextField(help_text="RFC 8785 canonical JSON, exactly as sealed.")
+    seal = models.CharField(max_length=64, unique=True, help_text="SHA-256 of canonical_json.")
+    seal_signature = models.TextField(help_text="Base64 signature of the seal by the org key.")
+    credential = models.ForeignKey(SigningCredential, on_delete=models.PROTECT, related_name="+")
+    signer = models.ForeignKey(User, on_delete=models.PROTECT, related_name="+")
+    signer_name = models.CharField(max_length=200)
+    signer_role = models.CharField(max_length=40)
+    meaning = models.CharField(max_length=200)
+    signed_at = models.DateTimeField()
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(fields=["site", "sequence"], name="record_sequence_unique"),
+            models.UniqueConstraint(
+                fields=["job"], condition=Q(kind="record"), name="one_record_per_job"
+            ),
+            models.CheckConstraint(
+                condition=Q(kind="record", amends=None) | Q(kind="addendum", amends__isnull=False),
+                name="addendum_amends_a_record",
+            ),
+        ]
+        ordering = ["site_id", "sequence"]
+
+
+class RecordPdf(AppendOnlyModel):
+    """The rendered, signed PDF of a daily record."""
+
+    record = models.OneToOneField(DailyRecord, on_delete=models.PROTECT, related_name="pdf")
+    file = models.FileField(upload_to="records/%Y/%m/")
+    sha256 = models.CharField(max_length=64)
+    size_bytes = models.PositiveIntegerField()
+    created_at = models.DateTimeField(auto_now_add=True)
+
+
+class Notice(AppendOnlyModel):
+    """Something the background checks found for a supervisor to act on."""
+
+    class Kind(models.TextChoices):
+        UNSIGNED = "unsigned_record", "Daily record not signed"
+        CERT_DUE = "certification_due", "Anchor certification falls due"
+        INSPECTION_DUE = "inspection_due", "Equipment inspection falls due"
+
+    organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="+")
+    kind = models.CharField(max_length=20, choices=Kind.choices)
+    subject = models.CharField(max_length=100, help_text="e.g. job:12, anchor:3")
+    day = models.DateField(help_text="The day the check ran.")
+    message = models.TextField()
+    due_on = models.DateField(null=True, blank=True)
+    created_at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(fields=["kind", "subject", "day"], name="notice_once_a_day"),
+        ]

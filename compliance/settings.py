@@ -116,15 +116,25 @@ SPECTACULAR_SETTINGS = {
 
 # Celery: with no broker configured, tasks run in the calling process.
 CELERY_BROKER_URL = env.str("CELERY_BROKER_URL", default="")
-CELERY_RESULT_BACKEND = env.str("CELERY_RESULT_BACKEND", default="") or None
+CELERY_RESULT_BACKEND = env.str("CELERY_RESULT_BACKEND", default=CELERY_BROKER_URL) or None
 CELERY_TASK_ALWAYS_EAGER = not CELERY_BROKER_URL
 CELERY_TASK_EAGER_PROPAGATES = True
 CELERY_TASK_ACKS_LATE = True
 CELERY_TASK_REJECT_ON_WORKER_LOST = True
 CELERY_TIMEZONE = "UTC"
 
+CELERY_BEAT_SCHEDULE = {
+    "flag-unsigned-records": {
+        "task": "compliance.tasks.flag_unsigned_records",
+        "schedule": 24 * 3600,
+    },
+    "list-due-items": {"task": "compliance.tasks.list_due_items", "schedule": 24 * 3600},
+}
+
 CACHES = {"default": env.cache("CACHE_URL", default="locmemcache://")}
 
+# Encrypts organisations' signing keys at rest; set it in production.
+PARAPET_SIGNING_PASSPHRASE = env.str("PARAPET_SIGNING_PASSPHRASE", default=SECRET_KEY)
 PARAPET_FIXTURES_DIR = BASE_DIR / "fixtures"
 PARAPET_DEFAULT_PROFILE = env.str("PARAPET_DEFAULT_PROFILE", default="generic")
 

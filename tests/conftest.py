@@ -112,3 +112,23 @@ def fill_all(job: Job, versions: dict[str, ChecklistVersion], by, overrides: dic
 def _fast_password_hashing(settings):
     """Argon2 stays the production hasher (tested on its own); tests hash fast."""
     settings.PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]
+
+
+def pytest_collection_modifyitems(config, items):
+    """Tests that need Redis or PostgreSQL run when the environment points at them (.ci/run).
+
+    They are deselected, not skipped, on the SQLite run, which has neither configured.
+    """
+    import os
+
+    wanted = {
+        "redis": os.environ.get("CELERY_BROKER_URL", "").startswith("redis://"),
+        "postgres": os.environ.get("DATABASE_URL", "").startswith("postgres"),
+    }
+    keep, drop = [], []
+    for item in items:
+        needs = [m for m in wanted if item.get_closest_marker(m)]
+        (keep if all(wanted[m] for m in needs) else drop).append(item)
+    if drop:
+        config.hook.pytest_deselected(items=drop)
+        items[:] = keep

@@ -9,6 +9,7 @@ from rest_framework.views import exception_handler as drf_exception_handler
 
 from compliance.append_only import AppendOnlyViolation
 from compliance.errors import InvalidTransition, JobBlocked, NotPermitted
+from compliance.signing import NoSigningCredential
 
 
 def django_errors(exc: DjangoValidationError) -> dict[str, Any]:
@@ -30,6 +31,8 @@ def exception_handler(exc: Exception, context: dict[str, Any]) -> Response | Non
         return Response({"detail": exc.message}, status=status.HTTP_409_CONFLICT)
     if isinstance(exc, NotPermitted):
         return Response({"detail": exc.message}, status=status.HTTP_403_FORBIDDEN)
+    if isinstance(exc, NoSigningCredential):
+        return Response({"detail": str(exc)}, status=status.HTTP_409_CONFLICT)
     if isinstance(exc, AppendOnlyViolation):
         return Response({"detail": str(exc)}, status=status.HTTP_409_CONFLICT)
     if isinstance(exc, DjangoValidationError):

@@ -1,7 +1,7 @@
 from django.urls import include, path
 from rest_framework.routers import DefaultRouter
 
-from compliance.api import views
+from compliance.api import records, views
 
 router = DefaultRouter()
 router.register("profiles", views.ProfileViewSet, basename="profile")
@@ -12,6 +12,7 @@ router.register("jobs", views.JobViewSet, basename="job")
 router.register("checklists", views.ChecklistViewSet, basename="checklist")
 router.register("checklist-versions", views.ChecklistVersionViewSet, basename="checklist-version")
 router.register("sheets", views.SheetViewSet, basename="sheet")
+router.register("records", records.RecordViewSet, basename="record")
 
 urlpatterns = [
     path("auth/login/", views.session_login, name="login"),
@@ -21,5 +22,6 @@ urlpatterns = [
     path("calc/<slug:name>/", views.calculate, name="calc"),
     path("sync/", views.sync, name="sync"),
     path("photos/", views.upload_photo, name="photos"),
+    path("verify/", records.verify, name="verify"),
     path("", include(router.urls)),
 ]

@@ -27,6 +27,7 @@ from checklists.selectors import sheets_for, visible_checklists
 from compliance import services
 from compliance.api import serializers as s
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
+from compliance.api.records import RecordSerializer, SignInput, sign_job
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -340,6 +341,12 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
         data.is_valid(raise_exception=True)
         drop = services.add_drop(job=job, by=request.user, **data.validated_data)
         return Response(s.DropSerializer(drop).data, status=status.HTTP_201_CREATED)
+
+    @extend_schema(request=SignInput, responses={201: RecordSerializer})
+    @action(detail=True, methods=["post"])
+    def sign(self, request: Request, pk: str | None = None) -> Response:
+        """Sign the day's record: the supervisor re-enters their password and picks a meaning."""
+        return sign_job(request, self.get_object())
 
     @extend_schema(responses=s.TransitionSerializer(many=True))
     @action(detail=True, methods=["get"])

@@ -1,0 +1,191 @@
+"""Daily records over HTTP: sign-off, addenda, PDFs, verification uploads and exports."""
+
+import datetime as dt
+import json
+from typing import Any
+
+from django.db.models import QuerySet
+from django.http import FileResponse, HttpResponse
+from drf_spectacular.utils import OpenApiParameter, extend_schema, inline_serializer
+from rest_framework import serializers, status, viewsets
+from rest_framework.decorators import action, api_view, parser_classes, permission_classes
+from rest_framework.parsers import MultiPartParser
+from rest_framework.permissions import IsAuthenticated
+from rest_framework.request import Request
+from rest_framework.response import Response
+
+from compliance.api.permissions import OrganisationMember
+from compliance.daily_records import MEANINGS, add_addendum
+from compliance.models import DailyRecord, Site
+
+MAX_UPLOAD = 50 * 1024 * 1024
+
+
+class SignInput(serializers.Serializer):
+    password = serializers.CharField(max_length=256, trim_whitespace=False)
+    meaning = serializers.ChoiceField(choices=sorted(MEANINGS))
+    remarks = serializers.CharField(required=False, allow_blank=True, max_length=4000)
+
+
+class AddendumInput(serializers.Serializer):
+    password = serializers.CharField(max_length=256, trim_whitespace=False)
+    text = serializers.CharField(max_length=8000)
+
+
+class RecordSerializer(serializers.ModelSerializer):
+    date = serializers.SerializerMethodField()
+    pdf_ready = serializers.SerializerMethodField()
+
+    class Meta:
+        model = DailyRecord
+        fields = [
+            "id",
+            "kind",
+            "site",
+            "job",
+            "date",
+            "amends",
+            "sequence",
+            "previous_seal",
+            "seal",
+            "signer_name",
+            "signer_role",
+            "meaning",
+            "signed_at",
+            "pdf_ready",
+        ]
+
+    def get_date(self, record: DailyRecord) -> str:
+        return record.job.date.isoformat()
+
+    def get_pdf_ready(self, record: DailyRecord) -> bool:
+        return hasattr(record, "pdf")
+
+
+class RecordViewSet(viewsets.ReadOnlyModelViewSet):
+    serializer_class = RecordSerializer
+    permission_classes = [OrganisationMember]
+
+    def get_queryset(self) -> QuerySet[DailyRecord]:
+        qs = DailyRecord.objects.filter(organisation_id=self.request.user.organisation_id)
+        site = self.request.query_params.get("site")
+        if site:
+            qs = qs.filter(site_id=int(site)) if site.isdigit() else qs.none()
+        return qs.select_related("job", "pdf").order_by("site_id", "sequence")
+
+    def retrieve(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        record = self.get_object()
+        return Response(
+            {**self.get_serializer(record).data, "document": json.loads(record.canonical_json)}
+        )
+
+    @extend_schema(responses={(200, "application/pdf"): bytes})
+    @action(detail=True, methods=["get"])
+    def pdf(self, request: Request, pk: str | None = None) -> HttpResponse:
+        """The signed PDF; rendered now if the background task has not run yet."""
+        from compliance.record_files import ensure_pdf
+
+        record = self.get_object()
+        stored = ensure_pdf(record)
+        response = FileResponse(stored.file.open("rb"), content_type="application/pdf")
+        response["Content-Disposition"] = (
+            f'attachment; filename="daily-record-{record.site_id}-{record.sequence}.pdf"'
+        )
+        return response
+
+    @extend_schema(request=AddendumInput, responses={201: RecordSerializer})
+    @action(detail=True, methods=["post"])
+    def addenda(self, request: Request, pk: str | None = None) -> Response:
+        record = self.get_object()
+        data = AddendumInput(data=request.data)
+        data.is_valid(raise_exception=True)
+        addendum = add_addendum(record=record, by=request.user, **data.validated_data)
+        return Response(RecordSerializer(addendum).data, status=status.HTTP_201_CREATED)
+
+    @extend_schema(
+        parameters=[
+            OpenApiParameter("site", int),
+            OpenApiParameter("start", dt.date),
+            OpenApiParameter("end", dt.date),
+        ],
+        responses={(200, "application/zip"): bytes},
+    )
+    @action(detail=False, methods=["get"])
+    def export(self, request: Request) -> HttpResponse:
+        """All signed PDFs of a site and period plus a manifest that verifies offline."""
+        from compliance.record_files import build_export
+
+        errors: dict[str, list[str]] = {}
+        site_id = request.query_params.get("site", "")
+        site = (
+            Site.objects.filter(
+                organisation_id=request.user.organisation_id, pk=int(site_id)
+            ).first()
+            if site_id.isdigit()
+            else None
+        )
+        if site is None:
+            errors["site"] = ["Unknown site."]
+        dates: dict[str, dt.date] = {}
+        for name in ("start", "end"):
+            try:
+                dates[name] = dt.date.fromisoformat(request.query_params.get(name, ""))
+            except ValueError:
+                errors[name] = ["A date as YYYY-MM-DD."]
+        if not errors and dates["end"] < dates["start"]:
+            errors["end"] = ["Must not be before start."]
+        if not errors and (dates["end"] - dates["start"]).days > 400:
+            errors["end"] = ["An export covers at most 400 days."]
+        if errors:
+            return Response(errors, status=status.HTTP_400_BAD_REQUEST)
+        data = build_export(site, dates["start"], dates["end"])  # type: ignore[arg-type]
+        response = HttpResponse(data, content_type="application/zip")
+        response["Content-Disposition"] = (
+            f'attachment; filename="records-{site.pk}-{dates["start"]}-{dates["end"]}.zip"'  # type: ignore[union-attr]
+        )
+        return response
+
+
+def sign_job(request: Request, job: Any) -> Response:
+    from compliance.daily_records import sign_daily_record
+
+    data = SignInput(data=request.data)
+    data.is_valid(raise_exception=True)
+    record = sign_daily_record(job=job, by=request.user, **data.validated_data)
+    return Response(RecordSerializer(record).data, status=status.HTTP_201_CREATED)
+
+
+class VerifyAllowed(IsAuthenticated):
+    """Verifying changes nothing: any signed-in member, auditors included."""
+
+    def has_permission(self, request: Request, view: Any) -> bool:
+        return super().has_permission(request, view) and bool(request.user.organisation_id)
+
+
+class VerifyInput(serializers.Serializer):
+    file = serializers.FileField()
+
+
+@extend_schema(
+    request={"multipart/form-data": VerifyInput},
+    responses=inline_serializer(
+        "VerifyReport", {"ok": serializers.BooleanField(), "verdict": serializers.CharField()}
+    ),
+)
+@api_view(["POST"])
+@permission_classes([VerifyAllowed])
+@parser_classes([MultiPartParser])
+def verify(request: Request) -> Response:
+    """Upload a record PDF or an export ZIP; answers a plain-language verdict and each check."""
+    from compliance.verification import verify_export, verify_pdf
+
+    data = VerifyInput(data=request.data)
+    data.is_valid(raise_exception=True)
+    upload = data.validated_data["file"]
+    if upload.size > MAX_UPLOAD:
+        return Response({"file": ["At most 50 MB."]}, status=status.HTTP_400_BAD_REQUEST)
+    content = upload.read()
+    report = (
+        verify_export(content) if content[:2] == b"PK" else verify_pdf(content, name=upload.name)
+    )
+    return Response(report.as_dict())

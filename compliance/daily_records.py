@@ -1,0 +1,526 @@
+"""The daily record: a canonical JSON document of a job-day, sealed, signed and chained per site.
+
+The seal is the SHA-256 of the RFC 8785 (JCS) serialisation of the document. The document holds
+the signature manifestation (printed name, role, meaning, time) and the previous record's seal,
+so the seal binds the signature to this record and to its place in the site's chain.
+"""
+
+import datetime as dt
+import hashlib
+import json
+from dataclasses import dataclass, field
+from typing import Any
+
+import rfc8785
+from django.db import transaction
+from django.db.models import Max, Prefetch
+from django.utils import timezone
+
+from checklists.models import CheckSheet, ItemEntry, Photo
+from compliance.errors import InvalidTransition, NotPermitted
+from compliance.models import (
+    AnchorCertification,
+    DailyRecord,
+    DropLog,
+    Hold,
+    Job,
+    JobState,
+    JobTransition,
+    User,
+)
+from compliance.selectors import drops_of
+from compliance.signing import active_credential, sign_seal
+
+FORMAT = "parapet.daily-record/1"
+ADDENDUM_MEANING = (
+    "Addendum: corrects or adds to the referenced record; the original stands unchanged."
+)
+ADDENDUM_FORMAT = "parapet.daily-record-addendum/1"
+MEANINGS = {
+    "reviewed_safe": "Reviewed: the pre-start checks were complete and work was safe to proceed.",
+    "reviewed_stopped": "Reviewed: work was stopped; the open holds are shown in this record.",
+    "reviewed_exceptions": "Reviewed with exceptions: see the remarks in this record.",
+}
+
+
+def utc(value: dt.datetime | None) -> str | None:
+    if value is None:
+        return None
+    return value.astimezone(dt.UTC).isoformat().replace("+00:00", "Z")
+
+
+def canonical_bytes(document: dict[str, Any]) -> bytes:
+    return rfc8785.dumps(document)
+
+
+def seal_of(document: dict[str, Any]) -> str:
+    return hashlib.sha256(canonical_bytes(document)).hexdigest()
+
+
+def _entry(entry: ItemEntry) -> dict[str, Any]:
+    return {
+        "item": entry.item_key,
+        "kind": entry.kind,
+        "blocking": entry.blocking,
+        "value": entry.value,
+        "unit": entry.unit,
+        "verdict": entry.verdict,
+        "margin": entry.margin,
+        "message": entry.message,
+        "working": entry.working,
+    }
+
+
+def _person(user: User | None) -> dict[str, Any] | None:
+    if user is None:
+        return None
+    return {"id": user.pk, "username": user.username, "name": user.display_name, "role": user.role}
+
+
+def day_content(job: Job) -> dict[str, Any]:
+    """Everything recorded for the job-day, from the database rows (no signature yet)."""
+    site, profile = job.site, job.site.profile
+    drops = drops_of(job)
+    sheets = list(
+        CheckSheet.objects.filter(job=job)
+        .select_related("version__checklist", "filled_by", "anchor", "equipment")
+        .prefetch_related(Prefetch("entries", queryset=ItemEntry.objects.order_by("id")))
+        .order_by("id")
+    )
+    holds = list(Hold.objects.filter(job=job).select_related("clearance").order_by("id"))
+    transitions = list(JobTransition.objects.filter(job=job).select_related("by").order_by("id"))
+    logs = list(DropLog.objects.filter(drop__job=job).select_related("drop", "by").order_by("id"))
+    photos = list(Photo.objects.filter(job=job).order_by("id"))
+    people: dict[int, User] = {job.supervisor_id: job.supervisor}
+    for user in (
+        list(job.crew.all()) + [s.filled_by for s in sheets] + [t.by for t in transitions if t.by]
+    ):
+        people[user.pk] = user
+    anchors: dict[int, Any] = {}
+    equipment: dict[int, Any] = {}
+    for drop in drops:
+        for anchor in (drop.anchor, drop.safety_anchor):
+            cert: AnchorCertification | None = anchor.current_certification()
+            anchors[anchor.pk] = {
+                "id": anchor.pk,
+                "label": anchor.label,
+                "x_m": anchor.x_m,
+                "y_m": anchor.y_m,
+                "certification": None
+                if cert is None
+                else {
+                    "certifier": cert.certifier,
+                    "company": cert.certifier_company,
+                    "rated_capacity_kn": cert.rated_capacity_kn,
+                    "certified_on": cert.certified_on.isoformat(),
+                    "valid_until": cert.valid_until.isoformat(),
+                    "valid_on_day": cert.is_valid_on(job.date),
+                },
+            }
+        for item in (drop.robot, drop.tether, drop.safety_line, drop.hose):
+            equipment[item.pk] = {
+                "id": item.pk,
+                "kind": item.kind,
+                "label": item.label,
+                "serial": item.serial,
+                "ratings": item.ratings,
+                "in_service": item.in_service,
+                "next_inspection_due": item.next_inspection_due.isoformat()
+                if item.next_inspection_due
+                else None,
+            }
+    weather = [
+        {"sheet": s.pk, "item": e.item_key, "value": e.value, "unit": e.unit, "verdict": e.verdict}
+        for s in sheets
+        if s.version.checklist.key == "weather"
+        for e in s.entries.all()
+        if e.kind in ("reading", "calc")
+    ]
+    return {
+        "site": {
+            "id": site.pk,
+            "name": site.name,
+            "address": site.address,
+            "height_m": site.height_m,
+            "terrain": site.terrain,
+        },
+        "job": {
+            "id": job.pk,
+            "date": job.date.isoformat(),
+            "state": job.state,
+            "notes": job.notes,
+            "supervisor": _person(job.supervisor),
+        },
+        "profile": {
+            "key": profile.key,
+            "name": profile.name,
+            "content_hash": profile.content_hash,
+            "thresholds": profile.thresholds,
+            "cautions": profile.cautions,
+        },
+        "people": [_person(u) for u in sorted(people.values(), key=lambda u: u.pk)],
+        "drops": [
+            {
+                "id": d.pk,
+                "label": d.label,
+                "length_m": d.length_m,
+                "robot": d.robot_id,
+                "anchor": d.anchor_id,
+                "safety_anchor": d.safety_anchor_id,
+                "tether": d.tether_id,
+                "safety_line": d.safety_line_id,
+                "hose": d.hose_id,
+            }
+            for d in drops
+        ],
+        "anchors": [anchors[k] for k in sorted(anchors)],
+        "equipment": [equipment[k] for k in sorted(equipment)],
+        "sheets": [
+            {
+                "id": s.pk,
+                "client_uuid": str(s.client_uuid),
+                "checklist": s.version.checklist.key,
+                "title": s.version.checklist.title,
+                "version": s.version.number,
+                "version_hash": s.version_hash,
+                "subject_kind": s.subject_kind,
+                "anchor": s.anchor_id,
+                "equipment": s.equipment_id,
+                "filled_by": s.filled_by.display_name,
+                "device_time": utc(s.device_time),
+                "received_at": utc(s.received_at),
+                "verdict": s.verdict,
+                "blocking_failures": s.blocking_failures,
+                "remarks": s.remarks,
+                "entries": [_entry(e) for e in s.entries.all()],
+            }
+            for s in sheets
+        ],
+        "holds": [
+            {
+                "id": h.pk,
+                "requirement": h.requirement,
+                "item": h.item_key,
+                "reason": h.reason,
+                "sheet": h.sheet_id,
+                "opened_at": utc(h.opened_at),
+                "cleared_at": utc(h.clearance.at) if hasattr(h, "clearance") else None,
+                "cleared_by_sheet": h.clearance.sheet_id if hasattr(h, "clearance") else None,
+            }
+            for h in holds
+        ],
+        "transitions": [
+            {
+                "from": t.from_state,
+                "to": t.to_state,
+                "by": t.by.display_name if t.by else None,
+                "at": utc(t.at),
+                "reason": t.reason,
+            }
+            for t in transitions
+        ],
+        "drops_done": [
+            {
+                "drop": log.drop.label,
+                "by": log.by.display_name,
+                "device_time": utc(log.device_time),
+                "received_at": utc(log.received_at),
+                "note": log.note,
+            }
+            for log in logs
+        ],
+        "photos": [
+            {
+                "client_uuid": str(p.client_uuid),
+                "sheet_uuid": str(p.sheet_uuid) if p.sheet_uuid else None,
+                "item": p.item_key,
+                "sha256": p.sha256,
+                "width": p.width,
+                "height": p.height,
+            }
+            for p in photos
+        ],
+        "weather": weather,
+        "units": "SI: lengths m, forces kN or N, pressures kPa, speeds m/s, masses kg, times UTC",
+    }
+
+
+def open_holds_of(content: dict[str, Any]) -> list[dict[str, Any]]:
+    return [h for h in content["holds"] if h["cleared_at"] is None]
+
+
+@dataclass(frozen=True)
+class SignatureRequest:
+    password: str
+    meaning: str
+    remarks: str = ""
+
+
+def _chain_position(site_id: int) -> tuple[int, str]:
+    last = (
+        DailyRecord.objects.select_for_update()
+        .filter(site_id=site_id)
+        .order_by("-sequence")
+        .values_list("sequence", "seal")
+        .first()
+    )
+    return (1, "") if last is None else (last[0] + 1, last[1])
+
+
+def _authenticate(by: User, password: str) -> None:
+    if not by.can_supervise:
+        raise NotPermitted("Only a supervisor (the competent person) or an admin signs records.")
+    if not password or not by.check_password(password):
+        raise NotPermitted("Re-enter your password to sign; the one given is not right.")
+
+
+def sign_daily_record(
+    *, job: Job, by: User, password: str, meaning: str, remarks: str = ""
+) -> DailyRecord:
+    """Seal and sign the day's record; the signer re-authenticates at this moment."""
+    _authenticate(by, password)
+    if meaning not in MEANINGS:
+        raise InvalidTransition(f"The meaning of the signature is one of: {', '.join(MEANINGS)}.")
+    credential = active_credential(job.organisation_id)
+    with transaction.atomic():
+        job = (
+            Job.objects.select_for_update()
+            .select_related("site__profile", "supervisor")
+            .get(pk=job.pk)
+        )
+        if DailyRecord.objects.filter(job=job, kind="record").exists():
+            raise InvalidTransition("This day's record is already signed; add an addendum instead.")
+        if job.state in (JobState.PLANNED, JobState.CLEARED, JobState.WORKING):
+            raise InvalidTransition(
+                "Close the job (or leave it held) before signing the day's record."
+            )
+        if job.state == JobState.HELD:
+            from compliance.services import close_job
+
+            close_job(job=job, by=by, reason="Signed off at day's end with the hold open.")
+            job.refresh_from_db()
+        content = day_content(job)
+        if open_holds_of(content) and meaning == "reviewed_safe":
+            raise InvalidTransition(
+                "This record has open holds; sign it as stopped or with exceptions."
+            )
+        sequence, previous = _chain_position(job.site_id)
+        signed_at = timezone.now()
+        document = {
+            "format": FORMAT,
+            "sequence": sequence,
+            "previous_seal": previous or None,
+            "record": content,
+            "remarks": remarks,
+            "open_holds": len(open_holds_of(content)),
+            "signature": {
+                "name": by.display_name,
+                "username": by.username,
+                "role": by.get_role_display(),
+                "meaning": MEANINGS[meaning],
+                "meaning_code": meaning,
+                "signed_at": utc(signed_at),
+                "method": "user id and password re-entered at the moment of signing",
+                "certificate_sha256": credential.fingerprint_sha256,
+            },
+        }
+        seal = seal_of(document)
+        record = DailyRecord.objects.create(
+            kind=DailyRecord.Kind.RECORD,
+            organisation_id=job.organisation_id,
+            site_id=job.site_id,
+            job=job,
+            sequence=sequence,
+            previous_seal=previous,
+            canonical_json=canonical_bytes(document).decode("utf-8"),
+            seal=seal,
+            seal_signature=sign_seal(seal, credential),
+            credential=credential,
+            signer=by,
+            signer_name=by.display_name,
+            signer_role=by.role,
+            meaning=MEANINGS[meaning],
+            signed_at=signed_at,
+        )
+        transaction.on_commit(lambda: _queue_render(record.pk))
+    return record
+
+
+def _queue_render(record_id: int) -> None:
+    from compliance.tasks import render_daily_record
+
+    render_daily_record.delay(record_id)
+
+
+def add_addendum(*, record: DailyRecord, by: User, password: str, text: str) -> DailyRecord:
+    """A correction after signing: a new signed document that references the original."""
+    _authenticate(by, password)
+    if not text.strip():
+        raise InvalidTransition("An addendum needs its text.")
+    if by.organisation_id != record.organisation_id:
+        raise NotPermitted("Unknown record.")
+    credential = active_credential(record.organisation_id)
+    with transaction.atomic():
+        sequence, previous = _chain_position(record.site_id)
+        signed_at = timezone.now()
+        document = {
+            "format": ADDENDUM_FORMAT,
+            "sequence": sequence,
+            "previous_seal": previous or None,
+            "amends": {
+                "seal": record.seal,
+                "sequence": record.sequence,
+                "job": record.job_id,
+                "date": json.loads(record.canonical_json)["record"]["job"]["date"],
+            },
+            "text": text,
+            "signature": {
+                "name": by.display_name,
+                "username": by.username,
+                "role": by.get_role_display(),
+                "meaning": ADDENDUM_MEANING,
+                "meaning_code": "addendum",
+                "signed_at": utc(signed_at),
+                "method": "user id and password re-entered at the moment of signing",
+                "certificate_sha256": credential.fingerprint_sha256,
+            },
+        }
+        seal = seal_of(document)
+        addendum = DailyRecord.objects.create(
+            kind=DailyRecord.Kind.ADDENDUM,
+            organisation_id=record.organisation_id,
+            site_id=record.site_id,
+            job_id=record.job_id,
+            amends=record,
+            sequence=sequence,
+            previous_seal=previous,
+            canonical_json=canonical_bytes(document).decode("utf-8"),
+            seal=seal,
+            seal_signature=sign_seal(seal, credential),
+            credential=credential,
+            signer=by,
+            signer_name=by.display_name,
+            signer_role=by.role,
+            meaning=document["signature"]["meaning"],
+            signed_at=signed_at,
+        )
+        transaction.on_commit(lambda: _queue_render(addendum.pk))
+    return addendum
+
+
+@dataclass
+class ChainBreak:
+    sequence: int
+    code: str
+    message: str
+
+
+@dataclass
+class ChainReport:
+    site_id: int
+    records: int
+    breaks: list[ChainBreak] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return not self.breaks
+
+    @property
+    def first_break(self) -> ChainBreak | None:
+        return self.breaks[0] if self.breaks else None
+
+
+def check_links(rows: list[dict[str, Any]]) -> list[ChainBreak]:
+    """Check a chain given as [{sequence, seal, previous_seal, canonical_json?}] in order.
+
+    Used on the database and on an export's manifest alike.
+    """
+    breaks: list[ChainBreak] = []
+    expected_previous = ""
+    for position, row in enumerate(rows, start=1):
+        seq = row["sequence"]
+        if seq != position:
+            kind = "missing" if seq > position else "reordered"
+            breaks.append(
+                ChainBreak(
+                    seq,
+                    kind,
+                    f"Record {position} of the chain is {kind}: found number {seq} in its place.",
+                )
+            )
+            return breaks
+        text = row.get("canonical_json")
+        if text is not None:
+            if hashlib.sha256(text.encode("utf-8")).hexdigest() != row["seal"]:
+                breaks.append(
+                    ChainBreak(
+                        seq,
+                        "altered",
+                        f"Record {seq} was altered: its content no longer hashes to its seal.",
+                    )
+                )
+                return breaks
+            doc = json.loads(text)
+            if doc.get("sequence") != seq or (doc.get("previous_seal") or "") != (
+                row["previous_seal"] or ""
+            ):
+                breaks.append(
+                    ChainBreak(
+                        seq,
+                        "altered",
+                        f"Record {seq}'s chain fields differ from its sealed content.",
+                    )
+                )
+                return breaks
+        if (row["previous_seal"] or "") != expected_previous:
+            breaks.append(
+                ChainBreak(
+                    seq,
+                    "broken_link",
+                    f"Record {seq} does not follow record {seq - 1}: "
+                    "the previous seal does not match.",
+                )
+            )
+            return breaks
+        expected_previous = row["seal"]
+    return breaks
+
+
+def verify_chain(site_id: int) -> ChainReport:
+    rows = list(
+        DailyRecord.objects.filter(site_id=site_id)
+        .order_by("sequence", "id")
+        .values("sequence", "seal", "previous_seal", "canonical_json")
+    )
+    report = ChainReport(site_id=site_id, records=len(rows))
+    report.breaks = check_links(rows)
+    return report
+
+
+def verify_against_database(record: DailyRecord) -> list[str]:
+    """Compare a sealed record with the rows behind it today; return the differing paths."""
+    if record.kind != DailyRecord.Kind.RECORD:
+        return []
+    sealed = json.loads(record.canonical_json)["record"]
+    live = json.loads(canonical_bytes(day_content(record.job)))
+    return _differences(sealed, live, "record")
+
+
+def _differences(a: Any, b: Any, path: str) -> list[str]:
+    if isinstance(a, dict) and isinstance(b, dict):
+        out: list[str] = []
+        for key in sorted(set(a) | set(b)):
+            out += _differences(a.get(key), b.get(key), f"{path}.{key}")
+        return out
+    if isinstance(a, list) and isinstance(b, list):
+        if len(a) != len(b):
+            return [f"{path} (had {len(a)} entries, now {len(b)})"]
+        out = []
+        for i, (x, y) in enumerate(zip(a, b, strict=True)):
+            out += _differences(x, y, f"{path}[{i}]")
+        return out
+    return [] if a == b else [path]
+
+
+def next_sequence_hint(site_id: int) -> int:
+    return (DailyRecord.objects.filter(site_id=site_id).aggregate(m=Max("sequence"))["m"] or 0) + 1

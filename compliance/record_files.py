@@ -1,0 +1,114 @@
+"""Rendering and signing a record's PDF, and building an auditor's export of a site-period."""
+
+import datetime as dt
+import io
+import json
+import zipfile
+from pathlib import Path
+
+from django.core.files.base import ContentFile
+from django.db import IntegrityError, transaction
+
+from checklists.models import Photo
+from compliance.models import DailyRecord, RecordPdf, SigningCredential, Site
+from compliance.record_pdf import render
+from compliance.signing import sha256_hex, sign_pdf
+from compliance.verification import merkle_root
+
+
+def _photo_paths(record: DailyRecord) -> dict[str, Path]:
+    paths: dict[str, Path] = {}
+    for photo in Photo.objects.filter(job_id=record.job_id):
+        try:
+            paths[str(photo.client_uuid)] = Path(photo.image.path)
+        except (NotImplementedError, ValueError):
+            continue
+    return paths
+
+
+def render_signed_pdf(record: DailyRecord) -> bytes:
+    document = json.loads(record.canonical_json)
+    pdf = render(document, record.seal, _photo_paths(record))
+    return sign_pdf(
+        pdf,
+        record.credential,
+        signer_name=record.signer_name,
+        reason=record.meaning,
+        location=record.site.name,
+    )
+
+
+def ensure_pdf(record: DailyRecord) -> RecordPdf:
+    """Render and sign the record's PDF once; a second call returns the stored one."""
+    existing = RecordPdf.objects.filter(record=record).first()
+    if existing is not None:
+        return existing
+    data = render_signed_pdf(record)
+    try:
+        with transaction.atomic():
+            pdf = RecordPdf(record=record, sha256=sha256_hex(data), size_bytes=len(data))
+            pdf.file.save(
+                f"record-{record.site_id}-{record.sequence}-{record.seal[:12]}.pdf",
+                ContentFile(data),
+                save=False,
+            )
+            pdf.save()
+    except IntegrityError:
+        return RecordPdf.objects.get(record=record)
+    return pdf
+
+
+def export_filename(record: DailyRecord) -> str:
+    return f"records/{record.sequence:05d}-{record.kind}-{record.seal[:12]}.pdf"
+
+
+def build_export(site: Site, start: dt.date, end: dt.date) -> bytes:
+    """All records of a site-period as signed PDFs plus a manifest that verifies offline."""
+    records = list(
+        DailyRecord.objects.filter(site=site, job__date__gte=start, job__date__lte=end)
+        .select_related("credential", "site")
+        .order_by("sequence")
+    )
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w", zipfile.ZIP_DEFLATED) as archive:
+        entries = []
+        for record in records:
+            pdf = ensure_pdf(record)
+            with pdf.file.open("rb") as handle:
+                data = handle.read()
+            archive.writestr(export_filename(record), data)
+            entries.append(
+                {
+                    "sequence": record.sequence,
+                    "kind": record.kind,
+                    "date": json.loads(record.canonical_json)
+                    .get("record", {})
+                    .get("job", {})
+                    .get("date"),
+                    "seal": record.seal,
+                    "previous_seal": record.previous_seal,
+                    "file": export_filename(record),
+                    "file_sha256": sha256_hex(data),
+                    "signer": record.signer_name,
+                    "meaning": record.meaning,
+                }
+            )
+        certs = sorted(
+            {
+                c
+                for c in SigningCredential.objects.filter(
+                    organisation_id=site.organisation_id
+                ).values_list("certificate_pem", flat=True)
+            }
+        )
+        manifest = {
+            "format": "parapet.export/1",
+            "site": {"id": site.pk, "name": site.name},
+            "period": {"start": start.isoformat(), "end": end.isoformat()},
+            "records": entries,
+            "merkle_root": merkle_root([bytes.fromhex(e["seal"]) for e in entries]),
+            "certificates": certs,
+            "how_to_verify": "python manage.py verify-record THIS.zip (no database needed)",
+        }
+        archive.writestr("manifest.json", json.dumps(manifest, indent=2, sort_keys=True))
+    return buffer.getvalue()

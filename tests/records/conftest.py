@@ -1,0 +1,53 @@
+import pytest
+
+from compliance.daily_records import sign_daily_record
+from compliance.services import close_job, start_job
+from compliance.signing import create_self_signed
+from tests.conftest import fill_all
+from tests.factories import PASSWORD, JobFactory, make_drop
+
+
+@pytest.fixture
+def credential(job):
+    return create_self_signed(organisation=job.organisation)
+
+
+@pytest.fixture
+def closed_job(job, simple_checklists, operator, credential):
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    close_job(job=job, by=operator)
+    job.refresh_from_db()
+    return job
+
+
+def next_day_job(job, simple_checklists, operator, days=1):
+    import datetime as dt
+
+    other = JobFactory(
+        site=job.site, supervisor=job.supervisor, date=job.date + dt.timedelta(days=days)
+    )
+    make_drop(other)
+    fill_all(other, simple_checklists, operator)
+    start_job(job=other, by=operator)
+    close_job(job=other, by=operator)
+    other.refresh_from_db()
+    return other
+
+
+@pytest.fixture
+def signed(closed_job, supervisor):
+    return sign_daily_record(
+        job=closed_job,
+        by=supervisor,
+        password=PASSWORD,
+        meaning="reviewed_safe",
+        remarks="All drops done.",
+    )
+
+
+@pytest.fixture
+def signed_pdf(signed):
+    from compliance.record_files import render_signed_pdf
+
+    return render_signed_pdf(signed)

@@ -1,0 +1,184 @@
+"""Sign-off: re-authentication, the right role, a meaning, and immutability afterwards."""
+
+import json
+
+import pytest
+from django.contrib.admin.sites import site as admin_site
+from django.db import connection
+from django.test import RequestFactory
+from django.urls import reverse
+
+from checklists.services import record_sheet
+from compliance.append_only import AppendOnlyViolation
+from compliance.daily_records import MEANINGS, add_addendum, seal_of, sign_daily_record
+from compliance.errors import InvalidTransition, NotPermitted
+from compliance.models import DailyRecord
+from tests.conftest import PASSING, client_for
+from tests.factories import PASSWORD, UserFactory
+
+pytestmark = pytest.mark.django_db
+
+
+def test_signing_needs_the_password_again(closed_job, supervisor):
+    with pytest.raises(NotPermitted, match="Re-enter your password"):
+        sign_daily_record(job=closed_job, by=supervisor, password="wrong", meaning="reviewed_safe")
+    with pytest.raises(NotPermitted):
+        sign_daily_record(job=closed_job, by=supervisor, password="", meaning="reviewed_safe")
+    assert not DailyRecord.objects.exists()
+
+
+@pytest.mark.parametrize("role", ["operator", "auditor"])
+def test_operators_and_auditors_cannot_sign(closed_job, role):
+    person = UserFactory(organisation=closed_job.organisation, role=role)
+    with pytest.raises(NotPermitted, match="supervisor"):
+        sign_daily_record(job=closed_job, by=person, password=PASSWORD, meaning="reviewed_safe")
+    response = client_for(person).post(
+        reverse("job-sign", args=[closed_job.pk]),
+        {"password": PASSWORD, "meaning": "reviewed_safe"},
+        format="json",
+    )
+    assert response.status_code == 403
+    assert not DailyRecord.objects.exists()
+
+
+def test_signing_through_the_api(closed_job, supervisor):
+    client = client_for(supervisor)
+    url = reverse("job-sign", args=[closed_job.pk])
+    assert (
+        client.post(
+            url, {"password": "nope", "meaning": "reviewed_safe"}, format="json"
+        ).status_code
+        == 403
+    )
+    bad = client.post(url, {"password": PASSWORD, "meaning": "looks fine"}, format="json")
+    assert bad.status_code == 400 and "meaning" in bad.json()
+    response = client.post(url, {"password": PASSWORD, "meaning": "reviewed_safe"}, format="json")
+    assert response.status_code == 201, response.json()
+    body = response.json()
+    assert body["sequence"] == 1 and body["previous_seal"] == ""
+    assert (
+        body["signer_name"] == supervisor.display_name
+        and body["meaning"] == MEANINGS["reviewed_safe"]
+    )
+    again = client.post(url, {"password": PASSWORD, "meaning": "reviewed_safe"}, format="json")
+    assert again.status_code == 409
+
+
+def test_the_signature_manifestation_is_inside_the_seal(signed, supervisor):
+    document = json.loads(signed.canonical_json)
+    assert seal_of(document) == signed.seal
+    signature = document["signature"]
+    assert signature["name"] == supervisor.display_name
+    assert signature["meaning"] == MEANINGS["reviewed_safe"]
+    assert signature["signed_at"].endswith("Z")
+    assert "password re-entered" in signature["method"]
+    # moving the signature to another record changes that record's seal
+    other = dict(
+        document, record={**document["record"], "job": {**document["record"]["job"], "id": 999}}
+    )
+    assert seal_of(other) != signed.seal
+
+
+def test_a_working_job_cannot_be_signed(job, simple_checklists, operator, supervisor, credential):
+    with pytest.raises(InvalidTransition, match="Close the job"):
+        sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+
+
+def test_a_held_job_is_signed_only_with_its_hold_shown(
+    job, simple_checklists, operator, supervisor, credential
+):
+    record_sheet(
+        job=job,
+        version=simple_checklists["site"],
+        by=operator,
+        entries={**PASSING["site"], "zone_closed": {"value": "fail"}},
+    )
+    job.refresh_from_db()
+    assert job.state == "held"
+    with pytest.raises(InvalidTransition, match="open holds"):
+        sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    record = sign_daily_record(
+        job=job, by=supervisor, password=PASSWORD, meaning="reviewed_stopped"
+    )
+    document = json.loads(record.canonical_json)
+    assert document["open_holds"] == 1
+    assert document["record"]["holds"][0]["cleared_at"] is None
+    job.refresh_from_db()
+    assert job.state == "closed"
+
+
+def test_a_signed_record_cannot_change_through_the_orm(signed):
+    signed.meaning = "edited"
+    with pytest.raises(AppendOnlyViolation):
+        signed.save()
+    with pytest.raises(AppendOnlyViolation):
+        signed.delete()
+    with pytest.raises(AppendOnlyViolation):
+        DailyRecord.objects.filter(pk=signed.pk).update(meaning="edited")
+    with pytest.raises(AppendOnlyViolation):
+        DailyRecord.objects.all().delete()
+
+
+def test_a_signed_record_cannot_change_through_the_api_or_admin(signed, supervisor):
+    client = client_for(supervisor)
+    url = reverse("record-detail", args=[signed.pk])
+    assert client.get(url).json()["document"]["signature"]["name"] == supervisor.display_name
+    for method in ("put", "patch", "delete"):
+        assert getattr(client, method)(url, {"meaning": "x"}, format="json").status_code == 405
+    model_admin = admin_site._registry[DailyRecord]
+    request = RequestFactory().get("/admin/")
+    request.user = UserFactory(is_superuser=True, is_staff=True)
+    assert not model_admin.has_change_permission(request, signed)
+    assert not model_admin.has_delete_permission(request, signed)
+
+
+def test_the_job_behind_a_signed_record_takes_no_more_sheets(signed, simple_checklists, operator):
+    with pytest.raises(InvalidTransition):
+        record_sheet(
+            job=signed.job, version=simple_checklists["site"], by=operator, entries=PASSING["site"]
+        )
+
+
+def test_corrections_are_signed_addenda(signed, supervisor):
+    with pytest.raises(NotPermitted):
+        add_addendum(record=signed, by=supervisor, password="wrong", text="Drop 2 was half done.")
+    addendum = add_addendum(
+        record=signed, by=supervisor, password=PASSWORD, text="Drop 2 was half done, not whole."
+    )
+    assert addendum.kind == "addendum" and addendum.amends == signed
+    assert addendum.sequence == 2 and addendum.previous_seal == signed.seal
+    document = json.loads(addendum.canonical_json)
+    assert document["amends"]["seal"] == signed.seal
+    signed.refresh_from_db()
+    assert seal_of(json.loads(signed.canonical_json)) == signed.seal
+    response = client_for(supervisor).post(
+        reverse("record-addenda", args=[signed.pk]),
+        {"password": PASSWORD, "text": "Another note."},
+        format="json",
+    )
+    assert response.status_code == 201
+
+
+def test_records_are_invisible_to_other_organisations(signed):
+    stranger = UserFactory(role="auditor")
+    client = client_for(stranger)
+    assert client.get(reverse("record-detail", args=[signed.pk])).status_code == 404
+    assert client.get(reverse("record-pdf", args=[signed.pk])).status_code == 404
+    assert client.get(reverse("record-list")).json()["results"] == []
+
+
+def test_record_list_queries_are_constant(
+    signed, supervisor, simple_checklists, operator, django_assert_num_queries
+):
+    from django.test.utils import CaptureQueriesContext
+
+    from tests.records.conftest import next_day_job
+
+    client = client_for(supervisor)
+    with CaptureQueriesContext(connection) as small:
+        client.get(reverse("record-list"))
+    for days in (1, 2, 3):
+        job = next_day_job(signed.job, simple_checklists, operator, days)
+        sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    with django_assert_num_queries(len(small.captured_queries)):
+        client.get(reverse("record-list"))

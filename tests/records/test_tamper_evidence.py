@@ -1,0 +1,373 @@
+"""Every way a record can be tampered with is detected and reported with the right reason."""
+
+import hashlib
+import io
+import json
+import shutil
+import subprocess
+import zipfile
+
+import pytest
+import rfc8785
+from django.db import connection
+from django.urls import reverse
+from PIL import Image
+from pypdf import PdfReader
+
+from compliance.daily_records import seal_of, sign_daily_record, verify_chain
+from compliance.record_files import build_export, ensure_pdf
+from compliance.record_pdf import ATTACHMENT_NAME, render
+from compliance.signing import create_self_signed, sign_pdf
+from compliance.verification import merkle_root, verify_export, verify_pdf
+from tests.conftest import client_for
+from tests.factories import PASSWORD, OrganisationFactory
+from tests.records.conftest import next_day_job
+
+pytestmark = pytest.mark.django_db
+
+
+def failed(report):
+    return report.first_failure.name
+
+
+def test_published_hash_vectors():
+    # FIPS 180-4 / NIST example values, recalled from memory (REFERENCES.md): SHA-256("abc")
+    assert hashlib.sha256(b"abc").hexdigest() == (
+        "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+    )
+    assert hashlib.sha256(b"").hexdigest() == (
+        "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"
+    )
+
+
+def test_canonical_json_follows_rfc8785():
+    # RFC 8785 section 3.2.2 example (input and output recalled from memory)
+    source = (
+        '{"numbers": [333333333.33333329, 1E30, 4.50, 2e-3, 0.000000000000000000000000001], '
+        '"string": "\\u20ac$\\u000F\\u000aA\'\\u0042\\u0022\\u005c\\\\\\"\\/", '
+        '"literals": [null, true, false]}'
+    )
+    expected = (
+        '{"literals":[null,true,false],"numbers":[333333333.3333333,1e+30,4.5,0.002,1e-27],'
+        '"string":"€$\\u000f\\nA\'B\\"\\\\\\\\\\"/"}'
+    )
+    assert rfc8785.dumps(json.loads(source)).decode() == expected
+    assert seal_of(json.loads(source)) == hashlib.sha256(expected.encode()).hexdigest()
+
+
+def test_merkle_root_follows_rfc6962():
+    # RFC 6962 section 2.1: MTH({}) = SHA-256(); MTH({d}) = SHA-256(0x00 || d);
+    # MTH(D[n]) = SHA-256(0x01 || MTH(D[0:k]) || MTH(D[k:n])), k the largest power of two < n.
+    a, b, c = b"a", b"b", b"c"
+    leaf = [hashlib.sha256(b"\x00" + x).digest() for x in (a, b, c)]
+    ab = hashlib.sha256(b"\x01" + leaf[0] + leaf[1]).digest()
+    assert merkle_root([]) == hashlib.sha256(b"").hexdigest()
+    assert merkle_root([a]) == leaf[0].hex()
+    assert merkle_root([a, b, c]) == hashlib.sha256(b"\x01" + ab + leaf[2]).hexdigest()
+
+
+def test_a_genuine_record_verifies(signed, signed_pdf):
+    report = verify_pdf(signed_pdf)
+    assert report.ok, report.as_dict()
+    assert report.seal == signed.seal
+    assert report.verdict().startswith("VERIFIED")
+    names = [c.name for c in report.checks]
+    assert names == [
+        "pdf_readable",
+        "signature_valid",
+        "signature_covers_file",
+        "certificate_trusted",
+        "record_attached",
+        "seal_matches",
+        "record_stored",
+        "stored_record_intact",
+        "rows_unchanged",
+        "chain_intact",
+    ]
+
+
+@pytest.mark.parametrize("where", [0.0, 0.001, 0.25, 0.5, 0.75, 0.97, 0.9999])
+def test_flipping_one_byte_anywhere_is_detected(signed_pdf, where):
+    data = bytearray(signed_pdf)
+    position = min(int(len(data) * where), len(data) - 1)
+    data[position] ^= 0x01
+    report = verify_pdf(bytes(data))
+    assert not report.ok, position
+    assert failed(report) in {
+        "pdf_readable",
+        "signature_present",
+        "signature_valid",
+        "signature_covers_file",
+    }, (position, report.as_dict())
+
+
+def test_a_changed_byte_in_the_signature_padding_is_detected(signed_pdf):
+    """The /Contents hex string sits outside the signed byte range; its padding is checked too."""
+    reader = PdfReader(io.BytesIO(signed_pdf))
+    _, _, start2, _ = reader.get_fields()["DailyRecordSignature"]["/V"]["/ByteRange"]
+    padding_at = start2 - 5  # inside the trailing zeros of the hex container
+    assert signed_pdf[padding_at : padding_at + 1] == b"0"
+    for replacement in (b"1", b"A"):
+        data = bytearray(signed_pdf)
+        data[padding_at : padding_at + 1] = replacement
+        report = verify_pdf(bytes(data))
+        assert failed(report) == "signature_valid"
+        assert "container" in report.verdict()
+
+
+def test_the_signature_byte_range_covers_the_whole_file(signed_pdf):
+    reader = PdfReader(io.BytesIO(signed_pdf))
+    field = reader.get_fields()["DailyRecordSignature"]["/V"]
+    start1, _, start2, len2 = field["/ByteRange"]
+    assert start1 == 0 and start2 + len2 == len(signed_pdf)
+
+
+def test_editing_the_attached_json_is_detected(signed, credential):
+    """An insider with the signing key edits a reading and re-signs: the seal no longer matches."""
+    document = json.loads(signed.canonical_json)
+    entry = document["record"]["sheets"][0]["entries"][0]
+    entry["value"] = "pass" if entry["value"] != "pass" else "fail"
+    forged = sign_pdf(
+        render(document, signed.seal), credential, signer_name="x", reason="x", location="x"
+    )
+    report = verify_pdf(forged)
+    assert failed(report) == "seal_matches"
+    assert "edited" in report.verdict()
+
+
+def test_a_pdf_signed_with_another_key_is_not_trusted(signed):
+    outsider = create_self_signed(organisation=OrganisationFactory())
+    known = [signed.credential.certificate_pem]
+    pdf = sign_pdf(
+        render(json.loads(signed.canonical_json), signed.seal),
+        outsider,
+        signer_name="x",
+        reason="x",
+        location="x",
+    )
+    report = verify_pdf(pdf, trusted_pems=known)
+    assert failed(report) == "certificate_trusted"
+
+
+def test_a_well_formed_record_unknown_to_the_database_is_reported(signed, credential):
+    document = json.loads(signed.canonical_json)
+    document["remarks"] = "never stored"
+    seal = seal_of(document)
+    pdf = sign_pdf(render(document, seal), credential, signer_name="x", reason="x", location="x")
+    report = verify_pdf(pdf)
+    assert failed(report) == "record_stored"
+
+
+def test_editing_a_row_behind_a_sealed_record_is_detected(signed, signed_pdf):
+    with connection.cursor() as cursor:
+        cursor.execute(
+            "UPDATE checklists_itementry SET verdict = 'fail' WHERE id = "
+            "(SELECT MIN(id) FROM checklists_itementry)"
+        )
+    report = verify_pdf(signed_pdf)
+    assert failed(report) == "rows_unchanged"
+    assert "entries[0].verdict" in report.verdict()
+
+
+def test_editing_the_stored_canonical_json_is_detected(signed, signed_pdf):
+    with connection.cursor() as cursor:
+        cursor.execute(
+            "UPDATE compliance_dailyrecord SET canonical_json = REPLACE(canonical_json, "
+            "'All drops done.', 'Nothing done.') WHERE id = %s",
+            [signed.pk],
+        )
+    assert failed(verify_pdf(signed_pdf)) == "stored_record_intact"
+    assert verify_chain(signed.site_id).first_break.code == "altered"
+
+
+def _three_days(signed, simple_checklists, operator, supervisor):
+    records = [signed]
+    for days in (1, 2):
+        job = next_day_job(signed.job, simple_checklists, operator, days)
+        records.append(
+            sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+        )
+    return records
+
+
+def test_the_chain_links_each_day_to_the_one_before(
+    signed, simple_checklists, operator, supervisor
+):
+    records = _three_days(signed, simple_checklists, operator, supervisor)
+    assert [r.sequence for r in records] == [1, 2, 3]
+    assert (
+        records[1].previous_seal == records[0].seal and records[2].previous_seal == records[1].seal
+    )
+    assert verify_chain(signed.site_id).ok
+
+
+def test_deleting_a_day_is_detected(signed, simple_checklists, operator, supervisor):
+    records = _three_days(signed, simple_checklists, operator, supervisor)
+    with connection.cursor() as cursor:
+        cursor.execute("DELETE FROM compliance_dailyrecord WHERE id = %s", [records[1].pk])
+    first = verify_chain(signed.site_id).first_break
+    assert (first.code, first.sequence) == ("missing", 3)
+
+
+def test_reordering_days_is_detected(signed, simple_checklists, operator, supervisor):
+    records = _three_days(signed, simple_checklists, operator, supervisor)
+    with connection.cursor() as cursor:
+        cursor.execute(
+            "UPDATE compliance_dailyrecord SET sequence = 99 WHERE id = %s", [records[1].pk]
+        )
+        cursor.execute(
+            "UPDATE compliance_dailyrecord SET sequence = 2 WHERE id = %s", [records[2].pk]
+        )
+        cursor.execute(
+            "UPDATE compliance_dailyrecord SET sequence = 3 WHERE id = %s", [records[1].pk]
+        )
+    first = verify_chain(signed.site_id).first_break
+    assert first.sequence == 2 and first.code == "altered"
+
+
+def test_an_export_verifies_offline(
+    signed, simple_checklists, operator, supervisor, tmp_path, settings
+):
+    settings.MEDIA_ROOT = tmp_path
+    records = _three_days(signed, simple_checklists, operator, supervisor)
+    start, end = records[0].job.date, records[-1].job.date
+    data = build_export(signed.site, start, end)
+    report = verify_export(data)
+    assert report.ok, report.as_dict()
+    assert sum(c.name.startswith("file:") for c in report.checks) == 3
+    # the same check from the command line, with no database rows at all
+    path = tmp_path / "export.zip"
+    path.write_bytes(data)
+    from compliance.models import DailyRecord
+
+    with connection.cursor() as cursor:
+        cursor.execute("DELETE FROM compliance_recordpdf")
+        cursor.execute("DELETE FROM compliance_dailyrecord")
+    assert not DailyRecord.objects.exists()
+    assert verify_export(path.read_bytes()).ok
+
+
+def _rezip(data: bytes, change) -> bytes:
+    source = zipfile.ZipFile(io.BytesIO(data))
+    files = {name: source.read(name) for name in source.namelist()}
+    change(files)
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w") as archive:
+        for name, content in files.items():
+            archive.writestr(name, content)
+    return out.getvalue()
+
+
+def test_a_tampered_export_is_detected(
+    signed, simple_checklists, operator, supervisor, tmp_path, settings
+):
+    settings.MEDIA_ROOT = tmp_path
+    records = _three_days(signed, simple_checklists, operator, supervisor)
+    data = build_export(signed.site, records[0].job.date, records[-1].job.date)
+
+    def drop_middle(files):
+        manifest = json.loads(files["manifest.json"])
+        manifest["records"].pop(1)
+        manifest["merkle_root"] = merkle_root(
+            [bytes.fromhex(e["seal"]) for e in manifest["records"]]
+        )
+        files["manifest.json"] = json.dumps(manifest).encode()
+
+    def drop_only_entry(files):
+        manifest = json.loads(files["manifest.json"])
+        manifest["records"].pop(1)
+        files["manifest.json"] = json.dumps(manifest).encode()
+
+    def swap_pdf(files):
+        names = sorted(n for n in files if n.endswith(".pdf"))
+        files[names[0]], files[names[1]] = files[names[1]], files[names[0]]
+
+    assert failed(verify_export(_rezip(data, drop_only_entry))) == "merkle_root"
+    assert failed(verify_export(_rezip(data, drop_middle))) == "chain_intact"
+    assert failed(verify_export(_rezip(data, swap_pdf))).startswith("file:")
+
+
+def test_pdf_reads_back_with_general_purpose_tools(signed, signed_pdf, tmp_path):
+    reader = PdfReader(io.BytesIO(signed_pdf))
+    text = "\n".join(page.extract_text() for page in reader.pages)
+    assert "Daily record" in text and signed.job.site.name in text
+    assert signed.seal in text.replace("\n", "")
+    assert "does not replace" in text
+    assert f"Page 1 of {len(reader.pages)}" in text
+    attached = reader.attachments[ATTACHMENT_NAME][0]
+    assert hashlib.sha256(attached).hexdigest() == signed.seal
+    path = tmp_path / "record.pdf"
+    path.write_bytes(signed_pdf)
+    if shutil.which("pdftoppm") is None:
+        pytest.fail("pdftoppm (poppler-utils) is missing: make test installs it")
+    subprocess.run(
+        ["pdftoppm", "-r", "50", "-png", "-f", "1", "-l", "1", str(path), str(tmp_path / "page")],
+        check=True,
+    )
+    with Image.open(next(tmp_path.glob("page*.png"))) as page:
+        assert page.width > 300 and page.height > 400
+        low, high = page.convert("L").getextrema()
+        assert high - low > 100  # ink on paper, not a blank page
+
+
+def test_pdfsig_an_independent_reader_accepts_the_signature(signed_pdf, tmp_path):
+    if shutil.which("pdfsig") is None:
+        pytest.fail("pdfsig (poppler-utils) is missing: make test installs it")
+    path = tmp_path / "record.pdf"
+    path.write_bytes(signed_pdf)
+    out = subprocess.run(["pdfsig", str(path)], capture_output=True, text=True).stdout
+    assert "Signature is Valid." in out and "Total document signed" in out
+    tampered = bytearray(signed_pdf)
+    tampered[len(tampered) // 3] ^= 0x01
+    path.write_bytes(bytes(tampered))
+    out = subprocess.run(["pdfsig", str(path)], capture_output=True, text=True).stdout
+    assert "Signature is Valid." not in out
+
+
+def test_verification_upload_and_command(signed, signed_pdf, tmp_path, capsys):
+    from django.core.files.uploadedfile import SimpleUploadedFile
+    from django.core.management import call_command
+
+    from tests.factories import UserFactory
+
+    auditor = UserFactory(organisation=signed.organisation, role="auditor")
+    client = client_for(auditor)
+    upload = SimpleUploadedFile("r.pdf", signed_pdf, content_type="application/pdf")
+    body = client.post(reverse("verify"), {"file": upload}, format="multipart").json()
+    assert body["ok"] is True and body["seal"] == signed.seal
+    broken = bytearray(signed_pdf)
+    broken[len(broken) // 2] ^= 0xFF
+    upload = SimpleUploadedFile("r.pdf", bytes(broken), content_type="application/pdf")
+    body = client.post(reverse("verify"), {"file": upload}, format="multipart").json()
+    assert body["ok"] is False and body["verdict"].startswith("NOT VERIFIED")
+    path = tmp_path / "r.pdf"
+    path.write_bytes(signed_pdf)
+    call_command("verify-record", str(path))
+    assert "VERIFIED" in capsys.readouterr().out
+    path.write_bytes(bytes(broken))
+    with pytest.raises(SystemExit) as exited:
+        call_command("verify-record", str(path))
+    assert exited.value.code == 1
+
+
+def test_auditor_downloads_pdf_and_export(signed, tmp_path, settings):
+    from tests.factories import UserFactory
+
+    settings.MEDIA_ROOT = tmp_path
+    auditor = UserFactory(organisation=signed.organisation, role="auditor")
+    client = client_for(auditor)
+    response = client.get(reverse("record-pdf", args=[signed.pk]))
+    assert response.status_code == 200 and response["Content-Type"] == "application/pdf"
+    pdf = b"".join(response.streaming_content)
+    assert verify_pdf(pdf).ok
+    assert ensure_pdf(signed).sha256 == hashlib.sha256(pdf).hexdigest()
+    day = signed.job.date.isoformat()
+    response = client.get(
+        reverse("record-export"), {"site": signed.site_id, "start": day, "end": day}
+    )
+    assert response.status_code == 200
+    assert verify_export(response.content).ok
+    bad = client.get(
+        reverse("record-export"), {"site": signed.site_id, "start": "2026-13-01", "end": day}
+    )
+    assert bad.status_code == 400 and "start" in bad.json()
