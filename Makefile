@@ -38,4 +38,5 @@ lint: $(VENV)/.installed
 	$(BIN)/mypy
 
 test: setup system-packages lint
+	cd frontend && npm test --silent
 	$(BIN)/python -m pytest $(PYTEST_ARGS)

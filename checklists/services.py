@@ -266,6 +266,10 @@ def record_sheet(
                 ]
             )
             apply_sheet_outcome(sheet=sheet, outcome=outcome, by=by)
+            if subject_kind == "anchor":
+                from compliance.anchor_log import log_pre_use_check
+
+                log_pre_use_check(sheet)
     except IntegrityError:
         # A concurrent retry of the same batch won the race: return its copy.
         existing = CheckSheet.objects.filter(client_uuid=client_uuid).first()

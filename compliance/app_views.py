@@ -3,9 +3,11 @@
 from pathlib import Path
 
 from django.conf import settings
+from django.contrib.auth.decorators import login_required
 from django.http import FileResponse, Http404, HttpRequest, HttpResponse
+from django.shortcuts import render
 from django.views.decorators.csrf import ensure_csrf_cookie
-from django.views.decorators.http import require_GET
+from django.views.decorators.http import require_GET, require_http_methods
 
 APP_DIR = Path(settings.BASE_DIR) / "compliance" / "static" / "app"
 
@@ -36,3 +38,28 @@ def service_worker(request: HttpRequest) -> HttpResponse:
 @require_GET
 def manifest(request: HttpRequest) -> HttpResponse:
     return _file("manifest.webmanifest", "application/manifest+json")
+
+
+@login_required
+@require_http_methods(["GET", "POST"])
+def verify_page(request: HttpRequest) -> HttpResponse:
+    """A page where an auditor uploads a record PDF or an export and reads the verdict."""
+    from compliance.api.records import MAX_UPLOAD
+    from compliance.verification import verify_export, verify_pdf
+
+    context: dict[str, object] = {}
+    if request.method == "POST":
+        upload = request.FILES.get("file")
+        if upload is None:
+            context["errors"] = "Choose a file to check."
+        elif upload.size is None or upload.size > MAX_UPLOAD:
+            context["errors"] = "The file is larger than 50 MB."
+        else:
+            data = upload.read()
+            report = (
+                verify_export(data)
+                if data[:2] == b"PK"
+                else verify_pdf(data, name=upload.name or "")
+            )
+            context["report"] = report.as_dict()
+    return render(request, "parapet/verify.html", context)

@@ -5,13 +5,10 @@ the signature manifestation (printed name, role, meaning, time) and the previous
 so the seal binds the signature to this record and to its place in the site's chain.
 """
 
-import datetime as dt
-import hashlib
 import json
 from dataclasses import dataclass, field
 from typing import Any
 
-import rfc8785
 from django.db import transaction
 from django.db.models import Max, Prefetch
 from django.utils import timezone
@@ -28,6 +25,7 @@ from compliance.models import (
     JobTransition,
     User,
 )
+from compliance.sealing import ChainBreak, canonical_bytes, check_links, seal_of, utc
 from compliance.selectors import drops_of
 from compliance.signing import active_credential, sign_seal
 
@@ -41,20 +39,6 @@ MEANINGS = {
     "reviewed_stopped": "Reviewed: work was stopped; the open holds are shown in this record.",
     "reviewed_exceptions": "Reviewed with exceptions: see the remarks in this record.",
 }
-
-
-def utc(value: dt.datetime | None) -> str | None:
-    if value is None:
-        return None
-    return value.astimezone(dt.UTC).isoformat().replace("+00:00", "Z")
-
-
-def canonical_bytes(document: dict[str, Any]) -> bytes:
-    return rfc8785.dumps(document)
-
-
-def seal_of(document: dict[str, Any]) -> str:
-    return hashlib.sha256(canonical_bytes(document)).hexdigest()
 
 
 def _entry(entry: ItemEntry) -> dict[str, Any]:
@@ -409,13 +393,6 @@ def add_addendum(*, record: DailyRecord, by: User, password: str, text: str) -> 
 
 
 @dataclass
-class ChainBreak:
-    sequence: int
-    code: str
-    message: str
-
-
-@dataclass
 class ChainReport:
     site_id: int
     records: int
@@ -428,62 +405,6 @@ class ChainReport:
     @property
     def first_break(self) -> ChainBreak | None:
         return self.breaks[0] if self.breaks else None
-
-
-def check_links(rows: list[dict[str, Any]]) -> list[ChainBreak]:
-    """Check a chain given as [{sequence, seal, previous_seal, canonical_json?}] in order.
-
-    Used on the database and on an export's manifest alike.
-    """
-    breaks: list[ChainBreak] = []
-    expected_previous = ""
-    for position, row in enumerate(rows, start=1):
-        seq = row["sequence"]
-        if seq != position:
-            kind = "missing" if seq > position else "reordered"
-            breaks.append(
-                ChainBreak(
-                    seq,
-                    kind,
-                    f"Record {position} of the chain is {kind}: found number {seq} in its place.",
-                )
-            )
-            return breaks
-        text = row.get("canonical_json")
-        if text is not None:
-            if hashlib.sha256(text.encode("utf-8")).hexdigest() != row["seal"]:
-                breaks.append(
-                    ChainBreak(
-                        seq,
-                        "altered",
-                        f"Record {seq} was altered: its content no longer hashes to its seal.",
-                    )
-                )
-                return breaks
-            doc = json.loads(text)
-            if doc.get("sequence") != seq or (doc.get("previous_seal") or "") != (
-                row["previous_seal"] or ""
-            ):
-                breaks.append(
-                    ChainBreak(
-                        seq,
-                        "altered",
-                        f"Record {seq}'s chain fields differ from its sealed content.",
-                    )
-                )
-                return breaks
-        if (row["previous_seal"] or "") != expected_previous:
-            breaks.append(
-                ChainBreak(
-                    seq,
-                    "broken_link",
-                    f"Record {seq} does not follow record {seq - 1}: "
-                    "the previous seal does not match.",
-                )
-            )
-            return breaks
-        expected_previous = row["seal"]
-    return breaks
 
 
 def verify_chain(site_id: int) -> ChainReport:

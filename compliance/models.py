@@ -34,6 +34,7 @@ class Role(models.TextChoices):
     SUPERVISOR = "supervisor", "Supervisor (competent person)"
     AUDITOR = "auditor", "Auditor (read only)"
     ADMIN = "admin", "Organisation admin"
+    PROPERTY_MANAGER = "property_manager", "Property manager (building owner)"
 
 
 class User(AbstractUser):
@@ -56,6 +57,11 @@ class User(AbstractUser):
     def can_supervise(self) -> bool:
         return self.role in (Role.SUPERVISOR, Role.ADMIN)
 
+    @property
+    def can_keep_anchor_log(self) -> bool:
+        """Supervisors, admins and property managers sign anchor log entries."""
+        return self.role in (Role.SUPERVISOR, Role.ADMIN, Role.PROPERTY_MANAGER)
+
 
 class JurisdictionProfile(models.Model):
     """Thresholds and cautions of one jurisdiction, loaded from fixtures/profiles."""
@@ -74,6 +80,8 @@ class JurisdictionProfile(models.Model):
 
 
 class Site(models.Model):
+    """A building; it belongs to its owner (or to the contractor that registered it)."""
+
     organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="sites")
     name = models.CharField(max_length=200)
     address = models.CharField(max_length=300, blank=True)
@@ -102,6 +110,29 @@ class Site(models.Model):
 
     def __str__(self) -> str:
         return self.name
+
+
+class SiteAccess(AppendOnlyModel):
+    """The owner lets a contractor work at the site, and see its anchors and log, for a period."""
+
+    site = models.ForeignKey(Site, on_delete=models.PROTECT, related_name="grants")
+    contractor = models.ForeignKey(
+        Organisation, on_delete=models.PROTECT, related_name="site_grants"
+    )
+    starts_on = models.DateField()
+    ends_on = models.DateField()
+    granted_by = models.ForeignKey("User", on_delete=models.PROTECT, related_name="+")
+    granted_at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        constraints = [
+            models.CheckConstraint(
+                condition=Q(ends_on__gte=models.F("starts_on")), name="grant_ends_after_start"
+            ),
+        ]
+
+    def covers(self, day: dt.date) -> bool:
+        return self.starts_on <= day <= self.ends_on
 
 
 class Anchor(models.Model):
@@ -294,7 +325,18 @@ class Hold(AppendOnlyModel):
     item_key = models.CharField(max_length=80)
     reason = models.TextField()
     sheet = models.ForeignKey(
-        "checklists.CheckSheet", on_delete=models.PROTECT, related_name="holds_opened"
+        "checklists.CheckSheet",
+        null=True,
+        blank=True,
+        on_delete=models.PROTECT,
+        related_name="holds_opened",
+    )
+    log_entry = models.ForeignKey(
+        "compliance.AnchorLogEntry",
+        null=True,
+        blank=True,
+        on_delete=models.PROTECT,
+        related_name="holds_opened",
     )
     opened_at = models.DateTimeField(auto_now_add=True)
 
@@ -307,7 +349,18 @@ class HoldClearance(AppendOnlyModel):
 
     hold = models.OneToOneField(Hold, on_delete=models.PROTECT, related_name="clearance")
     sheet = models.ForeignKey(
-        "checklists.CheckSheet", on_delete=models.PROTECT, related_name="holds_cleared"
+        "checklists.CheckSheet",
+        null=True,
+        blank=True,
+        on_delete=models.PROTECT,
+        related_name="holds_cleared",
+    )
+    log_entry = models.ForeignKey(
+        "compliance.AnchorLogEntry",
+        null=True,
+        blank=True,
+        on_delete=models.PROTECT,
+        related_name="holds_cleared",
     )
     by = models.ForeignKey(User, null=True, blank=True, on_delete=models.PROTECT, related_name="+")
     at = models.DateTimeField(auto_now_add=True)
@@ -441,3 +494,52 @@ class Notice(AppendOnlyModel):
         constraints = [
             models.UniqueConstraint(fields=["kind", "subject", "day"], name="notice_once_a_day"),
         ]
+
+
+class AnchorLogEntry(AppendOnlyModel):
+    """One entry of the building's anchor log book: signed by who made it, chained per site."""
+
+    class Kind(models.TextChoices):
+        PERIODIC_INSPECTION = "periodic_inspection", "Periodic inspection"
+        LOAD_TEST = "load_test", "Load test"
+        REPAIR = "repair", "Repair"
+        MODIFICATION = "modification", "Modification"
+        INSTALLATION = "installation", "Installation"
+        REMOVED = "removed_from_service", "Removed from service"
+        RETURNED = "returned_to_service", "Returned to service"
+        PRE_USE = "pre_use_check", "Pre-use check (from a contractor's sheet)"
+
+    class Result(models.TextChoices):
+        PASS = "pass", "Pass"
+        FAIL = "fail", "Fail"
+        NONE = "none", "No result"
+
+    site = models.ForeignKey(Site, on_delete=models.PROTECT, related_name="anchor_log")
+    anchor = models.ForeignKey(Anchor, on_delete=models.PROTECT, related_name="log")
+    kind = models.CharField(max_length=30, choices=Kind.choices)
+    result = models.CharField(max_length=10, choices=Result.choices, default=Result.NONE)
+    performed_on = models.DateField()
+    performed_by = models.CharField(max_length=200, help_text="Printed name of who did the work.")
+    performed_by_company = models.CharField(max_length=200, blank=True)
+    details = models.TextField()
+    sheet = models.ForeignKey(
+        "checklists.CheckSheet", null=True, blank=True, on_delete=models.PROTECT, related_name="+"
+    )
+    organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="+")
+    recorded_by = models.ForeignKey(User, on_delete=models.PROTECT, related_name="+")
+    sequence = models.PositiveIntegerField()
+    previous_seal = models.CharField(max_length=64, blank=True)
+    canonical_json = models.TextField()
+    seal = models.CharField(max_length=64, unique=True)
+    seal_signature = models.TextField(blank=True)
+    credential = models.ForeignKey(
+        SigningCredential, null=True, blank=True, on_delete=models.PROTECT, related_name="+"
+    )
+    meaning = models.CharField(max_length=200)
+    signed_at = models.DateTimeField()
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(fields=["site", "sequence"], name="log_sequence_unique"),
+        ]
+        ordering = ["site_id", "sequence"]

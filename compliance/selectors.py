@@ -5,8 +5,19 @@ from dataclasses import dataclass
 
 from django.db.models import Prefetch, QuerySet
 
+from compliance.access import can_work_at
+from compliance.anchor_log import anchor_status
 from compliance.errors import Reason
-from compliance.models import Anchor, AnchorCertification, Drop, Equipment, Hold, Job, User
+from compliance.models import (
+    Anchor,
+    AnchorCertification,
+    AnchorLogEntry,
+    Drop,
+    Equipment,
+    Hold,
+    Job,
+    User,
+)
 
 
 @dataclass(frozen=True)
@@ -62,6 +73,12 @@ class Requirement:
         }
 
 
+def _status_entries() -> QuerySet[AnchorLogEntry]:
+    return AnchorLogEntry.objects.filter(
+        kind__in=["removed_from_service", "returned_to_service", "periodic_inspection", "load_test"]
+    ).only("id", "anchor_id", "kind", "result", "performed_on", "details", "sequence")
+
+
 def drops_of(job: Job) -> list[Drop]:
     return list(
         Drop.objects.filter(job=job)
@@ -69,6 +86,8 @@ def drops_of(job: Job) -> list[Drop]:
         .prefetch_related(
             Prefetch("anchor__certifications", queryset=AnchorCertification.objects.all()),
             Prefetch("safety_anchor__certifications", queryset=AnchorCertification.objects.all()),
+            Prefetch("anchor__log", queryset=_status_entries()),
+            Prefetch("safety_anchor__log", queryset=_status_entries()),
         )
     )
 
@@ -127,6 +146,11 @@ def job_blockers(
         reasons.append(Reason("open_hold", f"Stop work: {hold.reason}", hold.requirement))
     profile = job.site.profile
     min_capacity = profile.threshold("min_anchor_capacity_kn")
+    interval_days = int(profile.threshold("certification_interval_days"))
+    if not can_work_at(job.organisation_id, job.site, job.date):
+        reasons.append(
+            Reason("no_site_access", "The building owner's access grant does not cover this day.")
+        )
     seen: set[int] = set()
     for drop in drops:
         for anchor in (drop.anchor, drop.safety_anchor):
@@ -158,6 +182,25 @@ def job_blockers(
                         "anchor_capacity_low",
                         f"Anchor {anchor.label} is rated {cert.rated_capacity_kn:g} kN, below the "
                         f"profile's minimum of {min_capacity:g} kN.",
+                        ref,
+                    )
+                )
+            status = anchor_status(anchor, interval_days)
+            if not status.in_service:
+                reasons.append(
+                    Reason(
+                        "anchor_out_of_service",
+                        f"Anchor {anchor.label} is out of service since "
+                        f"{status.removed_on:%Y-%m-%d}: {status.removed_reason}",
+                        ref,
+                    )
+                )
+            elif cert is not None and cert.is_valid_on(job.date) and status.overdue_on(job.date):
+                reasons.append(
+                    Reason(
+                        "anchor_inspection_overdue",
+                        f"Anchor {anchor.label}'s periodic inspection was due on "
+                        f"{status.inspection_due:%Y-%m-%d}.",
                         ref,
                     )
                 )

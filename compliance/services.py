@@ -45,10 +45,18 @@ def _locked(job: Job) -> Job:
 
 
 def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
+    from django.core.exceptions import ValidationError
+
+    from compliance.access import can_work_at
+
     _require_writer(by)
+    if not can_work_at(by.organisation_id, site, date):
+        raise ValidationError(
+            {"site": "Your organisation has no access to this site on that date."}
+        )
     with transaction.atomic():
         job = Job(
-            organisation_id=site.organisation_id,
+            organisation_id=by.organisation_id,
             site=site,
             date=date,
             supervisor=supervisor,
@@ -181,8 +189,10 @@ def refresh_readiness(*, job: Job, by: User | None) -> Job:
 
 def record_certification(*, anchor: Anchor, by: User, **fields: Any) -> AnchorCertification:
     _require_writer(by)
-    if not by.can_supervise:
-        raise NotPermitted("Only a supervisor or an admin records anchor certifications.")
+    if not by.can_keep_anchor_log:
+        raise NotPermitted(
+            "Only a supervisor, an admin or a property manager records anchor certifications."
+        )
     with transaction.atomic():
         cert = AnchorCertification(anchor=anchor, recorded_by=by, **fields)
         cert.full_clean()

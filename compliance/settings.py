@@ -44,6 +44,7 @@ MIDDLEWARE = [
     "django.middleware.clickjacking.XFrameOptionsMiddleware",
 ]
 
+LOGIN_URL = "/admin/login/"
 ROOT_URLCONF = "compliance.urls"
 WSGI_APPLICATION = "compliance.wsgi.application"
 

@@ -16,6 +16,7 @@ from django.utils.dateparse import parse_datetime
 from checklists.models import ChecklistVersion
 from checklists.services import record_sheet
 from compliance import services
+from compliance.access import anchors_visible_to
 from compliance.errors import DomainError, InvalidTransition, JobBlocked, NotPermitted
 from compliance.models import Anchor, Drop, DropLog, Equipment, Job, SyncReceipt, User
 
@@ -70,9 +71,7 @@ def _apply_sheet(user: User, data: dict[str, Any], client_uuid: uuid.UUID) -> di
     )
     if version is None:
         raise RecordRejected({"version": ["Required."]})
-    anchor = _get(
-        Anchor, Anchor.objects.filter(site__organisation_id=org), data.get("anchor"), "anchor"
-    )
+    anchor = _get(Anchor, anchors_visible_to(org), data.get("anchor"), "anchor")
     equipment = _get(
         Equipment, Equipment.objects.filter(organisation_id=org), data.get("equipment"), "equipment"
     )

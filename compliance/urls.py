@@ -8,6 +8,7 @@ urlpatterns = [
     path("admin/", admin.site.urls),
     path("api/v1/", include("compliance.api.urls")),
     path("api/schema/", SpectacularAPIView.as_view(), name="schema"),
+    path("verify/", app_views.verify_page, name="verify-page"),
     path("sw.js", app_views.service_worker, name="service-worker"),
     path("manifest.webmanifest", app_views.manifest, name="manifest"),
     path("", app_views.app_shell, name="app"),

@@ -30,5 +30,5 @@ class SupervisorWrites(OrganisationMember):
             return False
         if request.method in SAFE_METHODS:
             return True
-        self.message = "Only a supervisor or an admin can change this register."
-        return bool(request.user.can_supervise)
+        self.message = "Only a supervisor, an admin or a property manager can change this register."
+        return bool(request.user.can_keep_anchor_log)

@@ -6,6 +6,7 @@ from typing import Any
 from rest_framework import serializers
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
+from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -51,7 +52,16 @@ class SiteSerializer(serializers.ModelSerializer):
 
     class Meta:
         model = Site
-        fields = ["id", "name", "address", "height_m", "storeys", "profile", "roof_outline"]
+        fields = [
+            "id",
+            "name",
+            "address",
+            "height_m",
+            "storeys",
+            "profile",
+            "terrain",
+            "roof_outline",
+        ]
 
 
 class CertificationSerializer(serializers.ModelSerializer):
@@ -141,7 +151,7 @@ class DropSerializer(serializers.ModelSerializer):
         for name in ("robot", "tether", "safety_line", "hose"):
             self.fields[name].queryset = Equipment.objects.filter(organisation_id=org)
         for name in ("anchor", "safety_anchor"):
-            self.fields[name].queryset = Anchor.objects.filter(site__organisation_id=org)
+            self.fields[name].queryset = anchors_visible_to(org)
 
 
 class TransitionSerializer(serializers.ModelSerializer):
@@ -198,7 +208,7 @@ class JobSerializer(serializers.ModelSerializer):
         super().__init__(*args, **kwargs)
         request = self.context.get("request")
         org = getattr(getattr(request, "user", None), "organisation_id", None)
-        self.fields["site"].queryset = Site.objects.filter(organisation_id=org)
+        self.fields["site"].queryset = sites_visible_to(org)
         self.fields["supervisor"].queryset = User.objects.filter(
             organisation_id=org, role__in=["supervisor", "admin"]
         )
@@ -275,7 +285,7 @@ class SheetInputSerializer(serializers.Serializer):
         self.fields["version"].queryset = ChecklistVersion.objects.filter(
             checklist__in=visible_checklists(org)
         ).select_related("checklist")
-        self.fields["anchor"].queryset = Anchor.objects.filter(site__organisation_id=org)
+        self.fields["anchor"].queryset = anchors_visible_to(org)
         self.fields["equipment"].queryset = Equipment.objects.filter(organisation_id=org)
 
 

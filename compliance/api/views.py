@@ -25,6 +25,7 @@ from checklists import services as checklist_services
 from checklists.models import Checklist, ChecklistVersion
 from checklists.selectors import sheets_for, visible_checklists
 from compliance import services
+from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
@@ -211,11 +212,7 @@ class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelView
     permission_classes = [SupervisorWrites]
 
     def get_queryset(self) -> QuerySet[Site]:
-        return (
-            Site.objects.filter(organisation_id=self.org_id)
-            .select_related("profile")
-            .order_by("name")
-        )
+        return sites_visible_to(self.org_id).select_related("profile").order_by("name")
 
     def perform_create(self, serializer: s.SiteSerializer) -> None:
         serializer.save(organisation_id=self.org_id)
@@ -226,7 +223,7 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
     permission_classes = [SupervisorWrites]
 
     def get_queryset(self) -> QuerySet[Anchor]:
-        qs = Anchor.objects.filter(site__organisation_id=self.org_id).prefetch_related(
+        qs = anchors_visible_to(self.org_id).prefetch_related(
             Prefetch(
                 "certifications", queryset=AnchorCertification.objects.select_related("recorded_by")
             )

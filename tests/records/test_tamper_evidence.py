@@ -371,3 +371,21 @@ def test_auditor_downloads_pdf_and_export(signed, tmp_path, settings):
         reverse("record-export"), {"site": signed.site_id, "start": "2026-13-01", "end": day}
     )
     assert bad.status_code == 400 and "start" in bad.json()
+
+
+def test_the_auditor_page_shows_the_verdict(signed, signed_pdf, client):
+    from django.core.files.uploadedfile import SimpleUploadedFile
+
+    from tests.factories import UserFactory
+
+    assert client.get("/verify/").status_code == 302  # sign in first
+    client.force_login(UserFactory(organisation=signed.organisation, role="auditor"))
+    page = client.get("/verify/")
+    assert page.status_code == 200 and b"does not" in page.content
+    upload = SimpleUploadedFile("record.pdf", signed_pdf, content_type="application/pdf")
+    page = client.post("/verify/", {"file": upload})
+    assert b"VERIFIED" in page.content and signed.seal.encode() in page.content
+    broken = bytearray(signed_pdf)
+    broken[100] ^= 1
+    page = client.post("/verify/", {"file": SimpleUploadedFile("r.pdf", bytes(broken))})
+    assert b"NOT VERIFIED" in page.content

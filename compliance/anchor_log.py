@@ -1,0 +1,287 @@
+"""The building's anchor log book: signed, append-only entries chained per site.
+
+Inspections, load tests, repairs, modifications, installation, removal from and return to
+service are signed by the person who made them (password re-entered, as for daily records).
+A contractor's pre-use check flows in from its anchor sheet, sealed and signed with the
+contractor's key when it has one. Removing an anchor from service holds every open job that
+plans to use it; returning it to service clears those holds.
+"""
+
+import datetime as dt
+import json
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any
+
+from django.db import transaction
+from django.utils import timezone
+
+from compliance.access import can_work_at
+from compliance.errors import InvalidTransition, NotPermitted
+from compliance.models import (
+    OPEN_STATES,
+    Anchor,
+    AnchorLogEntry,
+    Hold,
+    HoldClearance,
+    Job,
+    JobState,
+    SigningCredential,
+    User,
+)
+from compliance.sealing import canonical_bytes, check_links, seal_of, utc
+from compliance.signing import active_credential, sign_seal
+
+if TYPE_CHECKING:
+    from checklists.models import CheckSheet
+
+FORMAT = "parapet.anchor-log-entry/1"
+MEANING = "I made or witnessed the work recorded here and its result is as stated."
+PRE_USE_MEANING = "Pre-use check recorded from the contractor's pre-start check sheet."
+SIGNED_KINDS = [k for k in AnchorLogEntry.Kind if k != AnchorLogEntry.Kind.PRE_USE]
+INSPECTION_KINDS = (AnchorLogEntry.Kind.PERIODIC_INSPECTION, AnchorLogEntry.Kind.LOAD_TEST)
+
+
+def status_requirement(anchor: Anchor) -> str:
+    return f"anchor-status@anchor:{anchor.pk}"
+
+
+@dataclass(frozen=True)
+class AnchorStatus:
+    in_service: bool
+    removed_on: dt.date | None
+    removed_reason: str
+    last_inspection: dt.date | None
+    inspection_due: dt.date | None
+
+    def overdue_on(self, day: dt.date) -> bool:
+        return self.inspection_due is not None and self.inspection_due < day
+
+
+def anchor_status(anchor: Anchor, interval_days: int) -> AnchorStatus:
+    """From the anchor's prefetched log and certifications."""
+    entries = sorted(anchor.log.all(), key=lambda e: e.sequence)
+    in_service, removed_on, reason = True, None, ""
+    for entry in entries:
+        if entry.kind == AnchorLogEntry.Kind.REMOVED:
+            in_service, removed_on, reason = False, entry.performed_on, entry.details
+        elif entry.kind == AnchorLogEntry.Kind.RETURNED:
+            in_service, removed_on, reason = True, None, ""
+    dates = [c.certified_on for c in anchor.certifications.all()]
+    dates += [
+        e.performed_on
+        for e in entries
+        if e.kind in INSPECTION_KINDS and e.result == AnchorLogEntry.Result.PASS
+    ]
+    last = max(dates) if dates else None
+    due = last + dt.timedelta(days=interval_days) if last else None
+    return AnchorStatus(in_service, removed_on, reason, last, due)
+
+
+def _next_position(site_id: int) -> tuple[int, str]:
+    last = (
+        AnchorLogEntry.objects.select_for_update()
+        .filter(site_id=site_id)
+        .order_by("-sequence")
+        .values_list("sequence", "seal")
+        .first()
+    )
+    return (1, "") if last is None else (last[0] + 1, last[1])
+
+
+def _create(
+    *,
+    anchor: Anchor,
+    by: User,
+    kind: str,
+    result: str,
+    performed_on: dt.date,
+    performed_by: str,
+    performed_by_company: str,
+    details: str,
+    credential: SigningCredential | None,
+    meaning: str,
+    method: str,
+    sheet: "CheckSheet | None" = None,
+) -> AnchorLogEntry:
+    sequence, previous = _next_position(anchor.site_id)
+    signed_at = timezone.now()
+    document = {
+        "format": FORMAT,
+        "sequence": sequence,
+        "previous_seal": previous or None,
+        "site": {"id": anchor.site_id, "name": anchor.site.name},
+        "anchor": {"id": anchor.pk, "label": anchor.label},
+        "kind": kind,
+        "result": result,
+        "performed_on": performed_on.isoformat(),
+        "performed_by": performed_by,
+        "performed_by_company": performed_by_company,
+        "details": details,
+        "sheet": None if sheet is None else {"id": sheet.pk, "client_uuid": str(sheet.client_uuid)},
+        "signature": {
+            "name": by.display_name,
+            "username": by.username,
+            "role": by.get_role_display(),
+            "organisation": by.organisation.name if by.organisation else None,
+            "meaning": meaning,
+            "signed_at": utc(signed_at),
+            "method": method,
+            "certificate_sha256": credential.fingerprint_sha256 if credential else None,
+        },
+    }
+    seal = seal_of(document)
+    return AnchorLogEntry.objects.create(
+        site_id=anchor.site_id,
+        anchor=anchor,
+        kind=kind,
+        result=result,
+        performed_on=performed_on,
+        performed_by=performed_by,
+        performed_by_company=performed_by_company,
+        details=details,
+        sheet=sheet,
+        organisation_id=by.organisation_id,
+        recorded_by=by,
+        sequence=sequence,
+        previous_seal=previous,
+        canonical_json=canonical_bytes(document).decode("utf-8"),
+        seal=seal,
+        seal_signature=sign_seal(seal, credential) if credential else "",
+        credential=credential,
+        meaning=meaning,
+        signed_at=signed_at,
+    )
+
+
+def record_entry(
+    *,
+    anchor: Anchor,
+    by: User,
+    password: str,
+    kind: str,
+    details: str,
+    performed_on: dt.date,
+    performed_by: str = "",
+    performed_by_company: str = "",
+    result: str = AnchorLogEntry.Result.NONE,
+) -> AnchorLogEntry:
+    """Sign an entry into the site's log book; the signer re-enters their password."""
+    if not by.can_keep_anchor_log:
+        raise NotPermitted("Only a supervisor, an admin or a property manager signs log entries.")
+    if not password or not by.check_password(password):
+        raise NotPermitted("Re-enter your password to sign; the one given is not right.")
+    if kind not in SIGNED_KINDS:
+        raise InvalidTransition(f"Kind is one of: {', '.join(SIGNED_KINDS)}.")
+    if not can_work_at(by.organisation_id, anchor.site, timezone.localdate()):
+        raise NotPermitted("Unknown anchor.")
+    if not details.strip():
+        raise InvalidTransition("Say what was done and found.")
+    if performed_on > timezone.localdate():
+        raise InvalidTransition("Work cannot be recorded for a future date.")
+    credential = active_credential(by.organisation_id)
+    with transaction.atomic():
+        entry = _create(
+            anchor=anchor,
+            by=by,
+            kind=kind,
+            result=result,
+            performed_on=performed_on,
+            performed_by=performed_by or by.display_name,
+            performed_by_company=performed_by_company,
+            details=details,
+            credential=credential,
+            meaning=MEANING,
+            method="user id and password re-entered at the moment of signing",
+        )
+        if kind == AnchorLogEntry.Kind.REMOVED:
+            _hold_jobs_using(anchor, entry, by)
+        elif kind == AnchorLogEntry.Kind.RETURNED:
+            _clear_holds_of(anchor, entry, by)
+    return entry
+
+
+def log_pre_use_check(sheet: "CheckSheet") -> AnchorLogEntry:
+    """Copy a contractor's anchor pre-use sheet into the building's log book."""
+    assert sheet.anchor is not None
+    failed = [e for e in sheet.entries.all() if e.verdict == "fail"]
+    details = (
+        "All items passed."
+        if not failed
+        else "Failed: "
+        + "; ".join(f"{e.item_key}{' (' + e.message + ')' if e.message else ''}" for e in failed)
+    )
+    credential = SigningCredential.objects.filter(
+        organisation_id=sheet.filled_by.organisation_id, active=True
+    ).first()
+    return _create(
+        anchor=sheet.anchor,
+        by=sheet.filled_by,
+        kind=AnchorLogEntry.Kind.PRE_USE,
+        result=AnchorLogEntry.Result.FAIL
+        if sheet.verdict == "fail"
+        else AnchorLogEntry.Result.PASS,
+        performed_on=sheet.job.date,
+        performed_by=sheet.filled_by.display_name,
+        performed_by_company=sheet.filled_by.organisation.name
+        if sheet.filled_by.organisation
+        else "",
+        details=details,
+        credential=credential,
+        meaning=PRE_USE_MEANING,
+        method=f"recorded from pre-start check sheet {sheet.pk} signed in by its operator",
+        sheet=sheet,
+    )
+
+
+def _jobs_using(anchor: Anchor) -> list[Job]:
+    from django.db.models import Q
+
+    return list(
+        Job.objects.select_for_update()
+        .filter(
+            Q(drops__anchor=anchor) | Q(drops__safety_anchor=anchor),
+            state__in=OPEN_STATES,
+            date__gte=timezone.localdate(),
+        )
+        .distinct()
+    )
+
+
+def _hold_jobs_using(anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
+    from compliance.services import _transition
+
+    for job in _jobs_using(anchor):
+        Hold.objects.create(
+            job=job,
+            requirement=status_requirement(anchor),
+            item_key="in_service",
+            log_entry=entry,
+            reason=f"Anchor {anchor.label} was removed from service on "
+            f"{entry.performed_on:%Y-%m-%d}: {entry.details}",
+        )
+        if job.state != JobState.HELD:
+            _transition(
+                job, JobState.HELD, by, f"Stop work: anchor {anchor.label} removed from service."
+            )
+
+
+def _clear_holds_of(anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
+    from compliance.services import refresh_readiness
+
+    for hold in Hold.objects.filter(requirement=status_requirement(anchor), clearance__isnull=True):
+        HoldClearance.objects.create(hold=hold, log_entry=entry, by=by)
+    for job in _jobs_using(anchor):
+        refresh_readiness(job=job, by=by)
+
+
+def verify_log_chain(site_id: int) -> list[Any]:
+    rows = list(
+        AnchorLogEntry.objects.filter(site_id=site_id)
+        .order_by("sequence")
+        .values("sequence", "seal", "previous_seal", "canonical_json")
+    )
+    return check_links(rows)
+
+
+def entry_document(entry: AnchorLogEntry) -> dict[str, Any]:
+    return json.loads(entry.canonical_json)

@@ -1,0 +1,117 @@
+/** The only module that talks HTTP to the Parapet server (session cookie + CSRF header). */
+import type {
+  Anchor,
+  ChecklistVersion,
+  Equipment,
+  JobDetail,
+  JobSummary,
+  OutRecord,
+  Page,
+  Profile,
+  Site,
+  SyncResponse,
+  User,
+} from "./types";
+
+const BASE = "/api/v1/";
+
+/** The network could not be reached (offline, aborted, timed out). */
+export class OfflineError extends Error {
+  constructor(message = "No connection to the server.") {
+    super(message);
+    this.name = "OfflineError";
+  }
+}
+
+/** The server answered with an error status; `body` is its parsed JSON, if any. */
+export class ApiError extends Error {
+  readonly status: number;
+  readonly body: Record<string, unknown>;
+  constructor(status: number, body: Record<string, unknown>) {
+    super(typeof body.detail === "string" ? body.detail : `The server answered ${status}.`);
+    this.name = "ApiError";
+    this.status = status;
+    this.body = body;
+  }
+  get signedOut(): boolean {
+    return this.status === 401 || this.status === 403;
+  }
+}
+
+export function csrfToken(): string {
+  for (const part of document.cookie.split(";")) {
+    const [name, ...rest] = part.trim().split("=");
+    if (name === "csrftoken") return decodeURIComponent(rest.join("="));
+  }
+  return "";
+}
+
+interface Options {
+  method?: "GET" | "POST";
+  json?: unknown;
+  form?: FormData;
+  timeoutMs?: number;
+}
+
+export async function request<T>(path: string, opts: Options = {}): Promise<T> {
+  const method = opts.method ?? "GET";
+  const headers: Record<string, string> = { Accept: "application/json" };
+  let body: BodyInit | undefined;
+  if (opts.json !== undefined) {
+    headers["Content-Type"] = "application/json";
+    body = JSON.stringify(opts.json);
+  } else if (opts.form) {
+    body = opts.form;
+  }
+  if (method !== "GET") headers["X-CSRFToken"] = csrfToken();
+  const controller = new AbortController();
+  const timer = setTimeout(() => controller.abort(), opts.timeoutMs ?? 20000);
+  let response: Response;
+  try {
+    response = await fetch(BASE + path, {
+      method,
+      headers,
+      body,
+      credentials: "same-origin",
+      signal: controller.signal,
+    });
+  } catch {
+    throw new OfflineError();
+  } finally {
+    clearTimeout(timer);
+  }
+  if (response.status === 204) return undefined as T;
+  let parsed: unknown = null;
+  try {
+    parsed = await response.json();
+  } catch {
+    parsed = null;
+  }
+  if (!response.ok) {
+    // A gateway or worker-level failure (e.g. offline fallback from the service worker)
+    if (response.status >= 500 && parsed === null) throw new OfflineError();
+    throw new ApiError(response.status, (parsed as Record<string, unknown>) ?? {});
+  }
+  return parsed as T;
+}
+
+export const api = {
+  login: (username: string, password: string) =>
+    request<User>("auth/login/", { method: "POST", json: { username, password } }),
+  logout: () => request<void>("auth/logout/", { method: "POST", json: {} }),
+  me: () => request<User>("me/"),
+  jobs: (date: string) =>
+    request<Page<JobSummary>>(`jobs/?date=${encodeURIComponent(date)}`),
+  job: (id: number) => request<JobDetail>(`jobs/${id}/`),
+  start: (id: number) => request<JobDetail>(`jobs/${id}/start/`, { method: "POST", json: {} }),
+  versions: () =>
+    request<Page<ChecklistVersion>>("checklist-versions/?status=published&limit=100"),
+  profiles: () => request<Page<Profile>>("profiles/"),
+  equipment: () => request<Page<Equipment>>("equipment/?limit=500"),
+  anchors: () => request<Page<Anchor>>("anchors/?limit=500"),
+  sites: () => request<Page<Site>>("sites/?limit=100"),
+  sync: (records: OutRecord[]) =>
+    request<SyncResponse>("sync/", { method: "POST", json: { records }, timeoutMs: 30000 }),
+  photo: (form: FormData) =>
+    request<unknown>("photos/", { method: "POST", form, timeoutMs: 60000 }),
+};

@@ -1,0 +1,144 @@
+/** water-line: pressure at the robot's valve on a gravity-fed hose; a port of water.py. */
+import { G, M3_PER_L, M_PER_MM, PA_PER_KPA, S_PER_MIN } from "./constants";
+import { calculation, number, type Inputs, type Rule } from "./inputs";
+import { build, check, ratioMargin, type CalcResult } from "./result";
+import { densityKgm3, viscosityPas } from "./water_properties";
+import { num } from "./working";
+
+const NAME = "water-line";
+const LAMINAR_BELOW_RE = 2300;
+const TURBULENT_FROM_RE = 4000;
+
+/** Darcy friction factor from Colebrook-White by fixed-point iteration from Swamee-Jain. */
+export function colebrook(reynolds: number, relativeRoughness: number): number {
+  const a = relativeRoughness / 3.7;
+  const b = 2.51 / reynolds;
+  let x = -2 * Math.log10(a + 5.74 / reynolds ** 0.9);
+  for (let i = 0; i < 100; i += 1) {
+    const next = -2 * Math.log10(a + b * x);
+    if (Math.abs(next - x) <= 1e-15 * Math.abs(next)) {
+      x = next;
+      break;
+    }
+    x = next;
+  }
+  return 1 / (x * x);
+}
+
+export function frictionFactor(reynolds: number, relativeRoughness: number): [number, string] {
+  if (reynolds < LAMINAR_BELOW_RE) return [64 / reynolds, "laminar"];
+  const turbulent = colebrook(reynolds, relativeRoughness);
+  if (reynolds < TURBULENT_FROM_RE) return [Math.max(64 / reynolds, turbulent), "transitional"];
+  return [turbulent, "turbulent"];
+}
+
+const FIELDS = [
+  number("drop_m", "m", "height of the tank's water surface above the valve", {
+    atLeast: 0, atMost: 1000, limitReason: "plausibility bound",
+  }),
+  number("hose_id_mm", "mm", "hose inside diameter", { greaterThan: 0, atMost: 300, limitReason: "plausibility bound" }),
+  number("hose_length_m", "m", "hose length from tank to valve", { greaterThan: 0 }),
+  number("flow_lpm", "L/min", "water flow through the hose", { atLeast: 0 }),
+  number("roughness_mm", "mm", "hose wall absolute roughness", { atLeast: 0 }),
+  number("water_temp_c", "°C", "water temperature", {
+    atLeast: 0, atMost: 60, limitReason: "the water property model covers 0-60 °C",
+  }),
+  number("hose_rating_kpa", "kPa", "hose working pressure rating", { greaterThan: 0 }),
+  number("nozzle_min_kpa", "kPa", "least pressure the nozzles need", { greaterThan: 0 }),
+];
+
+const RULES: Rule[] = [
+  { rule: "atMostFractionOf", name: "roughness_mm", other: "hose_id_mm", fraction: 0.05,
+    reason: "relative roughness beyond the Moody chart's range" },
+];
+
+function compute(values: Inputs): CalcResult {
+  const dropM = values.number("drop_m");
+  const diameterM = values.number("hose_id_mm") * M_PER_MM;
+  const lengthM = values.number("hose_length_m");
+  const flowLpm = values.number("flow_lpm");
+  const roughnessM = values.number("roughness_mm") * M_PER_MM;
+  const tempC = values.number("water_temp_c");
+  const ratingKpa = values.number("hose_rating_kpa");
+  const nozzleKpa = values.number("nozzle_min_kpa");
+
+  const rho = densityKgm3(tempC);
+  const mu = viscosityPas(tempC);
+  const areaM2 = (Math.PI * diameterM ** 2) / 4;
+  const flowM3s = (flowLpm * M3_PER_L) / S_PER_MIN;
+  const velocity = flowM3s / areaM2;
+  const reynolds = (rho * velocity * diameterM) / mu;
+  const staticKpa = (rho * G * dropM) / PA_PER_KPA;
+  const steps = [
+    `water at ${num(tempC)} °C: ρ = ${num(rho)} kg/m³, μ = ${num(mu)} Pa·s`,
+    `static = ρ·g·h = ${num(rho)} × ${num(G)} × ${num(dropM)} m = ${num(staticKpa)} kPa`,
+    `velocity = ${num(flowLpm)} L/min / 60000 / (π × (${num(diameterM)} m)² / 4) = ${num(velocity)} m/s`,
+    `Re = ρ·v·D/μ = ${num(rho)} × ${num(velocity)} × ${num(diameterM)} / ${num(mu)} = ${num(reynolds)}`,
+  ];
+  let f: number | null;
+  let regime: string;
+  let lossKpa: number;
+  if (reynolds === 0) {
+    f = null;
+    regime = "none";
+    lossKpa = 0;
+    steps.push("no flow: no friction loss");
+  } else {
+    const [factor, kind] = frictionFactor(reynolds, roughnessM / diameterM);
+    f = factor;
+    regime = kind;
+    if (regime === "laminar") {
+      steps.push(`laminar (Re < 2300): f = 64 / ${num(reynolds)} = ${num(f)}`);
+    } else if (regime === "transitional") {
+      steps.push(
+        `transitional (2300 ≤ Re < 4000): f = larger of 64/Re = ${num(64 / reynolds)} and Colebrook-White =` +
+          ` ${num(colebrook(reynolds, roughnessM / diameterM))}, so ${num(f)} (never under-states the loss)`,
+      );
+    } else {
+      steps.push(
+        `turbulent (Re ≥ 4000): Colebrook-White with ε/D = ${num(roughnessM)} / ${num(diameterM)} =` +
+          ` ${num(roughnessM / diameterM)}, solved by iteration: f = ${num(f)}`,
+      );
+    }
+    lossKpa =
+      regime === "laminar"
+        ? (32 * mu * lengthM * velocity) / diameterM ** 2 / PA_PER_KPA
+        : (f * (lengthM / diameterM) * rho * velocity ** 2) / 2 / PA_PER_KPA;
+    steps.push(
+      `friction loss = f·(L/D)·ρ·v²/2 = ${num(f)} × (${num(lengthM)} / ${num(diameterM)}) × ${num(rho)} ×` +
+        ` ${num(velocity)}² / 2 = ${num(lossKpa)} kPa`,
+    );
+  }
+  const flowingKpa = staticKpa - lossKpa;
+  const maxDropM = (ratingKpa * PA_PER_KPA) / (rho * G);
+  const waterKg = rho * areaM2 * lengthM;
+  steps.push(
+    `flowing = ${num(staticKpa)} - ${num(lossKpa)} = ${num(flowingKpa)} kPa (nozzles need ${num(nozzleKpa)} kPa;` +
+      " velocity head and fittings not counted)",
+    `deepest valve within the rating = ${num(ratingKpa)} kPa × 1000 / (${num(rho)} × ${num(G)}) = ${num(maxDropM)} m` +
+      ` (drop ${num(dropM)} m)`,
+    `water in hose = ${num(rho)} × ${num(areaM2)} m² × ${num(lengthM)} m = ${num(waterKg)} kg`,
+  );
+  if (flowingKpa < 0) steps.push("friction loss exceeds the static head: gravity cannot drive this flow");
+  return build({
+    name: NAME,
+    inputs: values.asDict(),
+    outputs: {
+      static_kpa: staticKpa,
+      friction_loss_kpa: lossKpa,
+      flowing_kpa: flowingKpa,
+      reynolds,
+      flow_regime: regime,
+      velocity_ms: velocity,
+      friction_factor: f,
+      max_drop_m: maxDropM,
+      water_in_hose_kg: waterKg,
+      water_density_kgm3: rho,
+      water_viscosity_pa_s: mu,
+    },
+    checks: [check("hose_rating", ratioMargin(ratingKpa, staticKpa)), check("nozzle_pressure", flowingKpa / nozzleKpa - 1)],
+    steps,
+  });
+}
+
+export const WATER_LINE = calculation(NAME, "Water line pressure", FIELDS, RULES, compute);

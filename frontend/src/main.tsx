@@ -1,0 +1,81 @@
+import { render } from "preact";
+import { useEffect, useState } from "preact/hooks";
+import { api, ApiError } from "./api";
+import { loadMe } from "./repo";
+import { clearCache, outboxWaiting } from "./storage";
+import { setStatus } from "./status";
+import { prepareDay, refreshCounts, startSyncLoop } from "./sync";
+import type { User } from "./types";
+import { Cautions } from "./ui/Cautions";
+import { Strip } from "./ui/common";
+import { go, useRoute, useStatus } from "./ui/hooks";
+import { JobScreen } from "./ui/Job";
+import { Jobs } from "./ui/Jobs";
+import { Outbox } from "./ui/Outbox";
+import { SheetScreen } from "./ui/Sheet";
+import { SignIn } from "./ui/SignIn";
+import "./styles.css";
+
+function App() {
+  const route = useRoute();
+  const status = useStatus();
+  const [user, setUser] = useState<User | null | undefined>(undefined);
+
+  useEffect(() => {
+    loadMe()
+      .then((loaded) => setUser(loaded.value))
+      .catch(() => setUser(null));
+  }, []);
+
+  useEffect(() => {
+    if (status.signedOut && user) setUser(null);
+  }, [status.signedOut]);
+
+  async function signOut() {
+    const waiting = (await outboxWaiting()).length;
+    if (waiting && !confirm(`${waiting} records are not sent yet. They stay on this phone and go after the next sign-in. Sign out?`)) return;
+    try {
+      await api.logout();
+    } catch (e) {
+      if (!(e instanceof ApiError)) return alert("Signing out needs a connection.");
+    }
+    await clearCache();
+    if ("caches" in window) await caches.delete("parapet-api");
+    setUser(null);
+    go({ name: "jobs" });
+  }
+
+  let screen;
+  if (user === undefined) screen = <main class="screen"><p class="muted">Opening…</p></main>;
+  else if (user === null)
+    screen = (
+      <SignIn onSignedIn={(u) => {
+        setUser(u);
+        setStatus({ signedOut: false });
+        void prepareDay();
+        go({ name: "jobs" });
+      }} />
+    );
+  else if (route.name === "job") screen = <JobScreen id={route.id} />;
+  else if (route.name === "sheet") screen = <SheetScreen id={route.id} requirement={route.requirement} />;
+  else if (route.name === "cautions") screen = <Cautions id={route.id} />;
+  else if (route.name === "outbox") screen = <Outbox />;
+  else screen = <Jobs user={user} onSignOut={signOut} />;
+
+  return (
+    <>
+      <Strip />
+      {screen}
+    </>
+  );
+}
+
+render(<App />, document.getElementById("app")!);
+void refreshCounts();
+startSyncLoop();
+
+if ("serviceWorker" in navigator) {
+  navigator.serviceWorker.register("/sw.js", { scope: "/" }).catch(() => {
+    /* the app still works online without it */
+  });
+}

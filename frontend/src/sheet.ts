@@ -1,0 +1,323 @@
+/**
+ * The phone's own reading of a sheet, following checklists/verdicts.py: what each item says
+ * so far, which limits apply, and whether the sheet is complete enough to save. The server
+ * evaluates again on sync; its verdict is the record.
+ */
+import { CalcInputError, run, UnknownCalculation, type CalcResult } from "./calc";
+import type { Reference } from "./repo";
+import type { ChecklistItem, Entry, JobDetail, Requirement, Source, TickValue } from "./types";
+
+export type Context = Record<string, Record<string, unknown>>;
+
+export type LocalVerdict = "pass" | "fail" | "na" | "recorded" | "missing" | "unknown";
+
+export interface ItemView {
+  item: ChecklistItem;
+  verdict: LocalVerdict;
+  message: string;
+  margin: number | null;
+  limits: string[];
+  calc?: CalcResult;
+}
+
+/** What a sheet form holds before it becomes entries. */
+export interface Draft {
+  ticks: Record<string, TickValue>;
+  readings: Record<string, string>;
+  series: Record<string, number[][]>;
+  photos: Record<string, { uuid: string; blob: Blob; name: string }[]>;
+  notes: Record<string, string>;
+}
+
+export function emptyDraft(): Draft {
+  return { ticks: {}, readings: {}, series: {}, photos: {}, notes: {} };
+}
+
+/** The numbers limits and calculations draw on; mirrors checklists.services.sheet_context. */
+export function buildContext(job: JobDetail, req: Requirement, ref: Reference | null): Context {
+  const site = ref?.sites.find((s) => s.id === job.site);
+  const profile = ref?.profiles.find((p) => p.key === site?.profile);
+  const context: Context = {};
+  if (profile) context.profile = { ...profile.thresholds };
+  const kit = (id: number | null) => ref?.equipment.find((e) => e.id === id);
+  const equipment = kit(req.equipment);
+  if (equipment) context.equipment = { ...equipment.ratings };
+  const drop =
+    job.drops.find(
+      (d) =>
+        (req.anchor !== null && (d.anchor === req.anchor || d.safety_anchor === req.anchor)) ||
+        (req.equipment !== null &&
+          [d.robot, d.tether, d.safety_line, d.hose].includes(req.equipment)),
+    ) ?? job.drops[0];
+  const terrain = site?.terrain;
+  if (drop) {
+    for (const kind of ["robot", "tether", "safety_line", "hose"] as const) {
+      const ratings = kit(drop[kind])?.ratings;
+      if (ratings) context[kind] = { ...ratings };
+    }
+    const tied = ref?.anchors.find((a) => a.id === (req.anchor ?? drop.safety_anchor));
+    context.anchor = { rated_capacity_kn: tied?.certification?.rated_capacity_kn ?? null };
+    context.drop = { length_m: drop.length_m, height_m: site?.height_m ?? null, terrain };
+  } else {
+    context.drop = { height_m: site?.height_m ?? null, terrain };
+  }
+  return context;
+}
+
+class MissingSource extends Error {
+  readonly reading: boolean;
+  constructor(message: string, reading = false) {
+    super(message);
+    this.reading = reading;
+  }
+}
+
+function resolve(
+  source: Source,
+  context: Context,
+  readings: Record<string, unknown>,
+  outputs: Record<string, Record<string, unknown>>,
+  serverOnly: ReadonlySet<string> = new Set(),
+): unknown {
+  const [kind, ref] = Object.entries(source)[0] ?? ["", ""];
+  if (kind === "value") return ref;
+  if (kind === "reading") {
+    if (!(String(ref) in readings)) throw new MissingSource(`reading '${String(ref)}'`, true);
+    return readings[String(ref)];
+  }
+  if (kind === "output") {
+    const [itemKey = "", outKey = ""] = String(ref).split(".", 2);
+    if (serverOnly.has(itemKey)) throw new MissingSource(`the result of ${itemKey.replace(/_/g, " ")}`);
+    const value = outputs[itemKey]?.[outKey];
+    if (value === undefined) throw new MissingSource(`output '${String(ref)}'`, true);
+    return value;
+  }
+  const namespace = context[kind];
+  const value = namespace?.[String(ref)];
+  if (value === undefined || value === null) throw new MissingSource(`${kind} ${String(ref)}`);
+  if (kind === "profile" && typeof value === "object") return (value as { value: unknown }).value;
+  return value;
+}
+
+const SOURCE_WORDS: Record<string, string> = {
+  value: "a fixed value",
+  profile: "the site's profile",
+  equipment: "this equipment's rating",
+  robot: "the robot's rating",
+  tether: "the tether's rating",
+  safety_line: "the safety line's rating",
+  hose: "the hose's rating",
+  anchor: "the anchor's certificate",
+  drop: "the drop",
+  reading: "another reading",
+  output: "a calculation",
+};
+
+/** "Limit: at least 12 kN (from the site's profile)", or the source alone if the number is unknown. */
+export function describeLimits(item: ChecklistItem, context: Context): string[] {
+  const unit = item.unit ?? "";
+  const lines: string[] = [];
+  for (const bound of ["min", "max"] as const) {
+    const source = item.limits?.[bound];
+    if (!source) continue;
+    const [kind = "value", ref = ""] = Object.entries(source)[0] ?? [];
+    const from = SOURCE_WORDS[kind] ?? kind;
+    const word = bound === "min" ? "at least" : "at most";
+    try {
+      const limit = Number(resolve(source, context, {}, {}));
+      lines.push(`Limit: ${word} ${fmt(limit)} ${unit} (from ${from})`.replace(/\s+\)/, ")"));
+    } catch {
+      const what = String(ref).replace(/_/g, " ");
+      lines.push(`Limit: ${word} the value in ${from} (${what}); the server checks it`);
+    }
+  }
+  return lines;
+}
+
+export function fmt(value: number): string {
+  if (!Number.isFinite(value)) return String(value);
+  return Number(value.toPrecision(6)).toString();
+}
+
+/** Parse what was typed into a decimal field; a comma counts as the decimal mark. */
+export function parseDecimal(text: string): number | null {
+  const cleaned = text.trim().replace(",", ".");
+  if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(cleaned)) return null;
+  const value = Number(cleaned);
+  return Number.isFinite(value) ? value : null;
+}
+
+function checkLimits(
+  item: ChecklistItem,
+  value: number,
+  context: Context,
+  readings: Record<string, unknown>,
+  outputs: Record<string, Record<string, unknown>>,
+): { verdict: LocalVerdict; margin: number | null; message: string } {
+  const unit = item.unit ?? "";
+  const margins: number[] = [];
+  const problems: string[] = [];
+  let used = false;
+  for (const bound of ["min", "max"] as const) {
+    const source = item.limits?.[bound];
+    if (!source) continue;
+    let limit: number;
+    try {
+      limit = Number(resolve(source, context, readings, outputs));
+    } catch {
+      return { verdict: "unknown", margin: null, message: "The server checks this against its limit." };
+    }
+    used = true;
+    if (bound === "min") {
+      margins.push(limit ? (value - limit) / Math.abs(limit) : value - limit);
+      if (value < limit) problems.push(`${fmt(value)} ${unit} is below the minimum of ${fmt(limit)} ${unit}`);
+    } else {
+      margins.push(limit ? (limit - value) / Math.abs(limit) : limit - value);
+      if (value > limit) problems.push(`${fmt(value)} ${unit} is above the maximum of ${fmt(limit)} ${unit}`);
+    }
+  }
+  const margin = margins.length ? Math.min(...margins) : null;
+  if (problems.length) return { verdict: "fail", margin, message: problems.join("; ") + "." };
+  return { verdict: used ? "pass" : "recorded", margin, message: "" };
+}
+
+/** Every item in order with what the phone can say about it now. */
+export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Context): ItemView[] {
+  const readings: Record<string, unknown> = {};
+  const outputs: Record<string, Record<string, unknown>> = {};
+  const views: ItemView[] = [];
+  // Calculations only the server can run on this sheet (a rating the phone lacks), by item key.
+  const serverOnly = new Set<string>();
+  for (const item of items) {
+    const base = { item, margin: null, limits: describeLimits(item, context) };
+    switch (item.kind) {
+      case "tick": {
+        const value = draft.ticks[item.key];
+        views.push({
+          ...base,
+          verdict: value ?? "missing",
+          message: "",
+        });
+        break;
+      }
+      case "reading": {
+        const text = draft.readings[item.key] ?? "";
+        const value = parseDecimal(text);
+        if (value === null) {
+          views.push({ ...base, verdict: "missing", message: text.trim() ? "Not a number." : "" });
+          break;
+        }
+        readings[item.key] = value;
+        views.push({ ...base, ...checkLimits(item, value, context, readings, outputs) });
+        break;
+      }
+      case "series": {
+        const samples = draft.series[item.key] ?? [];
+        const needed = item.min_samples ?? 3;
+        if (samples.length >= needed) readings[item.key] = samples;
+        views.push({
+          ...base,
+          verdict: samples.length >= needed ? "recorded" : "missing",
+          message: samples.length >= needed ? "" : `${samples.length} of at least ${needed} readings.`,
+        });
+        break;
+      }
+      case "calc": {
+        const inputs: Record<string, unknown> = {};
+        let missing: MissingSource | null = null;
+        for (const [name, source] of Object.entries(item.inputs ?? {})) {
+          try {
+            inputs[name] = resolve(source, context, readings, outputs, serverOnly);
+          } catch (error) {
+            missing = error as MissingSource;
+            break;
+          }
+        }
+        if (missing) {
+          if (!missing.reading) serverOnly.add(item.key);
+          views.push({
+            ...base,
+            verdict: missing.reading ? "missing" : "unknown",
+            message: missing.reading
+              ? "Computed once the readings it needs are in."
+              : `The server computes this (the phone does not know ${missing.message}).`,
+          });
+          break;
+        }
+        try {
+          const result = run(item.calc ?? "", inputs);
+          outputs[item.key] = result.outputs;
+          const check = result.governing.replace(/_/g, " ");
+          const margin = result.margin;
+          views.push({
+            ...base,
+            verdict: result.verdict,
+            margin,
+            calc: result,
+            message:
+              result.verdict === "pass"
+                ? ""
+                : `Fails its ${check} check${margin === null ? "" : ` (margin ${pctShort(margin)})`}`,
+          });
+        } catch (error) {
+          if (error instanceof UnknownCalculation) {
+            serverOnly.add(item.key);
+            views.push({ ...base, verdict: "unknown", message: "The server computes this when the sheet is sent." });
+          } else if (error instanceof CalcInputError) {
+            views.push({ ...base, verdict: "fail", message: `Cannot compute: ${error.message}.` });
+          } else {
+            throw error;
+          }
+        }
+        break;
+      }
+      case "photo": {
+        const photos = draft.photos[item.key] ?? [];
+        views.push({
+          ...base,
+          verdict: item.required && photos.length === 0 ? "missing" : "recorded",
+          message: item.required && photos.length === 0 ? "A photo is required." : "",
+        });
+        break;
+      }
+      case "note":
+        views.push({ ...base, verdict: "recorded", message: "" });
+        break;
+    }
+  }
+  return views;
+}
+
+function pctShort(margin: number): string {
+  const value = Math.round(margin * 100);
+  return `${value >= 0 ? "+" : ""}${value}%`;
+}
+
+/** Failed blocking items first (stop work), then the rest in the checklist's order. */
+export function ordered(views: ItemView[]): { failed: ItemView[]; rest: ItemView[] } {
+  const failed = views.filter((v) => v.item.blocking && v.verdict === "fail");
+  return { failed, rest: views.filter((v) => !failed.includes(v)) };
+}
+
+/** Items that still need an answer before the sheet can be saved. */
+export function stillNeeded(views: ItemView[]): ItemView[] {
+  return views.filter((v) => v.verdict === "missing" && v.item.kind !== "calc");
+}
+
+export function toEntries(items: ChecklistItem[], draft: Draft): Record<string, Entry> {
+  const entries: Record<string, Entry> = {};
+  for (const item of items) {
+    const key = item.key;
+    if (item.kind === "tick" && draft.ticks[key]) entries[key] = { value: draft.ticks[key] };
+    if (item.kind === "reading") {
+      const value = parseDecimal(draft.readings[key] ?? "");
+      if (value !== null) entries[key] = { value, unit: item.unit ?? "" };
+    }
+    if (item.kind === "series" && draft.series[key]?.length)
+      entries[key] = { value: draft.series[key], unit: item.unit ?? "" };
+    if (item.kind === "photo" && draft.photos[key]?.length)
+      entries[key] = { value: draft.photos[key].map((p) => p.uuid) };
+    if (item.kind === "note" && draft.notes[key]?.trim()) entries[key] = { value: draft.notes[key] };
+  }
+  return entries;
+}

@@ -1,0 +1,131 @@
+/** IndexedDB on the phone: the outbox, photos as blobs, and the last-known server data. */
+import { openDB, type DBSchema, type IDBPDatabase } from "idb";
+import type { OutRecord, Reason } from "./types";
+
+export type OutStatus = "waiting" | "applied" | "rejected";
+
+/** One record made on the phone, kept until the server has answered for it. */
+export interface OutboxEntry {
+  client_uuid: string;
+  record: OutRecord;
+  seq: number;
+  created_at: string;
+  /** Plain words for lists: "Roof anchor pre-use check, anchor R1". */
+  label: string;
+  job: number;
+  /** For sheets: the requirement key it answers and the phone's own verdict. */
+  requirement?: string;
+  local_verdict?: "pass" | "fail";
+  local_failures?: string[];
+  status: OutStatus;
+  attempts: number;
+  errors?: Record<string, unknown>;
+  reasons?: Reason[];
+  server?: { sheet?: number; verdict?: string; state?: string; duplicate?: boolean };
+  answered_at?: string;
+}
+
+export interface PhotoEntry {
+  client_uuid: string;
+  job: number;
+  sheet_uuid: string;
+  item_key: string;
+  blob: Blob;
+  name: string;
+  created_at: string;
+  uploaded: boolean;
+  error?: string;
+}
+
+interface CacheEntry {
+  key: string;
+  value: unknown;
+  saved_at: string;
+}
+
+interface ParapetDB extends DBSchema {
+  outbox: { key: string; value: OutboxEntry; indexes: { by_seq: number; by_status: string } };
+  photos: { key: string; value: PhotoEntry; indexes: { by_sheet: string } };
+  cache: { key: string; value: CacheEntry };
+  meta: { key: string; value: { key: string; value: unknown } };
+}
+
+let dbPromise: Promise<IDBPDatabase<ParapetDB>> | null = null;
+
+export function db(): Promise<IDBPDatabase<ParapetDB>> {
+  dbPromise ??= openDB<ParapetDB>("parapet", 1, {
+    upgrade(database) {
+      const outbox = database.createObjectStore("outbox", { keyPath: "client_uuid" });
+      outbox.createIndex("by_seq", "seq");
+      outbox.createIndex("by_status", "status");
+      const photos = database.createObjectStore("photos", { keyPath: "client_uuid" });
+      photos.createIndex("by_sheet", "sheet_uuid");
+      database.createObjectStore("cache", { keyPath: "key" });
+      database.createObjectStore("meta", { keyPath: "key" });
+    },
+  });
+  return dbPromise;
+}
+
+export async function cacheGet<T>(key: string): Promise<{ value: T; saved_at: string } | null> {
+  const row = await (await db()).get("cache", key);
+  return row ? { value: row.value as T, saved_at: row.saved_at } : null;
+}
+
+export async function cachePut(key: string, value: unknown): Promise<void> {
+  await (await db()).put("cache", { key, value, saved_at: new Date().toISOString() });
+}
+
+export async function metaGet<T>(key: string): Promise<T | null> {
+  const row = await (await db()).get("meta", key);
+  return row ? (row.value as T) : null;
+}
+
+export async function metaPut(key: string, value: unknown): Promise<void> {
+  await (await db()).put("meta", { key, value });
+}
+
+/** Write a record and its photos in one transaction: both are kept, or neither. */
+export async function addToOutbox(
+  entry: Omit<OutboxEntry, "seq" | "status" | "attempts">,
+  photos: PhotoEntry[] = [],
+): Promise<OutboxEntry> {
+  const database = await db();
+  const tx = database.transaction(["outbox", "photos", "meta"], "readwrite");
+  const counter = ((await tx.objectStore("meta").get("seq"))?.value as number | undefined) ?? 0;
+  const full: OutboxEntry = { ...entry, seq: counter + 1, status: "waiting", attempts: 0 };
+  await tx.objectStore("meta").put({ key: "seq", value: counter + 1 });
+  await tx.objectStore("outbox").add(full);
+  for (const photo of photos) await tx.objectStore("photos").add(photo);
+  await tx.done;
+  return full;
+}
+
+export async function outboxAll(): Promise<OutboxEntry[]> {
+  return (await db()).getAllFromIndex("outbox", "by_seq");
+}
+
+export async function outboxWaiting(): Promise<OutboxEntry[]> {
+  return (await outboxAll()).filter((e) => e.status === "waiting");
+}
+
+export async function outboxPut(entry: OutboxEntry): Promise<void> {
+  await (await db()).put("outbox", entry);
+}
+
+export async function outboxDelete(uuid: string): Promise<void> {
+  await (await db()).delete("outbox", uuid);
+}
+
+export async function photosAll(): Promise<PhotoEntry[]> {
+  return (await db()).getAll("photos");
+}
+
+export async function photoPut(photo: PhotoEntry): Promise<void> {
+  await (await db()).put("photos", photo);
+}
+
+/** Forget the server data of the signed-out user; the outbox and photos stay for the next sign-in. */
+export async function clearCache(): Promise<void> {
+  await (await db()).clear("cache");
+}

@@ -1,0 +1,274 @@
+import { useEffect, useState } from "preact/hooks";
+import { api, ApiError, OfflineError } from "../api";
+import { keptJob, loadJob } from "../repo";
+import { enqueue } from "../outbox";
+import { cachePut, outboxAll, type OutboxEntry } from "../storage";
+import { requestSync } from "../sync";
+import { dataChanged } from "../status";
+import type { JobDetail, Reason, Requirement } from "../types";
+import { deviceTime } from "../uuid";
+import { BottomBar, CautionLine, errorLines, Header } from "./common";
+import { href, timeOf, useDataVersion, useStatus } from "./hooks";
+import { Badge, StateBadge, type SignKind } from "./signs";
+
+function requirementStatus(req: Requirement, mine: OutboxEntry | undefined): { kind: SignKind; word: string } {
+  if (mine?.status === "waiting") {
+    return mine.local_verdict === "fail"
+      ? { kind: "held", word: "Failed on this phone, waiting to send" }
+      : { kind: "caution", word: "Saved on this phone, waiting to send" };
+  }
+  if (mine?.status === "rejected") return { kind: "caution", word: "Not accepted by the server" };
+  if (req.satisfied) return { kind: "safe", word: "Done" };
+  if (req.latest_verdict === "fail") return { kind: "held", word: "Failed" };
+  return { kind: "mustdo", word: "To do" };
+}
+
+/** "X: Marked failed: X." reads better as "X: marked failed on the check." */
+export function plainReason(reason: string): string {
+  const m = /^(.*): Marked failed: (.*?)\.?$/.exec(reason);
+  if (m && m[1] === m[2]) return `${m[1]}: marked failed on the check.`;
+  return reason;
+}
+
+export function JobScreen({ id }: { id: number }) {
+  const version = useDataVersion();
+  const status = useStatus();
+  const [job, setJob] = useState<JobDetail | null>(null);
+  const [kept, setKept] = useState("");
+  const [outbox, setOutbox] = useState<OutboxEntry[]>([]);
+  const [error, setError] = useState("");
+  const [message, setMessage] = useState("");
+  const [reasons, setReasons] = useState<Reason[]>([]);
+  const [closing, setClosing] = useState(false);
+  const [closeReason, setCloseReason] = useState("");
+  const [busy, setBusy] = useState(false);
+
+  useEffect(() => {
+    (async () => {
+      try {
+        const loaded = await loadJob(id);
+        setJob(loaded.value);
+        setKept(loaded.fromCache ? loaded.savedAt : "");
+      } catch (e) {
+        setError(e instanceof OfflineError ? "This job is not kept on this phone yet; connect once to fetch it." : String(e));
+      }
+    })();
+  }, [id]);
+
+  useEffect(() => {
+    (async () => {
+      setOutbox((await outboxAll()).filter((e) => e.job === id));
+      const copy = await keptJob(id);
+      if (copy) setJob(copy);
+    })();
+  }, [version, id]);
+
+  if (error) return <main class="screen"><Header title="Job" back={href({ name: "jobs" })} /><p class="error">{error}</p></main>;
+  if (!job) return <main class="screen"><Header title="Job" back={href({ name: "jobs" })} /><p class="muted">Loading…</p></main>;
+
+  const latestFor = (key: string) =>
+    [...outbox].reverse().find((e) => e.requirement === key && e.record.type === "sheet");
+  const openHolds = job.holds.filter((h) => !h.cleared_at);
+  const localFails = outbox.filter((e) => e.status === "waiting" && e.local_verdict === "fail");
+  const rejected = outbox.filter((e) => e.status === "rejected");
+  const waitingHere = outbox.filter((e) => e.status === "waiting");
+  const titleOf = (key: string | null | undefined) => {
+    const r = job.requirements.find((q) => q.key === key);
+    return r ? `${r.title}, ${r.subject}` : "";
+  };
+
+
+  async function start() {
+    if (!job) return;
+    setBusy(true);
+    setReasons([]);
+    setMessage("");
+    try {
+      await requestSync();
+      const updated = await api.start(job.id);
+      await cachePut(`job:${job.id}`, updated);
+      setJob(updated);
+      dataChanged();
+      setMessage("Work started. The server confirmed every pre-start check.");
+    } catch (e) {
+      if (e instanceof ApiError && e.status === 409) {
+        setReasons((e.body.reasons as Reason[] | undefined) ?? []);
+        setMessage(e.message || "Work cannot start yet.");
+      } else if (e instanceof OfflineError) {
+        setMessage("Starting work needs a connection: the server confirms every check first.");
+      } else {
+        setMessage(e instanceof Error ? e.message : String(e));
+      }
+    } finally {
+      setBusy(false);
+    }
+  }
+
+  async function pause() {
+    if (!job) return;
+    await enqueue(
+      { type: "job_action", data: { job: job.id, action: "pause", reason: "Paused on the roof." } },
+      { label: "Pause work", job: job.id },
+    );
+    setMessage("Pause queued; the server's answer shows here once sent.");
+  }
+
+  async function close(event: Event) {
+    event.preventDefault();
+    if (!job) return;
+    if (job.state === "held" && !closeReason.trim()) {
+      setMessage("Closing a held job needs a reason.");
+      return;
+    }
+    await enqueue(
+      { type: "job_action", data: { job: job.id, action: "close", reason: closeReason.trim() } },
+      { label: "Close work for the day", job: job.id },
+    );
+    setClosing(false);
+    setMessage("Close queued; the server's answer shows here once sent.");
+  }
+
+  async function logDrop(dropId: number, label: string) {
+    if (!job) return;
+    await enqueue(
+      { type: "drop_log", data: { drop: dropId, device_time: deviceTime(), note: "Drop cleaned top to bottom." } },
+      { label: `Drop done: ${label}`, job: job.id },
+    );
+    setMessage(`Drop ${label} logged.`);
+  }
+
+  const dropsDone = (dropId: number) =>
+    outbox.filter((e) => e.record.type === "drop_log" && e.record.data.drop === dropId && e.status !== "rejected").length;
+
+  return (
+    <main class="screen with-bar">
+      <Header title={job.site_name} back={href({ name: "jobs" })} sub={<span>{job.date} · Supervisor {job.supervisor_name}</span>} />
+      <section class="card state-card">
+        <StateBadge state={job.state} testid="job-state" />
+        <p class="muted small">
+          {kept ? `Offline: the state the server gave at ${timeOf(kept)}.` : "State from the server."}
+          {" "}The server is the authority on verdicts and state.
+        </p>
+        {waitingHere.length > 0 && (
+          <p class="note" data-testid="job-waiting">
+            {waitingHere.length} {waitingHere.length === 1 ? "record" : "records"} saved on this phone, waiting to send.
+            The state shown changes once the server has them.
+          </p>
+        )}
+      </section>
+
+      {localFails.length > 0 && (
+        <section class="card alert" data-testid="local-stop">
+          <Badge kind="held" word="Stop work" />
+          <p>A blocking item failed on this phone and is not sent yet:</p>
+          <ul>{localFails.map((e) => <li key={e.client_uuid}>{e.label}: {(e.local_failures ?? []).join("; ")}</li>)}</ul>
+        </section>
+      )}
+
+      {openHolds.length > 0 && (
+        <section class="card alert" data-testid="holds">
+          <h2><Badge kind="held" word="Stop work: open holds" /></h2>
+          <ul class="plain">
+            {openHolds.map((h) => (
+              <li key={h.id} class="hold">
+                <p><strong>{titleOf(h.requirement)}</strong></p>
+                <p data-testid="hold-reason">{plainReason(h.reason)}</p>
+                <p class="muted small">Since {timeOf(h.opened_at)}. A new passing check after the repair clears it.</p>
+                <a class="btn" href={href({ name: "sheet", id: job.id, requirement: h.requirement })}>Re-check</a>
+              </li>
+            ))}
+          </ul>
+        </section>
+      )}
+
+      {message && <p class="note" role="status" data-testid="job-message">{message}</p>}
+      {reasons.length > 0 && (
+        <ul class="card plain" data-testid="start-reasons">
+          {reasons.map((r, n) => <li key={n}><Badge kind="mustdo" word={r.message} /></li>)}
+        </ul>
+      )}
+
+      {rejected.length > 0 && (
+        <section class="card" data-testid="rejected">
+          <h2><Badge kind="caution" word="Not accepted by the server" /></h2>
+          <ul class="plain">
+            {rejected.map((e) => (
+              <li key={e.client_uuid}>
+                <strong>{e.label}</strong>
+                {errorLines(e.errors).map((line) => <p class="small">{line}</p>)}
+              </li>
+            ))}
+          </ul>
+        </section>
+      )}
+
+      <section>
+        <h2>Pre-start checks</h2>
+        <ul class="list" data-testid="requirements">
+          {job.requirements.map((req) => {
+            const mine = latestFor(req.key);
+            const s = requirementStatus(req, mine);
+            return (
+              <li key={req.key}>
+                <a class="card card-link req" href={href({ name: "sheet", id: job.id, requirement: req.key })}
+                  data-testid={`req-${req.key}`} data-status={s.kind}>
+                  <span class="card-title">{req.title}</span>
+                  <span class="muted">{req.subject}</span>
+                  <Badge kind={s.kind} word={s.word} />
+                </a>
+              </li>
+            );
+          })}
+        </ul>
+      </section>
+
+      <section>
+        <h2>Drops</h2>
+        <ul class="list">
+          {job.drops.map((d) => (
+            <li key={d.id} class="card drop">
+              <span class="card-title">{d.label}</span>
+              <span class="muted">{d.length_m} m</span>
+              {dropsDone(d.id) > 0 && <Badge kind="safe" word={`Logged done ×${dropsDone(d.id)}`} />}
+              {job.state === "working" ? (
+                <button class="btn" type="button" onClick={() => logDrop(d.id, d.label)}>Log drop done</button>
+              ) : (
+                <span class="muted small">Drops are logged while work is under way.</span>
+              )}
+            </li>
+          ))}
+        </ul>
+      </section>
+
+      {closing && (
+        <form class="card" onSubmit={close} data-testid="close-form">
+          <label class="field">
+            <span>Why is work closing? {job.state === "held" ? "(needed for a held job)" : "(optional)"}</span>
+            <textarea rows={3} value={closeReason} onInput={(e) => setCloseReason((e.target as HTMLTextAreaElement).value)} />
+          </label>
+          <div class="row">
+            <button class="btn btn-primary" type="submit">Close work</button>
+            <button class="btn" type="button" onClick={() => setClosing(false)}>Keep open</button>
+          </div>
+        </form>
+      )}
+
+      <CautionLine job={job.id} />
+
+      <BottomBar>
+        {job.state !== "working" && job.state !== "closed" && (
+          <button class="btn btn-primary" type="button" onClick={start} disabled={busy || !status.online}
+            data-testid="start" title={status.online ? "" : "Needs a connection"}>
+            {status.online ? "Start work" : "Start (needs signal)"}
+          </button>
+        )}
+        {job.state === "working" && (
+          <button class="btn" type="button" onClick={pause} data-testid="pause">Pause work</button>
+        )}
+        {job.state !== "closed" && (
+          <button class="btn" type="button" onClick={() => setClosing(true)} data-testid="close">Close work</button>
+        )}
+      </BottomBar>
+    </main>
+  );
+}

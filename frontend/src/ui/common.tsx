@@ -1,0 +1,84 @@
+import type { ComponentChildren } from "preact";
+import { href, timeOf, useStatus } from "./hooks";
+import { Sign } from "./signs";
+
+export const SHORT_CAUTION =
+  "Parapet supports, and does not replace, local regulations, the maker's manual and licensed inspection.";
+
+/** Online/offline, last sync, and what is still waiting on this phone; tap for the outbox. */
+export function Strip() {
+  const s = useStatus();
+  const waiting = s.waiting + s.photosWaiting;
+  return (
+    <a class={`strip ${s.online ? "strip-on" : "strip-off"}`} href={href({ name: "outbox" })} data-testid="strip"
+      data-syncing={s.syncing ? "yes" : "no"} data-synced={s.lastSync ? "yes" : "no"}>
+      <span class="strip-net" data-testid="strip-online">
+        <svg width="18" height="18" viewBox="0 0 18 18" aria-hidden="true">
+          <rect x="1" y="11" width="3" height="6" fill="currentColor" />
+          <rect x="6" y="7" width="3" height="10" fill={s.online ? "currentColor" : "none"} stroke="currentColor" />
+          <rect x="11" y="3" width="3" height="14" fill={s.online ? "currentColor" : "none"} stroke="currentColor" />
+          {!s.online && <line x1="1" y1="1" x2="17" y2="17" stroke="currentColor" stroke-width="2" />}
+        </svg>
+        {s.online ? (s.syncing ? "Online, sending" : "Online") : "Offline"}
+      </span>
+      <span data-testid="strip-last-sync">Last sync {timeOf(s.lastSync)}</span>
+      <span data-testid="strip-waiting" data-count={waiting}>
+        Waiting {waiting}
+      </span>
+      {s.rejected > 0 && (
+        <span class="strip-rejected" data-testid="strip-rejected">
+          Not accepted {s.rejected}
+        </span>
+      )}
+    </a>
+  );
+}
+
+export function CautionLine({ job }: { job?: number }) {
+  return (
+    <p class="caution-line" data-testid="caution-line">
+      <Sign kind="caution" size={22} />
+      <span>
+        {SHORT_CAUTION}{" "}
+        {job !== undefined && (
+          <a href={href({ name: "cautions", id: job })} class="inline-link">
+            Read the cautions
+          </a>
+        )}
+      </span>
+    </p>
+  );
+}
+
+export function Header({ title, back, sub }: { title: string; back?: string; sub?: ComponentChildren }) {
+  return (
+    <header class="head">
+      {back && (
+        <a class="btn btn-back" href={back} aria-label="Back">
+          ‹ Back
+        </a>
+      )}
+      <div class="head-text">
+        <h1>{title}</h1>
+        {sub && <div class="head-sub">{sub}</div>}
+      </div>
+    </header>
+  );
+}
+
+export function BottomBar({ children }: { children: ComponentChildren }) {
+  return <nav class="bottom-bar">{children}</nav>;
+}
+
+/** Server errors like {"entries.tag_capacity.value": ["Must be a number."]} as plain lines. */
+export function errorLines(errors: unknown, prefix = ""): string[] {
+  if (errors === null || errors === undefined) return [];
+  if (typeof errors === "string") return [prefix ? `${prefix}: ${errors}` : errors];
+  if (Array.isArray(errors)) return errors.flatMap((e) => errorLines(e, prefix));
+  if (typeof errors === "object") {
+    return Object.entries(errors as Record<string, unknown>).flatMap(([k, v]) =>
+      errorLines(v, k === "record" || k === "non_field_errors" ? prefix : prefix ? `${prefix}.${k}` : k),
+    );
+  }
+  return [String(errors)];
+}

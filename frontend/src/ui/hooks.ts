@@ -1,0 +1,73 @@
+import { useEffect, useState } from "preact/hooks";
+import { dataVersion, getStatus, subscribe, type Status } from "../status";
+
+export function useStatus(): Status {
+  const [status, setLocal] = useState(getStatus());
+  useEffect(() => subscribe(() => setLocal(getStatus())), []);
+  return status;
+}
+
+/** Re-render when stored data changed (after a save or a sync answer). */
+export function useDataVersion(): number {
+  const [v, setV] = useState(dataVersion());
+  useEffect(() => subscribe(() => setV(dataVersion())), []);
+  return v;
+}
+
+export type Route =
+  | { name: "jobs" }
+  | { name: "job"; id: number }
+  | { name: "sheet"; id: number; requirement: string }
+  | { name: "cautions"; id: number }
+  | { name: "outbox" };
+
+export function parseRoute(hash: string): Route {
+  const parts = hash.replace(/^#\/?/, "").split("/").filter(Boolean);
+  const id = Number(parts[1]);
+  if (parts[0] === "job" && Number.isInteger(id)) {
+    if (parts[2] === "sheet" && parts[3]) return { name: "sheet", id, requirement: decodeURIComponent(parts[3]) };
+    if (parts[2] === "cautions") return { name: "cautions", id };
+    return { name: "job", id };
+  }
+  if (parts[0] === "outbox") return { name: "outbox" };
+  return { name: "jobs" };
+}
+
+export function href(route: Route): string {
+  switch (route.name) {
+    case "jobs":
+      return "#/";
+    case "job":
+      return `#/job/${route.id}`;
+    case "sheet":
+      return `#/job/${route.id}/sheet/${encodeURIComponent(route.requirement)}`;
+    case "cautions":
+      return `#/job/${route.id}/cautions`;
+    case "outbox":
+      return "#/outbox";
+  }
+}
+
+export function go(route: Route): void {
+  location.hash = href(route);
+}
+
+export function useRoute(): Route {
+  const [route, setRoute] = useState(parseRoute(location.hash));
+  useEffect(() => {
+    const onChange = () => {
+      setRoute(parseRoute(location.hash));
+      window.scrollTo(0, 0);
+    };
+    window.addEventListener("hashchange", onChange);
+    return () => window.removeEventListener("hashchange", onChange);
+  }, []);
+  return route;
+}
+
+export function timeOf(iso: string | null): string {
+  if (!iso) return "never";
+  const d = new Date(iso);
+  if (Number.isNaN(d.getTime())) return "never";
+  return d.toLocaleTimeString([], { hour: "2-digit", minute: "2-digit" });
+}

@@ -1,0 +1,121 @@
+/** The phone's own reading of a sheet: limits, local verdicts, order, entries. */
+import { readFileSync } from "node:fs";
+import { describe, expect, it } from "vitest";
+import {
+  describeLimits,
+  emptyDraft,
+  evaluateDraft,
+  ordered,
+  parseDecimal,
+  stillNeeded,
+  toEntries,
+  type Context,
+} from "../src/sheet";
+import type { ChecklistItem } from "../src/types";
+
+const checklist = (key: string) =>
+  (JSON.parse(readFileSync(new URL(`../../fixtures/checklists/${key}.json`, import.meta.url), "utf8")) as {
+    items: ChecklistItem[];
+  }).items;
+
+// The demo robot RB-1 and the generic profile's numbers as the server's sheet context holds them.
+const context: Context = {
+  profile: {
+    min_anchor_capacity_kn: { value: 12, unit: "kN" },
+    vacuum_safety_factor: { value: 2 },
+    vacuum_required_hold_s: { value: 300 },
+    gust_factor: { value: 1.5 },
+  },
+  robot: { mass_kg: 58, cup_diameter_m: 0.2, cups_engaged: 4, friction: 0.6, projected_area_m2: 0.45, drag_coefficient: 1.2, max_wind_ms: 15 },
+  drop: { length_m: 146, height_m: 150, terrain: "IV" },
+};
+
+describe("parseDecimal", () => {
+  it("reads a comma or a point as the decimal mark", () => {
+    expect(parseDecimal("12,5")).toBe(12.5);
+    expect(parseDecimal(" 62 ")).toBe(62);
+    expect(parseDecimal("-0.5")).toBe(-0.5);
+  });
+  it("refuses what is not a number", () => {
+    for (const text of ["", "abc", "1.2.3", "12kN", "Infinity"]) expect(parseDecimal(text)).toBeNull();
+  });
+});
+
+describe("anchor sheet", () => {
+  const items = checklist("anchor-pre-use");
+
+  it("describes a profile limit with its number when known, else by its source", () => {
+    const capacity = items.find((i) => i.key === "tag_capacity")!;
+    expect(describeLimits(capacity, context)).toEqual(["Limit: at least 12 kN (from the site's profile)"]);
+    expect(describeLimits(capacity, {})[0]).toMatch(/at least the value in the site's profile/);
+  });
+
+  it("fails a reading under the limit and puts failed blocking items first", () => {
+    const draft = emptyDraft();
+    draft.ticks = { tag_matches_register: "pass", visual_condition: "fail", fixings_tight: "pass", membrane_sound: "pass" };
+    draft.readings = { tag_capacity: "10" };
+    const views = evaluateDraft(items, draft, context);
+    const capacity = views.find((v) => v.item.key === "tag_capacity")!;
+    expect(capacity.verdict).toBe("fail");
+    expect(capacity.message).toBe("10 kN is below the minimum of 12 kN.");
+    const { failed, rest } = ordered(views);
+    expect(failed.map((v) => v.item.key)).toEqual(["tag_capacity", "visual_condition"]);
+    expect(rest[0]!.item.key).toBe("tag_matches_register");
+    expect(stillNeeded(views)).toEqual([]);
+  });
+
+  it("lists what still needs an answer and builds entries in the server's format", () => {
+    const draft = emptyDraft();
+    draft.ticks = { tag_matches_register: "pass" };
+    draft.readings = { tag_capacity: "25,0" };
+    draft.notes = { anchor_remarks: "  " };
+    const views = evaluateDraft(items, draft, context);
+    expect(stillNeeded(views).map((v) => v.item.key)).toEqual(["visual_condition", "fixings_tight", "membrane_sound"]);
+    expect(toEntries(items, draft)).toEqual({
+      tag_matches_register: { value: "pass" },
+      tag_capacity: { value: 25, unit: "kN" },
+    });
+  });
+});
+
+describe("vacuum hold sheet", () => {
+  const items = checklist("vacuum-hold");
+  const draft = emptyDraft();
+  draft.ticks = { cup_lips: "pass", release_valves: "pass", low_vacuum_warning: "pass" };
+  draft.readings = { working_vacuum: "62", roof_wind: "5.5" };
+
+  it("runs the chained calculations on the phone", () => {
+    draft.series = { decay_series: [[0, 62], [30, 61.6], [60, 61.1], [90, 60.7], [120, 60.3]] };
+    const views = evaluateDraft(items, draft, context);
+    const byKey = Object.fromEntries(views.map((v) => [v.item.key, v]));
+    expect(byKey.wind_load!.verdict).toBe("pass");
+    expect(byKey.hold_margin!.verdict).toBe("pass");
+    expect(byKey.decay_test!.verdict).toBe("pass");
+    expect(byKey.decay_test!.calc!.steps.length).toBeGreaterThan(3);
+  });
+
+  it("fails a fast decay and waits for a series still too short", () => {
+    draft.series = { decay_series: [[0, 61], [30, 52], [60, 44], [90, 37.5], [120, 31]] };
+    const decay = evaluateDraft(items, draft, context).find((v) => v.item.key === "decay_test")!;
+    expect(decay.verdict).toBe("fail");
+    draft.series = { decay_series: [[0, 61], [30, 52]] };
+    const short = evaluateDraft(items, draft, context);
+    expect(short.find((v) => v.item.key === "decay_series")!.verdict).toBe("missing");
+    expect(short.find((v) => v.item.key === "decay_test")!.verdict).toBe("missing");
+  });
+
+  it("leaves a calculation to the server when a rating is unknown on the phone", () => {
+    const views = evaluateDraft(items, draft, { ...context, drop: { height_m: 150 } });
+    expect(views.find((v) => v.item.key === "wind_load")!.verdict).toBe("unknown");
+  });
+});
+
+describe("a calculation the phone cannot run", () => {
+  it("hands the calculations built on it to the server too", () => {
+    const items = checklist("vacuum-hold");
+    const draft = emptyDraft();
+    draft.readings = { working_vacuum: "62", roof_wind: "5.5" };
+    const views = evaluateDraft(items, draft, { ...context, drop: { height_m: 150 } });
+    expect(views.find((v) => v.item.key === "hold_margin")!.verdict).toBe("unknown");
+  });
+});

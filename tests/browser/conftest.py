@@ -1,0 +1,145 @@
+"""Real headless Chromium against the live test server, driving the built phone app."""
+
+import io
+import json
+import os
+from pathlib import Path
+
+import pytest
+from django.conf import settings
+
+os.environ["DJANGO_ALLOW_ASYNC_UNSAFE"] = "true"
+
+APP_DIR = Path(settings.BASE_DIR) / "compliance" / "static" / "app"
+SHOTS = Path(settings.BASE_DIR) / "docs" / "screenshots"
+CHROMIUM = "/usr/bin/chromium"
+CHROMIUM_ARGS = [
+    "--headless",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-quic",
+    "--no-first-run",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+]
+PASSWORD = "parapet-demo-2026"
+
+
+@pytest.fixture(scope="session")
+def built_app() -> Path:
+    missing = [
+        n for n in ("index.html", "sw.js", "manifest.webmanifest") if not (APP_DIR / n).is_file()
+    ]
+    if missing:
+        pytest.fail(
+            f"The phone app is not built ({', '.join(missing)} missing in {APP_DIR}); "
+            "run `make frontend` (cd frontend && npm ci && npm run build) first."
+        )
+    return APP_DIR
+
+
+@pytest.fixture(scope="session")
+def browser():
+    from playwright.sync_api import sync_playwright
+
+    if not Path(CHROMIUM).exists():
+        pytest.fail(f"{CHROMIUM} is missing; run `make chromium` (Debian's chromium package).")
+    with sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=CHROMIUM, args=CHROMIUM_ARGS)
+        yield browser
+        browser.close()
+
+
+@pytest.fixture
+def context(browser, built_app):
+    context = browser.new_context(
+        viewport={"width": 390, "height": 844}, device_scale_factor=1, locale="en-GB"
+    )
+    context.set_default_timeout(15000)
+    yield context
+    context.close()
+
+
+@pytest.fixture
+def page(context):
+    page = context.new_page()
+    errors: list[str] = []
+    page.on("pageerror", lambda exc: errors.append(str(exc)))
+    yield page
+    assert not errors, f"JavaScript errors on the page: {errors}"
+
+
+def off_loop(fn, *args):
+    """Run database set-up in its own thread: Playwright's sync API keeps an event loop running
+    on this one, and the demo's PDF signing calls asyncio.run()."""
+    from concurrent.futures import ThreadPoolExecutor
+
+    from django.db import connection
+
+    def call():
+        try:
+            return fn(*args)
+        finally:
+            connection.close()
+
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        return pool.submit(call).result()
+
+
+@pytest.fixture
+def demo(transactional_db):
+    """The invented demo scenario; today's job is planned with no sheets."""
+    from compliance.demo import load_demo
+    from compliance.models import Job
+
+    org = off_loop(load_demo)
+    job = Job.objects.filter(organisation=org, state="planned").order_by("-date").first()
+    assert job is not None
+    return job
+
+
+def shot(page, name: str) -> None:
+    SHOTS.mkdir(parents=True, exist_ok=True)
+    page.screenshot(path=str(SHOTS / name))
+
+
+def png_bytes() -> bytes:
+    from PIL import Image
+
+    out = io.BytesIO()
+    Image.new("RGB", (64, 48), (40, 120, 200)).save(out, format="PNG")
+    return out.getvalue()
+
+
+def fill_passing_except(job, skip: set[str]) -> None:
+    """Record a passing sheet on the server for every requirement of the job not in `skip`."""
+    from checklists.selectors import current_versions
+    from checklists.services import record_sheet
+    from compliance.demo import scenario_path
+    from compliance.selectors import job_requirements
+
+    readings = json.loads(scenario_path().read_text(encoding="utf-8"))["readings"]
+    versions = {
+        v.checklist.key: v for vs in current_versions(job.organisation_id).values() for v in vs
+    }
+    operator = job.crew.get(username="tomas")
+    for req in job_requirements(job):
+        if req.key in skip:
+            continue
+        version = versions[req.checklist_key]
+        values = readings.get(req.checklist_key, {})
+        entries = {}
+        for item in version.items:
+            if item["kind"] == "tick":
+                entries[item["key"]] = {"value": "pass"}
+            elif item["kind"] in ("reading", "series"):
+                entries[item["key"]] = {"value": values[item["key"]], "unit": item["unit"]}
+        record_sheet(
+            job=job,
+            version=version,
+            by=operator,
+            entries=entries,
+            anchor=req.subject.anchor,
+            equipment=req.subject.equipment,
+        )

@@ -1,0 +1,219 @@
+"""The phone app end to end: sign in, a failed check holds the job, an offline re-check clears it,
+and an interrupted sync is retried without loss or duplicates."""
+
+import json
+
+import pytest
+
+from tests.browser.conftest import PASSWORD, fill_passing_except, off_loop, png_bytes, shot
+
+pytestmark = pytest.mark.browser
+
+ANCHOR_R1 = "anchor-pre-use@anchor:1"
+
+
+def req_selector(key: str) -> str:
+    return f"[data-testid='req-{key}']"
+
+
+def sign_in(page, base: str, screenshot: bool = False) -> None:
+    page.goto(base + "/")
+    page.wait_for_selector("input[name=username]")
+    if screenshot:
+        shot(page, "sign-in.png")
+    page.fill("input[name=username]", "tomas")
+    page.fill("input[name=password]", PASSWORD)
+    page.click("button[type=submit]")
+    page.wait_for_selector("[data-testid=jobs] a")
+    # The first sync after sign-in keeps the day's checklists and ratings on the phone.
+    page.wait_for_selector("[data-testid=strip][data-synced=yes][data-syncing=no]")
+
+
+def wait_waiting(page, count: int) -> None:
+    page.wait_for_selector(f"[data-testid=strip-waiting][data-count='{count}']")
+
+
+def wait_state(page, state: str, timeout: float = 20000) -> None:
+    page.wait_for_selector(f".state-card [data-state='{state}']", timeout=timeout)
+
+
+def fill_anchor_sheet(page, fail: str | None = None) -> None:
+    for key in ("tag_matches_register", "visual_condition", "fixings_tight", "membrane_sound"):
+        page.click(f"[data-testid=tick-{key}-{'fail' if key == fail else 'pass'}]")
+    page.fill("[data-testid=reading-tag_capacity]", "25")
+
+
+def outbox_uuids(page, base: str) -> list[str]:
+    page.goto(base + "/#/outbox")
+    page.wait_for_selector("[data-testid=outbox] li")
+    return page.eval_on_selector_all(
+        "[data-testid=outbox] li", "els => els.map(e => e.dataset.uuid)"
+    )
+
+
+def test_hold_then_offline_recheck_clears_the_job(live_server, demo, context, page):
+    from checklists.models import CheckSheet, Photo
+    from compliance.models import Job
+
+    job = demo
+    off_loop(fill_passing_except, job, {ANCHOR_R1})
+    base = live_server.url
+
+    sign_in(page, base, screenshot=True)
+    page.wait_for_selector(f"[data-testid=job-{job.id}] [data-testid=job-needs]")
+    assert "1 of 17 pre-start checks still to do" in page.inner_text(f"[data-testid=job-{job.id}]")
+    shot(page, "jobs.png")
+
+    # A failing blocking item: it rises to the top, and saving it holds the job.
+    page.click(f"[data-testid=job-{job.id}]")
+    page.click(req_selector(ANCHOR_R1))
+    page.wait_for_selector("[data-testid=items]")
+    assert "kN" in page.inner_text("[data-testid=item-tag_capacity]")
+    assert "Limit: at least" in page.inner_text("[data-testid=item-tag_capacity]")
+    assert page.get_attribute("[data-testid=reading-tag_capacity]", "inputmode") == "decimal"
+    fill_anchor_sheet(page, fail="visual_condition")
+    page.wait_for_selector("[data-testid=failed-top] [data-testid=item-visual_condition]")
+    page.evaluate("window.scrollTo(0, 0)")
+    shot(page, "sheet.png")
+    page.click("[data-testid=save]")
+    wait_state(page, "held")
+    assert "No cracks" in page.inner_text("[data-testid=holds]")
+    wait_waiting(page, 0)
+    shot(page, "job-held.png")
+    job.refresh_from_db()
+    assert job.state == "held"
+
+    # Offline: a passing re-check with a photo is kept on the phone.
+    context.set_offline(True)
+    page.wait_for_selector("[data-testid=strip-online]:has-text('Offline')")
+    page.click("[data-testid=holds] a:has-text('Re-check')")
+    page.wait_for_selector("[data-testid=items]")
+    fill_anchor_sheet(page)
+    page.set_input_files(
+        "[data-testid=photo-anchor_photo]",
+        files=[{"name": "anchor.png", "mimeType": "image/png", "buffer": png_bytes()}],
+    )
+    page.wait_for_selector("[data-testid=item-anchor_photo] img.thumb")
+    page.click("[data-testid=save]")
+    wait_waiting(page, 2)  # the sheet and its photo
+    page.wait_for_selector(f"{req_selector(ANCHOR_R1)}:has-text('waiting to send')")
+    shot(page, "offline.png")
+
+    # A reload without signal still shows the job, the state kept and what waits.
+    page.reload()
+    wait_waiting(page, 2)
+    wait_state(page, "held")
+    page.wait_for_selector(f"{req_selector(ANCHOR_R1)}:has-text('waiting to send')")
+    assert Job.objects.get(pk=job.pk).state == "held"
+    page.goto(base + "/#/")
+    page.wait_for_selector(f"[data-testid=job-{job.id}]")
+    page.goto(base + f"/#/job/{job.id}/sheet/{ANCHOR_R1}")
+    page.wait_for_selector("[data-testid=items]")  # the checklist is kept too
+
+    # Back online: the server applies it once and its state is shown.
+    page.goto(base + f"/#/job/{job.id}")
+    wait_state(page, "held")
+    context.set_offline(False)
+    wait_waiting(page, 0)
+    wait_state(page, "cleared")
+    assert "Done" in page.inner_text(req_selector(ANCHOR_R1))
+    job.refresh_from_db()
+    assert job.state == "cleared"
+
+    uuids = outbox_uuids(page, base)
+    assert len(uuids) == 2
+    for uuid in uuids:
+        assert CheckSheet.objects.filter(client_uuid=uuid).count() == 1
+    photos = Photo.objects.filter(job=job)
+    assert photos.count() == 1
+    assert str(photos.get().sheet_uuid) in uuids
+    recheck = CheckSheet.objects.get(client_uuid=photos.get().sheet_uuid)
+    assert recheck.verdict == "pass"
+
+
+def test_interrupted_sync_is_retried_without_loss_or_duplicates(live_server, demo, context, page):
+    from checklists.models import CheckSheet
+    from compliance.models import SyncReceipt
+
+    job = demo
+    base = live_server.url
+    sign_in(page, base)
+    page.click(f"[data-testid=job-{job.id}]")
+    page.wait_for_selector("[data-testid=requirements]")
+
+    # Two sheets made offline go in one batch.
+    context.set_offline(True)
+    page.wait_for_selector("[data-testid=strip-online]:has-text('Offline')")
+    for key in ("rescue-comms@site", "exclusion-zone@site"):
+        page.goto(base + f"/#/job/{job.id}/sheet/{key}")
+        page.wait_for_selector("[data-testid=items]")
+        for button in page.query_selector_all("[data-testid$='-pass']"):
+            button.click()
+        page.click("[data-testid=save]")
+        page.wait_for_selector("[data-testid=requirements]")
+    wait_waiting(page, 2)
+
+    # The first attempt reaches the server with only the first record, then the answer is lost.
+    calls: list[int] = []
+
+    def cut_off(route):
+        records = json.loads(route.request.post_data)["records"]
+        calls.append(len(records))
+        if len(calls) == 1:
+            route.fetch(post_data=json.dumps({"records": records[:1]}))
+            route.abort("timedout")
+        else:
+            route.continue_()
+
+    page.route("**/api/v1/sync/", cut_off)
+    context.set_offline(False)
+    wait_waiting(page, 0)
+    page.wait_for_selector(f"{req_selector('rescue-comms@site')}:has-text('Done')")
+    page.wait_for_selector(f"{req_selector('exclusion-zone@site')}:has-text('Done')")
+
+    assert calls[:2] == [2, 2]
+    uuids = outbox_uuids(page, base)
+    assert len(uuids) == 2
+    for uuid in uuids:
+        assert CheckSheet.objects.filter(client_uuid=uuid).count() == 1
+        assert SyncReceipt.objects.filter(client_uuid=uuid).count() == 1
+    assert CheckSheet.objects.filter(job=job).count() == 2
+
+
+def test_start_log_drops_and_a_rejected_record_stays_visible(live_server, demo, context, page):
+    from compliance import services
+    from compliance.models import DropLog, Job
+
+    job = demo
+    off_loop(fill_passing_except, job, set())
+    assert Job.objects.get(pk=job.pk).state == "cleared"
+    base = live_server.url
+    sign_in(page, base)
+    page.click(f"[data-testid=job-{job.id}]")
+    wait_state(page, "cleared")
+
+    page.click("[data-testid=start]")
+    wait_state(page, "working")
+    assert Job.objects.get(pk=job.pk).state == "working"
+    page.click(".drop:has-text('North 1') button:has-text('Log drop done')")
+    page.wait_for_selector(".drop:has-text('North 1') :text('Logged done')")
+    wait_waiting(page, 0)
+    assert DropLog.objects.filter(drop__job=job, drop__label="North 1").count() == 1
+
+    # Logged offline while the supervisor paused the job on the server: the server refuses it.
+    context.set_offline(True)
+    page.click(".drop:has-text('North 2') button:has-text('Log drop done')")
+    wait_waiting(page, 1)
+    off_loop(lambda: services.pause_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
+    context.set_offline(False)
+    page.wait_for_selector("[data-testid=strip-rejected]")
+    wait_state(page, "cleared")
+    assert "while the job is working" in page.inner_text("[data-testid=rejected]")
+    assert DropLog.objects.filter(drop__job=job, drop__label="North 2").count() == 0
+
+    page.reload()
+    page.wait_for_selector("[data-testid=rejected]:has-text('Drop done: North 2')")
+    page.click("[data-testid=caution-line] a")
+    page.wait_for_selector("[data-testid=job-cautions]")
+    assert "does not replace" in page.inner_text("[data-testid=job-cautions]")
+    shot(page, "cautions.png")
