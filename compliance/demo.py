@@ -12,6 +12,7 @@ from django.utils import timezone
 from checklists.selectors import current_versions
 from checklists.services import record_sheet
 from compliance import services
+from compliance.anchor_log import record_entry
 from compliance.daily_records import sign_daily_record
 from compliance.models import (
     Anchor,
@@ -23,6 +24,7 @@ from compliance.models import (
     JurisdictionProfile,
     Organisation,
     Site,
+    SiteAccess,
     User,
 )
 from compliance.profiles import load_defaults
@@ -98,8 +100,20 @@ def load_demo(path: Path | None = None) -> Organisation:
         people[user.username] = user
     create_self_signed(organisation=org)
     site_data = data["site"]
+    owner_data = data["owner"]
+    owner = Organisation.objects.create(name=owner_data["organisation"], kind="owner")
+    manager = User(
+        username=owner_data["username"],
+        first_name=owner_data["first_name"],
+        last_name=owner_data["last_name"],
+        role="property_manager",
+        organisation=owner,
+    )
+    manager.set_password(data["password"])
+    manager.save()
+    create_self_signed(organisation=owner)
     site = Site.objects.create(
-        organisation=org,
+        organisation=owner,
         name=site_data["name"],
         address=site_data["address"],
         height_m=site_data["height_m"],
@@ -109,6 +123,13 @@ def load_demo(path: Path | None = None) -> Organisation:
         roof_outline=site_data["roof_outline"],
     )
     today = timezone.localdate()
+    SiteAccess.objects.create(
+        site=site,
+        contractor=org,
+        granted_by=manager,
+        starts_on=today - dt.timedelta(days=30),
+        ends_on=today + dt.timedelta(days=335),
+    )
     anchors: dict[str, Anchor] = {}
     for a in data["anchors"]:
         anchor = Anchor.objects.create(site=site, label=a["label"], x_m=a["x_m"], y_m=a["y_m"])
@@ -123,6 +144,17 @@ def load_demo(path: Path | None = None) -> Organisation:
             recorded_by=people["rhea"],
         )
         anchors[a["label"]] = anchor
+        record_entry(
+            anchor=anchor,
+            by=manager,
+            password=data["password"],
+            kind="periodic_inspection",
+            result="pass",
+            performed_on=certified_on,
+            performed_by=data["certifier"]["name"],
+            performed_by_company=data["certifier"]["company"],
+            details="Annual inspection and proof load; tag renewed.",
+        )
     kit: dict[str, Equipment] = {}
     for e in data["equipment"]:
         kit[e["label"]] = services.create_equipment(
@@ -199,4 +231,5 @@ def load_demo(path: Path | None = None) -> Organisation:
 
 def demo_logins() -> list[tuple[str, str, str]]:
     data = json.loads(scenario_path().read_text(encoding="utf-8"))
-    return [(p["username"], data["password"], p["role"]) for p in data["people"]]
+    people = [(p["username"], data["password"], p["role"]) for p in data["people"]]
+    return [*people, (data["owner"]["username"], data["password"], "property manager (owner)")]

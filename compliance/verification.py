@@ -258,11 +258,58 @@ def verify_pdf(
         report, data, trusted_pems if trusted_pems is not None else known_certificates()
     ):
         return report
-    if check_content(report, data) is None:
+    document = check_content(report, data)
+    if document is None:
         return report
     if use_database:
-        check_database(report, report.seal)  # type: ignore[arg-type]
+        if document.get("format") == LOG_BOOK_FORMAT:
+            check_log_book(report, document)
+        else:
+            check_database(report, report.seal)  # type: ignore[arg-type]
     return report
+
+
+LOG_BOOK_FORMAT = "parapet.anchor-log-book/1"
+
+
+def check_log_book(report: Report, document: dict[str, Any]) -> None:
+    """Each entry in the book must be a stored entry, unchanged, and the site's log unbroken."""
+    from compliance.anchor_log import verify_log_chain
+    from compliance.models import AnchorLogEntry
+    from compliance.signing import verify_seal_signature
+
+    seals = [item["seal"] for item in document["entries"]]
+    stored = {
+        e.seal: e
+        for e in AnchorLogEntry.objects.filter(seal__in=seals).select_related("credential")
+    }
+    for item in document["entries"]:
+        entry = stored.get(item["seal"])
+        number = item["entry"].get("sequence")
+        if entry is None:
+            report.add("entries_stored", False, f"Log entry {number} is not one Parapet stored.")
+            return
+        if json.loads(entry.canonical_json) != item["entry"] or (
+            hashlib.sha256(entry.canonical_json.encode()).hexdigest() != entry.seal
+        ):
+            report.add(
+                "entries_stored", False, f"Log entry {number} differs from the stored entry."
+            )
+            return
+        if entry.credential is not None and not verify_seal_signature(
+            entry.seal, entry.seal_signature, entry.credential.certificate_pem
+        ):
+            report.add("entries_stored", False, f"Log entry {number}'s signature does not verify.")
+            return
+    report.add(
+        "entries_stored", True, f"All {len(seals)} log entries match the stored, signed entries."
+    )
+    site_id = document["site"]["id"]
+    breaks = verify_log_chain(site_id)
+    if breaks:
+        report.add("chain_intact", False, f"The site's anchor log is broken: {breaks[0].message}")
+        return
+    report.add("chain_intact", True, "The site's anchor log is unbroken.")
 
 
 def merkle_root(leaves: list[bytes]) -> str:

@@ -1,7 +1,7 @@
 from django.urls import include, path
 from rest_framework.routers import DefaultRouter
 
-from compliance.api import records, views
+from compliance.api import log_book, records, views
 
 router = DefaultRouter()
 router.register("profiles", views.ProfileViewSet, basename="profile")
@@ -13,6 +13,7 @@ router.register("checklists", views.ChecklistViewSet, basename="checklist")
 router.register("checklist-versions", views.ChecklistVersionViewSet, basename="checklist-version")
 router.register("sheets", views.SheetViewSet, basename="sheet")
 router.register("records", records.RecordViewSet, basename="record")
+router.register("anchor-log", log_book.AnchorLogViewSet, basename="anchor-log")
 
 urlpatterns = [
     path("auth/login/", views.session_login, name="login"),
@@ -23,5 +24,7 @@ urlpatterns = [
     path("sync/", views.sync, name="sync"),
     path("photos/", views.upload_photo, name="photos"),
     path("verify/", records.verify, name="verify"),
+    path("sites/<int:pk>/grants/", log_book.site_grants, name="site-grants"),
+    path("sites/<int:pk>/log-book/", log_book.log_book_pdf, name="site-log-book"),
     path("", include(router.urls)),
 ]

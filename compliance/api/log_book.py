@@ -1,0 +1,166 @@
+"""The anchor log book and site access grants over HTTP."""
+
+import datetime as dt
+import json
+from typing import Any
+
+from django.db.models import QuerySet
+from django.http import HttpResponse
+from django.shortcuts import get_object_or_404
+from drf_spectacular.utils import extend_schema
+from rest_framework import mixins, serializers, status, viewsets
+from rest_framework.decorators import api_view, permission_classes
+from rest_framework.request import Request
+from rest_framework.response import Response
+
+from compliance.access import anchors_visible_to, sites_visible_to
+from compliance.anchor_log import SIGNED_KINDS, record_entry
+from compliance.api.permissions import OrganisationMember
+from compliance.models import AnchorLogEntry, Organisation, SiteAccess
+
+
+class LogEntrySerializer(serializers.ModelSerializer):
+    anchor_label = serializers.CharField(source="anchor.label", read_only=True)
+    recorded_by = serializers.CharField(source="recorded_by.display_name", read_only=True)
+    organisation = serializers.CharField(source="organisation.name", read_only=True)
+    document = serializers.SerializerMethodField()
+
+    class Meta:
+        model = AnchorLogEntry
+        fields = [
+            "id",
+            "site",
+            "anchor",
+            "anchor_label",
+            "sequence",
+            "kind",
+            "result",
+            "performed_on",
+            "performed_by",
+            "performed_by_company",
+            "details",
+            "sheet",
+            "organisation",
+            "recorded_by",
+            "meaning",
+            "signed_at",
+            "seal",
+            "previous_seal",
+            "document",
+        ]
+
+    def get_document(self, entry: AnchorLogEntry) -> dict[str, Any]:
+        return json.loads(entry.canonical_json)
+
+
+class LogEntryInput(serializers.Serializer):
+    anchor = serializers.PrimaryKeyRelatedField(queryset=AnchorLogEntry.objects.none())
+    kind = serializers.ChoiceField(choices=[str(k) for k in SIGNED_KINDS])
+    result = serializers.ChoiceField(choices=AnchorLogEntry.Result.choices, default="none")
+    performed_on = serializers.DateField()
+    performed_by = serializers.CharField(max_length=200, required=False, allow_blank=True)
+    performed_by_company = serializers.CharField(max_length=200, required=False, allow_blank=True)
+    details = serializers.CharField(max_length=4000)
+    password = serializers.CharField(max_length=256, trim_whitespace=False)
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        org = self.context["request"].user.organisation_id
+        self.fields["anchor"].queryset = anchors_visible_to(org).select_related("site")
+
+    def validate_performed_on(self, value: dt.date) -> dt.date:
+        if value.year < 1950:
+            raise serializers.ValidationError("A date after 1950.")
+        return value
+
+
+class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
+    """Entries of the anchor log books the user may see; new entries are signed."""
+
+    serializer_class = LogEntrySerializer
+    permission_classes = [OrganisationMember]
+
+    def get_queryset(self) -> QuerySet[AnchorLogEntry]:
+        org = self.request.user.organisation_id
+        qs = AnchorLogEntry.objects.filter(site__in=sites_visible_to(org)).select_related(
+            "anchor", "recorded_by", "organisation"
+        )
+        for name in ("site", "anchor"):
+            value = self.request.query_params.get(name)
+            if value:
+                qs = qs.filter(**{f"{name}_id": int(value)}) if value.isdigit() else qs.none()
+        return qs.order_by("site_id", "sequence")
+
+    @extend_schema(request=LogEntryInput, responses={201: LogEntrySerializer})
+    def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        data = LogEntryInput(data=request.data, context={"request": request})
+        data.is_valid(raise_exception=True)
+        entry = record_entry(by=request.user, **data.validated_data)
+        return Response(LogEntrySerializer(entry).data, status=status.HTTP_201_CREATED)
+
+
+class GrantSerializer(serializers.ModelSerializer):
+    contractor = serializers.PrimaryKeyRelatedField(queryset=Organisation.objects.all())
+    contractor_name = serializers.CharField(source="contractor.name", read_only=True)
+
+    class Meta:
+        model = SiteAccess
+        fields = [
+            "id",
+            "site",
+            "contractor",
+            "contractor_name",
+            "starts_on",
+            "ends_on",
+            "granted_at",
+        ]
+        read_only_fields = ["site", "granted_at"]
+
+    def validate(self, attrs: dict[str, Any]) -> dict[str, Any]:
+        if attrs["ends_on"] < attrs["starts_on"]:
+            raise serializers.ValidationError({"ends_on": "Must not be before starts_on."})
+        return attrs
+
+
+@extend_schema(request=GrantSerializer, responses=GrantSerializer(many=True))
+@api_view(["GET", "POST"])
+@permission_classes([OrganisationMember])
+def site_grants(request: Request, pk: int) -> Response:
+    """The owner lists and grants contractors' access to its site."""
+    site = get_object_or_404(sites_visible_to(request.user.organisation_id), pk=pk)
+    if site.organisation_id != request.user.organisation_id:
+        return Response({"detail": "Only the site's owner manages access."}, status=403)
+    if request.method == "POST":
+        if not request.user.can_keep_anchor_log:
+            return Response(
+                {"detail": "Only a property manager, supervisor or admin grants access."},
+                status=403,
+            )
+        data = GrantSerializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        grant = data.save(site=site, granted_by=request.user)
+        return Response(GrantSerializer(grant).data, status=status.HTTP_201_CREATED)
+    grants = SiteAccess.objects.filter(site=site).select_related("contractor").order_by("starts_on")
+    return Response(GrantSerializer(grants, many=True).data)
+
+
+@extend_schema(responses={(200, "application/pdf"): bytes})
+@api_view(["GET"])
+@permission_classes([OrganisationMember])
+def log_book_pdf(request: Request, pk: int) -> HttpResponse:
+    """The signed PDF of the site's anchor log book (``?anchor=ID`` for one anchor)."""
+    from compliance.log_book import signed_log_book
+
+    site = get_object_or_404(
+        sites_visible_to(request.user.organisation_id).select_related("profile"), pk=pk
+    )
+    anchor = None
+    anchor_id = request.query_params.get("anchor")
+    if anchor_id:
+        if not anchor_id.isdigit():
+            return Response({"anchor": ["An anchor id."]}, status=400)
+        anchor = get_object_or_404(site.anchors.all(), pk=int(anchor_id))
+    pdf, seal = signed_log_book(site, request.user, anchor)
+    response = HttpResponse(pdf, content_type="application/pdf")
+    response["Content-Disposition"] = f'attachment; filename="anchor-log-{site.pk}-{seal[:12]}.pdf"'
+    return response

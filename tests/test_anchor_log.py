@@ -1,0 +1,356 @@
+"""The building's anchor log book: sharing between owner and contractors, holds, signed entries."""
+
+import datetime as dt
+import io
+import json
+
+import pytest
+from django.db import connection
+from django.urls import reverse
+from django.utils import timezone
+from pypdf import PdfReader
+
+from checklists.services import record_sheet
+from compliance.anchor_log import record_entry, verify_log_chain
+from compliance.append_only import AppendOnlyViolation
+from compliance.errors import JobBlocked, NotPermitted
+from compliance.log_book import signed_log_book
+from compliance.models import AnchorLogEntry, JobState, SiteAccess
+from compliance.sealing import seal_of
+from compliance.services import start_job
+from compliance.signing import create_self_signed, verify_seal_signature
+from compliance.verification import verify_pdf
+from tests.conftest import PASSING, client_for, fill_all
+from tests.factories import (
+    PASSWORD,
+    AnchorFactory,
+    CertificationFactory,
+    JobFactory,
+    OrganisationFactory,
+    SiteFactory,
+    UserFactory,
+    make_drop,
+)
+
+pytestmark = pytest.mark.django_db
+TODAY = timezone.localdate
+
+
+@pytest.fixture
+def building(simple_checklists):
+    """An owner's tower, a contractor working there under a grant, and a planned job."""
+    owner = OrganisationFactory(name="Tower owners", kind="owner")
+    manager = UserFactory(organisation=owner, role="property_manager")
+    create_self_signed(organisation=owner)
+    site = SiteFactory(organisation=owner)
+    contractor = OrganisationFactory(name="Facade crew")
+    create_self_signed(organisation=contractor)
+    SiteAccess.objects.create(
+        site=site,
+        contractor=contractor,
+        granted_by=manager,
+        starts_on=TODAY() - dt.timedelta(days=10),
+        ends_on=TODAY() + dt.timedelta(days=30),
+    )
+    supervisor = UserFactory(organisation=contractor, role="supervisor")
+    operator = UserFactory(organisation=contractor, role="operator")
+    job = JobFactory(site=site, organisation=contractor, supervisor=supervisor)
+    drop = make_drop(job)
+    return {
+        "owner": owner,
+        "manager": manager,
+        "site": site,
+        "contractor": contractor,
+        "supervisor": supervisor,
+        "operator": operator,
+        "job": job,
+        "drop": drop,
+    }
+
+
+def sign(b, kind="repair", anchor=None, **extra):
+    return record_entry(
+        anchor=anchor or b["drop"].anchor,
+        by=b["manager"],
+        password=PASSWORD,
+        kind=kind,
+        details=extra.pop("details", "Bolt replaced and torqued."),
+        performed_on=extra.pop("performed_on", TODAY()),
+        **extra,
+    )
+
+
+def urls(b):
+    site = b["site"]
+    return [
+        reverse("site-detail", args=[site.pk]),
+        reverse("anchor-detail", args=[b["drop"].anchor_id]),
+        reverse("anchor-log-list") + f"?site={site.pk}",
+    ]
+
+
+def test_owner_sees_site_anchors_and_log_but_nothing_else_of_the_contractor(building):
+    b = building
+    sign(b)
+    client = client_for(b["manager"])
+    for url in urls(b)[:2]:
+        assert client.get(url).status_code == 200, url
+    assert len(client.get(urls(b)[2]).json()["results"]) == 1
+    assert client.get(reverse("job-detail", args=[b["job"].pk])).status_code == 404
+    assert client.get(reverse("equipment-detail", args=[b["drop"].robot_id])).status_code == 404
+    assert client.get(reverse("sheet-list")).json()["results"] == []
+
+
+def test_contractor_with_a_current_grant_works_and_sees_the_log(building):
+    b = building
+    sign(b)
+    client = client_for(b["supervisor"])
+    for url in urls(b):
+        assert client.get(url).status_code == 200, url
+    assert len(client.get(urls(b)[2]).json()["results"]) == 1
+    response = client.post(
+        reverse("job-list"),
+        {"site": b["site"].pk, "date": str(TODAY()), "supervisor": b["supervisor"].pk},
+        format="json",
+    )
+    assert response.status_code == 201, response.json()
+
+
+def test_contractor_whose_grant_expired_sees_nothing_and_cannot_start(building, simple_checklists):
+    b = building
+    fill_all(b["job"], simple_checklists, b["operator"])
+    SiteAccess.objects.create(
+        site=b["site"],
+        contractor=b["contractor"],
+        granted_by=b["manager"],
+        starts_on=TODAY() - dt.timedelta(days=60),
+        ends_on=TODAY() - dt.timedelta(days=31),
+    )
+    with connection.cursor() as cursor:  # the current grant ends yesterday (grants are append-only)
+        cursor.execute(
+            "UPDATE compliance_siteaccess SET ends_on = %s WHERE ends_on > %s",
+            [TODAY() - dt.timedelta(days=1), TODAY()],
+        )
+    client = client_for(b["supervisor"])
+    assert client.get(urls(b)[0]).status_code == 404
+    assert client.get(urls(b)[1]).status_code == 404
+    assert client.get(urls(b)[2]).json()["results"] == []
+    response = client.post(
+        reverse("job-list"),
+        {"site": b["site"].pk, "date": str(TODAY()), "supervisor": b["supervisor"].pk},
+        format="json",
+    )
+    assert response.status_code == 400 and "site" in response.json()
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=b["job"], by=b["operator"])
+    assert "no_site_access" in [r.code for r in caught.value.reasons]
+
+
+def test_a_third_party_sees_nothing(building):
+    b = building
+    sign(b)
+    stranger = UserFactory(organisation=OrganisationFactory(), role="supervisor")
+    client = client_for(stranger)
+    for url in urls(b)[:2]:
+        assert client.get(url).status_code == 404
+    assert client.get(urls(b)[2]).json()["results"] == []
+    assert client.get(reverse("site-log-book", args=[b["site"].pk])).status_code == 404
+    with pytest.raises(NotPermitted):
+        record_entry(
+            anchor=b["drop"].anchor,
+            by=stranger,
+            password=PASSWORD,
+            kind="repair",
+            details="x",
+            performed_on=TODAY(),
+        )
+
+
+def test_only_the_owner_grants_access(building):
+    b = building
+    body = {"contractor": b["contractor"].pk, "starts_on": str(TODAY()), "ends_on": str(TODAY())}
+    url = reverse("site-grants", args=[b["site"].pk])
+    assert client_for(b["supervisor"]).post(url, body, format="json").status_code == 403
+    assert client_for(b["manager"]).post(url, body, format="json").status_code == 201
+    bad = client_for(b["manager"]).post(url, {**body, "ends_on": "2000-01-01"}, format="json")
+    assert bad.status_code == 400 and "ends_on" in bad.json()
+
+
+def test_removing_an_anchor_from_service_holds_jobs_that_use_it(building, simple_checklists):
+    b = building
+    fill_all(b["job"], simple_checklists, b["operator"])
+    start_job(job=b["job"], by=b["operator"])
+    entry = sign(b, kind="removed_from_service", details="Base cracked; do not use.")
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.HELD
+    hold = b["job"].holds.get(log_entry=entry)
+    assert f"Anchor {b['drop'].anchor.label} was removed from service" in hold.reason
+    # a passing pre-use sheet does not clear it; the return to service does
+    fill_all(b["job"], simple_checklists, b["operator"])
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.HELD
+    sign(b, kind="returned_to_service", result="pass", details="New base, proof loaded.")
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.CLEARED
+    assert hold.clearance.log_entry.kind == "returned_to_service"
+
+
+def test_a_job_planning_an_out_of_service_anchor_cannot_start(building, simple_checklists):
+    b = building
+    sign(b, kind="removed_from_service", details="Corroded.")
+    fill_all(b["job"], simple_checklists, b["operator"])
+    other = JobFactory(
+        site=b["site"],
+        organisation=b["contractor"],
+        supervisor=b["supervisor"],
+        date=TODAY() + dt.timedelta(days=1),
+    )
+    drop = make_drop(other)
+    drop.anchor = b["drop"].anchor
+    drop.save()
+    fill_all(other, simple_checklists, b["operator"])
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=other, by=b["operator"])
+    assert "anchor_out_of_service" in [r.code for r in caught.value.reasons]
+
+
+def test_an_overdue_periodic_inspection_blocks_start(building, simple_checklists):
+    b = building
+    anchor = AnchorFactory(site=b["site"])
+    long_ago = TODAY() - dt.timedelta(days=500)
+    CertificationFactory(
+        anchor=anchor, certified_on=long_ago, valid_until=TODAY() + dt.timedelta(days=100)
+    )
+    b["drop"].safety_anchor = anchor
+    b["drop"].save()
+    fill_all(b["job"], simple_checklists, b["operator"])
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=b["job"], by=b["operator"])
+    reasons = {r.code: r.message for r in caught.value.reasons}
+    assert "anchor_inspection_overdue" in reasons
+    sign(b, anchor=anchor, kind="periodic_inspection", result="pass", details="Inspected.")
+    start_job(job=b["job"], by=b["operator"])
+
+
+def test_entries_need_the_password_and_the_right_role(building):
+    b = building
+    with pytest.raises(NotPermitted):
+        record_entry(
+            anchor=b["drop"].anchor,
+            by=b["manager"],
+            password="wrong",
+            kind="repair",
+            details="x",
+            performed_on=TODAY(),
+        )
+    with pytest.raises(NotPermitted):
+        record_entry(
+            anchor=b["drop"].anchor,
+            by=b["operator"],
+            password=PASSWORD,
+            kind="repair",
+            details="x",
+            performed_on=TODAY(),
+        )
+    client = client_for(b["manager"])
+    body = {
+        "anchor": b["drop"].anchor_id,
+        "kind": "load_test",
+        "result": "pass",
+        "performed_on": str(TODAY()),
+        "details": "Proof load 15 kN held 3 min.",
+        "password": PASSWORD,
+    }
+    assert client.post(reverse("anchor-log-list"), body, format="json").status_code == 201
+    for field, value in (("kind", "teleport"), ("performed_on", "1900-01-01"), ("anchor", 99999)):
+        response = client.post(reverse("anchor-log-list"), {**body, field: value}, format="json")
+        assert response.status_code == 400 and field in response.json(), field
+    assert (
+        client.post(
+            reverse("anchor-log-list"), {**body, "kind": "pre_use_check"}, format="json"
+        ).status_code
+        == 400
+    )
+
+
+def test_entries_are_append_only_signed_and_chained(building):
+    b = building
+    first, second = sign(b), sign(b, kind="modification", details="Added a second eye.")
+    assert (first.sequence, second.sequence) == (1, 2) and second.previous_seal == first.seal
+    assert seal_of(json.loads(second.canonical_json)) == second.seal
+    assert verify_seal_signature(
+        second.seal, second.seal_signature, second.credential.certificate_pem
+    )
+    document = json.loads(second.canonical_json)
+    assert document["signature"]["name"] == b["manager"].display_name
+    assert "password re-entered" in document["signature"]["method"]
+    second.details = "rewritten"
+    with pytest.raises(AppendOnlyViolation):
+        second.save()
+    with pytest.raises(AppendOnlyViolation):
+        AnchorLogEntry.objects.filter(pk=first.pk).delete()
+    assert verify_log_chain(b["site"].pk) == []
+
+
+def test_a_contractors_pre_use_check_flows_into_the_log(building, simple_checklists):
+    b = building
+    anchor = b["drop"].anchor
+    record_sheet(
+        job=b["job"],
+        version=simple_checklists["anchor"],
+        by=b["operator"],
+        anchor=anchor,
+        entries={**PASSING["anchor"], "sound": {"value": "fail"}},
+    )
+    entry = AnchorLogEntry.objects.get(kind="pre_use_check")
+    assert entry.anchor == anchor and entry.result == "fail" and "sound" in entry.details
+    assert entry.performed_by_company == b["contractor"].name
+    owner_view = (
+        client_for(b["manager"])
+        .get(reverse("anchor-log-list"), {"anchor": anchor.pk})
+        .json()["results"]
+    )
+    assert [e["kind"] for e in owner_view] == ["pre_use_check"]
+
+
+def test_the_log_book_pdf_carries_every_entry_and_verifies(building, simple_checklists):
+    b = building
+    sign(b)
+    sign(b, kind="periodic_inspection", result="pass", details="Yearly inspection.")
+    record_sheet(
+        job=b["job"],
+        version=simple_checklists["anchor"],
+        by=b["operator"],
+        anchor=b["drop"].anchor,
+        entries=PASSING["anchor"],
+    )
+    response = client_for(b["manager"]).get(reverse("site-log-book", args=[b["site"].pk]))
+    assert response.status_code == 200
+    pdf = response.content
+    report = verify_pdf(pdf)
+    assert report.ok, report.as_dict()
+    reader = PdfReader(io.BytesIO(pdf))
+    text = " ".join(" ".join(page.extract_text() for page in reader.pages).split())
+    assert "Anchor log book" in text and "licensed professional engineer" in text
+    document = json.loads(reader.attachments["daily-record.json"][0])
+    seals = {e.seal for e in AnchorLogEntry.objects.filter(site=b["site"])}
+    assert {item["seal"] for item in document["entries"]} == seals and len(seals) == 3
+    assert {a["label"] for a in document["anchors"]} == set(
+        b["site"].anchors.values_list("label", flat=True)
+    )
+    with connection.cursor() as cursor:
+        cursor.execute(
+            "UPDATE compliance_anchorlogentry SET canonical_json = "
+            "REPLACE(canonical_json, 'Yearly', 'Monthly')"
+        )
+    assert verify_pdf(pdf).first_failure.name == "entries_stored"
+
+
+def test_one_anchors_log_book(building):
+    b = building
+    sign(b)
+    sign(b, anchor=b["drop"].safety_anchor)
+    pdf, _ = signed_log_book(b["site"], b["manager"], anchor=b["drop"].anchor)
+    document = json.loads(PdfReader(io.BytesIO(pdf)).attachments["daily-record.json"][0])
+    assert [item["entry"]["anchor"]["id"] for item in document["entries"]] == [b["drop"].anchor_id]
+    assert verify_pdf(pdf).ok
