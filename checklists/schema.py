@@ -13,6 +13,7 @@ from django.core.exceptions import ValidationError
 
 ITEM_KINDS = ("tick", "reading", "series", "calc", "photo", "note")
 SUBJECT_KINDS = ("anchor", "robot", "tether", "safety_line", "hose", "site")
+SUBJECT_KIND_CHOICES = [(k, k) for k in SUBJECT_KINDS]
 SOURCE_KINDS = (
     "value",  # a literal number in the checklist
     "profile",  # a threshold of the site's jurisdiction profile

@@ -247,7 +247,7 @@ def job_blockers(
 
 def jobs_for(user: User) -> QuerySet[Job]:
     return (
-        Job.objects.filter(organisation_id=user.organisation_id)
+        Job.objects.filter(organisation_id=getattr(user, "organisation_id", None))
         .select_related("site", "site__profile", "supervisor")
         .order_by("-date", "id")
     )

@@ -132,3 +132,13 @@ def pytest_collection_modifyitems(config, items):
     if drop:
         config.hook.pytest_deselected(items=drop)
         items[:] = keep
+
+
+@pytest.fixture(autouse=True)
+def _fresh_cache():
+    """Throttle counters live in the cache; each test starts with none."""
+    from django.core.cache import cache
+
+    cache.clear()
+    yield
+    cache.clear()

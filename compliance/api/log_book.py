@@ -65,7 +65,8 @@ class LogEntryInput(serializers.Serializer):
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)
-        org = self.context["request"].user.organisation_id
+        request = self.context.get("request")
+        org = getattr(getattr(request, "user", None), "organisation_id", None)
         self.fields["anchor"].queryset = anchors_visible_to(org).select_related("site")
 
     def validate_performed_on(self, value: dt.date) -> dt.date:
@@ -81,7 +82,7 @@ class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     permission_classes = [OrganisationMember]
 
     def get_queryset(self) -> QuerySet[AnchorLogEntry]:
-        org = self.request.user.organisation_id
+        org = getattr(self.request.user, "organisation_id", None)
         qs = AnchorLogEntry.objects.filter(site__in=sites_visible_to(org)).select_related(
             "anchor", "recorded_by", "organisation"
         )

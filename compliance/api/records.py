@@ -67,7 +67,8 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
     permission_classes = [OrganisationMember]
 
     def get_queryset(self) -> QuerySet[DailyRecord]:
-        qs = DailyRecord.objects.filter(organisation_id=self.request.user.organisation_id)
+        org = getattr(self.request.user, "organisation_id", None)
+        qs = DailyRecord.objects.filter(organisation_id=org)
         site = self.request.query_params.get("site")
         if site:
             qs = qs.filter(site_id=int(site)) if site.isdigit() else qs.none()

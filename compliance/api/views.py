@@ -19,7 +19,7 @@ from rest_framework.parsers import MultiPartParser
 from rest_framework.permissions import AllowAny, IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
-from rest_framework.throttling import ScopedRateThrottle
+from rest_framework.throttling import SimpleRateThrottle
 
 from checklists import services as checklist_services
 from checklists.models import Checklist, ChecklistVersion
@@ -40,7 +40,9 @@ from compliance.models import (
 from compliance.selectors import job_readiness, jobs_for
 
 
-class LoginThrottle(ScopedRateThrottle):
+class LoginThrottle(SimpleRateThrottle):
+    """Limits sign-in attempts per client address and username (rate: settings, "login")."""
+
     scope = "login"
 
     def get_cache_key(self, request: Request, view: Any) -> str | None:
@@ -204,7 +206,7 @@ class OrgScoped:
 
     @property
     def org_id(self) -> int | None:
-        return self.request.user.organisation_id
+        return getattr(self.request.user, "organisation_id", None)
 
 
 class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):

@@ -1,0 +1,120 @@
+"""Deploy checks, login throttling, password hashing, CSP, CSRF and the API schema."""
+
+import os
+import secrets
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from django.contrib.auth.hashers import make_password
+from django.core.cache import cache
+from django.urls import reverse
+from rest_framework.test import APIClient
+
+from tests.factories import PASSWORD, UserFactory
+
+pytestmark = pytest.mark.django_db
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def _manage(*args: str, **env: str) -> subprocess.CompletedProcess[str]:
+    clean = {k: v for k, v in os.environ.items() if k not in ("DATABASE_URL", "CELERY_BROKER_URL")}
+    return subprocess.run(
+        [sys.executable, "manage.py", *args],
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+        env={**clean, **env},
+        timeout=120,
+    )
+
+
+def test_check_deploy_is_clean_with_production_settings():
+    result = _manage(
+        "check",
+        "--deploy",
+        "--fail-level",
+        "WARNING",
+        DJANGO_DEBUG="false",
+        DJANGO_SECRET_KEY=secrets.token_urlsafe(64),
+        DJANGO_ALLOWED_HOSTS="parapet.example",
+    )
+    assert result.returncode == 0, result.stdout + result.stderr
+    assert "no issues" in result.stdout
+
+
+def test_the_openapi_schema_generates_without_warnings():
+    result = _manage("spectacular", "--validate", "--fail-on-warn", "--file", os.devnull)
+    assert result.returncode == 0, result.stderr
+
+
+def test_passwords_are_hashed_with_argon2(settings):
+    settings.PASSWORD_HASHERS = [
+        "django.contrib.auth.hashers.Argon2PasswordHasher",
+        "django.contrib.auth.hashers.PBKDF2PasswordHasher",
+    ]
+    assert make_password("a long pass phrase").startswith("argon2$argon2id$")
+
+
+def test_production_settings_hash_with_argon2_first():
+    from django.conf import settings
+
+    # the test run swaps in a fast hasher; the project's own settings module names Argon2 first
+    text = (ROOT / "compliance" / "settings.py").read_text()
+    assert text.index("Argon2PasswordHasher") < text.index("PBKDF2PasswordHasher")
+    assert settings.AUTH_USER_MODEL == "compliance.User"
+
+
+def test_login_is_throttled():
+    cache.clear()
+    user = UserFactory()
+    client = APIClient()
+    codes = [
+        client.post(
+            reverse("token"), {"username": user.username, "password": "wrong"}, format="json"
+        ).status_code
+        for _ in range(21)
+    ]
+    assert codes[:20] == [400] * 20 and codes[20] == 429
+    cache.clear()
+    assert (
+        client.post(
+            reverse("token"), {"username": user.username, "password": PASSWORD}, format="json"
+        ).status_code
+        == 200
+    )
+
+
+def test_responses_carry_a_content_security_policy(client):
+    response = client.get(reverse("schema"))
+    policy = response.headers["Content-Security-Policy"]
+    assert "default-src 'self'" in policy and "frame-ancestors 'none'" in policy
+    assert "script-src 'self'" in policy and "unsafe-eval" not in policy
+    assert response.headers["X-Frame-Options"] == "DENY"
+
+
+def test_session_api_requires_csrf():
+    cache.clear()
+    user = UserFactory(role="supervisor")
+    client = APIClient(enforce_csrf_checks=True)
+    response = client.post(
+        reverse("login"), {"username": user.username, "password": PASSWORD}, format="json"
+    )
+    assert response.status_code == 200
+    without = client.post(reverse("logout"))
+    assert without.status_code == 403 and "CSRF" in without.json()["detail"]
+    token = client.cookies.get("csrftoken")
+    page = client.get("/")  # the app shell sets the CSRF cookie
+    token = client.cookies.get("csrftoken") or token
+    assert token is not None, page.status_code
+    with_token = client.post(reverse("logout"), HTTP_X_CSRFTOKEN=token.value)
+    assert with_token.status_code == 204
+
+
+def test_oversized_json_is_refused(job, operator):
+    from tests.conftest import client_for
+
+    body = '{"records": ["' + "x" * (6 * 1024 * 1024) + '"]}'
+    response = client_for(operator).post(reverse("sync"), body, content_type="application/json")
+    assert response.status_code in (400, 413)
