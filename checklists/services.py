@@ -131,14 +131,18 @@ def diff_versions(a: ChecklistVersion, b: ChecklistVersion) -> dict[str, Any]:
 
 
 def sheet_context(
-    job: Job, subject_kind: str, anchor: Anchor | None, equipment: Equipment | None
+    job: Job,
+    subject_kind: str,
+    anchor: Anchor | None,
+    equipment: Equipment | None,
+    drops: list[Any] | None = None,
 ) -> dict[str, dict[str, Any]]:
     """The numbers a sheet's limits and calculations may draw on."""
     profile = job.site.profile
     context: dict[str, dict[str, Any]] = {"profile": dict(profile.thresholds)}
     if equipment is not None:
         context["equipment"] = dict(equipment.ratings)
-    drops = drops_of(job)
+    drops = drops_of(job) if drops is None else drops
     drop = next(
         (
             d
@@ -224,11 +228,12 @@ def record_sheet(
     if job.state == JobState.CLOSED:
         raise InvalidTransition("This job is closed; its sheets can no longer change.")
     subject_kind = _subject_for(job, version, anchor, equipment)
+    drops = drops_of(job)
     if not isinstance(entries, dict):
         raise ValidationError({"entries": "Entries are an object keyed by item key."})
     try:
         outcome: SheetOutcome = evaluate(
-            version.items, entries, sheet_context(job, subject_kind, anchor, equipment)
+            version.items, entries, sheet_context(job, subject_kind, anchor, equipment, drops)
         )
     except EntryError as exc:
         raise ValidationError({exc.field: exc.message}) from None
@@ -265,7 +270,7 @@ def record_sheet(
                     for r in outcome.items
                 ]
             )
-            apply_sheet_outcome(sheet=sheet, outcome=outcome, by=by)
+            apply_sheet_outcome(sheet=sheet, outcome=outcome, by=by, drops=drops)
             if subject_kind == "anchor":
                 from compliance.anchor_log import log_pre_use_check
 

@@ -145,7 +145,9 @@ def close_job(*, job: Job, by: User, reason: str = "") -> Job:
         return _transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")
 
 
-def apply_sheet_outcome(*, sheet: "CheckSheet", outcome: "SheetOutcome", by: User) -> Job:
+def apply_sheet_outcome(
+    *, sheet: "CheckSheet", outcome: "SheetOutcome", by: User, drops: list[Drop] | None = None
+) -> Job:
     """Open holds for failed blocking items, or clear this requirement's holds on a pass."""
     job = _locked(sheet.job)
     requirement = sheet.requirement
@@ -167,16 +169,16 @@ def apply_sheet_outcome(*, sheet: "CheckSheet", outcome: "SheetOutcome", by: Use
         return job
     for hold in Hold.objects.filter(job=job, requirement=requirement, clearance__isnull=True):
         HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
-    return refresh_readiness(job=job, by=by)
+    return refresh_readiness(job=job, by=by, drops=drops)
 
 
-def refresh_readiness(*, job: Job, by: User | None) -> Job:
+def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = None) -> Job:
     """Move a held or planned job to cleared (or back to planned) from what it now has."""
     if job.state not in (JobState.PLANNED, JobState.HELD, JobState.CLEARED):
         return job
     if Hold.objects.filter(job=job, clearance__isnull=True).exists():
         return job
-    ready = not job_blockers(job)
+    ready = not job_blockers(job, drops)
     if job.state == JobState.HELD:
         target = JobState.CLEARED if ready else JobState.PLANNED
         return _transition(job, target, by, "Every hold cleared by a passing re-check.")
