@@ -1,4 +1,5 @@
 from django.contrib import admin
+from django.contrib.auth import views as auth_views
 from django.urls import include, path
 from drf_spectacular.views import SpectacularAPIView
 
@@ -9,6 +10,11 @@ urlpatterns = [
     path("api/v1/", include("compliance.api.urls")),
     path("api/schema/", SpectacularAPIView.as_view(), name="schema"),
     path("verify/", app_views.verify_page, name="verify-page"),
+    path(
+        "login/",
+        auth_views.LoginView.as_view(template_name="parapet/login.html"),
+        name="login-page",
+    ),
     path("sw.js", app_views.service_worker, name="service-worker"),
     path("manifest.webmanifest", app_views.manifest, name="manifest"),
     path("", app_views.app_shell, name="app"),

@@ -378,8 +378,13 @@ def test_the_auditor_page_shows_the_verdict(signed, signed_pdf, client):
 
     from tests.factories import UserFactory
 
-    assert client.get("/verify/").status_code == 302  # sign in first
-    client.force_login(UserFactory(organisation=signed.organisation, role="auditor"))
+    assert client.get("/verify/").url.startswith("/login/")  # sign in first
+    auditor = UserFactory(organisation=signed.organisation, role="auditor")
+    signed_in = client.post(
+        "/login/?next=/verify/",
+        {"username": auditor.username, "password": PASSWORD, "next": "/verify/"},
+    )
+    assert signed_in.status_code == 302 and signed_in.url == "/verify/"
     page = client.get("/verify/")
     assert page.status_code == 200 and b"does not" in page.content
     upload = SimpleUploadedFile("record.pdf", signed_pdf, content_type="application/pdf")
