@@ -5,6 +5,7 @@ the signature manifestation (printed name, role, meaning, time) and the previous
 so the seal binds the signature to this record and to its place in the site's chain.
 """
 
+import datetime as dt
 import json
 from dataclasses import dataclass, field
 from typing import Any
@@ -173,6 +174,7 @@ def day_content(job: Job) -> dict[str, Any]:
                 "filled_by": s.filled_by.display_name,
                 "device_time": utc(s.device_time),
                 "received_at": utc(s.received_at),
+                "clock_offset_s": clock_offset_s(s.device_time, s.received_at),
                 "verdict": s.verdict,
                 "blocking_failures": s.blocking_failures,
                 "remarks": s.remarks,
@@ -225,8 +227,41 @@ def day_content(job: Job) -> dict[str, Any]:
             for p in photos
         ],
         "weather": weather,
+        "clock_notes": clock_notes(sheets, logs),
         "units": "SI: lengths m, forces kN or N, pressures kPa, speeds m/s, masses kg, times UTC",
     }
+
+
+CLOCK_TOLERANCE_S = 300
+
+
+def clock_offset_s(device: dt.datetime | None, received: dt.datetime) -> int | None:
+    """Phone clock minus server clock at receipt, in whole seconds (None when not given)."""
+    return None if device is None else round((device - received).total_seconds())
+
+
+def clock_notes(sheets: list[CheckSheet], logs: list[DropLog]) -> list[str]:
+    """Plain words for every record whose phone clock was off by more than five minutes.
+
+    An offline record reaches the server late, so only a phone time *after* its receipt, or
+    one far earlier than the day, shows a wrong clock; both times stay in the record.
+    """
+    notes = []
+    rows = [(f"sheet {s.pk}", s.device_time, s.received_at) for s in sheets]
+    rows += [(f"drop log {log.pk}", log.device_time, log.received_at) for log in logs]
+    for name, device, received in rows:
+        offset = clock_offset_s(device, received)
+        if offset is None:
+            continue
+        late_day = device is not None and device.date() < received.date() - dt.timedelta(days=1)
+        if offset > CLOCK_TOLERANCE_S or late_day:
+            hours, rest = divmod(abs(offset), 3600)
+            notes.append(
+                f"{name}: the phone's clock read {utc(device)}, {hours} h {rest // 60} min "
+                f"{'ahead of' if offset > 0 else 'behind'} the server's receipt at "
+                f"{utc(received)}; the server's time is the one of record."
+            )
+    return notes
 
 
 def open_holds_of(content: dict[str, Any]) -> list[dict[str, Any]]:

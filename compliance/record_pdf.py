@@ -313,6 +313,8 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]
         )
     else:
         story.append(_p("No holds this day.", s["body"]))
+    for note in record.get("clock_notes", []):
+        story.append(_p(f"Clock: {note}", s["small"]))
     failed = [(sh, e) for sh in record["sheets"] for e in sh["entries"] if e["verdict"] == "fail"]
     if failed:
         story.append(Spacer(1, 3 * mm))

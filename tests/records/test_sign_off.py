@@ -182,3 +182,40 @@ def test_record_list_queries_are_constant(
         sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
     with django_assert_num_queries(len(small.captured_queries)):
         client.get(reverse("record-list"))
+
+
+def test_a_wrong_phone_clock_is_stated_in_the_record(
+    job, simple_checklists, operator, supervisor, credential
+):
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from compliance.services import close_job, start_job
+
+    ahead = timezone.now() + dt.timedelta(hours=5)
+    sheets = []
+    from compliance.selectors import job_requirements
+
+    for req in job_requirements(job):
+        entries = PASSING[req.subject.kind]
+        sheet, _ = record_sheet(
+            job=job,
+            version=simple_checklists[req.subject.kind],
+            by=operator,
+            entries=entries,
+            anchor=req.subject.anchor,
+            equipment=req.subject.equipment,
+            device_time=ahead if req.subject.kind == "site" else None,
+        )
+        sheets.append(sheet)
+    start_job(job=job, by=operator)
+    close_job(job=job, by=operator)
+    record = sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    content = json.loads(record.canonical_json)["record"]
+    site_sheet = next(s for s in content["sheets"] if s["subject_kind"] == "site")
+    assert 5 * 3600 - 60 < site_sheet["clock_offset_s"] <= 5 * 3600
+    assert site_sheet["device_time"] != site_sheet["received_at"]
+    assert len(content["clock_notes"]) == 1
+    assert "5 h 0 min ahead of the server's receipt" in content["clock_notes"][0]
+    assert "the server's time is the one of record" in content["clock_notes"][0]
