@@ -118,6 +118,9 @@ class CheckSheet(AppendOnlyModel):
     )
     filled_by = models.ForeignKey(User, on_delete=models.PROTECT, related_name="sheets")
     device_time = models.DateTimeField(null=True, blank=True)
+    phone_clock_offset_s = models.IntegerField(
+        null=True, blank=True, help_text="Phone clock minus server clock when the batch was sent."
+    )
     received_at = models.DateTimeField(auto_now_add=True)
     verdict = models.CharField(max_length=10, choices=Verdict.choices)
     blocking_failures = models.PositiveIntegerField(default=0)

@@ -206,10 +206,13 @@ def record_sheet(
     equipment: Equipment | None = None,
     device_time: dt.datetime | None = None,
     remarks: str = "",
+    phone_clock_offset_s: int | None = None,
+    defer_readiness: bool = False,
 ) -> tuple[CheckSheet, bool]:
     """Record a filled sheet exactly once per client uuid; return (sheet, created).
 
     Invalid input raises ValidationError keyed by field and stores nothing.
+    ``phone_clock_offset_s`` is the phone's clock minus the server's when its batch was sent.
     """
     if not by.can_write:
         raise NotPermitted("Auditors have read-only access.")
@@ -249,6 +252,7 @@ def record_sheet(
                 equipment=equipment,
                 filled_by=by,
                 device_time=device_time,
+                phone_clock_offset_s=phone_clock_offset_s,
                 verdict=outcome.verdict,
                 blocking_failures=len(outcome.blocking_failures),
                 remarks=remarks,
@@ -270,7 +274,9 @@ def record_sheet(
                     for r in outcome.items
                 ]
             )
-            apply_sheet_outcome(sheet=sheet, outcome=outcome, by=by, drops=drops)
+            apply_sheet_outcome(
+                sheet=sheet, outcome=outcome, by=by, drops=drops, defer_readiness=defer_readiness
+            )
             if subject_kind == "anchor":
                 from compliance.anchor_log import log_pre_use_check
 

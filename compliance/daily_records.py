@@ -175,6 +175,7 @@ def day_content(job: Job) -> dict[str, Any]:
                 "device_time": utc(s.device_time),
                 "received_at": utc(s.received_at),
                 "clock_offset_s": clock_offset_s(s.device_time, s.received_at),
+                "phone_clock_offset_s": s.phone_clock_offset_s,
                 "verdict": s.verdict,
                 "blocking_failures": s.blocking_failures,
                 "remarks": s.remarks,
@@ -247,7 +248,17 @@ def clock_notes(sheets: list[CheckSheet], logs: list[DropLog]) -> list[str]:
     one far earlier than the day, shows a wrong clock; both times stay in the record.
     """
     notes = []
-    rows = [(f"sheet {s.pk}", s.device_time, s.received_at) for s in sheets]
+    for sheet in sheets:
+        offset = sheet.phone_clock_offset_s
+        if offset is not None and abs(offset) > CLOCK_TOLERANCE_S:
+            hours, rest = divmod(abs(offset), 3600)
+            notes.append(
+                f"sheet {sheet.pk}: when its batch was sent, the phone's clock was {hours} h "
+                f"{rest // 60} min {'ahead of' if offset > 0 else 'behind'} the server's; "
+                "the server's time is the one of record."
+            )
+    measured = {s.pk for s in sheets if s.phone_clock_offset_s is not None}
+    rows = [(f"sheet {s.pk}", s.device_time, s.received_at) for s in sheets if s.pk not in measured]
     rows += [(f"drop log {log.pk}", log.device_time, log.received_at) for log in logs]
     for name, device, received in rows:
         offset = clock_offset_s(device, received)

@@ -44,17 +44,22 @@ def ensure_pdf(record: DailyRecord) -> RecordPdf:
     if existing is not None:
         return existing
     data = render_signed_pdf(record)
+    pdf = RecordPdf(record=record, sha256=sha256_hex(data), size_bytes=len(data))
     try:
         with transaction.atomic():
-            pdf = RecordPdf(record=record, sha256=sha256_hex(data), size_bytes=len(data))
             pdf.file.save(
                 f"record-{record.site_id}-{record.sequence}-{record.seal[:12]}.pdf",
                 ContentFile(data),
                 save=False,
             )
             pdf.save()
-    except IntegrityError:
-        return RecordPdf.objects.get(record=record)
+    except BaseException as exc:
+        # A crash between storing the file and its row leaves no orphan file behind.
+        if pdf.file.name:
+            pdf.file.storage.delete(pdf.file.name)
+        if isinstance(exc, IntegrityError):
+            return RecordPdf.objects.get(record=record)
+        raise
     return pdf
 
 

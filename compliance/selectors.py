@@ -221,7 +221,7 @@ def job_blockers(
                     Reason(
                         "equipment_inspection_overdue",
                         f"{item.label}'s periodic inspection was due on "
-                        f"{item.next_inspection_due:%Y-%m-%d}."
+                        f"{item.next_inspection_due:%Y-%m-%d}.",
                         f"equipment:{item.pk}",
                     )
                 )

@@ -146,9 +146,18 @@ def close_job(*, job: Job, by: User, reason: str = "") -> Job:
 
 
 def apply_sheet_outcome(
-    *, sheet: "CheckSheet", outcome: "SheetOutcome", by: User, drops: list[Drop] | None = None
+    *,
+    sheet: "CheckSheet",
+    outcome: "SheetOutcome",
+    by: User,
+    drops: list[Drop] | None = None,
+    defer_readiness: bool = False,
 ) -> Job:
-    """Open holds for failed blocking items, or clear this requirement's holds on a pass."""
+    """Open holds for failed blocking items, or clear this requirement's holds on a pass.
+
+    Holds open at once. With ``defer_readiness`` the move back to cleared or planned waits for
+    the caller's ``refresh_readiness`` (a sync batch does it once per job, not once per sheet).
+    """
     job = _locked(sheet.job)
     requirement = sheet.requirement
     failures = outcome.blocking_failures
@@ -169,6 +178,8 @@ def apply_sheet_outcome(
         return job
     for hold in Hold.objects.filter(job=job, requirement=requirement, clearance__isnull=True):
         HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
+    if defer_readiness:
+        return job
     return refresh_readiness(job=job, by=by, drops=drops)
 
 

@@ -6,6 +6,7 @@ half-way leaves whole records behind and a retry answers from the receipts.
 
 import datetime as dt
 import uuid
+from dataclasses import dataclass, field
 from typing import Any
 
 from django.core.exceptions import ValidationError
@@ -22,6 +23,32 @@ from compliance.models import Anchor, Drop, DropLog, Equipment, Job, SyncReceipt
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
 MAX_BATCH = 200
+ENVELOPE_KEYS = {"type", "client_uuid", "data"}
+DATA_KEYS = {
+    "sheet": {"job", "version", "anchor", "equipment", "entries", "device_time", "remarks"},
+    "drop_log": {"drop", "device_time", "note"},
+    "job_action": {"job", "action", "reason"},
+}
+
+
+@dataclass
+class Batch:
+    """One request's worth of records from one phone."""
+
+    user: User
+    phone_clock_offset_s: int | None = None
+    pending_readiness: set[int] = field(default_factory=set)
+
+    def settle(self, job_id: int | None = None) -> None:
+        """Bring the jobs whose sheets passed up to date (one job, or all of them)."""
+        ids = [job_id] if job_id is not None else sorted(self.pending_readiness)
+        for pk in ids:
+            if pk not in self.pending_readiness:
+                continue
+            self.pending_readiness.discard(pk)
+            with transaction.atomic():
+                job = Job.objects.select_for_update().select_related("site__profile").get(pk=pk)
+                services.refresh_readiness(job=job, by=self.user)
 
 
 class RecordRejected(Exception):
@@ -53,7 +80,8 @@ def _device_time(data: dict[str, Any]) -> dt.datetime | None:
     return parsed
 
 
-def _apply_sheet(user: User, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
+def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
+    user = batch.user
     org = user.organisation_id
     job = _get(
         Job,
@@ -88,7 +116,10 @@ def _apply_sheet(user: User, data: dict[str, Any], client_uuid: uuid.UUID) -> di
         equipment=equipment,
         device_time=_device_time(data),
         remarks=remarks,
+        phone_clock_offset_s=batch.phone_clock_offset_s,
+        defer_readiness=True,
     )
+    batch.pending_readiness.add(job.pk)
     return {
         "sheet": sheet.pk,
         "verdict": sheet.verdict,
@@ -97,7 +128,8 @@ def _apply_sheet(user: User, data: dict[str, Any], client_uuid: uuid.UUID) -> di
     }
 
 
-def _apply_drop_log(user: User, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
+def _apply_drop_log(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
+    user = batch.user
     drop = _get(
         Drop,
         Drop.objects.filter(job__organisation_id=user.organisation_id).select_related("job"),
@@ -106,6 +138,8 @@ def _apply_drop_log(user: User, data: dict[str, Any], client_uuid: uuid.UUID) ->
     )
     if drop is None:
         raise RecordRejected({"drop": ["Required."]})
+    batch.settle(drop.job_id)
+    drop.job.refresh_from_db()
     if drop.job.state != "working":
         raise RecordRejected(
             {"drop": [f"Drops are logged while the job is working; it is {drop.job.state}."]}
@@ -122,12 +156,15 @@ def _apply_drop_log(user: User, data: dict[str, Any], client_uuid: uuid.UUID) ->
 ACTIONS = {"start": services.start_job, "pause": services.pause_job, "close": services.close_job}
 
 
-def _apply_job_action(user: User, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
+def _apply_job_action(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
+    user = batch.user
     job = _get(
         Job, Job.objects.filter(organisation_id=user.organisation_id), data.get("job"), "job"
     )
     if job is None:
         raise RecordRejected({"job": ["Required."]})
+    batch.settle(job.pk)
+    job.refresh_from_db()
     action = data.get("action")
     if action not in ACTIONS:
         raise RecordRejected({"action": [f"One of {', '.join(ACTIONS)}."]})
@@ -139,8 +176,30 @@ def _apply_job_action(user: User, data: dict[str, Any], client_uuid: uuid.UUID) 
 APPLY = {"sheet": _apply_sheet, "drop_log": _apply_drop_log, "job_action": _apply_job_action}
 
 
-def apply_record(user: User, record: Any) -> dict[str, Any]:
+def apply_batch(
+    user: User, records: list[Any], sent_at: dt.datetime | None = None
+) -> list[dict[str, Any]]:
+    """Apply a phone's batch in order; readiness is settled once per job at the end.
+
+    ``sent_at`` is the phone's clock when it sent the batch; its difference from the server's
+    clock is kept with every record, so a phone whose clock is wrong can be told from a phone
+    that was offline.
+    """
+    offset = None if sent_at is None else round((sent_at - timezone.now()).total_seconds())
+    batch = Batch(user=user, phone_clock_offset_s=offset)
+    results = [apply_record(batch, record) for record in records]
+    batch.settle()
+    return results
+
+
+def apply_record(batch: Batch | User, record: Any) -> dict[str, Any]:
     """Apply one client record exactly once and return its result line."""
+    if isinstance(batch, User):
+        single = Batch(user=batch)
+        line = apply_record(single, record)
+        single.settle()
+        return line
+    user = batch.user
     if not isinstance(record, dict):
         return {
             "client_uuid": None,
@@ -164,6 +223,9 @@ def apply_record(user: User, record: Any) -> dict[str, Any]:
         if receipt.user_id != user.pk:
             return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
         return {**line, "status": receipt.status, "duplicate": True, **receipt.result}
+    unknown = sorted(str(k)[:80] for k in record if k not in ENVELOPE_KEYS)
+    if unknown:
+        return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
     kind = record.get("type")
     data = record.get("data")
     if kind not in APPLY:
@@ -174,10 +236,13 @@ def apply_record(user: User, record: Any) -> dict[str, Any]:
         }
     if not isinstance(data, dict):
         return {**line, "status": "rejected", "errors": {"data": ["Must be an object."]}}
+    unknown = sorted(str(k)[:80] for k in data if k not in DATA_KEYS[kind])
+    if unknown:
+        return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
     try:
         with transaction.atomic():
             try:
-                result = APPLY[kind](user, data, client_uuid)
+                result = APPLY[kind](batch, data, client_uuid)
                 status = "applied"
             except RecordRejected as exc:
                 result, status = {"errors": exc.errors}, "rejected"
@@ -197,7 +262,13 @@ def apply_record(user: User, record: Any) -> dict[str, Any]:
                 result, status = {"errors": {"record": [str(exc)]}}, "rejected"
             if status == "applied":
                 SyncReceipt.objects.create(
-                    client_uuid=client_uuid, kind=kind, user=user, status=status, result=result
+                    client_uuid=client_uuid,
+                    kind=kind,
+                    user=user,
+                    status=status,
+                    result=result,
+                    device_time=_device_time(data),
+                    phone_clock_offset_s=batch.phone_clock_offset_s,
                 )
     except IntegrityError:
         receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()

@@ -227,3 +227,16 @@ def test_transition_log_is_append_only(job, simple_checklists, operator):
         JobTransition.objects.filter(job=job).update(reason="x")
     with pytest.raises(AppendOnlyViolation):
         JobTransition.objects.filter(job=job).delete()
+
+
+def test_an_overdue_equipment_inspection_names_the_equipment(job, simple_checklists, operator):
+    fill_all(job, simple_checklists, operator)
+    hose = job.drops.first().hose
+    hose.next_inspection_due = job.date - dt.timedelta(days=1)
+    hose.save()
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=job, by=operator)
+    (reason,) = caught.value.reasons
+    assert reason.code == "equipment_inspection_overdue"
+    assert reason.requirement == f"equipment:{hose.pk}"
+    assert reason.message.endswith(f"{hose.next_inspection_due:%Y-%m-%d}.")

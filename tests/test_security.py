@@ -19,7 +19,9 @@ ROOT = Path(__file__).resolve().parent.parent
 
 
 def _manage(*args: str, **env: str) -> subprocess.CompletedProcess[str]:
-    clean = {k: v for k, v in os.environ.items() if k not in ("DATABASE_URL", "CELERY_BROKER_URL")}
+    # the browser tests set DJANGO_ALLOW_ASYNC_UNSAFE in this process; a deploy never does
+    drop = ("DATABASE_URL", "CELERY_BROKER_URL", "DJANGO_ALLOW_ASYNC_UNSAFE")
+    clean = {k: v for k, v in os.environ.items() if k not in drop}
     return subprocess.run(
         [sys.executable, "manage.py", *args],
         cwd=ROOT,

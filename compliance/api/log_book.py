@@ -1,6 +1,5 @@
 """The anchor log book and site access grants over HTTP."""
 
-import datetime as dt
 import json
 from typing import Any
 
@@ -15,6 +14,7 @@ from rest_framework.response import Response
 
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.anchor_log import SIGNED_KINDS, record_entry
+from compliance.api.fields import PlausibleDateField, StrictInput
 from compliance.api.permissions import OrganisationMember
 from compliance.models import AnchorLogEntry, Organisation, SiteAccess
 
@@ -53,11 +53,11 @@ class LogEntrySerializer(serializers.ModelSerializer):
         return json.loads(entry.canonical_json)
 
 
-class LogEntryInput(serializers.Serializer):
+class LogEntryInput(StrictInput, serializers.Serializer):
     anchor = serializers.PrimaryKeyRelatedField(queryset=AnchorLogEntry.objects.none())
     kind = serializers.ChoiceField(choices=[str(k) for k in SIGNED_KINDS])
     result = serializers.ChoiceField(choices=AnchorLogEntry.Result.choices, default="none")
-    performed_on = serializers.DateField()
+    performed_on = PlausibleDateField()
     performed_by = serializers.CharField(max_length=200, required=False, allow_blank=True)
     performed_by_company = serializers.CharField(max_length=200, required=False, allow_blank=True)
     details = serializers.CharField(max_length=4000)
@@ -68,11 +68,6 @@ class LogEntryInput(serializers.Serializer):
         request = self.context.get("request")
         org = getattr(getattr(request, "user", None), "organisation_id", None)
         self.fields["anchor"].queryset = anchors_visible_to(org).select_related("site")
-
-    def validate_performed_on(self, value: dt.date) -> dt.date:
-        if value.year < 1950:
-            raise serializers.ValidationError("A date after 1950.")
-        return value
 
 
 class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
@@ -100,9 +95,11 @@ class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
         return Response(LogEntrySerializer(entry).data, status=status.HTTP_201_CREATED)
 
 
-class GrantSerializer(serializers.ModelSerializer):
+class GrantSerializer(StrictInput, serializers.ModelSerializer):
     contractor = serializers.PrimaryKeyRelatedField(queryset=Organisation.objects.all())
     contractor_name = serializers.CharField(source="contractor.name", read_only=True)
+    starts_on = PlausibleDateField()
+    ends_on = PlausibleDateField()
 
     class Meta:
         model = SiteAccess

@@ -14,6 +14,7 @@ from rest_framework.permissions import IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
 
+from compliance.api.fields import StrictInput
 from compliance.api.permissions import OrganisationMember
 from compliance.daily_records import MEANINGS, add_addendum
 from compliance.models import DailyRecord, Site
@@ -21,13 +22,13 @@ from compliance.models import DailyRecord, Site
 MAX_UPLOAD = 50 * 1024 * 1024
 
 
-class SignInput(serializers.Serializer):
+class SignInput(StrictInput, serializers.Serializer):
     password = serializers.CharField(max_length=256, trim_whitespace=False)
     meaning = serializers.ChoiceField(choices=sorted(MEANINGS))
     remarks = serializers.CharField(required=False, allow_blank=True, max_length=4000)
 
 
-class AddendumInput(serializers.Serializer):
+class AddendumInput(StrictInput, serializers.Serializer):
     password = serializers.CharField(max_length=256, trim_whitespace=False)
     text = serializers.CharField(max_length=8000)
 
@@ -69,9 +70,10 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
     def get_queryset(self) -> QuerySet[DailyRecord]:
         org = getattr(self.request.user, "organisation_id", None)
         qs = DailyRecord.objects.filter(organisation_id=org)
-        site = self.request.query_params.get("site")
-        if site:
-            qs = qs.filter(site_id=int(site)) if site.isdigit() else qs.none()
+        for name in ("site", "job"):
+            value = self.request.query_params.get(name)
+            if value:
+                qs = qs.filter(**{f"{name}_id": int(value)}) if value.isdigit() else qs.none()
         return qs.select_related("job", "pdf").order_by("site_id", "sequence")
 
     def retrieve(self, request: Request, *args: Any, **kwargs: Any) -> Response:

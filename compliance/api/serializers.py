@@ -1,12 +1,12 @@
 """Input parsing and output shapes for the API; no serializer saves domain state itself."""
 
-import math
 from typing import Any
 
 from rest_framework import serializers
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from compliance.access import anchors_visible_to, sites_visible_to
+from compliance.api.fields import FiniteFloatField, PlausibleDateField, StrictInput
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -20,14 +20,6 @@ from compliance.models import (
     User,
 )
 from compliance.ratings import EQUIPMENT_KINDS
-
-
-class FiniteFloatField(serializers.FloatField):
-    def to_internal_value(self, data: Any) -> float:
-        value = super().to_internal_value(data)
-        if not math.isfinite(value):
-            raise serializers.ValidationError("Must be a finite number.")
-        return value
 
 
 class UserSerializer(serializers.ModelSerializer):
@@ -45,7 +37,7 @@ class ProfileSerializer(serializers.ModelSerializer):
         fields = ["key", "name", "thresholds", "cautions", "content_hash"]
 
 
-class SiteSerializer(serializers.ModelSerializer):
+class SiteSerializer(StrictInput, serializers.ModelSerializer):
     profile = serializers.SlugRelatedField(
         slug_field="key", queryset=JurisdictionProfile.objects.all()
     )
@@ -64,8 +56,10 @@ class SiteSerializer(serializers.ModelSerializer):
         ]
 
 
-class CertificationSerializer(serializers.ModelSerializer):
+class CertificationSerializer(StrictInput, serializers.ModelSerializer):
     rated_capacity_kn = FiniteFloatField()
+    certified_on = PlausibleDateField()
+    valid_until = PlausibleDateField()
     recorded_by = serializers.CharField(
         source="recorded_by.display_name", read_only=True, default=None
     )
@@ -110,8 +104,10 @@ class AnchorSerializer(serializers.ModelSerializer):
         return CertificationSerializer(cert).data if cert else None
 
 
-class EquipmentSerializer(serializers.ModelSerializer):
+class EquipmentSerializer(StrictInput, serializers.ModelSerializer):
     kind = serializers.ChoiceField(choices=EQUIPMENT_KINDS)
+    made_on = PlausibleDateField(required=False, allow_null=True)
+    next_inspection_due = PlausibleDateField(required=False, allow_null=True)
 
     class Meta:
         model = Equipment
@@ -127,7 +123,7 @@ class EquipmentSerializer(serializers.ModelSerializer):
         ]
 
 
-class DropSerializer(serializers.ModelSerializer):
+class DropSerializer(StrictInput, serializers.ModelSerializer):
     length_m = FiniteFloatField()
 
     class Meta:
@@ -186,7 +182,9 @@ class HoldSerializer(serializers.ModelSerializer):
         return super().to_representation(instance)
 
 
-class JobSerializer(serializers.ModelSerializer):
+class JobSerializer(StrictInput, serializers.ModelSerializer):
+    date = PlausibleDateField()
+    notes = serializers.CharField(max_length=4000, required=False, allow_blank=True)
     site_name = serializers.CharField(source="site.name", read_only=True)
     supervisor_name = serializers.CharField(source="supervisor.display_name", read_only=True)
 
@@ -259,7 +257,7 @@ class SheetSerializer(serializers.ModelSerializer):
         ]
 
 
-class SheetInputSerializer(serializers.Serializer):
+class SheetInputSerializer(StrictInput, serializers.Serializer):
     client_uuid = serializers.UUIDField(required=False)
     job = serializers.PrimaryKeyRelatedField(queryset=Job.objects.none())
     version = serializers.PrimaryKeyRelatedField(queryset=ChecklistVersion.objects.none())
@@ -289,7 +287,7 @@ class SheetInputSerializer(serializers.Serializer):
         self.fields["equipment"].queryset = Equipment.objects.filter(organisation_id=org)
 
 
-class ChecklistVersionSerializer(serializers.ModelSerializer):
+class ChecklistVersionSerializer(StrictInput, serializers.ModelSerializer):
     checklist = serializers.CharField(source="checklist.key", read_only=True)
     applies_to = serializers.CharField(source="checklist.applies_to", read_only=True)
     title = serializers.CharField(source="checklist.title", read_only=True)
@@ -312,7 +310,7 @@ class ChecklistVersionSerializer(serializers.ModelSerializer):
         read_only_fields = ["number", "status", "content_hash", "created_at", "published_at"]
 
 
-class ChecklistSerializer(serializers.ModelSerializer):
+class ChecklistSerializer(StrictInput, serializers.ModelSerializer):
     versions = serializers.SerializerMethodField()
     default = serializers.SerializerMethodField()
 

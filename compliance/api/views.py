@@ -27,6 +27,7 @@ from checklists.selectors import sheets_for, visible_checklists
 from compliance import services
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
+from compliance.api.fields import StrictInput
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
 from compliance.models import (
@@ -46,11 +47,15 @@ class LoginThrottle(SimpleRateThrottle):
     scope = "login"
 
     def get_cache_key(self, request: Request, view: Any) -> str | None:
-        ident = f"{self.get_ident(request)}:{str(request.data.get('username', ''))[:150]}"
+        import hashlib
+
+        username = str(request.data.get("username", ""))[:150].lower()
+        digest = hashlib.sha256(username.encode("utf-8")).hexdigest()[:32]
+        ident = f"{self.get_ident(request)}:{digest}"  # safe as a key on any cache backend
         return self.cache_format % {"scope": self.scope, "ident": ident}
 
 
-class LoginInput(serializers.Serializer):
+class LoginInput(StrictInput, serializers.Serializer):
     username = serializers.CharField(max_length=150)
     password = serializers.CharField(max_length=256)
 
@@ -106,8 +111,9 @@ def me(request: Request) -> Response:
     return Response(s.UserSerializer(request.user).data)
 
 
-class SyncInput(serializers.Serializer):
+class SyncInput(StrictInput, serializers.Serializer):
     records = serializers.ListField(child=serializers.JSONField(), max_length=200)
+    sent_at = serializers.DateTimeField(required=False, allow_null=True)
 
 
 @extend_schema(
@@ -127,11 +133,13 @@ def sync(request: Request) -> Response:
     """Apply a batch of records made offline; each once, whatever the number of retries."""
     from django.utils import timezone
 
-    from compliance.sync import apply_record
+    from compliance.sync import apply_batch
 
     data = SyncInput(data=request.data)
     data.is_valid(raise_exception=True)
-    results = [apply_record(request.user, record) for record in data.validated_data["records"]]
+    results = apply_batch(
+        request.user, data.validated_data["records"], data.validated_data.get("sent_at")
+    )
     touched = {r["job"] for r in results if isinstance(r.get("job"), int)}
     today = timezone.localdate()
     jobs = (
@@ -143,7 +151,7 @@ def sync(request: Request) -> Response:
     return Response({"results": results, "jobs": list(jobs), "server_time": timezone.now()})
 
 
-class PhotoInput(serializers.Serializer):
+class PhotoInput(StrictInput, serializers.Serializer):
     client_uuid = serializers.UUIDField()
     job = serializers.IntegerField()
     sheet_uuid = serializers.UUIDField(required=False, allow_null=True)
@@ -280,7 +288,7 @@ def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
     }
 
 
-class ReasonInput(serializers.Serializer):
+class ReasonInput(StrictInput, serializers.Serializer):
     reason = serializers.CharField(required=False, allow_blank=True, max_length=2000)
 
 

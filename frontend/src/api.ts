@@ -1,10 +1,13 @@
 /** The only module that talks HTTP to the Parapet server (session cookie + CSRF header). */
+import { setStatus } from "./status";
 import type {
   Anchor,
   ChecklistVersion,
+  DailyRecord,
   Equipment,
   JobDetail,
   JobSummary,
+  Meaning,
   OutRecord,
   Page,
   Profile,
@@ -33,10 +36,18 @@ export class ApiError extends Error {
     this.status = status;
     this.body = body;
   }
+  /**
+   * The session is gone (expired, or signed out on another tab). A 403 alone is not enough:
+   * the server also answers 403 to a wrong password when signing, or to a role that may not act.
+   */
   get signedOut(): boolean {
-    return this.status === 401 || this.status === 403;
+    if (this.status === 401) return true;
+    return this.status === 403 && NOT_SIGNED_IN.test(typeof this.body.detail === "string" ? this.body.detail : "");
   }
 }
+
+/** What the server says when a request carries no valid session (Django REST framework's words). */
+const NOT_SIGNED_IN = /credentials were not provided|not authenticated|not signed in/i;
 
 export function csrfToken(): string {
   for (const part of document.cookie.split(";")) {
@@ -90,7 +101,12 @@ export async function request<T>(path: string, opts: Options = {}): Promise<T> {
   if (!response.ok) {
     // A gateway or worker-level failure (e.g. offline fallback from the service worker)
     if (response.status >= 500 && parsed === null) throw new OfflineError();
-    throw new ApiError(response.status, (parsed as Record<string, unknown>) ?? {});
+    const error = new ApiError(response.status, (parsed as Record<string, unknown>) ?? {});
+    // Any call that finds the session gone asks for a new sign-in; what waits stays on the phone.
+    if (error.signedOut && !path.startsWith("auth/")) {
+      setStatus({ signedOut: true, lastError: "Signed out: sign in again to send." });
+    }
+    throw error;
   }
   return parsed as T;
 }
@@ -111,7 +127,17 @@ export const api = {
   anchors: () => request<Page<Anchor>>("anchors/?limit=500"),
   sites: () => request<Page<Site>>("sites/?limit=100"),
   sync: (records: OutRecord[]) =>
-    request<SyncResponse>("sync/", { method: "POST", json: { records }, timeoutMs: 30000 }),
+    // sent_at lets the server tell a phone with a wrong clock from one that was offline.
+    request<SyncResponse>("sync/", {
+      method: "POST",
+      json: { records, sent_at: new Date().toISOString() },
+      timeoutMs: 30000,
+    }),
+  /** Needs signal: the signer re-enters the password at this moment, so it is never queued. */
+  sign: (id: number, password: string, meaning: Meaning, remarks: string) =>
+    request<DailyRecord>(`jobs/${id}/sign/`, { method: "POST", json: { password, meaning, remarks }, timeoutMs: 60000 }),
+  records: (site: number) => request<Page<DailyRecord>>(`records/?site=${site}&limit=1000`),
+  recordPdf: (id: number) => `${BASE}records/${id}/pdf/`,
   photo: (form: FormData) =>
     request<unknown>("photos/", { method: "POST", form, timeoutMs: 60000 }),
 };

@@ -2,7 +2,7 @@ import { render } from "preact";
 import { useEffect, useState } from "preact/hooks";
 import { api, ApiError } from "./api";
 import { loadMe } from "./repo";
-import { clearCache, outboxWaiting } from "./storage";
+import { cacheGet, clearCache, outboxWaiting } from "./storage";
 import { setStatus } from "./status";
 import { prepareDay, refreshCounts, startSyncLoop } from "./sync";
 import type { User } from "./types";
@@ -14,21 +14,33 @@ import { Jobs } from "./ui/Jobs";
 import { Outbox } from "./ui/Outbox";
 import { SheetScreen } from "./ui/Sheet";
 import { SignIn } from "./ui/SignIn";
+import { SignOff } from "./ui/SignOff";
 import "./styles.css";
 
 function App() {
   const route = useRoute();
   const status = useStatus();
   const [user, setUser] = useState<User | null | undefined>(undefined);
+  // The user whose session ended without signing out: the records waiting are theirs.
+  const [lapsed, setLapsed] = useState<User | null>(null);
 
   useEffect(() => {
     loadMe()
       .then((loaded) => setUser(loaded.value))
-      .catch(() => setUser(null));
+      .catch(async () => {
+        const kept = (await cacheGet<User>("me").catch(() => null))?.value ?? null;
+        if (kept) setLapsed(kept);
+        setUser(null);
+      });
   }, []);
 
+  // The session ended (it timed out, or was ended elsewhere): ask for a sign-in again and stay
+  // on the same screen; everything on the phone (records, photos, drafts) is kept.
   useEffect(() => {
-    if (status.signedOut && user) setUser(null);
+    if (status.signedOut && user) {
+      setLapsed(user);
+      setUser(null);
+    }
   }, [status.signedOut]);
 
   async function signOut() {
@@ -49,15 +61,18 @@ function App() {
   if (user === undefined) screen = <main class="screen"><p class="muted">Opening…</p></main>;
   else if (user === null)
     screen = (
-      <SignIn onSignedIn={(u) => {
+      <SignIn lapsed={lapsed} waiting={status.waiting + status.photosWaiting} onSignedIn={(u) => {
+        const resumed = lapsed !== null;
+        setLapsed(null);
         setUser(u);
-        setStatus({ signedOut: false });
+        setStatus({ signedOut: false, lastError: null });
         void prepareDay();
-        go({ name: "jobs" });
+        if (!resumed) go({ name: "jobs" });
       }} />
     );
-  else if (route.name === "job") screen = <JobScreen id={route.id} />;
-  else if (route.name === "sheet") screen = <SheetScreen id={route.id} requirement={route.requirement} />;
+  else if (route.name === "job") screen = <JobScreen id={route.id} user={user} />;
+  else if (route.name === "sign") screen = <SignOff id={route.id} user={user} />;
+  else if (route.name === "sheet") screen = <SheetScreen key={`${route.id}:${route.requirement}`} id={route.id} requirement={route.requirement} />;
   else if (route.name === "cautions") screen = <Cautions id={route.id} />;
   else if (route.name === "outbox") screen = <Outbox />;
   else screen = <Jobs user={user} onSignOut={signOut} />;

@@ -18,17 +18,21 @@ export interface Describe {
   local_failures?: string[];
 }
 
-/** Keep the record (and its photos) on the phone first, then try to send it. */
+/**
+ * Keep the record (and its photos) on the phone first, then try to send it. `draft` names the
+ * sheet draft the record replaces; it is removed in the same write.
+ */
 export async function enqueue(
   payload: Payload,
   describe: Describe,
-  options: { uuid?: string; photos?: PhotoEntry[] } = {},
+  options: { uuid?: string; photos?: PhotoEntry[]; draft?: string } = {},
 ): Promise<OutboxEntry> {
   const client_uuid = options.uuid ?? newUuid();
   const record = { ...payload, client_uuid } as OutRecord;
   const entry = await addToOutbox(
     { client_uuid, record, created_at: new Date().toISOString(), ...describe },
     options.photos ?? [],
+    options.draft,
   );
   await refreshCounts();
   dataChanged();

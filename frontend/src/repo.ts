@@ -4,6 +4,7 @@ import { cacheGet, cachePut } from "./storage";
 import type {
   Anchor,
   ChecklistVersion,
+  DailyRecord,
   Equipment,
   JobDetail,
   JobSummary,
@@ -71,4 +72,16 @@ export const loadReference = () =>
 
 export async function keptJob(id: number): Promise<JobDetail | null> {
   return (await cacheGet<JobDetail>(`job:${id}`))?.value ?? null;
+}
+
+/** The signed daily record of a job, if there is one (from the site's chain of records). */
+export async function loadRecordOf(job: { id: number; site: number }): Promise<Loaded<DailyRecord | null>> {
+  const loaded = await load<DailyRecord[]>(`records:${job.site}`, async () => (await api.records(job.site)).results);
+  return { ...loaded, value: loaded.value.find((r) => r.job === job.id && r.kind === "record") ?? null };
+}
+
+/** Keep a record just signed with the site's list, so it shows at once (and offline). */
+export async function keepRecord(record: DailyRecord): Promise<void> {
+  const kept = (await cacheGet<DailyRecord[]>(`records:${record.site}`))?.value ?? [];
+  await cachePut(`records:${record.site}`, [...kept.filter((r) => r.id !== record.id), record]);
 }

@@ -33,6 +33,17 @@ export function emptyDraft(): Draft {
   return { ticks: {}, readings: {}, series: {}, photos: {}, notes: {} };
 }
 
+/** Nothing entered yet: no tick, no reading typed, no series sample, no photo, no note. */
+export function isEmptyDraft(draft: Draft): boolean {
+  return (
+    Object.keys(draft.ticks).length === 0 &&
+    Object.values(draft.readings).every((text) => !text.trim()) &&
+    Object.values(draft.series).every((samples) => samples.length === 0) &&
+    Object.values(draft.photos).every((list) => list.length === 0) &&
+    Object.values(draft.notes).every((text) => !text.trim())
+  );
+}
+
 /** The numbers limits and calculations draw on; mirrors checklists.services.sheet_context. */
 export function buildContext(job: JobDetail, req: Requirement, ref: Reference | null): Context {
   const site = ref?.sites.find((s) => s.id === job.site);

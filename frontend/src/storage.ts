@@ -1,5 +1,6 @@
 /** IndexedDB on the phone: the outbox, photos as blobs, and the last-known server data. */
 import { openDB, type DBSchema, type IDBPDatabase } from "idb";
+import type { Draft } from "./sheet";
 import type { OutRecord, Reason } from "./types";
 
 export type OutStatus = "waiting" | "applied" | "rejected";
@@ -43,25 +44,45 @@ interface CacheEntry {
   saved_at: string;
 }
 
+/** A sheet being filled, kept as the operator goes so a reload or a closed tab loses nothing. */
+export interface DraftEntry {
+  /** `${job}:${requirement}` */
+  key: string;
+  job: number;
+  requirement: string;
+  /** The checklist version the answers were given against; a draft for another version is not restored. */
+  version: number;
+  sheet_uuid: string;
+  draft: Draft;
+  remarks: string;
+  /** Series items whose timer is running: item key → start time (ms since the epoch). */
+  timers: Record<string, number>;
+  saved_at: string;
+}
+
 interface ParapetDB extends DBSchema {
   outbox: { key: string; value: OutboxEntry; indexes: { by_seq: number; by_status: string } };
   photos: { key: string; value: PhotoEntry; indexes: { by_sheet: string } };
   cache: { key: string; value: CacheEntry };
   meta: { key: string; value: { key: string; value: unknown } };
+  drafts: { key: string; value: DraftEntry };
 }
 
 let dbPromise: Promise<IDBPDatabase<ParapetDB>> | null = null;
 
 export function db(): Promise<IDBPDatabase<ParapetDB>> {
-  dbPromise ??= openDB<ParapetDB>("parapet", 1, {
-    upgrade(database) {
-      const outbox = database.createObjectStore("outbox", { keyPath: "client_uuid" });
-      outbox.createIndex("by_seq", "seq");
-      outbox.createIndex("by_status", "status");
-      const photos = database.createObjectStore("photos", { keyPath: "client_uuid" });
-      photos.createIndex("by_sheet", "sheet_uuid");
-      database.createObjectStore("cache", { keyPath: "key" });
-      database.createObjectStore("meta", { keyPath: "key" });
+  dbPromise ??= openDB<ParapetDB>("parapet", 2, {
+    upgrade(database, oldVersion) {
+      if (oldVersion < 1) {
+        const outbox = database.createObjectStore("outbox", { keyPath: "client_uuid" });
+        outbox.createIndex("by_seq", "seq");
+        outbox.createIndex("by_status", "status");
+        const photos = database.createObjectStore("photos", { keyPath: "client_uuid" });
+        photos.createIndex("by_sheet", "sheet_uuid");
+        database.createObjectStore("cache", { keyPath: "key" });
+        database.createObjectStore("meta", { keyPath: "key" });
+      }
+      if (oldVersion < 2) database.createObjectStore("drafts", { keyPath: "key" });
     },
   });
   return dbPromise;
@@ -85,18 +106,23 @@ export async function metaPut(key: string, value: unknown): Promise<void> {
   await (await db()).put("meta", { key, value });
 }
 
-/** Write a record and its photos in one transaction: both are kept, or neither. */
+/**
+ * Write a record and its photos in one transaction: both are kept, or neither. The sheet's draft,
+ * if named, goes in the same transaction, so a saved sheet never leaves a stale draft behind.
+ */
 export async function addToOutbox(
   entry: Omit<OutboxEntry, "seq" | "status" | "attempts">,
   photos: PhotoEntry[] = [],
+  draftKey?: string,
 ): Promise<OutboxEntry> {
   const database = await db();
-  const tx = database.transaction(["outbox", "photos", "meta"], "readwrite");
+  const tx = database.transaction(["outbox", "photos", "meta", "drafts"], "readwrite");
   const counter = ((await tx.objectStore("meta").get("seq"))?.value as number | undefined) ?? 0;
   const full: OutboxEntry = { ...entry, seq: counter + 1, status: "waiting", attempts: 0 };
   await tx.objectStore("meta").put({ key: "seq", value: counter + 1 });
   await tx.objectStore("outbox").add(full);
   for (const photo of photos) await tx.objectStore("photos").add(photo);
+  if (draftKey !== undefined) await tx.objectStore("drafts").delete(draftKey);
   await tx.done;
   return full;
 }
@@ -128,4 +154,22 @@ export async function photoPut(photo: PhotoEntry): Promise<void> {
 /** Forget the server data of the signed-out user; the outbox and photos stay for the next sign-in. */
 export async function clearCache(): Promise<void> {
   await (await db()).clear("cache");
+}
+
+export const draftKey = (job: number, requirement: string) => `${job}:${requirement}`;
+
+export async function draftGet(key: string): Promise<DraftEntry | null> {
+  return (await (await db()).get("drafts", key)) ?? null;
+}
+
+export async function draftPut(entry: DraftEntry): Promise<void> {
+  await (await db()).put("drafts", entry);
+}
+
+export async function draftDelete(key: string): Promise<void> {
+  await (await db()).delete("drafts", key);
+}
+
+export async function draftsAll(): Promise<DraftEntry[]> {
+  return (await db()).getAll("drafts");
 }

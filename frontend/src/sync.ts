@@ -207,7 +207,7 @@ export function startSyncLoop(): void {
   window.addEventListener("offline", () => setStatus({ online: false }));
   setInterval(() => {
     const s = getStatus();
-    if (navigator.onLine && (s.waiting > 0 || s.photosWaiting > 0) && !retryTimer) {
+    if (navigator.onLine && !s.signedOut && (s.waiting > 0 || s.photosWaiting > 0) && !retryTimer) {
       void requestSync();
     }
   }, 30000);

@@ -207,3 +207,22 @@ export interface CalcResult {
   steps: unknown[];
   caution: string;
 }
+
+export type Meaning = "reviewed_safe" | "reviewed_stopped" | "reviewed_exceptions";
+
+/** A sealed, signed daily record (GET /api/v1/records/). `meaning` is the full text signed. */
+export interface DailyRecord {
+  id: number;
+  kind: string;
+  site: number;
+  job: number;
+  date: string;
+  sequence: number;
+  previous_seal: string;
+  seal: string;
+  signer_name: string;
+  signer_role: string;
+  meaning: string;
+  signed_at: string;
+  pdf_ready: boolean;
+}

@@ -27,7 +27,7 @@ export function contrast(a: string, b: string): number {
 const PAIRS: [string, string][] = [
   ["fg", "bg"], ["muted", "bg"], ["fg", "card"], ["muted", "card"], ["on-accent", "accent"],
   ["error", "bg"], ["error", "card"], ["fg", "note-bg"], ["fg", "alert-bg"], ["muted", "alert-bg"],
-  ["accent", "bg"], ["bg", "fg"],
+  ["accent", "bg"], ["bg", "fg"], ["fg", "ok-bg"], ["muted", "ok-bg"], ["accent", "card"],
 ];
 
 describe.each([["light", light], ["dark", dark]])("%s theme", (_, theme) => {

@@ -143,3 +143,39 @@ def fill_passing_except(job, skip: set[str]) -> None:
             anchor=req.subject.anchor,
             equipment=req.subject.equipment,
         )
+
+
+def sign_in_as(page, base: str, username: str) -> None:
+    """Sign in on the phone and wait for the first sync (it keeps the day's data on the phone)."""
+    page.goto(base + "/")
+    page.wait_for_selector("input[name=username]")
+    page.fill("input[name=username]", username)
+    page.fill("input[name=password]", PASSWORD)
+    page.click("button[type=submit]")
+    page.wait_for_selector("[data-testid=jobs] a")
+    page.wait_for_selector("[data-testid=strip][data-synced=yes][data-syncing=no]")
+
+
+def fail_anchor_check(job, label: str = "R1") -> None:
+    """Record a failing anchor pre-use sheet on the server (cracks found): the job goes on hold."""
+    from checklists.selectors import current_versions
+    from checklists.services import record_sheet
+    from compliance.models import Anchor
+
+    versions = {
+        v.checklist.key: v for vs in current_versions(job.organisation_id).values() for v in vs
+    }
+    entries = {
+        "tag_matches_register": {"value": "pass"},
+        "visual_condition": {"value": "fail"},
+        "fixings_tight": {"value": "pass"},
+        "membrane_sound": {"value": "pass"},
+        "tag_capacity": {"value": 25, "unit": "kN"},
+    }
+    record_sheet(
+        job=job,
+        version=versions["anchor-pre-use"],
+        by=job.crew.get(username="tomas"),
+        entries=entries,
+        anchor=Anchor.objects.get(site=job.site, label=label),
+    )

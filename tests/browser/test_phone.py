@@ -9,6 +9,7 @@ from tests.browser.conftest import PASSWORD, fill_passing_except, off_loop, png_
 
 pytestmark = pytest.mark.browser
 
+
 def anchor_r1_key(job) -> str:
     """The requirement key of anchor R1's pre-use check (ids differ between databases)."""
     from compliance.models import Anchor

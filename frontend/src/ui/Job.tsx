@@ -1,14 +1,15 @@
 import { useEffect, useState } from "preact/hooks";
 import { api, ApiError, OfflineError } from "../api";
-import { keptJob, loadJob } from "../repo";
+import { keptJob, loadJob, loadRecordOf } from "../repo";
 import { enqueue } from "../outbox";
 import { cachePut, outboxAll, type OutboxEntry } from "../storage";
 import { requestSync } from "../sync";
 import { dataChanged } from "../status";
-import type { JobDetail, Reason, Requirement } from "../types";
+import type { DailyRecord, JobDetail, Reason, Requirement, User } from "../types";
 import { deviceTime } from "../uuid";
-import { BottomBar, CautionLine, errorLines, Header } from "./common";
-import { href, timeOf, useDataVersion, useStatus } from "./hooks";
+import { BottomBar, CautionLine, errorLines, Header, plainReason } from "./common";
+import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
+import { canSign } from "../signoff";
 import { Badge, StateBadge, type SignKind } from "./signs";
 
 function requirementStatus(req: Requirement, mine: OutboxEntry | undefined): { kind: SignKind; word: string } {
@@ -23,14 +24,9 @@ function requirementStatus(req: Requirement, mine: OutboxEntry | undefined): { k
   return { kind: "mustdo", word: "To do" };
 }
 
-/** "X: Marked failed: X." reads better as "X: marked failed on the check." */
-export function plainReason(reason: string): string {
-  const m = /^(.*): Marked failed: (.*?)\.?$/.exec(reason);
-  if (m && m[1] === m[2]) return `${m[1]}: marked failed on the check.`;
-  return reason;
-}
+export { plainReason };
 
-export function JobScreen({ id }: { id: number }) {
+export function JobScreen({ id, user }: { id: number; user: User }) {
   const version = useDataVersion();
   const status = useStatus();
   const [job, setJob] = useState<JobDetail | null>(null);
@@ -42,6 +38,7 @@ export function JobScreen({ id }: { id: number }) {
   const [closing, setClosing] = useState(false);
   const [closeReason, setCloseReason] = useState("");
   const [busy, setBusy] = useState(false);
+  const [record, setRecord] = useState<DailyRecord | null>(null);
 
   useEffect(() => {
     (async () => {
@@ -63,6 +60,13 @@ export function JobScreen({ id }: { id: number }) {
     })();
   }, [version, id]);
 
+  // Whether the day's record is signed: only asked once the day can be signed.
+  const dayOver = job?.state === "closed" || job?.state === "held";
+  useEffect(() => {
+    if (!job || !dayOver) return;
+    loadRecordOf(job).then((r) => setRecord(r.value)).catch(() => undefined);
+  }, [id, dayOver, version]);
+
   if (error) return <main class="screen"><Header title="Job" back={href({ name: "jobs" })} /><p class="error">{error}</p></main>;
   if (!job) return <main class="screen"><Header title="Job" back={href({ name: "jobs" })} /><p class="muted">Loading…</p></main>;
 
@@ -72,6 +76,7 @@ export function JobScreen({ id }: { id: number }) {
   const localFails = outbox.filter((e) => e.status === "waiting" && e.local_verdict === "fail");
   const rejected = outbox.filter((e) => e.status === "rejected");
   const waitingHere = outbox.filter((e) => e.status === "waiting");
+  const signHere = canSign(user) && dayOver && !record;
   const titleOf = (key: string | null | undefined) => {
     const r = job.requirements.find((q) => q.key === key);
     return r ? `${r.title}, ${r.subject}` : "";
@@ -156,6 +161,21 @@ export function JobScreen({ id }: { id: number }) {
           </p>
         )}
       </section>
+
+      {record && (
+        <a class="card card-link record-link" href={href({ name: "sign", id: job.id })} data-testid="record-signed">
+          <Badge kind="safe" word="Day's record signed" />
+          <span class="small">{record.signer_name}, {dateTimeOf(record.signed_at)}. Open to see the seal and the PDF.</span>
+        </a>
+      )}
+      {signHere && (
+        <section class="card" data-testid="sign-card">
+          <Badge kind="mustdo" word="Day's record not signed yet" />
+          <p class="small">As the competent person, review the day and sign it. Signing needs signal.</p>
+          {waitingHere.length > 0 && <p class="small"><strong>Send the records waiting on this phone first, so the record holds them.</strong></p>}
+          <a class="btn btn-primary" href={href({ name: "sign", id: job.id })} data-testid="sign-action">Sign the day's record</a>
+        </section>
+      )}
 
       {localFails.length > 0 && (
         <section class="card alert" data-testid="local-stop">
@@ -256,6 +276,9 @@ export function JobScreen({ id }: { id: number }) {
       <CautionLine job={job.id} />
 
       <BottomBar>
+        {signHere && job.state === "closed" && (
+          <a class="btn btn-primary" href={href({ name: "sign", id: job.id })} data-testid="sign-action-bar">Sign the day's record</a>
+        )}
         {job.state !== "working" && job.state !== "closed" && (
           <button class="btn btn-primary" type="button" onClick={start} disabled={busy || !status.online}
             data-testid="start" title={status.online ? "" : "Needs a connection"}>

@@ -49,8 +49,8 @@ export function Jobs({ user, onSignOut }: { user: User; onSignOut: () => void })
         }
         if (live) setDetails(found);
       } catch (e) {
-        if (e instanceof ApiError && e.signedOut) onSignOut();
-        else setError("No list of today's jobs on this phone yet. Connect once to fetch it.");
+        // A lapsed session is answered by the sign-in prompt (api.ts flags it); nothing else to do.
+        if (!(e instanceof ApiError && e.signedOut)) setError("No list of today's jobs on this phone yet. Connect once to fetch it.");
       }
     })();
     return () => {

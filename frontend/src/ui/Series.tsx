@@ -1,4 +1,7 @@
-/** Timed capture for a series item: Start, then a prompt every interval for the gauge reading. */
+/**
+ * Timed capture for a series item: Start, then a prompt every interval for the gauge reading.
+ * The start time belongs to the sheet's draft, so a reload in the middle of a test resumes it.
+ */
 import { useEffect, useRef, useState } from "preact/hooks";
 import { fmt, parseDecimal } from "../sheet";
 import type { ChecklistItem } from "../types";
@@ -28,15 +31,17 @@ export function Curve({ samples, unit }: { samples: number[][]; unit: string }) 
   );
 }
 
-export function SeriesCapture({ item, samples, onChange }: {
+export function SeriesCapture({ item, samples, onChange, startedAt, onTimer }: {
   item: ChecklistItem;
   samples: number[][];
   onChange: (samples: number[][]) => void;
+  /** When the timer started (ms since the epoch), or null when it is not running. */
+  startedAt: number | null;
+  onTimer: (startedAt: number | null) => void;
 }) {
   const interval = item.interval_s ?? 30;
   const needed = item.min_samples ?? 3;
   const unit = item.unit ?? "";
-  const [startedAt, setStartedAt] = useState<number | null>(null);
   const [now, setNow] = useState(Date.now());
   const [text, setText] = useState("");
   const [problem, setProblem] = useState("");
@@ -62,7 +67,7 @@ export function SeriesCapture({ item, samples, onChange }: {
 
   function start() {
     onChange([]);
-    setStartedAt(Date.now());
+    onTimer(Date.now());
     setNow(Date.now());
     setProblem("");
   }
@@ -101,7 +106,7 @@ export function SeriesCapture({ item, samples, onChange }: {
           </div>
           <div class="row">
             <button class="btn btn-primary" type="submit" data-testid="series-add">Add reading</button>
-            <button class="btn" type="button" onClick={() => setStartedAt(null)}>Stop timer</button>
+            <button class="btn" type="button" onClick={() => onTimer(null)} data-testid="series-stop">Stop timer</button>
           </div>
           {problem && <p class="error">{problem}</p>}
         </form>

@@ -1,4 +1,4 @@
-import { useEffect, useMemo, useState } from "preact/hooks";
+import { useEffect, useMemo, useRef, useState } from "preact/hooks";
 import { loadJob, loadReference, loadVersions, type Reference } from "../repo";
 import { enqueue } from "../outbox";
 import {
@@ -6,17 +6,18 @@ import {
   emptyDraft,
   evaluateDraft,
   fmt,
+  isEmptyDraft,
   ordered,
   stillNeeded,
   toEntries,
   type Draft,
   type ItemView,
 } from "../sheet";
-import type { PhotoEntry } from "../storage";
+import { draftDelete, draftGet, draftKey, draftPut, type PhotoEntry } from "../storage";
 import type { ChecklistVersion, JobDetail, TickValue } from "../types";
 import { deviceTime, newUuid } from "../uuid";
 import { BottomBar, CautionLine, Header } from "./common";
-import { go, href } from "./hooks";
+import { go, href, timeOf } from "./hooks";
 import { SeriesCapture } from "./Series";
 import { Badge, VerdictBadge } from "./signs";
 
@@ -35,7 +36,15 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
   const [remarks, setRemarks] = useState("");
   const [tried, setTried] = useState(false);
   const [openWorking, setOpenWorking] = useState<Record<string, boolean>>({});
-  const sheetUuid = useMemo(() => newUuid(), [id, requirement]);
+  const [sheetUuid, setSheetUuid] = useState(() => newUuid());
+  const [timers, setTimers] = useState<Record<string, number>>({});
+  // Drafts: restored once the checklist version is known, then kept as the operator goes.
+  const key = draftKey(id, requirement);
+  const [draftState, setDraftState] = useState<{ ready: boolean; restoredAt: string; keptAt: string; other: string }>(
+    { ready: false, restoredAt: "", keptAt: "", other: "" });
+  const pending = useRef<ReturnType<typeof setTimeout> | null>(null);
+  const latest = useRef<() => Promise<void>>(async () => undefined);
+  const saved = useRef(false);
 
   useEffect(() => {
     (async () => {
@@ -60,6 +69,72 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
     versions?.filter((v) => v.checklist === req?.checklist).sort((a, b) => b.number - a.number)[0];
   const context = useMemo(() => (job && req ? buildContext(job, req, reference) : {}), [job, req, reference]);
   const views = useMemo(() => (version ? evaluateDraft(version.items, draft, context) : []), [version, draft, context]);
+
+  useEffect(() => {
+    if (!version || draftState.ready) return;
+    (async () => {
+      const kept = await draftGet(key).catch(() => null);
+      if (kept && kept.version === version.id) {
+        setDraft(kept.draft);
+        setRemarks(kept.remarks);
+        setSheetUuid(kept.sheet_uuid);
+        setTimers(kept.timers ?? {});
+        setDraftState({ ready: true, restoredAt: kept.saved_at, keptAt: kept.saved_at, other: "" });
+      } else {
+        const other = kept ? "Answers kept for another version of this checklist were not restored." : "";
+        setDraftState({ ready: true, restoredAt: "", keptAt: "", other });
+      }
+    })();
+  }, [version?.id]);
+
+  // What to write now; refreshed every render so the debounced call sees the latest answers.
+  latest.current = async () => {
+    if (!version || saved.current) return;
+    if (isEmptyDraft(draft) && !remarks.trim() && Object.keys(timers).length === 0) {
+      await draftDelete(key);
+      setDraftState((d) => ({ ...d, keptAt: "" }));
+      return;
+    }
+    const saved_at = new Date().toISOString();
+    await draftPut({ key, job: id, requirement, version: version.id, sheet_uuid: sheetUuid, draft, remarks, timers, saved_at });
+    setDraftState((d) => ({ ...d, keptAt: saved_at }));
+  };
+
+  useEffect(() => {
+    if (!draftState.ready || saved.current) return;
+    if (pending.current) clearTimeout(pending.current);
+    pending.current = setTimeout(() => {
+      pending.current = null;
+      void latest.current().catch(() => undefined);
+    }, 400);
+  }, [draft, remarks, timers, draftState.ready]);
+
+  // Leaving the screen (back, sign-in prompt, closing the tab) writes what is pending at once.
+  useEffect(() => {
+    const flush = () => {
+      if (!pending.current) return;
+      clearTimeout(pending.current);
+      pending.current = null;
+      void latest.current().catch(() => undefined);
+    };
+    const onHide = () => document.visibilityState === "hidden" && flush();
+    window.addEventListener("pagehide", flush);
+    document.addEventListener("visibilitychange", onHide);
+    return () => {
+      window.removeEventListener("pagehide", flush);
+      document.removeEventListener("visibilitychange", onHide);
+      flush();
+    };
+  }, []);
+
+  function startAfresh() {
+    if (!confirm("Clear every answer on this sheet?")) return;
+    setDraft(emptyDraft());
+    setRemarks("");
+    setTimers({});
+    setTried(false);
+    setDraftState((d) => ({ ...d, restoredAt: "" }));
+  }
 
   if (error || (job && !req) || (versions && !version)) {
     return (
@@ -96,7 +171,11 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         uploaded: false,
       })),
     );
-    await enqueue(
+    saved.current = true;
+    if (pending.current) clearTimeout(pending.current);
+    pending.current = null;
+    try {
+      await enqueue(
       {
         type: "sheet",
         data: {
@@ -116,8 +195,13 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         local_verdict: views.some((v) => v.verdict === "fail") ? "fail" : "pass",
         local_failures: failures.map((v) => `${v.item.label}${v.message ? ` (${v.message})` : ""}`),
       },
-      { uuid: sheetUuid, photos },
-    );
+      { uuid: sheetUuid, photos, draft: key },
+      );
+    } catch (error) {
+      saved.current = false;
+      alert(`Not saved: ${error instanceof Error ? error.message : String(error)}. The answers stay on this sheet.`);
+      return;
+    }
     go({ name: "job", id: job.id });
   }
 
@@ -154,7 +238,14 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         )}
 
         {item.kind === "series" && (
-          <SeriesCapture item={item} samples={draft.series[key] ?? []} onChange={(s) => set("series", key, s)} />
+          <SeriesCapture item={item} samples={draft.series[key] ?? []} onChange={(s) => set("series", key, s)}
+            startedAt={timers[key] ?? null}
+            onTimer={(at) => setTimers((t) => {
+              const next = { ...t };
+              if (at === null) delete next[key];
+              else next[key] = at;
+              return next;
+            })} />
         )}
 
         {item.kind === "photo" && (
@@ -223,6 +314,13 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
     <main class="screen with-bar">
       <Header title={version.title} back={href({ name: "job", id })}
         sub={<span>{req.subject} · version {version.number} · {job.site_name}</span>} />
+      {draftState.restoredAt && (
+        <div class="note row-note" role="status" data-testid="draft-restored">
+          <span>Restored the answers kept on this phone at {timeOf(draftState.restoredAt)}.</span>
+          <button type="button" class="btn btn-small" onClick={startAfresh} data-testid="draft-clear">Start afresh</button>
+        </div>
+      )}
+      {draftState.other && <p class="note">{draftState.other}</p>}
       {failed.length > 0 && (
         <section class="alert-block" data-testid="failed-top">
           <h2><Badge kind="held" word="Stop work: blocking item failed" /></h2>
@@ -234,9 +332,14 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         <span>Remarks for the daily record (optional)</span>
         <textarea rows={3} value={remarks} onInput={(e) => setRemarks((e.target as HTMLTextAreaElement).value)} data-testid="remarks" />
       </label>
+      <p class="muted small" data-testid="draft-note">
+        {draftState.keptAt
+          ? `Answers kept on this phone as you go (last at ${timeOf(draftState.keptAt)}); they stay until the check is saved.`
+          : "Answers are kept on this phone as you go."}
+      </p>
       <CautionLine job={job.id} />
       <BottomBar>
-        <span class="bar-note" data-testid="still-needed">
+        <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
           {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
         </span>
         <button type="button" class="btn btn-primary" onClick={save} data-testid="save">Save check</button>

@@ -3,9 +3,16 @@ import { api, ApiError, OfflineError } from "../api";
 import { cachePut } from "../storage";
 import type { User } from "../types";
 import { SHORT_CAUTION } from "./common";
+import { Badge } from "./signs";
 
-export function SignIn({ onSignedIn }: { onSignedIn: (user: User) => void }) {
-  const [username, setUsername] = useState("");
+export function SignIn({ onSignedIn, lapsed = null, waiting = 0 }: {
+  onSignedIn: (user: User) => void;
+  /** The user whose session ended without signing out, if any. */
+  lapsed?: User | null;
+  /** Records and photos kept on this phone, not sent yet. */
+  waiting?: number;
+}) {
+  const [username, setUsername] = useState(lapsed?.username ?? "");
   const [password, setPassword] = useState("");
   const [error, setError] = useState("");
   const [busy, setBusy] = useState(false);
@@ -42,6 +49,26 @@ export function SignIn({ onSignedIn }: { onSignedIn: (user: User) => void }) {
           <p class="muted">Pre-start checks on the roof</p>
         </div>
       </div>
+      {lapsed && (
+        <section class="card alert-soft" role="alert" data-testid="session-ended">
+          <h2><Badge kind="mustdo" word="Sign in again" /></h2>
+          <p>Your sign-in has ended: it times out after a while, or it was ended on another device.</p>
+          {waiting > 0 ? (
+            <p data-testid="session-waiting">
+              <strong>{waiting} {waiting === 1 ? "record is" : "records are"} kept on this phone</strong> and
+              will be sent as soon as you sign in again. Nothing is lost.
+            </p>
+          ) : (
+            <p>Everything you recorded is kept on this phone.</p>
+          )}
+          {waiting > 0 && username.trim() && username.trim() !== lapsed.username && (
+            <p class="small"><strong>They were made by {lapsed.name || lapsed.username}.</strong> Signed in as someone else, they are sent under that name.</p>
+          )}
+        </section>
+      )}
+      {!lapsed && waiting > 0 && (
+        <p class="note" data-testid="session-waiting">{waiting} kept on this phone, sent after the next sign-in.</p>
+      )}
       <form onSubmit={submit} class="card">
         <label class="field">
           <span>Username</span>
@@ -55,7 +82,7 @@ export function SignIn({ onSignedIn }: { onSignedIn: (user: User) => void }) {
         </label>
         {error && <p class="error" role="alert" data-testid="signin-error">{error}</p>}
         <button class="btn btn-primary btn-wide" type="submit" disabled={busy}>
-          {busy ? "Signing in…" : "Sign in"}
+          {busy ? "Signing in…" : lapsed && waiting > 0 ? "Sign in and send" : "Sign in"}
         </button>
       </form>
       <p class="muted small">{SHORT_CAUTION}</p>

@@ -25,6 +25,11 @@ export function Strip() {
       <span data-testid="strip-waiting" data-count={waiting}>
         Waiting {waiting}
       </span>
+      {s.signedOut && waiting > 0 && (
+        <span class="strip-rejected" data-testid="strip-signed-out">
+          Signed out: not sending
+        </span>
+      )}
       {s.rejected > 0 && (
         <span class="strip-rejected" data-testid="strip-rejected">
           Not accepted {s.rejected}
@@ -81,4 +86,11 @@ export function errorLines(errors: unknown, prefix = ""): string[] {
     );
   }
   return [String(errors)];
+}
+
+/** "X: Marked failed: X." reads better as "X: marked failed on the check." */
+export function plainReason(reason: string): string {
+  const m = /^(.*): Marked failed: (.*?)\.?$/.exec(reason);
+  if (m && m[1] === m[2]) return `${m[1]}: marked failed on the check.`;
+  return reason;
 }

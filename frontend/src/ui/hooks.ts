@@ -19,6 +19,7 @@ export type Route =
   | { name: "job"; id: number }
   | { name: "sheet"; id: number; requirement: string }
   | { name: "cautions"; id: number }
+  | { name: "sign"; id: number }
   | { name: "outbox" };
 
 export function parseRoute(hash: string): Route {
@@ -27,6 +28,7 @@ export function parseRoute(hash: string): Route {
   if (parts[0] === "job" && Number.isInteger(id)) {
     if (parts[2] === "sheet" && parts[3]) return { name: "sheet", id, requirement: decodeURIComponent(parts[3]) };
     if (parts[2] === "cautions") return { name: "cautions", id };
+    if (parts[2] === "sign") return { name: "sign", id };
     return { name: "job", id };
   }
   if (parts[0] === "outbox") return { name: "outbox" };
@@ -43,6 +45,8 @@ export function href(route: Route): string {
       return `#/job/${route.id}/sheet/${encodeURIComponent(route.requirement)}`;
     case "cautions":
       return `#/job/${route.id}/cautions`;
+    case "sign":
+      return `#/job/${route.id}/sign`;
     case "outbox":
       return "#/outbox";
   }
@@ -70,4 +74,12 @@ export function timeOf(iso: string | null): string {
   const d = new Date(iso);
   if (Number.isNaN(d.getTime())) return "never";
   return d.toLocaleTimeString([], { hour: "2-digit", minute: "2-digit" });
+}
+
+/** Date and time in the phone's own words, e.g. "3 Dec 2026, 17:42". */
+export function dateTimeOf(iso: string | null): string {
+  if (!iso) return "never";
+  const d = new Date(iso);
+  if (Number.isNaN(d.getTime())) return "never";
+  return d.toLocaleString([], { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit" });
 }

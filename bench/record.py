@@ -1,0 +1,234 @@
+"""The daily record: seal, render and sign a record of 10 drops and 30 sheets; verify it.
+
+Run: ``.venv/bin/python -m bench.record [--repeat 3]``. In-process on the bench database.
+Prints seconds per record for each stage and the ratio against reportlab alone drawing the
+same tables (plain text cells, and Paragraph cells as the record uses).
+"""
+
+import argparse
+import io
+import json
+import statistics
+import time
+import uuid
+from collections.abc import Callable
+from typing import Any
+
+from django.utils import timezone
+from pypdf import PdfReader
+from reportlab.lib import colors
+from reportlab.lib.pagesizes import A4
+from reportlab.lib.styles import getSampleStyleSheet
+from reportlab.lib.units import mm
+from reportlab.platypus import Paragraph, SimpleDocTemplate, Spacer, Table, TableStyle
+
+from bench import rig
+from bench.common import migrate, print_machine
+from checklists.services import record_sheet
+from compliance.daily_records import day_content, sign_daily_record
+from compliance.models import (
+    Anchor,
+    AnchorCertification,
+    Drop,
+    Equipment,
+    Job,
+    Organisation,
+    Site,
+    User,
+)
+from compliance.record_files import render_signed_pdf
+from compliance.record_pdf import render
+from compliance.selectors import job_requirements
+from compliance.services import close_job
+from compliance.signing import create_self_signed, sign_pdf
+from compliance.verification import verify_pdf
+
+DROPS = 10
+SHEETS = 30
+
+
+def big_job(tag: str) -> tuple[Job, User, User]:
+    """A job with 10 drops, each with its own anchor pair and kit."""
+    from django.contrib.auth.hashers import make_password
+
+    day = timezone.localdate()
+    org = Organisation.objects.create(name=f"Bench record {tag}")
+    password = make_password(rig.PASSWORD)
+    boss = User.objects.create(
+        username=f"{tag}-sup",
+        first_name="Robin",
+        last_name="Bench",
+        password=password,
+        organisation=org,
+        role="supervisor",
+    )
+    crew = User.objects.create(
+        username=f"{tag}-op", password=password, organisation=org, role="operator"
+    )
+    site = Site.objects.create(
+        organisation=org, name="Tower R", height_m=120.0, profile=rig.profile()
+    )
+    job = Job.objects.create(organisation=org, site=site, date=day, supervisor=boss)
+    for n in range(DROPS):
+        anchors = [Anchor.objects.create(site=site, label=f"R{n}-{i}") for i in range(2)]
+        for anchor in anchors:
+            AnchorCertification.objects.create(
+                anchor=anchor,
+                certifier="Bench Certifier",
+                rated_capacity_kn=22.2,
+                certified_on=day.replace(year=day.year - 1),
+                valid_until=day.replace(year=day.year + 1),
+            )
+        kit = {
+            kind: Equipment.objects.create(
+                organisation=org, kind=kind, label=f"{kind}-{n}", ratings=rig.RATINGS[kind]
+            )
+            for kind in rig.RATINGS
+        }
+        Drop.objects.create(
+            job=job,
+            label=f"D{n + 1}",
+            anchor=anchors[0],
+            safety_anchor=anchors[1],
+            length_m=100.0,
+            **kit,
+        )
+    return job, boss, crew
+
+
+def fill(job: Job, crew: User) -> None:
+    rig.checklists()
+    for req in job_requirements(job)[:SHEETS]:
+        from checklists.models import ChecklistVersion
+
+        version = ChecklistVersion.objects.select_related("checklist").get(pk=req.version_id)
+        record_sheet(
+            job=job,
+            version=version,
+            by=crew,
+            entries=rig.entries_for(version.items),
+            client_uuid=uuid.uuid4(),
+            anchor=req.subject.anchor,
+            equipment=req.subject.equipment,
+            device_time=timezone.now(),
+        )
+    assert job.sheets.count() == SHEETS
+
+
+def timed(call: Callable[[], Any], repeat: int) -> tuple[float, Any]:
+    """Median seconds over ``repeat`` calls, and the last result."""
+    times, result = [], None
+    for _ in range(repeat):
+        started = time.perf_counter()
+        result = call()
+        times.append(time.perf_counter() - started)
+    return statistics.median(times), result
+
+
+def plain_tables(document: dict[str, Any], paragraphs: bool) -> bytes:
+    """reportlab alone: one heading and one 4-column table per sheet, nothing else."""
+    styles = getSampleStyleSheet()
+    small = styles["BodyText"].clone("small", fontSize=7, leading=8)
+    story: list[Any] = []
+    for sheet in document["record"]["sheets"]:
+        story.append(Paragraph(f"#{sheet['id']} {sheet['title']} {sheet['verdict']}", styles["h3"]))
+        rows: list[list[Any]] = [["Item", "Entry", "Verdict", "Margin"]]
+        for e in sheet["entries"]:
+            value = json.dumps(e["value"]) if e["kind"] != "calc" else "computed"
+            cells = [
+                e["item"],
+                value[:120],
+                e["verdict"],
+                "" if e["margin"] is None else f"{e['margin']:+.0%}",
+            ]
+            rows.append(
+                [Paragraph(c, small) for c in cells[:2]] + cells[2:] if paragraphs else cells
+            )
+        table = Table(rows, colWidths=[60 * mm, 80 * mm, 20 * mm, 20 * mm], repeatRows=1)
+        table.setStyle(
+            TableStyle(
+                [("GRID", (0, 0), (-1, -1), 0.25, colors.grey), ("FONTSIZE", (0, 0), (-1, -1), 7)]
+            )
+        )
+        story += [table, Spacer(1, 3 * mm)]
+    buffer = io.BytesIO()
+    SimpleDocTemplate(buffer, pagesize=A4).build(story)
+    return buffer.getvalue()
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__)
+    parser.add_argument("--repeat", type=int, default=3)
+    args = parser.parse_args()
+    migrate()
+    print_machine()
+    tag = f"r{int(time.time())}"
+    job, boss, crew = big_job(tag)
+    fill(job, crew)
+    close_job(job=job, by=crew, reason="Bench day done.")
+    create_self_signed(organisation=job.organisation)
+    started = time.perf_counter()
+    record = sign_daily_record(job=job, by=boss, password=rig.PASSWORD, meaning="reviewed_safe")
+    sign_s = time.perf_counter() - started
+    document = json.loads(record.canonical_json)
+    figures: dict[str, float] = {"seal and sign the record (sign_daily_record)": sign_s}
+    figures["day_content (the rows behind it)"], _ = timed(lambda: day_content(job), args.repeat)
+    figures["render + sign (render_signed_pdf)"], signed = timed(
+        lambda: render_signed_pdf(record), args.repeat
+    )
+    figures["render only (record_pdf.render)"], unsigned = timed(
+        lambda: render(document, record.seal), args.repeat
+    )
+    figures["PAdES signature only (sign_pdf)"], _ = timed(
+        lambda: sign_pdf(
+            unsigned,
+            record.credential,
+            signer_name=record.signer_name,
+            reason=record.meaning,
+            location=record.site.name,
+        ),
+        args.repeat,
+    )
+    figures["reportlab alone, same tables, text cells"], plain = timed(
+        lambda: plain_tables(document, paragraphs=False), args.repeat
+    )
+    figures["reportlab alone, same tables, Paragraph cells"], para = timed(
+        lambda: plain_tables(document, paragraphs=True), args.repeat
+    )
+    figures["verify_pdf (signature, seal, chain, database)"], report = timed(
+        lambda: verify_pdf(signed, name="record.pdf"), args.repeat
+    )
+    figures["verify_pdf without the database"], _ = timed(
+        lambda: verify_pdf(
+            signed,
+            name="record.pdf",
+            use_database=False,
+            trusted_pems=[record.credential.certificate_pem],
+        ),
+        args.repeat,
+    )
+    assert report.ok, report.verdict()
+    print(
+        f"\nrecord: {DROPS} drops, {SHEETS} sheets x {rig.ITEMS_PER_SHEET} items; canonical JSON "
+        f"{len(record.canonical_json) / 1024:.0f} KiB; signed PDF {len(signed) / 1024:.0f} KiB, "
+        f"{len(PdfReader(io.BytesIO(signed)).pages)} pages; plain-table PDF "
+        f"{len(PdfReader(io.BytesIO(plain)).pages)} pages, {len(para) // 1024} KiB with Paragraphs"
+    )
+    print(f"median of {args.repeat} runs (sign_daily_record once)\n")
+    print("| stage | seconds |\n|---|---|")
+    for name, seconds in figures.items():
+        print(f"| {name} | {seconds:.3f} |")
+    base = figures["reportlab alone, same tables, text cells"]
+    full = figures["render + sign (render_signed_pdf)"]
+    drawn = figures["render only (record_pdf.render)"]
+    para_s = figures["reportlab alone, same tables, Paragraph cells"]
+    print(
+        f"\nrender + sign / reportlab text tables = {full / base:.1f}x; "
+        f"render only / reportlab text tables = {drawn / base:.1f}x; "
+        f"render only / reportlab Paragraph tables = {drawn / para_s:.1f}x"
+    )
+    print("(with no broker configured, sign_daily_record renders the PDF in-process at commit)")
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,44 @@
+"""Input rules shared by every serializer: no unknown fields, finite numbers, plausible dates."""
+
+import datetime as dt
+import math
+from collections.abc import Mapping
+from typing import Any
+
+from rest_framework import serializers
+
+EARLIEST = dt.date(1950, 1, 1)
+LATEST = dt.date(2100, 12, 31)
+
+
+class StrictInput:
+    """Refuse fields the serializer does not know, naming each, so a typo never loses data."""
+
+    fields: Any
+
+    def to_internal_value(self, data: Any) -> Any:
+        if isinstance(data, Mapping):
+            unknown = sorted(str(key)[:80] for key in data if key not in self.fields)
+            if unknown:
+                raise serializers.ValidationError({key: ["Unknown field."] for key in unknown})
+        return super().to_internal_value(data)  # type: ignore[misc]
+
+
+class FiniteFloatField(serializers.FloatField):
+    def to_internal_value(self, data: Any) -> float:
+        value = super().to_internal_value(data)
+        if not math.isfinite(value):
+            raise serializers.ValidationError("Must be a finite number.")
+        return value
+
+
+class PlausibleDateField(serializers.DateField):
+    """A date between 1950 and 2100: anything else is a typo or a phone with a reset clock."""
+
+    def to_internal_value(self, value: Any) -> dt.date:
+        day = super().to_internal_value(value)
+        if not EARLIEST <= day <= LATEST:
+            raise serializers.ValidationError(
+                f"A date between {EARLIEST.isoformat()} and {LATEST.isoformat()}."
+            )
+        return day

@@ -1,0 +1,26 @@
+/** Signing the day's record: the words of the signature and who may give it. */
+import type { Meaning, User } from "./types";
+
+/** The meanings the server accepts, in its own words: they go into the sealed record as written. */
+export const MEANINGS: { code: Meaning; text: string }[] = [
+  { code: "reviewed_safe", text: "Reviewed: the pre-start checks were complete and work was safe to proceed." },
+  { code: "reviewed_stopped", text: "Reviewed: work was stopped; the open holds are shown in this record." },
+  { code: "reviewed_exceptions", text: "Reviewed with exceptions: see the remarks in this record." },
+];
+
+export const STATEMENT =
+  "By signing you state, as the competent person for this site, that you have reviewed this day's " +
+  "record and that the meaning you chose is true. Your printed name, your role, the date and time " +
+  "and that meaning are sealed into the record together with its checks, verdicts, holds and drops. " +
+  "The seal binds your signature to this record alone; nothing in it can be changed afterwards, and " +
+  "a correction is made as a signed addendum.";
+
+/** Who may sign: the supervisor (competent person) or an organisation admin. */
+export function canSign(user: User | null | undefined): boolean {
+  return user?.role === "supervisor" || user?.role === "admin";
+}
+
+/** "3f2a9c0177be04d1…" → "3f2a 9c01 77be 04d1": the first 16 hex characters, in fours. */
+export function sealShort(seal: string): string {
+  return (seal.slice(0, 16).match(/.{1,4}/g) ?? []).join(" ");
+}

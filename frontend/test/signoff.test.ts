@@ -1,0 +1,55 @@
+/** Sign-off words, the seal as shown, when a refusal means "signed out", and empty drafts. */
+import { readFileSync } from "node:fs";
+import { describe, expect, it } from "vitest";
+import { ApiError } from "../src/api";
+import { emptyDraft, isEmptyDraft } from "../src/sheet";
+import { canSign, MEANINGS, sealShort } from "../src/signoff";
+import type { User } from "../src/types";
+
+describe("meanings of the signature", () => {
+  it("are the server's own words, so the phone shows what is sealed", () => {
+    const server = readFileSync(new URL("../../compliance/daily_records.py", import.meta.url), "utf8");
+    const block = server.slice(server.indexOf("MEANINGS = {"), server.indexOf("}", server.indexOf("MEANINGS = {")));
+    const found = Object.fromEntries([...block.matchAll(/"([a-z_]+)":\s*"([^"]+)"/g)].map((m) => [m[1], m[2]]));
+    expect(found).toEqual(Object.fromEntries(MEANINGS.map((m) => [m.code, m.text])));
+  });
+});
+
+describe("sealShort", () => {
+  it("shows the first 16 hex characters in fours", () => {
+    expect(sealShort("3f2a9c0177be04d1" + "0".repeat(48))).toBe("3f2a 9c01 77be 04d1");
+    expect(sealShort("")).toBe("");
+  });
+});
+
+describe("canSign", () => {
+  const user = (role: string): User => ({ id: 1, username: "u", name: "U", role, organisation: "o" });
+  it("lets the supervisor and an admin sign, nobody else", () => {
+    expect(["supervisor", "admin"].map((r) => canSign(user(r)))).toEqual([true, true]);
+    expect(["operator", "auditor", "property_manager"].map((r) => canSign(user(r)))).toEqual([false, false, false]);
+    expect(canSign(null)).toBe(false);
+  });
+});
+
+describe("ApiError.signedOut", () => {
+  it("is a lapsed session, not a refusal of a signed-in user", () => {
+    expect(new ApiError(401, { detail: "Invalid token." }).signedOut).toBe(true);
+    expect(new ApiError(403, { detail: "Authentication credentials were not provided." }).signedOut).toBe(true);
+    expect(new ApiError(403, { detail: "Re-enter your password to sign; the one given is not right." }).signedOut).toBe(false);
+    expect(new ApiError(403, { detail: "You do not have permission to perform this action." }).signedOut).toBe(false);
+    expect(new ApiError(409, { detail: "Close the job (or leave it held) before signing" }).signedOut).toBe(false);
+  });
+});
+
+describe("isEmptyDraft", () => {
+  it("is empty until something is entered", () => {
+    const draft = emptyDraft();
+    expect(isEmptyDraft(draft)).toBe(true);
+    draft.readings = { tag_capacity: "  " };
+    draft.series = { decay: [] };
+    expect(isEmptyDraft(draft)).toBe(true);
+    draft.readings = { tag_capacity: "2" };
+    expect(isEmptyDraft(draft)).toBe(false);
+    expect(isEmptyDraft({ ...emptyDraft(), ticks: { a: "na" } })).toBe(false);
+  });
+});

@@ -1,0 +1,112 @@
+"""The phone's clock is hours off: the server's time is kept beside the phone's, and said so."""
+
+import datetime as dt
+import uuid
+
+import pytest
+from django.urls import reverse
+from django.utils import timezone
+
+from checklists.models import CheckSheet
+from compliance.daily_records import day_content
+from compliance.models import SyncReceipt
+from tests.conftest import PASSING, client_for
+
+pytestmark = pytest.mark.django_db
+
+SKEW = dt.timedelta(hours=5)
+
+
+def send_site_sheet(job, versions, operator, device_time):
+    record = {
+        "type": "sheet",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {
+            "job": job.pk,
+            "version": versions["site"].pk,
+            "entries": PASSING["site"],
+            "device_time": device_time.isoformat(),
+        },
+    }
+    before = timezone.now()
+    response = client_for(operator).post(reverse("sync"), {"records": [record]}, format="json")
+    after = timezone.now()
+    assert response.status_code == 200
+    assert response.json()["results"][0]["status"] == "applied", response.json()
+    return record, before, after, response.json()
+
+
+def sheet_in_record(job, client_uuid):
+    return next(s for s in day_content(job)["sheets"] if s["client_uuid"] == client_uuid)
+
+
+@pytest.mark.parametrize("direction", [1, -1], ids=["phone-fast", "phone-slow"])
+def test_device_time_and_server_time_are_both_kept(job, simple_checklists, operator, direction):
+    phone_now = timezone.now() + direction * SKEW
+    record, before, after, body = send_site_sheet(job, simple_checklists, operator, phone_now)
+    sheet = CheckSheet.objects.get(client_uuid=record["client_uuid"])
+    assert sheet.device_time == phone_now
+    assert before <= sheet.received_at <= after
+    assert abs(dt.datetime.fromisoformat(body["server_time"]) - sheet.received_at) < SKEW / 100
+    in_record = sheet_in_record(job, record["client_uuid"])
+    assert in_record["device_time"] == phone_now.astimezone(dt.UTC).isoformat().replace(
+        "+00:00", "Z"
+    )
+    assert in_record["received_at"] == sheet.received_at.astimezone(dt.UTC).isoformat().replace(
+        "+00:00", "Z"
+    )
+
+
+def clock_notes_about(job, sheet_id):
+    return [n for n in day_content(job)["clock_notes"] if n.startswith(f"sheet {sheet_id}:")]
+
+
+def test_a_phone_clock_hours_fast_is_stated_in_the_daily_record(job, simple_checklists, operator):
+    record, *_ = send_site_sheet(job, simple_checklists, operator, timezone.now() + SKEW)
+    sheet = sheet_in_record(job, record["client_uuid"])
+    assert sheet["clock_offset_s"] == pytest.approx(SKEW.total_seconds(), abs=60)
+    (note,) = clock_notes_about(job, sheet["id"])
+    assert "5 h" in note and "ahead of" in note and sheet["received_at"] in note
+
+
+def test_a_correct_clock_is_not_flagged(job, simple_checklists, operator):
+    record, *_ = send_site_sheet(job, simple_checklists, operator, timezone.now())
+    sheet = sheet_in_record(job, record["client_uuid"])
+    assert abs(sheet["clock_offset_s"]) < 60
+    assert clock_notes_about(job, sheet["id"]) == []
+
+
+def test_a_phone_clock_hours_slow_keeps_both_times(job, simple_checklists, operator):
+    """Behind by 5 h looks like a sheet filled offline and sent later: both times are kept."""
+    record, *_ = send_site_sheet(job, simple_checklists, operator, timezone.now() - SKEW)
+    sheet = sheet_in_record(job, record["client_uuid"])
+    assert sheet["clock_offset_s"] == pytest.approx(-SKEW.total_seconds(), abs=60)
+
+
+def test_a_phone_clock_hours_slow_is_stated_when_the_batch_says_when_it_was_sent(
+    job, simple_checklists, operator
+):
+    phone_now = timezone.now() - SKEW
+    record = {
+        "type": "sheet",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {
+            "job": job.pk,
+            "version": simple_checklists["site"].pk,
+            "entries": PASSING["site"],
+            "device_time": (phone_now - dt.timedelta(minutes=1)).isoformat(),
+        },
+    }
+    response = client_for(operator).post(
+        reverse("sync"), {"records": [record], "sent_at": phone_now.isoformat()}, format="json"
+    )
+    assert response.json()["results"][0]["status"] == "applied"
+    sheet = sheet_in_record(job, record["client_uuid"])
+    assert clock_notes_about(job, sheet["id"]), "the 5 h slow clock is not stated"
+
+
+def test_the_receipt_keeps_the_device_time(job, simple_checklists, operator):
+    phone_now = timezone.now() - SKEW
+    record, *_ = send_site_sheet(job, simple_checklists, operator, phone_now)
+    receipt = SyncReceipt.objects.get(client_uuid=record["client_uuid"])
+    assert receipt.device_time == phone_now
