@@ -38,6 +38,16 @@ class Batch:
     user: User
     phone_clock_offset_s: int | None = None
     pending_readiness: set[int] = field(default_factory=set)
+    known: dict[tuple[str, int], Any] = field(default_factory=dict)
+
+    def lookup(self, model: Any, queryset: Any, pk: Any, name: str) -> Any:
+        """_get, remembered for the batch: versions, anchors and equipment do not change in it."""
+        if isinstance(pk, int) and not isinstance(pk, bool) and (name, pk) in self.known:
+            return self.known[(name, pk)]
+        obj = _get(model, queryset, pk, name)
+        if obj is not None:
+            self.known[(name, pk)] = obj
+        return obj
 
     def settle(self, job_id: int | None = None) -> None:
         """Bring the jobs whose sheets passed up to date (one job, or all of them)."""
@@ -91,7 +101,7 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
     )
     if job is None:
         raise RecordRejected({"job": ["Required."]})
-    version = _get(
+    version = batch.lookup(
         ChecklistVersion,
         ChecklistVersion.objects.select_related("checklist"),
         data.get("version"),
@@ -99,8 +109,8 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
     )
     if version is None:
         raise RecordRejected({"version": ["Required."]})
-    anchor = _get(Anchor, anchors_visible_to(org), data.get("anchor"), "anchor")
-    equipment = _get(
+    anchor = batch.lookup(Anchor, anchors_visible_to(org), data.get("anchor"), "anchor")
+    equipment = batch.lookup(
         Equipment, Equipment.objects.filter(organisation_id=org), data.get("equipment"), "equipment"
     )
     remarks = data.get("remarks", "")
