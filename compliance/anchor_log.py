@@ -236,15 +236,17 @@ def log_pre_use_check(sheet: "CheckSheet") -> AnchorLogEntry:
 def _jobs_using(anchor: Anchor) -> list[Job]:
     from django.db.models import Q
 
-    return list(
-        Job.objects.select_for_update()
-        .filter(
+    ids = (
+        Job.objects.filter(
             Q(drops__anchor=anchor) | Q(drops__safety_anchor=anchor),
             state__in=OPEN_STATES,
             date__gte=timezone.localdate(),
         )
+        .values_list("pk", flat=True)
         .distinct()
     )
+    # PostgreSQL refuses FOR UPDATE with DISTINCT: find the jobs, then lock them by id.
+    return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
 
 
 def _hold_jobs_using(anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:

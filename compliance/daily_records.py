@@ -251,10 +251,10 @@ def clock_notes(sheets: list[CheckSheet], logs: list[DropLog]) -> list[str]:
     for sheet in sheets:
         offset = sheet.phone_clock_offset_s
         if offset is not None and abs(offset) > CLOCK_TOLERANCE_S:
-            hours, rest = divmod(abs(offset), 3600)
+            hours, minutes = divmod(round(abs(offset) / 60), 60)
             notes.append(
                 f"sheet {sheet.pk}: when its batch was sent, the phone's clock was {hours} h "
-                f"{rest // 60} min {'ahead of' if offset > 0 else 'behind'} the server's; "
+                f"{minutes} min {'ahead of' if offset > 0 else 'behind'} the server's; "
                 "the server's time is the one of record."
             )
     measured = {s.pk for s in sheets if s.phone_clock_offset_s is not None}
@@ -266,9 +266,9 @@ def clock_notes(sheets: list[CheckSheet], logs: list[DropLog]) -> list[str]:
             continue
         late_day = device is not None and device.date() < received.date() - dt.timedelta(days=1)
         if offset > CLOCK_TOLERANCE_S or late_day:
-            hours, rest = divmod(abs(offset), 3600)
+            hours, minutes = divmod(round(abs(offset) / 60), 60)  # to the nearest minute
             notes.append(
-                f"{name}: the phone's clock read {utc(device)}, {hours} h {rest // 60} min "
+                f"{name}: the phone's clock read {utc(device)}, {hours} h {minutes} min "
                 f"{'ahead of' if offset > 0 else 'behind'} the server's receipt at "
                 f"{utc(received)}; the server's time is the one of record."
             )
@@ -295,6 +295,25 @@ def _chain_position(site_id: int) -> tuple[int, str]:
         .first()
     )
     return (1, "") if last is None else (last[0] + 1, last[1])
+
+
+SIGNING_METHOD = "user id and password re-entered at the moment of signing"
+
+
+def signature_block(
+    by: User, meaning: str, code: str, signed_at: dt.datetime, certificate_sha256: str
+) -> dict[str, Any]:
+    """The signature manifestation sealed into a document: printed name, role, meaning, time."""
+    return {
+        "name": by.display_name,
+        "username": by.username,
+        "role": by.get_role_display(),
+        "meaning": meaning,
+        "meaning_code": code,
+        "signed_at": utc(signed_at),
+        "method": SIGNING_METHOD,
+        "certificate_sha256": certificate_sha256,
+    }
 
 
 def _authenticate(by: User, password: str) -> None:
@@ -343,16 +362,9 @@ def sign_daily_record(
             "record": content,
             "remarks": remarks,
             "open_holds": len(open_holds_of(content)),
-            "signature": {
-                "name": by.display_name,
-                "username": by.username,
-                "role": by.get_role_display(),
-                "meaning": MEANINGS[meaning],
-                "meaning_code": meaning,
-                "signed_at": utc(signed_at),
-                "method": "user id and password re-entered at the moment of signing",
-                "certificate_sha256": credential.fingerprint_sha256,
-            },
+            "signature": signature_block(
+                by, MEANINGS[meaning], meaning, signed_at, credential.fingerprint_sha256
+            ),
         }
         seal = seal_of(document)
         record = DailyRecord.objects.create(
@@ -404,16 +416,9 @@ def add_addendum(*, record: DailyRecord, by: User, password: str, text: str) -> 
                 "date": json.loads(record.canonical_json)["record"]["job"]["date"],
             },
             "text": text,
-            "signature": {
-                "name": by.display_name,
-                "username": by.username,
-                "role": by.get_role_display(),
-                "meaning": ADDENDUM_MEANING,
-                "meaning_code": "addendum",
-                "signed_at": utc(signed_at),
-                "method": "user id and password re-entered at the moment of signing",
-                "certificate_sha256": credential.fingerprint_sha256,
-            },
+            "signature": signature_block(
+                by, ADDENDUM_MEANING, "addendum", signed_at, credential.fingerprint_sha256
+            ),
         }
         seal = seal_of(document)
         addendum = DailyRecord.objects.create(

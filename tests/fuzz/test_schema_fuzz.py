@@ -20,6 +20,24 @@ from tests.conftest import fill_all
 TRACE_MARKERS = (b"Traceback (most recent call last)", b'File "/', b"django/core/handlers")
 
 
+@pytest.fixture(autouse=True)
+def _keep_the_test_connection():
+    """Like Django's test client: a request must not close the test's database connection.
+
+    Outside tests Django closes connections at the end of each request (CONN_MAX_AGE=0); here
+    that would end the test transaction on PostgreSQL (SQLite's in-memory test database never
+    closes, which is why this showed only in the PostgreSQL run).
+    """
+    from django.core.signals import request_finished, request_started
+    from django.db import close_old_connections
+
+    request_started.disconnect(close_old_connections)
+    request_finished.disconnect(close_old_connections)
+    yield
+    request_started.connect(close_old_connections)
+    request_finished.connect(close_old_connections)
+
+
 @pytest.fixture
 def token(job, simple_checklists, operator):
     """An operator's token, with a small rig in the database for the generated calls to hit."""
