@@ -8,7 +8,6 @@ plans to use it; returning it to service clears those holds.
 """
 
 import datetime as dt
-import json
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
@@ -283,7 +282,3 @@ def verify_log_chain(site_id: int) -> list[Any]:
         .values("sequence", "seal", "previous_seal", "canonical_json")
     )
     return check_links(rows)
-
-
-def entry_document(entry: AnchorLogEntry) -> dict[str, Any]:
-    return json.loads(entry.canonical_json)

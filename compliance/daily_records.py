@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from django.db import transaction
-from django.db.models import Max, Prefetch
+from django.db.models import Prefetch
 from django.utils import timezone
 
 from checklists.models import CheckSheet, ItemEntry, Photo
@@ -279,13 +279,6 @@ def open_holds_of(content: dict[str, Any]) -> list[dict[str, Any]]:
     return [h for h in content["holds"] if h["cleared_at"] is None]
 
 
-@dataclass(frozen=True)
-class SignatureRequest:
-    password: str
-    meaning: str
-    remarks: str = ""
-
-
 def _chain_position(site_id: int) -> tuple[int, str]:
     last = (
         DailyRecord.objects.select_for_update()
@@ -492,7 +485,3 @@ def _differences(a: Any, b: Any, path: str) -> list[str]:
             out += _differences(x, y, f"{path}[{i}]")
         return out
     return [] if a == b else [path]
-
-
-def next_sequence_hint(site_id: int) -> int:
-    return (DailyRecord.objects.filter(site_id=site_id).aggregate(m=Max("sequence"))["m"] or 0) + 1

@@ -11,7 +11,7 @@ from reportlab.graphics.shapes import Circle, Drawing, Polygon, Rect, String
 from reportlab.lib import colors
 from reportlab.lib.pagesizes import A4
 from reportlab.lib.units import mm
-from reportlab.platypus import SimpleDocTemplate, Spacer, Table
+from reportlab.platypus import SimpleDocTemplate, Spacer
 
 from compliance.anchor_log import anchor_status
 from compliance.models import Anchor, AnchorLogEntry, Site, User
@@ -244,6 +244,3 @@ def signed_log_book(site: Site, by: User, anchor: Anchor | None = None) -> tuple
         location=site.name,
     )
     return pdf, seal
-
-
-__all__ = ["Table", "build_document", "roof_plan", "signed_log_book"]

@@ -5,7 +5,6 @@ Safety records (certifications, transitions, holds, clearances, drop logs) are a
 
 import datetime as dt
 import uuid
-from typing import Any
 
 from django.contrib.auth.models import AbstractUser
 from django.core.exceptions import ValidationError
@@ -375,19 +374,6 @@ class DropLog(AppendOnlyModel):
     device_time = models.DateTimeField(null=True, blank=True)
     received_at = models.DateTimeField(auto_now_add=True)
     note = models.CharField(max_length=500, blank=True)
-
-
-def organisation_of(obj: Any) -> int | None:
-    """The organisation id that owns a row, for object-level permission checks."""
-    for path in ("organisation_id", "site.organisation_id", "job.organisation_id"):
-        target = obj
-        for part in path.split("."):
-            target = getattr(target, part, None)
-            if target is None:
-                break
-        if target is not None:
-            return int(target)
-    return None
 
 
 class SyncReceipt(AppendOnlyModel):

@@ -19,7 +19,7 @@ from compliance.models import (
     Site,
     User,
 )
-from compliance.selectors import job_blockers, job_requirements
+from compliance.selectors import job_blockers
 
 if TYPE_CHECKING:
     from checklists.models import CheckSheet
@@ -220,10 +220,6 @@ def create_equipment(*, by: User, **fields: Any) -> Equipment:
         item.full_clean()
         item.save()
     return item
-
-
-def requirements_summary(job: Job) -> list[dict[str, object]]:
-    return [r.as_dict() for r in job_requirements(job)]
 
 
 __all__ = [

@@ -202,13 +202,8 @@ def apply_batch(
     return results
 
 
-def apply_record(batch: Batch | User, record: Any) -> dict[str, Any]:
-    """Apply one client record exactly once and return its result line."""
-    if isinstance(batch, User):
-        single = Batch(user=batch)
-        line = apply_record(single, record)
-        single.settle()
-        return line
+def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
+    """Apply one client record exactly once and return its result line (see apply_batch)."""
     user = batch.user
     if not isinstance(record, dict):
         return {

@@ -39,6 +39,7 @@ from compliance.models import (
     Site,
 )
 from compliance.selectors import job_readiness, jobs_for
+from compliance.sync import MAX_BATCH
 
 
 class LoginThrottle(SimpleRateThrottle):
@@ -112,7 +113,7 @@ def me(request: Request) -> Response:
 
 
 class SyncInput(StrictInput, serializers.Serializer):
-    records = serializers.ListField(child=serializers.JSONField(), max_length=200)
+    records = serializers.ListField(child=serializers.JSONField(), max_length=MAX_BATCH)
     sent_at = serializers.DateTimeField(required=False, allow_null=True)
 
 
