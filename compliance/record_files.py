@@ -3,6 +3,7 @@
 import datetime as dt
 import io
 import json
+import logging
 import zipfile
 from pathlib import Path
 
@@ -14,6 +15,10 @@ from compliance.models import DailyRecord, RecordPdf, SigningCredential, Site
 from compliance.record_pdf import render
 from compliance.signing import sha256_hex, sign_pdf
 from compliance.verification import merkle_root
+
+logger = logging.getLogger(__name__)
+
+RECORD_FILES_DIR = "records"
 
 
 def _photo_paths(record: DailyRecord) -> dict[str, Path]:
@@ -61,6 +66,38 @@ def ensure_pdf(record: DailyRecord) -> RecordPdf:
             return RecordPdf.objects.get(record=record)
         raise
     return pdf
+
+
+def _stored_pdfs(storage, directory: str) -> list[str]:  # type: ignore[no-untyped-def]
+    try:
+        subdirs, files = storage.listdir(directory)
+    except FileNotFoundError:
+        return []
+    names = [f"{directory}/{f}" for f in files if f.endswith(".pdf")]
+    for sub in subdirs:
+        names.extend(_stored_pdfs(storage, f"{directory}/{sub}"))
+    return names
+
+
+def sweep_orphan_pdfs(*, older_than: dt.timedelta, now: dt.datetime) -> list[str]:
+    """Delete stored record PDFs that no row names, left by a worker killed mid-save.
+
+    A render stores its file, then commits its row; a process killed between the two
+    (SIGKILL, power loss) runs no clean-up, so the file stays with nothing pointing at
+    it while the retried task stores its own. Only files older than ``older_than``
+    go, so a render still between the two steps keeps its file. The record itself
+    is the sealed row in the database; a PDF with no row is not part of any record.
+    """
+    storage = RecordPdf._meta.get_field("file").storage
+    named = set(RecordPdf.objects.values_list("file", flat=True))
+    removed = []
+    for name in _stored_pdfs(storage, RECORD_FILES_DIR):
+        if name in named or now - storage.get_modified_time(name) < older_than:
+            continue
+        storage.delete(name)
+        removed.append(name)
+        logger.warning("removed %s: a record PDF no row names (an interrupted render)", name)
+    return removed
 
 
 def export_filename(record: DailyRecord) -> str:

@@ -155,6 +155,13 @@ CELERY_TASK_ALWAYS_EAGER = not CELERY_BROKER_URL
 CELERY_TASK_EAGER_PROPAGATES = True
 CELERY_TASK_ACKS_LATE = True
 CELERY_TASK_REJECT_ON_WORKER_LOST = True
+CELERY_WORKER_PREFETCH_MULTIPLIER = 1
+# A message taken by a worker that then dies (killed, host lost) goes back on the
+# Redis queue after this many seconds; it must exceed the longest task (a render
+# takes seconds), and every task is idempotent, so a second delivery changes nothing.
+CELERY_BROKER_TRANSPORT_OPTIONS = {
+    "visibility_timeout": env.int("CELERY_VISIBILITY_TIMEOUT", default=1800)
+}
 CELERY_TIMEZONE = "UTC"
 
 CELERY_BEAT_SCHEDULE = {
@@ -163,6 +170,7 @@ CELERY_BEAT_SCHEDULE = {
         "schedule": 24 * 3600,
     },
     "list-due-items": {"task": "compliance.tasks.list_due_items", "schedule": 24 * 3600},
+    "sweep-orphan-pdfs": {"task": "compliance.tasks.sweep_orphan_pdfs", "schedule": 24 * 3600},
 }
 
 CACHES = {"default": env.cache("CACHE_URL", default="locmemcache://")}

@@ -35,3 +35,13 @@ def list_due_items(days: int = 30) -> int:
     from compliance.notices import flag_due
 
     return flag_due(today=timezone.localdate(), within=dt.timedelta(days=days))
+
+
+@shared_task
+def sweep_orphan_pdfs(hours: int = 6) -> int:
+    """Remove record PDFs whose render was killed before its row was committed."""
+    from compliance import record_files
+
+    return len(
+        record_files.sweep_orphan_pdfs(older_than=dt.timedelta(hours=hours), now=timezone.now())
+    )

@@ -7,9 +7,8 @@ from tests.conftest import fill_all
 from tests.factories import PASSWORD
 
 
-@pytest.fixture
-def signed_record(job, simple_checklists, operator, supervisor):
-    """A closed job's daily record, signed and sealed, with no PDF rendered yet."""
+def sign_closed_job(job, simple_checklists, operator, supervisor):
+    """Fill, start, close and sign the job's day; returns the sealed daily record."""
     create_self_signed(organisation=job.organisation)
     fill_all(job, simple_checklists, operator)
     start_job(job=job, by=operator)
@@ -18,3 +17,9 @@ def signed_record(job, simple_checklists, operator, supervisor):
     return sign_daily_record(
         job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe", remarks="Done."
     )
+
+
+@pytest.fixture
+def signed_record(job, simple_checklists, operator, supervisor):
+    """A closed job's daily record, signed and sealed, with no PDF rendered yet."""
+    return sign_closed_job(job, simple_checklists, operator, supervisor)

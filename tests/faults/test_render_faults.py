@@ -81,3 +81,48 @@ def test_a_crashed_render_leaves_no_orphan_file_in_storage(signed_record, settin
     render_daily_record.apply(args=[signed_record.pk])
     pdf = RecordPdf.objects.get(record=signed_record)
     assert stored_files(tmp_path) == [tmp_path.joinpath(pdf.file.name).relative_to(tmp_path)]
+
+
+def test_the_sweep_removes_only_old_pdfs_no_row_names(signed_record, settings, tmp_path):
+    """What a SIGKILL between file and row leaves (see test_worker_killed) goes; nothing else."""
+    import datetime as dt
+    import os
+
+    from django.utils import timezone
+
+    from compliance.record_files import ensure_pdf, sweep_orphan_pdfs
+    from compliance.tasks import sweep_orphan_pdfs as sweep_task
+
+    settings.MEDIA_ROOT = tmp_path
+    kept = ensure_pdf(signed_record)
+    folder = tmp_path / "records" / "2026" / "11"
+    folder.mkdir(parents=True)
+    old_orphan, fresh_orphan = folder / "record-1-1-aaaa.pdf", folder / "record-1-1-bbbb.pdf"
+    for orphan in (old_orphan, fresh_orphan):
+        orphan.write_bytes(b"%PDF-1.7 interrupted")
+    (folder / "notes.txt").write_text("not a record file")
+    seven_hours_ago = (timezone.now() - dt.timedelta(hours=7)).timestamp()
+    for path in (old_orphan, tmp_path / kept.file.name):
+        os.utime(path, (seven_hours_ago, seven_hours_ago))
+
+    assert sweep_orphan_pdfs(older_than=dt.timedelta(hours=6), now=timezone.now()) == [
+        "records/2026/11/record-1-1-aaaa.pdf"
+    ]
+    kept_path = tmp_path.joinpath(kept.file.name).relative_to(tmp_path)
+    assert sorted(stored_files(tmp_path)) == sorted([fresh_orphan.relative_to(tmp_path), kept_path])
+    assert sweep_task.apply(kwargs={"hours": 0}).result == 1  # the fresh one, now old enough
+    assert stored_files(tmp_path) == [kept_path]
+    assert (folder / "notes.txt").exists()
+    with kept.file.open("rb") as handle:
+        assert verify_pdf(handle.read(), name="record.pdf").ok
+
+
+def test_the_sweep_runs_on_an_empty_store(db, settings, tmp_path):
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from compliance.record_files import sweep_orphan_pdfs
+
+    settings.MEDIA_ROOT = tmp_path / "nothing-yet"
+    assert sweep_orphan_pdfs(older_than=dt.timedelta(hours=6), now=timezone.now()) == []
