@@ -118,6 +118,7 @@ def pytest_collection_modifyitems(config, items):
     """Tests that need Redis or PostgreSQL run when the environment points at them (.ci/run).
 
     They are deselected, not skipped, on the SQLite run, which has neither configured.
+    This runs after pytest-django's own ordering (database tests, then transactional ones).
     """
     import os
 
@@ -131,7 +132,12 @@ def pytest_collection_modifyitems(config, items):
         (keep if all(wanted[m] for m in needs) else drop).append(item)
     if drop:
         config.hook.pytest_deselected(items=drop)
-        items[:] = keep
+    # Browser tests last: Playwright's sync API keeps an event loop running on the main thread
+    # from the first of them to the end of the session, and code that calls asyncio.run()
+    # (PDF signing and signature checks) cannot run on a thread whose loop is running.
+    items[:] = [i for i in keep if not i.get_closest_marker("browser")] + [
+        i for i in keep if i.get_closest_marker("browser")
+    ]
 
 
 @pytest.fixture(autouse=True)
