@@ -120,3 +120,21 @@ def test_oversized_json_is_refused(job, operator):
     body = '{"records": ["' + "x" * (6 * 1024 * 1024) + '"]}'
     response = client_for(operator).post(reverse("sync"), body, content_type="application/json")
     assert response.status_code in (400, 413)
+
+
+@pytest.mark.django_db
+def test_a_missing_session_is_marked_by_a_code_the_phone_tests():
+    """The phone signs out on this code alone; other 403s (a role, a wrong password) carry none."""
+    anonymous = APIClient()
+    for response in (
+        anonymous.get(reverse("me")),
+        anonymous.post(reverse("sync"), {"records": []}, format="json"),
+    ):
+        assert response.status_code == 403
+        assert response.json()["code"] == "not_authenticated"
+
+    auditor = APIClient()
+    auditor.force_authenticate(UserFactory(role="auditor"))
+    refused = auditor.post(reverse("sync"), {"records": []}, format="json")
+    assert refused.status_code == 403
+    assert "code" not in refused.json()

@@ -3,7 +3,7 @@
 from typing import Any
 
 from django.core.exceptions import ValidationError as DjangoValidationError
-from rest_framework import status
+from rest_framework import exceptions, status
 from rest_framework.response import Response
 from rest_framework.views import exception_handler as drf_exception_handler
 
@@ -37,4 +37,12 @@ def exception_handler(exc: Exception, context: dict[str, Any]) -> Response | Non
         return Response({"detail": str(exc)}, status=status.HTTP_409_CONFLICT)
     if isinstance(exc, DjangoValidationError):
         return Response(django_errors(exc), status=status.HTTP_400_BAD_REQUEST)
-    return drf_exception_handler(exc, context)
+    response = drf_exception_handler(exc, context)
+    if (
+        response is not None
+        and isinstance(exc, exceptions.NotAuthenticated | exceptions.AuthenticationFailed)
+        and isinstance(response.data, dict)
+    ):
+        # A code the phone can test without reading words: the session is gone, sign in again.
+        response.data["code"] = exc.default_code
+    return response

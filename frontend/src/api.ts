@@ -38,16 +38,16 @@ export class ApiError extends Error {
   }
   /**
    * The session is gone (expired, or signed out on another tab). A 403 alone is not enough:
-   * the server also answers 403 to a wrong password when signing, or to a role that may not act.
+   * the server also answers 403 to a wrong password when signing, or to a role that may not act;
+   * it marks a missing or lapsed session with a code of its own (compliance/api/errors.py).
    */
   get signedOut(): boolean {
     if (this.status === 401) return true;
-    return this.status === 403 && NOT_SIGNED_IN.test(typeof this.body.detail === "string" ? this.body.detail : "");
+    return this.status === 403 && SIGNED_OUT_CODES.has(String(this.body.code ?? ""));
   }
 }
 
-/** What the server says when a request carries no valid session (Django REST framework's words). */
-const NOT_SIGNED_IN = /credentials were not provided|not authenticated|not signed in/i;
+const SIGNED_OUT_CODES = new Set(["not_authenticated", "authentication_failed"]);
 
 export function csrfToken(): string {
   for (const part of document.cookie.split(";")) {

@@ -34,7 +34,10 @@ describe("canSign", () => {
 describe("ApiError.signedOut", () => {
   it("is a lapsed session, not a refusal of a signed-in user", () => {
     expect(new ApiError(401, { detail: "Invalid token." }).signedOut).toBe(true);
-    expect(new ApiError(403, { detail: "Authentication credentials were not provided." }).signedOut).toBe(true);
+    expect(new ApiError(403, { detail: "Authentication credentials were not provided.", code: "not_authenticated" }).signedOut).toBe(true);
+    expect(new ApiError(403, { detail: "Session lapsed.", code: "authentication_failed" }).signedOut).toBe(true);
+    // the words alone do not sign the phone out: only the server's code does
+    expect(new ApiError(403, { detail: "Authentication credentials were not provided." }).signedOut).toBe(false);
     expect(new ApiError(403, { detail: "Re-enter your password to sign; the one given is not right." }).signedOut).toBe(false);
     expect(new ApiError(403, { detail: "You do not have permission to perform this action." }).signedOut).toBe(false);
     expect(new ApiError(409, { detail: "Close the job (or leave it held) before signing" }).signedOut).toBe(false);
