@@ -8,6 +8,7 @@ import zipfile
 from pathlib import Path
 
 from django.core.files.base import ContentFile
+from django.core.files.storage import Storage
 from django.db import IntegrityError, transaction
 
 from checklists.models import Photo
@@ -68,7 +69,7 @@ def ensure_pdf(record: DailyRecord) -> RecordPdf:
     return pdf
 
 
-def _stored_pdfs(storage, directory: str) -> list[str]:  # type: ignore[no-untyped-def]
+def _stored_pdfs(storage: Storage, directory: str) -> list[str]:
     try:
         subdirs, files = storage.listdir(directory)
     except FileNotFoundError:

@@ -38,7 +38,7 @@ def main() -> None:
     if point == "rendered":
         render = record_files.render_signed_pdf
 
-        def stalling_render(record):  # type: ignore[no-untyped-def]
+        def stalling_render(record):
             data = render(record)
             _stall_once(stall_file)
             return data
@@ -47,12 +47,12 @@ def main() -> None:
     elif point == "stored":
         save = RecordPdf.save
 
-        def stalling_save(self, *args, **kwargs):  # type: ignore[no-untyped-def]
+        def stalling_save(self, *args, **kwargs):
             assert self.file.storage.exists(self.file.name)
             _stall_once(stall_file)
             return save(self, *args, **kwargs)
 
-        RecordPdf.save = stalling_save  # type: ignore[method-assign]
+        RecordPdf.save = stalling_save
     else:
         raise SystemExit(f"unknown stall point {point!r}")
     app.worker_main(

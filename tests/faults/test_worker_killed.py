@@ -120,7 +120,7 @@ def stored_pdfs(media: Path) -> list[str]:
     return sorted(str(p.relative_to(media)) for p in media.rglob("*.pdf"))
 
 
-def assert_one_verified_pdf(record, media: Path) -> RecordPdf:
+def assert_one_verified_pdf(record) -> RecordPdf:
     pdf = RecordPdf.objects.get(record=record)
     assert RecordPdf.objects.filter(record=record).count() == 1
     with pdf.file.open("rb") as handle:
@@ -144,7 +144,7 @@ def test_a_pool_process_killed_after_rendering_is_requeued_and_stores_one_record
     except Exception:  # pragma: no cover - the log says why
         pytest.fail(f"the requeued render did not finish\n{workers.logs()}")
     assert parent.poll() is None, "the worker's main process lives on"
-    pdf = assert_one_verified_pdf(record, workers.media)
+    pdf = assert_one_verified_pdf(record)
     assert pdf.pk == pdf_id
     assert stored_pdfs(workers.media) == [pdf.file.name]
     assert "WorkerLostError" in workers.logs() or "signal 9" in workers.logs()
@@ -170,11 +170,11 @@ def test_a_whole_worker_killed_between_file_and_row_is_redelivered_to_the_next(r
         pdf_id = result.get(timeout=120)
     except Exception:  # pragma: no cover - the log says why
         pytest.fail(f"the redelivered render did not finish\n{workers.logs()}")
-    pdf = assert_one_verified_pdf(record, workers.media)
+    pdf = assert_one_verified_pdf(record)
     assert pdf.pk == pdf_id
     assert sorted(stored_pdfs(workers.media)) == sorted([orphan, pdf.file.name])
 
     # The sweep removes the interrupted render's file and nothing a row names.
     assert sweep_orphan_pdfs(older_than=dt.timedelta(0), now=timezone.now()) == [orphan]
     assert stored_pdfs(workers.media) == [pdf.file.name]
-    assert_one_verified_pdf(record, workers.media)
+    assert_one_verified_pdf(record)
