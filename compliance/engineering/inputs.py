@@ -241,6 +241,11 @@ class Inputs:
 
 
 def _finite_number(field: str, value: object, what: str = "") -> float:
+    """`value` as a finite float; -0.0 becomes 0.0.
+
+    An integer too large for a float (JSON allows any length; the phone's JSON.parse reads it
+    as Infinity) is "not finite" here too, so both ports refuse it with the same words.
+    """
     prefix = f"{what} " if what else ""
     if isinstance(value, bool):
         raise CalcInputError(field, f"{prefix}must be a number, not true or false")
@@ -248,10 +253,13 @@ def _finite_number(field: str, value: object, what: str = "") -> float:
         raise CalcInputError(field, f"{prefix}must be a number, not text")
     if not isinstance(value, int | float):
         raise CalcInputError(field, f"{prefix}must be a number")
-    result = float(value)
+    try:
+        result = float(value)
+    except OverflowError:
+        result = math.inf
     if not math.isfinite(result):
         raise CalcInputError(field, f"{prefix}must be a finite number")
-    return result
+    return result + 0.0
 
 
 def _check_bounds(spec: Field, value: float, what: str = "") -> None:

@@ -215,3 +215,53 @@ def test_unknown_calculation() -> None:
     with pytest.raises(UnknownCalculation) as caught:
         run("rope-swing", {})
     assert caught.value.name == "rope-swing"
+
+
+# Numbers at the edges of binary64 (IEEE 754-2019): the largest finite double is about
+# 1.8e308, the smallest positive (subnormal) one 5e-324. Python's json module reads an integer
+# of any length, so 10**400 reaches the validator as an int that float() cannot hold.
+
+HUGE_INT = 10**400
+
+
+@pytest.mark.parametrize(("calc", "field"), _number_fields())
+@pytest.mark.parametrize("huge", [HUGE_INT, -HUGE_INT], ids=["10**400", "-10**400"])
+def test_an_integer_too_large_for_a_float_is_not_finite(calc: str, field: str, huge: int) -> None:
+    error = expect_error(calc, vary(_base_with(calc, field), **{field: huge}), field)
+    assert error.message == "must be a finite number"
+
+
+@pytest.mark.parametrize("where", [0, 1])
+def test_a_huge_integer_in_a_series_sample_names_the_series(where: int) -> None:
+    sample = [0, 60.0]
+    sample[where] = HUGE_INT
+    samples = [sample, [60, 57.0], [120, 54.0], [180, 51.0]]
+    error = expect_error("vacuum-decay", vary(DECAY, samples=samples), "samples")
+    assert error.message.endswith("must be a finite number")
+
+
+@pytest.mark.parametrize(
+    ("calc", "field"),
+    [
+        (calc.name, spec.name)
+        for calc in CALCULATIONS.values()
+        for spec in calc.fields
+        if spec.kind == "number" and spec.greater_than == 0.0
+    ],
+)
+def test_negative_zero_is_not_greater_than_zero(calc: str, field: str) -> None:
+    error = expect_error(calc, vary(_base_with(calc, field), **{field: -0.0}), field)
+    assert error.message == "must be greater than zero"
+
+
+@pytest.mark.parametrize(
+    ("calc", "field"),
+    [("water-line", "flow_lpm"), ("water-line", "drop_m"), ("suction-hold", "wind_outward_n")],
+)
+def test_negative_zero_is_taken_as_zero(calc: str, field: str) -> None:
+    """-0.0 is a valid JSON number equal to zero; it is kept as +0.0 so no "-0" reaches the
+    working or the record."""
+    result = run(calc, vary(BY_NAME[calc], **{field: -0.0}))
+    value = result.inputs[field]
+    assert value == 0.0 and math.copysign(1.0, float(value)) == 1.0  # type: ignore[arg-type]
+    assert "-0" not in " ".join(result.steps)

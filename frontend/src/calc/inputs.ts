@@ -120,13 +120,15 @@ export class Inputs {
   }
 }
 
+/** `value` as a finite number; -0 becomes 0. JSON.parse reads an integer too large for a double
+ * as Infinity, which is refused here as the server refuses the integer itself. */
 function finiteNumber(field: string, value: unknown, what = ""): number {
   const prefix = what ? `${what} ` : "";
   if (typeof value === "boolean") throw new CalcInputError(field, `${prefix}must be a number, not true or false`);
   if (typeof value === "string") throw new CalcInputError(field, `${prefix}must be a number, not text`);
   if (typeof value !== "number") throw new CalcInputError(field, `${prefix}must be a number`);
   if (!Number.isFinite(value)) throw new CalcInputError(field, `${prefix}must be a finite number`);
-  return value;
+  return value + 0;
 }
 
 function checkBounds(spec: Field, value: number, what = ""): void {
