@@ -10,6 +10,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from checklists.units import UnitMismatch, to_unit
+from compliance.engineering.decay import schedule_problems
+from compliance.engineering.working import whole_pct
 
 TICK_VALUES = ("pass", "fail", "na")
 
@@ -93,6 +95,62 @@ def resolve(
     if kind == "profile" and isinstance(value, Mapping):
         return value["value"]
     return value
+
+
+def _series_samples(item: Mapping[str, Any], value: Any, path: str) -> list[list[float]]:
+    """A series entry as [seconds, reading] pairs with strictly increasing times; a malformed
+    one is an EntryError naming the sample."""
+    if not isinstance(value, list) or len(value) < 2:
+        raise EntryError(f"{path}.value", "A series is a list of [seconds, reading] pairs.")
+    samples: list[list[float]] = []
+    for n, pair in enumerate(value):
+        if not isinstance(pair, list | tuple) or len(pair) != 2:
+            raise EntryError(f"{path}.value[{n}]", "Each sample is [seconds, reading].")
+        t = _number(pair[0], f"{path}.value[{n}][0]")
+        v = _number(pair[1], f"{path}.value[{n}][1]")
+        if samples and t <= samples[-1][0]:
+            raise EntryError(f"{path}.value[{n}][0]", "Sample times must increase.")
+        samples.append([t, v])
+    return samples
+
+
+def _schedule_problems(
+    item: Mapping[str, Any],
+    samples: list[list[float]],
+    context: Mapping[str, Any],
+    readings: Mapping[str, Any],
+    outputs: Mapping[str, Any],
+) -> str:
+    """Why a timed series does not keep its item's schedule, in words ("" when it does).
+
+    The schedule's numbers come from sources (the profile, as a rule); a source that cannot be
+    found fails the item. A version without a schedule keeps its old rule: at least
+    `min_samples` readings.
+    """
+    min_count = int(item.get("min_samples", 3))
+    schedule = item.get("schedule")
+    if not schedule:
+        if len(samples) < min_count:
+            return f"{len(samples)} readings were taken; at least {min_count} are needed."
+        return ""
+    try:
+        numbers = {
+            name: float(resolve(schedule[name], context, readings, outputs))
+            for name in ("interval_s", "tolerance_s", "min_duration_s")
+        }
+    except (MissingSource, KeyError, TypeError, ValueError) as exc:
+        return f"The test's schedule cannot be found ({exc}); treated as failed."
+    t0 = samples[0][0]
+    problems = schedule_problems(
+        [t - t0 for t, _ in samples],
+        interval_s=numbers["interval_s"],
+        tolerance_s=numbers["tolerance_s"],
+        min_duration_s=numbers["min_duration_s"],
+        min_count=min_count,
+    )
+    if not problems:
+        return ""
+    return f"The test did not keep its schedule: {'; '.join(problems)}. Start it again."
 
 
 def _check_limits(
@@ -183,8 +241,12 @@ def evaluate(
             if data["verdict"] != "pass":
                 check = str(data["governing"]).replace("_", " ")
                 margin = data["margin"]
-                short = f" (margin {margin:+.0%})" if isinstance(margin, float) else ""
-                message = f"fails its {check} check{short}"
+                short = (
+                    f" (margin {whole_pct(margin, passed=False)})"
+                    if isinstance(margin, float)
+                    else ""
+                )
+                message = str(data["reason"]) or f"Fails its {check} check{short}."
             results.append(
                 ItemResult(
                     **base,
@@ -242,23 +304,23 @@ def evaluate(
                 )
             )
         elif kind == "series":
-            if not isinstance(value, list) or len(value) < int(item.get("min_samples", 3)):
-                raise EntryError(
-                    f"{path}.value",
-                    f"A series is a list of at least {item.get('min_samples', 3)} "
-                    "[seconds, reading] pairs.",
-                )
-            samples: list[list[float]] = []
-            for n, pair in enumerate(value):
-                if not isinstance(pair, list | tuple) or len(pair) != 2:
-                    raise EntryError(f"{path}.value[{n}]", "Each sample is [seconds, reading].")
-                t = _number(pair[0], f"{path}.value[{n}][0]")
-                v = _number(pair[1], f"{path}.value[{n}][1]")
-                if samples and t <= samples[-1][0]:
-                    raise EntryError(f"{path}.value[{n}][0]", "Sample times must increase.")
-                samples.append([t, v])
+            samples = _series_samples(item, value, path)
             readings[key] = samples
-            results.append(ItemResult(**base, verdict="recorded", value=samples, unit=item["unit"]))
+            problems = _schedule_problems(item, samples, context, readings, outputs)
+            if problems:
+                results.append(
+                    ItemResult(
+                        **base,
+                        verdict="fail",
+                        value=samples,
+                        unit=item["unit"],
+                        message=problems,
+                    )
+                )
+            else:
+                results.append(
+                    ItemResult(**base, verdict="recorded", value=samples, unit=item["unit"])
+                )
         elif kind == "photo":
             photos = value if isinstance(value, list) else []
             if not all(isinstance(p, str) for p in photos):

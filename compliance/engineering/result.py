@@ -29,9 +29,16 @@ class Check:
     key: str
     margin: float | None
     gate: bool = False
+    reason: str = ""
+    """What the check found, in words a crew reads; shown when the check governs a failure."""
+    inconclusive: bool = False
+    """The data cannot support a prediction (a rising or scattered series): the check fails
+    with no margin, and the answer is to repeat the test."""
 
     @property
     def passed(self) -> bool:
+        if self.inconclusive:
+            return False
         return self.margin is None or self.margin >= 0.0
 
 
@@ -42,23 +49,33 @@ def ratio_margin(capacity: float, demand: float) -> float | None:
     return capacity / demand - 1.0
 
 
-def decide(checks: Sequence[Check]) -> tuple[Verdict, float | None, str]:
-    """Verdict, governing margin and governing check key from a calculation's checks.
+def governing_check(checks: Sequence[Check]) -> Check | None:
+    """The check that decides a calculation's verdict (None when there are no checks).
 
-    Any failing check fails the calculation: a failing gate check governs if there is one, else
-    the failing check with the least margin; when all pass, the non-gate check with the least
-    finite margin governs.
+    Any failing check fails the calculation. Failing gate checks govern ahead of the others:
+    among them a definite failure with the least margin, else the first inconclusive one. When
+    all pass, the non-gate check with the least finite margin governs.
     """
     failing = [c for c in checks if not c.passed and c.gate] or [c for c in checks if not c.passed]
     if failing:
-        worst = min(failing, key=lambda c: c.margin if c.margin is not None else math.inf)
-        return "fail", worst.margin, worst.key
+        definite = [c for c in failing if not c.inconclusive]
+        if not definite:
+            return failing[0]
+        return min(definite, key=lambda c: c.margin if c.margin is not None else math.inf)
     bounded = [c for c in checks if not c.gate and c.margin is not None]
     if bounded:
-        worst = min(bounded, key=lambda c: c.margin if c.margin is not None else math.inf)
-        return "pass", worst.margin, worst.key
+        return min(bounded, key=lambda c: c.margin if c.margin is not None else math.inf)
     ungated = [c for c in checks if not c.gate]
-    return "pass", None, (ungated[0].key if ungated else "none")
+    return ungated[0] if ungated else None
+
+
+def decide(checks: Sequence[Check]) -> tuple[Verdict, float | None, str]:
+    """Verdict, governing margin and governing check key from a calculation's checks."""
+    worst = governing_check(checks)
+    if worst is None:
+        return "pass", None, "none"
+    verdict: Verdict = "pass" if worst.passed and all(c.passed for c in checks) else "fail"
+    return verdict, (None if worst.inconclusive else worst.margin), worst.key
 
 
 def _json_number(value: float | int) -> float | int | None:
@@ -97,6 +114,7 @@ class CalcResult:
     margin: float | None
     governing: str
     steps: tuple[str, ...]
+    reason: str = ""
     caution: str = CAUTION
 
     @classmethod
@@ -112,8 +130,16 @@ class CalcResult:
         verdict, margin, governing = decide(checks)
         if margin is not None and not math.isfinite(margin):
             margin = None
-        shown = "unbounded" if margin is None else pct(margin)
+        worst = governing_check(checks)
+        inconclusive = worst is not None and worst.inconclusive
+        if inconclusive:
+            shown = "none: inconclusive"
+        elif margin is None:
+            shown = "unbounded"
+        else:
+            shown = pct(margin)
         summary = f"verdict: {verdict} (governing check {governing}, margin {shown})"
+        reason = worst.reason if worst is not None and verdict == "fail" else ""
         return cls(
             name=name,
             inputs=MappingProxyType(dict(inputs)),
@@ -122,6 +148,7 @@ class CalcResult:
             margin=margin,
             governing=governing,
             steps=(*steps, summary),
+            reason=reason,
         )
 
     @property
@@ -138,5 +165,6 @@ class CalcResult:
             "margin": None if self.margin is None else _json_number(self.margin),
             "governing": self.governing,
             "steps": list(self.steps),
+            "reason": self.reason,
             "caution": self.caution,
         }

@@ -43,3 +43,16 @@ def pct(fraction: float) -> str:
     if not math.isfinite(fraction):
         return num(fraction)
     return f"{'+' if fraction >= 0 else '-'}{num(abs(fraction) * 100.0, 3)} %"
+
+
+def whole_pct(fraction: float, *, passed: bool) -> str:
+    """A margin in whole percent, rounded toward its verdict so a failing one never reads as
+    "+0 %": failing margins round down (-0.3 % shows "-1 %"), passing ones down to zero."""
+    if not math.isfinite(fraction):
+        return num(fraction)
+    whole = math.floor(fraction * 100.0)
+    if not passed:
+        whole = min(whole, -1)
+    elif whole < 0:
+        whole = 0
+    return f"{'+' if whole >= 0 else '-'}{abs(whole)} %"

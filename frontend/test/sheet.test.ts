@@ -24,6 +24,11 @@ const context: Context = {
     min_anchor_capacity_kn: { value: 12, unit: "kN" },
     vacuum_safety_factor: { value: 2 },
     vacuum_required_hold_s: { value: 300 },
+    decay_interval_s: { value: 30 },
+    decay_interval_tolerance_s: { value: 10 },
+    decay_min_duration_s: { value: 180 },
+    decay_max_extrapolation: { value: 2 },
+    decay_min_r2: { value: 0.8 },
     gust_factor: { value: 1.5 },
   },
   robot: { mass_kg: 58, cup_diameter_m: 0.2, cups_engaged: 4, friction: 0.6, projected_area_m2: 0.45, drag_coefficient: 1.2, max_wind_ms: 15 },
@@ -82,10 +87,10 @@ describe("vacuum hold sheet", () => {
   const items = checklist("vacuum-hold");
   const draft = emptyDraft();
   draft.ticks = { cup_lips: "pass", release_valves: "pass", low_vacuum_warning: "pass" };
-  draft.readings = { working_vacuum: "62", roof_wind: "5.5" };
+  draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45" };
 
   it("runs the chained calculations on the phone", () => {
-    draft.series = { decay_series: [[0, 62], [30, 61.6], [60, 61.1], [90, 60.7], [120, 60.3]] };
+    draft.series = { decay_series: [[0, 62], [30, 61.6], [60, 61.1], [90, 60.7], [120, 60.3], [150, 59.9], [180, 59.5]] };
     const views = evaluateDraft(items, draft, context);
     const byKey = Object.fromEntries(views.map((v) => [v.item.key, v]));
     expect(byKey.wind_load!.verdict).toBe("pass");
@@ -95,7 +100,7 @@ describe("vacuum hold sheet", () => {
   });
 
   it("fails a fast decay and waits for a series still too short", () => {
-    draft.series = { decay_series: [[0, 61], [30, 52], [60, 44], [90, 37.5], [120, 31]] };
+    draft.series = { decay_series: [[0, 61], [30, 52], [60, 44], [90, 37.5], [120, 31], [150, 25.5], [180, 20.5]] };
     const decay = evaluateDraft(items, draft, context).find((v) => v.item.key === "decay_test")!;
     expect(decay.verdict).toBe("fail");
     draft.series = { decay_series: [[0, 61], [30, 52]] };
@@ -114,7 +119,7 @@ describe("a calculation the phone cannot run", () => {
   it("hands the calculations built on it to the server too", () => {
     const items = checklist("vacuum-hold");
     const draft = emptyDraft();
-    draft.readings = { working_vacuum: "62", roof_wind: "5.5" };
+    draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45" };
     const views = evaluateDraft(items, draft, { ...context, drop: { height_m: 150 } });
     expect(views.find((v) => v.item.key === "hold_margin")!.verdict).toBe("unknown");
   });

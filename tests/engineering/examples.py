@@ -17,6 +17,11 @@ DECAY: dict[str, Any] = {
     "samples": [[0, 60.0], [60, 57.0], [120, 54.0], [180, 51.0]],
     "min_vacuum_kpa": 40.0,
     "required_hold_s": 200.0,
+    "interval_s": 60.0,
+    "interval_tolerance_s": 10.0,
+    "min_duration_s": 180.0,
+    "max_extrapolation": 2.0,
+    "min_r2": 0.8,
     "system_volume_l": 2.0,
 }
 

@@ -36,6 +36,7 @@ UNIT_SUFFIXES = (
     "_kn_per_m",
 )
 DIMENSIONLESS = {
+    "readings",
     "achieved_safety_factor",
     "anchor_factor",
     "line_factor",
@@ -54,8 +55,10 @@ DIMENSIONLESS = {
 
 EDGE_CASES = [
     *BY_NAME.items(),
-    ("vacuum-decay", vary(DECAY, samples=[[0, 50], [60, 50], [120, 50]])),
-    ("vacuum-decay", vary(DECAY, samples=[[0, 50], [60, 20], [120, 0]])),
+    ("vacuum-decay", vary(DECAY, samples=[[0, 50], [60, 50], [120, 50], [180, 50]])),
+    ("vacuum-decay", vary(DECAY, samples=[[0, 50], [60, 20], [120, 10], [180, 0]])),
+    ("vacuum-decay", vary(DECAY, samples=[[0, 50], [1, 50], [2, 50]])),
+    ("vacuum-decay", vary(DECAY, samples=[[0, 50], [60, 51], [120, 52], [180, 53]])),
     ("water-line", vary(WATER, flow_lpm=0.0, drop_m=0.0)),
     ("water-line", vary(WATER, flow_lpm=1e-300)),
     ("suction-hold", vary(BY_NAME["suction-hold"], vacuum_kpa=0.0)),
@@ -77,6 +80,7 @@ def test_to_dict_is_strict_json(calc: str, inputs: dict[str, object]) -> None:
         "margin",
         "governing",
         "steps",
+        "reason",
         "caution",
     }
     assert data["name"] == calc
@@ -90,6 +94,10 @@ def test_margin_sign_matches_the_verdict(calc: str, inputs: dict[str, object]) -
     result = run(calc, inputs)
     if result.margin is not None:
         assert (result.margin >= 0) == (result.verdict == "pass")
+    elif result.verdict == "fail":
+        # Only an inconclusive check fails with no margin, and it says so.
+        assert "margin none: inconclusive" in result.steps[-1]
+        assert result.reason.endswith(("repeat the test.", "Start the test again."))
     else:
         assert result.verdict == "pass"
 
@@ -131,7 +139,15 @@ def test_calculation_names() -> None:
         assert all(isinstance(f.describe(), dict) for f in calc.fields)
 
 
-ALLOWED_IMPORTS = {"__future__", "math", "collections.abc", "dataclasses", "types", "typing"}
+ALLOWED_IMPORTS = {
+    "__future__",
+    "math",
+    "itertools",
+    "collections.abc",
+    "dataclasses",
+    "types",
+    "typing",
+}
 
 
 @pytest.mark.parametrize("path", sorted(PACKAGE.glob("*.py")), ids=lambda p: p.name)

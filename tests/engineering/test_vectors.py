@@ -62,3 +62,18 @@ def test_invalid_case(case: dict[str, Any]) -> None:
     with pytest.raises(CalcInputError) as caught:
         run(case["calc"], case["inputs"])
     assert caught.value.field == case["field"], str(caught.value)
+
+
+def test_vectors_match_the_independent_reference_script() -> None:
+    """fixtures/calc_vectors_reference.py recomputes the vectors it covers from first principles
+    (numpy.polyfit for the decay fits) without importing the package; the file must match."""
+    import importlib.util
+
+    path = VECTORS_PATH.parent / "calc_vectors_reference.py"
+    spec = importlib.util.spec_from_file_location("calc_vectors_reference", path)
+    assert spec is not None and spec.loader is not None
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    fresh = module.regenerate(DOCUMENT)
+    assert fresh["vectors"] == DOCUMENT["vectors"]
+    assert {v["calc"] for v in fresh["vectors"]} == set(CALCULATIONS)

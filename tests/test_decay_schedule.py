@@ -1,0 +1,102 @@
+"""The default vacuum test on the server: a rushed series, a low alarm set point, a slow leak.
+
+Each case records a sheet against the published default checklist on the demo's job for today
+and reads the verdicts the server stored, the record.
+"""
+
+import pytest
+
+from checklists.models import CheckSheet
+from checklists.selectors import current_versions
+from checklists.services import record_sheet
+from compliance.demo import _entries, load_demo, scenario_path
+from compliance.models import Equipment, Hold, Job
+from compliance.selectors import job_requirements
+
+pytestmark = pytest.mark.django_db
+
+GOOD = [[t, 62.0 - t / 75.0] for t in range(0, 181, 30)]
+
+
+@pytest.fixture
+def today(tmp_path, settings):
+    import json
+
+    settings.MEDIA_ROOT = tmp_path
+    org = load_demo()
+    job = Job.objects.filter(organisation=org).order_by("-date").first()
+    readings = json.loads(scenario_path().read_text())["readings"]["vacuum-hold"]
+    version = next(
+        v
+        for vs in current_versions(org.pk).values()
+        for v in vs
+        if v.checklist.key == "vacuum-hold"
+    )
+    req = next(r for r in job_requirements(job) if r.checklist_key == "vacuum-hold")
+    return job, version, req.subject.equipment, readings
+
+
+def _record(today, **changes):
+    job, version, robot, readings = today
+    sheet, _ = record_sheet(
+        job=job,
+        version=version,
+        by=job.supervisor,
+        entries=_entries(version.items, {**readings, **changes}),
+        equipment=robot,
+    )
+    return {e.item_key: e for e in sheet.entries.all()}, sheet
+
+
+def test_demo_readings_clear_the_vacuum_test(today):
+    entries, sheet = _record(today)
+    assert sheet.verdict == "pass"
+    assert entries["decay_series"].verdict == "recorded"
+    assert entries["decay_test"].verdict == "pass"
+    assert entries["low_vacuum_alarm"].verdict == "pass"
+
+
+def test_rushed_series_fails_the_item_in_words_and_holds_the_job(today):
+    """Three flat readings a second apart passed a 300 s hold with "margin unbounded" before."""
+    entries, sheet = _record(today, decay_series=[[0, 62.0], [1, 62.0], [2, 62.0]])
+    series = entries["decay_series"]
+    assert series.verdict == "fail"
+    assert series.message == (
+        "The test did not keep its schedule: two readings were 1 s apart; the test needs one"
+        " every 30 s (± 10 s); the test ran 2 s; it must run at least 180 s. Start it again."
+    )
+    assert entries["decay_test"].verdict == "fail"
+    assert entries["decay_test"].working["governing"] == "schedule"
+    assert sheet.verdict == "fail"
+    held = Hold.objects.filter(job=sheet.job, clearance__isnull=True)
+    assert {h.item_key for h in held} == {"decay_series", "decay_test"}
+
+
+def test_alarm_set_below_the_least_holding_vacuum_fails(today):
+    entries, _ = _record(today, low_vacuum_alarm=5.0)
+    alarm = entries["low_vacuum_alarm"]
+    least = entries["hold_margin"].value["min_vacuum_kpa"]
+    assert alarm.verdict == "fail"
+    assert alarm.message == f"5 kPa is below the minimum of {least:g} kPa."
+
+
+def test_hold_reason_gives_plain_figures(today):
+    """A leak of 1 kPa every 30 s from 50 kPa to a limit of about 20 kPa."""
+    entries, _ = _record(today, decay_series=[[t, 50.0 - t / 6.0] for t in range(0, 181, 30)])
+    decay = entries["decay_test"]
+    assert decay.verdict == "fail"
+    assert decay.message.startswith("With the pump off the grip lasts about ")
+    assert decay.message.endswith("s; 300 s are needed.")
+
+
+def test_a_series_short_of_readings_fails_rather_than_refusing_the_sheet(today):
+    entries, sheet = _record(today, decay_series=[[0, 62.0], [30, 61.9]])
+    assert entries["decay_series"].verdict == "fail"
+    assert "2 readings were taken; at least 3 are needed" in entries["decay_series"].message
+    assert CheckSheet.objects.filter(pk=sheet.pk).exists()
+
+
+def test_good_series_is_recorded(today):
+    entries, _ = _record(today, decay_series=GOOD)
+    assert entries["decay_series"].verdict == "recorded"
+    assert Equipment.objects.filter(pk=today[2].pk).exists()
