@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 
-from .calculation import Calculation
+from .calculation import Calculation, build_result
 from .constants import M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3, G
 from .inputs import AtMostOne, Inputs, number
 from .result import CalcResult, Check, InputValue, OutputValue
@@ -112,9 +112,7 @@ def compute(values: Inputs) -> CalcResult:
         Check("mass_limit", mass_limit_kg / total_kg - 1.0),
         Check("tether_wll", wll_kg / total_kg - 1.0),
     ]
-    return CalcResult.build(
-        name=NAME, inputs=normalised, outputs=outputs, checks=checks, steps=steps
-    )
+    return build_result(name=NAME, inputs=normalised, outputs=outputs, checks=checks, steps=steps)
 
 
 CALCULATION = Calculation(

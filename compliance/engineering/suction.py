@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 
-from .calculation import Calculation
+from .calculation import Calculation, OutOfRange, build_result
 from .constants import ATMOSPHERE_KPA, PA_PER_KPA, G
 from .inputs import Inputs, integer, number
 from .result import CalcResult, Check, OutputValue, ratio_margin
@@ -79,6 +79,8 @@ def compute(values: Inputs) -> CalcResult:
     area_ratio = values.number("effective_area_ratio")
 
     area_m2 = area_ratio * math.pi * diameter_m**2 / 4.0
+    if area_m2 == 0.0:
+        raise OutOfRange("effective_area_m2", area_m2)
     clamp_n = vacuum_kpa * PA_PER_KPA * area_m2 * cups
     net_clamp_n = clamp_n - outward_n
     capacity_n = friction * max(net_clamp_n, 0.0)
@@ -129,7 +131,7 @@ def compute(values: Inputs) -> CalcResult:
         Check("safety_factor", achieved / required - 1.0),
         Check("outward_pull", ratio_margin(outward_limit_n, outward_n)),
     ]
-    return CalcResult.build(
+    return build_result(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )
 

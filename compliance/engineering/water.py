@@ -13,7 +13,7 @@ import math
 from collections.abc import Mapping
 from typing import Final
 
-from .calculation import Calculation
+from .calculation import Calculation, OutOfRange, build_result
 from .constants import M3_PER_L, M_PER_MM, PA_PER_KPA, S_PER_MIN, G
 from .inputs import AtMostFractionOf, Inputs, number
 from .result import CalcResult, Check, OutputValue, ratio_margin
@@ -107,9 +107,14 @@ def compute(values: Inputs) -> CalcResult:
     rho = density_kgm3(temp_c)
     mu = viscosity_pas(temp_c)
     area_m2 = math.pi * diameter_m**2 / 4.0
+    if area_m2 == 0.0:
+        raise OutOfRange("hose_area_m2", area_m2)
     flow_m3s = flow_lpm * M3_PER_L / S_PER_MIN
     velocity = flow_m3s / area_m2
     reynolds = rho * velocity * diameter_m / mu
+    if not math.isfinite(reynolds):
+        # Colebrook-White has no answer here: with a smooth wall log10(0) is undefined.
+        raise OutOfRange("reynolds", reynolds)
     static_kpa = rho * G * drop_m / PA_PER_KPA
     steps = [
         f"water at {num(temp_c)} °C: ρ = {num(rho)} kg/m³, μ = {num(mu)} Pa·s",
@@ -143,7 +148,7 @@ def compute(values: Inputs) -> CalcResult:
             # f·(L/D)·ρ·v²/2 with f = 64/Re, written so a creeping flow cannot overflow.
             loss_kpa = 32.0 * mu * length_m * velocity / diameter_m**2 / PA_PER_KPA
         else:
-            loss_kpa = f * (length_m / diameter_m) * rho * velocity**2 / 2.0 / PA_PER_KPA
+            loss_kpa = f * (length_m / diameter_m) * rho * (velocity * velocity) / 2.0 / PA_PER_KPA
         steps.append(
             f"friction loss = f·(L/D)·ρ·v²/2 = {num(f)} × ({num(length_m)} / {num(diameter_m)})"
             f" × {num(rho)} × {num(velocity)}² / 2 = {num(loss_kpa)} kPa"
@@ -177,7 +182,7 @@ def compute(values: Inputs) -> CalcResult:
         Check("hose_rating", ratio_margin(rating_kpa, static_kpa)),
         Check("nozzle_pressure", flowing_kpa / nozzle_kpa - 1.0),
     ]
-    return CalcResult.build(
+    return build_result(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )
 

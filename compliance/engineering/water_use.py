@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from .calculation import Calculation
+from .calculation import Calculation, OutOfRange, build_result
 from .inputs import Inputs, number
 from .result import CalcResult, Check, OutputValue
 from .working import num
@@ -45,6 +45,10 @@ def compute(values: Inputs) -> CalcResult:
     }
     checks: list[Check] = []
     if supply_l is not None:
+        if litres == 0.0:
+            raise OutOfRange("litres_l", litres)
+        if per_hour == 0.0:
+            raise OutOfRange("litres_per_hour_l_per_h", per_hour)
         outputs["supply_hours_h"] = supply_l / per_hour
         steps.append(
             f"supply lasts {num(supply_l)} L / {num(per_hour)} L/h = {num(supply_l / per_hour)} h"
@@ -53,7 +57,7 @@ def compute(values: Inputs) -> CalcResult:
         checks.append(Check("supply", supply_l / litres - 1.0))
     else:
         steps.append("no supply given: nothing to check against")
-    return CalcResult.build(
+    return build_result(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )
 

@@ -21,3 +21,14 @@ export class CalcInputError extends Error {
     this.problem = problem;
   }
 }
+
+/** A quantity of the working is not a usable number (e.g. an area that underflowed to zero and
+ * would divide); `quantity` names it. The calculation answers out_of_range; see inputs.ts. */
+export class OutOfRange extends Error {
+  readonly quantity: string;
+  constructor(quantity: string, shown: string) {
+    super(`${quantity} is ${shown}`);
+    this.name = "OutOfRange";
+    this.quantity = quantity;
+  }
+}

@@ -3,8 +3,9 @@
  * Validation stops at the first bad field: unknown fields first (in the order given), then the
  * declared fields in their declared order, then the cross-field rules in their declared order.
  */
-import { CalcInputError } from "./errors";
-import type { InputValue } from "./result";
+import { CAUTION } from "./constants";
+import { CalcInputError, OutOfRange } from "./errors";
+import { build, type CalcResult, type Calculation, type Check, type InputValue, type OutputValue } from "./result";
 import { num } from "./working";
 
 export type FieldKind = "number" | "integer" | "choice" | "series";
@@ -283,12 +284,77 @@ export function validate(fields: Field[], rules: Rule[], raw: unknown): Inputs {
   return new Inputs(values);
 }
 
+export const OUT_OF_RANGE = "out_of_range";
+
+/** The first output that is not finite or check margin that is undefined, in words. */
+function problemOf(outputs: Record<string, OutputValue>, checks: Check[] = []): string | null {
+  for (const [key, value] of Object.entries(outputs)) {
+    if (typeof value === "number" && !Number.isFinite(value)) return `${key} is ${num(value)}`;
+  }
+  for (const c of checks) {
+    if (c.margin !== null && Number.isNaN(c.margin)) return `the margin of ${c.key} is ${num(c.margin)}`;
+  }
+  return null;
+}
+
+/** The failing result of a working that left the range of doubles; mirrors calculation.out_of_range. */
+export function outOfRange(
+  name: string,
+  inputs: Record<string, InputValue>,
+  why: string,
+  outputs: Record<string, OutputValue> = {},
+  steps: string[] = [],
+): CalcResult {
+  const reason =
+    `out of range: ${why}; the inputs' magnitudes take the working beyond the numbers it can hold,` +
+    " so nothing is concluded (check the values and their units)";
+  const shown: Record<string, OutputValue> = {};
+  for (const [k, v] of Object.entries(outputs)) shown[k] = typeof v === "number" && !Number.isFinite(v) ? null : v;
+  return {
+    name,
+    inputs: { ...inputs },
+    outputs: shown,
+    verdict: "fail",
+    margin: null,
+    governing: OUT_OF_RANGE,
+    steps: [...steps, reason, `verdict: fail (governing check ${OUT_OF_RANGE}, margin none)`],
+    reason,
+    caution: CAUTION,
+  };
+}
+
+/** build(), failing closed when an output is not finite or a margin undefined (build alone would
+ * show them as null or unbounded); mirrors calculation.build_result. */
+export function buildResult(args: {
+  name: string;
+  inputs: Record<string, InputValue>;
+  outputs: Record<string, OutputValue>;
+  checks: Check[];
+  steps: string[];
+}): CalcResult {
+  const problem = problemOf(args.outputs, args.checks);
+  if (problem !== null) return outOfRange(args.name, args.inputs, problem, args.outputs, args.steps);
+  return build(args);
+}
+
 export function calculation(
   name: string,
   title: string,
   fields: Field[],
   rules: Rule[],
-  compute: (values: Inputs) => import("./result").CalcResult,
-): import("./result").Calculation {
-  return { name, title, run: (inputs: unknown) => compute(validate(fields, rules, inputs)) };
+  compute: (values: Inputs) => CalcResult,
+): Calculation {
+  return {
+    name,
+    title,
+    run: (inputs: unknown) => {
+      const values = validate(fields, rules, inputs);
+      try {
+        return compute(values);
+      } catch (error) {
+        if (error instanceof OutOfRange) return outOfRange(name, values.asDict(), error.message);
+        throw error;
+      }
+    },
+  };
 }

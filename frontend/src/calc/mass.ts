@@ -1,7 +1,7 @@
 /** suspended-mass: everything hanging from the tether against the lesser of two limits; port of mass.py. */
 import { G, M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3 } from "./constants";
-import { calculation, number, type Inputs, type Rule } from "./inputs";
-import { build, check, type CalcResult } from "./result";
+import { buildResult, calculation, number, type Inputs, type Rule } from "./inputs";
+import { check, type CalcResult } from "./result";
 import { densityKgm3 } from "./water_properties";
 import { num } from "./working";
 
@@ -64,7 +64,7 @@ function compute(values: Inputs): CalcResult {
     `tether WLL as mass = ${num(wllKn)} kN × 1000 / ${num(G)} = ${num(wllKg)} kg`,
     `limit = min(${num(massLimitKg)}, ${num(wllKg)}) = ${num(limitKg)} kg; margin ${num(limitKg - totalKg)} kg`,
   );
-  return build({
+  return buildResult({
     name: NAME,
     inputs: normalised,
     outputs: {

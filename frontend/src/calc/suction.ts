@@ -1,7 +1,8 @@
 /** suction-hold: can the vacuum cups hold the robot on a vertical glass wall? Port of suction.py. */
 import { ATMOSPHERE_KPA, G, PA_PER_KPA } from "./constants";
-import { calculation, integer, number, type Inputs } from "./inputs";
-import { build, check, ratioMargin, type CalcResult } from "./result";
+import { OutOfRange } from "./errors";
+import { buildResult, calculation, integer, number, type Inputs } from "./inputs";
+import { check, ratioMargin, type CalcResult } from "./result";
 import { num } from "./working";
 
 const NAME = "suction-hold";
@@ -40,6 +41,7 @@ function compute(values: Inputs): CalcResult {
   const areaRatio = values.number("effective_area_ratio");
 
   const areaM2 = (areaRatio * Math.PI * diameterM ** 2) / 4;
+  if (areaM2 === 0) throw new OutOfRange("effective_area_m2", num(areaM2));
   const clampN = vacuumKpa * PA_PER_KPA * areaM2 * cups;
   const netClampN = clampN - outwardN;
   const capacityN = friction * Math.max(netClampN, 0);
@@ -70,7 +72,7 @@ function compute(values: Inputs): CalcResult {
       `the least vacuum exceeds the atmosphere (${num(ATMOSPHERE_KPA)} kPa): no vacuum can hold with these cups`,
     );
   }
-  return build({
+  return buildResult({
     name: NAME,
     inputs: values.asDict(),
     outputs: {

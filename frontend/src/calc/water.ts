@@ -1,7 +1,8 @@
 /** water-line: pressure at the robot's valve on a gravity-fed hose; a port of water.py. */
 import { G, M3_PER_L, M_PER_MM, PA_PER_KPA, S_PER_MIN } from "./constants";
-import { calculation, number, type Inputs, type Rule } from "./inputs";
-import { build, check, ratioMargin, type CalcResult } from "./result";
+import { OutOfRange } from "./errors";
+import { buildResult, calculation, number, type Inputs, type Rule } from "./inputs";
+import { check, ratioMargin, type CalcResult } from "./result";
 import { densityKgm3, viscosityPas } from "./water_properties";
 import { num } from "./working";
 
@@ -65,9 +66,12 @@ function compute(values: Inputs): CalcResult {
   const rho = densityKgm3(tempC);
   const mu = viscosityPas(tempC);
   const areaM2 = (Math.PI * diameterM ** 2) / 4;
+  if (areaM2 === 0) throw new OutOfRange("hose_area_m2", num(areaM2));
   const flowM3s = (flowLpm * M3_PER_L) / S_PER_MIN;
   const velocity = flowM3s / areaM2;
   const reynolds = (rho * velocity * diameterM) / mu;
+  // Colebrook-White has no answer here: with a smooth wall log10(0) is undefined.
+  if (!Number.isFinite(reynolds)) throw new OutOfRange("reynolds", num(reynolds));
   const staticKpa = (rho * G * dropM) / PA_PER_KPA;
   const steps = [
     `water at ${num(tempC)} °C: ρ = ${num(rho)} kg/m³, μ = ${num(mu)} Pa·s`,
@@ -120,7 +124,7 @@ function compute(values: Inputs): CalcResult {
     `water in hose = ${num(rho)} × ${num(areaM2)} m² × ${num(lengthM)} m = ${num(waterKg)} kg`,
   );
   if (flowingKpa < 0) steps.push("friction loss exceeds the static head: gravity cannot drive this flow");
-  return build({
+  return buildResult({
     name: NAME,
     inputs: values.asDict(),
     outputs: {

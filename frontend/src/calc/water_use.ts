@@ -1,6 +1,7 @@
 /** water-use: how much water a facade needs and whether the tank holds it; port of water_use.py. */
-import { calculation, number, type Inputs } from "./inputs";
-import { build, check, type CalcResult, type Check, type OutputValue } from "./result";
+import { OutOfRange } from "./errors";
+import { buildResult, calculation, number, type Inputs } from "./inputs";
+import { check, type CalcResult, type Check, type OutputValue } from "./result";
 import { num } from "./working";
 
 const NAME = "water-use";
@@ -33,13 +34,15 @@ function compute(values: Inputs): CalcResult {
   };
   const checks: Check[] = [];
   if (supplyL !== null) {
+    if (litres === 0) throw new OutOfRange("litres_l", num(litres));
+    if (perHour === 0) throw new OutOfRange("litres_per_hour_l_per_h", num(perHour));
     outputs.supply_hours_h = supplyL / perHour;
     steps.push(`supply lasts ${num(supplyL)} L / ${num(perHour)} L/h = ${num(supplyL / perHour)} h against ${num(litres)} L needed`);
     checks.push(check("supply", supplyL / litres - 1));
   } else {
     steps.push("no supply given: nothing to check against");
   }
-  return build({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
+  return buildResult({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
 }
 
 export const WATER_USE = calculation(NAME, "Water use", FIELDS, [], compute);
