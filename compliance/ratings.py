@@ -17,6 +17,7 @@ class Rating:
     label: str
     required: bool = True
     positive: bool = True
+    non_negative: bool = False
     text: bool = False
 
 
@@ -31,6 +32,13 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
         Rating("max_wind_ms", "maker's in-service wind limit, m/s"),
         Rating("nozzle_min_kpa", "least water pressure at the robot's valve, kPa"),
         Rating("working_vacuum_kpa", "maker's working vacuum, kPa", required=False),
+        Rating(
+            "water_on_board_kg",
+            "water carried on the robot when full, kg",
+            required=False,
+            positive=False,
+            non_negative=True,
+        ),
     ),
     "tether": (
         Rating("mbs_kn", "minimum breaking strength, kN"),
@@ -91,6 +99,8 @@ def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:
             errors[field] = "Must be a finite number."
         elif rating.positive and value <= 0:
             errors[field] = "Must be greater than zero."
+        elif rating.non_negative and value < 0:
+            errors[field] = "Cannot be negative."
     if errors:
         raise ValidationError(errors)
     return ratings

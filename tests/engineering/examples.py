@@ -28,12 +28,14 @@ DECAY: dict[str, Any] = {
 ARREST: dict[str, Any] = {
     "mass_kg": 25.0,
     "free_fall_m": 0.5,
+    "shortest_line_m": 30.0,
     "line_length_m": 30.0,
     "line_ea_kn": 150.0,
     "anchor_rating_kn": 15.0,
     "line_mbs_kn": 22.0,
     "anchor_safety_factor": 2.0,
     "line_safety_factor": 2.0,
+    "clearance_below_m": 100.0,
 }
 
 WIND: dict[str, Any] = {

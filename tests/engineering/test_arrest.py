@@ -24,8 +24,9 @@ def arrest(**changes: object) -> dict[str, object]:
 
 
 def test_load_taken_up_with_no_slack_doubles_the_static_force() -> None:
-    """Physics (any dynamics textbook): a load applied suddenly to a linear spring reaches twice
-    its static deflection, so F = 2·m·g when h = 0, whatever the stiffness."""
+    """Work-energy principle for a linear spring (Meriam and Kraige, Engineering Mechanics:
+    Dynamics, chapter on work and energy; from memory): a load applied suddenly to a linear
+    spring reaches twice its static deflection, so F = 2·m·g when h = 0, whatever the stiffness."""
     for ea in (1.0, 150.0, 1e6):
         out = arrest(free_fall_m=0.0, line_ea_kn=ea)
         assert out["peak_force_kn"] == pytest.approx(2 * 25.0 * G / 1000, rel=1e-12)
@@ -50,7 +51,14 @@ def test_matches_the_fall_factor_form_of_the_rope_impact_formula() -> None:
     expected = mg + math.sqrt(mg**2 + 2 * mg * ea * (h / length))
     out = run(
         "arrest-load",
-        vary(ARREST, mass_kg=m, free_fall_m=h, line_length_m=length, line_ea_kn=ea / 1000),
+        vary(
+            ARREST,
+            mass_kg=m,
+            free_fall_m=h,
+            line_length_m=length,
+            shortest_line_m=length,
+            line_ea_kn=ea / 1000,
+        ),
     ).outputs
     assert out["peak_force_kn"] == pytest.approx(expected / 1000, rel=1e-12)
 
@@ -105,6 +113,7 @@ def test_stiff_line_and_long_slack_fail_on_the_anchor() -> None:
             mass_kg=100.0,
             free_fall_m=2.0,
             line_length_m=5.0,
+            shortest_line_m=5.0,
             line_ea_kn=500.0,
             anchor_rating_kn=22.2,
             line_mbs_kn=60.0,
@@ -150,11 +159,26 @@ def test_more_slack_never_lowers_peak_force(
 ) -> None:
     low, high = sorted((h1, h2))
     a = run(
-        "arrest-load", vary(ARREST, mass_kg=m, free_fall_m=low, line_ea_kn=ea, line_length_m=length)
+        "arrest-load",
+        vary(
+            ARREST,
+            mass_kg=m,
+            free_fall_m=low,
+            line_ea_kn=ea,
+            line_length_m=length,
+            shortest_line_m=length,
+        ),
     ).outputs
     b = run(
         "arrest-load",
-        vary(ARREST, mass_kg=m, free_fall_m=high, line_ea_kn=ea, line_length_m=length),
+        vary(
+            ARREST,
+            mass_kg=m,
+            free_fall_m=high,
+            line_ea_kn=ea,
+            line_length_m=length,
+            shortest_line_m=length,
+        ),
     ).outputs
     assert b["peak_force_kn"] >= a["peak_force_kn"]  # type: ignore[operator]
 
@@ -165,10 +189,26 @@ def test_stiffer_line_never_lowers_peak_force(
 ) -> None:
     low, high = sorted((ea1, ea2))
     a = run(
-        "arrest-load", vary(ARREST, mass_kg=m, free_fall_m=h, line_ea_kn=low, line_length_m=length)
+        "arrest-load",
+        vary(
+            ARREST,
+            mass_kg=m,
+            free_fall_m=h,
+            line_ea_kn=low,
+            line_length_m=length,
+            shortest_line_m=length,
+        ),
     ).outputs
     b = run(
-        "arrest-load", vary(ARREST, mass_kg=m, free_fall_m=h, line_ea_kn=high, line_length_m=length)
+        "arrest-load",
+        vary(
+            ARREST,
+            mass_kg=m,
+            free_fall_m=h,
+            line_ea_kn=high,
+            line_length_m=length,
+            shortest_line_m=length,
+        ),
     ).outputs
     assert b["peak_force_kn"] >= a["peak_force_kn"]  # type: ignore[operator]
 
@@ -189,6 +229,8 @@ def test_max_slack_fed_back_meets_the_governing_factor(
         mass_kg=m,
         line_ea_kn=ea,
         line_length_m=length,
+        shortest_line_m=length,
+        clearance_below_m=1e9,
         anchor_rating_kn=anchor,
         line_mbs_kn=mbs,
     )
@@ -200,3 +242,69 @@ def test_max_slack_fed_back_meets_the_governing_factor(
         assert back.margin == pytest.approx(0.0, abs=1e-9)
     else:
         assert back.verdict == "fail" or back.margin == pytest.approx(0.0, abs=1e-9)
+
+
+RIG = {
+    "mass_kg": 58.0,
+    "free_fall_m": 0.4,
+    "shortest_line_m": 3.0,
+    "line_length_m": 146.0,
+    "line_ea_kn": 600.0,
+    "anchor_rating_kn": 15.0,
+    "line_mbs_kn": 40.0,
+    "anchor_safety_factor": 2.0,
+    "line_safety_factor": 2.0,
+    "clearance_below_m": 3.0,
+}
+
+
+def test_the_top_of_the_drop_governs_the_anchor_load() -> None:
+    """58 kg on 0.4 m of slack, EA 600 kN: F = m·g + √((m·g)² + 2·m·g·(EA/L)·h) gives 2.05 kN
+    on 146 m of line and 10.1 kN on 3 m (hand calculation of the energy balance). Checked only
+    at the full length, a 15 kN anchor passed with a factor of 7.3; at the top it is 1.48."""
+    result = run("arrest-load", RIG)
+    assert result.outputs["peak_force_foot_kn"] == pytest.approx(2.0498, rel=1e-4)
+    assert result.outputs["peak_force_top_kn"] == pytest.approx(10.125, rel=1e-4)
+    assert result.outputs["governing_position"] == "top of the drop"
+    assert result.verdict == "fail"
+    assert result.governing == "anchor"
+    assert result.margin == pytest.approx(15.0 / 10.125 / 2.0 - 1, rel=1e-3)
+    assert result.reason.startswith("A fall at the top of the drop would load the anchor")
+
+
+def test_the_falling_mass_includes_payload_water_and_the_hose_carried() -> None:
+    """Water in a 12.7 mm bore: 998.2 kg/m³ × π × 0.0127² / 4 = 0.1264 kg/m (hand)."""
+    out = run(
+        "arrest-load",
+        vary(RIG, payload_kg=4.0, water_on_board_kg=6.0, hose_kg_per_m=0.25, hose_id_mm=12.7),
+    ).outputs
+    per_m = 0.25 + 998.2 * math.pi * 0.0127**2 / 4
+    assert out["falling_mass_top_kg"] == pytest.approx(68.0 + per_m * 3.0, rel=1e-12)
+    assert out["falling_mass_foot_kg"] == pytest.approx(68.0 + per_m * 146.0, rel=1e-12)
+
+
+def test_a_drop_deeper_than_the_clearance_below_fails() -> None:
+    result = run("arrest-load", vary(RIG, anchor_rating_kn=40.0, clearance_below_m=0.5))
+    drop = result.outputs["total_drop_m"]
+    assert isinstance(drop, float) and drop > 0.5
+    assert result.governing == "clearance"
+    assert result.margin == pytest.approx(0.5 / drop - 1, rel=1e-12)
+
+
+def test_an_energy_absorber_caps_the_force_and_conserves_energy() -> None:
+    """With the force held at F_a the work done by gravity equals the line's strain energy plus
+    the absorber's F_a·d (energy balance)."""
+    result = run("arrest-load", vary(RIG, absorber_arrest_force_kn=4.0, absorber_deployment_m=1.2))
+    out = result.outputs
+    assert out["peak_force_kn"] == pytest.approx(4.0, rel=1e-12)
+    d = out["absorber_deployment_needed_m"]
+    assert isinstance(d, float)
+    k, w, xa = 600e3 / 3.0, 58.0 * G, 4000.0 / (600e3 / 3.0)
+    assert w * (0.4 + xa + d) == pytest.approx(0.5 * k * xa**2 + 4000.0 * d, rel=1e-12)
+    assert result.verdict == "pass"
+
+
+def test_an_absorber_weaker_than_the_weight_cannot_stop_the_fall() -> None:
+    result = run("arrest-load", vary(RIG, absorber_arrest_force_kn=0.5, absorber_deployment_m=2.0))
+    assert result.verdict == "fail"
+    assert result.governing == "absorber"

@@ -36,6 +36,7 @@ UNIT_SUFFIXES = (
     "_kn_per_m",
 )
 DIMENSIONLESS = {
+    "governing_position",
     "readings",
     "achieved_safety_factor",
     "anchor_factor",

@@ -1,4 +1,4 @@
-"""The default vacuum test on the server: a rushed series, a low alarm set point, a slow leak.
+"""The default checklists on the server: a rushed decay test, a low alarm, a short line at the top.
 
 Each case records a sheet against the published default checklist on the demo's job for today
 and reads the verdicts the server stored, the record.
@@ -100,3 +100,48 @@ def test_good_series_is_recorded(today):
     entries, _ = _record(today, decay_series=GOOD)
     assert entries["decay_series"].verdict == "recorded"
     assert Equipment.objects.filter(pk=today[2].pk).exists()
+
+
+def _safety_line(today, **changes):
+    import json
+
+    job, _, _, _ = today
+    version = next(
+        v
+        for vs in current_versions(job.organisation_id).values()
+        for v in vs
+        if v.checklist.key == "safety-line-pre-use"
+    )
+    req = next(r for r in job_requirements(job) if r.checklist_key == "safety-line-pre-use")
+    readings = json.loads(scenario_path().read_text())["readings"]["safety-line-pre-use"]
+    sheet, _ = record_sheet(
+        job=job,
+        version=version,
+        by=job.supervisor,
+        entries=_entries(version.items, {**readings, **changes}),
+        equipment=req.subject.equipment,
+    )
+    return {e.item_key: e for e in sheet.entries.all()}
+
+
+def test_demo_safety_line_passes_at_the_top_and_the_foot(today):
+    arrest = _safety_line(today)["arrest"]
+    assert arrest.verdict == "pass"
+    out = arrest.value
+    assert out["governing_position"] == "top of the drop"
+    assert out["peak_force_top_kn"] > 3 * out["peak_force_foot_kn"]
+    assert arrest.working["inputs"]["water_on_board_kg"] == 3.5  # the robot's rating
+    assert arrest.working["inputs"]["hose_id_mm"] == 12.0  # the hose's rating
+
+
+def test_a_shorter_line_at_the_top_stops_work_in_words(today):
+    """The anchor and line pass at the full 146 m; 1 m of line at the top overloads them."""
+    arrest = _safety_line(today, line_at_top=1.0)["arrest"]
+    assert arrest.verdict == "fail"
+    assert arrest.message.startswith("A fall at the top of the drop would load the")
+
+
+def test_too_little_clearance_below_stops_work(today):
+    arrest = _safety_line(today, clearance_below=0.3)["arrest"]
+    assert arrest.verdict == "fail"
+    assert arrest.working["governing"] == "clearance"
