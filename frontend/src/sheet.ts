@@ -192,6 +192,26 @@ function checkLimits(
   return { verdict: used ? "pass" : "recorded", margin, message: "" };
 }
 
+/**
+ * An item whose field has focus. It keeps its place (`failed`: it was in the stop-work block
+ * when the field took the focus), so the field never moves under the thumb; a reading also keeps
+ * the verdict of `text`, what was last committed (the field left, Enter, a pause in typing),
+ * never of a number half typed.
+ */
+export interface Steady {
+  failed: boolean;
+  text?: string;
+}
+
+/** The draft as it is judged: readings being typed count with what was last committed. */
+export function committedDraft(draft: Draft, steady: Record<string, Steady>): Draft {
+  const held = Object.entries(steady).filter(([, s]) => s.text !== undefined);
+  if (!held.length) return draft;
+  const readings = { ...draft.readings };
+  for (const [key, s] of held) readings[key] = s.text!;
+  return { ...draft, readings };
+}
+
 /** Every item in order with what the phone can say about it now. */
 export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Context): ItemView[] {
   const readings: Record<string, unknown> = {};
@@ -304,9 +324,15 @@ function pctShort(margin: number): string {
   return `${value >= 0 ? "+" : ""}${value}%`;
 }
 
-/** Failed blocking items first (stop work), then the rest in the checklist's order. */
-export function ordered(views: ItemView[]): { failed: ItemView[]; rest: ItemView[] } {
-  const failed = views.filter((v) => v.item.blocking && v.verdict === "fail");
+/**
+ * Failed blocking items first (stop work), then the rest in the checklist's order. An item held
+ * steady (its field has focus) stays in the part it was in when the field took the focus.
+ */
+export function ordered(
+  views: ItemView[],
+  steady: Record<string, Steady> = {},
+): { failed: ItemView[]; rest: ItemView[] } {
+  const failed = views.filter((v) => steady[v.item.key]?.failed ?? (v.item.blocking && v.verdict === "fail"));
   return { failed, rest: views.filter((v) => !failed.includes(v)) };
 }
 

@@ -2,6 +2,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import {
+  committedDraft,
   describeLimits,
   emptyDraft,
   evaluateDraft,
@@ -122,5 +123,55 @@ describe("a calculation the phone cannot run", () => {
     draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45" };
     const views = evaluateDraft(items, draft, { ...context, drop: { height_m: 150 } });
     expect(views.find((v) => v.item.key === "hold_margin")!.verdict).toBe("unknown");
+  });
+});
+
+describe("a reading being typed", () => {
+  const items = checklist("anchor-pre-use");
+  const ticks = { tag_matches_register: "pass", visual_condition: "pass", fixings_tight: "pass", membrane_sound: "pass" } as const;
+  const judge = (typed: string, steady: Parameters<typeof committedDraft>[1]) => {
+    const draft = { ...emptyDraft(), ticks: { ...ticks }, readings: { tag_capacity: typed } };
+    const views = evaluateDraft(items, committedDraft(draft, steady), context);
+    const { failed, rest } = ordered(views, steady);
+    const view = views.find((v) => v.item.key === "tag_capacity")!;
+    return { verdict: view.verdict, message: view.message, inStopWork: failed.includes(view), inRest: rest.includes(view) };
+  };
+
+  it("is not judged on a half-typed number while its field has focus", () => {
+    // "2" of "25" is below the 12 kN minimum: judged as it stands it would fail and move.
+    expect(judge("2", {})).toMatchObject({ verdict: "fail", inStopWork: true });
+    expect(judge("2", { tag_capacity: { failed: false, text: "" } })).toEqual({
+      verdict: "missing", message: "", inStopWork: false, inRest: true,
+    });
+    expect(judge("25", { tag_capacity: { failed: false, text: "" } }).verdict).toBe("missing");
+  });
+
+  it("is judged on what was committed, and keeps its place until the field is left", () => {
+    const held = judge("10", { tag_capacity: { failed: false, text: "10" } });
+    expect(held).toEqual({ verdict: "fail", message: "10 kN is below the minimum of 12 kN.", inStopWork: false, inRest: true });
+    expect(judge("10", {})).toMatchObject({ verdict: "fail", inStopWork: true, inRest: false });
+    // Corrected inside the stop-work block: it stays there until the field is left.
+    expect(judge("30", { tag_capacity: { failed: true, text: "30" } })).toMatchObject({ verdict: "pass", inStopWork: true });
+    expect(judge("30", {})).toMatchObject({ verdict: "pass", inStopWork: false, inRest: true });
+  });
+
+  it("feeds the calculations only what was committed, and the draft keeps every key pressed", () => {
+    const vacuum = checklist("vacuum-hold");
+    const draft = emptyDraft();
+    draft.readings = { working_vacuum: "62", roof_wind: "5" };
+    const steady = { roof_wind: { failed: false, text: "" } };
+    const judged = committedDraft(draft, steady);
+    expect(judged.readings).toEqual({ working_vacuum: "62", roof_wind: "" });
+    expect(draft.readings.roof_wind).toBe("5");
+    expect(committedDraft(draft, {})).toBe(draft);
+    expect(committedDraft(draft, { decay_series: { failed: false } })).toBe(draft);
+    const views = evaluateDraft(vacuum, judged, context);
+    expect(views.find((v) => v.item.key === "wind_load")!.verdict).toBe("missing");
+  });
+
+  it("keeps a steady item that is not a reading in its place too", () => {
+    const draft = { ...emptyDraft(), ticks: { ...ticks }, readings: { tag_capacity: "25" } };
+    const views = evaluateDraft(items, draft, context);
+    expect(ordered(views, { visual_condition: { failed: true } }).failed.map((v) => v.item.key)).toEqual(["visual_condition"]);
   });
 });

@@ -3,6 +3,7 @@ import { loadJob, loadReference, loadVersions, type Reference } from "../repo";
 import { enqueue } from "../outbox";
 import {
   buildContext,
+  committedDraft,
   emptyDraft,
   evaluateDraft,
   fmt,
@@ -12,6 +13,7 @@ import {
   toEntries,
   type Draft,
   type ItemView,
+  type Steady,
 } from "../sheet";
 import { draftDelete, draftGet, draftKey, draftPut, type PhotoEntry } from "../storage";
 import type { ChecklistVersion, JobDetail, TickValue } from "../types";
@@ -20,6 +22,9 @@ import { BottomBar, CautionLine, Header } from "./common";
 import { go, href, timeOf } from "./hooks";
 import { SeriesCapture } from "./Series";
 import { Badge, VerdictBadge } from "./signs";
+
+/** A reading is judged once typing has paused this long, even if its field keeps the focus. */
+const COMMIT_PAUSE_MS = 1500;
 
 function PhotoThumb({ blob }: { blob: Blob }) {
   const url = useMemo(() => URL.createObjectURL(blob), [blob]);
@@ -45,6 +50,10 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
   const pending = useRef<ReturnType<typeof setTimeout> | null>(null);
   const latest = useRef<() => Promise<void>>(async () => undefined);
   const saved = useRef(false);
+  // Items whose field has focus keep their place, and a reading its last committed verdict.
+  const [steady, setSteady] = useState<Record<string, Steady>>({});
+  const pauses = useRef<Record<string, ReturnType<typeof setTimeout>>>({});
+  const pointer = useRef<{ down: boolean; after: (() => void)[] }>({ down: false, after: [] });
 
   useEffect(() => {
     (async () => {
@@ -68,7 +77,10 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
     versions?.find((v) => v.id === req?.version) ??
     versions?.filter((v) => v.checklist === req?.checklist).sort((a, b) => b.number - a.number)[0];
   const context = useMemo(() => (job && req ? buildContext(job, req, reference) : {}), [job, req, reference]);
-  const views = useMemo(() => (version ? evaluateDraft(version.items, draft, context) : []), [version, draft, context]);
+  const views = useMemo(
+    () => (version ? evaluateDraft(version.items, committedDraft(draft, steady), context) : []),
+    [version, draft, steady, context],
+  );
 
   useEffect(() => {
     if (!version || draftState.ready) return;
@@ -127,11 +139,41 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
     };
   }, []);
 
+  // A field left by a tap is let go only once that tap's click is done: moving the item (or
+  // showing its verdict) between press and release would move the target under the finger.
+  useEffect(() => {
+    const runAfter = () => {
+      pointer.current.down = false;
+      for (const fn of pointer.current.after.splice(0)) fn();
+    };
+    const down = () => {
+      pointer.current.down = true;
+    };
+    const up = () => setTimeout(runAfter, 0); // in case no click follows the release
+    document.addEventListener("pointerdown", down, true);
+    document.addEventListener("pointerup", up, true);
+    document.addEventListener("pointercancel", runAfter, true);
+    document.addEventListener("click", runAfter); // bubbling: after the target's own handler
+    return () => {
+      document.removeEventListener("pointerdown", down, true);
+      document.removeEventListener("pointerup", up, true);
+      document.removeEventListener("pointercancel", runAfter, true);
+      document.removeEventListener("click", runAfter);
+      for (const timer of Object.values(pauses.current)) clearTimeout(timer);
+    };
+  }, []);
+
+  // A focused element removed from the page may leave without a focusout: let such items go.
+  useEffect(() => {
+    for (const key of Object.keys(steady)) if (!hasFocus(key) && !pointer.current.down) letGo(key);
+  });
+
   function startAfresh() {
     if (!confirm("Clear every answer on this sheet?")) return;
     setDraft(emptyDraft());
     setRemarks("");
     setTimers({});
+    setSteady({});
     setTried(false);
     setDraftState((d) => ({ ...d, restoredAt: "" }));
   }
@@ -146,19 +188,60 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
   }
   if (!job || !req || !version) return <main class="screen"><Header title="Check" back={href({ name: "job", id })} /><p>Loading…</p></main>;
 
-  const { failed, rest } = ordered(views);
+  const { failed, rest } = ordered(views, steady);
   const needed = stillNeeded(views);
   const set = <K extends keyof Draft>(part: K, key: string, value: Draft[K][string]) =>
     setDraft((d) => ({ ...d, [part]: { ...d[part], [key]: value } }));
 
+  function hasFocus(key: string): boolean {
+    return document.getElementById(`item-${key}`)?.contains(document.activeElement) ?? false;
+  }
+
+  /** The item's field took the focus: keep it where it is, and a reading at its current verdict. */
+  function holdSteady(key: string, reading: boolean) {
+    const inStopWork = failed.some((v) => v.item.key === key);
+    const text = draft.readings[key] ?? "";
+    setSteady((s) => (s[key] ? s : { ...s, [key]: reading ? { failed: inStopWork, text } : { failed: inStopWork } }));
+  }
+
+  /** Commit what has been typed: the reading is judged, in place while its field has focus. */
+  function commit(key: string, text: string) {
+    setSteady((s) => (s[key] && s[key].text !== undefined ? { ...s, [key]: { ...s[key], text } } : s));
+  }
+
+  function typed(key: string, text: string) {
+    set("readings", key, text);
+    clearTimeout(pauses.current[key]);
+    pauses.current[key] = setTimeout(() => commit(key, text), COMMIT_PAUSE_MS);
+  }
+
+  /** The focus left the item: judge it on what was typed and let it take its place. */
+  function letGo(key: string) {
+    clearTimeout(pauses.current[key]);
+    delete pauses.current[key];
+    const go = () => {
+      if (hasFocus(key)) return; // back in the field before the tap was done
+      setSteady((s) => {
+        if (!(key in s)) return s;
+        const { [key]: _left, ...others } = s;
+        return others;
+      });
+    };
+    if (pointer.current.down) pointer.current.after.push(go);
+    else go();
+  }
+
   async function save() {
     if (!job || !req || !version) return;
     setTried(true);
-    if (needed.length) {
-      document.getElementById(`item-${needed[0]!.item.key}`)?.scrollIntoView({ block: "center" });
+    // Judged on everything typed, a field still being typed in included.
+    const live = evaluateDraft(version.items, draft, context);
+    const missing = stillNeeded(live);
+    if (missing.length) {
+      document.getElementById(`item-${missing[0]!.item.key}`)?.scrollIntoView({ block: "center" });
       return;
     }
-    const failures = views.filter((v) => v.item.blocking && v.verdict === "fail");
+    const failures = live.filter((v) => v.item.blocking && v.verdict === "fail");
     const photos: PhotoEntry[] = Object.entries(draft.photos).flatMap(([itemKey, list]) =>
       list.map((p) => ({
         client_uuid: p.uuid,
@@ -192,7 +275,7 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         label: `${req.title}, ${req.subject}`,
         job: job.id,
         requirement: req.key,
-        local_verdict: views.some((v) => v.verdict === "fail") ? "fail" : "pass",
+        local_verdict: live.some((v) => v.verdict === "fail") ? "fail" : "pass",
         local_failures: failures.map((v) => `${v.item.label}${v.message ? ` (${v.message})` : ""}`),
       },
       { uuid: sheetUuid, photos, draft: key },
@@ -209,9 +292,15 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
     const { item } = view;
     const key = item.key;
     const showMissing = tried && view.verdict === "missing" && item.kind !== "calc";
+    const typedIn = item.kind === "reading" || item.kind === "series";
     return (
       <li key={key} id={`item-${key}`} class={`card item item-${item.kind}${showMissing ? " item-missing" : ""}`}
-        data-testid={`item-${key}`} data-verdict={view.verdict}>
+        data-testid={`item-${key}`} data-verdict={view.verdict}
+        onFocusIn={typedIn ? () => holdSteady(key, item.kind === "reading") : undefined}
+        onFocusOut={typedIn ? (e: FocusEvent) => {
+          const to = e.relatedTarget;
+          if (!(to instanceof Node && (e.currentTarget as HTMLElement).contains(to))) letGo(key);
+        } : undefined}>
         <div class="item-head">
           <span class="item-label">{item.label}</span>
           {item.blocking && <span class="tag">Blocking</span>}
@@ -232,7 +321,9 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         {item.kind === "reading" && (
           <div class="input-unit">
             <input inputMode="decimal" autocomplete="off" value={draft.readings[key] ?? ""} aria-label={`${item.label} in ${item.unit ?? ""}`}
-              onInput={(e) => set("readings", key, (e.target as HTMLInputElement).value)} data-testid={`reading-${key}`} />
+              onInput={(e) => typed(key, (e.target as HTMLInputElement).value)}
+              onKeyDown={(e) => e.key === "Enter" && (e.target as HTMLInputElement).blur()}
+              data-testid={`reading-${key}`} />
             <span class="unit">{item.unit}</span>
           </div>
         )}
