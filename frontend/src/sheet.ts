@@ -5,7 +5,7 @@
  */
 import { CalcInputError, run, UnknownCalculation, type CalcResult } from "./calc";
 import type { Reference } from "./repo";
-import type { ChecklistItem, Entry, JobDetail, Requirement, Source, TickValue } from "./types";
+import type { ChecklistItem, Entry, JobDetail, Requirement, Source, Threshold, TickValue } from "./types";
 
 export type Context = Record<string, Record<string, unknown>>;
 
@@ -192,6 +192,146 @@ function checkLimits(
   return { verdict: used ? "pass" : "recorded", margin, message: "" };
 }
 
+/** A timed series' schedule in seconds, its numbers resolved from their sources. */
+export interface Schedule {
+  interval_s: number;
+  tolerance_s: number;
+  min_duration_s: number;
+  min_samples: number;
+  /** How many readings a test kept on time takes to cover both min_samples and min_duration_s. */
+  readings: number;
+  /**
+   * An older version's bare `interval_s`: the phone paces the readings by it, but the server
+   * checks only their count, so neither is the spacing judged here.
+   */
+  legacy: boolean;
+}
+
+export type ScheduleResult = { ok: true; schedule: Schedule } | { ok: false; message: string };
+
+const SECONDS_PER: Record<string, number> = { "": 1, s: 1, min: 60, h: 3600 };
+
+/** A source's number in seconds; a profile threshold in minutes or hours is converted. */
+function resolveSeconds(source: Source, context: Context): number {
+  const [kind = "", ref = ""] = Object.entries(source)[0] ?? [];
+  const value = Number(resolve(source, context, {}, {}));
+  let unit = "s";
+  if (kind === "profile") {
+    const threshold = context.profile?.[String(ref)];
+    if (threshold && typeof threshold === "object") unit = (threshold as Threshold).unit ?? "s";
+  }
+  const factor = SECONDS_PER[unit];
+  if (factor === undefined || !Number.isFinite(value)) throw new MissingSource("not a time in seconds");
+  return value * factor;
+}
+
+/**
+ * The timing of a series item. Newer versions name a source for each number (`schedule`);
+ * older ones carry only `interval_s`, read as that interval with no tolerance over
+ * (min_samples - 1) intervals. A source the phone cannot find leaves the timing unknown, and
+ * the phone then takes no readings (the server fails such an item).
+ */
+export function seriesSchedule(item: ChecklistItem, context: Context): ScheduleResult {
+  const min_samples = item.min_samples ?? 3;
+  let interval_s = item.interval_s ?? 30; // what versions without a schedule always used
+  let tolerance_s = 0;
+  let min_duration_s: number | null = null;
+  const sources = item.schedule;
+  if (sources) {
+    const seconds = (source: Source | undefined) => {
+      try {
+        if (!source) throw new MissingSource("missing");
+        return resolveSeconds(source, context);
+      } catch {
+        const [kind = "value", ref = ""] = Object.entries(source ?? {})[0] ?? [];
+        throw new MissingSource(`${SOURCE_WORDS[kind] ?? kind}: ${String(ref).replace(/_/g, " ")}`);
+      }
+    };
+    try {
+      interval_s = seconds(sources.interval_s);
+      tolerance_s = seconds(sources.tolerance_s);
+      min_duration_s = seconds(sources.min_duration_s);
+    } catch (error) {
+      return {
+        ok: false,
+        message: `The phone does not know this test's timing (${(error as Error).message}); connect once to fetch it. The server checks the spacing.`,
+      };
+    }
+  }
+  min_duration_s ??= (min_samples - 1) * interval_s;
+  if (!(interval_s > 0) || !(tolerance_s >= 0) || !(min_duration_s >= 0)) {
+    return {
+      ok: false,
+      message: `This test's timing cannot be kept (one every ${fmt(interval_s)} s, ± ${fmt(tolerance_s)} s, over ${fmt(min_duration_s)} s); ask the competent person.`,
+    };
+  }
+  const readings = Math.max(min_samples, Math.ceil(min_duration_s / interval_s - 1e-9) + 1);
+  return {
+    ok: true,
+    schedule: { interval_s, tolerance_s, min_duration_s, min_samples, readings, legacy: !sources },
+  };
+}
+
+/** "At least 7 readings over 180 s, one every 30 s (± 10 s)." */
+export function describeSchedule(schedule: Schedule): string {
+  const { readings, min_duration_s, interval_s, tolerance_s, legacy } = schedule;
+  if (legacy) return `At least ${readings} readings, one every ${fmt(interval_s)} s.`;
+  return `At least ${readings} readings over ${fmt(min_duration_s)} s, one every ${fmt(interval_s)} s (± ${fmt(tolerance_s)} s).`;
+}
+
+/**
+ * What a series' times fall short of, as the server words it (checklists/verdicts.py with
+ * compliance/engineering/decay.py schedule_problems, same arithmetic on the same numbers):
+ * `spacing` can no longer be mended, the test must start again; `shortfall` is what it still
+ * has to do. Times count from the first reading. A legacy schedule is judged on the count alone.
+ */
+export function scheduleProblems(times: number[], schedule: Schedule): { spacing: string[]; shortfall: string[] } {
+  const { interval_s, tolerance_s, min_duration_s, min_samples, readings, legacy } = schedule;
+  const t0 = times[0] ?? 0;
+  const rel = times.map((t) => t - t0);
+  const spacing: string[] = [];
+  const shortfall: string[] = [];
+  if (legacy) {
+    if (rel.length < min_samples) shortfall.push(`${rel.length} of at least ${min_samples} readings`);
+    return { spacing, shortfall };
+  }
+  const gaps = rel.slice(1).map((t, n) => t - rel[n]!);
+  const plan = `one every ${fmt(interval_s)} s (± ${fmt(tolerance_s)} s)`;
+  const shortest = gaps.length ? Math.min(...gaps) : interval_s;
+  const longest = gaps.length ? Math.max(...gaps) : interval_s;
+  if (shortest < interval_s - tolerance_s) spacing.push(`two readings were ${fmt(shortest)} s apart; the test needs ${plan}`);
+  if (longest > interval_s + tolerance_s) spacing.push(`two readings were ${fmt(longest)} s apart; the test needs ${plan}`);
+  const duration = rel.length ? rel[rel.length - 1]! : 0;
+  if (rel.length < min_samples || duration < min_duration_s) {
+    shortfall.push(
+      rel.length < readings
+        ? `${rel.length} of at least ${readings} readings`
+        : `the test has run ${fmt(duration)} s; it must run at least ${fmt(min_duration_s)} s`,
+    );
+  }
+  return { spacing, shortfall };
+}
+
+/**
+ * Whether a reading taken `at` seconds after Start would already fail the spacing: the gap from
+ * the last reading, counted as the server counts it, longer than interval + tolerance.
+ */
+export function readingLate(times: number[], at: number, schedule: Schedule): boolean {
+  if (schedule.legacy || !times.length) return false;
+  const t0 = times[0]!;
+  return at - t0 - (times[times.length - 1]! - t0) > schedule.interval_s + schedule.tolerance_s;
+}
+
+/** A sample's time: seconds rounded to 0.1. */
+export function sampleTime(ms: number): number {
+  return Math.round(ms / 100) / 10;
+}
+
+function sentence(parts: string[]): string {
+  const text = parts.join("; ");
+  return `${text.charAt(0).toUpperCase()}${text.slice(1)}.`;
+}
+
 /**
  * An item whose field has focus. It keeps its place (`failed`: it was in the stop-work block
  * when the field took the focus), so the field never moves under the thumb; a reading also keeps
@@ -244,13 +384,21 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
       }
       case "series": {
         const samples = draft.series[item.key] ?? [];
-        const needed = item.min_samples ?? 3;
-        if (samples.length >= needed) readings[item.key] = samples;
-        views.push({
-          ...base,
-          verdict: samples.length >= needed ? "recorded" : "missing",
-          message: samples.length >= needed ? "" : `${samples.length} of at least ${needed} readings.`,
-        });
+        if (samples.length >= (item.min_samples ?? 3)) readings[item.key] = samples;
+        const timing = seriesSchedule(item, context);
+        if (!timing.ok) {
+          views.push({ ...base, verdict: samples.length ? "unknown" : "missing", message: timing.message });
+          break;
+        }
+        const { spacing, shortfall } = scheduleProblems(samples.map((s) => s[0]!), timing.schedule);
+        if (spacing.length) {
+          const message = `The test did not keep its schedule: ${spacing.join("; ")}. Start it again.`;
+          views.push({ ...base, verdict: "fail", message });
+        } else if (shortfall.length) {
+          views.push({ ...base, verdict: "missing", message: sentence(shortfall) });
+        } else {
+          views.push({ ...base, verdict: "recorded", message: "" });
+        }
         break;
       }
       case "calc": {

@@ -89,7 +89,17 @@ export interface ChecklistItem {
   required?: boolean;
   allow_na?: boolean;
   min_samples?: number;
+  /** Older versions: seconds between the readings of a series (no tolerance). */
   interval_s?: number;
+  /** Newer versions: a series' timing, each number drawn from a source. */
+  schedule?: SeriesScheduleSources;
+}
+
+/** Where a timed series' numbers come from, e.g. `{"interval_s": {"profile": "decay_interval_s"}}`. */
+export interface SeriesScheduleSources {
+  interval_s: Source;
+  tolerance_s?: Source;
+  min_duration_s?: Source;
 }
 
 export interface ChecklistVersion {

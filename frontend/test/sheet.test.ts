@@ -4,13 +4,19 @@ import { describe, expect, it } from "vitest";
 import {
   committedDraft,
   describeLimits,
+  describeSchedule,
   emptyDraft,
   evaluateDraft,
   ordered,
   parseDecimal,
+  readingLate,
+  sampleTime,
+  scheduleProblems,
+  seriesSchedule,
   stillNeeded,
   toEntries,
   type Context,
+  type Schedule,
 } from "../src/sheet";
 import type { ChecklistItem } from "../src/types";
 
@@ -173,5 +179,91 @@ describe("a reading being typed", () => {
     const draft = { ...emptyDraft(), ticks: { ...ticks }, readings: { tag_capacity: "25" } };
     const views = evaluateDraft(items, draft, context);
     expect(ordered(views, { visual_condition: { failed: true } }).failed.map((v) => v.item.key)).toEqual(["visual_condition"]);
+  });
+});
+
+describe("a decay test's schedule", () => {
+  const series = checklist("vacuum-hold").find((i) => i.key === "decay_series")!;
+  const schedule = (over: Partial<Schedule> = {}): Schedule => ({
+    interval_s: 30, tolerance_s: 10, min_duration_s: 180, min_samples: 3, readings: 7, legacy: false, ...over,
+  });
+
+  it("resolves its numbers from the site's profile", () => {
+    expect(seriesSchedule(series, context)).toEqual({ ok: true, schedule: schedule() });
+    expect(describeSchedule(schedule())).toBe("At least 7 readings over 180 s, one every 30 s (± 10 s).");
+  });
+
+  it("converts a profile threshold given in minutes", () => {
+    const minutes = { ...context, profile: { ...context.profile, decay_min_duration_s: { value: 2, unit: "min" } } };
+    const result = seriesSchedule(series, minutes);
+    expect(result).toEqual({ ok: true, schedule: schedule({ min_duration_s: 120, readings: 5 }) });
+  });
+
+  it("reads an older version's bare interval as no tolerance over (min_samples - 1) intervals", () => {
+    const old = { ...series, schedule: undefined, interval_s: 20 };
+    expect(seriesSchedule(old, {})).toEqual({
+      ok: true,
+      schedule: { interval_s: 20, tolerance_s: 0, min_duration_s: 40, min_samples: 3, readings: 3, legacy: true },
+    });
+    expect(describeSchedule(schedule({ interval_s: 20, readings: 3, legacy: true }))).toBe("At least 3 readings, one every 20 s.");
+  });
+
+  it("is unknown, naming the source, when the phone lacks a number", () => {
+    const result = seriesSchedule(series, { profile: { decay_interval_s: { value: 30 } } });
+    expect(result.ok).toBe(false);
+    expect(!result.ok && result.message).toBe(
+      "The phone does not know this test's timing (the site's profile: decay interval tolerance s); connect once to fetch it. The server checks the spacing.",
+    );
+    const noTolerance = { ...series, schedule: { interval_s: { value: 30 }, min_duration_s: { value: 60 } } };
+    expect(seriesSchedule(noTolerance, {}).ok).toBe(false);
+    const hours = { profile: { ...context.profile, decay_interval_s: { value: 1, unit: "kPa" } } };
+    expect(seriesSchedule(series, hours).ok).toBe(false);
+    expect(seriesSchedule({ ...series, schedule: { interval_s: { value: 0 }, tolerance_s: { value: 0 }, min_duration_s: { value: 60 } } }, {}).ok).toBe(false);
+  });
+
+  it("words the spacing and the shortfall as the server does, counting from the first reading", () => {
+    expect(scheduleProblems([5, 35, 65, 95, 125, 155, 185], schedule())).toEqual({ spacing: [], shortfall: [] });
+    expect(scheduleProblems([0, 15, 45], schedule())).toEqual({
+      spacing: ["two readings were 15 s apart; the test needs one every 30 s (± 10 s)"],
+      shortfall: ["3 of at least 7 readings"],
+    });
+    expect(scheduleProblems([0, 41], schedule()).spacing).toEqual([
+      "two readings were 41 s apart; the test needs one every 30 s (± 10 s)",
+    ]);
+    expect(scheduleProblems([0, 20, 40, 60, 80, 100, 120], schedule())).toEqual({
+      spacing: [],
+      shortfall: ["the test has run 120 s; it must run at least 180 s"],
+    });
+    // An older version: only the count, as the server checks it.
+    expect(scheduleProblems([0, 1], schedule({ legacy: true }))).toEqual({ spacing: [], shortfall: ["2 of at least 3 readings"] });
+    expect(scheduleProblems([0, 1, 2], schedule({ legacy: true }))).toEqual({ spacing: [], shortfall: [] });
+  });
+
+  it("fails a rushed series on the phone in words, and waits for one still running", () => {
+    const items = checklist("vacuum-hold");
+    const view = (samples: number[][], ctx: Context = context) =>
+      evaluateDraft(items, { ...emptyDraft(), series: { decay_series: samples } }, ctx).find((v) => v.item.key === "decay_series")!;
+    const rushed = view([[0, 62], [10, 61.9], [40, 61.6], [70, 61.3], [100, 61], [130, 60.7], [160, 60.4], [190, 60.1]]);
+    expect(rushed.verdict).toBe("fail");
+    expect(rushed.message).toBe(
+      "The test did not keep its schedule: two readings were 10 s apart; the test needs one every 30 s (± 10 s). Start it again.",
+    );
+    expect(view([[0, 62], [30, 61.8]])).toMatchObject({ verdict: "missing", message: "2 of at least 7 readings." });
+    expect(view([[0, 62], [30, 61.8], [60, 61.5], [90, 61.2], [120, 61], [150, 60.8], [180, 60.5]]).verdict).toBe("recorded");
+    expect(view([[0, 62], [30, 61.8], [60, 61.5]], {}).verdict).toBe("unknown");
+    expect(view([], {}).verdict).toBe("missing");
+  });
+
+  it("says when a reading taken now would leave too long a gap", () => {
+    expect(readingLate([], 100, schedule())).toBe(false);
+    expect(readingLate([0.4], 40.4, schedule())).toBe(false);
+    expect(readingLate([0.4], 40.5, schedule())).toBe(true);
+    expect(readingLate([0], 90, schedule({ legacy: true }))).toBe(false);
+  });
+
+  it("keeps a sample's time to a tenth of a second", () => {
+    expect(sampleTime(11_349.9)).toBe(11.3);
+    expect(sampleTime(11_350)).toBe(11.4);
+    expect(sampleTime(0)).toBe(0);
   });
 });

@@ -9,6 +9,7 @@ import {
   fmt,
   isEmptyDraft,
   ordered,
+  seriesSchedule,
   stillNeeded,
   toEntries,
   type Draft,
@@ -329,7 +330,8 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         )}
 
         {item.kind === "series" && (
-          <SeriesCapture item={item} samples={draft.series[key] ?? []} onChange={(s) => set("series", key, s)}
+          <SeriesCapture item={item} timing={seriesSchedule(item, context)}
+            samples={draft.series[key] ?? []} onChange={(s) => set("series", key, s)}
             startedAt={timers[key] ?? null}
             onTimer={(at) => setTimers((t) => {
               const next = { ...t };
