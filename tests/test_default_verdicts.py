@@ -145,3 +145,39 @@ def test_too_little_clearance_below_stops_work(today):
     arrest = _safety_line(today, clearance_below=0.3)["arrest"]
     assert arrest.verdict == "fail"
     assert arrest.working["governing"] == "clearance"
+
+
+def _site_sheet(today, key, **changes):
+    import json
+
+    job, _, _, _ = today
+    version = next(
+        v
+        for vs in current_versions(job.organisation_id).values()
+        for v in vs
+        if v.checklist.key == key
+    )
+    readings = json.loads(scenario_path().read_text())["readings"][key]
+    sheet, _ = record_sheet(
+        job=job,
+        version=version,
+        by=job.supervisor,
+        entries=_entries(version.items, {**readings, **changes}),
+    )
+    return {e.item_key: e for e in sheet.entries.all()}
+
+
+def test_a_measured_gust_over_the_limit_stops_work(today):
+    """Before, the roof gust reading had no limit: only the mean was compared."""
+    entries = _site_sheet(today, "weather", roof_gust=16.0)
+    gust = entries["roof_gust"]
+    assert gust.verdict == "fail"
+    assert gust.message == "16 m/s is above the maximum of 14 m/s."
+    assert entries["roof_wind"].verdict == "pass"
+
+
+def test_forecast_gusts_come_from_the_terrain_not_a_fixed_factor(today):
+    forecast = _site_sheet(today, "weather")["forecast_at_height"]
+    assert forecast.verdict == "pass"
+    assert "gust_factor" not in forecast.working["inputs"]
+    assert forecast.value["turbulence_intensity"] > 0.0

@@ -2,7 +2,11 @@
 
 Log law of EN 1991-1-4 (4.3.2): v(z) = v(z_ref)·cr(z)/cr(z_ref), cr(z) = kr·ln(max(z, zmin)/z0),
 kr = 0.19·(z0/0.05)^0.07, with z0 and zmin of Table 4.1. Power law: v(z) = v(z_ref)·(z/z_ref)^α,
-heights also floored at zmin. Gust = mean × gust factor. Margin: limit / gust at height - 1.
+heights also floored at zmin. Turbulence (4.4): Iv(z) = kI / (c0·ln(max(z, zmin)/z0)); peak
+velocity pressure (4.5): qp(z) = (1 + 7·Iv(z))·½·ρ·vm(z)², so the peak gust is
+vm·√(1 + 7·Iv). A gust factor given explicitly (the maker's, say) replaces √(1 + 7·Iv); a gust
+measured on the anemometer, carried to height by the same profile, governs when it is higher.
+Margin: limit / gust at height - 1.
 """
 
 from __future__ import annotations
@@ -107,9 +111,36 @@ FIELDS = (
     number(
         "gust_factor",
         "",
-        "gust speed over mean speed",
+        "gust speed over mean speed, replacing EN 1991-1-4's √(1 + 7·Iv) when given",
         at_least=1.0,
         at_most=5.0,
+        limit_reason="plausibility bound",
+        optional=True,
+    ),
+    number(
+        "measured_gust_ms",
+        "m/s",
+        "strongest gust read on the anemometer, at the reading's height",
+        at_least=0.0,
+        at_most=120.0,
+        limit_reason="plausibility bound, above any recorded surface gust",
+        optional=True,
+    ),
+    number(
+        "turbulence_factor",
+        "",
+        "EN 1991-1-4 turbulence factor kI (recommended 1.0)",
+        greater_than=0.0,
+        at_most=3.0,
+        limit_reason="plausibility bound",
+        default=1.0,
+    ),
+    number(
+        "orography_factor",
+        "",
+        "EN 1991-1-4 orography factor c0 (1.0 on flat ground)",
+        at_least=0.5,
+        at_most=3.0,
         limit_reason="plausibility bound",
         default=1.0,
     ),
@@ -161,7 +192,6 @@ def compute(values: Inputs) -> CalcResult:
     z_m = values.number("working_height_m")
     terrain = values.text("terrain")
     method = values.text("method")
-    gust_factor = values.number("gust_factor")
     limit_ms = values.number("limit_ms")
     area_m2 = values.optional_number("area_m2")
     rho = values.number("air_density_kgm3")
@@ -196,24 +226,58 @@ def compute(values: Inputs) -> CalcResult:
             f"^{num(alpha)} = {num(speed_ms * ratio)} m/s (α {source})"
         )
     mean_ms = speed_ms * ratio
-    gust_ms = mean_ms * gust_factor
+    k_i = values.number("turbulence_factor")
+    c0 = values.number("orography_factor")
+    iv = k_i / (c0 * math.log(z_eff / z0_m))
+    steps.append(
+        f"Iv = kI / (c0 × ln(z / z0)) = {num(k_i)} / ({num(c0)} × ln({num(z_eff)} /"
+        f" {num(z0_m)})) = {num(iv)} (EN 1991-1-4 4.4)"
+    )
+    given_factor = values.optional_number("gust_factor")
+    if given_factor is None:
+        gust_factor = math.sqrt(1.0 + 7.0 * iv)
+        steps.append(f"gust factor = √(1 + 7 × Iv) = √(1 + 7 × {num(iv)}) = {num(gust_factor)}")
+    else:
+        gust_factor = given_factor
+        steps.append(f"gust factor {num(gust_factor)} as given")
+    derived_gust_ms = mean_ms * gust_factor
+    steps.append(
+        f"gust at height from the mean = {num(mean_ms)} m/s × {num(gust_factor)}"
+        f" = {num(derived_gust_ms)} m/s"
+    )
+    measured_gust_ms = values.optional_number("measured_gust_ms")
+    measured_at_height: float | None = None
+    gust_ms = derived_gust_ms
+    if measured_gust_ms is not None:
+        measured_at_height = measured_gust_ms * ratio
+        steps.append(
+            f"measured gust carried to height = {num(measured_gust_ms)} m/s × {num(ratio)}"
+            f" = {num(measured_at_height)} m/s"
+        )
+        gust_ms = max(derived_gust_ms, measured_at_height)
+    qp_pa = 0.5 * rho * gust_ms**2
     force = beaufort(mean_ms)
     steps.append(
-        f"gust at height = {num(mean_ms)} m/s × {num(gust_factor)} = {num(gust_ms)} m/s"
-        f" (limit {num(limit_ms)} m/s)"
+        f"gust at height = {num(gust_ms)} m/s (limit {num(limit_ms)} m/s); peak velocity"
+        f" pressure qp = ½ × {num(rho)} kg/m³ × ({num(gust_ms)} m/s)² = {num(qp_pa)} Pa"
     )
     steps.append(f"Beaufort force {force} for a mean of {num(mean_ms)} m/s (WMO bands)")
     force_n: float | None = None
     if area_m2 is not None:
         cd = values.number("drag_coefficient")
-        force_n = 0.5 * rho * gust_ms**2 * cd * area_m2
+        force_n = qp_pa * cd * area_m2
         steps.append(
-            f"wind force = ½ × {num(rho)} kg/m³ × ({num(gust_ms)} m/s)² × {num(cd)} ×"
-            f" {num(area_m2)} m² = {num(force_n)} N"
+            f"wind force = qp × Cd × A = {num(qp_pa)} Pa × {num(cd)} × {num(area_m2)} m²"
+            f" = {num(force_n)} N"
         )
     outputs: dict[str, OutputValue] = {
         "speed_at_height_ms": mean_ms,
         "gust_at_height_ms": gust_ms,
+        "gust_from_mean_ms": derived_gust_ms,
+        "measured_gust_at_height_ms": measured_at_height,
+        "turbulence_intensity": iv,
+        "gust_factor": gust_factor,
+        "peak_velocity_pressure_pa": qp_pa,
         "beaufort": force,
         "force_n": force_n,
         "profile_ratio": ratio,
@@ -222,7 +286,21 @@ def compute(values: Inputs) -> CalcResult:
         "terrain_factor_kr": kr,
         "alpha": alpha,
     }
-    checks = [Check("gust_limit", ratio_margin(limit_ms, gust_ms))]
+    source = (
+        "the gust measured on the anemometer"
+        if measured_at_height is not None and measured_at_height >= derived_gust_ms
+        else "the mean wind's gusts"
+    )
+    checks = [
+        Check(
+            "gust_limit",
+            ratio_margin(limit_ms, gust_ms),
+            reason=(
+                f"Gusts at working height reach about {num(gust_ms, 3)} m/s (from {source});"
+                f" the limit is {num(limit_ms, 3)} m/s."
+            ),
+        )
+    ]
     return CalcResult.build(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )

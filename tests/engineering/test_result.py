@@ -33,9 +33,12 @@ UNIT_SUFFIXES = (
     "_mbar_l_per_s",
     "_kgm3",
     "_pa_s",
+    "_pa",
     "_kn_per_m",
 )
 DIMENSIONLESS = {
+    "turbulence_intensity",
+    "gust_factor",
     "governing_position",
     "readings",
     "achieved_safety_factor",

@@ -56,7 +56,9 @@ def test_density_peaks_near_4_c() -> None:
 @given(a=st.floats(0.0, 60.0), b=st.floats(0.0, 60.0))
 def test_viscosity_falls_as_water_warms(a: float, b: float) -> None:
     low, high = sorted((a, b))
-    assert viscosity_pas(high) <= viscosity_pas(low)
+    # Falls, to within the rounding of the fit's last bit (60 °C and the float just below it
+    # differ by one unit in the last place).
+    assert viscosity_pas(high) <= viscosity_pas(low) * (1 + 1e-15)
 
 
 @pytest.mark.parametrize("temp_c", [-0.1, 60.1])

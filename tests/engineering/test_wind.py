@@ -124,9 +124,39 @@ def test_gust_factor_and_limit() -> None:
     assert failing["verdict"] == "fail"
 
 
-def test_mean_equals_gust_without_a_gust_factor() -> None:
+def test_without_a_gust_factor_the_gust_comes_from_the_turbulence_intensity() -> None:
+    """EN 1991-1-4 4.4 and 4.5 (seen): Iv = kI/(c0·ln(z/z0)) with kI = c0 = 1; terrain IV
+    (z0 = 1 m) at 30 m gives Iv = 1/ln 30 = 0.2940 and a peak gust of vm·√(1 + 7·Iv) = 1.748·vm
+    (hand). Before, a missing gust factor defaulted to 1.0: the gust was the mean."""
     out = wind()
-    assert out["gust_at_height_ms"] == out["speed_at_height_ms"]
+    assert out["turbulence_intensity"] == pytest.approx(1 / math.log(30.0), rel=1e-12)
+    vm = out["speed_at_height_ms"]
+    assert isinstance(vm, float)
+    assert out["gust_at_height_ms"] == pytest.approx(vm * math.sqrt(1 + 7 / math.log(30.0)))
+    assert out["gust_at_height_ms"] > 1.7 * vm
+
+
+def test_peak_velocity_pressure() -> None:
+    """EN 1991-1-4 4.5 (seen): qp = (1 + 7·Iv)·½·ρ·vm², ρ = 1.225 kg/m³ here."""
+    out = wind()
+    vm = out["speed_at_height_ms"]
+    assert isinstance(vm, float)
+    iv = 1 / math.log(30.0)
+    assert out["peak_velocity_pressure_pa"] == pytest.approx((1 + 7 * iv) * 0.5 * 1.225 * vm**2)
+
+
+def test_a_measured_gust_over_the_limit_stops_work() -> None:
+    """A calm mean with a 15 m/s gust read on the roof, against a 14 m/s gust limit."""
+    result = run(
+        "wind-at-height",
+        vary(WIND, speed_ms=5.5, measured_at_m=30.0, measured_gust_ms=15.0, limit_ms=14.0),
+    )
+    assert result.outputs["gust_at_height_ms"] == pytest.approx(15.0)
+    assert result.verdict == "fail"
+    assert result.reason == (
+        "Gusts at working height reach about 15 m/s (from the gust measured on the"
+        " anemometer); the limit is 14 m/s."
+    )
 
 
 def test_drag_force() -> None:

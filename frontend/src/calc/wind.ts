@@ -46,8 +46,17 @@ const FIELDS = [
   number("alpha", "", "power-law exponent, overriding the terrain default", {
     greaterThan: 0, atMost: 1, limitReason: "plausibility bound", optional: true,
   }),
-  number("gust_factor", "", "gust speed over mean speed", {
-    atLeast: 1, atMost: 5, limitReason: "plausibility bound", default: 1,
+  number("gust_factor", "", "gust speed over mean speed, replacing EN 1991-1-4's √(1 + 7·Iv) when given", {
+    atLeast: 1, atMost: 5, limitReason: "plausibility bound", optional: true,
+  }),
+  number("measured_gust_ms", "m/s", "strongest gust read on the anemometer, at the reading's height", {
+    atLeast: 0, atMost: 120, limitReason: "plausibility bound, above any recorded surface gust", optional: true,
+  }),
+  number("turbulence_factor", "", "EN 1991-1-4 turbulence factor kI (recommended 1.0)", {
+    greaterThan: 0, atMost: 3, limitReason: "plausibility bound", default: 1,
+  }),
+  number("orography_factor", "", "EN 1991-1-4 orography factor c0 (1.0 on flat ground)", {
+    atLeast: 0.5, atMost: 3, limitReason: "plausibility bound", default: 1,
   }),
   number("limit_ms", "m/s", "stop-work gust speed at working height", { greaterThan: 0 }),
   number("area_m2", "m²", "robot area facing the wind", { greaterThan: 0, optional: true }),
@@ -73,7 +82,6 @@ function compute(values: Inputs): CalcResult {
   const zM = values.number("working_height_m");
   const terrain = values.text("terrain");
   const method = values.text("method");
-  const gustFactor = values.number("gust_factor");
   const limitMs = values.number("limit_ms");
   const areaM2 = values.optionalNumber("area_m2");
   const rho = values.number("air_density_kgm3");
@@ -108,24 +116,57 @@ function compute(values: Inputs): CalcResult {
     );
   }
   const meanMs = speedMs * ratio;
-  const gustMs = meanMs * gustFactor;
+  const kI = values.number("turbulence_factor");
+  const c0 = values.number("orography_factor");
+  const iv = kI / (c0 * Math.log(zEff / z0M));
+  steps.push(`Iv = kI / (c0 × ln(z / z0)) = ${num(kI)} / (${num(c0)} × ln(${num(zEff)} / ${num(z0M)})) = ${num(iv)} (EN 1991-1-4 4.4)`);
+  const givenFactor = values.optionalNumber("gust_factor");
+  let gustFactor: number;
+  if (givenFactor === null) {
+    gustFactor = Math.sqrt(1 + 7 * iv);
+    steps.push(`gust factor = √(1 + 7 × Iv) = √(1 + 7 × ${num(iv)}) = ${num(gustFactor)}`);
+  } else {
+    gustFactor = givenFactor;
+    steps.push(`gust factor ${num(gustFactor)} as given`);
+  }
+  const derivedGustMs = meanMs * gustFactor;
+  steps.push(`gust at height from the mean = ${num(meanMs)} m/s × ${num(gustFactor)} = ${num(derivedGustMs)} m/s`);
+  const measuredGustMs = values.optionalNumber("measured_gust_ms");
+  let measuredAtHeight: number | null = null;
+  let gustMs = derivedGustMs;
+  if (measuredGustMs !== null) {
+    measuredAtHeight = measuredGustMs * ratio;
+    steps.push(`measured gust carried to height = ${num(measuredGustMs)} m/s × ${num(ratio)} = ${num(measuredAtHeight)} m/s`);
+    gustMs = Math.max(derivedGustMs, measuredAtHeight);
+  }
+  const qpPa = 0.5 * rho * gustMs ** 2;
   const force = beaufort(meanMs);
-  steps.push(`gust at height = ${num(meanMs)} m/s × ${num(gustFactor)} = ${num(gustMs)} m/s (limit ${num(limitMs)} m/s)`);
+  steps.push(
+    `gust at height = ${num(gustMs)} m/s (limit ${num(limitMs)} m/s); peak velocity` +
+      ` pressure qp = ½ × ${num(rho)} kg/m³ × (${num(gustMs)} m/s)² = ${num(qpPa)} Pa`,
+  );
   steps.push(`Beaufort force ${force} for a mean of ${num(meanMs)} m/s (WMO bands)`);
   let forceN: number | null = null;
   if (areaM2 !== null) {
     const cd = values.number("drag_coefficient");
-    forceN = 0.5 * rho * gustMs ** 2 * cd * areaM2;
-    steps.push(
-      `wind force = ½ × ${num(rho)} kg/m³ × (${num(gustMs)} m/s)² × ${num(cd)} × ${num(areaM2)} m² = ${num(forceN)} N`,
-    );
+    forceN = qpPa * cd * areaM2;
+    steps.push(`wind force = qp × Cd × A = ${num(qpPa)} Pa × ${num(cd)} × ${num(areaM2)} m² = ${num(forceN)} N`);
   }
+  const source =
+    measuredAtHeight !== null && measuredAtHeight >= derivedGustMs
+      ? "the gust measured on the anemometer"
+      : "the mean wind's gusts";
   return build({
     name: NAME,
     inputs: values.asDict(),
     outputs: {
       speed_at_height_ms: meanMs,
       gust_at_height_ms: gustMs,
+      gust_from_mean_ms: derivedGustMs,
+      measured_gust_at_height_ms: measuredAtHeight,
+      turbulence_intensity: iv,
+      gust_factor: gustFactor,
+      peak_velocity_pressure_pa: qpPa,
       beaufort: force,
       force_n: forceN,
       profile_ratio: ratio,
@@ -134,7 +175,11 @@ function compute(values: Inputs): CalcResult {
       terrain_factor_kr: kr,
       alpha,
     },
-    checks: [check("gust_limit", ratioMargin(limitMs, gustMs))],
+    checks: [
+      check("gust_limit", ratioMargin(limitMs, gustMs), false, {
+        reason: `Gusts at working height reach about ${num(gustMs, 3)} m/s (from ${source}); the limit is ${num(limitMs, 3)} m/s.`,
+      }),
+    ],
     steps,
   });
 }
