@@ -3,6 +3,7 @@
 import datetime as dt
 import difflib
 import json
+import math
 import uuid
 from typing import Any
 
@@ -31,11 +32,69 @@ def _check_calc_names(items: list[dict[str, Any]]) -> None:
         raise ValidationError(errors)
 
 
+def _finite(value: Any) -> bool:
+    """A number that is a finite float (an integer of any length is allowed in JSON)."""
+    try:
+        return math.isfinite(value)
+    except OverflowError:
+        return False
+
+
+def _check_literal_numbers(items: list[dict[str, Any]]) -> None:
+    """A limit is a number; a literal number anywhere is finite. Refused here, named, so no
+    sheet filled against the version fails later on a limit it cannot use."""
+    errors: dict[str, str] = {}
+    for i, item in enumerate(items):
+        if not isinstance(item, dict):
+            continue
+        for group in ("limits", "inputs", "schedule"):
+            sources = item.get(group)
+            if not isinstance(sources, dict):
+                continue
+            for name, source in sources.items():
+                if not isinstance(source, dict) or "value" not in source:
+                    continue
+                value = source["value"]
+                number = isinstance(value, int | float) and not isinstance(value, bool)
+                if group == "limits" and not number:
+                    errors[f"items[{i}].{group}.{name}"] = "A literal limit is a number."
+                elif number and not _finite(value):
+                    errors[f"items[{i}].{group}.{name}"] = "A literal value is a finite number."
+    if errors:
+        raise ValidationError(errors)
+
+
+def _check_storable(outcome: SheetOutcome) -> None:
+    """Refuse, naming the entry, an outcome holding a number that is not finite (a margin
+    that overflowed against a limit): it could neither be stored as JSON nor shown."""
+
+    def finite(value: Any) -> bool:
+        if isinstance(value, float):
+            return math.isfinite(value)
+        if isinstance(value, dict):
+            return all(finite(v) for v in value.values())
+        if isinstance(value, list | tuple):
+            return all(finite(v) for v in value)
+        return True
+
+    for item in outcome.items:
+        if not finite([item.value, item.margin, item.working]):
+            raise ValidationError(
+                {
+                    f"entries.{item.key}.value": (
+                        "Out of range: against this item's limits the reading gives a number"
+                        " beyond what can be recorded; check the value, its unit and the limits."
+                    )
+                }
+            )
+
+
 def create_draft(
     *, checklist: Checklist, items: list[dict[str, Any]], by: User | None, notes: str = ""
 ) -> ChecklistVersion:
     """Start a new draft version numbered after the newest existing one."""
     validate_items(items)
+    _check_literal_numbers(items)
     with transaction.atomic():
         last = checklist.versions.order_by("-number").values_list("number", flat=True).first()
         version = ChecklistVersion(
@@ -48,6 +107,7 @@ def create_draft(
 
 def update_draft(*, version: ChecklistVersion, items: list[dict[str, Any]]) -> ChecklistVersion:
     validate_items(items)
+    _check_literal_numbers(items)
     version.items = items
     version.save()  # refuses a published version
     return version
@@ -66,6 +126,7 @@ def publish_version(*, version: ChecklistVersion, by: User | None) -> ChecklistV
         if version.status == ChecklistVersion.Status.PUBLISHED:
             raise InvalidTransition(f"{version} is already published.")
         validate_items(version.items)
+        _check_literal_numbers(version.items)
         _check_calc_names(version.items)
         version.content_hash = content_hash(version.hashed_content())
         version.status = ChecklistVersion.Status.PUBLISHED
@@ -240,6 +301,7 @@ def record_sheet(
         )
     except EntryError as exc:
         raise ValidationError({exc.field: exc.message}) from None
+    _check_storable(outcome)
     try:
         with transaction.atomic():
             sheet = CheckSheet.objects.create(

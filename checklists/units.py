@@ -3,6 +3,8 @@
 Factors are exact by definition or from NIST SP 811 (Guide for the Use of the SI), appendix B.
 """
 
+import math
+
 # to_unit -> {from_unit: factor}: value_in_to = value_in_from * factor
 CONVERSIONS: dict[str, dict[str, float]] = {
     "kPa": {"kPa": 1.0, "bar": 100.0, "mbar": 0.1, "Pa": 0.001, "psi": 6.894757293168361},
@@ -21,12 +23,23 @@ class UnitMismatch(ValueError):
     pass
 
 
+class BeyondRange(UnitMismatch):
+    """A finite reading that is not a finite number once converted (1e307 bar is 1e309 kPa)."""
+
+
 def to_unit(value: float, given: str, wanted: str) -> float:
-    """Convert ``value`` from ``given`` to ``wanted`` or raise UnitMismatch."""
+    """Convert ``value`` from ``given`` to ``wanted`` or raise UnitMismatch (BeyondRange when
+    the converted value is not a finite number)."""
     if given == wanted:
         return value
     factor = CONVERSIONS.get(wanted, {}).get(given)
     if factor is None:
         accepted = ", ".join(CONVERSIONS.get(wanted, {wanted: 1}))
         raise UnitMismatch(f"Expected a reading in {wanted} (accepted: {accepted}), got {given!r}.")
-    return value * factor
+    converted = value * factor
+    if not math.isfinite(converted):
+        raise BeyondRange(
+            f"{value:g} {given} is beyond the largest number a reading can hold once converted"
+            f" to {wanted}; check the value and its unit."
+        )
+    return converted

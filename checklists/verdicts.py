@@ -61,11 +61,17 @@ class MissingSource(LookupError):
 
 
 def _number(value: Any, field_path: str) -> float:
+    """A finite float (-0.0 as 0.0). JSON allows integers of any length: one too large for a
+    float (10**400) is refused as not finite, as the phone reads it as Infinity."""
     if isinstance(value, bool) or not isinstance(value, int | float):
         raise EntryError(field_path, "Must be a number.")
-    if not math.isfinite(value):
+    try:
+        number = float(value)
+    except OverflowError:
+        number = math.inf
+    if not math.isfinite(number):
         raise EntryError(field_path, "Must be a finite number.")
-    return float(value)
+    return number + 0.0
 
 
 def resolve(

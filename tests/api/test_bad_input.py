@@ -1,14 +1,26 @@
 """Bad input gets a 400 naming the field, and nothing already stored changes."""
 
+import json
 import uuid
 
 import pytest
+from django.core.management import call_command
+from django.core.management.base import CommandError
 from django.urls import reverse
 
-from checklists.models import CheckSheet, ItemEntry
-from compliance.models import AnchorCertification, Equipment, Job
+from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
+from compliance.models import (
+    AnchorCertification,
+    Equipment,
+    Hold,
+    Job,
+    JobTransition,
+    SyncReceipt,
+)
 from compliance.selectors import job_requirements
 from tests.conftest import PASSING, client_for
+from tests.factories import published_checklist, tick
+from tests.factories import reading as reading_item
 
 pytestmark = pytest.mark.django_db
 
@@ -226,3 +238,210 @@ def test_start_blocked_answers_409_with_reasons(job, simple_checklists, operator
     assert all(r["message"] and r["requirement"] for r in body["reasons"])
     job.refresh_from_db()
     assert job.state == "planned"
+
+
+# Finite JSON that Python cannot hold as a float ------------------------------------------
+# Python's json reads an integer of any length; 10**400 is beyond binary64 (IEEE 754-2019,
+# largest finite about 1.8e308). 1e307 bar is 1e309 kPa once converted: infinite.
+
+HUGE = "1" + "0" * 400
+
+
+def everything():
+    """Counts of every record a sheet or a sync batch could leave behind."""
+    return (
+        *counts(),
+        SyncReceipt.objects.count(),
+        Hold.objects.count(),
+        JobTransition.objects.count(),
+    )
+
+
+def raw_sheet(job, version, equipment, valve_pressure: str, unit: str = "kPa") -> str:
+    return (
+        f'{{"job": {job.pk}, "version": {version.pk}, "equipment": {equipment.pk}, '
+        '"entries": {"condition": {"value": "pass"}, '
+        f'"valve_pressure": {{"value": {valve_pressure}, "unit": "{unit}"}}}}}}'
+    )
+
+
+@pytest.mark.parametrize(
+    ("value", "unit", "field"),
+    [
+        (HUGE, "kPa", "entries.valve_pressure.value"),
+        ("-" + HUGE, "kPa", "entries.valve_pressure.value"),
+        ("1e307", "bar", "entries.valve_pressure.unit"),
+        ("-1e307", "bar", "entries.valve_pressure.unit"),
+    ],
+    ids=["10**400 kPa", "-10**400 kPa", "1e307 bar", "-1e307 bar"],
+)
+def test_a_reading_beyond_a_float_is_a_400_and_stores_nothing(
+    job, simple_checklists, operator, value, unit, field
+):
+    before = everything()
+    response = client_for(operator).post(
+        reverse("sheet-list"),
+        raw_sheet(job, simple_checklists["hose"], hose_of(job), value, unit),
+        content_type="application/json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    body = response.json()
+    assert field in body, body
+    assert "finite" in body[field][0] or "beyond" in body[field][0], body
+    assert everything() == before
+
+
+def test_a_sync_batch_with_a_huge_reading_rejects_that_record_and_stores_nothing(
+    job, simple_checklists, operator
+):
+    before = everything()
+    sheet = raw_sheet(job, simple_checklists["hose"], hose_of(job), HUGE)
+    body = f'{{"records": [{{"type": "sheet", "client_uuid": "{uuid.uuid4()}", "data": {sheet}}}]}}'
+    response = client_for(operator).post(reverse("sync"), body, content_type="application/json")
+    assert response.status_code == 200, response.content[:300]
+    (result,) = response.json()["results"]
+    assert result["status"] == "rejected"
+    assert "entries.valve_pressure.value" in result["errors"], result
+    assert everything() == before
+
+
+@pytest.mark.parametrize(
+    ("limit", "reading"),
+    [(1e-300, 1e10), (1e308, -1e308), (-1.7e308, 1.7e308)],
+    ids=["margin over a tiny limit", "1e308 apart", "1.7e308 apart"],
+)
+def test_a_reading_whose_margin_overflows_is_a_400_and_stores_nothing(
+    job, operator, limit, reading
+):
+    """Before, the sheet was stored with an infinite margin and the answer was a 500; every
+    later read of it failed the same way."""
+    version = published_checklist(
+        "hose-limit",
+        "hose",
+        [tick("condition"), reading_item("valve_pressure", "kPa", {"min": {"value": limit}})],
+    )
+    before = everything()
+    response = post_sheet(
+        client_for(operator),
+        job,
+        version,
+        {"condition": {"value": "pass"}, "valve_pressure": {"value": reading}},
+        equipment=hose_of(job).pk,
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert "entries.valve_pressure.value" in response.json(), response.json()
+    assert everything() == before
+
+
+def test_a_huge_series_sample_names_the_sample(job, operator):
+    series = {
+        "key": "decay_series",
+        "kind": "series",
+        "label": "decay series",
+        "reason": "test",
+        "blocking": True,
+        "unit": "kPa",
+    }
+    version = published_checklist("robot-series", "robot", [tick("stops_work"), series])
+    robot = next(r for r in job_requirements(job) if r.subject.kind == "robot").subject.equipment
+    body = (
+        f'{{"job": {job.pk}, "version": {version.pk}, "equipment": {robot.pk}, "entries": '
+        '{"stops_work": {"value": "pass"}, "decay_series": {"value": '
+        f"[[0, 60], [{HUGE}, 59], [120, 58], [180, 57]]}}}}}}"
+    )
+    before = everything()
+    response = client_for(operator).post(
+        reverse("sheet-list"), body, content_type="application/json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert "entries.decay_series.value[1][0]" in response.json(), response.json()
+    assert everything() == before
+
+
+@pytest.mark.parametrize("bound", ["min", "max"])
+@pytest.mark.parametrize(
+    ("literal", "where"),
+    [(HUGE, "limit"), ("-" + HUGE, "limit"), ('"lots"', "limit"), ("1e999", "items")],
+    ids=["10**400", "-10**400", "text", "1e999"],
+)
+def test_a_checklist_limit_must_be_a_finite_number(job, supervisor, bound, literal, where):
+    """A literal limit that is not a finite number would fail every sheet filled against it
+    with a 500; the draft is refused naming the limit (1e999, infinite once parsed, is
+    already refused by the serializer's JSON field, naming the items)."""
+    checklist = Checklist.objects.create(
+        key="own-hose", title="Own hose", applies_to="hose", organisation=job.organisation
+    )
+    items = (
+        '[{"key": "valve_pressure", "kind": "reading", "label": "valve pressure", '
+        f'"reason": "test", "blocking": true, "unit": "kPa", "limits": {{"{bound}": '
+        f'{{"value": {literal}}}}}}}]'
+    )
+    before = ChecklistVersion.objects.count()
+    response = client_for(supervisor).post(
+        reverse("checklist-versions", args=[checklist.pk]),
+        f'{{"items": {items}}}',
+        content_type="application/json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    field = f"items[0].limits.{bound}" if where == "limit" else "items"
+    assert field in response.json(), response.json()
+    assert ChecklistVersion.objects.count() == before
+
+
+@pytest.mark.parametrize("name", ["calc", "sheet-list", "sync"])
+def test_json_nested_too_deeply_is_a_400(job, operator, name):
+    """Python's json decoder raises RecursionError, not ValueError, past about 1000 levels."""
+    url = reverse(name, args=["water-line"]) if name == "calc" else reverse(name)
+    body = '{"entries": ' + "[" * 100_000 + "]" * 100_000 + "}"
+    before = everything()
+    response = client_for(operator).post(url, body, content_type="application/json")
+    assert response.status_code == 400, response.content[:300]
+    assert "nested" in response.json()["detail"]
+    assert everything() == before
+
+
+@pytest.mark.parametrize(
+    ("field", "value"), [("vacuum_kpa", HUGE), ("cups", HUGE), ("mass_kg", "-" + HUGE)]
+)
+def test_calc_endpoint_refuses_an_integer_beyond_a_float(job, operator, field, value):
+    inputs = {"vacuum_kpa": 21.0, "cup_diameter_m": 0.12, "cups": 4, "friction": 0.5, "mass_kg": 20}
+    text = json.dumps({**inputs, field: 123456.5}).replace("123456.5", value)
+    response = client_for(operator).post(
+        reverse("calc", args=["suction-hold"]), text, content_type="application/json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {field: ["must be a finite number"]}
+
+
+def test_calc_endpoint_answers_out_of_range_as_a_failing_verdict(job, operator):
+    inputs = {
+        "drop_m": 40.0,
+        "hose_id_mm": 12.7,
+        "hose_length_m": 45.0,
+        "flow_lpm": 1e308,
+        "roughness_mm": 0.0,
+        "water_temp_c": 15.0,
+        "hose_rating_kpa": 1000.0,
+        "nozzle_min_kpa": 150.0,
+    }
+    response = client_for(operator).post(
+        reverse("calc", args=["water-line"]), inputs, format="json"
+    )
+    assert response.status_code == 200, response.content[:300]
+    body = response.json()
+    assert (body["verdict"], body["governing"], body["margin"]) == ("fail", "out_of_range", None)
+    assert "reynolds" in body["reason"]
+
+
+@pytest.mark.parametrize(
+    ("text", "says"),
+    [
+        ('{"vacuum_kpa": ' + HUGE + "}", "vacuum_kpa: must be a finite number"),
+        ('{"vacuum_kpa": ' + "[" * 100_000 + "]" * 100_000 + "}", "input: "),
+    ],
+    ids=["10**400", "nested too deeply"],
+)
+def test_calc_command_refuses_with_the_field(text, says):
+    with pytest.raises(CommandError) as caught:
+        call_command("calc", "suction-hold", "--input", text)
+    assert str(caught.value).startswith(says), str(caught.value)

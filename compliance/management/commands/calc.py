@@ -18,6 +18,8 @@ class Command(BaseCommand):
             inputs = json.loads(options["input"])
         except ValueError as exc:
             raise CommandError(f"input: not valid JSON ({exc}).") from exc
+        except RecursionError:
+            raise CommandError("input: JSON nested too deeply.") from None
         if not isinstance(inputs, dict):
             raise CommandError("input: must be a JSON object.")
         try:
