@@ -141,7 +141,8 @@ export function SeriesCapture({ item, timing, samples, onChange, startedAt, onTi
         <p class="error" data-testid="series-plan">{!timing.ok && timing.message}</p>
       )}
       {!running ? (
-        <button class="btn btn-primary" type="button" onClick={start} disabled={!schedule} data-testid="series-start">
+        <button class={samples.length ? "btn" : "btn btn-primary"} type="button" onClick={start} disabled={!schedule}
+          data-testid="series-start">
           {samples.length ? "Start again" : "Start timed test"}
         </button>
       ) : (
