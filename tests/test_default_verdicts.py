@@ -181,3 +181,16 @@ def test_forecast_gusts_come_from_the_terrain_not_a_fixed_factor(today):
     assert forecast.verdict == "pass"
     assert "gust_factor" not in forecast.working["inputs"]
     assert forecast.value["turbulence_intensity"] > 0.0
+
+
+def test_a_rescue_slower_than_the_grip_keeps_the_job_from_starting(today):
+    entries, sheet = _record(today, rescue_reach=900.0)
+    decay = entries["decay_test"]
+    assert decay.verdict == "fail"
+    assert decay.working["governing"] == "rescue_time"
+    assert decay.message.endswith(
+        "the rescue plan needs 900 s to reach the robot. The job cannot start."
+    )
+    assert Hold.objects.filter(
+        job=sheet.job, item_key="decay_test", clearance__isnull=True
+    ).exists()

@@ -92,6 +92,13 @@ FIELDS = (
         greater_than=0.0,
         optional=True,
     ),
+    number(
+        "rescue_time_s",
+        "s",
+        "time the rescue plan needs to reach the robot at the worst point of its drop",
+        at_least=0.0,
+        optional=True,
+    ),
 )
 
 RULES = (
@@ -197,6 +204,7 @@ def compute(values: Inputs) -> CalcResult:
     max_extrapolation = values.number("max_extrapolation")
     min_r2 = values.number("min_r2")
     volume_l = values.optional_number("system_volume_l")
+    rescue_s = values.optional_number("rescue_time_s")
 
     t0 = raw[0][0]
     times = [t - t0 for t, _ in raw]
@@ -404,6 +412,21 @@ def compute(values: Inputs) -> CalcResult:
             f" {num(required_s, 3)} s are needed."
         )
     checks.append(Check("hold_time", relied_s / required_s - 1.0, reason=hold_reason))
+    if rescue_s is not None:
+        steps.append(
+            f"rescue: the grip is relied on for {num(relied_s)} s; the rescue plan needs"
+            f" {num(rescue_s)} s to reach the robot"
+        )
+        checks.append(
+            Check(
+                "rescue_time",
+                None if rescue_s == 0.0 else relied_s / rescue_s - 1.0,
+                reason=(
+                    f"With the pump off the grip lasts about {num(relied_s, 2)} s; the rescue"
+                    f" plan needs {num(rescue_s, 3)} s to reach the robot. The job cannot start."
+                ),
+            )
+        )
     return CalcResult.build(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )

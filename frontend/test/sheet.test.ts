@@ -94,7 +94,7 @@ describe("vacuum hold sheet", () => {
   const items = checklist("vacuum-hold");
   const draft = emptyDraft();
   draft.ticks = { cup_lips: "pass", release_valves: "pass", low_vacuum_warning: "pass" };
-  draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45" };
+  draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45", rescue_reach: "240" };
 
   it("runs the chained calculations on the phone", () => {
     draft.series = { decay_series: [[0, 62], [30, 61.6], [60, 61.1], [90, 60.7], [120, 60.3], [150, 59.9], [180, 59.5]] };
@@ -126,7 +126,7 @@ describe("a calculation the phone cannot run", () => {
   it("hands the calculations built on it to the server too", () => {
     const items = checklist("vacuum-hold");
     const draft = emptyDraft();
-    draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45" };
+    draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45", rescue_reach: "240" };
     const views = evaluateDraft(items, draft, { ...context, drop: { height_m: 150 } });
     expect(views.find((v) => v.item.key === "hold_margin")!.verdict).toBe("unknown");
   });

@@ -31,6 +31,9 @@ const FIELDS = [
     atLeast: 0, atMost: 1, limitReason: "R² is at most 1",
   }),
   number("system_volume_l", "L", "volume under vacuum, for a leak rate in mbar·L/s", { greaterThan: 0, optional: true }),
+  number("rescue_time_s", "s", "time the rescue plan needs to reach the robot at the worst point of its drop", {
+    atLeast: 0, optional: true,
+  }),
 ];
 
 const RULES: Rule[] = [
@@ -105,6 +108,7 @@ function compute(values: Inputs): CalcResult {
   const maxExtrapolation = values.number("max_extrapolation");
   const minR2 = values.number("min_r2");
   const volumeL = values.optionalNumber("system_volume_l");
+  const rescueS = values.optionalNumber("rescue_time_s");
 
   const t0 = raw[0]![0];
   const times = raw.map(([t]) => t - t0);
@@ -280,6 +284,16 @@ function compute(values: Inputs): CalcResult {
         ` ${num(requiredS, 3)} s are needed. Run the test longer.`
       : `With the pump off the grip lasts about ${num(reliedS, 2)} s; ${num(requiredS, 3)} s are needed.`;
   checks.push(check("hold_time", reliedS / requiredS - 1, false, { reason: holdReason }));
+  if (rescueS !== null) {
+    steps.push(`rescue: the grip is relied on for ${num(reliedS)} s; the rescue plan needs ${num(rescueS)} s to reach the robot`);
+    checks.push(
+      check("rescue_time", rescueS === 0 ? null : reliedS / rescueS - 1, false, {
+        reason:
+          `With the pump off the grip lasts about ${num(reliedS, 2)} s; the rescue plan needs ${num(rescueS, 3)} s` +
+          " to reach the robot. The job cannot start.",
+      }),
+    );
+  }
   return build({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
 }
 
