@@ -31,6 +31,8 @@ from reportlab.platypus import (
     TableStyle,
 )
 
+from compliance.engineering.working import whole_pct
+
 ATTACHMENT_NAME = "daily-record.json"
 SEAL_LABEL = "Seal (SHA-256 of the attached canonical JSON):"
 CAUTION = (
@@ -362,7 +364,11 @@ def _sheets(
         for e in entries:
             value = e["value"] if e["kind"] != "calc" else "computed"
             unit = f" {e['unit']}" if e["unit"] and e["kind"] == "reading" else ""
-            margin = "—" if e["margin"] is None else f"{e['margin']:+.0%}"
+            margin = (
+                "—"
+                if e["margin"] is None
+                else whole_pct(e["margin"], passed=e["verdict"] != "fail")
+            )
             rows.append(
                 [
                     _p(e["item"] + (" (blocking)" if e["blocking"] else ""), s["small"]),

@@ -188,3 +188,23 @@ def test_number_formatting(value: float, text: str) -> None:
 def test_percent_formatting() -> None:
     assert pct(0.2543) == "+25.4 %"
     assert pct(-0.05) == "-5 %"
+
+
+@pytest.mark.parametrize(
+    ("fraction", "passed", "shown"),
+    [
+        (-0.003, False, "-1 %"),
+        (-0.0, False, "-1 %"),
+        (-0.25, False, "-25 %"),
+        (0.004, True, "+0 %"),
+        (0.129, True, "+12 %"),
+        (0.0, True, "+0 %"),
+    ],
+)
+def test_a_failing_margin_never_reads_as_plus_zero(
+    fraction: float, passed: bool, shown: str
+) -> None:
+    """Rounded toward the verdict: "+0 %" beside a failed item reads as a pass."""
+    from compliance.engineering.working import whole_pct
+
+    assert whole_pct(fraction, passed=passed) == shown
