@@ -11,7 +11,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from compliance.engineering import run
-from compliance.engineering.decay import fit_line
+from compliance.engineering.decay import fit_line, schedule_problems
 
 from .examples import DECAY, vary
 
@@ -256,3 +256,11 @@ def test_faster_leak_never_lengthens_the_hold(v0: float, rate: float, extra: flo
         return value
 
     assert hold(rate + extra) <= hold(rate) + 1e-9
+
+
+def test_a_reading_exactly_at_the_edge_of_its_tolerance_keeps_the_schedule() -> None:
+    """Times kept to 0.1 s: 22.1 - 10.1 is 12.000000000000002 in binary floating point."""
+    assert (
+        schedule_problems([0.0, 10.1, 22.1], interval_s=10.0, tolerance_s=2.0, min_duration_s=20.0)
+        == []
+    )

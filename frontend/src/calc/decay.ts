@@ -6,6 +6,9 @@ import { num } from "./working";
 
 const NAME = "vacuum-decay";
 
+/** Rounding allowance on a gap (22.1 - 10.1 is 12.000000000000002 in floats). */
+const SLACK_S = 1e-6;
+
 /** How many of the last intervals are projected on their own. */
 const RECENT_INTERVALS = 2;
 
@@ -53,10 +56,10 @@ export function scheduleProblems(
   const shortest = gaps.length ? Math.min(...gaps) : o.intervalS;
   const longest = gaps.length ? Math.max(...gaps) : o.intervalS;
   const plan = `one every ${num(o.intervalS)} s (± ${num(o.toleranceS)} s)`;
-  if (shortest < o.intervalS - o.toleranceS) problems.push(`two readings were ${num(shortest)} s apart; the test needs ${plan}`);
-  if (longest > o.intervalS + o.toleranceS) problems.push(`two readings were ${num(longest)} s apart; the test needs ${plan}`);
+  if (shortest < o.intervalS - o.toleranceS - SLACK_S) problems.push(`two readings were ${num(shortest)} s apart; the test needs ${plan}`);
+  if (longest > o.intervalS + o.toleranceS + SLACK_S) problems.push(`two readings were ${num(longest)} s apart; the test needs ${plan}`);
   const duration = times.length ? times[times.length - 1]! - times[0]! : 0;
-  if (duration < o.minDurationS) problems.push(`the test ran ${num(duration)} s; it must run at least ${num(o.minDurationS)} s`);
+  if (duration < o.minDurationS - SLACK_S) problems.push(`the test ran ${num(duration)} s; it must run at least ${num(o.minDurationS)} s`);
   return problems;
 }
 
