@@ -77,6 +77,9 @@ def validate_items(items: Any) -> list[dict[str, Any]]:
                 errors[f"{at}.limits.{bound}"] = "Limits are min and/or max."
             else:
                 _check_source(source, f"{at}.limits.{bound}", errors)
+        if "caution_below" in item:
+            # A passing margin under this band shows a caution; the band is a source too.
+            _check_source(item["caution_below"], f"{at}.caution_below", errors)
         if kind == "calc":
             if not isinstance(item.get("calc"), str):
                 errors[f"{at}.calc"] = "A calc item names its calculation."

@@ -11,7 +11,7 @@ from typing import Any
 
 from checklists.units import UnitMismatch, to_unit
 from compliance.engineering.decay import schedule_problems
-from compliance.engineering.working import whole_pct
+from compliance.engineering.working import num, whole_pct
 
 TICK_VALUES = ("pass", "fail", "na")
 
@@ -193,6 +193,47 @@ def _check_limits(
     return ("pass" if used else "recorded"), margin, "", used
 
 
+def _caution_below(
+    item: Mapping[str, Any],
+    verdict: str,
+    margin: float | None,
+    context: Mapping[str, Mapping[str, Any]],
+    readings: Mapping[str, Any],
+    outputs: Mapping[str, Mapping[str, Any]],
+) -> dict[str, Any] | None:
+    """The caution of a passing item within its band of its limit, or None.
+
+    Only an item that names a band (`caution_below`, a source) gets one: a limit that already
+    holds a standard's factor names none. A band that cannot be found, or is not a finite
+    number, is ignored: the item still passes or fails on its limits alone.
+    """
+    source = item.get("caution_below")
+    if not source or verdict != "pass" or margin is None:
+        return None
+    try:
+        band = resolve(source, context, readings, outputs)
+    except (MissingSource, KeyError, TypeError, ValueError):
+        return None
+    if isinstance(band, bool) or not isinstance(band, int | float) or not math.isfinite(band):
+        return None
+    band = float(band)
+    if not margin < band:
+        return None
+    reason = ""
+    ((kind, ref),) = source.items()
+    if kind == "profile":
+        threshold = (context.get("profile") or {}).get(ref)
+        if isinstance(threshold, Mapping) and isinstance(threshold.get("source"), str):
+            reason = threshold["source"].strip()
+    shown = whole_pct(margin, passed=True).lstrip("+")
+    message = f"Passes, but within {num(band * 100.0, 3)} % of its limit (margin {shown})"
+    return {
+        "band": band,
+        "source": dict(source),
+        "message": f"{message}: {reason}" if reason else f"{message}.",
+    }
+
+
 def evaluate(
     items: list[Mapping[str, Any]],
     entries: Mapping[str, Mapping[str, Any]],
@@ -253,6 +294,12 @@ def evaluate(
                     else ""
                 )
                 message = str(data["reason"]) or f"Fails its {check} check{short}."
+            caution = _caution_below(
+                item, data["verdict"], data["margin"], context, readings, outputs
+            )
+            if caution is not None:
+                # Beside the calculation's own "caution" (its general words), not over it.
+                data["caution_below"] = caution
             results.append(
                 ItemResult(
                     **base,
@@ -295,9 +342,12 @@ def evaluate(
             verdict, margin, message, used = _check_limits(
                 item, number_si, context, readings, outputs
             )
-            working = {"limits": used}
+            working: dict[str, Any] = {"limits": used}
             if given != item["unit"]:
                 working["as_entered"] = {"value": number, "unit": given}
+            caution = _caution_below(item, verdict, margin, context, readings, outputs)
+            if caution is not None:
+                working["caution_below"] = caution
             results.append(
                 ItemResult(
                     **base,
