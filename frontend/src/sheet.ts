@@ -4,6 +4,7 @@
  * evaluates again on sync; its verdict is the record.
  */
 import { CalcInputError, run, UnknownCalculation, type CalcResult } from "./calc";
+import { num } from "./calc/working";
 import type { Reference } from "./repo";
 import type { ChecklistItem, Entry, JobDetail, Requirement, Source, Threshold, TickValue } from "./types";
 
@@ -18,6 +19,14 @@ export interface ItemView {
   margin: number | null;
   limits: string[];
   calc?: CalcResult;
+  /**
+   * The item's caution band (`caution_below`, resolved): a passing margin under it shows a
+   * caution. Null when the item names none or the phone cannot find it; a limit that already
+   * holds a standard's factor names none.
+   */
+  band: number | null;
+  /** Why the band is there, from the profile threshold it names ("" when unknown). */
+  bandReason: string;
 }
 
 /** What a sheet form holds before it becomes entries. */
@@ -360,7 +369,12 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
   // Calculations only the server can run on this sheet (a rating the phone lacks), by item key.
   const serverOnly = new Set<string>();
   for (const item of items) {
-    const base = { item, margin: null, limits: describeLimits(item, context) };
+    const base = {
+      item,
+      margin: null,
+      limits: describeLimits(item, context),
+      ...cautionBand(item, context, readings, outputs, serverOnly),
+    };
     switch (item.kind) {
       case "tick": {
         const value = draft.ticks[item.key];
@@ -428,15 +442,16 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
           outputs[item.key] = result.outputs;
           const check = result.governing.replace(/_/g, " ");
           const margin = result.margin;
+          const short = margin === null ? "" : ` (margin ${wholePct(margin, false)})`;
           views.push({
             ...base,
+            // Resolved again: the band may draw on this calculation's own outputs.
+            ...cautionBand(item, context, readings, outputs, serverOnly),
             verdict: result.verdict,
             margin,
             calc: result,
-            message:
-              result.verdict === "pass"
-                ? ""
-                : `Fails its ${check} check${margin === null ? "" : ` (margin ${pctShort(margin)})`}`,
+            // As the server words it (checklists/verdicts.py): the calculation's reason first.
+            message: result.verdict === "pass" ? "" : result.reason || `Fails its ${check} check${short}.`,
           });
         } catch (error) {
           if (error instanceof UnknownCalculation) {
@@ -467,9 +482,48 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
   return views;
 }
 
-function pctShort(margin: number): string {
-  const value = Math.round(margin * 100);
-  return `${value >= 0 ? "+" : ""}${value}%`;
+/**
+ * A margin in whole percent, rounded toward its verdict so a failing one never reads "+0 %":
+ * failing margins round down (-0.4 % shows "-1 %"), passing ones down to zero. Mirrors
+ * compliance.engineering.working.whole_pct.
+ */
+export function wholePct(fraction: number, passed: boolean): string {
+  if (!Number.isFinite(fraction)) return num(fraction);
+  let whole = Math.floor(fraction * 100);
+  if (!passed) whole = Math.min(whole, -1);
+  else if (whole < 0) whole = 0;
+  return `${whole >= 0 ? "+" : "-"}${Math.abs(whole)} %`;
+}
+
+/** Whether a verdict shows the caution: a pass whose margin is under the item's band. */
+export function nearLimit(verdict: LocalVerdict, margin: number | null, band: number | null): boolean {
+  return verdict === "pass" && margin !== null && band !== null && margin < band;
+}
+
+/**
+ * The item's caution band and its reason, as the server resolves it (checklists/verdicts.py
+ * `_caution_below`). A band that cannot be found, or is not a finite number, is no band.
+ */
+function cautionBand(
+  item: ChecklistItem,
+  context: Context,
+  readings: Record<string, unknown>,
+  outputs: Record<string, Record<string, unknown>>,
+  serverOnly: ReadonlySet<string>,
+): { band: number | null; bandReason: string } {
+  const source = item.caution_below;
+  if (!source) return { band: null, bandReason: "" };
+  let band: unknown;
+  try {
+    band = resolve(source, context, readings, outputs, serverOnly);
+  } catch {
+    return { band: null, bandReason: "" };
+  }
+  if (typeof band !== "number" || !Number.isFinite(band)) return { band: null, bandReason: "" };
+  const [kind = "", ref = ""] = Object.entries(source)[0] ?? [];
+  const threshold = kind === "profile" ? context.profile?.[String(ref)] : undefined;
+  const reason = threshold && typeof threshold === "object" ? (threshold as Threshold).source : undefined;
+  return { band, bandReason: typeof reason === "string" ? reason.trim() : "" };
 }
 
 /**

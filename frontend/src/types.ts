@@ -84,6 +84,8 @@ export interface ChecklistItem {
   blocking: boolean;
   unit?: string;
   limits?: { min?: Source; max?: Source };
+  /** A caution band (a fraction, e.g. 0.2): a passing margin under it shows a caution. */
+  caution_below?: Source;
   calc?: string;
   inputs?: Record<string, Source>;
   required?: boolean;

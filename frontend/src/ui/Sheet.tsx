@@ -8,6 +8,7 @@ import {
   evaluateDraft,
   fmt,
   isEmptyDraft,
+  nearLimit,
   ordered,
   seriesSchedule,
   stillNeeded,
@@ -376,8 +377,11 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
 
         {view.verdict !== "missing" || item.kind === "calc" || view.message ? (
           <div class="verdict" data-testid={`verdict-${key}`}>
-            {(item.kind !== "note" && item.kind !== "photo") && <VerdictBadge verdict={view.verdict} margin={view.margin} />}
+            {(item.kind !== "note" && item.kind !== "photo") && <VerdictBadge verdict={view.verdict} margin={view.margin} band={view.band} />}
             {view.message && <p class="small">{view.message}</p>}
+            {nearLimit(view.verdict, view.margin, view.band) && view.bandReason && (
+              <p class="small" data-testid={`caution-${key}`}>{view.bandReason}</p>
+            )}
           </div>
         ) : null}
         {view.calc && (

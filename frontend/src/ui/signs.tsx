@@ -3,7 +3,8 @@
  * so nothing depends on colour alone.
  */
 import type { JobState } from "../types";
-import type { LocalVerdict } from "../sheet";
+import { num } from "../calc/working";
+import { nearLimit, type LocalVerdict } from "../sheet";
 
 export type SignKind = "held" | "caution" | "mustdo" | "safe" | "closed";
 
@@ -79,23 +80,35 @@ export function StateBadge({ state, testid }: { state: JobState; testid?: string
   );
 }
 
-export function VerdictBadge({ verdict, margin }: { verdict: LocalVerdict; margin: number | null }) {
+/**
+ * The sign and word of an item's verdict. A pass shows the caution triangle only when the item
+ * names a caution band and its margin is under it: most limits already hold a standard's
+ * factor, and a warning on every one of them would teach the crew to ignore the sign.
+ */
+export function verdictSign(
+  verdict: LocalVerdict,
+  margin: number | null,
+  band: number | null,
+): { kind: SignKind; word: string } {
   switch (verdict) {
     case "pass":
-      return margin !== null && margin < 0.2 ? (
-        <Badge kind="caution" word={`Pass, margin ${Math.round(margin * 100)} % (under 20 %)`} />
-      ) : (
-        <Badge kind="safe" word="Pass" />
-      );
+      return nearLimit(verdict, margin, band)
+        ? { kind: "caution", word: `Pass, within ${num(band! * 100, 3)} % of the limit` }
+        : { kind: "safe", word: "Pass" };
     case "fail":
-      return <Badge kind="held" word="Fail" />;
+      return { kind: "held", word: "Fail" };
     case "na":
-      return <Badge kind="closed" word="Not applicable" />;
+      return { kind: "closed", word: "Not applicable" };
     case "recorded":
-      return <Badge kind="closed" word="Recorded" />;
+      return { kind: "closed", word: "Recorded" };
     case "unknown":
-      return <Badge kind="mustdo" word="Server decides" />;
+      return { kind: "mustdo", word: "Server decides" };
     case "missing":
-      return <Badge kind="mustdo" word="Needs an answer" />;
+      return { kind: "mustdo", word: "Needs an answer" };
   }
+}
+
+export function VerdictBadge({ verdict, margin, band }: { verdict: LocalVerdict; margin: number | null; band: number | null }) {
+  const { kind, word } = verdictSign(verdict, margin, band);
+  return <Badge kind={kind} word={word} />;
 }
