@@ -6,7 +6,6 @@ import {
   committedDraft,
   emptyDraft,
   evaluateDraft,
-  fmt,
   isEmptyDraft,
   nearLimit,
   ordered,
@@ -17,6 +16,7 @@ import {
   type ItemView,
   type Steady,
 } from "../sheet";
+import { quantityLines } from "../quantities";
 import { draftDelete, draftGet, draftKey, draftPut, type PhotoEntry } from "../storage";
 import type { ChecklistVersion, JobDetail, TickValue } from "../types";
 import { deviceTime, newUuid } from "../uuid";
@@ -392,10 +392,8 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
             </button>
             {openWorking[key] && (
               <div class="working">
-                <ul class="plain small">
-                  {Object.entries(view.calc.outputs).map(([k, v]) => (
-                    <li>{k.replace(/_/g, " ")}: {typeof v === "number" ? fmt(v) : String(v)}</li>
-                  ))}
+                <ul class="plain small" data-testid={`outputs-${key}`}>
+                  {quantityLines(view.calc.outputs).map((q) => <li key={q.key}>{q.text}</li>)}
                 </ul>
                 <ol class="small">{view.calc.steps.map((s) => <li>{s}</li>)}</ol>
               </div>
