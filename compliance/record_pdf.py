@@ -369,9 +369,13 @@ def _sheets(
                 if e["margin"] is None
                 else whole_pct(e["margin"], passed=e["verdict"] != "fail")
             )
+            label = e["item"] + (" (blocking)" if e["blocking"] else "")
+            reason = (e.get("working") or {}).get("reason") if e["kind"] == "calc" else None
+            if e["verdict"] == "fail" and isinstance(reason, str) and reason.strip():
+                label += "\n" + reason.strip()  # why it failed, in the calculation's words
             rows.append(
                 [
-                    _p(e["item"] + (" (blocking)" if e["blocking"] else ""), s["small"]),
+                    _p(label, s["small"]),
                     _p(_fmt(value) + unit, s["small"]),
                     e["verdict"],
                     margin,
