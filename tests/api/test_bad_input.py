@@ -445,3 +445,24 @@ def test_calc_command_refuses_with_the_field(text, says):
     with pytest.raises(CommandError) as caught:
         call_command("calc", "suction-hold", "--input", text)
     assert str(caught.value).startswith(says), str(caught.value)
+
+
+def test_a_calc_input_literal_beyond_a_float_is_refused_naming_it(job, supervisor):
+    checklist = Checklist.objects.create(
+        key="own-robot", title="Own robot", applies_to="robot", organisation=job.organisation
+    )
+    item = (
+        '{"key": "hold", "kind": "calc", "label": "hold", "reason": "test", "blocking": true, '
+        '"calc": "suction-hold", "inputs": {"vacuum_kpa": {"value": 60}, '
+        f'"cups": {{"value": {HUGE}}}, "cup_diameter_m": {{"robot": "cup_diameter_m"}}, '
+        '"friction": {"robot": "friction"}, "mass_kg": {"robot": "mass_kg"}}}'
+    )
+    before = ChecklistVersion.objects.count()
+    response = client_for(supervisor).post(
+        reverse("checklist-versions", args=[checklist.pk]),
+        f'{{"items": [{item}]}}',
+        content_type="application/json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"items[0].inputs.cups": ["A literal value is a finite number."]}
+    assert ChecklistVersion.objects.count() == before
