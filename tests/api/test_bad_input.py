@@ -2,6 +2,7 @@
 
 import json
 import uuid
+from pathlib import Path
 
 import pytest
 from django.core.management import call_command
@@ -245,6 +246,7 @@ def test_start_blocked_answers_409_with_reasons(job, simple_checklists, operator
 # largest finite about 1.8e308). 1e307 bar is 1e309 kPa once converted: infinite.
 
 HUGE = "1" + "0" * 400
+FIXTURES = Path(__file__).resolve().parents[2] / "fixtures"
 
 
 def everything():
@@ -414,18 +416,11 @@ def test_calc_endpoint_refuses_an_integer_beyond_a_float(job, operator, field, v
 
 
 def test_calc_endpoint_answers_out_of_range_as_a_failing_verdict(job, operator):
-    inputs = {
-        "drop_m": 40.0,
-        "hose_id_mm": 12.7,
-        "hose_length_m": 45.0,
-        "flow_lpm": 1e308,
-        "roughness_mm": 0.0,
-        "water_temp_c": 15.0,
-        "hose_rating_kpa": 1000.0,
-        "nozzle_min_kpa": 150.0,
-    }
+    """The first shared out-of-range case: an infinite Reynolds number over a smooth wall."""
+    cases = json.loads((FIXTURES / "calc_out_of_range.json").read_text(encoding="utf-8"))
+    case = next(c for c in cases["cases"] if c["quantity"] == "reynolds")
     response = client_for(operator).post(
-        reverse("calc", args=["water-line"]), inputs, format="json"
+        reverse("calc", args=[case["calc"]]), case["inputs"], format="json"
     )
     assert response.status_code == 200, response.content[:300]
     body = response.json()
