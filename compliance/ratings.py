@@ -39,6 +39,7 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
             positive=False,
             non_negative=True,
         ),
+        Rating("valve_closure_s", "time the water valve takes to close, s", required=False),
     ),
     "tether": (
         Rating("mbs_kn", "minimum breaking strength, kN"),
@@ -61,6 +62,7 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
         Rating("kg_per_m", "empty self-weight, kg/m"),
         Rating("length_m", "length, m"),
         Rating("roughness_mm", "wall roughness, mm"),
+        Rating("wave_speed_ms", "pressure wave speed in the filled hose, m/s", required=False),
     ),
     "estop": (Rating("location", "where the stop is fitted", positive=False, text=True),),
 }

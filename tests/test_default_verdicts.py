@@ -194,3 +194,41 @@ def test_a_rescue_slower_than_the_grip_keeps_the_job_from_starting(today):
     assert Hold.objects.filter(
         job=sheet.job, item_key="decay_test", clearance__isnull=True
     ).exists()
+
+
+def _equipment_sheet(today, key, **changes):
+    import json
+
+    job, _, _, _ = today
+    version = next(
+        v
+        for vs in current_versions(job.organisation_id).values()
+        for v in vs
+        if v.checklist.key == key
+    )
+    req = next(r for r in job_requirements(job) if r.checklist_key == key)
+    readings = json.loads(scenario_path().read_text())["readings"][key]
+    sheet, _ = record_sheet(
+        job=job,
+        version=version,
+        by=job.supervisor,
+        entries=_entries(version.items, {**readings, **changes}),
+        equipment=req.subject.equipment,
+    )
+    return {e.item_key: e for e in sheet.entries.all()}
+
+
+def test_demo_water_line_passes_top_and_foot(today):
+    line = _equipment_sheet(today, "water-line")["line_pressure"]
+    assert line.verdict == "pass"
+    assert line.value["surge_kpa"] > 0
+    assert line.working["inputs"]["wave_speed_ms"] == 250.0  # the hose's rating
+    assert line.working["inputs"]["valve_closure_s"] == 0.4  # the robot's rating
+
+
+def test_a_roof_tank_without_a_pump_cannot_feed_the_nozzles_at_the_top(today):
+    """Before, only the foot of the drop was checked, where the head is greatest."""
+    line = _equipment_sheet(today, "water-line", supply_pressure=0.0, top_head=3.0)["line_pressure"]
+    assert line.verdict == "fail"
+    assert line.working["governing"] == "nozzle_pressure"
+    assert line.message.startswith("At the top of the drop the nozzles would get about")

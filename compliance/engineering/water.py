@@ -1,10 +1,15 @@
-"""water-line: pressure at the robot's valve on a hose fed by gravity from a roof tank.
+"""water-line: pressure at the robot's valve on a hose fed from the roof, top and foot of a drop.
 
-Static pressure ρ·g·h; friction loss by Darcy-Weisbach, f = 64/Re below Re 2300, Colebrook-White
-(solved by iteration) from Re 4000, and in the band between the larger of the two, so the loss
-is never under-stated. Flowing pressure = static - friction loss (velocity head and fittings
-are not counted). Margin: the lesser of hose rating / static - 1 and flowing / nozzle
-minimum - 1.
+The hose is fed on the roof from a tank or a pump (`supply_kpa`, zero for a tank). Static
+pressure at the valve = supply + ρ·g·h. Friction loss by Darcy-Weisbach, f = 64/Re below Re
+2300, Colebrook-White (solved by iteration) from Re 4000, and in the band between the larger
+of the two, so the loss is never under-stated; fittings lose K·ρ·v²/2 more.
+
+The nozzles are checked where the head is least, at the top of the drop: flowing = static
+- friction - fittings. The hose is checked where the head is greatest, at the foot, with the
+surge of the valve closing (Joukowsky): Δp = ρ·a·v when it closes within the wave's round trip
+2·L/a, else ρ·a·v·(2·L/a)/t_c. Margins: hose rating / (static + surge) - 1 at the foot and
+flowing / nozzle minimum - 1 at the top.
 """
 
 from __future__ import annotations
@@ -59,10 +64,25 @@ FIELDS = (
     number(
         "drop_m",
         "m",
-        "height of the tank's water surface above the valve",
+        "height of the supply above the valve at the foot of the drop",
         at_least=0.0,
         at_most=1000.0,
         limit_reason="plausibility bound",
+    ),
+    number(
+        "top_head_m",
+        "m",
+        "height of the supply above the valve at the top of the drop",
+        at_least=0.0,
+        at_most=1000.0,
+        limit_reason="plausibility bound",
+    ),
+    number(
+        "supply_kpa",
+        "kPa",
+        "pressure the roof pump adds at the hose inlet (zero for a tank)",
+        at_least=0.0,
+        default=0.0,
     ),
     number(
         "hose_id_mm",
@@ -72,7 +92,7 @@ FIELDS = (
         at_most=300.0,
         limit_reason="plausibility bound",
     ),
-    number("hose_length_m", "m", "hose length from tank to valve", greater_than=0.0),
+    number("hose_length_m", "m", "hose length from the supply to the valve", greater_than=0.0),
     number("flow_lpm", "L/min", "water flow through the hose", at_least=0.0),
     number("roughness_mm", "mm", "hose wall absolute roughness", at_least=0.0),
     number(
@@ -83,6 +103,23 @@ FIELDS = (
         at_most=60.0,
         limit_reason="the water property model covers 0-60 °C",
     ),
+    number(
+        "fittings_k",
+        "",
+        "sum of the loss coefficients of couplings, valve and bends",
+        at_least=0.0,
+        at_most=1000.0,
+        limit_reason="plausibility bound",
+    ),
+    number(
+        "wave_speed_ms",
+        "m/s",
+        "pressure wave speed in the filled hose",
+        greater_than=0.0,
+        at_most=1500.0,
+        limit_reason="no wave runs faster than sound in water",
+    ),
+    number("valve_closure_s", "s", "time the robot's valve takes to close", at_least=0.0),
     number("hose_rating_kpa", "kPa", "hose working pressure rating", greater_than=0.0),
     number("nozzle_min_kpa", "kPa", "least pressure the nozzles need", greater_than=0.0),
 )
@@ -91,16 +128,35 @@ RULES = (
     AtMostFractionOf(
         "roughness_mm", "hose_id_mm", 0.05, "relative roughness beyond the Moody chart's range"
     ),
+    AtMostFractionOf(
+        "top_head_m", "drop_m", 1.0, "the valve is no lower at the top of the drop than at its foot"
+    ),
 )
+
+
+def surge_kpa(
+    *, density: float, wave_speed_ms: float, velocity_ms: float, length_m: float, closure_s: float
+) -> tuple[float, float]:
+    """Joukowsky's surge for a valve closing in `closure_s`, and the wave's round trip 2·L/a."""
+    round_trip_s = 2.0 * length_m / wave_speed_ms
+    full = density * wave_speed_ms * velocity_ms / PA_PER_KPA
+    if closure_s <= round_trip_s:
+        return full, round_trip_s
+    return full * round_trip_s / closure_s, round_trip_s
 
 
 def compute(values: Inputs) -> CalcResult:
     drop_m = values.number("drop_m")
+    top_m = values.number("top_head_m")
+    supply_kpa = values.number("supply_kpa")
     diameter_m = values.number("hose_id_mm") * M_PER_MM
     length_m = values.number("hose_length_m")
     flow_lpm = values.number("flow_lpm")
     roughness_m = values.number("roughness_mm") * M_PER_MM
     temp_c = values.number("water_temp_c")
+    fittings_k = values.number("fittings_k")
+    wave_ms = values.number("wave_speed_ms")
+    closure_s = values.number("valve_closure_s")
     rating_kpa = values.number("hose_rating_kpa")
     nozzle_kpa = values.number("nozzle_min_kpa")
 
@@ -115,10 +171,14 @@ def compute(values: Inputs) -> CalcResult:
     if not math.isfinite(reynolds):
         # Colebrook-White has no answer here: with a smooth wall log10(0) is undefined.
         raise OutOfRange("reynolds", reynolds)
-    static_kpa = rho * G * drop_m / PA_PER_KPA
+    static_top_kpa = supply_kpa + rho * G * top_m / PA_PER_KPA
+    static_foot_kpa = supply_kpa + rho * G * drop_m / PA_PER_KPA
     steps = [
         f"water at {num(temp_c)} °C: ρ = {num(rho)} kg/m³, μ = {num(mu)} Pa·s",
-        f"static = ρ·g·h = {num(rho)} × {num(G)} × {num(drop_m)} m = {num(static_kpa)} kPa",
+        f"standing pressure at the top = {num(supply_kpa)} kPa + ρ·g·h = {num(supply_kpa)} +"
+        f" {num(rho)} × {num(G)} × {num(top_m)} m / 1000 = {num(static_top_kpa)} kPa",
+        f"standing pressure at the foot = {num(supply_kpa)} + {num(rho)} × {num(G)} ×"
+        f" {num(drop_m)} m / 1000 = {num(static_foot_kpa)} kPa",
         f"velocity = {num(flow_lpm)} L/min / 60000 / (π × ({num(diameter_m)} m)² / 4)"
         f" = {num(velocity)} m/s",
         f"Re = ρ·v·D/μ = {num(rho)} × {num(velocity)} × {num(diameter_m)} / {num(mu)}"
@@ -153,22 +213,48 @@ def compute(values: Inputs) -> CalcResult:
             f"friction loss = f·(L/D)·ρ·v²/2 = {num(f)} × ({num(length_m)} / {num(diameter_m)})"
             f" × {num(rho)} × {num(velocity)}² / 2 = {num(loss_kpa)} kPa"
         )
-    flowing_kpa = static_kpa - loss_kpa
-    max_drop_m = rating_kpa * PA_PER_KPA / (rho * G)
+    fittings_kpa = fittings_k * rho * (velocity * velocity) / 2.0 / PA_PER_KPA
+    flowing_top_kpa = static_top_kpa - loss_kpa - fittings_kpa
+    surge, round_trip_s = surge_kpa(
+        density=rho,
+        wave_speed_ms=wave_ms,
+        velocity_ms=velocity,
+        length_m=length_m,
+        closure_s=closure_s,
+    )
+    peak_foot_kpa = static_foot_kpa + surge
+    max_drop_m = max(rating_kpa - supply_kpa - surge, 0.0) * PA_PER_KPA / (rho * G)
     water_kg = rho * area_m2 * length_m
+    closing = (
+        f"the valve closes in {num(closure_s)} s, within the wave's round trip 2·L/a ="
+        f" {num(round_trip_s)} s: Δp = ρ·a·v = {num(rho)} × {num(wave_ms)} × {num(velocity)}"
+        if closure_s <= round_trip_s
+        else f"the valve closes in {num(closure_s)} s, slower than the wave's round trip 2·L/a"
+        f" = {num(round_trip_s)} s: Δp = ρ·a·v × {num(round_trip_s)} / {num(closure_s)}"
+    )
     steps += [
-        f"flowing = {num(static_kpa)} - {num(loss_kpa)} = {num(flowing_kpa)} kPa"
-        f" (nozzles need {num(nozzle_kpa)} kPa; velocity head and fittings not counted)",
-        f"deepest valve within the rating = {num(rating_kpa)} kPa × 1000 / ({num(rho)} ×"
-        f" {num(G)}) = {num(max_drop_m)} m (drop {num(drop_m)} m)",
+        f"fittings loss = K·ρ·v²/2 = {num(fittings_k)} × {num(rho)} × {num(velocity)}² / 2"
+        f" = {num(fittings_kpa)} kPa",
+        f"flowing at the top = {num(static_top_kpa)} - {num(loss_kpa)} - {num(fittings_kpa)}"
+        f" = {num(flowing_top_kpa)} kPa (nozzles need {num(nozzle_kpa)} kPa)",
+        f"surge (Joukowsky): {closing} = {num(surge)} kPa",
+        f"peak at the foot = {num(static_foot_kpa)} + {num(surge)} = {num(peak_foot_kpa)} kPa"
+        f" (hose rated {num(rating_kpa)} kPa)",
+        f"deepest valve within the rating = ({num(rating_kpa)} - {num(supply_kpa)} -"
+        f" {num(surge)}) kPa × 1000 / ({num(rho)} × {num(G)}) = {num(max_drop_m)} m",
         f"water in hose = {num(rho)} × {num(area_m2)} m² × {num(length_m)} m = {num(water_kg)} kg",
     ]
-    if flowing_kpa < 0.0:
-        steps.append("friction loss exceeds the static head: gravity cannot drive this flow")
+    if flowing_top_kpa < 0.0:
+        steps.append("the losses exceed the head at the top: the supply cannot drive this flow")
     outputs: dict[str, OutputValue] = {
-        "static_kpa": static_kpa,
+        "static_top_kpa": static_top_kpa,
+        "flowing_top_kpa": flowing_top_kpa,
+        "static_foot_kpa": static_foot_kpa,
+        "surge_kpa": surge,
+        "peak_foot_kpa": peak_foot_kpa,
         "friction_loss_kpa": loss_kpa,
-        "flowing_kpa": flowing_kpa,
+        "fittings_loss_kpa": fittings_kpa,
+        "wave_round_trip_s": round_trip_s,
         "reynolds": reynolds,
         "flow_regime": regime,
         "velocity_ms": velocity,
@@ -179,8 +265,23 @@ def compute(values: Inputs) -> CalcResult:
         "water_viscosity_pa_s": mu,
     }
     checks = [
-        Check("hose_rating", ratio_margin(rating_kpa, static_kpa)),
-        Check("nozzle_pressure", flowing_kpa / nozzle_kpa - 1.0),
+        Check(
+            "hose_rating",
+            ratio_margin(rating_kpa, peak_foot_kpa),
+            reason=(
+                f"At the foot of the drop the hose would see about {num(peak_foot_kpa, 3)} kPa"
+                f" when the valve shuts ({num(static_foot_kpa, 3)} kPa standing and"
+                f" {num(surge, 3)} kPa of surge); it is rated {num(rating_kpa, 3)} kPa."
+            ),
+        ),
+        Check(
+            "nozzle_pressure",
+            flowing_top_kpa / nozzle_kpa - 1.0,
+            reason=(
+                f"At the top of the drop the nozzles would get about {num(flowing_top_kpa, 3)}"
+                f" kPa while flowing; they need {num(nozzle_kpa, 3)} kPa."
+            ),
+        ),
     ]
     return build_result(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps

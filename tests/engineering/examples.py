@@ -49,11 +49,15 @@ WIND: dict[str, Any] = {
 
 WATER: dict[str, Any] = {
     "drop_m": 40.0,
+    "top_head_m": 40.0,
     "hose_id_mm": 12.7,
     "hose_length_m": 45.0,
     "flow_lpm": 4.0,
     "roughness_mm": 0.0015,
     "water_temp_c": 15.0,
+    "fittings_k": 0.0,
+    "wave_speed_ms": 300.0,
+    "valve_closure_s": 100.0,
     "hose_rating_kpa": 1000.0,
     "nozzle_min_kpa": 150.0,
 }

@@ -256,7 +256,7 @@ def test_negative_zero_is_not_greater_than_zero(calc: str, field: str) -> None:
 
 @pytest.mark.parametrize(
     ("calc", "field"),
-    [("water-line", "flow_lpm"), ("water-line", "drop_m"), ("suction-hold", "wind_outward_n")],
+    [("water-line", "flow_lpm"), ("water-line", "top_head_m"), ("suction-hold", "wind_outward_n")],
 )
 def test_negative_zero_is_taken_as_zero(calc: str, field: str) -> None:
     """-0.0 is a valid JSON number equal to zero; it is kept as +0.0 so no "-0" reaches the

@@ -63,7 +63,7 @@ EDGE_CASES = [
     ("vacuum-decay", vary(DECAY, samples=[[0, 50], [60, 20], [120, 10], [180, 0]])),
     ("vacuum-decay", vary(DECAY, samples=[[0, 50], [1, 50], [2, 50]])),
     ("vacuum-decay", vary(DECAY, samples=[[0, 50], [60, 51], [120, 52], [180, 53]])),
-    ("water-line", vary(WATER, flow_lpm=0.0, drop_m=0.0)),
+    ("water-line", vary(WATER, flow_lpm=0.0, drop_m=0.0, top_head_m=0.0)),
     ("water-line", vary(WATER, flow_lpm=1e-300)),
     ("suction-hold", vary(BY_NAME["suction-hold"], vacuum_kpa=0.0)),
     ("wind-at-height", vary(BY_NAME["wind-at-height"], speed_ms=0.0)),

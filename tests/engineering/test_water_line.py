@@ -70,7 +70,8 @@ def test_static_pressure_is_rho_g_h() -> None:
     """Hydrostatics p = ρ·g·h with IAPWS-95 density at 15 °C; units checked with pint."""
     rho = IAPWS95(T=288.15, P=0.101325).rho
     expected = (rho * ureg("kg/m**3") * ureg.standard_gravity * 40 * ureg.m).to("kPa").magnitude
-    assert water()["static_kpa"] == pytest.approx(expected, rel=1e-5)
+    assert water()["static_foot_kpa"] == pytest.approx(expected, rel=1e-5)
+    assert water(top_head_m=10.0)["static_top_kpa"] == pytest.approx(expected / 4, rel=1e-5)
 
 
 def test_friction_loss_against_fluids_one_phase_dp() -> None:
@@ -90,11 +91,14 @@ def test_friction_loss_against_fluids_one_phase_dp() -> None:
         ),
         rel=1e-3,
     )
-    assert out["flowing_kpa"] == pytest.approx(out["static_kpa"] - out["friction_loss_kpa"])  # type: ignore[operator]
+    assert out["flowing_top_kpa"] == pytest.approx(
+        out["static_top_kpa"] - out["friction_loss_kpa"]  # type: ignore[operator]
+    )
 
 
 def test_laminar_loss_is_hagen_poiseuille() -> None:
-    """Hagen-Poiseuille Δp = 128·μ·L·Q/(π·D⁴) (textbook), with our own μ."""
+    """Hagen-Poiseuille Δp = 128·μ·L·Q/(π·D⁴) (White, Fluid Mechanics, laminar pipe flow;
+    from memory), with our own μ."""
     out = water(flow_lpm=0.5)
     assert out["flow_regime"] == "laminar"
     mu = out["water_viscosity_pa_s"]
@@ -108,7 +112,9 @@ def test_max_drop_and_water_in_hose() -> None:
     out = water()
     rho = out["water_density_kgm3"]
     assert isinstance(rho, float)
-    assert out["max_drop_m"] == pytest.approx(1000e3 / (rho * 9.80665), rel=1e-12)
+    surge = out["surge_kpa"]
+    assert isinstance(surge, float)
+    assert out["max_drop_m"] == pytest.approx((1000 - surge) * 1e3 / (rho * 9.80665), rel=1e-12)
     assert out["water_in_hose_kg"] == pytest.approx(rho * math.pi * 0.0127**2 / 4 * 45, rel=1e-12)
 
 
@@ -120,30 +126,38 @@ def test_static_over_the_rating_fails() -> None:
 
 def test_friction_eats_the_head_and_fails_at_the_nozzle() -> None:
     result = run(
-        "water-line", vary(WATER, drop_m=10.0, hose_id_mm=10.0, hose_length_m=60.0, flow_lpm=8.0)
+        "water-line",
+        vary(
+            WATER,
+            drop_m=10.0,
+            top_head_m=10.0,
+            hose_id_mm=10.0,
+            hose_length_m=60.0,
+            flow_lpm=8.0,
+        ),
     )
-    flowing = result.outputs["flowing_kpa"]
+    flowing = result.outputs["flowing_top_kpa"]
     assert isinstance(flowing, float) and flowing < 0
     assert result.verdict == "fail"
     assert result.governing == "nozzle_pressure"
-    assert any("gravity cannot drive" in s for s in result.steps)
+    assert any("the supply cannot drive this flow" in s for s in result.steps)
 
 
 def test_creeping_flow_stays_finite() -> None:
     out = water(flow_lpm=1e-300)
     assert out["friction_loss_kpa"] == pytest.approx(0.0, abs=1e-200)
-    assert out["flowing_kpa"] == pytest.approx(out["static_kpa"])
+    assert out["flowing_top_kpa"] == pytest.approx(out["static_top_kpa"])
 
 
 def test_no_flow_has_no_loss() -> None:
     out = water(flow_lpm=0.0)
     assert out["friction_loss_kpa"] == 0.0
     assert out["friction_factor"] is None
-    assert out["flowing_kpa"] == out["static_kpa"]
+    assert out["flowing_top_kpa"] == out["static_top_kpa"]
 
 
 def test_tank_level_valve_has_no_static_margin_limit() -> None:
-    result = run("water-line", vary(WATER, drop_m=0.0, flow_lpm=0.0))
+    result = run("water-line", vary(WATER, drop_m=0.0, top_head_m=0.0, flow_lpm=0.0))
     assert result.verdict == "fail"  # no head at all: the nozzles get nothing
     assert result.governing == "nozzle_pressure"
 
@@ -173,10 +187,55 @@ def test_more_flow_never_lowers_friction_loss(q1: float, q2: float, d: float, e:
 @given(h1=st.floats(0.0, 300.0), h2=st.floats(0.0, 300.0))
 def test_deeper_valve_never_lowers_static_pressure(h1: float, h2: float) -> None:
     low, high = sorted((h1, h2))
-    assert water(drop_m=high)["static_kpa"] >= water(drop_m=low)["static_kpa"]  # type: ignore[operator]
+    higher = water(drop_m=high, top_head_m=0.0)["static_foot_kpa"]
+    lower = water(drop_m=low, top_head_m=0.0)["static_foot_kpa"]
+    assert higher >= lower  # type: ignore[operator]
 
 
 @given(re=st.floats(4000.0, 1e8), rr=st.floats(0.0, 0.05))
 def test_colebrook_against_fluids_everywhere(re: float, rr: float) -> None:
     """fluids.friction.Colebrook across the turbulent range."""
     assert colebrook(re, rr) == pytest.approx(fluids.friction.Colebrook(re, rr), rel=1e-10)
+
+
+def test_the_nozzles_are_checked_at_the_top_of_the_drop() -> None:
+    """A roof tank 3 m above the valve at the top of an 80 m drop gives about 29 kPa there
+    (ρ·g·h, hydrostatics): the nozzles' 150 kPa fails, though the foot has 780 kPa."""
+    result = run("water-line", vary(WATER, drop_m=80.0, top_head_m=3.0))
+    assert result.governing == "nozzle_pressure"
+    assert result.verdict == "fail"
+    assert result.reason.startswith("At the top of the drop the nozzles would get about")
+
+
+def test_the_surge_of_a_fast_valve_counts_at_the_foot() -> None:
+    """Joukowsky Δp = ρ·a·v (from memory, pressure surge in pipes) for a valve that shuts
+    within the wave's round trip 2L/a; slower closure gives Δp·(2L/a)/t_c."""
+    fast = run("water-line", vary(WATER, valve_closure_s=0.1)).outputs
+    rho, v = fast["water_density_kgm3"], fast["velocity_ms"]
+    assert isinstance(rho, float) and isinstance(v, float)
+    assert fast["surge_kpa"] == pytest.approx(rho * 300.0 * v / 1000, rel=1e-12)
+    slow = run("water-line", vary(WATER, valve_closure_s=3.0)).outputs
+    assert slow["surge_kpa"] == pytest.approx(rho * 300.0 * v / 1000 * (90.0 / 300.0) / 3.0)
+    assert fast["peak_foot_kpa"] == pytest.approx(fast["static_foot_kpa"] + fast["surge_kpa"])  # type: ignore[operator]
+
+
+def test_a_surge_over_the_rating_fails_the_hose() -> None:
+    result = run(
+        "water-line",
+        vary(
+            WATER, drop_m=70.0, top_head_m=2.0, supply_kpa=250.0, flow_lpm=8.0, valve_closure_s=0.1
+        ),
+    )
+    static = result.outputs["static_foot_kpa"]
+    assert isinstance(static, float) and static < 1000.0
+    assert result.governing == "hose_rating"
+    assert result.verdict == "fail"
+
+
+def test_fittings_lose_k_velocity_heads() -> None:
+    """Minor losses Δp = K·ρ·v²/2 (Crane Technical Paper 410, resistance coefficients; from
+    memory)."""
+    out = water(fittings_k=6.0)
+    rho, v = out["water_density_kgm3"], out["velocity_ms"]
+    assert isinstance(rho, float) and isinstance(v, float)
+    assert out["fittings_loss_kpa"] == pytest.approx(6.0 * rho * v * v / 2 / 1000, rel=1e-12)
