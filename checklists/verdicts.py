@@ -9,7 +9,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
-from checklists.units import UnitMismatch, to_unit
+from checklists.units import BeyondRange, UnitMismatch, to_unit
 from compliance.engineering.decay import schedule_problems
 from compliance.engineering.working import num, whole_pct
 
@@ -336,6 +336,8 @@ def evaluate(
                 raise EntryError(f"{path}.unit", "A unit is a text.")
             try:
                 number_si = to_unit(number, given, item["unit"])
+            except BeyondRange as exc:
+                raise EntryError(f"{path}.value", str(exc)) from None
             except UnitMismatch as exc:
                 raise EntryError(f"{path}.unit", str(exc)) from None
             readings[key] = number_si

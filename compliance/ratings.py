@@ -5,6 +5,7 @@ limit from "the hose's pressure rating" without each kind needing its own table.
 """
 
 import math
+import sys
 from dataclasses import dataclass
 from typing import Any
 
@@ -68,6 +69,8 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
 }
 
 EQUIPMENT_KINDS = tuple(EQUIPMENT_RATINGS)
+MAX_FINITE = sys.float_info.max
+"""An integer beyond this has no float value (JSON may carry 10**400)."""
 ESTOP_LOCATIONS = ("roof", "remote", "robot")
 
 
@@ -97,6 +100,8 @@ def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:
             continue
         if isinstance(value, bool) or not isinstance(value, int | float):
             errors[field] = "Must be a number."
+        elif isinstance(value, int) and abs(value) > MAX_FINITE:
+            errors[field] = "Must be a finite number."
         elif not math.isfinite(value):
             errors[field] = "Must be a finite number."
         elif rating.positive and value <= 0:

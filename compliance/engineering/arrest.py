@@ -20,7 +20,7 @@ import math
 from collections.abc import Mapping
 from dataclasses import dataclass
 
-from .calculation import Calculation
+from .calculation import Calculation, OutOfRange, build_result
 from .constants import M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3, G
 from .inputs import AtMostFractionOf, ExactlyOne, Inputs, Together, number
 from .result import CalcResult, Check, OutputValue
@@ -128,8 +128,13 @@ RULES = (
 
 
 def peak_force_n(*, weight_n: float, stiffness_n_per_m: float, free_fall_m: float) -> float:
-    """Peak line force of a linear-elastic arrest, from the energy balance."""
-    return weight_n + math.sqrt(weight_n**2 + 2.0 * weight_n * stiffness_n_per_m * free_fall_m)
+    """Peak line force of a linear-elastic arrest, from the energy balance.
+
+    √((m·g)² + 2·m·g·k·h) is written √(m·g)·√(m·g + 2·k·h), so a huge weight gives an infinite
+    force (caught as out of range) rather than an overflow error."""
+    return weight_n + math.sqrt(weight_n) * math.sqrt(
+        weight_n + 2.0 * stiffness_n_per_m * free_fall_m
+    )
 
 
 @dataclass(frozen=True)
@@ -162,6 +167,8 @@ def arrest_at(
     """The peak force, stretch and absorber pay-out of a fall caught on `length_m` of line."""
     weight_n = mass_kg * G
     k = ea_n / length_m
+    if k == 0.0:
+        raise OutOfRange("line_stiffness_kn_per_m", k)
     force_n = peak_force_n(weight_n=weight_n, stiffness_n_per_m=k, free_fall_m=free_fall_m)
     deployment_m = 0.0
     bottoms_out = False
@@ -355,7 +362,7 @@ def compute(values: Inputs) -> CalcResult:
                 ),
             )
         )
-    return CalcResult.build(
+    return build_result(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )
 

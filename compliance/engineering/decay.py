@@ -20,7 +20,7 @@ import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
-from .calculation import Calculation
+from .calculation import Calculation, build_result
 from .constants import ATMOSPHERE_KPA, MBAR_PER_KPA, S_PER_MIN
 from .inputs import AtMostFractionOf, Inputs, number, series
 from .result import CalcResult, Check, OutputValue
@@ -274,7 +274,7 @@ def compute(values: Inputs) -> CalcResult:
                 + ". Start the test again.",
             )
         )
-        return CalcResult.build(
+        return build_result(
             name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
         )
     steps.append(
@@ -431,7 +431,7 @@ def compute(values: Inputs) -> CalcResult:
                 ),
             )
         )
-    return CalcResult.build(
+    return build_result(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )
 

@@ -15,7 +15,7 @@ import math
 from collections.abc import Mapping
 from typing import Final
 
-from .calculation import Calculation
+from .calculation import Calculation, build_result
 from .constants import AIR_DENSITY_KGM3
 from .inputs import AtMostWhen, Inputs, OnlyWhen, Together, choice, number
 from .result import CalcResult, Check, OutputValue, ratio_margin
@@ -301,7 +301,7 @@ def compute(values: Inputs) -> CalcResult:
             ),
         )
     ]
-    return CalcResult.build(
+    return build_result(
         name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
     )
 

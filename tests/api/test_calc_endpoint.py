@@ -32,6 +32,7 @@ def test_api_and_command_agree_with_the_library(job, capsys):
         "margin",
         "governing",
         "steps",
+        "reason",
         "caution",
     }
     assert body["steps"] and "licensed engineer" in body["caution"]

@@ -308,3 +308,11 @@ def test_an_absorber_weaker_than_the_weight_cannot_stop_the_fall() -> None:
     result = run("arrest-load", vary(RIG, absorber_arrest_force_kn=0.5, absorber_deployment_m=2.0))
     assert result.verdict == "fail"
     assert result.governing == "absorber"
+
+
+def test_a_huge_mass_fails_on_the_anchor_instead_of_overflowing() -> None:
+    """(m·g)² overflowed for m = 1.1e279 kg before; written as √(m·g)·√(m·g + 2·k·h) it stays
+    finite, and the verdict is the plain one: the anchor cannot hold it."""
+    result = run("arrest-load", vary(RIG, mass_kg=1.1e279))
+    assert result.verdict == "fail"
+    assert result.governing == "anchor"

@@ -1,7 +1,8 @@
 /** arrest-load: the peak force on the safety line and its anchor if the grip fails. Port of arrest.py. */
 import { G, M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3 } from "./constants";
-import { calculation, number, type Inputs, type Rule } from "./inputs";
-import { build, check, type CalcResult, type Check, type OutputValue } from "./result";
+import { OutOfRange } from "./errors";
+import { buildResult, calculation, number, type Inputs, type Rule } from "./inputs";
+import { check, type CalcResult, type Check, type OutputValue } from "./result";
 import { num } from "./working";
 
 const NAME = "arrest-load";
@@ -43,7 +44,7 @@ const RULES: Rule[] = [
 
 /** Peak line force of a linear-elastic arrest, from the energy balance. */
 export function peakForceN(weightN: number, stiffnessNPerM: number, freeFallM: number): number {
-  return weightN + Math.sqrt(weightN ** 2 + 2 * weightN * stiffnessNPerM * freeFallM);
+  return weightN + Math.sqrt(weightN) * Math.sqrt(weightN + 2 * stiffnessNPerM * freeFallM);
 }
 
 interface Arrest {
@@ -60,6 +61,7 @@ interface Arrest {
 function arrestAt(where: string, lengthM: number, massKg: number, eaN: number, fallM: number, absorberN: number | null): Arrest {
   const weightN = massKg * G;
   const k = eaN / lengthM;
+  if (k === 0) throw new OutOfRange("line_stiffness_kn_per_m", num(k));
   let forceN = peakForceN(weightN, k, fallM);
   let deploymentM = 0;
   let bottomsOut = false;
@@ -208,7 +210,7 @@ function compute(values: Inputs): CalcResult {
       }),
     );
   }
-  return build({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
+  return buildResult({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
 }
 
 export const ARREST_LOAD = calculation(NAME, "Fall arrest load", FIELDS, RULES, compute);

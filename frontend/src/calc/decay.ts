@@ -1,7 +1,7 @@
 /** vacuum-decay: with the pump isolated, how long does the grip last? Port of decay.py. */
 import { ATMOSPHERE_KPA, MBAR_PER_KPA, S_PER_MIN } from "./constants";
-import { calculation, number, series, type Inputs, type Rule } from "./inputs";
-import { build, check, type CalcResult, type Check, type OutputValue } from "./result";
+import { buildResult, calculation, number, series, type Inputs, type Rule } from "./inputs";
+import { check, type CalcResult, type Check, type OutputValue } from "./result";
 import { num } from "./working";
 
 const NAME = "vacuum-decay";
@@ -161,7 +161,7 @@ function compute(values: Inputs): CalcResult {
         reason: `The decay test did not keep its schedule: ${problems.join("; ")}. Start the test again.`,
       }),
     );
-    return build({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
+    return buildResult({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
   }
   steps.push(
     `schedule kept: ${times.length} readings over ${num(durationS)} s, one every ${num(intervalS)} s` +
@@ -297,7 +297,7 @@ function compute(values: Inputs): CalcResult {
       }),
     );
   }
-  return build({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
+  return buildResult({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
 }
 
 export const VACUUM_DECAY = calculation(NAME, "Vacuum decay test", FIELDS, RULES, compute);

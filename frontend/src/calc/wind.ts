@@ -1,7 +1,7 @@
 /** wind-at-height: from a roof reading to the mean and gust at working height. Port of wind.py. */
 import { AIR_DENSITY_KGM3 } from "./constants";
-import { calculation, choice, number, type Inputs, type Rule } from "./inputs";
-import { build, check, ratioMargin, type CalcResult } from "./result";
+import { buildResult, calculation, choice, number, type Inputs, type Rule } from "./inputs";
+import { check, ratioMargin, type CalcResult } from "./result";
 import { num } from "./working";
 
 const NAME = "wind-at-height";
@@ -156,7 +156,7 @@ function compute(values: Inputs): CalcResult {
     measuredAtHeight !== null && measuredAtHeight >= derivedGustMs
       ? "the gust measured on the anemometer"
       : "the mean wind's gusts";
-  return build({
+  return buildResult({
     name: NAME,
     inputs: values.asDict(),
     outputs: {
