@@ -100,9 +100,7 @@ def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:
             continue
         if isinstance(value, bool) or not isinstance(value, int | float):
             errors[field] = "Must be a number."
-        elif isinstance(value, int) and abs(value) > MAX_FINITE:
-            errors[field] = "Must be a finite number."
-        elif not math.isfinite(value):
+        elif (isinstance(value, int) and abs(value) > MAX_FINITE) or not math.isfinite(value):
             errors[field] = "Must be a finite number."
         elif rating.positive and value <= 0:
             errors[field] = "Must be greater than zero."
