@@ -96,7 +96,14 @@ def resolve(
             raise MissingSource(f"output {ref!r} is not available") from None
     namespace = context.get(kind)
     if namespace is None or namespace.get(ref) is None:
-        raise MissingSource(f"{kind} has no {ref!r} recorded")
+        what = ref.replace("_", " ")
+        if kind == "profile":
+            raise MissingSource(f"the site's profile has no {what}")
+        if kind in ("drop", "anchor"):
+            raise MissingSource(f"the {kind} has no {what} recorded")
+        raise MissingSource(
+            f"the {kind.replace('_', ' ')}'s register entry has no {what} ({ref}) recorded"
+        )
     value = namespace[ref]
     if kind == "profile" and isinstance(value, Mapping):
         return value["value"]

@@ -41,11 +41,13 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
             non_negative=True,
         ),
         Rating("valve_closure_s", "time the water valve takes to close, s", required=False),
+        Rating("rated_load_kg", "maker's rated suspended load, kg", required=False),
     ),
     "tether": (
         Rating("mbs_kn", "minimum breaking strength, kN"),
         Rating("wll_kn", "working load limit, kN"),
         Rating("ea_kn", "axial stiffness EA, kN"),
+        Rating("diameter_mm", "diameter, mm", required=False),
         Rating("kg_per_m", "self-weight, kg/m"),
         Rating("length_m", "length, m"),
         Rating("retire_after_years", "retire after, years", required=False),

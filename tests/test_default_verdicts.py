@@ -232,3 +232,29 @@ def test_a_roof_tank_without_a_pump_cannot_feed_the_nozzles_at_the_top(today):
     assert line.verdict == "fail"
     assert line.working["governing"] == "nozzle_pressure"
     assert line.message.startswith("At the top of the drop the nozzles would get about")
+
+
+def test_demo_tether_carries_the_dynamic_load_and_the_wind(today):
+    mass = _equipment_sheet(today, "tether-pre-use")["suspended_mass"]
+    assert mass.verdict == "pass"
+    assert mass.working["inputs"]["rated_load_kg"] == 200.0  # the robot's rating
+    assert mass.working["inputs"]["wind_ms"] == 14.0  # the profile's stop-work gust
+    assert mass.value["tether_tension_kn"] > mass.value["total_kg"] * 9.80665 / 1000
+
+
+def test_a_robot_with_no_rated_load_recorded_is_not_cleared(today):
+    """The profile's 250 kg placeholder acted as a real limit; now a rig with no maker's rated
+    load in its register entry fails the check, and the job is held."""
+    from compliance.models import Equipment
+
+    job = today[0]
+    robot = job.drops.first().robot
+    ratings = dict(robot.ratings)
+    ratings.pop("rated_load_kg")
+    Equipment.objects.filter(pk=robot.pk).update(ratings=ratings)
+    mass = _equipment_sheet(today, "tether-pre-use")["suspended_mass"]
+    assert mass.verdict == "fail"
+    assert mass.message == (
+        "Cannot compute: the robot's register entry has no rated load kg (rated_load_kg) recorded."
+    )
+    assert Hold.objects.filter(job=job, item_key="suspended_mass", clearance__isnull=True).exists()

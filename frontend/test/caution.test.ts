@@ -129,31 +129,28 @@ describe("the forecast wind carried to height", () => {
 
 describe("a failed calculation without a reason", () => {
   const items: ChecklistItem[] = [
-    { key: "robot", kind: "reading", label: "Robot mass", reason: "Weighed.", blocking: false, unit: "kg" },
+    { key: "area", kind: "reading", label: "Facade area", reason: "Measured.", blocking: false, unit: "m²" },
     {
-      key: "mass", kind: "calc", label: "Suspended mass", reason: "Within the limit.", blocking: true, calc: "suspended-mass",
-      inputs: {
-        robot_kg: { reading: "robot" }, hose_length_m: { value: 0 }, hose_id_mm: { value: 25 }, hose_kg_per_m: { value: 0 },
-        line_length_m: { value: 0 }, line_kg_per_m: { value: 0 }, mass_limit_kg: { value: 100 }, tether_wll_kn: { value: 100 },
-      },
+      key: "water", kind: "calc", label: "Water for the day", reason: "Within the supply.", blocking: true, calc: "water-use",
+      inputs: { area_m2: { reading: "area" }, litres_per_m2: { value: 1 }, rate_m2_per_h: { value: 100 }, supply_l: { value: 100 } },
     },
   ];
-  const massAt = (kg: string) => {
+  const waterAt = (m2: string) => {
     const draft = emptyDraft();
-    draft.readings = { robot: kg };
-    return evaluateDraft(items, draft, {}).find((v) => v.item.key === "mass")!;
+    draft.readings = { area: m2 };
+    return evaluateDraft(items, draft, {}).find((v) => v.item.key === "water")!;
   };
 
   it("words a failing margin just under nought as -1 %, never +0 %", () => {
-    const view = massAt("100.3"); // margin 100 / 100.3 - 1 = -0.3 %
+    const view = waterAt("100.3"); // margin 100 / 100.3 - 1 = -0.3 %
     expect(view.verdict).toBe("fail");
     expect(view.margin).toBeCloseTo(-0.00299, 5);
     expect(view.calc!.reason).toBe("");
-    expect(view.message).toBe("Fails its mass limit check (margin -1 %).");
+    expect(view.message).toBe("Fails its supply check (margin -1 %).");
   });
 
   it("words a larger failing margin rounded down", () => {
-    expect(massAt("125").message).toBe("Fails its mass limit check (margin -20 %).");
+    expect(waterAt("125").message).toBe("Fails its supply check (margin -20 %).");
   });
 });
 

@@ -69,8 +69,11 @@ MASS: dict[str, Any] = {
     "hose_kg_per_m": 0.2,
     "line_length_m": 45.0,
     "line_kg_per_m": 0.08,
-    "mass_limit_kg": 100.0,
+    "rated_load_kg": 100.0,
+    "dynamic_factor": 1.25,
     "tether_wll_kn": 2.0,
+    "tether_diameter_mm": 11.0,
+    "wind_ms": 14.0,
 }
 
 WATER_USE: dict[str, Any] = {

@@ -24,28 +24,49 @@ def test_totals_by_hand() -> None:
     total = 30.0 + water + 9.0 + 3.6
     assert result.outputs["water_kg"] == pytest.approx(water, rel=1e-12)
     assert result.outputs["total_kg"] == pytest.approx(total, rel=1e-12)
-    assert result.outputs["limit_kg"] == 100.0
+    assert result.outputs["rated_load_kg"] == 100.0
     assert result.outputs["margin_kg"] == pytest.approx(100.0 - total, rel=1e-12)
     assert result.verdict == "pass"
-    assert result.governing == "mass_limit"
-    assert result.margin == pytest.approx(100.0 / total - 1, rel=1e-12)
+    assert result.margin == pytest.approx(
+        min(100.0 / total - 1, run_margin_of_tether(total)), rel=1e-12
+    )
     assert result.inputs["water_density_kgm3"] == 998.2
 
 
-def test_tether_wll_as_mass_uses_standard_gravity() -> None:
-    """WLL in kN as a mass: kN / standard gravity → kg (pint)."""
-    out = run("suspended-mass", vary(MASS, tether_wll_kn=0.4)).outputs
-    expected = (0.4 * ureg.kN / ureg.standard_gravity).to("kg").magnitude
-    assert out["tether_wll_kg"] == pytest.approx(expected, rel=1e-12)
-    assert out["limit_kg"] == pytest.approx(expected, rel=1e-12)
+def run_margin_of_tether(total_kg: float) -> float:
+    """WLL / √((DF·m·g)² + (½·ρ·v²·Cd·d·L)²) - 1: drag equation (ISA density 1.225 kg/m³,
+    Cd 1.2 for a circular cylinder across the flow, from memory: Hoerner, Fluid-Dynamic Drag)."""
+    drag = 0.5 * 1.225 * 14.0**2 * 1.2 * 0.011 * 45.0
+    return 2000.0 / math.hypot(1.25 * total_kg * 9.80665, drag) - 1
+
+
+def test_the_dynamic_factor_and_the_wind_load_the_tether() -> None:
+    """Units with pint: kg × standard gravity → N; the drag adds across the weight."""
+    out = run("suspended-mass", MASS).outputs
+    total = out["total_kg"]
+    assert isinstance(total, float)
+    weight = (total * ureg.kg * ureg.standard_gravity).to("kN").magnitude
+    assert out["dynamic_load_kn"] == pytest.approx(1.25 * weight, rel=1e-12)
+    drag = 0.5 * 1.225 * 14.0**2 * 1.2 * 0.011 * 45.0
+    assert out["tether_wind_n"] == pytest.approx(drag, rel=1e-12)
+    assert out["tether_tension_kn"] == pytest.approx(
+        math.hypot(1.25 * weight, drag / 1000), rel=1e-12
+    )
 
 
 def test_weak_tether_fails_and_governs() -> None:
     result = run("suspended-mass", vary(MASS, tether_wll_kn=0.4))
     assert result.verdict == "fail"
     assert result.governing == "tether_wll"
-    margin_kg = result.outputs["margin_kg"]
-    assert isinstance(margin_kg, float) and margin_kg < 0
+    assert result.reason.startswith("With starts and stops (× 1.25) and a 14 m/s gust")
+
+
+def test_the_maker_rated_load_replaces_the_profile_placeholder() -> None:
+    """The profile's 250 kg placeholder acted as a real limit; the maker's rated load governs."""
+    result = run("suspended-mass", vary(MASS, rated_load_kg=40.0))
+    assert result.verdict == "fail"
+    assert result.governing == "rated_load"
+    assert result.reason.endswith("the maker rates it for 40 kg.")
 
 
 def test_temperature_sets_the_water_density() -> None:
