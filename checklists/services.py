@@ -14,6 +14,7 @@ from django.utils import timezone
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
 from checklists.verdicts import EntryError, SheetOutcome, evaluate
+from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import Anchor, Equipment, Job, JobState, Organisation, User
 from compliance.selectors import drops_of
@@ -191,6 +192,25 @@ def diff_versions(a: ChecklistVersion, b: ChecklistVersion) -> dict[str, Any]:
     }
 
 
+def drop_place(site: Any, anchor: Anchor) -> dict[str, float]:
+    """Where the drop hangs on its facade, from the roof plan and its anchor's position.
+
+    With no usable roof outline the drop is taken to stand at a corner (distance 0), the worst
+    place for wind suction; the depth then does not change the zone, and twice the height is
+    given so that e = min(b, 2h) stays defined.
+    """
+    try:
+        place = facade_position(site.roof_outline or [], (anchor.x_m, anchor.y_m))
+    except (TypeError, ValueError, IndexError):  # an outline that is not a list of [x, y]
+        place = None
+    if place is None:
+        return {"corner_distance_m": 0.0, "building_depth_m": 2.0 * site.height_m}
+    return {
+        "corner_distance_m": place.corner_distance_m,
+        "building_depth_m": place.building_depth_m,
+    }
+
+
 def sheet_context(
     job: Job,
     subject_kind: str,
@@ -226,6 +246,7 @@ def sheet_context(
             "length_m": drop.length_m,
             "height_m": job.site.height_m,
             "terrain": job.site.terrain,
+            **drop_place(job.site, drop.anchor),
         }
     else:
         context["drop"] = {"height_m": job.site.height_m, "terrain": job.site.terrain}

@@ -22,12 +22,15 @@ class Rating:
     text: bool = False
 
 
+OPTIONAL_ZERO: dict[str, bool] = {"required": False, "positive": False, "non_negative": True}
+"""A rating that may be absent, or zero (no offset, no brush), but never negative."""
+
 EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
     "robot": (
         Rating("mass_kg", "mass without water, kg"),
         Rating("cup_diameter_m", "suction cup diameter, m"),
         Rating("cups_engaged", "cups engaged at once"),
-        Rating("friction", "cup-on-glass friction coefficient"),
+        Rating("friction", "cup friction coefficient on wet glass"),
         Rating("projected_area_m2", "area facing the wind, m²"),
         Rating("drag_coefficient", "drag coefficient"),
         Rating("max_wind_ms", "maker's in-service wind limit, m/s"),
@@ -42,6 +45,13 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
         ),
         Rating("valve_closure_s", "time the water valve takes to close, s", required=False),
         Rating("rated_load_kg", "maker's rated suspended load, kg", required=False),
+        Rating("cup_area_ratio", "share of a cup's disc the vacuum acts on", required=False),
+        Rating("cup_rows", "rows of cups, one above the other", required=False),
+        Rating("row_spacing_m", "bottom row of cups to top row, m", **OPTIONAL_ZERO),
+        Rating("com_offset_m", "centre of mass from the glass, m", **OPTIONAL_ZERO),
+        Rating("brush_force_n", "brush drag along the wall, N", **OPTIONAL_ZERO),
+        Rating("brush_push_n", "brush push off the glass, N", **OPTIONAL_ZERO),
+        Rating("side_area_m2", "area facing wind along the wall, m²", **OPTIONAL_ZERO),
     ),
     "tether": (
         Rating("mbs_kn", "minimum breaking strength, kN"),
@@ -66,6 +76,7 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
         Rating("length_m", "length, m"),
         Rating("roughness_mm", "wall roughness, mm"),
         Rating("wave_speed_ms", "pressure wave speed in the filled hose, m/s", required=False),
+        Rating("od_mm", "outside diameter, mm", required=False),
     ),
     "estop": (Rating("location", "where the stop is fitted", positive=False, text=True),),
 }

@@ -81,8 +81,8 @@ def test_alarm_set_below_the_least_holding_vacuum_fails(today):
 
 
 def test_hold_reason_gives_plain_figures(today):
-    """A leak of 1 kPa every 30 s from 50 kPa to a limit of about 20 kPa."""
-    entries, _ = _record(today, decay_series=[[t, 50.0 - t / 6.0] for t in range(0, 181, 30)])
+    """A leak of 2.5 kPa every 30 s from 50 kPa toward a limit of about 21 kPa."""
+    entries, _ = _record(today, decay_series=[[t, 50.0 - t / 12.0] for t in range(0, 181, 30)])
     decay = entries["decay_test"]
     assert decay.verdict == "fail"
     assert decay.message.startswith("With the pump off the grip lasts about ")
@@ -258,3 +258,20 @@ def test_a_robot_with_no_rated_load_recorded_is_not_cleared(today):
         "Cannot compute: the robot's register entry has no rated load kg (rated_load_kg) recorded."
     )
     assert Hold.objects.filter(job=job, item_key="suspended_mass", clearance__isnull=True).exists()
+
+
+def test_the_hold_takes_the_facade_zone_from_the_roof_plan(today):
+    """The demo's North 1 hangs from R1, 2 m from the corner of a 32 m by 24 m roof: zone A."""
+    hold = _record(today)[0]["hold_margin"]
+    assert hold.verdict == "pass"
+    assert hold.working["inputs"]["corner_distance_m"] == 2.0
+    assert hold.working["inputs"]["building_depth_m"] == 24.0
+    assert hold.value["facade_zone"] == "A"
+    assert hold.value["peel_n"] > 0
+
+
+def test_a_strong_wind_near_the_corner_fails_the_hold(today):
+    entries, _ = _record(today, roof_wind=40.0, working_vacuum=30.0)
+    hold = entries["hold_margin"]
+    assert hold.verdict == "fail"
+    assert hold.message.startswith("The cups clamp with about")

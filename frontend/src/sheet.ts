@@ -4,9 +4,10 @@
  * evaluates again on sync; its verdict is the record.
  */
 import { CalcInputError, run, UnknownCalculation, type CalcResult } from "./calc";
+import { facadePosition } from "./calc/site_plan";
 import { num } from "./calc/working";
 import type { Reference } from "./repo";
-import type { ChecklistItem, Entry, JobDetail, Requirement, Source, Threshold, TickValue } from "./types";
+import type { Anchor, ChecklistItem, Entry, JobDetail, Requirement, Site, Source, Threshold, TickValue } from "./types";
 
 export type Context = Record<string, Record<string, unknown>>;
 
@@ -77,11 +78,27 @@ export function buildContext(job: JobDetail, req: Requirement, ref: Reference | 
     }
     const tied = ref?.anchors.find((a) => a.id === (req.anchor ?? drop.safety_anchor));
     context.anchor = { rated_capacity_kn: tied?.certification?.rated_capacity_kn ?? null };
-    context.drop = { length_m: drop.length_m, height_m: site?.height_m ?? null, terrain };
+    const anchor = ref?.anchors.find((a) => a.id === drop.anchor);
+    context.drop = { length_m: drop.length_m, height_m: site?.height_m ?? null, terrain, ...dropPlace(site, anchor) };
   } else {
     context.drop = { height_m: site?.height_m ?? null, terrain };
   }
   return context;
+}
+
+/** Where the drop hangs on its facade; mirrors checklists.services.drop_place. */
+export function dropPlace(site: Site | undefined, anchor: Anchor | undefined): Record<string, number | null> {
+  if (!site || !anchor || anchor.x_m === undefined || anchor.y_m === undefined) {
+    return { corner_distance_m: null, building_depth_m: null };
+  }
+  let place: ReturnType<typeof facadePosition> = null;
+  try {
+    place = facadePosition(site.roof_outline ?? [], [anchor.x_m, anchor.y_m]);
+  } catch {
+    place = null;
+  }
+  if (place === null) return { corner_distance_m: 0, building_depth_m: 2 * site.height_m };
+  return { corner_distance_m: place.corner_distance_m, building_depth_m: place.building_depth_m };
 }
 
 class MissingSource extends Error {

@@ -139,6 +139,8 @@ export interface Anchor {
   id: number;
   site: number;
   label: string;
+  x_m?: number;
+  y_m?: number;
   certification: { rated_capacity_kn: number; valid_until: string } | null;
 }
 
@@ -148,6 +150,7 @@ export interface Site {
   height_m: number;
   profile: string;
   terrain?: string;
+  roof_outline?: number[][];
 }
 
 export interface Page<T> {

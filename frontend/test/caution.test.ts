@@ -161,11 +161,11 @@ describe("a failed calculation with a reason", () => {
     draft.ticks = { cup_lips: "pass", release_valves: "pass", low_vacuum_warning: "pass" };
     draft.readings = { working_vacuum: "62", roof_wind: "5.5", low_vacuum_alarm: "45", rescue_reach: "240" };
     draft.series = { decay_series: [[0, 61], [30, 52], [60, 44], [90, 37.5], [120, 31], [150, 25.5], [180, 20.5]] };
-    const robot = { mass_kg: 58, cup_diameter_m: 0.2, cups_engaged: 4, friction: 0.6, projected_area_m2: 0.45, drag_coefficient: 1.2, max_wind_ms: 15 };
-    const decay = evaluateDraft(items, draft, { ...context, robot, drop: { length_m: 146, height_m: 150, terrain: "IV" } })
+    const robot = { mass_kg: 58, cup_diameter_m: 0.2, cups_engaged: 4, friction: 0.6, projected_area_m2: 0.45, drag_coefficient: 1.2, max_wind_ms: 15, water_on_board_kg: 3.5, cup_area_ratio: 0.85, cup_rows: 2, row_spacing_m: 0.5, com_offset_m: 0.15, brush_force_n: 30, brush_push_n: 20, side_area_m2: 0.2 };
+    const decay = evaluateDraft(items, draft, { ...context, robot, hose: { od_mm: 18 }, drop: { length_m: 146, height_m: 150, terrain: "IV", corner_distance_m: 2, building_depth_m: 24 } })
       .find((v) => v.item.key === "decay_test")!;
     expect(decay.verdict).toBe("fail");
-    expect(decay.calc!.reason).toBe("With the pump off the grip lasts about 15 s; 300 s are needed.");
+    expect(decay.calc!.reason).toBe("The vacuum fell to 20.5 kPa during the test, below the 20.82 kPa that holds the robot.");
     expect(decay.message).toBe(decay.calc!.reason);
   });
 });

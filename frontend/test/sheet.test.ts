@@ -5,6 +5,7 @@ import {
   committedDraft,
   describeLimits,
   describeSchedule,
+  dropPlace,
   emptyDraft,
   evaluateDraft,
   ordered,
@@ -38,8 +39,9 @@ const context: Context = {
     decay_min_r2: { value: 0.8 },
     gust_factor: { value: 1.5 },
   },
-  robot: { mass_kg: 58, cup_diameter_m: 0.2, cups_engaged: 4, friction: 0.6, projected_area_m2: 0.45, drag_coefficient: 1.2, max_wind_ms: 15 },
-  drop: { length_m: 146, height_m: 150, terrain: "IV" },
+  robot: { mass_kg: 58, cup_diameter_m: 0.2, cups_engaged: 4, friction: 0.6, projected_area_m2: 0.45, drag_coefficient: 1.2, max_wind_ms: 15, water_on_board_kg: 3.5, cup_area_ratio: 0.85, cup_rows: 2, row_spacing_m: 0.5, com_offset_m: 0.15, brush_force_n: 30, brush_push_n: 20, side_area_m2: 0.2 },
+  drop: { length_m: 146, height_m: 150, terrain: "IV", corner_distance_m: 2, building_depth_m: 24 },
+  hose: { id_mm: 12, od_mm: 18 },
 };
 
 describe("parseDecimal", () => {
@@ -265,5 +267,18 @@ describe("a decay test's schedule", () => {
     expect(sampleTime(11_349.9)).toBe(11.3);
     expect(sampleTime(11_350)).toBe(11.4);
     expect(sampleTime(0)).toBe(0);
+  });
+});
+
+describe("where a drop hangs on its facade", () => {
+  it("measures from the roof plan's nearest edge and its nearer corner", () => {
+    const site = { id: 1, name: "S", height_m: 150, profile: "generic", roof_outline: [[0, 0], [32, 0], [32, 24], [0, 24]] };
+    const place = dropPlace(site, { id: 1, site: 1, label: "R1", x_m: 2, y_m: 0.8, certification: null });
+    expect(place).toEqual({ corner_distance_m: 2, building_depth_m: 24 });
+  });
+  it("takes a drop with no roof plan to stand at a corner, the worst place", () => {
+    const site = { id: 1, name: "S", height_m: 40, profile: "generic", roof_outline: [] };
+    const place = dropPlace(site, { id: 1, site: 1, label: "R1", x_m: 2, y_m: 0.8, certification: null });
+    expect(place).toEqual({ corner_distance_m: 0, building_depth_m: 80 });
   });
 });

@@ -7,10 +7,21 @@ from typing import Any
 SUCTION: dict[str, Any] = {
     "vacuum_kpa": 21.0,
     "cup_diameter_m": 0.12,
+    "effective_area_ratio": 1.0,
     "cups": 4,
-    "friction": 0.5,
+    "cup_rows": 1,
+    "row_spacing_m": 0.0,
+    "wet_glass_friction": 0.5,
     "mass_kg": 20.0,
+    "com_offset_m": 0.0,
     "process_force_n": 30.0,
+    "peak_pressure_pa": 0.0,
+    "face_area_m2": 0.3,
+    "side_area_m2": 0.1,
+    "drag_coefficient": 1.2,
+    "corner_distance_m": 10.0,
+    "building_height_m": 40.0,
+    "safety_factor": 2.0,
 }
 
 DECAY: dict[str, Any] = {

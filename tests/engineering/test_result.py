@@ -37,6 +37,8 @@ UNIT_SUFFIXES = (
     "_kn_per_m",
 )
 DIMENSIONLESS = {
+    "facade_zone",
+    "cpe",
     "turbulence_intensity",
     "gust_factor",
     "governing_position",
@@ -114,8 +116,8 @@ def test_output_keys_carry_their_unit(calc: str) -> None:
 
 def test_inputs_are_normalised_with_defaults() -> None:
     result = run("suction-hold", BY_NAME["suction-hold"])
-    assert result.inputs["wind_outward_n"] == 0.0
-    assert result.inputs["effective_area_ratio"] == 1.0
+    assert result.inputs["brush_push_n"] == 0.0
+    assert result.inputs["hose_od_mm"] == 0.0
     assert result.to_dict()["inputs"]["vacuum_kpa"] == 21.0  # type: ignore[index]
 
 
