@@ -29,7 +29,8 @@ NAME = "water-line"
 
 LAMINAR_BELOW_RE: Final = 2300.0
 TURBULENT_FROM_RE: Final = 4000.0
-"""Transitional band 2300-4000: common practice, from memory (pipe-flow textbooks)."""
+"""Transitional band 2300-4000: common practice, from memory (e.g. White, Fluid Mechanics, on
+the transition in pipe flow)."""
 
 
 def colebrook(reynolds: float, relative_roughness: float) -> float:

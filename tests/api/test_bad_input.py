@@ -20,6 +20,7 @@ from compliance.models import (
 )
 from compliance.selectors import job_requirements
 from tests.conftest import PASSING, client_for
+from tests.engineering.examples import SUCTION
 from tests.factories import published_checklist, tick
 from tests.factories import reading as reading_item
 
@@ -422,7 +423,7 @@ def test_json_nested_too_deeply_is_a_400(job, operator, name):
     ("field", "value"), [("vacuum_kpa", HUGE), ("cups", HUGE), ("mass_kg", "-" + HUGE)]
 )
 def test_calc_endpoint_refuses_an_integer_beyond_a_float(job, operator, field, value):
-    inputs = {"vacuum_kpa": 21.0, "cup_diameter_m": 0.12, "cups": 4, "friction": 0.5, "mass_kg": 20}
+    inputs = dict(SUCTION)
     text = json.dumps({**inputs, field: 123456.5}).replace("123456.5", value)
     response = client_for(operator).post(
         reverse("calc", args=["suction-hold"]), text, content_type="application/json"

@@ -9,11 +9,12 @@ from django.urls import reverse
 
 from compliance.engineering import run
 from tests.conftest import client_for
+from tests.engineering.examples import SUCTION
 from tests.factories import UserFactory
 
 pytestmark = pytest.mark.django_db
 
-HOLD = {"vacuum_kpa": 60, "cup_diameter_m": 0.2, "cups": 4, "friction": 0.6, "mass_kg": 60}
+HOLD = {**SUCTION, "vacuum_kpa": 60, "cup_diameter_m": 0.2, "mass_kg": 60}
 
 
 def test_api_and_command_agree_with_the_library(job, capsys):

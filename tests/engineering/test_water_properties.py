@@ -41,8 +41,9 @@ def test_viscosity_against_iapws(temp_c: float) -> None:
     assert viscosity_pas(temp_c) == pytest.approx(reference, rel=VISCOSITY_REL_TOL)
 
 
-def test_textbook_values_at_20_c() -> None:
-    """About 998.2 kg/m³ and 1.0016 mPa·s at 20 °C and 1 atm (IAPWS, via REFERENCES.md)."""
+def test_iapws_values_at_20_c() -> None:
+    """About 998.2 kg/m³ and 1.0016 mPa·s at 20 °C and 1 atm (IAPWS-95 density and the IAPWS
+    2008 viscosity formulation, as the `iapws` package computes them)."""
     assert density_kgm3(20.0) == pytest.approx(998.2, abs=0.01)
     assert viscosity_pas(20.0) == pytest.approx(1.0016e-3, rel=1e-3)
 

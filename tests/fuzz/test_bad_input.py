@@ -22,6 +22,7 @@ from compliance.daily_records import day_content
 from compliance.models import AnchorCertification, Equipment, Job
 from compliance.selectors import job_requirements
 from tests.conftest import PASSING, client_for
+from tests.engineering.examples import SUCTION
 
 pytestmark = pytest.mark.django_db
 
@@ -80,14 +81,7 @@ ENDPOINTS = {
     ),
     "calc": Endpoint(
         lambda rig: reverse("calc", args=["suction-hold"]),
-        lambda rig: {
-            "vacuum_kpa": 60.0,
-            "cup_diameter_m": 0.12,
-            "cups": 4,
-            "friction": 0.6,
-            "mass_kg": 60.0,
-            "safety_factor": 2.0,
-        },
+        lambda rig: {**SUCTION, "vacuum_kpa": 60.0, "mass_kg": 60.0},
     ),
     "equipment": Endpoint(
         lambda rig: reverse("equipment-list"),

@@ -31,7 +31,7 @@ def failed(report):
 
 
 def test_published_hash_vectors():
-    # FIPS 180-4 / NIST example values, recalled from memory (REFERENCES.md): SHA-256("abc")
+    # FIPS 180-4 / NIST's published SHA-256 examples (from memory): SHA-256("abc")
     assert hashlib.sha256(b"abc").hexdigest() == (
         "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
     )
