@@ -4,6 +4,8 @@ Each case records a sheet against the published default checklist on the demo's 
 and reads the verdicts the server stored, the record.
 """
 
+import json
+
 import pytest
 
 from checklists.models import CheckSheet
@@ -19,33 +21,36 @@ GOOD = [[t, 62.0 - t / 75.0] for t in range(0, 181, 30)]
 
 
 @pytest.fixture
-def today(tmp_path, settings):
-    import json
-
+def today(tmp_path, settings) -> Job:
     settings.MEDIA_ROOT = tmp_path
     org = load_demo()
-    job = Job.objects.filter(organisation=org).order_by("-date").first()
-    readings = json.loads(scenario_path().read_text())["readings"]["vacuum-hold"]
+    return Job.objects.filter(organisation=org).order_by("-date").first()
+
+
+def _fill(job: Job, key: str, **changes):
+    """Record the demo's readings for checklist `key` (with `changes`) on its first subject;
+    return the stored entries by item key, and the sheet."""
     version = next(
         v
-        for vs in current_versions(org.pk).values()
+        for vs in current_versions(job.organisation_id).values()
         for v in vs
-        if v.checklist.key == "vacuum-hold"
+        if v.checklist.key == key
     )
-    req = next(r for r in job_requirements(job) if r.checklist_key == "vacuum-hold")
-    return job, version, req.subject.equipment, readings
-
-
-def _record(today, **changes):
-    job, version, robot, readings = today
+    req = next(r for r in job_requirements(job) if r.checklist_key == key)
+    readings = json.loads(scenario_path().read_text())["readings"].get(key, {})
     sheet, _ = record_sheet(
         job=job,
         version=version,
         by=job.supervisor,
         entries=_entries(version.items, {**readings, **changes}),
-        equipment=robot,
+        anchor=req.subject.anchor,
+        equipment=req.subject.equipment,
     )
     return {e.item_key: e for e in sheet.entries.all()}, sheet
+
+
+def _record(job: Job, **changes):
+    return _fill(job, "vacuum-hold", **changes)
 
 
 def test_demo_readings_clear_the_vacuum_test(today):
@@ -99,33 +104,11 @@ def test_a_series_short_of_readings_fails_rather_than_refusing_the_sheet(today):
 def test_good_series_is_recorded(today):
     entries, _ = _record(today, decay_series=GOOD)
     assert entries["decay_series"].verdict == "recorded"
-    assert Equipment.objects.filter(pk=today[2].pk).exists()
-
-
-def _safety_line(today, **changes):
-    import json
-
-    job, _, _, _ = today
-    version = next(
-        v
-        for vs in current_versions(job.organisation_id).values()
-        for v in vs
-        if v.checklist.key == "safety-line-pre-use"
-    )
-    req = next(r for r in job_requirements(job) if r.checklist_key == "safety-line-pre-use")
-    readings = json.loads(scenario_path().read_text())["readings"]["safety-line-pre-use"]
-    sheet, _ = record_sheet(
-        job=job,
-        version=version,
-        by=job.supervisor,
-        entries=_entries(version.items, {**readings, **changes}),
-        equipment=req.subject.equipment,
-    )
-    return {e.item_key: e for e in sheet.entries.all()}
+    assert entries["decay_test"].verdict == "pass"
 
 
 def test_demo_safety_line_passes_at_the_top_and_the_foot(today):
-    arrest = _safety_line(today)["arrest"]
+    arrest = _fill(today, "safety-line-pre-use")[0]["arrest"]
     assert arrest.verdict == "pass"
     out = arrest.value
     assert out["governing_position"] == "top of the drop"
@@ -136,40 +119,20 @@ def test_demo_safety_line_passes_at_the_top_and_the_foot(today):
 
 def test_a_shorter_line_at_the_top_stops_work_in_words(today):
     """The anchor and line pass at the full 146 m; 1 m of line at the top overloads them."""
-    arrest = _safety_line(today, line_at_top=1.0)["arrest"]
+    arrest = _fill(today, "safety-line-pre-use", line_at_top=1.0)[0]["arrest"]
     assert arrest.verdict == "fail"
     assert arrest.message.startswith("A fall at the top of the drop would load the")
 
 
 def test_too_little_clearance_below_stops_work(today):
-    arrest = _safety_line(today, clearance_below=0.3)["arrest"]
+    arrest = _fill(today, "safety-line-pre-use", clearance_below=0.3)[0]["arrest"]
     assert arrest.verdict == "fail"
     assert arrest.working["governing"] == "clearance"
 
 
-def _site_sheet(today, key, **changes):
-    import json
-
-    job, _, _, _ = today
-    version = next(
-        v
-        for vs in current_versions(job.organisation_id).values()
-        for v in vs
-        if v.checklist.key == key
-    )
-    readings = json.loads(scenario_path().read_text())["readings"][key]
-    sheet, _ = record_sheet(
-        job=job,
-        version=version,
-        by=job.supervisor,
-        entries=_entries(version.items, {**readings, **changes}),
-    )
-    return {e.item_key: e for e in sheet.entries.all()}
-
-
 def test_a_measured_gust_over_the_limit_stops_work(today):
     """Before, the roof gust reading had no limit: only the mean was compared."""
-    entries = _site_sheet(today, "weather", roof_gust=16.0)
+    entries = _fill(today, "weather", roof_gust=16.0)[0]
     gust = entries["roof_gust"]
     assert gust.verdict == "fail"
     assert gust.message == "16 m/s is above the maximum of 14 m/s."
@@ -177,7 +140,7 @@ def test_a_measured_gust_over_the_limit_stops_work(today):
 
 
 def test_forecast_gusts_come_from_the_terrain_not_a_fixed_factor(today):
-    forecast = _site_sheet(today, "weather")["forecast_at_height"]
+    forecast = _fill(today, "weather")[0]["forecast_at_height"]
     assert forecast.verdict == "pass"
     assert "gust_factor" not in forecast.working["inputs"]
     assert forecast.value["turbulence_intensity"] > 0.0
@@ -196,30 +159,8 @@ def test_a_rescue_slower_than_the_grip_keeps_the_job_from_starting(today):
     ).exists()
 
 
-def _equipment_sheet(today, key, **changes):
-    import json
-
-    job, _, _, _ = today
-    version = next(
-        v
-        for vs in current_versions(job.organisation_id).values()
-        for v in vs
-        if v.checklist.key == key
-    )
-    req = next(r for r in job_requirements(job) if r.checklist_key == key)
-    readings = json.loads(scenario_path().read_text())["readings"][key]
-    sheet, _ = record_sheet(
-        job=job,
-        version=version,
-        by=job.supervisor,
-        entries=_entries(version.items, {**readings, **changes}),
-        equipment=req.subject.equipment,
-    )
-    return {e.item_key: e for e in sheet.entries.all()}
-
-
 def test_demo_water_line_passes_top_and_foot(today):
-    line = _equipment_sheet(today, "water-line")["line_pressure"]
+    line = _fill(today, "water-line")[0]["line_pressure"]
     assert line.verdict == "pass"
     assert line.value["surge_kpa"] > 0
     assert line.working["inputs"]["wave_speed_ms"] == 250.0  # the hose's rating
@@ -228,14 +169,14 @@ def test_demo_water_line_passes_top_and_foot(today):
 
 def test_a_roof_tank_without_a_pump_cannot_feed_the_nozzles_at_the_top(today):
     """Before, only the foot of the drop was checked, where the head is greatest."""
-    line = _equipment_sheet(today, "water-line", supply_pressure=0.0, top_head=3.0)["line_pressure"]
+    line = _fill(today, "water-line", supply_pressure=0.0, top_head=3.0)[0]["line_pressure"]
     assert line.verdict == "fail"
     assert line.working["governing"] == "nozzle_pressure"
     assert line.message.startswith("At the top of the drop the nozzles would get about")
 
 
 def test_demo_tether_carries_the_dynamic_load_and_the_wind(today):
-    mass = _equipment_sheet(today, "tether-pre-use")["suspended_mass"]
+    mass = _fill(today, "tether-pre-use")[0]["suspended_mass"]
     assert mass.verdict == "pass"
     assert mass.working["inputs"]["rated_load_kg"] == 200.0  # the robot's rating
     assert mass.working["inputs"]["wind_ms"] == 14.0  # the profile's stop-work gust
@@ -245,14 +186,13 @@ def test_demo_tether_carries_the_dynamic_load_and_the_wind(today):
 def test_a_robot_with_no_rated_load_recorded_is_not_cleared(today):
     """The profile's 250 kg placeholder acted as a real limit; now a rig with no maker's rated
     load in its register entry fails the check, and the job is held."""
-    from compliance.models import Equipment
 
-    job = today[0]
+    job = today
     robot = job.drops.first().robot
     ratings = dict(robot.ratings)
     ratings.pop("rated_load_kg")
     Equipment.objects.filter(pk=robot.pk).update(ratings=ratings)
-    mass = _equipment_sheet(today, "tether-pre-use")["suspended_mass"]
+    mass = _fill(today, "tether-pre-use")[0]["suspended_mass"]
     assert mass.verdict == "fail"
     assert mass.message == (
         "Cannot compute: the robot's register entry has no rated load kg (rated_load_kg) recorded."
