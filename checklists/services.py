@@ -203,7 +203,9 @@ def drop_place(site: Any, anchor: Anchor) -> dict[str, float]:
         place = facade_position(site.roof_outline or [], (anchor.x_m, anchor.y_m))
     except (TypeError, ValueError, IndexError):  # an outline that is not a list of [x, y]
         place = None
-    if place is None:
+    if place is None or not place.building_depth_m > 0.0:
+        # An outline whose corners lie on one line (stored before the API refused it) has no
+        # depth to measure from: no plan, as above.
         return {"corner_distance_m": 0.0, "building_depth_m": 2.0 * site.height_m}
     return {
         "corner_distance_m": place.corner_distance_m,

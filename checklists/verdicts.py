@@ -121,6 +121,8 @@ def _series_samples(item: Mapping[str, Any], value: Any, path: str) -> list[list
             raise EntryError(f"{path}.value[{n}]", "Each sample is [seconds, reading].")
         t = _number(pair[0], f"{path}.value[{n}][0]")
         v = _number(pair[1], f"{path}.value[{n}][1]")
+        if t < 0.0:
+            raise EntryError(f"{path}.value[{n}][0]", "Sample times cannot be negative.")
         if samples and t <= samples[-1][0]:
             raise EntryError(f"{path}.value[{n}][0]", "Sample times must increase.")
         samples.append([t, v])
@@ -370,6 +372,20 @@ def evaluate(
             )
         elif kind == "series":
             samples = _series_samples(item, value, path)
+            given = entry.get("unit", item["unit"])
+            if not isinstance(given, str):
+                raise EntryError(f"{path}.unit", "A unit is a text.")
+            series_working: dict[str, Any] = {}
+            if given != item["unit"]:
+                # Readings in another unit of the same quantity (bar for kPa) are kept in the
+                # item's unit, as a single reading is; the unit is never silently ignored.
+                try:
+                    samples = [[t, to_unit(v, given, item["unit"])] for t, v in samples]
+                except BeyondRange as exc:
+                    raise EntryError(f"{path}.value", str(exc)) from None
+                except UnitMismatch as exc:
+                    raise EntryError(f"{path}.unit", str(exc)) from None
+                series_working["as_entered"] = {"value": value, "unit": given}
             readings[key] = samples
             problems = _schedule_problems(item, samples, context, readings, outputs)
             if problems:
@@ -380,11 +396,18 @@ def evaluate(
                         value=samples,
                         unit=item["unit"],
                         message=problems,
+                        working=series_working,
                     )
                 )
             else:
                 results.append(
-                    ItemResult(**base, verdict="recorded", value=samples, unit=item["unit"])
+                    ItemResult(
+                        **base,
+                        verdict="recorded",
+                        value=samples,
+                        unit=item["unit"],
+                        working=series_working,
+                    )
                 )
         elif kind == "photo":
             photos = value if isinstance(value, list) else []

@@ -1,5 +1,6 @@
 """Input parsing and output shapes for the API; no serializer saves domain state itself."""
 
+import math
 from typing import Any
 
 from rest_framework import serializers
@@ -37,6 +38,16 @@ class ProfileSerializer(serializers.ModelSerializer):
         fields = ["key", "name", "thresholds", "cautions", "content_hash"]
 
 
+def _finite_metres(value: Any) -> bool:
+    """A JSON number a float holds (10**400 is not; nor is true or false)."""
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        return False
+    try:
+        return math.isfinite(float(value))
+    except OverflowError:
+        return False
+
+
 class SiteSerializer(StrictInput, serializers.ModelSerializer):
     profile = serializers.SlugRelatedField(
         slug_field="key", queryset=JurisdictionProfile.objects.all()
@@ -54,6 +65,40 @@ class SiteSerializer(StrictInput, serializers.ModelSerializer):
             "terrain",
             "roof_outline",
         ]
+
+    def validate_roof_outline(self, value: Any) -> list[list[float]]:
+        """No plan (an empty list), or a polygon: at least three [x_m, y_m] corners in metres,
+        finite numbers, no corner repeated, not all on one line. The outline places each drop in
+        its facade's wind zone, so a shape that is not a roof is refused rather than measured."""
+        if value in (None, []):
+            return []
+        if not isinstance(value, list) or len(value) < 3:
+            raise serializers.ValidationError(
+                "A roof outline is a list of at least three [x_m, y_m] corners, or empty."
+            )
+        corners: list[tuple[float, float]] = []
+        for n, point in enumerate(value, start=1):
+            if (
+                not isinstance(point, list)
+                or len(point) != 2
+                or not all(_finite_metres(c) for c in point)
+            ):
+                raise serializers.ValidationError(
+                    f"Corner {n} must be [x_m, y_m], two finite numbers in metres."
+                )
+            corner = (float(point[0]), float(point[1]))
+            if corner in corners:
+                raise serializers.ValidationError(f"Corner {n} repeats an earlier corner.")
+            corners.append(corner)
+        twice_area = sum(
+            ax * by - bx * ay
+            for (ax, ay), (bx, by) in zip(corners, corners[1:] + corners[:1], strict=True)
+        )
+        if abs(twice_area) < 1e-6:
+            raise serializers.ValidationError(
+                "The corners lie on one line: the outline encloses no roof."
+            )
+        return value
 
 
 class CertificationSerializer(StrictInput, serializers.ModelSerializer):

@@ -3,6 +3,7 @@
 from typing import Any
 
 from django.contrib.auth import authenticate, login, logout
+from django.db import IntegrityError, transaction
 from django.db.models import Prefetch, Q, QuerySet
 from django.shortcuts import get_object_or_404
 from drf_spectacular.utils import extend_schema, inline_serializer
@@ -226,7 +227,15 @@ class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelView
         return sites_visible_to(self.org_id).select_related("profile").order_by("name")
 
     def perform_create(self, serializer: s.SiteSerializer) -> None:
-        serializer.save(organisation_id=self.org_id)
+        # The name is unique within the organisation, which the serializer does not see: a
+        # second site of one name is the caller's error (400), not the database's (500).
+        try:
+            with transaction.atomic():
+                serializer.save(organisation_id=self.org_id)
+        except IntegrityError:
+            raise serializers.ValidationError(
+                {"name": ["Your organisation already has a site of this name."]}
+            ) from None
 
 
 class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
