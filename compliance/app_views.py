@@ -57,7 +57,7 @@ def verify_page(request: HttpRequest) -> HttpResponse:
         else:
             data = upload.read()
             report = (
-                verify_export(data)
+                verify_export(data, use_database=True)
                 if data[:2] == b"PK"
                 else verify_pdf(data, name=upload.name or "")
             )

@@ -7,6 +7,7 @@ import logging
 import zipfile
 from pathlib import Path
 
+import rfc8785
 from django.core.files.base import ContentFile
 from django.core.files.storage import Storage
 from django.db import IntegrityError, transaction
@@ -14,8 +15,8 @@ from django.db import IntegrityError, transaction
 from checklists.models import Photo
 from compliance.models import DailyRecord, RecordPdf, SigningCredential, Site
 from compliance.record_pdf import render
-from compliance.signing import sha256_hex, sign_pdf
-from compliance.verification import merkle_root
+from compliance.signing import active_credential, sha256_hex, sign_pdf, sign_seal
+from compliance.verification import MANIFEST, MANIFEST_SIGNATURE, merkle_root
 
 logger = logging.getLogger(__name__)
 
@@ -109,7 +110,7 @@ def build_export(site: Site, start: dt.date, end: dt.date) -> bytes:
     """All records of a site-period as signed PDFs plus a manifest that verifies offline."""
     records = list(
         DailyRecord.objects.filter(site=site, job__date__gte=start, job__date__lte=end)
-        .select_related("credential", "site")
+        .select_related("credential", "site", "site__organisation")
         .order_by("sequence")
     )
     buffer = io.BytesIO()
@@ -137,21 +138,40 @@ def build_export(site: Site, start: dt.date, end: dt.date) -> bytes:
                 }
             )
         certs = sorted(
-            {
-                c
-                for c in SigningCredential.objects.filter(
-                    organisation_id=site.organisation_id
+            set(
+                SigningCredential.objects.filter(
+                    organisation_id__in={
+                        site.organisation_id,
+                        *(r.organisation_id for r in records),
+                    }
                 ).values_list("certificate_pem", flat=True)
-            }
+            )
         )
         manifest = {
-            "format": "parapet.export/1",
+            "format": "parapet.export/2",
+            "organisation": {"id": site.organisation_id, "name": site.organisation.name},
             "site": {"id": site.pk, "name": site.name},
             "period": {"start": start.isoformat(), "end": end.isoformat()},
             "records": entries,
             "merkle_root": merkle_root([bytes.fromhex(e["seal"]) for e in entries]),
             "certificates": certs,
-            "how_to_verify": "python manage.py verify-record THIS.zip (no database needed)",
+            "how_to_verify": (
+                "python manage.py verify-record THIS.zip --trust FILE, FILE holding the"
+                " organisation's certificate fingerprints or CA (no database needed)"
+            ),
         }
-        archive.writestr("manifest.json", json.dumps(manifest, indent=2, sort_keys=True))
+        raw = rfc8785.dumps(manifest)
+        credential = active_credential(site.organisation_id)
+        archive.writestr(MANIFEST, raw)
+        archive.writestr(
+            MANIFEST_SIGNATURE,
+            json.dumps(
+                {
+                    "signs": f"SHA-256 of {MANIFEST}, RSA-PSS",
+                    "signature": sign_seal(sha256_hex(raw), credential),
+                    "certificate_pem": credential.certificate_pem,
+                },
+                indent=2,
+            ),
+        )
     return buffer.getvalue()

@@ -32,15 +32,39 @@ class Check:
     detail: str
 
 
+@dataclass(frozen=True)
+class Signer:
+    """Who signed: the certificate's subject and SHA-256 fingerprint, and the organisation the
+    record (or the manifest) names, when known."""
+
+    subject: str
+    fingerprint_sha256: str
+    organisation: str = ""
+
+    def words(self) -> str:
+        org = f"{self.organisation}, " if self.organisation else ""
+        return f"{org}certificate {self.subject} (SHA-256 {self.fingerprint_sha256})"
+
+
 @dataclass
 class Report:
     subject: str
     checks: list[Check] = field(default_factory=list)
     seal: str | None = None
+    signer: Signer | None = None
+    vouched: bool = False
+    """True only when the signer was checked against a trust anchor and found in it."""
+    trust_source: str = ""
+
+    @property
+    def intact(self) -> bool:
+        """Every check that ran passed: the file is what was signed (whoever signed it)."""
+        return bool(self.checks) and all(c.ok for c in self.checks)
 
     @property
     def ok(self) -> bool:
-        return bool(self.checks) and all(c.ok for c in self.checks)
+        """VERIFIED: intact, and signed by a key the trust anchor vouches for."""
+        return self.intact and self.vouched
 
     @property
     def first_failure(self) -> Check | None:
@@ -51,10 +75,19 @@ class Report:
         return ok
 
     def verdict(self) -> str:
+        signed_by = f" Signed by {self.signer.words()}." if self.signer else ""
         if self.ok:
             return (
                 f"VERIFIED: {self.subject} is exactly the record that was signed, and its place "
-                "in the site's chain is intact."
+                f"in the chain is intact.{signed_by} The signer is vouched for by"
+                f" {self.trust_source}."
+            )
+        if self.intact:
+            return (
+                f"INTEGRITY INTACT, SIGNER NOT VOUCHED FOR: {self.subject} has not been changed"
+                f" since it was signed, but no trust anchor was given to say whose key signed"
+                f" it.{signed_by} Supply the organisation's certificate fingerprints or CA"
+                " (--trust FILE), or check it on the Parapet server that holds them."
             )
         failure = self.first_failure
         assert failure is not None
@@ -63,10 +96,92 @@ class Report:
     def as_dict(self) -> dict[str, Any]:
         return {
             "ok": self.ok,
+            "intact": self.intact,
+            "vouched": self.vouched,
             "verdict": self.verdict(),
             "seal": self.seal,
+            "signer": None if self.signer is None else asdict(self.signer),
+            "trust": self.trust_source,
             "checks": [asdict(c) for c in self.checks],
         }
+
+
+@dataclass(frozen=True)
+class TrustList:
+    """A trust anchor: signer certificates known by SHA-256 fingerprint, and CA certificates a
+    signer's certificate may chain to. `source` says where it came from, for the verdict."""
+
+    fingerprints: frozenset[str] = frozenset()
+    roots: tuple[str, ...] = ()
+    source: str = "the trust list given"
+
+    @property
+    def empty(self) -> bool:
+        return not self.fingerprints and not self.roots
+
+    @classmethod
+    def from_pems(cls, pems: list[str], source: str) -> "TrustList":
+        """Certificates given as trusted: each is trusted itself and as a CA."""
+        certs = [c for pem in pems for c in _split_pems(pem)]
+        return cls(
+            fingerprints=frozenset(hashlib.sha256(c.dump()).hexdigest() for c in _certs(certs)),
+            roots=tuple(certs),
+            source=source,
+        )
+
+    @classmethod
+    def from_text(cls, text: str, source: str) -> "TrustList":
+        """A trust file: PEM certificates (a CA bundle or the signers'), or SHA-256 fingerprints
+        one a line (hex, colons allowed, '#' starts a comment)."""
+        if "-----BEGIN CERTIFICATE-----" in text:
+            return cls.from_pems([text], source)
+        prints = set()
+        for line in text.splitlines():
+            value = line.split("#", 1)[0].strip().replace(":", "").lower()
+            if not value:
+                continue
+            if len(value) != 64 or any(ch not in "0123456789abcdef" for ch in value):
+                raise ValueError(f"not a SHA-256 fingerprint: {line.strip()!r}")
+            prints.add(value)
+        return cls(fingerprints=frozenset(prints), source=source)
+
+
+def organisation_trust(organisation_id: int) -> TrustList:
+    """The server's trust anchor for one organisation: its registered signing certificates."""
+    from compliance.models import Organisation, SigningCredential
+
+    pems = list(
+        SigningCredential.objects.filter(organisation_id=organisation_id).values_list(
+            "certificate_pem", flat=True
+        )
+    )
+    name = Organisation.objects.filter(pk=organisation_id).values_list("name", flat=True).first()
+    return TrustList.from_pems(pems, f"the certificates {name or 'the organisation'} registered")
+
+
+def _split_pems(text: str) -> list[str]:
+    marker = "-----END CERTIFICATE-----"
+    return [part.strip() + "\n" + marker + "\n" for part in text.split(marker) if "BEGIN" in part]
+
+
+def check_trust(report: Report, trust: TrustList | None, chain_ok: bool) -> None:
+    """Vouch for the signer when the trust anchor holds its certificate (or its CA)."""
+    if report.signer is None or not report.intact:
+        return
+    if trust is None or trust.empty:
+        report.trust_source = ""
+        return
+    known = report.signer.fingerprint_sha256 in trust.fingerprints or chain_ok
+    if report.add(
+        "signer_vouched",
+        known,
+        f"The signer's certificate is in {trust.source}."
+        if known
+        else f"The signer ({report.signer.words()}) is not in {trust.source}: it may be a"
+        " self-made certificate or another organisation's.",
+    ):
+        report.vouched = True
+        report.trust_source = trust.source
 
 
 def _certs(pems: list[str]) -> list[asn1_x509.Certificate]:
@@ -77,56 +192,51 @@ def _certs(pems: list[str]) -> list[asn1_x509.Certificate]:
     return out
 
 
-def known_certificates() -> list[str]:
-    from compliance.models import SigningCredential
-
-    return list(SigningCredential.objects.values_list("certificate_pem", flat=True))
-
-
-def check_signature(report: Report, data: bytes, trusted_pems: list[str]) -> bool:
+def check_signature(report: Report, data: bytes, roots: tuple[str, ...] = ()) -> tuple[bool, bool]:
+    """Whether the PDF's one signature is intact over the whole file, and whether its certificate
+    chains to one of `roots`; names the signer in the report. Integrity only: who is trusted is
+    decided by `check_trust`."""
     try:
         reader = PdfFileReader(io.BytesIO(data), strict=False)
         signatures = reader.embedded_signatures
     except Exception as exc:
-        return report.add(
-            "pdf_readable", False, f"The file is not a readable PDF ({type(exc).__name__})."
-        )
+        report.add("pdf_readable", False, f"The file is not a readable PDF ({type(exc).__name__}).")
+        return False, False
     report.add("pdf_readable", True, "The file is a readable PDF.")
     if len(signatures) != 1:
-        return report.add(
-            "signature_present", False, f"Expected one signature, found {len(signatures)}."
-        )
-    context = ValidationContext(trust_roots=_certs(trusted_pems), allow_fetching=False)
+        report.add("signature_present", False, f"Expected one signature, found {len(signatures)}.")
+        return False, False
+    context = ValidationContext(trust_roots=_certs(list(roots)), allow_fetching=False)
     try:
         status = validate_pdf_signature(signatures[0], context)
     except Exception as exc:
-        return report.add(
+        report.add(
             "signature_valid", False, f"The signature could not be checked ({type(exc).__name__})."
         )
+        return False, False
     if not (status.intact and status.valid):
-        return report.add(
+        report.add(
             "signature_valid",
             False,
             "The PDF was changed after it was signed: the signature does not match the file.",
         )
+        return False, False
     if not _signature_container_exact(data, signatures[0].sig_object["/ByteRange"]):
-        return report.add(
-            "signature_valid", False, "The signature's container was altered after signing."
-        )
+        report.add("signature_valid", False, "The signature's container was altered after signing.")
+        return False, False
     report.add("signature_valid", True, "The signature matches the file's bytes.")
     if status.coverage != SignatureCoverageLevel.ENTIRE_FILE:
-        return report.add(
+        report.add(
             "signature_covers_file", False, "Content was added to the PDF after it was signed."
         )
+        return False, False
     report.add("signature_covers_file", True, "The signature covers the whole file.")
-    name = status.signing_cert.subject.human_friendly
-    if not status.trusted:
-        return report.add(
-            "certificate_trusted",
-            False,
-            f"The signing certificate ({name}) is not one Parapet knows for this organisation.",
-        )
-    return report.add("certificate_trusted", True, f"Signed with the known certificate {name}.")
+    cert = status.signing_cert
+    report.signer = Signer(
+        subject=cert.subject.human_friendly,
+        fingerprint_sha256=hashlib.sha256(cert.dump()).hexdigest(),
+    )
+    return True, bool(roots) and bool(status.trusted)
 
 
 def _der_length(raw: bytes) -> int:
@@ -194,7 +304,8 @@ def check_content(report: Report, data: bytes) -> dict[str, Any] | None:
     return document
 
 
-def check_database(report: Report, seal: str) -> None:
+def check_database(report: Report, seal: str) -> Any:
+    """The stored record behind `seal` (None when there is none), checked against the file."""
     from compliance.daily_records import verify_against_database, verify_chain
     from compliance.models import DailyRecord
     from compliance.signing import verify_seal_signature
@@ -206,7 +317,7 @@ def check_database(report: Report, seal: str) -> None:
             False,
             "No record with this seal is stored: it is not one Parapet sealed.",
         )
-        return
+        return None
     report.add(
         "record_stored", True, f"Stored as record {record.sequence} of site {record.site_id}."
     )
@@ -216,16 +327,38 @@ def check_database(report: Report, seal: str) -> None:
             False,
             "The stored copy of this record was altered in the database.",
         )
-        return
+        return record
     if not verify_seal_signature(
         record.seal, record.seal_signature, record.credential.certificate_pem
     ):
         report.add(
             "stored_record_intact", False, "The stored signature over the seal does not verify."
         )
-        return
+        return record
     report.add(
         "stored_record_intact", True, "The stored copy and its signature over the seal are intact."
+    )
+    credential = record.credential
+    if credential.organisation_id != record.organisation_id:
+        report.add(
+            "signer_is_the_records_organisation",
+            False,
+            "The record was signed with a certificate registered to another organisation.",
+        )
+        return record
+    if report.signer is not None and report.signer.fingerprint_sha256 != (
+        credential.fingerprint_sha256
+    ):
+        report.add(
+            "signer_is_the_records_organisation",
+            False,
+            "The PDF was signed with a different certificate from the one that sealed the record.",
+        )
+        return record
+    report.add(
+        "signer_is_the_records_organisation",
+        True,
+        "The PDF and the seal were signed with the record's own organisation's certificate.",
     )
     differences = verify_against_database(record)
     if differences:
@@ -235,28 +368,34 @@ def check_database(report: Report, seal: str) -> None:
             False,
             f"The database rows behind this record were changed after sealing ({shown}).",
         )
-        return
+        return record
     report.add("rows_unchanged", True, "The rows behind the record still match what was sealed.")
     chain = verify_chain(record.site_id)
     if not chain.ok:
         report.add(
             "chain_intact", False, f"The site's chain is broken: {chain.first_break.message}"
         )  # type: ignore[union-attr]
-        return
+        return record
     report.add("chain_intact", True, f"The site's chain of {chain.records} records is intact.")
+    return record
 
 
 def verify_pdf(
     data: bytes,
     *,
     trusted_pems: list[str] | None = None,
+    trust: TrustList | None = None,
     use_database: bool = True,
     name: str = "this PDF",
 ) -> Report:
+    """Check a record or log-book PDF. VERIFIED needs a trust anchor: `trust` (or the PEMs in
+    `trusted_pems`) offline; with the database, the certificates the record's own organisation
+    registered. Without one the answer is integrity only."""
+    if trust is None and trusted_pems is not None:
+        trust = TrustList.from_pems(trusted_pems, "the certificates given")
     report = Report(subject=name)
-    if not check_signature(
-        report, data, trusted_pems if trusted_pems is not None else known_certificates()
-    ):
+    intact, chained = check_signature(report, data, trust.roots if trust else ())
+    if not intact:
         return report
     document = check_content(report, data)
     if document is None:
@@ -264,9 +403,42 @@ def verify_pdf(
     if use_database:
         if document.get("format") == LOG_BOOK_FORMAT:
             check_log_book(report, document)
+            organisation_id = _registered_organisation(report)
         else:
-            check_database(report, report.seal)  # type: ignore[arg-type]
+            record = check_database(report, report.seal)  # type: ignore[arg-type]
+            organisation_id = None if record is None else record.organisation_id
+        if trust is None and organisation_id is not None:
+            trust = organisation_trust(organisation_id)
+        if organisation_id is not None and report.signer is not None:
+            report.signer = Signer(
+                subject=report.signer.subject,
+                fingerprint_sha256=report.signer.fingerprint_sha256,
+                organisation=_organisation_name(organisation_id),
+            )
+    check_trust(report, trust, chained)
     return report
+
+
+def _organisation_name(organisation_id: int) -> str:
+    from compliance.models import Organisation
+
+    return (
+        Organisation.objects.filter(pk=organisation_id).values_list("name", flat=True).first() or ""
+    )
+
+
+def _registered_organisation(report: Report) -> int | None:
+    """The organisation that registered the signing certificate (a log book may be printed by
+    the owner or by a contractor working under a grant)."""
+    from compliance.models import SigningCredential
+
+    if report.signer is None:
+        return None
+    return (
+        SigningCredential.objects.filter(fingerprint_sha256=report.signer.fingerprint_sha256)
+        .values_list("organisation_id", flat=True)
+        .first()
+    )
 
 
 LOG_BOOK_FORMAT = "parapet.anchor-log-book/1"
@@ -328,19 +500,61 @@ def merkle_root(leaves: list[bytes]) -> str:
     return mth(leaves).hex()
 
 
-def verify_export(data: bytes) -> Report:
-    """Verify an export offline: every PDF, the manifest's chain and its Merkle root."""
+MANIFEST = "manifest.json"
+MANIFEST_SIGNATURE = "manifest.sig.json"
+
+
+def verify_export(
+    data: bytes, *, trust: TrustList | None = None, use_database: bool = False
+) -> Report:
+    """Verify an export: its signed manifest, the Merkle root and chain of its seals, and that
+    every PDF is the one the manifest names, intact and signed by the manifest's organisation.
+    VERIFIED needs a trust anchor: `trust`, or with the database the certificates the
+    manifest's organisation registered; without one the answer is integrity only."""
     report = Report(subject="this export")
     try:
         archive = zipfile.ZipFile(io.BytesIO(data))
-        manifest = json.loads(archive.read("manifest.json"))
-    except (zipfile.BadZipFile, KeyError, ValueError):
-        report.add("manifest", False, "The export has no readable manifest.json.")
+        raw = archive.read(MANIFEST)
+        manifest = json.loads(raw)
+        signature = json.loads(archive.read(MANIFEST_SIGNATURE))
+        entries = manifest["records"]
+        organisation = manifest["organisation"]
+        allowed = {
+            hashlib.sha256(c.dump()).hexdigest() for c in _certs(list(manifest["certificates"]))
+        }
+        cert_pem = signature["certificate_pem"]
+        [signer_cert] = _certs([cert_pem])
+        seals = [bytes.fromhex(e["seal"]) for e in entries]
+    except (zipfile.BadZipFile, KeyError, TypeError, ValueError, AttributeError) as exc:
+        report.add(
+            "manifest",
+            False,
+            f"The export has no readable, signed manifest ({type(exc).__name__}).",
+        )
         return report
-    entries = manifest.get("records", [])
-    report.add("manifest", True, f"Manifest lists {len(entries)} records.")
-    root = merkle_root([bytes.fromhex(e["seal"]) for e in entries])
-    if root != manifest.get("merkle_root"):
+    if rfc8785.dumps(manifest) != raw:
+        report.add("manifest", False, "The manifest is not in canonical form: it was rewritten.")
+        return report
+    from compliance.signing import verify_seal_signature
+
+    manifest_seal = hashlib.sha256(raw).hexdigest()
+    fingerprint = hashlib.sha256(signer_cert.dump()).hexdigest()
+    if fingerprint not in allowed or not verify_seal_signature(
+        manifest_seal, str(signature.get("signature", "")), cert_pem
+    ):
+        report.add(
+            "manifest",
+            False,
+            "The manifest's signature does not verify: it was changed after it was signed.",
+        )
+        return report
+    report.signer = Signer(
+        subject=signer_cert.subject.human_friendly,
+        fingerprint_sha256=fingerprint,
+        organisation=str(organisation.get("name", "")),
+    )
+    report.add("manifest", True, f"The manifest lists {len(entries)} records and is signed.")
+    if merkle_root(seals) != manifest.get("merkle_root"):
         report.add(
             "merkle_root",
             False,
@@ -349,32 +563,48 @@ def verify_export(data: bytes) -> Report:
         )
         return report
     report.add("merkle_root", True, "The list of seals matches the manifest's Merkle root.")
-    breaks = _relative_links(entries)
+    try:
+        breaks = _relative_links(entries)
+    except (KeyError, TypeError) as exc:
+        report.add("chain_intact", False, f"A manifest entry is malformed ({type(exc).__name__}).")
+        return report
     if breaks:
         report.add("chain_intact", False, f"The chain in the export is broken: {breaks}")
         return report
     report.add("chain_intact", True, "Each record follows the one before it.")
+    if trust is None and use_database and isinstance(organisation.get("id"), int):
+        trust = organisation_trust(organisation["id"])
     for entry in entries:
+        name = str(entry.get("file"))
         try:
-            pdf = archive.read(entry["file"])
+            pdf = archive.read(name)
         except KeyError:
-            report.add(f"file:{entry['file']}", False, f"{entry['file']} is listed but missing.")
+            report.add(f"file:{name}", False, f"{name} is listed but missing.")
             return report
-        sub = verify_pdf(
-            pdf,
-            trusted_pems=manifest.get("certificates", []),
-            use_database=False,
-            name=entry["file"],
-        )
-        if sub.ok and sub.seal != entry["seal"]:
+        if hashlib.sha256(pdf).hexdigest() != entry.get("file_sha256"):
             report.add(
-                f"file:{entry['file']}", False, f"{entry['file']} carries another record's seal."
+                f"file:{name}", False, f"{name} is not the file the manifest names: it was swapped."
             )
             return report
-        if not sub.ok:
-            report.add(f"file:{entry['file']}", False, sub.verdict())
+        sub = verify_pdf(pdf, trust=trust, use_database=False, name=name)
+        if not sub.intact:
+            report.add(f"file:{name}", False, sub.verdict())
             return report
-        report.add(f"file:{entry['file']}", True, f"{entry['file']} verified.")
+        if sub.seal != entry.get("seal"):
+            report.add(f"file:{name}", False, f"{name} carries another record's seal.")
+            return report
+        if sub.signer is None or sub.signer.fingerprint_sha256 not in allowed:
+            report.add(
+                f"file:{name}",
+                False,
+                f"{name} was signed by a certificate the manifest does not list.",
+            )
+            return report
+        if trust is not None and not trust.empty and not sub.vouched:
+            report.add(f"file:{name}", False, sub.verdict())
+            return report
+        report.add(f"file:{name}", True, f"{name} is intact and is the file the manifest names.")
+    check_trust(report, trust, False)
     return report
 
 

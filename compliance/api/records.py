@@ -172,7 +172,13 @@ class VerifyInput(serializers.Serializer):
 @extend_schema(
     request={"multipart/form-data": VerifyInput},
     responses=inline_serializer(
-        "VerifyReport", {"ok": serializers.BooleanField(), "verdict": serializers.CharField()}
+        "VerifyReport",
+        {
+            "ok": serializers.BooleanField(),
+            "intact": serializers.BooleanField(),
+            "vouched": serializers.BooleanField(),
+            "verdict": serializers.CharField(),
+        },
     ),
 )
 @api_view(["POST"])
@@ -189,6 +195,8 @@ def verify(request: Request) -> Response:
         return Response({"file": ["At most 50 MB."]}, status=status.HTTP_400_BAD_REQUEST)
     content = upload.read()
     report = (
-        verify_export(content) if content[:2] == b"PK" else verify_pdf(content, name=upload.name)
+        verify_export(content, use_database=True)
+        if content[:2] == b"PK"
+        else verify_pdf(content, name=upload.name)
     )
     return Response(report.as_dict())

@@ -9,6 +9,7 @@ import zipfile
 
 import pytest
 import rfc8785
+from django.core.management import call_command
 from django.db import connection
 from django.urls import reverse
 from PIL import Image
@@ -17,8 +18,8 @@ from pypdf import PdfReader
 from compliance.daily_records import seal_of, sign_daily_record, verify_chain
 from compliance.record_files import build_export, ensure_pdf
 from compliance.record_pdf import ATTACHMENT_NAME, render
-from compliance.signing import create_self_signed, sign_pdf
-from compliance.verification import merkle_root, verify_export, verify_pdf
+from compliance.signing import create_self_signed, sign_pdf, sign_seal
+from compliance.verification import TrustList, merkle_root, verify_export, verify_pdf
 from tests.conftest import client_for
 from tests.factories import PASSWORD, OrganisationFactory
 from tests.records.conftest import next_day_job
@@ -76,14 +77,18 @@ def test_a_genuine_record_verifies(signed, signed_pdf):
         "pdf_readable",
         "signature_valid",
         "signature_covers_file",
-        "certificate_trusted",
         "record_attached",
         "seal_matches",
         "record_stored",
         "stored_record_intact",
+        "signer_is_the_records_organisation",
         "rows_unchanged",
         "chain_intact",
+        "signer_vouched",
     ]
+    assert report.signer.fingerprint_sha256 == signed.credential.fingerprint_sha256
+    assert report.signer.organisation == signed.organisation.name
+    assert signed.credential.fingerprint_sha256 in report.verdict()
 
 
 @pytest.mark.parametrize("where", [0.0, 0.001, 0.25, 0.5, 0.75, 0.97, 0.9999])
@@ -145,8 +150,32 @@ def test_a_pdf_signed_with_another_key_is_not_trusted(signed):
         reason="x",
         location="x",
     )
-    report = verify_pdf(pdf, trusted_pems=known)
-    assert failed(report) == "certificate_trusted"
+    report = verify_pdf(pdf, trusted_pems=known, use_database=False)
+    assert failed(report) == "signer_vouched"
+    assert not report.ok and "not in the certificates given" in report.verdict()
+
+
+def test_a_record_signed_with_another_organisations_registered_key_is_refused(signed):
+    """Another tenant's genuine, registered key over this record's genuine pages and seal."""
+    other = create_self_signed(organisation=OrganisationFactory())
+    pdf = sign_pdf(
+        render(json.loads(signed.canonical_json), signed.seal),
+        other,
+        signer_name="x",
+        reason="x",
+        location="x",
+    )
+    report = verify_pdf(pdf)
+    assert failed(report) == "signer_is_the_records_organisation"
+    assert not report.ok
+
+
+def test_without_a_trust_anchor_the_answer_is_integrity_only(signed, signed_pdf):
+    report = verify_pdf(signed_pdf, use_database=False)
+    assert report.intact and not report.ok and not report.vouched
+    assert report.verdict().startswith("INTEGRITY INTACT, SIGNER NOT VOUCHED FOR")
+    assert "VERIFIED:" not in report.verdict()
+    assert signed.credential.fingerprint_sha256 in report.verdict()
 
 
 def test_a_well_formed_record_unknown_to_the_database_is_reported(signed, credential):
@@ -232,9 +261,14 @@ def test_an_export_verifies_offline(
     records = _three_days(signed, simple_checklists, operator, supervisor)
     start, end = records[0].job.date, records[-1].job.date
     data = build_export(signed.site, start, end)
-    report = verify_export(data)
+    trust = TrustList(fingerprints=frozenset({signed.credential.fingerprint_sha256}))
+    report = verify_export(data, trust=trust)
     assert report.ok, report.as_dict()
     assert sum(c.name.startswith("file:") for c in report.checks) == 3
+    assert verify_export(data, use_database=True).ok
+    alone = verify_export(data)
+    assert alone.intact and not alone.ok
+    assert alone.verdict().startswith("INTEGRITY INTACT, SIGNER NOT VOUCHED FOR")
     # the same check from the command line, with no database rows at all
     path = tmp_path / "export.zip"
     path.write_bytes(data)
@@ -244,7 +278,7 @@ def test_an_export_verifies_offline(
         cursor.execute("DELETE FROM compliance_recordpdf")
         cursor.execute("DELETE FROM compliance_dailyrecord")
     assert not DailyRecord.objects.exists()
-    assert verify_export(path.read_bytes()).ok
+    assert verify_export(path.read_bytes(), trust=trust).ok
 
 
 def _rezip(data: bytes, change) -> bytes:
@@ -282,9 +316,62 @@ def test_a_tampered_export_is_detected(
         names = sorted(n for n in files if n.endswith(".pdf"))
         files[names[0]], files[names[1]] = files[names[1]], files[names[0]]
 
-    assert failed(verify_export(_rezip(data, drop_only_entry))) == "merkle_root"
-    assert failed(verify_export(_rezip(data, drop_middle))) == "chain_intact"
+    assert failed(verify_export(_rezip(data, drop_only_entry))) == "manifest"
+    assert failed(verify_export(_rezip(data, drop_middle))) == "manifest"
     assert failed(verify_export(_rezip(data, swap_pdf))).startswith("file:")
+    assert "swapped" in verify_export(_rezip(data, swap_pdf)).verdict()
+
+
+def _forge(data: bytes, outsider, *, resign_first_pdf: bool) -> bytes:
+    """An export rebuilt with a self-made key: manifest re-signed, certificates replaced, and
+    (optionally) one day's PDF re-signed after its pages were rewritten."""
+    source = zipfile.ZipFile(io.BytesIO(data))
+    files = {name: source.read(name) for name in source.namelist()}
+    manifest = json.loads(files["manifest.json"])
+    if resign_first_pdf:
+        entry = manifest["records"][0]
+        reader = PdfReader(io.BytesIO(files[entry["file"]]))
+        document = json.loads(reader.attachments[ATTACHMENT_NAME][0])
+        pdf = sign_pdf(
+            render(document, entry["seal"]), outsider, signer_name="x", reason="x", location="x"
+        )
+        files[entry["file"]] = pdf
+        entry["file_sha256"] = hashlib.sha256(pdf).hexdigest()
+    manifest["certificates"] = sorted({*manifest["certificates"], outsider.certificate_pem})
+    raw = rfc8785.dumps(manifest)
+    files["manifest.json"] = raw
+    files["manifest.sig.json"] = json.dumps(
+        {
+            "signature": sign_seal(hashlib.sha256(raw).hexdigest(), outsider),
+            "certificate_pem": outsider.certificate_pem,
+        }
+    ).encode()
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w") as archive:
+        for name, content in files.items():
+            archive.writestr(name, content)
+    return out.getvalue()
+
+
+def test_an_export_forged_with_a_self_made_certificate_is_never_verified(
+    signed, simple_checklists, operator, supervisor, tmp_path, settings
+):
+    """Before, the verifier trusted whatever certificates the file carried: VERIFIED."""
+    settings.MEDIA_ROOT = tmp_path
+    records = _three_days(signed, simple_checklists, operator, supervisor)
+    data = build_export(signed.site, records[0].job.date, records[-1].job.date)
+    outsider = create_self_signed(organisation=OrganisationFactory())
+    trust = TrustList(fingerprints=frozenset({signed.credential.fingerprint_sha256}))
+    for resign in (False, True):
+        forged = _forge(data, outsider, resign_first_pdf=resign)
+        alone = verify_export(forged)
+        assert not alone.ok and not alone.verdict().startswith("VERIFIED"), resign
+        assert outsider.fingerprint_sha256 in alone.verdict()
+        assert not verify_export(forged, trust=trust).ok, resign
+        assert not verify_export(forged, use_database=True).ok, resign
+    checked = verify_export(_forge(data, outsider, resign_first_pdf=True), trust=trust)
+    assert failed(checked).startswith("file:")
+    assert "not in" in checked.verdict()
 
 
 def test_pdf_reads_back_with_general_purpose_tools(signed, signed_pdf, tmp_path):
@@ -366,7 +453,7 @@ def test_auditor_downloads_pdf_and_export(signed, tmp_path, settings):
         reverse("record-export"), {"site": signed.site_id, "start": day, "end": day}
     )
     assert response.status_code == 200
-    assert verify_export(response.content).ok
+    assert verify_export(response.content, use_database=True).ok
     bad = client.get(
         reverse("record-export"), {"site": signed.site_id, "start": "2026-13-01", "end": day}
     )
@@ -394,3 +481,42 @@ def test_the_auditor_page_shows_the_verdict(signed, signed_pdf, client):
     broken[100] ^= 1
     page = client.post("/verify/", {"file": SimpleUploadedFile("r.pdf", bytes(broken))})
     assert b"NOT VERIFIED" in page.content
+
+
+def test_the_command_vouches_only_with_a_trust_list(
+    signed, simple_checklists, operator, supervisor, tmp_path, settings
+):
+    """Exit 0 VERIFIED with the organisation's fingerprints, 2 intact but unvouched without a
+    trust list, 1 for a forged export against the genuine fingerprints."""
+    settings.MEDIA_ROOT = tmp_path
+    records = _three_days(signed, simple_checklists, operator, supervisor)
+    data = build_export(signed.site, records[0].job.date, records[-1].job.date)
+    genuine, forged = tmp_path / "export.zip", tmp_path / "forged.zip"
+    genuine.write_bytes(data)
+    outsider = create_self_signed(organisation=OrganisationFactory())
+    forged.write_bytes(_forge(data, outsider, resign_first_pdf=True))
+    prints = tmp_path / "trust.txt"
+    fp = signed.credential.fingerprint_sha256
+    prints.write_text(
+        "# the contractor's signing certificate\n"
+        + ":".join(fp[i : i + 2] for i in range(0, 64, 2)).upper()
+        + "\n"
+    )
+
+    def run(*args):
+        out = io.StringIO()
+        try:
+            call_command("verify-record", *args, "--offline", stdout=out)
+        except SystemExit as exc:
+            return exc.code, out.getvalue()
+        return 0, out.getvalue()
+
+    code, text = run(str(genuine), "--trust", str(prints))
+    assert code == 0 and "VERIFIED:" in text and fp in text
+    code, text = run(str(genuine))
+    assert code == 2 and "INTEGRITY INTACT, SIGNER NOT VOUCHED FOR" in text
+    code, text = run(str(forged), "--trust", str(prints))
+    assert code == 1 and "NOT VERIFIED" in text
+    bundle = tmp_path / "bundle.pem"
+    bundle.write_text(signed.credential.certificate_pem)
+    assert run(str(genuine), "--trust", str(bundle))[0] == 0
