@@ -42,3 +42,24 @@ class PlausibleDateField(serializers.DateField):
                 f"A date between {EARLIEST.isoformat()} and {LATEST.isoformat()}."
             )
         return day
+
+
+MAX_ID_DIGITS = 18
+"""An id fits a signed 64-bit column (PostgreSQL bigint) with room to spare."""
+
+
+def query_id(params: Mapping[str, str], name: str) -> int | None:
+    """The id named `name` in a query string, or None when it is absent or empty.
+
+    Only plain ASCII digits, at most 18 of them, are an id: '²' and '٣' pass str.isdigit() and
+    int('²') raises, and a 30-digit id overflows the database's integer. Anything else is a 400
+    naming the parameter.
+    """
+    value = params.get(name)
+    if not value:
+        return None
+    if not (value.isascii() and value.isdigit() and len(value) <= MAX_ID_DIGITS):
+        raise serializers.ValidationError(
+            {name: [f"An id is a whole number of at most {MAX_ID_DIGITS} digits (0-9)."]}
+        )
+    return int(value)

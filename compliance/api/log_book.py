@@ -14,7 +14,7 @@ from rest_framework.response import Response
 
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.anchor_log import SIGNED_KINDS, record_entry
-from compliance.api.fields import PlausibleDateField, StrictInput
+from compliance.api.fields import PlausibleDateField, StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.models import AnchorLogEntry, Organisation, SiteAccess
 
@@ -82,9 +82,9 @@ class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
             "anchor", "recorded_by", "organisation"
         )
         for name in ("site", "anchor"):
-            value = self.request.query_params.get(name)
-            if value:
-                qs = qs.filter(**{f"{name}_id": int(value)}) if value.isdigit() else qs.none()
+            value = query_id(self.request.query_params, name)
+            if value is not None:
+                qs = qs.filter(**{f"{name}_id": value})
         return qs.order_by("site_id", "sequence")
 
     @extend_schema(request=LogEntryInput, responses={201: LogEntrySerializer})
@@ -153,11 +153,9 @@ def log_book_pdf(request: Request, pk: int) -> HttpResponse:
         sites_visible_to(request.user.organisation_id).select_related("profile"), pk=pk
     )
     anchor = None
-    anchor_id = request.query_params.get("anchor")
-    if anchor_id:
-        if not anchor_id.isdigit():
-            return Response({"anchor": ["An anchor id."]}, status=400)
-        anchor = get_object_or_404(site.anchors.all(), pk=int(anchor_id))
+    anchor_id = query_id(request.query_params, "anchor")
+    if anchor_id is not None:
+        anchor = get_object_or_404(site.anchors.all(), pk=anchor_id)
     pdf, seal = signed_log_book(site, request.user, anchor)
     response = HttpResponse(pdf, content_type="application/pdf")
     response["Content-Disposition"] = f'attachment; filename="anchor-log-{site.pk}-{seal[:12]}.pdf"'

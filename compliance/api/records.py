@@ -14,7 +14,7 @@ from rest_framework.permissions import IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
 
-from compliance.api.fields import StrictInput
+from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.daily_records import MEANINGS, add_addendum
 from compliance.models import DailyRecord, Site
@@ -71,9 +71,9 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
         org = getattr(self.request.user, "organisation_id", None)
         qs = DailyRecord.objects.filter(organisation_id=org)
         for name in ("site", "job"):
-            value = self.request.query_params.get(name)
-            if value:
-                qs = qs.filter(**{f"{name}_id": int(value)}) if value.isdigit() else qs.none()
+            value = query_id(self.request.query_params, name)
+            if value is not None:
+                qs = qs.filter(**{f"{name}_id": value})
         return qs.select_related("job", "pdf").order_by("site_id", "sequence")
 
     def retrieve(self, request: Request, *args: Any, **kwargs: Any) -> Response:
@@ -119,12 +119,10 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
         from compliance.record_files import build_export
 
         errors: dict[str, list[str]] = {}
-        site_id = request.query_params.get("site", "")
+        site_id = query_id(request.query_params, "site")
         site = (
-            Site.objects.filter(
-                organisation_id=request.user.organisation_id, pk=int(site_id)
-            ).first()
-            if site_id.isdigit()
+            Site.objects.filter(organisation_id=request.user.organisation_id, pk=site_id).first()
+            if site_id is not None
             else None
         )
         if site is None:

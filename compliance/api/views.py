@@ -28,7 +28,7 @@ from checklists.selectors import sheets_for, visible_checklists
 from compliance import services
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
-from compliance.api.fields import StrictInput
+from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
 from compliance.models import (
@@ -248,9 +248,9 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
                 "certifications", queryset=AnchorCertification.objects.select_related("recorded_by")
             )
         )
-        site = self.request.query_params.get("site")
-        if site and site.isdigit():
-            qs = qs.filter(site_id=int(site))
+        site = query_id(self.request.query_params, "site")
+        if site is not None:
+            qs = qs.filter(site_id=site)
         return qs
 
     def get_serializer(self, *args: Any, **kwargs: Any) -> s.AnchorSerializer:
@@ -467,9 +467,7 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
         against = request.query_params.get("against")
         qs = self.get_queryset()
         if against:
-            other = get_object_or_404(qs, pk=against) if against.isdigit() else None
-            if other is None:
-                return Response({"against": ["A version id is a whole number."]}, status=400)
+            other = get_object_or_404(qs, pk=query_id(request.query_params, "against"))
         else:
             other = (
                 qs.filter(checklist=version.checklist, number__lt=version.number)
@@ -489,9 +487,9 @@ class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVie
 
     def get_queryset(self) -> QuerySet[Any]:
         qs = sheets_for(self.org_id).order_by("id")
-        job = self.request.query_params.get("job")
-        if job:
-            qs = qs.filter(job_id=int(job)) if job.isdigit() else qs.none()
+        job = query_id(self.request.query_params, "job")
+        if job is not None:
+            qs = qs.filter(job_id=job)
         return qs
 
     @extend_schema(
