@@ -110,6 +110,38 @@ def resolve(
     return value
 
 
+REGISTER_WORDS = {
+    "profile": "the site's profile's",
+    "equipment": "this equipment's",
+    "robot": "the robot's",
+    "tether": "the tether's",
+    "safety_line": "the safety line's",
+    "hose": "the hose's",
+    "anchor": "the anchor's",
+    "drop": "the drop's",
+}
+
+
+def input_words(source: Any, labels: Mapping[str, str], name: str) -> str:
+    """What a calculation input is, in the words of the sheet: the reading the operator typed,
+    or the register value it came from, so a refusal never shows a raw key alone."""
+    if not isinstance(source, Mapping) or len(source) != 1:
+        return name.replace("_", " ")
+    ((kind, ref),) = source.items()
+    if kind == "reading":
+        return f"the reading \u201c{labels.get(str(ref), str(ref))}\u201d"
+    if kind == "output":
+        item_key, _, out_key = str(ref).partition(".")
+        return (
+            f"the {out_key.replace('_', ' ')} worked out in"
+            f" \u201c{labels.get(item_key, item_key)}\u201d"
+        )
+    if kind == "value":
+        return f"the checklist's fixed {name.replace('_', ' ')} ({ref})"
+    owner = REGISTER_WORDS.get(str(kind), f"the {kind}'s")
+    return f"{owner} {str(ref).replace('_', ' ')}"
+
+
 def _series_samples(item: Mapping[str, Any], value: Any, path: str) -> list[list[float]]:
     """A series entry as [seconds, reading] pairs with strictly increasing times; a malformed
     one is an EntryError naming the sample."""
@@ -256,6 +288,7 @@ def evaluate(
         if key not in known:
             raise EntryError(f"entries.{key}", "Not an item of this checklist version.")
 
+    labels = {item["key"]: str(item.get("label", item["key"])) for item in items}
     readings: dict[str, Any] = {}
     outputs: dict[str, dict[str, Any]] = {}
     results: list[ItemResult] = []
@@ -281,12 +314,17 @@ def evaluate(
             try:
                 calc = run(item["calc"], inputs)
             except (CalcInputError, UnknownCalculation) as exc:
+                said = (
+                    f"{input_words(item['inputs'].get(exc.field), labels, exc.field)} {exc.message}"
+                    if isinstance(exc, CalcInputError)
+                    else str(exc)
+                )
                 results.append(
                     ItemResult(
                         **base,
                         verdict="fail",
                         value=None,
-                        message=f"Cannot compute: {exc}.",
+                        message=f"Cannot compute: {said}.",
                         working={"inputs": inputs},
                     )
                 )

@@ -215,3 +215,24 @@ def test_a_strong_wind_near_the_corner_fails_the_hold(today):
     hold = entries["hold_margin"]
     assert hold.verdict == "fail"
     assert hold.message.startswith("The cups clamp with about")
+
+
+def test_a_refused_calculation_input_names_the_reading_typed_not_its_key(today):
+    """A line paid out at the top longer than the drop: the operator reads the reading's label,
+    not 'shortest_line_m'."""
+    arrest = _fill(today, "safety-line-pre-use", line_at_top=500.0)[0]["arrest"]
+    assert arrest.verdict == "fail"
+    assert arrest.message.startswith(
+        "Cannot compute: the reading \u201cSafety line paid out at the top of the drop, anchor to"
+        " robot\u201d must be at most"
+    )
+    assert "shortest_line_m:" not in arrest.message
+
+
+def test_a_rescue_of_no_time_is_refused(today):
+    decay = _record(today, rescue_reach=0.0)[0]["decay_test"]
+    assert decay.verdict == "fail"
+    assert decay.message == (
+        "Cannot compute: the reading \u201cTime for the rescue plan to reach this robot at the"
+        " worst point of its drop\u201d must be greater than zero."
+    )

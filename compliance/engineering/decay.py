@@ -78,8 +78,8 @@ FIELDS = (
         "",
         "furthest prediction beyond the last reading, as a multiple of the test's duration",
         at_least=0.0,
-        at_most=100.0,
-        limit_reason="plausibility bound",
+        at_most=10.0,
+        limit_reason="a trend is not projected ten times further than it was watched",
     ),
     number(
         "min_r2",
@@ -100,7 +100,7 @@ FIELDS = (
         "rescue_time_s",
         "s",
         "time the rescue plan needs to reach the robot at the worst point of its drop",
-        at_least=0.0,
+        greater_than=0.0,
         optional=True,
     ),
 )
@@ -424,7 +424,7 @@ def compute(values: Inputs) -> CalcResult:
         checks.append(
             Check(
                 "rescue_time",
-                None if rescue_s == 0.0 else relied_s / rescue_s - 1.0,
+                relied_s / rescue_s - 1.0,
                 reason=(
                     f"With the pump off the grip lasts about {num(relied_s, 2)} s; the rescue"
                     f" plan needs {num(rescue_s, 3)} s to reach the robot. The job cannot start."

@@ -25,7 +25,7 @@ from typing import Final
 
 from .calculation import Calculation, OutOfRange, build_result
 from .constants import ATMOSPHERE_KPA, PA_PER_KPA, G
-from .inputs import Inputs, integer, number
+from .inputs import CalcInputError, Inputs, integer, number
 from .result import CalcResult, Check, OutputValue
 from .working import num
 
@@ -186,9 +186,11 @@ def compute(values: Inputs) -> CalcResult:
     required = values.number("safety_factor")
 
     if rows > cups:
-        raise OutOfRange("cups per row", cups / rows)
+        raise CalcInputError("cup_rows", f"must be at most the number of cups ({cups})")
     if rows > 1 and spacing_m == 0.0:
-        raise OutOfRange("row spacing of several rows", spacing_m)
+        raise CalcInputError(
+            "row_spacing_m", "must be greater than zero when there is more than one row of cups"
+        )
     area_m2 = area_ratio * math.pi * diameter_m**2 / 4.0
     if area_m2 == 0.0:
         raise OutOfRange("effective_area_m2", area_m2)

@@ -136,6 +136,32 @@ function resolve(
   return value;
 }
 
+const REGISTER_WORDS: Record<string, string> = {
+  profile: "the site's profile's",
+  equipment: "this equipment's",
+  robot: "the robot's",
+  tether: "the tether's",
+  safety_line: "the safety line's",
+  hose: "the hose's",
+  anchor: "the anchor's",
+  drop: "the drop's",
+};
+
+/** What a calculation input is, in the sheet's words; mirrors verdicts.input_words. */
+export function inputWords(source: Source | undefined, labels: Record<string, string>, name: string): string {
+  const pairs = source ? Object.entries(source) : [];
+  if (pairs.length !== 1) return name.replace(/_/g, " ");
+  const [kind, ref] = pairs[0]!;
+  if (kind === "reading") return `the reading \u201c${labels[String(ref)] ?? String(ref)}\u201d`;
+  if (kind === "output") {
+    const [itemKey = "", outKey = ""] = String(ref).split(".", 2);
+    return `the ${outKey.replace(/_/g, " ")} worked out in \u201c${labels[itemKey] ?? itemKey}\u201d`;
+  }
+  if (kind === "value") return `the checklist's fixed ${name.replace(/_/g, " ")} (${String(ref)})`;
+  const owner = REGISTER_WORDS[kind] ?? `the ${kind}'s`;
+  return `${owner} ${String(ref).replace(/_/g, " ")}`;
+}
+
 const SOURCE_WORDS: Record<string, string> = {
   value: "a fixed value",
   profile: "the site's profile",
@@ -380,6 +406,7 @@ export function committedDraft(draft: Draft, steady: Record<string, Steady>): Dr
 
 /** Every item in order with what the phone can say about it now. */
 export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Context): ItemView[] {
+  const labels = Object.fromEntries(items.map((i) => [i.key, i.label]));
   const readings: Record<string, unknown> = {};
   const outputs: Record<string, Record<string, unknown>> = {};
   const views: ItemView[] = [];
@@ -475,7 +502,8 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
             serverOnly.add(item.key);
             views.push({ ...base, verdict: "unknown", message: "The server computes this when the sheet is sent." });
           } else if (error instanceof CalcInputError) {
-            views.push({ ...base, verdict: "fail", message: `Cannot compute: ${error.message}.` });
+            const said = `${inputWords(item.inputs?.[error.field], labels, error.field)} ${error.problem}`;
+            views.push({ ...base, verdict: "fail", message: `Cannot compute: ${said}.` });
           } else {
             throw error;
           }

@@ -282,3 +282,25 @@ describe("where a drop hangs on its facade", () => {
     expect(place).toEqual({ corner_distance_m: 0, building_depth_m: 80 });
   });
 });
+
+describe("a calculation that refuses an input", () => {
+  it("names the reading the operator typed, not the input's key", () => {
+    const items: ChecklistItem[] = [
+      { key: "rows", kind: "reading", label: "Rows of cups counted", reason: "Counted.", blocking: true, unit: "" },
+      {
+        key: "hold", kind: "calc", label: "Hold", reason: "Holds.", blocking: true, calc: "suction-hold",
+        inputs: {
+          vacuum_kpa: { value: 60 }, cup_diameter_m: { value: 0.2 }, effective_area_ratio: { value: 0.85 }, cups: { value: 4 },
+          cup_rows: { reading: "rows" }, row_spacing_m: { value: 0.5 }, wet_glass_friction: { value: 0.6 }, mass_kg: { value: 58 },
+          com_offset_m: { value: 0.1 }, peak_pressure_pa: { value: 40 }, face_area_m2: { value: 0.45 }, side_area_m2: { value: 0.2 },
+          drag_coefficient: { value: 1.2 }, corner_distance_m: { value: 2 }, building_height_m: { value: 150 }, safety_factor: { value: 2 },
+        },
+      },
+    ];
+    const draft = emptyDraft();
+    draft.readings = { rows: "5" };
+    const hold = evaluateDraft(items, draft, {}).find((v) => v.item.key === "hold")!;
+    expect(hold.verdict).toBe("fail");
+    expect(hold.message).toBe("Cannot compute: the reading \u201cRows of cups counted\u201d must be at most the number of cups (4).");
+  });
+});

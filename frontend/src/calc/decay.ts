@@ -28,14 +28,14 @@ const FIELDS = [
   number("interval_tolerance_s", "s", "how far a reading may be from its scheduled time", { atLeast: 0 }),
   number("min_duration_s", "s", "shortest test, first reading to last", { greaterThan: 0 }),
   number("max_extrapolation", "", "furthest prediction beyond the last reading, as a multiple of the test's duration", {
-    atLeast: 0, atMost: 100, limitReason: "plausibility bound",
+    atLeast: 0, atMost: 10, limitReason: "a trend is not projected ten times further than it was watched",
   }),
   number("min_r2", "", "least coefficient of determination of the better fit for a conclusive test", {
     atLeast: 0, atMost: 1, limitReason: "R² is at most 1",
   }),
   number("system_volume_l", "L", "volume under vacuum, for a leak rate in mbar·L/s", { greaterThan: 0, optional: true }),
   number("rescue_time_s", "s", "time the rescue plan needs to reach the robot at the worst point of its drop", {
-    atLeast: 0, optional: true,
+    greaterThan: 0, optional: true,
   }),
 ];
 
@@ -290,7 +290,7 @@ function compute(values: Inputs): CalcResult {
   if (rescueS !== null) {
     steps.push(`rescue: the grip is relied on for ${num(reliedS)} s; the rescue plan needs ${num(rescueS)} s to reach the robot`);
     checks.push(
-      check("rescue_time", rescueS === 0 ? null : reliedS / rescueS - 1, false, {
+      check("rescue_time", reliedS / rescueS - 1, false, {
         reason:
           `With the pump off the grip lasts about ${num(reliedS, 2)} s; the rescue plan needs ${num(rescueS, 3)} s` +
           " to reach the robot. The job cannot start.",

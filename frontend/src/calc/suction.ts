@@ -1,6 +1,6 @@
 /** suction-hold: can the vacuum cups hold the robot on a vertical glass wall, in the wind? Port of suction.py. */
 import { ATMOSPHERE_KPA, G, PA_PER_KPA } from "./constants";
-import { OutOfRange } from "./errors";
+import { CalcInputError, OutOfRange } from "./errors";
 import { buildResult, calculation, integer, number, type Inputs } from "./inputs";
 import { check, type CalcResult } from "./result";
 import { num } from "./working";
@@ -83,8 +83,10 @@ function compute(values: Inputs): CalcResult {
   const hoseM = values.number("hanging_hose_m");
   const required = values.number("safety_factor");
 
-  if (rows > cups) throw new OutOfRange("cups per row", num(cups / rows));
-  if (rows > 1 && spacingM === 0) throw new OutOfRange("row spacing of several rows", num(spacingM));
+  if (rows > cups) throw new CalcInputError("cup_rows", `must be at most the number of cups (${cups})`);
+  if (rows > 1 && spacingM === 0) {
+    throw new CalcInputError("row_spacing_m", "must be greater than zero when there is more than one row of cups");
+  }
   const areaM2 = (areaRatio * Math.PI * diameterM ** 2) / 4;
   if (areaM2 === 0) throw new OutOfRange("effective_area_m2", num(areaM2));
   const [zone, eM] = facadeZone(cornerM, depthM, heightM);
