@@ -5,6 +5,7 @@
  */
 import { CalcInputError, run, UnknownCalculation, type CalcResult } from "./calc";
 import { facadePosition } from "./calc/site_plan";
+import { labelOf } from "./quantities";
 import { num } from "./calc/working";
 import type { Reference } from "./repo";
 import type { Anchor, ChecklistItem, Entry, JobDetail, Requirement, Site, Source, Threshold, TickValue } from "./types";
@@ -155,7 +156,7 @@ export function inputWords(source: Source | undefined, labels: Record<string, st
   if (kind === "reading") return `the reading \u201c${labels[String(ref)] ?? String(ref)}\u201d`;
   if (kind === "output") {
     const [itemKey = "", outKey = ""] = String(ref).split(".", 2);
-    return `the ${outKey.replace(/_/g, " ")} worked out in \u201c${labels[itemKey] ?? itemKey}\u201d`;
+    return `the ${labelOf(outKey).toLowerCase()} worked out in \u201c${labels[itemKey] ?? itemKey}\u201d`;
   }
   if (kind === "value") return `the checklist's fixed ${name.replace(/_/g, " ")} (${String(ref)})`;
   const owner = REGISTER_WORDS[kind] ?? `the ${kind}'s`;
@@ -177,7 +178,7 @@ const SOURCE_WORDS: Record<string, string> = {
 };
 
 /** "Limit: at least 12 kN (from the site's profile)", or the source alone if the number is unknown. */
-export function describeLimits(item: ChecklistItem, context: Context): string[] {
+export function describeLimits(item: ChecklistItem, context: Context, labels: Record<string, string> = {}): string[] {
   const unit = item.unit ?? "";
   const lines: string[] = [];
   for (const bound of ["min", "max"] as const) {
@@ -190,8 +191,12 @@ export function describeLimits(item: ChecklistItem, context: Context): string[] 
       const limit = Number(resolve(source, context, {}, {}));
       lines.push(`Limit: ${word} ${fmt(limit)} ${unit} (from ${from})`.replace(/\s+\)/, ")"));
     } catch {
-      const what = String(ref).replace(/_/g, " ");
-      lines.push(`Limit: ${word} the value in ${from} (${what}); the server checks it`);
+      if (kind === "output") {
+        lines.push(`Limit: ${word} ${inputWords(source, labels, String(ref))}, once it is worked out`);
+      } else {
+        const what = String(ref).replace(/_/g, " ");
+        lines.push(`Limit: ${word} the value in ${from} (${what}); the server checks it`);
+      }
     }
   }
   return lines;
@@ -416,7 +421,7 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
     const base = {
       item,
       margin: null,
-      limits: describeLimits(item, context),
+      limits: describeLimits(item, context, labels),
       ...cautionBand(item, context, readings, outputs, serverOnly),
     };
     switch (item.kind) {
@@ -433,7 +438,9 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
         const text = draft.readings[item.key] ?? "";
         const value = parseDecimal(text);
         if (value === null) {
-          views.push({ ...base, verdict: "missing", message: text.trim() ? "Not a number." : "" });
+          const tooLarge = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(text.trim().replace(",", "."));
+          const message = !text.trim() ? "" : tooLarge ? "Too large a number." : "Not a number.";
+          views.push({ ...base, verdict: "missing", message });
           break;
         }
         readings[item.key] = value;

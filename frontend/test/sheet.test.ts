@@ -304,3 +304,20 @@ describe("a calculation that refuses an input", () => {
     expect(hold.message).toBe("Cannot compute: the reading \u201cRows of cups counted\u201d must be at most the number of cups (4).");
   });
 });
+
+describe("words on the phone", () => {
+  const items = checklist("vacuum-hold");
+  it("describes a limit from a calculation by what is worked out, not its key", () => {
+    const alarm = items.find((i) => i.key === "low_vacuum_alarm")!;
+    const labels = Object.fromEntries(items.map((i) => [i.key, i.label]));
+    expect(describeLimits(alarm, {}, labels)).toEqual([
+      "Limit: at least the least vacuum that holds worked out in \u201cHold of the cups on wet glass, in the wind\u201d, once it is worked out",
+    ]);
+  });
+  it("says a number too large for the phone is too large, not that it is not a number", () => {
+    const draft = emptyDraft();
+    draft.readings = { working_vacuum: "1e400" };
+    const view = evaluateDraft(items, draft, context).find((v) => v.item.key === "working_vacuum")!;
+    expect(view.message).toBe("Too large a number.");
+  });
+});
