@@ -30,7 +30,7 @@ system-packages:
 setup: $(VENV)/.installed frontend
 
 demo: setup
-	$(BIN)/python manage.py demo --host $(HOST) --port $(PORT)
+	DJANGO_DEBUG=$${DJANGO_DEBUG:-true} $(BIN)/python manage.py demo --host $(HOST) --port $(PORT)
 
 lint: $(VENV)/.installed
 	$(BIN)/ruff check .

@@ -3,6 +3,7 @@
 import contextlib
 import os
 import platform
+import secrets
 import socket
 import statistics
 import subprocess
@@ -13,6 +14,7 @@ from pathlib import Path
 from urllib.parse import urlparse
 
 import django
+from django.conf import settings
 from django.core.management import call_command
 from django.db import connection
 
@@ -72,6 +74,10 @@ def gunicorn(workers: int = 4, timeout_s: int = 120, debug: bool = False) -> Ite
     env = {
         **os.environ,
         "DJANGO_DEBUG": "1" if debug else "0",
+        # Production mode needs its own key and passphrase; the passphrase must be the one the
+        # benchmark's data was signed under in this process.
+        "DJANGO_SECRET_KEY": os.environ.get("DJANGO_SECRET_KEY") or secrets.token_urlsafe(50),
+        "PARAPET_SIGNING_PASSPHRASE": settings.PARAPET_SIGNING_PASSPHRASE,
         "DJANGO_SECURE_SSL_REDIRECT": "0",
         "DJANGO_HSTS_SECONDS": "0",
         "DJANGO_ALLOWED_HOSTS": "127.0.0.1,localhost",

@@ -6,16 +6,25 @@ The defaults run the demo on SQLite with background tasks executed in-process.
 from pathlib import Path
 
 import environ
+from django.core.exceptions import ImproperlyConfigured
 
 BASE_DIR = Path(__file__).resolve().parent.parent
 
 env = environ.Env()
 environ.Env.read_env(BASE_DIR / ".env", overwrite=False) if (BASE_DIR / ".env").exists() else None
 
-DEBUG = env.bool("DJANGO_DEBUG", default=True)
-SECRET_KEY = env.str(
-    "DJANGO_SECRET_KEY", default="insecure-demo-key-change-me-in-production-0123456789"
-)
+DEBUG = env.bool("DJANGO_DEBUG", default=False)
+"""Off unless the demo (`make demo`), the tests or a developer turn it on."""
+
+DEMO_SECRET = "insecure-demo-key-change-me-in-production-0123456789"
+"""The demo's key and signing passphrase: public, so accepted only with DEBUG on."""
+
+SECRET_KEY = env.str("DJANGO_SECRET_KEY", default=DEMO_SECRET if DEBUG else "")
+if not SECRET_KEY:
+    raise ImproperlyConfigured(
+        "DJANGO_SECRET_KEY is required when DJANGO_DEBUG is off; the demo's public key is"
+        " accepted only with DJANGO_DEBUG=true."
+    )
 ALLOWED_HOSTS = env.list("DJANGO_ALLOWED_HOSTS", default=["127.0.0.1", "localhost", "testserver"])
 CSRF_TRUSTED_ORIGINS = env.list("DJANGO_CSRF_TRUSTED_ORIGINS", default=[])
 
@@ -180,8 +189,16 @@ CELERY_BEAT_SCHEDULE = {
 
 CACHES = {"default": env.cache("CACHE_URL", default="locmemcache://")}
 
-# Encrypts organisations' signing keys at rest; set it in production.
-PARAPET_SIGNING_PASSPHRASE = env.str("PARAPET_SIGNING_PASSPHRASE", default=SECRET_KEY)
+# Encrypts organisations' signing keys at rest. Its own setting, not the secret key: anyone
+# holding the repository knows the demo's, and rotating the secret key must not lock the keys.
+PARAPET_SIGNING_PASSPHRASE = env.str(
+    "PARAPET_SIGNING_PASSPHRASE", default=DEMO_SECRET if DEBUG else ""
+)
+if not PARAPET_SIGNING_PASSPHRASE:
+    raise ImproperlyConfigured(
+        "PARAPET_SIGNING_PASSPHRASE is required when DJANGO_DEBUG is off: it encrypts every"
+        " organisation's signing key."
+    )
 PARAPET_FIXTURES_DIR = BASE_DIR / "fixtures"
 PARAPET_DEFAULT_PROFILE = env.str("PARAPET_DEFAULT_PROFILE", default="generic")
 

@@ -40,10 +40,27 @@ def test_check_deploy_is_clean_with_production_settings():
         "WARNING",
         DJANGO_DEBUG="false",
         DJANGO_SECRET_KEY=secrets.token_urlsafe(64),
+        PARAPET_SIGNING_PASSPHRASE=secrets.token_urlsafe(32),
         DJANGO_ALLOWED_HOSTS="parapet.example",
     )
     assert result.returncode == 0, result.stdout + result.stderr
     assert "no issues" in result.stdout
+
+
+def test_without_debug_the_server_refuses_to_start_on_the_public_demo_key():
+    """Before, no DJANGO_SECRET_KEY meant the repository's public key, which was also the
+    passphrase of every organisation's signing key; and DEBUG was on unless turned off."""
+    no_key = _manage("check", DJANGO_DEBUG="", DJANGO_SECRET_KEY="", PARAPET_SIGNING_PASSPHRASE="x")
+    assert no_key.returncode == 1
+    assert "DJANGO_SECRET_KEY is required when DJANGO_DEBUG is off" in no_key.stderr
+    no_passphrase = _manage(
+        "check",
+        DJANGO_DEBUG="false",
+        DJANGO_SECRET_KEY=secrets.token_urlsafe(64),
+        PARAPET_SIGNING_PASSPHRASE="",
+    )
+    assert no_passphrase.returncode == 1
+    assert "PARAPET_SIGNING_PASSPHRASE is required" in no_passphrase.stderr
 
 
 def test_the_openapi_schema_generates_without_warnings():
