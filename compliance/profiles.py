@@ -8,7 +8,7 @@ from typing import Any
 from django.conf import settings
 from django.db import transaction
 
-from compliance.models import JurisdictionProfile
+from compliance.models import JurisdictionProfile, ProfileRevision
 
 
 def _read(path: Path) -> dict[str, Any]:
@@ -28,17 +28,54 @@ def load_profiles(directory: Path | None = None) -> list[JurisdictionProfile]:
         digest = hashlib.sha256(
             json.dumps(data, sort_keys=True, separators=(",", ":")).encode()
         ).hexdigest()
-        profile, _ = JurisdictionProfile.objects.update_or_create(
-            key=data["key"],
-            defaults={
-                "name": data["name"],
-                "thresholds": data["thresholds"],
-                "cautions": data["cautions"],
-                "content_hash": digest,
-            },
-        )
+        with transaction.atomic():
+            profile, _ = JurisdictionProfile.objects.update_or_create(
+                key=data["key"],
+                defaults={
+                    "name": data["name"],
+                    "thresholds": data["thresholds"],
+                    "cautions": data["cautions"],
+                    "content_hash": digest,
+                },
+            )
+            if not profile.revisions.filter(content_hash=digest).exists():
+                last = profile.revisions.order_by("-number").first()
+                ProfileRevision.objects.create(
+                    profile=profile,
+                    number=1 if last is None else last.number + 1,
+                    name=data["name"],
+                    thresholds=data["thresholds"],
+                    cautions=data["cautions"],
+                    content_hash=digest,
+                )
         profiles.append(profile)
     return profiles
+
+
+def profile_diff(before: ProfileRevision, after: ProfileRevision) -> dict[str, Any]:
+    """What changed between two revisions of a profile: thresholds added, removed and changed
+    (value, unit or source), by key."""
+    a, b = before.thresholds, after.thresholds
+    changed = []
+    for key in sorted(a.keys() & b.keys()):
+        fields = sorted(f for f in ("value", "unit", "source") if a[key].get(f) != b[key].get(f))
+        if fields:
+            changed.append(
+                {
+                    "key": key,
+                    "fields": fields,
+                    "before": {f: a[key].get(f) for f in fields},
+                    "after": {f: b[key].get(f) for f in fields},
+                }
+            )
+    return {
+        "profile": after.profile.key,
+        "from": before.number,
+        "to": after.number,
+        "added": {k: b[k] for k in sorted(b.keys() - a.keys())},
+        "removed": {k: a[k] for k in sorted(a.keys() - b.keys())},
+        "changed": changed,
+    }
 
 
 def load_default_checklists(directory: Path | None = None) -> list[Any]:

@@ -6,6 +6,7 @@ from django.contrib.auth import authenticate, login, logout
 from django.db import IntegrityError, transaction
 from django.db.models import Prefetch, Q, QuerySet
 from django.shortcuts import get_object_or_404
+from drf_spectacular.types import OpenApiTypes
 from drf_spectacular.utils import extend_schema, inline_serializer
 from rest_framework import mixins, serializers, status, viewsets
 from rest_framework.authtoken.models import Token
@@ -209,6 +210,25 @@ class ProfileViewSet(viewsets.ReadOnlyModelViewSet):
     permission_classes = [OrganisationMember]
     lookup_field = "key"
     queryset = JurisdictionProfile.objects.order_by("key")
+
+    @extend_schema(responses={200: OpenApiTypes.OBJECT})
+    @action(detail=True, methods=["get"])
+    def revisions(self, request: Request, key: str | None = None) -> Response:
+        """Every revision of the profile, oldest first, each with what it changed."""
+        from compliance.profiles import profile_diff
+
+        revisions = list(self.get_object().revisions.select_related("profile"))
+        return Response(
+            [
+                {
+                    "number": r.number,
+                    "content_hash": r.content_hash,
+                    "published_at": r.published_at,
+                    "changes": profile_diff(prev, r) if prev is not None else None,
+                }
+                for prev, r in zip([None, *revisions[:-1]], revisions, strict=True)
+            ]
+        )
 
 
 class OrgScoped:
