@@ -15,6 +15,9 @@ from compliance.models import Job, User
 
 MAX_BYTES = 12 * 1024 * 1024
 MAX_SIDE_PX = 2048
+MAX_PIXELS = 50_000_000
+"""A phone camera's largest photos are about 48 megapixels; a small file declaring more is a
+decompression bomb (an 88-megapixel PNG of 30 KB took 370 MB to decode)."""
 ACCEPTED = {"JPEG", "PNG", "WEBP"}
 
 
@@ -41,6 +44,11 @@ def store_photo(
         with Image.open(image) as source:
             if source.format not in ACCEPTED:
                 raise ValidationError({"image": "A photo is a JPEG, PNG or WebP image."})
+            width, height = source.size
+            if width * height > MAX_PIXELS:
+                raise ValidationError(
+                    {"image": f"A photo is at most {MAX_PIXELS // 1_000_000} megapixels."}
+                )
             source.load()
             picture = source.convert("RGB")
     except (UnidentifiedImageError, OSError, Image.DecompressionBombError):

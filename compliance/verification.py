@@ -502,6 +502,23 @@ def merkle_root(leaves: list[bytes]) -> str:
 
 MANIFEST = "manifest.json"
 MANIFEST_SIGNATURE = "manifest.sig.json"
+MAX_MANIFEST_BYTES = 8 * 1024 * 1024
+MAX_PDF_BYTES = 50 * 1024 * 1024
+MAX_EXPORT_BYTES = 2 * 1024 * 1024 * 1024
+"""Decompressed sizes read from an export: a 300 KB ZIP can hold a 300 MiB manifest."""
+
+
+def _read_capped(archive: zipfile.ZipFile, name: str, cap: int) -> bytes:
+    """A member of the archive, refused by its declared size before anything is inflated, and
+    read no further than the cap whatever the header claims."""
+    info = archive.getinfo(name)
+    if info.file_size > cap:
+        raise ValueError(f"{name} would inflate to {info.file_size} bytes, over {cap}")
+    with archive.open(info) as handle:
+        data = handle.read(cap + 1)
+    if len(data) > cap:
+        raise ValueError(f"{name} inflates past {cap} bytes")
+    return data
 
 
 def verify_export(
@@ -514,9 +531,11 @@ def verify_export(
     report = Report(subject="this export")
     try:
         archive = zipfile.ZipFile(io.BytesIO(data))
-        raw = archive.read(MANIFEST)
+        if sum(i.file_size for i in archive.infolist()) > MAX_EXPORT_BYTES:
+            raise ValueError("the export inflates past 2 GiB")
+        raw = _read_capped(archive, MANIFEST, MAX_MANIFEST_BYTES)
         manifest = json.loads(raw)
-        signature = json.loads(archive.read(MANIFEST_SIGNATURE))
+        signature = json.loads(_read_capped(archive, MANIFEST_SIGNATURE, MAX_MANIFEST_BYTES))
         entries = manifest["records"]
         organisation = manifest["organisation"]
         allowed = {
@@ -526,11 +545,8 @@ def verify_export(
         [signer_cert] = _certs([cert_pem])
         seals = [bytes.fromhex(e["seal"]) for e in entries]
     except (zipfile.BadZipFile, KeyError, TypeError, ValueError, AttributeError) as exc:
-        report.add(
-            "manifest",
-            False,
-            f"The export has no readable, signed manifest ({type(exc).__name__}).",
-        )
+        why = str(exc) if "inflate" in str(exc) else type(exc).__name__
+        report.add("manifest", False, f"The export has no readable, signed manifest ({why}).")
         return report
     if rfc8785.dumps(manifest) != raw:
         report.add("manifest", False, "The manifest is not in canonical form: it was rewritten.")
@@ -577,9 +593,12 @@ def verify_export(
     for entry in entries:
         name = str(entry.get("file"))
         try:
-            pdf = archive.read(name)
+            pdf = _read_capped(archive, name, MAX_PDF_BYTES)
         except KeyError:
             report.add(f"file:{name}", False, f"{name} is listed but missing.")
+            return report
+        except (ValueError, zipfile.BadZipFile, OSError) as exc:
+            report.add(f"file:{name}", False, f"{name} cannot be read ({exc}).")
             return report
         if hashlib.sha256(pdf).hexdigest() != entry.get("file_sha256"):
             report.add(

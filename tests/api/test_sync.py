@@ -235,3 +235,21 @@ def test_a_file_that_is_not_an_image_is_refused(job, operator, tmp_path, setting
 def test_requirements_of_default_subjects(job, simple_checklists):
     kinds = sorted(r.subject.kind for r in job_requirements(job))
     assert kinds == ["anchor", "anchor", "hose", "robot", "safety_line", "site", "tether"]
+
+
+def test_a_small_file_declaring_too_many_pixels_is_refused_before_decoding(
+    job, operator, tmp_path, settings
+):
+    """A blank 1-bit PNG of 9,200 × 9,200 (85 megapixels) is a few KB on the wire; decoded to
+    RGB it took some 250 MB of server memory. Refused from its header, nothing stored."""
+    settings.MEDIA_ROOT = tmp_path
+    bomb = io.BytesIO()
+    Image.new("1", (9200, 9200)).save(bomb, format="PNG", optimize=True)
+    assert bomb.tell() < 100_000
+    bomb.seek(0)
+    bomb.name = "bomb.png"
+    body = {"client_uuid": str(uuid.uuid4()), "job": job.pk, "item_key": "x", "image": bomb}
+    response = client_for(operator).post(reverse("photos"), body, format="multipart")
+    assert response.status_code == 400
+    assert response.json() == {"image": ["A photo is at most 50 megapixels."]}
+    assert Photo.objects.count() == 0

@@ -520,3 +520,15 @@ def test_the_command_vouches_only_with_a_trust_list(
     bundle = tmp_path / "bundle.pem"
     bundle.write_text(signed.credential.certificate_pem)
     assert run(str(genuine), "--trust", str(bundle))[0] == 0
+
+
+def test_an_export_whose_manifest_inflates_past_its_cap_is_refused_unread():
+    """A ZIP of a few hundred KB can hold a manifest of hundreds of MB of zeros."""
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w", zipfile.ZIP_DEFLATED) as archive:
+        archive.writestr("manifest.json", b"0" * (60 * 1024 * 1024))
+        archive.writestr("manifest.sig.json", b"{}")
+    assert out.tell() < 200_000
+    report = verify_export(out.getvalue())
+    assert failed(report) == "manifest"
+    assert "would inflate to 62914560 bytes" in report.verdict()
