@@ -4,3 +4,12 @@ from django.apps import AppConfig
 class ComplianceConfig(AppConfig):
     name = "compliance"
     verbose_name = "Parapet compliance"
+
+    def ready(self) -> None:
+        # Imported here: the models and the token module need the app registry ready.
+        from django.db.models.signals import post_save
+
+        from compliance.api.tokens import revoke_on_password_change
+        from compliance.models import User
+
+        post_save.connect(revoke_on_password_change, sender=User, dispatch_uid="revoke-tokens")

@@ -132,7 +132,7 @@ DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
 REST_FRAMEWORK = {
     "DEFAULT_AUTHENTICATION_CLASSES": [
         "rest_framework.authentication.SessionAuthentication",
-        "rest_framework.authentication.TokenAuthentication",
+        "compliance.api.tokens.ExpiringTokenAuthentication",
     ],
     "DEFAULT_PERMISSION_CLASSES": ["rest_framework.permissions.IsAuthenticated"],
     "DEFAULT_PARSER_CLASSES": [
@@ -200,6 +200,7 @@ if not PARAPET_SIGNING_PASSPHRASE:
         " organisation's signing key."
     )
 PARAPET_FIXTURES_DIR = BASE_DIR / "fixtures"
+PARAPET_TOKEN_HOURS = env.int("PARAPET_TOKEN_HOURS", default=12)
 PARAPET_DEFAULT_PROFILE = env.str("PARAPET_DEFAULT_PROFILE", default="generic")
 
 LOGGING = {

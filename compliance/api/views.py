@@ -9,7 +9,6 @@ from django.shortcuts import get_object_or_404
 from drf_spectacular.types import OpenApiTypes
 from drf_spectacular.utils import extend_schema, inline_serializer
 from rest_framework import mixins, serializers, status, viewsets
-from rest_framework.authtoken.models import Token
 from rest_framework.decorators import (
     action,
     api_view,
@@ -32,6 +31,7 @@ from compliance.api import serializers as s
 from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
+from compliance.api.tokens import issue_token, revoke_tokens, token_lifetime
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -84,12 +84,17 @@ def session_login(request: Request) -> Response:
 @api_view(["POST"])
 @permission_classes([IsAuthenticated])
 def session_logout(request: Request) -> Response:
+    """Sign out: the session ends and every API token of the person stops working."""
+    revoke_tokens(user=request.user)
     logout(request)
     return Response(status=status.HTTP_204_NO_CONTENT)
 
 
 @extend_schema(
-    request=LoginInput, responses=inline_serializer("Token", {"token": serializers.CharField()})
+    request=LoginInput,
+    responses=inline_serializer(
+        "Token", {"token": serializers.CharField(), "expires_at": serializers.DateTimeField()}
+    ),
 )
 @api_view(["POST"])
 @permission_classes([AllowAny])
@@ -103,8 +108,8 @@ def token_login(request: Request) -> Response:
         return Response(
             {"detail": "Wrong username or password."}, status=status.HTTP_400_BAD_REQUEST
         )
-    token, _ = Token.objects.get_or_create(user=user)
-    return Response({"token": token.key})
+    token = issue_token(user=user)
+    return Response({"token": token.key, "expires_at": token.created + token_lifetime()})
 
 
 @extend_schema(responses=s.UserSerializer)
