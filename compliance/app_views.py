@@ -1,13 +1,17 @@
 """Serves the phone app built by Vite into compliance/static/app/ (see frontend/)."""
 
 from pathlib import Path
+from typing import Any
 
 from django.conf import settings
 from django.contrib.auth.decorators import login_required
+from django.contrib.auth.views import LoginView
 from django.http import FileResponse, Http404, HttpRequest, HttpResponse
 from django.shortcuts import render
 from django.views.decorators.csrf import ensure_csrf_cookie
 from django.views.decorators.http import require_GET, require_http_methods
+
+from compliance.api.throttles import login_allowed
 
 APP_DIR = Path(settings.BASE_DIR) / "compliance" / "static" / "app"
 
@@ -63,3 +67,15 @@ def verify_page(request: HttpRequest) -> HttpResponse:
             )
             context["report"] = report.as_dict()
     return render(request, "parapet/verify.html", context)
+
+
+class ThrottledLoginView(LoginView):
+    """The HTML sign-in page, under the same limits as the API's sign-in."""
+
+    template_name = "parapet/login.html"
+
+    def post(self, request: HttpRequest, *args: Any, **kwargs: Any) -> HttpResponse:
+        if not login_allowed(request):
+            context = self.get_context_data(form=self.get_form(), throttled=True)
+            return self.render_to_response(context, status=429)
+        return super().post(request, *args, **kwargs)

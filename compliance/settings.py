@@ -144,7 +144,14 @@ REST_FRAMEWORK = {
     "DEFAULT_PAGINATION_CLASS": "rest_framework.pagination.LimitOffsetPagination",
     "PAGE_SIZE": 50,
     "EXCEPTION_HANDLER": "compliance.api.errors.exception_handler",
-    "DEFAULT_THROTTLE_RATES": {"login": env.str("PARAPET_LOGIN_RATE", default="20/min")},
+    "DEFAULT_THROTTLE_RATES": {
+        "login_account": env.str("PARAPET_LOGIN_RATE", default="20/min"),
+        "login_address": env.str("PARAPET_LOGIN_ADDRESS_RATE", default="60/min"),
+        "password_reentry": env.str("PARAPET_PASSWORD_RATE", default="10/min"),
+    },
+    # How many proxies in front of the app add to X-Forwarded-For; none are trusted by default,
+    # so a client cannot pick its own address for the sign-in limits.
+    "NUM_PROXIES": env.int("PARAPET_TRUSTED_PROXIES", default=0),
 }
 SPECTACULAR_SETTINGS = {
     "TITLE": "Parapet API",

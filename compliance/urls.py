@@ -1,5 +1,4 @@
 from django.contrib import admin
-from django.contrib.auth import views as auth_views
 from django.urls import include, path
 from drf_spectacular.views import SpectacularAPIView
 
@@ -12,7 +11,7 @@ urlpatterns = [
     path("verify/", app_views.verify_page, name="verify-page"),
     path(
         "login/",
-        auth_views.LoginView.as_view(template_name="parapet/login.html"),
+        app_views.ThrottledLoginView.as_view(),
         name="login-page",
     ),
     path("sw.js", app_views.service_worker, name="service-worker"),

@@ -155,3 +155,51 @@ def test_a_missing_session_is_marked_by_a_code_the_phone_tests():
     refused = auditor.post(reverse("sync"), {"records": []}, format="json")
     assert refused.status_code == 403
     assert "code" not in refused.json()
+
+
+def test_changing_x_forwarded_for_does_not_reset_the_account_limit():
+    """Before, the limit was kept per address and username, the address read from whatever
+    X-Forwarded-For the client sent: a new header was a fresh allowance."""
+    cache.clear()
+    user = UserFactory()
+    client = APIClient()
+    codes = [
+        client.post(
+            reverse("token"),
+            {"username": user.username, "password": "wrong"},
+            format="json",
+            HTTP_X_FORWARDED_FOR=f"203.0.113.{n}",
+        ).status_code
+        for n in range(21)
+    ]
+    assert codes[:20] == [400] * 20 and codes[20] == 429
+
+
+def test_one_address_trying_many_accounts_is_limited():
+    cache.clear()
+    client = APIClient()
+    codes = [
+        client.post(
+            reverse("token"), {"username": f"nobody{n}", "password": "wrong"}, format="json"
+        ).status_code
+        for n in range(61)
+    ]
+    assert codes[:60] == [400] * 60 and codes[60] == 429
+
+
+def test_the_html_sign_in_page_is_limited_too(client):
+    cache.clear()
+    user = UserFactory()
+    codes = [
+        client.post(
+            reverse("login-page"), {"username": user.username, "password": "wrong"}
+        ).status_code
+        for _ in range(21)
+    ]
+    assert codes[:20] == [200] * 20 and codes[20] == 429
+    assert (
+        "Too many attempts"
+        in client.post(
+            reverse("login-page"), {"username": user.username, "password": PASSWORD}
+        ).content.decode()
+    )

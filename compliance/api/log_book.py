@@ -16,6 +16,7 @@ from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.anchor_log import SIGNED_KINDS, record_entry
 from compliance.api.fields import PlausibleDateField, StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
+from compliance.api.throttles import PasswordReentryThrottle
 from compliance.models import AnchorLogEntry, Organisation, SiteAccess
 
 
@@ -75,6 +76,7 @@ class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
 
     serializer_class = LogEntrySerializer
     permission_classes = [OrganisationMember]
+    throttle_classes = [PasswordReentryThrottle]
 
     def get_queryset(self) -> QuerySet[AnchorLogEntry]:
         org = getattr(self.request.user, "organisation_id", None)

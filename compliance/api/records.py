@@ -16,6 +16,7 @@ from rest_framework.response import Response
 
 from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
+from compliance.api.throttles import PasswordReentryThrottle
 from compliance.daily_records import MEANINGS, add_addendum
 from compliance.models import DailyRecord, Site
 
@@ -97,7 +98,7 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
         return response
 
     @extend_schema(request=AddendumInput, responses={201: RecordSerializer})
-    @action(detail=True, methods=["post"])
+    @action(detail=True, methods=["post"], throttle_classes=[PasswordReentryThrottle])
     def addenda(self, request: Request, pk: str | None = None) -> Response:
         record = self.get_object()
         data = AddendumInput(data=request.data)

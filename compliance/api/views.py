@@ -20,7 +20,6 @@ from rest_framework.parsers import MultiPartParser
 from rest_framework.permissions import AllowAny, IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
-from rest_framework.throttling import SimpleRateThrottle
 
 from checklists import services as checklist_services
 from checklists.models import Checklist, ChecklistVersion
@@ -31,6 +30,7 @@ from compliance.api import serializers as s
 from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
+from compliance.api.throttles import LOGIN_THROTTLES, PasswordReentryThrottle
 from compliance.api.tokens import issue_token, revoke_tokens, token_lifetime
 from compliance.models import (
     Anchor,
@@ -44,20 +44,6 @@ from compliance.selectors import job_readiness, jobs_for
 from compliance.sync import MAX_BATCH
 
 
-class LoginThrottle(SimpleRateThrottle):
-    """Limits sign-in attempts per client address and username (rate: settings, "login")."""
-
-    scope = "login"
-
-    def get_cache_key(self, request: Request, view: Any) -> str | None:
-        import hashlib
-
-        username = str(request.data.get("username", ""))[:150].lower()
-        digest = hashlib.sha256(username.encode("utf-8")).hexdigest()[:32]
-        ident = f"{self.get_ident(request)}:{digest}"  # safe as a key on any cache backend
-        return self.cache_format % {"scope": self.scope, "ident": ident}
-
-
 class LoginInput(StrictInput, serializers.Serializer):
     username = serializers.CharField(max_length=150)
     password = serializers.CharField(max_length=256)
@@ -66,7 +52,7 @@ class LoginInput(StrictInput, serializers.Serializer):
 @extend_schema(request=LoginInput, responses=s.UserSerializer)
 @api_view(["POST"])
 @permission_classes([AllowAny])
-@throttle_classes([LoginThrottle])
+@throttle_classes(LOGIN_THROTTLES)
 def session_login(request: Request) -> Response:
     """Sign in with a session cookie (the phone app)."""
     data = LoginInput(data=request.data)
@@ -98,7 +84,7 @@ def session_logout(request: Request) -> Response:
 )
 @api_view(["POST"])
 @permission_classes([AllowAny])
-@throttle_classes([LoginThrottle])
+@throttle_classes(LOGIN_THROTTLES)
 def token_login(request: Request) -> Response:
     """Exchange a username and password for an API token (scripts)."""
     data = LoginInput(data=request.data)
@@ -385,7 +371,7 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
         return Response(s.DropSerializer(drop).data, status=status.HTTP_201_CREATED)
 
     @extend_schema(request=SignInput, responses={201: RecordSerializer})
-    @action(detail=True, methods=["post"])
+    @action(detail=True, methods=["post"], throttle_classes=[PasswordReentryThrottle])
     def sign(self, request: Request, pk: str | None = None) -> Response:
         """Sign the day's record: the supervisor re-enters their password and picks a meaning."""
         return sign_job(request, self.get_object())
