@@ -325,32 +325,33 @@ def test_a_tampered_export_is_detected(
 def _forge(data: bytes, outsider, *, resign_first_pdf: bool) -> bytes:
     """An export rebuilt with a self-made key: manifest re-signed, certificates replaced, and
     (optionally) one day's PDF re-signed after its pages were rewritten."""
-    source = zipfile.ZipFile(io.BytesIO(data))
-    files = {name: source.read(name) for name in source.namelist()}
-    manifest = json.loads(files["manifest.json"])
-    if resign_first_pdf:
-        entry = manifest["records"][0]
-        reader = PdfReader(io.BytesIO(files[entry["file"]]))
-        document = json.loads(reader.attachments[ATTACHMENT_NAME][0])
-        pdf = sign_pdf(
-            render(document, entry["seal"]), outsider, signer_name="x", reason="x", location="x"
-        )
-        files[entry["file"]] = pdf
-        entry["file_sha256"] = hashlib.sha256(pdf).hexdigest()
-    manifest["certificates"] = sorted({*manifest["certificates"], outsider.certificate_pem})
-    raw = rfc8785.dumps(manifest)
-    files["manifest.json"] = raw
-    files["manifest.sig.json"] = json.dumps(
-        {
-            "signature": sign_seal(hashlib.sha256(raw).hexdigest(), outsider),
-            "certificate_pem": outsider.certificate_pem,
-        }
-    ).encode()
-    out = io.BytesIO()
-    with zipfile.ZipFile(out, "w") as archive:
-        for name, content in files.items():
-            archive.writestr(name, content)
-    return out.getvalue()
+
+    def change(files):
+        manifest = json.loads(files["manifest.json"])
+        if resign_first_pdf:
+            entry = manifest["records"][0]
+            reader = PdfReader(io.BytesIO(files[entry["file"]]))
+            document = json.loads(reader.attachments[ATTACHMENT_NAME][0])
+            pdf = sign_pdf(
+                render(document, entry["seal"]),
+                outsider,
+                signer_name="x",
+                reason="x",
+                location="x",
+            )
+            files[entry["file"]] = pdf
+            entry["file_sha256"] = hashlib.sha256(pdf).hexdigest()
+        manifest["certificates"] = sorted({*manifest["certificates"], outsider.certificate_pem})
+        raw = rfc8785.dumps(manifest)
+        files["manifest.json"] = raw
+        files["manifest.sig.json"] = json.dumps(
+            {
+                "signature": sign_seal(hashlib.sha256(raw).hexdigest(), outsider),
+                "certificate_pem": outsider.certificate_pem,
+            }
+        ).encode()
+
+    return _rezip(data, change)
 
 
 def test_an_export_forged_with_a_self_made_certificate_is_never_verified(
