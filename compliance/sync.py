@@ -82,12 +82,42 @@ def _device_time(data: dict[str, Any]) -> dt.datetime | None:
     raw = data.get("device_time")
     if raw in (None, ""):
         return None
-    parsed = parse_datetime(raw) if isinstance(raw, str) else None
+    try:
+        parsed = parse_datetime(raw) if isinstance(raw, str) else None
+    except ValueError:  # a well-formed but impossible date, such as 2026-02-30
+        parsed = None
     if parsed is None:
-        raise RecordRejected({"device_time": ["An ISO 8601 date and time."]})
+        raise RecordRejected({"device_time": ["An ISO 8601 date and time that exists."]})
     if timezone.is_naive(parsed):
         raise RecordRejected({"device_time": ["Give the time zone offset."]})
+    try:
+        parsed.astimezone(dt.UTC)
+    except OverflowError:  # year 1 or 9999 pushed past the calendar by its offset
+        raise RecordRejected(
+            {"device_time": ["A date and time the calendar holds once taken to UTC."]}
+        ) from None
+    # A phone whose clock reset (1900, 2300) keeps its sheet; the record states the offset.
     return parsed
+
+
+def bad_text(value: Any, path: str) -> str | None:
+    """The path of the first text holding a NUL or an unpaired surrogate (neither can be
+    stored: PostgreSQL refuses NUL in text, and UTF-8 has no surrogates), else None."""
+    if isinstance(value, str):
+        if "\x00" in value or any("\ud800" <= ch <= "\udfff" for ch in value):
+            return path
+        return None
+    if isinstance(value, dict):
+        for key, item in value.items():
+            found = bad_text(key, path) or bad_text(item, f"{path}.{key}" if path else str(key))
+            if found:
+                return found
+    if isinstance(value, list):
+        for index, item in enumerate(value):
+            found = bad_text(item, f"{path}[{index}]")
+            if found:
+                return found
+    return None
 
 
 def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
@@ -244,6 +274,13 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
     unknown = sorted(str(k)[:80] for k in data if k not in DATA_KEYS[kind])
     if unknown:
         return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
+    where = bad_text(data, "")
+    if where is not None:
+        return {
+            **line,
+            "status": "rejected",
+            "errors": {where or "data": ["Text may not hold a NUL or an unpaired surrogate."]},
+        }
     try:
         with transaction.atomic():
             try:
