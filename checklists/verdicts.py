@@ -426,27 +426,16 @@ def evaluate(
                 series_working["as_entered"] = {"value": value, "unit": given}
             readings[key] = samples
             problems = _schedule_problems(item, samples, context, readings, outputs)
-            if problems:
-                results.append(
-                    ItemResult(
-                        **base,
-                        verdict="fail",
-                        value=samples,
-                        unit=item["unit"],
-                        message=problems,
-                        working=series_working,
-                    )
+            results.append(
+                ItemResult(
+                    **base,
+                    verdict="fail" if problems else "recorded",
+                    value=samples,
+                    unit=item["unit"],
+                    message=problems,
+                    working=series_working,
                 )
-            else:
-                results.append(
-                    ItemResult(
-                        **base,
-                        verdict="recorded",
-                        value=samples,
-                        unit=item["unit"],
-                        working=series_working,
-                    )
-                )
+            )
         elif kind == "photo":
             photos = value if isinstance(value, list) else []
             if not all(isinstance(p, str) for p in photos):

@@ -15,10 +15,11 @@ import math
 from collections.abc import Mapping
 
 from .calculation import Calculation, build_result
-from .constants import AIR_DENSITY_KGM3, M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3, G
+from .constants import M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3, G
 from .inputs import AtMostOne, Inputs, number
 from .result import CalcResult, Check, InputValue, OutputValue
 from .water_properties import density_kgm3
+from .wind import AIR_DENSITY
 from .working import num
 
 NAME = "suspended-mass"
@@ -92,15 +93,7 @@ FIELDS = (
         limit_reason="plausibility bound",
         default=1.2,
     ),
-    number(
-        "air_density_kgm3",
-        "kg/m³",
-        "air density",
-        at_least=0.5,
-        at_most=1.6,
-        limit_reason="plausibility bound for air near the ground",
-        default=AIR_DENSITY_KGM3,
-    ),
+    AIR_DENSITY,
 )
 
 RULES = (AtMostOne(("water_density_kgm3", "water_temp_c")),)

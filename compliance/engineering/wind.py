@@ -72,6 +72,17 @@ def beaufort(mean_ms: float) -> int:
     return sum(1 for bound in BEAUFORT_LOWER_BOUNDS_MS if mean_ms >= bound)
 
 
+AIR_DENSITY = number(
+    "air_density_kgm3",
+    "kg/m³",
+    "air density",
+    at_least=0.5,
+    at_most=1.6,
+    limit_reason="plausibility bound for air near the ground",
+    default=AIR_DENSITY_KGM3,
+)
+"""The air density input shared by the calculations that load something with the wind."""
+
 FIELDS = (
     number(
         "speed_ms",
@@ -155,15 +166,7 @@ FIELDS = (
         limit_reason="plausibility bound",
         optional=True,
     ),
-    number(
-        "air_density_kgm3",
-        "kg/m³",
-        "air density",
-        at_least=0.5,
-        at_most=1.6,
-        limit_reason="plausibility bound for air near the ground",
-        default=AIR_DENSITY_KGM3,
-    ),
+    AIR_DENSITY,
 )
 
 RULES = (

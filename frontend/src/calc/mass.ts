@@ -1,8 +1,9 @@
 /** suspended-mass: everything hanging from the tether against the rated load and the tether's WLL; port of mass.py. */
-import { AIR_DENSITY_KGM3, G, M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3 } from "./constants";
+import { G, M_PER_MM, N_PER_KN, WATER_DENSITY_20C_KGM3 } from "./constants";
 import { buildResult, calculation, number, type Inputs, type Rule } from "./inputs";
 import { check, type CalcResult } from "./result";
 import { densityKgm3 } from "./water_properties";
+import { AIR_DENSITY } from "./wind";
 import { num } from "./working";
 
 const NAME = "suspended-mass";
@@ -36,9 +37,7 @@ const FIELDS = [
   number("drag_coefficient", "", "drag coefficient of the tether across the wind (a round cylinder: about 1.2)", {
     greaterThan: 0, atMost: 3, limitReason: "plausibility bound", default: 1.2,
   }),
-  number("air_density_kgm3", "kg/m³", "air density", {
-    atLeast: 0.5, atMost: 1.6, limitReason: "plausibility bound for air near the ground", default: AIR_DENSITY_KGM3,
-  }),
+  AIR_DENSITY,
 ];
 
 const RULES: Rule[] = [{ rule: "atMostOne", names: ["water_density_kgm3", "water_temp_c"] }];

@@ -31,6 +31,11 @@ export const defaultAlpha = (z0M: number) =>
 
 export const beaufort = (meanMs: number) => BEAUFORT_LOWER_BOUNDS_MS.filter((b) => meanMs >= b).length;
 
+/** The air density input shared by the calculations that load something with the wind. */
+export const AIR_DENSITY = number("air_density_kgm3", "kg/m³", "air density", {
+  atLeast: 0.5, atMost: 1.6, limitReason: "plausibility bound for air near the ground", default: AIR_DENSITY_KGM3,
+});
+
 const FIELDS = [
   number("speed_ms", "m/s", "mean wind speed read on the roof", {
     atLeast: 0, atMost: 120, limitReason: "plausibility bound, above any recorded surface gust",
@@ -63,9 +68,7 @@ const FIELDS = [
   number("drag_coefficient", "", "drag coefficient of the robot", {
     greaterThan: 0, atMost: 3, limitReason: "plausibility bound", optional: true,
   }),
-  number("air_density_kgm3", "kg/m³", "air density", {
-    atLeast: 0.5, atMost: 1.6, limitReason: "plausibility bound for air near the ground", default: AIR_DENSITY_KGM3,
-  }),
+  AIR_DENSITY,
 ];
 
 const REASON = "EN 1991-1-4 gives the log profile up to 200 m";
