@@ -10,6 +10,20 @@ def visible_checklists(organisation_id: int | None) -> QuerySet[Checklist]:
     return Checklist.objects.filter(Q(organisation=None) | Q(organisation_id=organisation_id))
 
 
+UNKNOWN_VERSION = "Unknown checklist version."
+
+
+def usable_versions(organisation_id: int | None) -> QuerySet[ChecklistVersion]:
+    """The versions an organisation may name: its own (draft or published) and the defaults.
+
+    Every lookup of a version by id goes through this, so another organisation's version,
+    draft or published, answers exactly as an id that does not exist (``UNKNOWN_VERSION``).
+    """
+    return ChecklistVersion.objects.filter(
+        checklist__in=visible_checklists(organisation_id)
+    ).select_related("checklist")
+
+
 def current_versions(organisation_id: int | None) -> dict[str, list[ChecklistVersion]]:
     """The newest published version of each checklist the organisation uses, by subject kind.
 

@@ -13,6 +13,7 @@ from django.utils import timezone
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
+from checklists.selectors import UNKNOWN_VERSION
 from checklists.verdicts import EntryError, SheetOutcome, evaluate
 from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted
@@ -308,10 +309,11 @@ def record_sheet(
         return existing, False
     if job.organisation_id != by.organisation_id:
         raise ValidationError({"job": "Unknown job."})
+    # The tenant first: another organisation's version is unknown, whatever its status.
+    if version.checklist.organisation_id not in (None, job.organisation_id):
+        raise ValidationError({"version": UNKNOWN_VERSION})
     if version.status != ChecklistVersion.Status.PUBLISHED:
         raise ValidationError({"version": "Sheets can only be filled against a published version."})
-    if version.checklist.organisation_id not in (None, job.organisation_id):
-        raise ValidationError({"version": "Unknown checklist version."})
     if job.state == JobState.CLOSED:
         raise InvalidTransition("This job is closed; its sheets can no longer change.")
     subject_kind = _subject_for(job, version, anchor, equipment)

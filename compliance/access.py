@@ -1,11 +1,15 @@
-"""Who may see a site: its owner, and contractors holding a grant that covers the day."""
+"""Who may see a site: its owner, and contractors holding a grant that covers the day.
+
+Seeing a site is not owning it: only the owner certifies its anchors, signs its anchor log book
+and grants access; a contractor under a grant works there and records its own pre-use checks.
+"""
 
 import datetime as dt
 
 from django.db.models import Exists, OuterRef, Q, QuerySet
 from django.utils import timezone
 
-from compliance.models import Anchor, Site, SiteAccess
+from compliance.models import Anchor, Organisation, Site, SiteAccess
 
 
 def _grant(organisation_id: int | None, day: dt.date) -> Exists:
@@ -31,3 +35,15 @@ def can_work_at(organisation_id: int | None, site: Site, day: dt.date) -> bool:
     return SiteAccess.objects.filter(
         site=site, contractor_id=organisation_id, starts_on__lte=day, ends_on__gte=day
     ).exists()
+
+
+def owns_site(organisation_id: int | None, site: Site) -> bool:
+    """The site's own organisation: its owner, or the contractor that registered it."""
+    return organisation_id is not None and site.organisation_id == organisation_id
+
+
+def grantable_contractors(site: Site) -> QuerySet[Organisation]:
+    """Who the site's owner may grant access to: contractor organisations other than itself."""
+    return Organisation.objects.filter(kind=Organisation.Kind.CONTRACTOR).exclude(
+        pk=site.organisation_id
+    )

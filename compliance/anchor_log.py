@@ -2,9 +2,13 @@
 
 Inspections, load tests, repairs, modifications, installation, removal from and return to
 service are signed by the person who made them (password re-entered, as for daily records).
-A contractor's pre-use check flows in from its anchor sheet, sealed and signed with the
-contractor's key when it has one. Removing an anchor from service holds every open job that
-plans to use it; returning it to service clears those holds.
+Only the building's own organisation signs entries into its log book; a contractor's pre-use
+check flows in from its anchor sheet, sealed and signed with the contractor's key when it has
+one. Removing an anchor from service holds every open job that plans to use it, whichever
+contractor's; returning it to service clears those holds.
+
+Appends to one site's chain are serialised by a lock on the site's row (see ``_lock_chain``).
+Lock order is jobs (by id) before the site, as a sheet's transaction takes them.
 """
 
 import datetime as dt
@@ -14,7 +18,7 @@ from typing import TYPE_CHECKING, Any
 from django.db import transaction
 from django.utils import timezone
 
-from compliance.access import can_work_at
+from compliance.access import can_work_at, owns_site
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import (
     OPEN_STATES,
@@ -25,6 +29,7 @@ from compliance.models import (
     Job,
     JobState,
     SigningCredential,
+    Site,
     User,
 )
 from compliance.sealing import canonical_bytes, check_links, seal_of, utc
@@ -76,10 +81,23 @@ def anchor_status(anchor: Anchor, interval_days: int) -> AnchorStatus:
     return AnchorStatus(in_service, removed_on, reason, last, due)
 
 
+def _lock_chain(site_id: int) -> None:
+    """Hold the site's row until this transaction ends, so one writer at a time appends.
+
+    The chain has no head row of its own to lock, and locking its newest entry does not
+    serialise: the first entry has none, and a second writer that waited re-reads the same
+    newest entry and takes the same sequence. FOR NO KEY UPDATE queues the site's log writers
+    without blocking rows that only refer to the site (a new job or anchor takes KEY SHARE).
+    A no-op on SQLite, whose writers are serialised by the database itself.
+    """
+    list(
+        Site.objects.select_for_update(no_key=True).filter(pk=site_id).values_list("pk", flat=True)
+    )
+
+
 def _next_position(site_id: int) -> tuple[int, str]:
     last = (
-        AnchorLogEntry.objects.select_for_update()
-        .filter(site_id=site_id)
+        AnchorLogEntry.objects.filter(site_id=site_id)
         .order_by("-sequence")
         .values_list("sequence", "seal")
         .first()
@@ -102,6 +120,8 @@ def _create(
     method: str,
     sheet: "CheckSheet | None" = None,
 ) -> AnchorLogEntry:
+    """Append one sealed entry; the caller's transaction holds the chain until it commits."""
+    _lock_chain(anchor.site_id)
     sequence, previous = _next_position(anchor.site_id)
     signed_at = timezone.now()
     document = {
@@ -164,7 +184,11 @@ def record_entry(
     performed_by_company: str = "",
     result: str = AnchorLogEntry.Result.NONE,
 ) -> AnchorLogEntry:
-    """Sign an entry into the site's log book; the signer re-enters their password."""
+    """Sign an entry into the site's log book; the signer re-enters their password.
+
+    Only the building's own organisation signs here: a contractor working under a grant may
+    see the log book, but its entries are the pre-use checks that flow in from its sheets.
+    """
     if not by.can_keep_anchor_log:
         raise NotPermitted("Only a supervisor, an admin or a property manager signs log entries.")
     if not password or not by.check_password(password):
@@ -173,12 +197,19 @@ def record_entry(
         raise InvalidTransition(f"Kind is one of: {', '.join(SIGNED_KINDS)}.")
     if not can_work_at(by.organisation_id, anchor.site, timezone.localdate()):
         raise NotPermitted("Unknown anchor.")
+    if not owns_site(by.organisation_id, anchor.site):
+        raise NotPermitted(
+            "Only the building's owner signs its anchor log book; "
+            "your pre-use checks reach it from your sheets."
+        )
     if not details.strip():
         raise InvalidTransition("Say what was done and found.")
     if performed_on > timezone.localdate():
         raise InvalidTransition("Work cannot be recorded for a future date.")
     credential = active_credential(by.organisation_id)
     with transaction.atomic():
+        moves_jobs = kind in (AnchorLogEntry.Kind.REMOVED, AnchorLogEntry.Kind.RETURNED)
+        jobs = _jobs_using(anchor) if moves_jobs else []  # locked before the chain: lock order
         entry = _create(
             anchor=anchor,
             by=by,
@@ -193,9 +224,9 @@ def record_entry(
             method="user id and password re-entered at the moment of signing",
         )
         if kind == AnchorLogEntry.Kind.REMOVED:
-            _hold_jobs_using(anchor, entry, by)
+            _hold_jobs(jobs, anchor, entry, by)
         elif kind == AnchorLogEntry.Kind.RETURNED:
-            _clear_holds_of(anchor, entry, by)
+            _clear_holds_of(jobs, anchor, entry, by)
     return entry
 
 
@@ -248,10 +279,10 @@ def _jobs_using(anchor: Anchor) -> list[Job]:
     return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
 
 
-def _hold_jobs_using(anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
-    from compliance.services import _transition
+def _hold_jobs(jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
+    from compliance.services import _transition  # services imports selectors, which import us
 
-    for job in _jobs_using(anchor):
+    for job in jobs:
         Hold.objects.create(
             job=job,
             requirement=status_requirement(anchor),
@@ -266,12 +297,12 @@ def _hold_jobs_using(anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
             )
 
 
-def _clear_holds_of(anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
-    from compliance.services import refresh_readiness
+def _clear_holds_of(jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
+    from compliance.services import refresh_readiness  # as above: an import cycle otherwise
 
     for hold in Hold.objects.filter(requirement=status_requirement(anchor), clearance__isnull=True):
         HoldClearance.objects.create(hold=hold, log_entry=entry, by=by)
-    for job in _jobs_using(anchor):
+    for job in jobs:
         refresh_readiness(job=job, by=by)
 
 

@@ -3,8 +3,10 @@
 import datetime as dt
 from typing import TYPE_CHECKING, Any
 
+from django.core.exceptions import ValidationError
 from django.db import transaction
 
+from compliance.access import can_work_at, grantable_contractors, owns_site
 from compliance.errors import InvalidTransition, JobBlocked, NotPermitted, Reason
 from compliance.models import (
     Anchor,
@@ -16,7 +18,9 @@ from compliance.models import (
     Job,
     JobState,
     JobTransition,
+    Organisation,
     Site,
+    SiteAccess,
     User,
 )
 from compliance.selectors import job_blockers
@@ -45,10 +49,6 @@ def _locked(job: Job) -> Job:
 
 
 def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
-    from django.core.exceptions import ValidationError
-
-    from compliance.access import can_work_at
-
     _require_writer(by)
     if not can_work_at(by.organisation_id, site, date):
         raise ValidationError(
@@ -176,7 +176,11 @@ def apply_sheet_outcome(
             names = ", ".join(i.label for i in failures)
             _transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
         return job
-    for hold in Hold.objects.filter(job=job, requirement=requirement, clearance__isnull=True):
+    # A sheet clears only what a sheet opened: the owner's stop work (an anchor removed from
+    # service) waits for the owner's return to service, whatever the crew's checklist is called.
+    for hold in Hold.objects.filter(
+        job=job, requirement=requirement, clearance__isnull=True, sheet__isnull=False
+    ):
         HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
     if defer_readiness:
         return job
@@ -201,16 +205,50 @@ def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = N
 
 
 def record_certification(*, anchor: Anchor, by: User, **fields: Any) -> AnchorCertification:
+    """Add a certification; only the building's own organisation certifies its anchors."""
     _require_writer(by)
     if not by.can_keep_anchor_log:
         raise NotPermitted(
             "Only a supervisor, an admin or a property manager records anchor certifications."
+        )
+    if not owns_site(by.organisation_id, anchor.site):
+        raise NotPermitted(
+            "Only the building's owner certifies its anchors; "
+            "record your own pre-use checks on a sheet."
         )
     with transaction.atomic():
         cert = AnchorCertification(anchor=anchor, recorded_by=by, **fields)
         cert.full_clean()
         cert.save()
     return cert
+
+
+UNKNOWN_CONTRACTOR = "Unknown contractor organisation."
+
+
+def grant_site_access(
+    *, site: Site, contractor: Organisation, starts_on: dt.date, ends_on: dt.date, by: User
+) -> SiteAccess:
+    """Let a contractor organisation work at the owner's site for a period.
+
+    The grant row is its own audit entry (who granted it and when) and is never edited. Any
+    organisation that is not a contractor, the owner itself included, is refused in the same
+    words as an id that does not exist, so the answer names no other organisation.
+    """
+    _require_writer(by)
+    if not owns_site(by.organisation_id, site):
+        raise NotPermitted("Only the site's owner manages access.")
+    if not by.can_keep_anchor_log:
+        raise NotPermitted("Only a property manager, supervisor or admin grants access.")
+    if not grantable_contractors(site).filter(pk=contractor.pk).exists():
+        raise ValidationError({"contractor": UNKNOWN_CONTRACTOR})
+    with transaction.atomic():
+        grant = SiteAccess(
+            site=site, contractor=contractor, starts_on=starts_on, ends_on=ends_on, granted_by=by
+        )
+        grant.full_clean()
+        grant.save()
+    return grant
 
 
 def create_equipment(*, by: User, **fields: Any) -> Equipment:
@@ -229,6 +267,7 @@ __all__ = [
     "close_job",
     "create_equipment",
     "create_job",
+    "grant_site_access",
     "pause_job",
     "record_certification",
     "refresh_readiness",

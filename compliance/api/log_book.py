@@ -12,12 +12,18 @@ from rest_framework.decorators import api_view, permission_classes
 from rest_framework.request import Request
 from rest_framework.response import Response
 
-from compliance.access import anchors_visible_to, sites_visible_to
+from compliance.access import (
+    anchors_visible_to,
+    grantable_contractors,
+    owns_site,
+    sites_visible_to,
+)
 from compliance.anchor_log import SIGNED_KINDS, record_entry
 from compliance.api.fields import PlausibleDateField, StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.models import AnchorLogEntry, Organisation, SiteAccess
+from compliance.services import UNKNOWN_CONTRACTOR, grant_site_access
 
 
 class LogEntrySerializer(serializers.ModelSerializer):
@@ -98,7 +104,16 @@ class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
 
 
 class GrantSerializer(StrictInput, serializers.ModelSerializer):
-    contractor = serializers.PrimaryKeyRelatedField(queryset=Organisation.objects.all())
+    """A grant; on input the contractor is looked up only among the organisations the site's
+    owner may grant to, so an owner's id reads exactly like one that does not exist."""
+
+    contractor = serializers.PrimaryKeyRelatedField(
+        queryset=Organisation.objects.none(),
+        error_messages={
+            "does_not_exist": UNKNOWN_CONTRACTOR,
+            "incorrect_type": "An organisation id (a whole number).",
+        },
+    )
     contractor_name = serializers.CharField(source="contractor.name", read_only=True)
     starts_on = PlausibleDateField()
     ends_on = PlausibleDateField()
@@ -116,6 +131,12 @@ class GrantSerializer(StrictInput, serializers.ModelSerializer):
         ]
         read_only_fields = ["site", "granted_at"]
 
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        site = self.context.get("site")
+        if site is not None:
+            self.fields["contractor"].queryset = grantable_contractors(site)
+
     def validate(self, attrs: dict[str, Any]) -> dict[str, Any]:
         if attrs["ends_on"] < attrs["starts_on"]:
             raise serializers.ValidationError({"ends_on": "Must not be before starts_on."})
@@ -128,17 +149,12 @@ class GrantSerializer(StrictInput, serializers.ModelSerializer):
 def site_grants(request: Request, pk: int) -> Response:
     """The owner lists and grants contractors' access to its site."""
     site = get_object_or_404(sites_visible_to(request.user.organisation_id), pk=pk)
-    if site.organisation_id != request.user.organisation_id:
+    if not owns_site(request.user.organisation_id, site):
         return Response({"detail": "Only the site's owner manages access."}, status=403)
     if request.method == "POST":
-        if not request.user.can_keep_anchor_log:
-            return Response(
-                {"detail": "Only a property manager, supervisor or admin grants access."},
-                status=403,
-            )
-        data = GrantSerializer(data=request.data)
+        data = GrantSerializer(data=request.data, context={"site": site})
         data.is_valid(raise_exception=True)
-        grant = data.save(site=site, granted_by=request.user)
+        grant = grant_site_access(site=site, by=request.user, **data.validated_data)
         return Response(GrantSerializer(grant).data, status=status.HTTP_201_CREATED)
     grants = SiteAccess.objects.filter(site=site).select_related("contractor").order_by("starts_on")
     return Response(GrantSerializer(grants, many=True).data)

@@ -6,6 +6,7 @@ from typing import Any
 from rest_framework import serializers
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
+from checklists.selectors import UNKNOWN_VERSION, usable_versions
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api.fields import FiniteFloatField, PlausibleDateField, StrictInput
 from compliance.models import (
@@ -305,7 +306,10 @@ class SheetSerializer(serializers.ModelSerializer):
 class SheetInputSerializer(StrictInput, serializers.Serializer):
     client_uuid = serializers.UUIDField(required=False)
     job = serializers.PrimaryKeyRelatedField(queryset=Job.objects.none())
-    version = serializers.PrimaryKeyRelatedField(queryset=ChecklistVersion.objects.none())
+    version = serializers.PrimaryKeyRelatedField(
+        queryset=ChecklistVersion.objects.none(),
+        error_messages={"does_not_exist": UNKNOWN_VERSION},
+    )
     anchor = serializers.PrimaryKeyRelatedField(
         queryset=Anchor.objects.none(), required=False, allow_null=True
     )
@@ -320,14 +324,10 @@ class SheetInputSerializer(StrictInput, serializers.Serializer):
         super().__init__(*args, **kwargs)
         request = self.context.get("request")
         org = getattr(getattr(request, "user", None), "organisation_id", None)
-        from checklists.selectors import visible_checklists
-
         self.fields["job"].queryset = Job.objects.filter(organisation_id=org).select_related(
             "site__profile"
         )
-        self.fields["version"].queryset = ChecklistVersion.objects.filter(
-            checklist__in=visible_checklists(org)
-        ).select_related("checklist")
+        self.fields["version"].queryset = usable_versions(org)
         self.fields["anchor"].queryset = anchors_visible_to(org)
         self.fields["equipment"].queryset = Equipment.objects.filter(organisation_id=org)
 

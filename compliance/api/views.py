@@ -23,7 +23,7 @@ from rest_framework.response import Response
 
 from checklists import services as checklist_services
 from checklists.models import Checklist, ChecklistVersion
-from checklists.selectors import sheets_for, visible_checklists
+from checklists.selectors import sheets_for, usable_versions, visible_checklists
 from compliance import services
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
@@ -435,9 +435,7 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
     http_method_names = ["get", "patch", "post", "head", "options"]
 
     def get_queryset(self) -> QuerySet[ChecklistVersion]:
-        qs = ChecklistVersion.objects.filter(
-            checklist__in=visible_checklists(self.org_id)
-        ).select_related("checklist")
+        qs = usable_versions(self.org_id)
         status_ = self.request.query_params.get("status")
         return qs.filter(status=status_) if status_ else qs
 
