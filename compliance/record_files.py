@@ -5,7 +5,7 @@ import io
 import json
 import logging
 import zipfile
-from pathlib import Path
+from typing import Any
 
 import rfc8785
 from django.core.files.base import ContentFile
@@ -23,19 +23,41 @@ logger = logging.getLogger(__name__)
 RECORD_FILES_DIR = "records"
 
 
-def _photo_paths(record: DailyRecord) -> dict[str, Path]:
-    paths: dict[str, Path] = {}
-    for photo in Photo.objects.filter(job_id=record.job_id):
+def _photo_bytes(record: DailyRecord, document: dict[str, Any]) -> dict[str, bytes]:
+    """The stored bytes of the record's sealed photos, read through the storage API (never
+    ``.path``), so a record renders from object storage too.
+
+    A photo whose file is gone, or whose bytes are not the ones sealed, is left out (its box
+    stays empty) and logged; any other storage error propagates so the render is retried.
+    """
+    sealed = {
+        p["client_uuid"]: p.get("sha256") for p in (document.get("record") or {}).get("photos", [])
+    }
+    if not sealed:
+        return {}
+    found: dict[str, bytes] = {}
+    for photo in Photo.objects.filter(job_id=record.job_id, client_uuid__in=list(sealed)):
+        key = str(photo.client_uuid)
         try:
-            paths[str(photo.client_uuid)] = Path(photo.image.path)
-        except (NotImplementedError, ValueError):
+            with photo.image.storage.open(photo.image.name, "rb") as handle:
+                data = handle.read()
+        except FileNotFoundError:
+            logger.error(
+                "record %s: photo %s has no stored file; drawn as an empty box", record.pk, key
+            )
             continue
-    return paths
+        if sha256_hex(data) != sealed[key]:
+            logger.error(
+                "record %s: photo %s is not the photo sealed; drawn as an empty box", record.pk, key
+            )
+            continue
+        found[key] = data
+    return found
 
 
 def render_signed_pdf(record: DailyRecord) -> bytes:
     document = json.loads(record.canonical_json)
-    pdf = render(document, record.seal, _photo_paths(record))
+    pdf = render(document, record.seal, _photo_bytes(record, document))
     return sign_pdf(
         pdf,
         record.credential,

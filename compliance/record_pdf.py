@@ -2,26 +2,35 @@
 
 Failed items and holds come first; every page carries the seal, page numbers and the caution.
 The canonical JSON is attached to the PDF so an auditor can check the seal from the file alone.
+The output is a function of the document, the seal and the photo bytes alone (no clock, no
+randomness), and where a photo sits depends only on its sealed size, so a render without the
+photo bytes lays out every page the same way.
 """
 
 import io
 import json
+import math
+from collections.abc import Mapping
+from functools import lru_cache
 from pathlib import Path
 from typing import Any
 from xml.sax.saxutils import escape
 
 from pypdf import PdfReader, PdfWriter
 from reportlab.graphics.barcode.qr import QrCodeWidget
-from reportlab.graphics.shapes import Drawing
+from reportlab.graphics.charts.lineplots import LinePlot
+from reportlab.graphics.shapes import Drawing, String
+from reportlab.graphics.widgets.markers import makeMarker
 from reportlab.lib import colors
 from reportlab.lib.pagesizes import A4
 from reportlab.lib.styles import ParagraphStyle, getSampleStyleSheet
 from reportlab.lib.units import mm
+from reportlab.lib.utils import ImageReader
 from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
 from reportlab.pdfgen import canvas as rl_canvas
 from reportlab.platypus import (
-    Image,
+    Flowable,
     KeepTogether,
     PageBreak,
     Paragraph,
@@ -41,6 +50,17 @@ CAUTION = (
 )
 FONT_DIRS = [Path("/usr/share/fonts/truetype/dejavu")]
 
+CELL_MAX_HEIGHT = 240.0
+"""The tallest a table cell is drawn, in points (a third of a page): longer text goes on in
+the next row, so no row is ever taller than a page."""
+CELL_PADDING = 3.0
+PHOTO_BOX = (40 * mm, 30 * mm)
+PHOTOS_PER_ROW = 4
+READINGS_PER_ROW = 8
+PLOT_SIZE = (180 * mm, 62 * mm)
+SHORT_TEXT = 40
+"""A plain string cell longer than this is set as a paragraph, so it wraps and splits."""
+
 
 def _register_fonts() -> tuple[str, str]:
     if "ParapetSans" in pdfmetrics.getRegisteredFontNames():
@@ -59,6 +79,7 @@ def _register_fonts() -> tuple[str, str]:
     return "ParapetSans", "ParapetSans-Bold"
 
 
+@lru_cache(maxsize=1)
 def _styles() -> dict[str, ParagraphStyle]:
     regular, bold = _register_fonts()
     base = getSampleStyleSheet()
@@ -77,6 +98,12 @@ def _styles() -> dict[str, ParagraphStyle]:
         "mono": ParagraphStyle(
             "m", parent=base["BodyText"], fontName=regular, fontSize=7.5, leading=9.5
         ),
+        "cell": ParagraphStyle(
+            "c", parent=base["BodyText"], fontName=regular, fontSize=8, leading=9.6
+        ),
+        "head": ParagraphStyle(
+            "hd", parent=base["BodyText"], fontName=bold, fontSize=8, leading=9.6
+        ),
         "stop": ParagraphStyle(
             "stop",
             parent=base["BodyText"],
@@ -91,16 +118,80 @@ def _p(text: Any, style: ParagraphStyle) -> Paragraph:
     return Paragraph(escape("" if text is None else str(text)).replace("\n", "<br/>"), style)
 
 
+def _is_number(value: Any) -> bool:
+    return (
+        isinstance(value, int | float)
+        and not isinstance(value, bool)
+        and math.isfinite(float(value))
+    )
+
+
+def _samples(value: Any) -> list[tuple[float, float]] | None:
+    """A series value as (seconds, reading) pairs, or None when it is not one."""
+    if not isinstance(value, list) or not value:
+        return None
+    pairs = []
+    for pair in value:
+        if not (isinstance(pair, list) and len(pair) == 2 and all(map(_is_number, pair))):
+            return None
+        pairs.append((float(pair[0]), float(pair[1])))
+    return pairs
+
+
 def _fmt(value: Any) -> str:
     if isinstance(value, float):
         return f"{value:.4g}"
     if isinstance(value, list):
+        samples = _samples(value)
+        if samples is not None and len(samples) > 1:
+            return _series_summary(samples, "")
         if value and isinstance(value[0], list):
-            return "; ".join(f"{t:g} s: {v:g}" for t, v in value)
+            return "; ".join(_fmt(v) for v in value)
         return ", ".join(str(v) for v in value) or "—"
     if isinstance(value, dict):
-        return ", ".join(f"{k} {_fmt(v)}" for k, v in list(value.items())[:6])
+        return ", ".join(f"{k} {_fmt(value[k])}" for k in sorted(value)[:6])
     return "—" if value in (None, "") else str(value)
+
+
+def _split_paragraph(cell: Paragraph, width: float, limit: float) -> list[Paragraph]:
+    """`cell` cut into parts no taller than `limit` at `width` (reportlab's own line breaks)."""
+    parts: list[Paragraph] = []
+    rest = cell
+    while True:
+        _, height = rest.wrap(width, limit)
+        if height <= limit:
+            parts.append(rest)
+            return parts
+        pieces = rest.split(width, limit)
+        if len(pieces) < 2:
+            parts.append(rest)
+            return parts
+        parts.append(pieces[0])
+        rest = pieces[1]
+
+
+def _fit_rows(
+    rows: list[list[Any]], widths: list[float], highlight: set[int], header: bool
+) -> tuple[list[list[Any]], list[int]]:
+    """Rows whose paragraphs are taller than CELL_MAX_HEIGHT go on over the following rows;
+    returns the new rows and which of them are highlighted (a highlighted row's parts are)."""
+    out: list[list[Any]] = []
+    marked: list[int] = []
+    for index, row in enumerate(rows):
+        if header and index == 0:
+            out.append(row)
+            continue
+        columns = []
+        for cell, width in zip(row, widths, strict=False):
+            if isinstance(cell, Paragraph):
+                columns.append(_split_paragraph(cell, width - 2 * CELL_PADDING, CELL_MAX_HEIGHT))
+            else:
+                columns.append([cell])
+        for n in range(max(len(c) for c in columns)):
+            if index in highlight:
+                marked.append(len(out))
+            out.append([c[n] if n < len(c) else "" for c in columns])
+    return out, marked
 
 
 def _table(
@@ -109,21 +200,33 @@ def _table(
     header: bool = True,
     highlight: list[int] | None = None,
 ) -> Table:
+    """A grid of cells; long text wraps, and a cell too tall for a page goes on in new rows."""
     regular, bold = _register_fonts()
-    table = Table(rows, colWidths=widths, repeatRows=1 if header else 0)
+    s = _styles()
+    cells = [
+        [
+            _p(cell, s["head"] if header and r == 0 else s["cell"])
+            if isinstance(cell, str) and (len(cell) > SHORT_TEXT or "\n" in cell)
+            else cell
+            for cell in row
+        ]
+        for r, row in enumerate(rows)
+    ]
+    cells, marked = _fit_rows(cells, widths, set(highlight or []), header)
+    table = Table(cells, colWidths=widths, repeatRows=1 if header else 0)
     style = [
         ("FONT", (0, 0), (-1, -1), regular, 8),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("GRID", (0, 0), (-1, -1), 0.3, colors.HexColor("#777777")),
-        ("LEFTPADDING", (0, 0), (-1, -1), 3),
-        ("RIGHTPADDING", (0, 0), (-1, -1), 3),
+        ("LEFTPADDING", (0, 0), (-1, -1), CELL_PADDING),
+        ("RIGHTPADDING", (0, 0), (-1, -1), CELL_PADDING),
     ]
     if header:
         style += [
             ("FONT", (0, 0), (-1, 0), bold, 8),
             ("BACKGROUND", (0, 0), (-1, 0), colors.HexColor("#e4e4e4")),
         ]
-    for row in highlight or []:
+    for row in marked:
         style.append(("BACKGROUND", (0, row), (-1, row), colors.HexColor("#fbe3e3")))
     table.setStyle(TableStyle(style))
     return table
@@ -139,7 +242,7 @@ def _qr(seal: str) -> Drawing:
 
 
 class _NumberedCanvas(rl_canvas.Canvas):
-    """Two-pass canvas: 'page n of m' and the seal in every footer."""
+    """Two-pass canvas: 'page n of m', the seal and the caution in every footer."""
 
     seal = ""
 
@@ -168,8 +271,47 @@ class _NumberedCanvas(rl_canvas.Canvas):
         self.drawRightString(width - 15 * mm, 12 * mm, f"Page {self._pageNumber} of {total}")
 
 
-def render(document: dict[str, Any], seal: str, photos: dict[str, Path] | None = None) -> bytes:
-    """Draw the record; attach its canonical JSON; return unsigned PDF bytes."""
+def _canvas_for(seal: str) -> type[_NumberedCanvas]:
+    """A canvas class of its own per render, so two renders at once never share a seal."""
+    return type("_SealedCanvas", (_NumberedCanvas,), {"seal": seal})
+
+
+class _PhotoBox(Flowable):
+    """A photo in a fixed box, scaled to fit from its sealed size; the box and the image's
+    place are the same whether or not the photo's bytes are given."""
+
+    def __init__(self, width_px: Any, height_px: Any, data: bytes | None) -> None:
+        super().__init__()
+        self.width, self.height = PHOTO_BOX
+        self.width_px = float(width_px) if _is_number(width_px) and width_px > 0 else 0.0
+        self.height_px = float(height_px) if _is_number(height_px) and height_px > 0 else 0.0
+        self.data = data
+
+    def wrap(self, avail_width: float, avail_height: float) -> tuple[float, float]:
+        return self.width, self.height
+
+    def _place(self) -> tuple[float, float, float, float]:
+        if not (self.width_px and self.height_px):
+            return 0.0, 0.0, self.width, self.height
+        scale = min(self.width / self.width_px, self.height / self.height_px)
+        w, h = self.width_px * scale, self.height_px * scale
+        return (self.width - w) / 2, (self.height - h) / 2, w, h
+
+    def draw(self) -> None:
+        x, y, w, h = self._place()
+        if self.data:
+            self.canv.drawImage(ImageReader(io.BytesIO(self.data)), x, y, w, h)
+        self.canv.setStrokeColor(colors.HexColor("#999999"))
+        self.canv.setLineWidth(0.3)
+        self.canv.rect(x, y, w, h)
+
+
+def render(document: dict[str, Any], seal: str, photos: Mapping[str, bytes] | None = None) -> bytes:
+    """Draw the record; attach its canonical JSON; return unsigned PDF bytes.
+
+    `photos` maps a photo's client uuid to its stored bytes; a photo not given is drawn as its
+    empty box. The same arguments give the same bytes on every run.
+    """
     s = _styles()
     photos = photos or {}
     record = document.get("record")
@@ -192,7 +334,6 @@ def render(document: dict[str, Any], seal: str, photos: dict[str, Path] | None =
         ),
     ]
     buffer = io.BytesIO()
-    _NumberedCanvas.seal = seal
     doc = SimpleDocTemplate(
         buffer,
         pagesize=A4,
@@ -204,8 +345,10 @@ def render(document: dict[str, Any], seal: str, photos: dict[str, Path] | None =
         author=sig["name"],
         subject=f"Seal {seal}",
         creator="Parapet",
+        producer="Parapet",
+        invariant=1,
     )
-    doc.build(story, canvasmaker=_NumberedCanvas)
+    doc.build(story, canvasmaker=_canvas_for(seal))
     return _attach(buffer.getvalue(), document)
 
 
@@ -335,7 +478,7 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]
 
 
 def _sheets(
-    record: dict[str, Any], s: dict[str, ParagraphStyle], photos: dict[str, Path]
+    record: dict[str, Any], s: dict[str, ParagraphStyle], photos: Mapping[str, bytes]
 ) -> list[Any]:
     subjects = {f"anchor:{a['id']}": f"anchor {a['label']}" for a in record["anchors"]}
     subjects |= {
@@ -361,9 +504,15 @@ def _sheets(
         )
         rows = [["Item", "Entry", "Verdict", "Margin"]]
         working: list[Any] = []
+        series: list[Any] = []
         for e in entries:
             value = e["value"] if e["kind"] != "calc" else "computed"
             unit = f" {e['unit']}" if e["unit"] and e["kind"] == "reading" else ""
+            samples = _samples(e["value"]) if e["kind"] == "series" else None
+            shown = _fmt(value) + unit
+            if samples is not None:
+                shown = _series_summary(samples, e["unit"] or "") + " (plotted and listed below)"
+                series += _series_block(e, samples, sheet["entries"], s)
             margin = (
                 "—"
                 if e["margin"] is None
@@ -373,44 +522,178 @@ def _sheets(
             reason = (e.get("working") or {}).get("reason") if e["kind"] == "calc" else None
             if e["verdict"] == "fail" and isinstance(reason, str) and reason.strip():
                 label += "\n" + reason.strip()  # why it failed, in the calculation's words
-            rows.append(
-                [
-                    _p(label, s["small"]),
-                    _p(_fmt(value) + unit, s["small"]),
-                    e["verdict"],
-                    margin,
-                ]
-            )
+            rows.append([_p(label, s["small"]), _p(shown, s["small"]), e["verdict"], margin])
             steps = (e.get("working") or {}).get("steps")
             if steps:
                 working += [_p(f"{e['item']}: working", s["small"])]
-                working += [_p("  " + step, s["mono"]) for step in steps]
+                working += [_p("  " + str(step), s["mono"]) for step in steps]
         highlight = [i + 1 for i, e in enumerate(entries) if e["verdict"] == "fail"]
-        block: list[Any] = [
-            head,
-            _table(rows, [60 * mm, 80 * mm, 20 * mm, 20 * mm], highlight=highlight),
-        ]
+        table = _table(rows, [60 * mm, 80 * mm, 20 * mm, 20 * mm], highlight=highlight)
+        block: list[Any] = [head, table]
         if sheet["remarks"]:
             block.append(_p(f"Remarks: {sheet['remarks']}", s["small"]))
-        story += [KeepTogether(block), *working]
-        thumbs = [
-            photos[p["client_uuid"]]
-            for p in record["photos"]
-            if p["sheet_uuid"] == sheet["client_uuid"] and p["client_uuid"] in photos
-        ]
-        if thumbs:
-            story.append(
-                Table(
-                    [
-                        [
-                            Image(str(t), width=40 * mm, height=30 * mm, kind="proportional")
-                            for t in thumbs[:4]
-                        ]
-                    ]
-                )
-            )
+        story += [KeepTogether(block), *series, *working]
+        shots = [p for p in record["photos"] if p["sheet_uuid"] == sheet["client_uuid"]]
+        if shots:
+            story.append(_photo_grid(shots, photos, s))
         story.append(Spacer(1, 3 * mm))
+    known = {sheet["client_uuid"] for sheet in record["sheets"]}
+    loose = [p for p in record["photos"] if p["sheet_uuid"] not in known]
+    if loose:
+        story += [_p("Photos not attached to a sheet", s["h3"]), _photo_grid(loose, photos, s)]
     return story
+
+
+def _reading(value: float) -> str:
+    return f"{value:.7g}"
+
+
+def _series_summary(samples: list[tuple[float, float]], unit: str) -> str:
+    values = [v for _, v in samples]
+    unit = f" {unit}" if unit else ""
+    return (
+        f"{len(samples)} readings over {_reading(samples[-1][0] - samples[0][0])} s: "
+        f"first {_reading(values[0])}{unit}, last {_reading(values[-1])}{unit}, "
+        f"lowest {_reading(min(values))}{unit}, highest {_reading(max(values))}{unit}"
+    )
+
+
+def _series_limits(entry: dict[str, Any], entries: list[dict[str, Any]]) -> list[tuple[str, float]]:
+    """The limit lines a series is drawn with: its own limits, if its working names any, and
+    the hold limit of a vacuum-decay calculation worked from these very readings."""
+    found: list[tuple[str, float]] = []
+    unit = entry.get("unit") or ""
+    limits = (entry.get("working") or {}).get("limits") or {}
+    for bound in ("min", "max"):
+        value = (limits.get(bound) or {}).get("value") if isinstance(limits, dict) else None
+        if _is_number(value):
+            found.append((f"{bound} {_reading(value)} {unit}", float(value)))
+    for other in entries:
+        inputs = (other.get("working") or {}).get("inputs") or {}
+        if (
+            other.get("kind") == "calc"
+            and isinstance(inputs, dict)
+            and unit == "kPa"
+            and inputs.get("samples") == entry["value"]
+            and _is_number(inputs.get("min_vacuum_kpa"))
+        ):
+            value = float(inputs["min_vacuum_kpa"])
+            found.append((f"hold limit {_reading(value)} kPa ({other['item']})", value))
+    return found
+
+
+def _series_plot(
+    samples: list[tuple[float, float]], unit: str, limits: list[tuple[str, float]]
+) -> Drawing:
+    regular, _ = _register_fonts()
+    width, height = PLOT_SIZE
+    drawing = Drawing(width, height)
+    plot = LinePlot()
+    plot.x, plot.y = 14 * mm, 10 * mm
+    plot.width, plot.height = width - 20 * mm, height - 16 * mm
+    times = [t for t, _ in samples]
+    values = [v for _, v in samples] + [v for _, v in limits]
+    low, high = min(values), max(values)
+    pad = (high - low) * 0.08 or max(abs(high) * 0.05, 1.0)
+    start, end = times[0], times[-1] if times[-1] > times[0] else times[0] + 1.0
+    plot.data = [samples] + [[(start, v), (end, v)] for _, v in limits]
+    plot.xValueAxis.valueMin, plot.xValueAxis.valueMax = start, end
+    plot.yValueAxis.valueMin, plot.yValueAxis.valueMax = low - pad, high + pad
+    for axis in (plot.xValueAxis, plot.yValueAxis):
+        axis.labels.fontName, axis.labels.fontSize = regular, 6.5
+        axis.labelTextFormat = "%g"
+        axis.strokeWidth = 0.4
+    plot.lines[0].strokeColor = colors.HexColor("#1f4e8c")
+    plot.lines[0].strokeWidth = 0.8
+    if len(samples) <= 120:
+        plot.lines[0].symbol = makeMarker("FilledCircle", size=2.2)
+    for n in range(1, len(limits) + 1):
+        plot.lines[n].strokeColor = colors.HexColor("#9b1111")
+        plot.lines[n].strokeWidth = 0.8
+        plot.lines[n].strokeDashArray = [3, 2]
+    drawing.add(plot)
+    drawing.add(String(width - 6 * mm, 2 * mm, "s", fontName=regular, fontSize=7))
+    drawing.add(String(2 * mm, height - 4 * mm, unit, fontName=regular, fontSize=7))
+    for n, (label, _) in enumerate(limits):
+        drawing.add(
+            String(
+                16 * mm,
+                height - 4 * mm - n * 3.2 * mm,
+                f"- - {label}",
+                fontName=regular,
+                fontSize=6.5,
+                fillColor=colors.HexColor("#9b1111"),
+            )
+        )
+    return drawing
+
+
+def _series_table(samples: list[tuple[float, float]], unit: str) -> Table:
+    """Every reading, READINGS_PER_ROW to a row, with the number of the row's first reading."""
+    regular, bold = _register_fonts()
+    pair = (170 * mm) / READINGS_PER_ROW / 2
+    rows: list[list[str]] = [["#"] + ["s", unit or "value"] * READINGS_PER_ROW]
+    for first in range(0, len(samples), READINGS_PER_ROW):
+        row = [str(first + 1)]
+        for t, v in samples[first : first + READINGS_PER_ROW]:
+            row += [_reading(t), _reading(v)]
+        rows.append(row + [""] * (len(rows[0]) - len(row)))
+    table = Table(rows, colWidths=[10 * mm] + [pair] * (2 * READINGS_PER_ROW), repeatRows=1)
+    table.setStyle(
+        TableStyle(
+            [
+                ("FONT", (0, 0), (-1, -1), regular, 6.5),
+                ("FONT", (0, 0), (-1, 0), bold, 6.5),
+                ("BACKGROUND", (0, 0), (-1, 0), colors.HexColor("#e4e4e4")),
+                ("TEXTCOLOR", (0, 1), (0, -1), colors.HexColor("#666666")),
+                ("ALIGN", (1, 0), (-1, -1), "RIGHT"),
+                ("GRID", (0, 0), (-1, -1), 0.2, colors.HexColor("#aaaaaa")),
+                ("TOPPADDING", (0, 0), (-1, -1), 1),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 1),
+                ("LEFTPADDING", (0, 0), (-1, -1), 2),
+                ("RIGHTPADDING", (0, 0), (-1, -1), 2),
+            ]
+        )
+    )
+    return table
+
+
+def _series_block(
+    entry: dict[str, Any],
+    samples: list[tuple[float, float]],
+    entries: list[dict[str, Any]],
+    s: dict[str, ParagraphStyle],
+) -> list[Any]:
+    unit = entry.get("unit") or ""
+    limits = _series_limits(entry, entries)
+    return [
+        Spacer(1, 2 * mm),
+        KeepTogether(
+            [
+                _p(f"{entry['item']}: {_series_summary(samples, unit)}", s["small"]),
+                _series_plot(samples, unit, limits),
+            ]
+        ),
+        _series_table(samples, unit),
+    ]
+
+
+def _photo_grid(
+    shots: list[dict[str, Any]], photos: Mapping[str, bytes], s: dict[str, ParagraphStyle]
+) -> Table:
+    """Every photo of the sealed list in a fixed box, with its item and the start of its hash."""
+    cells = [
+        [
+            _PhotoBox(p.get("width"), p.get("height"), photos.get(p["client_uuid"])),
+            _p(f"{p.get('item') or 'photo'} · sha256 {str(p.get('sha256', ''))[:12]}", s["small"]),
+        ]
+        for p in shots
+    ]
+    rows = [cells[i : i + PHOTOS_PER_ROW] for i in range(0, len(cells), PHOTOS_PER_ROW)]
+    rows[-1] += [""] * (PHOTOS_PER_ROW - len(rows[-1]))
+    table = Table(rows, colWidths=[45 * mm] * PHOTOS_PER_ROW)
+    table.setStyle(TableStyle([("VALIGN", (0, 0), (-1, -1), "TOP")]))
+    return table
 
 
 def _log(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]:
