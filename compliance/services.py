@@ -45,7 +45,11 @@ def _transition(job: Job, to_state: str, by: User | None, reason: str) -> Job:
 
 
 def _locked(job: Job) -> Job:
-    return Job.objects.select_for_update().select_related("site__profile").get(pk=job.pk)
+    """The job's row, locked until the transaction ends; its site and profile are read along
+    but not locked (every crew under one profile would otherwise wait on the others)."""
+    return (
+        Job.objects.select_for_update(of=("self",)).select_related("site__profile").get(pk=job.pk)
+    )
 
 
 def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
