@@ -1,8 +1,16 @@
-"""The daily record: a canonical JSON document of a job-day, sealed, signed and chained per site.
+"""The daily record: a canonical JSON document of a job-day, sealed, signed and chained.
 
 The seal is the SHA-256 of the RFC 8785 (JCS) serialisation of the document. The document holds
-the signature manifestation (printed name, role, meaning, time) and the previous record's seal,
-so the seal binds the signature to this record and to its place in the site's chain.
+the organisation, the site, the signature manifestation (signer's id, printed name, role,
+meaning, time, certificate) and the previous record's seal, so the seal binds all of them to
+this record and to its place in the chain. Each organisation keeps its own chain at each site
+(two contractors at one building never share one), and the chain's head is signed at every
+append so a verifier notices records removed from its end.
+
+The record also keeps a snapshot of the registers as they stood (site, equipment ratings and
+inspection dates, people's names, the profile), so routine register work never makes an old
+record look altered; the safety rows behind it (check sheets, entries, holds, transitions, drop
+logs, photos, the certifications in force) are append-only and compared with it in full.
 """
 
 import datetime as dt
@@ -24,17 +32,28 @@ from compliance.models import (
     Job,
     JobState,
     JobTransition,
+    JurisdictionProfile,
+    Organisation,
+    ProfileRevision,
+    RecordChainHead,
+    Site,
     User,
 )
 from compliance.sealing import ChainBreak, canonical_bytes, check_links, seal_of, utc
 from compliance.selectors import drops_of
-from compliance.signing import active_credential, sign_seal
+from compliance.signing import (
+    active_credential,
+    sha256_hex,
+    sign_chain_head,
+    sign_seal,
+    verify_seal_signature,
+)
 
-FORMAT = "parapet.daily-record/1"
+FORMAT = "parapet.daily-record/2"
 ADDENDUM_MEANING = (
     "Addendum: corrects or adds to the referenced record; the original stands unchanged."
 )
-ADDENDUM_FORMAT = "parapet.daily-record-addendum/1"
+ADDENDUM_FORMAT = "parapet.daily-record-addendum/2"
 MEANINGS = {
     "reviewed_safe": "Reviewed: the pre-start checks were complete and work was safe to proceed.",
     "reviewed_stopped": "Reviewed: work was stopped; the open holds are shown in this record.",
@@ -62,8 +81,26 @@ def _person(user: User | None) -> dict[str, Any] | None:
     return {"id": user.pk, "username": user.username, "name": user.display_name, "role": user.role}
 
 
-def day_content(job: Job) -> dict[str, Any]:
-    """Everything recorded for the job-day, from the database rows (no signature yet)."""
+def _certification(cert: AnchorCertification | None, day: dt.date) -> dict[str, Any] | None:
+    if cert is None:
+        return None
+    return {
+        "id": cert.pk,
+        "certifier": cert.certifier,
+        "company": cert.certifier_company,
+        "rated_capacity_kn": cert.rated_capacity_kn,
+        "certified_on": cert.certified_on.isoformat(),
+        "valid_until": cert.valid_until.isoformat(),
+        "valid_on_day": cert.is_valid_on(day),
+    }
+
+
+def day_content(job: Job, *, certifications: dict[int, int | None] | None = None) -> dict[str, Any]:
+    """Everything recorded for the job-day, from the database rows (no signature yet).
+
+    `certifications` (anchor id to certification id) names the certification each anchor had
+    when the record was sealed; without it, the one in force now is taken.
+    """
     site, profile = job.site, job.site.profile
     drops = drops_of(job)
     sheets = list(
@@ -85,22 +122,21 @@ def day_content(job: Job) -> dict[str, Any]:
     equipment: dict[int, Any] = {}
     for drop in drops:
         for anchor in (drop.anchor, drop.safety_anchor):
-            cert: AnchorCertification | None = anchor.current_certification()
+            if certifications is None:
+                cert: AnchorCertification | None = anchor.current_certification()
+            else:
+                cert_id = certifications.get(anchor.pk)
+                cert = (
+                    None
+                    if cert_id is None
+                    else AnchorCertification.objects.filter(pk=cert_id, anchor=anchor).first()
+                )
             anchors[anchor.pk] = {
                 "id": anchor.pk,
                 "label": anchor.label,
                 "x_m": anchor.x_m,
                 "y_m": anchor.y_m,
-                "certification": None
-                if cert is None
-                else {
-                    "certifier": cert.certifier,
-                    "company": cert.certifier_company,
-                    "rated_capacity_kn": cert.rated_capacity_kn,
-                    "certified_on": cert.certified_on.isoformat(),
-                    "valid_until": cert.valid_until.isoformat(),
-                    "valid_on_day": cert.is_valid_on(job.date),
-                },
+                "certification": _certification(cert, job.date),
             }
         for item in (drop.robot, drop.tether, drop.safety_line, drop.hose):
             equipment[item.pk] = {
@@ -172,6 +208,7 @@ def day_content(job: Job) -> dict[str, Any]:
                 "anchor": s.anchor_id,
                 "equipment": s.equipment_id,
                 "filled_by": s.filled_by.display_name,
+                "filled_by_id": s.filled_by_id,
                 "device_time": utc(s.device_time),
                 "received_at": utc(s.received_at),
                 "clock_offset_s": clock_offset_s(s.device_time, s.received_at),
@@ -201,6 +238,7 @@ def day_content(job: Job) -> dict[str, Any]:
                 "from": t.from_state,
                 "to": t.to_state,
                 "by": t.by.display_name if t.by else None,
+                "by_id": t.by_id,
                 "at": utc(t.at),
                 "reason": t.reason,
             }
@@ -210,6 +248,7 @@ def day_content(job: Job) -> dict[str, Any]:
             {
                 "drop": log.drop.label,
                 "by": log.by.display_name,
+                "by_id": log.by_id,
                 "device_time": utc(log.device_time),
                 "received_at": utc(log.received_at),
                 "note": log.note,
@@ -279,15 +318,21 @@ def open_holds_of(content: dict[str, Any]) -> list[dict[str, Any]]:
     return [h for h in content["holds"] if h["cleared_at"] is None]
 
 
-def _chain_position(site_id: int) -> tuple[int, str]:
-    last = (
-        DailyRecord.objects.select_for_update()
-        .filter(site_id=site_id)
-        .order_by("-sequence")
-        .values_list("sequence", "seal")
-        .first()
+def _locked_head(organisation_id: int, site_id: int) -> RecordChainHead:
+    """The chain's head row, created on the first append and locked until the transaction ends,
+    so two signers appending to one chain take their places one after the other."""
+    head, _ = RecordChainHead.objects.select_for_update().get_or_create(
+        organisation_id=organisation_id, site_id=site_id
     )
-    return (1, "") if last is None else (last[0] + 1, last[1])
+    return head
+
+
+def _parties(organisation: Organisation, site: Site) -> dict[str, Any]:
+    """Who keeps the chain and where: sealed, so a record cannot be moved to another tenant."""
+    return {
+        "organisation": {"id": organisation.pk, "name": organisation.name},
+        "site": {"id": site.pk, "name": site.name},
+    }
 
 
 SIGNING_METHOD = "user id and password re-entered at the moment of signing"
@@ -298,9 +343,11 @@ def signature_block(
 ) -> dict[str, Any]:
     """The signature manifestation sealed into a document: printed name, role, meaning, time."""
     return {
+        "user_id": by.pk,
         "name": by.display_name,
         "username": by.username,
         "role": by.get_role_display(),
+        "role_code": by.role,
         "meaning": meaning,
         "meaning_code": code,
         "signed_at": utc(signed_at),
@@ -327,7 +374,7 @@ def sign_daily_record(
     with transaction.atomic():
         job = (
             Job.objects.select_for_update()
-            .select_related("site__profile", "supervisor")
+            .select_related("site__profile", "supervisor", "organisation")
             .get(pk=job.pk)
         )
         if DailyRecord.objects.filter(job=job, kind="record").exists():
@@ -341,15 +388,18 @@ def sign_daily_record(
 
             close_job(job=job, by=by, reason="Signed off at day's end with the hold open.")
             job.refresh_from_db()
+        _keep_profile_revision(job.site.profile)
         content = day_content(job)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(
                 "This record has open holds; sign it as stopped or with exceptions."
             )
-        sequence, previous = _chain_position(job.site_id)
+        head = _locked_head(job.organisation_id, job.site_id)
+        sequence, previous = head.sequence + 1, head.seal
         signed_at = timezone.now()
         document = {
             "format": FORMAT,
+            **_parties(job.organisation, job.site),
             "sequence": sequence,
             "previous_seal": previous or None,
             "record": content,
@@ -359,25 +409,69 @@ def sign_daily_record(
                 by, MEANINGS[meaning], meaning, signed_at, credential.fingerprint_sha256
             ),
         }
-        seal = seal_of(document)
-        record = DailyRecord.objects.create(
+        record = _store(
+            document,
             kind=DailyRecord.Kind.RECORD,
-            organisation_id=job.organisation_id,
-            site_id=job.site_id,
             job=job,
-            sequence=sequence,
-            previous_seal=previous,
-            canonical_json=canonical_bytes(document).decode("utf-8"),
-            seal=seal,
-            seal_signature=sign_seal(seal, credential),
+            head=head,
             credential=credential,
-            signer=by,
-            signer_name=by.display_name,
-            signer_role=by.role,
-            meaning=MEANINGS[meaning],
+            by=by,
             signed_at=signed_at,
         )
-        transaction.on_commit(lambda: _queue_render(record.pk))
+    return record
+
+
+def _keep_profile_revision(profile: JurisdictionProfile) -> None:
+    """The profile content a record is sealed against is kept as a revision (append-only), so a
+    later change of the profile never leaves the record without the thresholds it names."""
+    if profile.revisions.filter(content_hash=profile.content_hash).exists():
+        return
+    last = profile.revisions.order_by("-number").values_list("number", flat=True).first()
+    ProfileRevision.objects.create(
+        profile=profile,
+        number=(last or 0) + 1,
+        name=profile.name,
+        thresholds=profile.thresholds,
+        cautions=profile.cautions,
+        content_hash=profile.content_hash,
+    )
+
+
+def _store(
+    document: dict[str, Any],
+    *,
+    kind: str,
+    job: Job,
+    head: RecordChainHead,
+    credential: Any,
+    by: User,
+    signed_at: dt.datetime,
+    amends: DailyRecord | None = None,
+    client_uuid: Any = None,
+) -> DailyRecord:
+    """Seal, sign and store a document at the head of its chain, then sign the new head."""
+    seal = seal_of(document)
+    record = DailyRecord.objects.create(
+        kind=kind,
+        organisation_id=head.organisation_id,
+        site_id=head.site_id,
+        job=job,
+        amends=amends,
+        sequence=document["sequence"],
+        previous_seal=document["previous_seal"] or "",
+        canonical_json=canonical_bytes(document).decode("utf-8"),
+        seal=seal,
+        seal_signature=sign_seal(seal, credential),
+        credential=credential,
+        signer=by,
+        signer_name=by.display_name,
+        signer_role=by.role,
+        meaning=document["signature"]["meaning"],
+        signed_at=signed_at,
+        client_uuid=client_uuid,
+    )
+    sign_chain_head(head, credential, sequence=record.sequence, seal=seal)
+    transaction.on_commit(lambda: _queue_render(record.pk))
     return record
 
 
@@ -387,8 +481,14 @@ def _queue_render(record_id: int) -> None:
     render_daily_record.delay(record_id)
 
 
-def add_addendum(*, record: DailyRecord, by: User, password: str, text: str) -> DailyRecord:
-    """A correction after signing: a new signed document that references the original."""
+def add_addendum(
+    *, record: DailyRecord, by: User, password: str, text: str, client_uuid: Any = None
+) -> DailyRecord:
+    """A correction after signing: a new signed document that references the original.
+
+    A request resent with the same `client_uuid` (a retry after a lost answer) returns the
+    addendum the first one made instead of adding a second.
+    """
     _authenticate(by, password)
     if not text.strip():
         raise InvalidTransition("An addendum needs its text.")
@@ -396,48 +496,54 @@ def add_addendum(*, record: DailyRecord, by: User, password: str, text: str) -> 
         raise NotPermitted("Unknown record.")
     credential = active_credential(record.organisation_id)
     with transaction.atomic():
-        sequence, previous = _chain_position(record.site_id)
+        head = _locked_head(record.organisation_id, record.site_id)
+        if client_uuid is not None:
+            earlier = DailyRecord.objects.filter(
+                organisation_id=record.organisation_id, client_uuid=client_uuid
+            ).first()
+            if earlier is not None:
+                if earlier.amends_id != record.pk or json.loads(earlier.canonical_json).get(
+                    "text"
+                ) != text:
+                    raise InvalidTransition(
+                        "This request id was already used for another addendum."
+                    )
+                return earlier
+        job = Job.objects.select_related("organisation", "site").get(pk=record.job_id)
         signed_at = timezone.now()
         document = {
             "format": ADDENDUM_FORMAT,
-            "sequence": sequence,
-            "previous_seal": previous or None,
+            **_parties(job.organisation, job.site),
+            "sequence": head.sequence + 1,
+            "previous_seal": head.seal or None,
             "amends": {
                 "seal": record.seal,
                 "sequence": record.sequence,
                 "job": record.job_id,
-                "date": json.loads(record.canonical_json)["record"]["job"]["date"],
+                "date": job.date.isoformat(),
             },
             "text": text,
             "signature": signature_block(
                 by, ADDENDUM_MEANING, "addendum", signed_at, credential.fingerprint_sha256
             ),
         }
-        seal = seal_of(document)
-        addendum = DailyRecord.objects.create(
+        addendum = _store(
+            document,
             kind=DailyRecord.Kind.ADDENDUM,
-            organisation_id=record.organisation_id,
-            site_id=record.site_id,
-            job_id=record.job_id,
-            amends=record,
-            sequence=sequence,
-            previous_seal=previous,
-            canonical_json=canonical_bytes(document).decode("utf-8"),
-            seal=seal,
-            seal_signature=sign_seal(seal, credential),
+            job=job,
+            head=head,
             credential=credential,
-            signer=by,
-            signer_name=by.display_name,
-            signer_role=by.role,
-            meaning=document["signature"]["meaning"],
+            by=by,
             signed_at=signed_at,
+            amends=record,
+            client_uuid=client_uuid,
         )
-        transaction.on_commit(lambda: _queue_render(addendum.pk))
     return addendum
 
 
 @dataclass
 class ChainReport:
+    organisation_id: int
     site_id: int
     records: int
     breaks: list[ChainBreak] = field(default_factory=list)
@@ -451,24 +557,167 @@ class ChainReport:
         return self.breaks[0] if self.breaks else None
 
 
-def verify_chain(site_id: int) -> ChainReport:
+def verify_chain(organisation_id: int, site_id: int) -> ChainReport:
+    """Check one organisation's chain at one site, link by link, and against its signed head."""
     rows = list(
-        DailyRecord.objects.filter(site_id=site_id)
+        DailyRecord.objects.filter(organisation_id=organisation_id, site_id=site_id)
         .order_by("sequence", "id")
         .values("sequence", "seal", "previous_seal", "canonical_json")
     )
-    report = ChainReport(site_id=site_id, records=len(rows))
+    report = ChainReport(organisation_id=organisation_id, site_id=site_id, records=len(rows))
     report.breaks = check_links(rows)
+    if report.breaks:
+        return report
+    head = (
+        RecordChainHead.objects.filter(organisation_id=organisation_id, site_id=site_id)
+        .select_related("credential")
+        .first()
+    )
+    last = rows[-1] if rows else None
+    if head is None or head.credential is None:
+        if last is not None:
+            report.breaks.append(
+                ChainBreak(last["sequence"], "head_missing", "The chain's signed head is missing.")
+            )
+        return report
+    try:
+        statement = json.loads(head.statement)
+        said = (statement["organisation"], statement["site"])
+        said += (statement["sequence"], statement["seal"])
+    except (ValueError, KeyError, TypeError):
+        said = None
+    if (
+        said != (organisation_id, site_id, head.sequence, head.seal)
+        or head.credential.organisation_id != organisation_id
+        or not verify_seal_signature(
+            sha256_hex(head.statement.encode("utf-8")),
+            head.signature,
+            head.credential.certificate_pem,
+        )
+    ):
+        report.breaks.append(
+            ChainBreak(
+                head.sequence,
+                "head_forged",
+                "The chain's head is not signed by the organisation for what it says.",
+            )
+        )
+        return report
+    if not head.credential.active:
+        report.breaks.append(
+            ChainBreak(
+                head.sequence,
+                "head_old_key",
+                "The chain's head is signed with a key the organisation has since replaced: it"
+                " was rolled back or re-signed with an old key.",
+            )
+        )
+        return report
+    ends = (0, "") if last is None else (last["sequence"], last["seal"])
+    if ends != (head.sequence, head.seal):
+        what = (
+            f"records {ends[0] + 1} to {head.sequence} were removed from its end"
+            if head.sequence > ends[0]
+            else f"it ends at record {ends[0]}, not at the record its head names"
+        )
+        report.breaks.append(
+            ChainBreak(
+                head.sequence,
+                "truncated" if head.sequence > ends[0] else "head_mismatch",
+                f"The chain's signed head names record {head.sequence}, but {what}.",
+            )
+        )
     return report
 
 
+def sealed_column_problems(record: DailyRecord) -> list[str]:
+    """The stored columns that disagree with what the record's seal covers (who signed, when,
+    with what meaning and key, for which organisation, site and job, and where in the chain)."""
+    doc = json.loads(record.canonical_json)
+    signature = doc.get("signature") or {}
+    job_id = (
+        (doc.get("record") or {}).get("job", {}).get("id")
+        if record.kind == DailyRecord.Kind.RECORD
+        else (doc.get("amends") or {}).get("job")
+    )
+    expected_format = FORMAT if record.kind == DailyRecord.Kind.RECORD else ADDENDUM_FORMAT
+    pairs = {
+        "kind": (doc.get("format"), expected_format),
+        "organisation": ((doc.get("organisation") or {}).get("id"), record.organisation_id),
+        "site": ((doc.get("site") or {}).get("id"), record.site_id),
+        "job": (job_id, record.job_id),
+        "sequence": (doc.get("sequence"), record.sequence),
+        "previous_seal": (doc.get("previous_seal") or "", record.previous_seal or ""),
+        "signer": (signature.get("user_id"), record.signer_id),
+        "signer_name": (signature.get("name"), record.signer_name),
+        "signer_role": (signature.get("role_code"), record.signer_role),
+        "meaning": (signature.get("meaning"), record.meaning),
+        "signed_at": (signature.get("signed_at"), utc(record.signed_at)),
+        "credential": (signature.get("certificate_sha256"), record.credential.fingerprint_sha256),
+    }
+    if record.kind == DailyRecord.Kind.ADDENDUM:
+        amended = DailyRecord.objects.filter(pk=record.amends_id).values_list("seal", flat=True)
+        pairs["amends"] = ((doc.get("amends") or {}).get("seal"), amended.first())
+    return [name for name, (sealed, stored) in pairs.items() if sealed != stored]
+
+
+REGISTER_SNAPSHOT = ("site", "profile", "people", "equipment")
+"""Parts of a record that copy mutable registers as they stood; later edits are routine."""
+
+
+def _safety_view(content: dict[str, Any]) -> dict[str, Any]:
+    """The parts of a day's content that come from append-only safety rows (and the job), with
+    the register snapshot and people's printed names left out (ids stay)."""
+    view = {k: v for k, v in content.items() if k not in REGISTER_SNAPSHOT}
+    job = dict(content.get("job") or {})
+    job["supervisor"] = (job.get("supervisor") or {}).get("id")
+    view["job"] = job
+    view["anchors"] = [
+        {"id": a.get("id"), "certification": a.get("certification")}
+        for a in content.get("anchors") or []
+    ]
+    view["equipment"] = [e.get("id") for e in content.get("equipment") or []]
+    view["sheets"] = [
+        {k: v for k, v in s.items() if k != "filled_by"} for s in content.get("sheets") or []
+    ]
+    for name in ("transitions", "drops_done"):
+        view[name] = [{k: v for k, v in t.items() if k != "by"} for t in content.get(name) or []]
+    return view
+
+
 def verify_against_database(record: DailyRecord) -> list[str]:
-    """Compare a sealed record with the rows behind it today; return the differing paths."""
+    """Compare a sealed record with the safety rows behind it today; return the differing paths.
+
+    Certifications are taken as the record names them (they are append-only: a renewal adds a
+    row and leaves the old one); register fields are the record's own snapshot, except the
+    profile, which must be a stored revision with exactly the sealed thresholds.
+    """
     if record.kind != DailyRecord.Kind.RECORD:
         return []
     sealed = json.loads(record.canonical_json)["record"]
-    live = json.loads(canonical_bytes(day_content(record.job)))
-    return _differences(sealed, live, "record")
+    certifications = {
+        a["id"]: (a.get("certification") or {}).get("id") for a in sealed.get("anchors") or []
+    }
+    live = json.loads(canonical_bytes(day_content(record.job, certifications=certifications)))
+    problems = _differences(_safety_view(sealed), _safety_view(live), "record")
+    profile = sealed.get("profile") or {}
+    if not _profile_stored(profile):
+        problems.append("record.profile")
+    return problems
+
+
+def _profile_stored(profile: dict[str, Any]) -> bool:
+    revision = (
+        ProfileRevision.objects.filter(
+            profile__key=profile.get("key"), content_hash=profile.get("content_hash")
+        )
+        .values("thresholds", "cautions")
+        .first()
+    )
+    return revision is not None and (
+        json.loads(canonical_bytes(revision["thresholds"])) == profile.get("thresholds")
+        and revision["cautions"] == profile.get("cautions")
+    )
 
 
 def _differences(a: Any, b: Any, path: str) -> list[str]:

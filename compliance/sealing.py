@@ -87,3 +87,20 @@ def check_links(rows: list[dict[str, Any]]) -> list[ChainBreak]:
             return breaks
         expected_previous = row["seal"]
     return breaks
+
+
+HEAD_FORMAT = "parapet.chain-head/1"
+
+
+def head_statement(
+    *, organisation_id: int, site_id: int, sequence: int, seal: str, signed_at: dt.datetime
+) -> dict[str, Any]:
+    """What a chain's signed head says: this organisation's chain at this site ends here."""
+    return {
+        "format": HEAD_FORMAT,
+        "organisation": organisation_id,
+        "site": site_id,
+        "sequence": sequence,
+        "seal": seal,
+        "signed_at": utc(signed_at),
+    }

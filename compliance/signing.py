@@ -24,7 +24,8 @@ from pyhanko.pdf_utils.incremental_writer import IncrementalPdfFileWriter
 from pyhanko.sign import fields, signers
 from pyhanko_certvalidator.registry import SimpleCertificateStore
 
-from compliance.models import Organisation, SigningCredential
+from compliance.models import Organisation, RecordChainHead, SigningCredential
+from compliance.sealing import canonical_bytes, head_statement
 
 
 class NoSigningCredential(Exception):
@@ -57,8 +58,10 @@ def store_credential(
         serialization.PrivateFormat.PKCS8,
         serialization.BestAvailableEncryption(_passphrase()),
     )
-    SigningCredential.objects.filter(organisation=organisation, active=True).update(active=False)
-    return SigningCredential.objects.create(
+    SigningCredential.objects.filter(organisation=organisation, active=True).update(
+        active=False, retired_at=timezone.now()
+    )
+    credential = SigningCredential.objects.create(
         organisation=organisation,
         certificate_pem=cert.public_bytes(serialization.Encoding.PEM).decode(),
         encrypted_key_pem=encrypted.decode(),
@@ -67,6 +70,11 @@ def store_credential(
         not_after=cert.not_valid_after_utc,
         self_signed=cert.issuer == cert.subject,
     )
+    # The heads of the organisation's chains are signed again with the new key: from now on a
+    # head signed with the old one (say, by someone who copied it) is not accepted.
+    for head in RecordChainHead.objects.select_for_update().filter(organisation=organisation):
+        sign_chain_head(head, credential, sequence=head.sequence, seal=head.seal)
+    return credential
 
 
 def create_self_signed(*, organisation: Organisation, days: int = 3650) -> SigningCredential:
@@ -195,6 +203,26 @@ def sign_pdf(
     )
     out = signers.PdfSigner(meta, signer=signer).sign_pdf(writer)
     return out.getvalue()
+
+
+def sign_chain_head(
+    head: RecordChainHead, credential: SigningCredential, *, sequence: int, seal: str
+) -> RecordChainHead:
+    """Move a chain's head to (sequence, seal) and sign the statement with `credential`."""
+    raw = canonical_bytes(
+        head_statement(
+            organisation_id=head.organisation_id,
+            site_id=head.site_id,
+            sequence=sequence,
+            seal=seal,
+            signed_at=timezone.now(),
+        )
+    )
+    head.sequence, head.seal, head.statement = sequence, seal, raw.decode("utf-8")
+    head.signature = sign_seal(sha256_hex(raw), credential)
+    head.credential = credential
+    head.save()
+    return head
 
 
 def sha256_hex(data: bytes) -> str:

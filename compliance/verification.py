@@ -306,7 +306,11 @@ def check_content(report: Report, data: bytes) -> dict[str, Any] | None:
 
 def check_database(report: Report, seal: str) -> Any:
     """The stored record behind `seal` (None when there is none), checked against the file."""
-    from compliance.daily_records import verify_against_database, verify_chain
+    from compliance.daily_records import (
+        sealed_column_problems,
+        verify_against_database,
+        verify_chain,
+    )
     from compliance.models import DailyRecord
     from compliance.signing import verify_seal_signature
 
@@ -319,7 +323,10 @@ def check_database(report: Report, seal: str) -> Any:
         )
         return None
     report.add(
-        "record_stored", True, f"Stored as record {record.sequence} of site {record.site_id}."
+        "record_stored",
+        True,
+        f"Stored as record {record.sequence} of its organisation's chain at site"
+        f" {record.site_id}.",
     )
     if hashlib.sha256(record.canonical_json.encode()).hexdigest() != record.seal:
         report.add(
@@ -360,6 +367,28 @@ def check_database(report: Report, seal: str) -> Any:
         True,
         "The PDF and the seal were signed with the record's own organisation's certificate.",
     )
+    if credential.retired_at is not None and record.signed_at > credential.retired_at:
+        report.add(
+            "key_in_use_when_signed",
+            False,
+            "The record claims a signing time after its key was replaced: it was signed later"
+            " with an old key.",
+        )
+        return record
+    columns = sealed_column_problems(record)
+    if columns:
+        report.add(
+            "stored_columns_sealed",
+            False,
+            "The stored record's columns differ from what its seal covers"
+            f" ({', '.join(columns)}): they were edited, or the record was moved.",
+        )
+        return record
+    report.add(
+        "stored_columns_sealed",
+        True,
+        "Organisation, site, job, signer, meaning, time and place in the chain are as sealed.",
+    )
     differences = verify_against_database(record)
     if differences:
         shown = ", ".join(differences[:3]) + (" …" if len(differences) > 3 else "")
@@ -370,13 +399,20 @@ def check_database(report: Report, seal: str) -> Any:
         )
         return record
     report.add("rows_unchanged", True, "The rows behind the record still match what was sealed.")
-    chain = verify_chain(record.site_id)
+    chain = verify_chain(record.organisation_id, record.site_id)
     if not chain.ok:
         report.add(
-            "chain_intact", False, f"The site's chain is broken: {chain.first_break.message}"
-        )  # type: ignore[union-attr]
+            "chain_intact",
+            False,
+            f"The organisation's chain at this site is broken: {chain.first_break.message}",  # type: ignore[union-attr]
+        )
         return record
-    report.add("chain_intact", True, f"The site's chain of {chain.records} records is intact.")
+    report.add(
+        "chain_intact",
+        True,
+        f"The organisation's chain of {chain.records} records at this site is intact and ends"
+        " where its signed head says.",
+    )
     return record
 
 

@@ -82,6 +82,7 @@ def test_a_genuine_record_verifies(signed, signed_pdf):
         "record_stored",
         "stored_record_intact",
         "signer_is_the_records_organisation",
+        "stored_columns_sealed",
         "rows_unchanged",
         "chain_intact",
         "signer_vouched",
@@ -206,7 +207,7 @@ def test_editing_the_stored_canonical_json_is_detected(signed, signed_pdf):
             [signed.pk],
         )
     assert failed(verify_pdf(signed_pdf)) == "stored_record_intact"
-    assert verify_chain(signed.site_id).first_break.code == "altered"
+    assert verify_chain(signed.organisation_id, signed.site_id).first_break.code == "altered"
 
 
 def _three_days(signed, simple_checklists, operator, supervisor):
@@ -227,14 +228,14 @@ def test_the_chain_links_each_day_to_the_one_before(
     assert (
         records[1].previous_seal == records[0].seal and records[2].previous_seal == records[1].seal
     )
-    assert verify_chain(signed.site_id).ok
+    assert verify_chain(signed.organisation_id, signed.site_id).ok
 
 
 def test_deleting_a_day_is_detected(signed, simple_checklists, operator, supervisor):
     records = _three_days(signed, simple_checklists, operator, supervisor)
     with connection.cursor() as cursor:
         cursor.execute("DELETE FROM compliance_dailyrecord WHERE id = %s", [records[1].pk])
-    first = verify_chain(signed.site_id).first_break
+    first = verify_chain(signed.organisation_id, signed.site_id).first_break
     assert (first.code, first.sequence) == ("missing", 3)
 
 
@@ -250,7 +251,7 @@ def test_reordering_days_is_detected(signed, simple_checklists, operator, superv
         cursor.execute(
             "UPDATE compliance_dailyrecord SET sequence = 3 WHERE id = %s", [records[1].pk]
         )
-    first = verify_chain(signed.site_id).first_break
+    first = verify_chain(signed.organisation_id, signed.site_id).first_break
     assert first.sequence == 2 and first.code == "altered"
 
 
