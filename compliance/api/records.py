@@ -2,8 +2,10 @@
 
 import datetime as dt
 import json
+import logging
 from typing import Any
 
+from django.db import transaction
 from django.db.models import QuerySet
 from django.http import FileResponse, HttpResponse
 from drf_spectacular.utils import OpenApiParameter, extend_schema, inline_serializer
@@ -18,9 +20,13 @@ from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.daily_records import MEANINGS, add_addendum
-from compliance.models import DailyRecord, Site
+from compliance.models import DailyRecord, RecordPdf, Site
+from compliance.tasks import queue_render
 
 MAX_UPLOAD = 50 * 1024 * 1024
+PDF_RETRY_AFTER_S = 5
+
+logger = logging.getLogger(__name__)
 
 
 class SignInput(StrictInput, serializers.Serializer):
@@ -61,6 +67,7 @@ class RecordSerializer(serializers.ModelSerializer):
         return record.job.date.isoformat()
 
     def get_pdf_ready(self, record: DailyRecord) -> bool:
+        """False while the PDF renders: GET .../pdf/ answers 202 until then."""
         return hasattr(record, "pdf")
 
 
@@ -83,14 +90,33 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
             {**self.get_serializer(record).data, "document": json.loads(record.canonical_json)}
         )
 
-    @extend_schema(responses={(200, "application/pdf"): bytes})
+    @extend_schema(
+        responses={
+            (200, "application/pdf"): bytes,
+            202: inline_serializer(
+                "PdfRendering",
+                {"status": serializers.CharField(), "detail": serializers.CharField()},
+            ),
+        }
+    )
     @action(detail=True, methods=["get"])
     def pdf(self, request: Request, pk: str | None = None) -> HttpResponse:
-        """The signed PDF; rendered now if the background task has not run yet."""
-        from compliance.record_files import ensure_pdf
-
+        """The signed PDF; while it is being rendered, 202 with Retry-After (never rendered in
+        the request: a missing PDF is queued for the background render)."""
         record = self.get_object()
-        stored = ensure_pdf(record)
+        stored = RecordPdf.objects.filter(record=record).first()
+        if stored is None:
+            queue_render(record.pk)
+            response = Response(
+                {
+                    "status": "rendering",
+                    "detail": "The record is sealed; its PDF is being rendered. Ask again "
+                    f"in {PDF_RETRY_AFTER_S} seconds.",
+                },
+                status=status.HTTP_202_ACCEPTED,
+            )
+            response["Retry-After"] = str(PDF_RETRY_AFTER_S)
+            return response
         response = FileResponse(stored.file.open("rb"), content_type="application/pdf")
         response["Content-Disposition"] = (
             f'attachment; filename="daily-record-{record.site_id}-{record.sequence}.pdf"'
@@ -117,16 +143,15 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
     @action(detail=False, methods=["get"])
     def export(self, request: Request) -> HttpResponse:
         """All signed PDFs of a site and period plus a manifest that verifies offline."""
-        from compliance.record_files import build_export
-
         errors: dict[str, list[str]] = {}
         site_id = query_id(request.query_params, "site")
-        site = (
-            Site.objects.filter(organisation_id=request.user.organisation_id, pk=site_id).first()
-            if site_id is not None
-            else None
-        )
-        if site is None:
+        scope = None
+        if site_id is not None:
+            try:
+                scope = export_scope(user=request.user, site_id=site_id)
+            except NotPermitted:
+                scope = None
+        if scope is None:
             errors["site"] = ["Unknown site."]
         dates: dict[str, dt.date] = {}
         for name in ("start", "end"):
@@ -140,20 +165,32 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
             errors["end"] = ["An export covers at most 400 days."]
         if errors:
             return Response(errors, status=status.HTTP_400_BAD_REQUEST)
-        data = build_export(site, dates["start"], dates["end"])  # type: ignore[arg-type]
+        assert scope is not None
+        data = build_export(scope=scope, by=request.user, start=dates["start"], end=dates["end"])
         response = HttpResponse(data, content_type="application/zip")
         response["Content-Disposition"] = (
-            f'attachment; filename="records-{site.pk}-{dates["start"]}-{dates["end"]}.zip"'  # type: ignore[union-attr]
+            f'attachment; filename="records-{scope.site.pk}-{dates["start"]}-{dates["end"]}.zip"'
         )
         return response
 
 
 def sign_job(request: Request, job: Any) -> Response:
+    """Seal and sign the day: 201 with the sealed record once it is committed, whether its
+    PDF rendered, is still rendering or failed to render (the render is retried apart)."""
     from compliance.daily_records import sign_daily_record
 
     data = SignInput(data=request.data)
     data.is_valid(raise_exception=True)
-    record = sign_daily_record(job=job, by=request.user, **data.validated_data)
+    record = None
+    try:
+        # The render is queued when this block commits; whatever happens in it after the
+        # commit is the render's business, not the signature's.
+        with transaction.atomic():
+            record = sign_daily_record(job=job, by=request.user, **data.validated_data)
+    except Exception:
+        if record is None or not DailyRecord.objects.filter(pk=record.pk).exists():
+            raise
+        logger.exception("record %s is sealed; queueing its render failed", record.pk)
     return Response(RecordSerializer(record).data, status=status.HTTP_201_CREATED)
 
 
