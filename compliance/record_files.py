@@ -1,22 +1,18 @@
-"""Rendering and signing a record's PDF, and building an auditor's export of a site-period."""
+"""Rendering and signing a record's PDF once, and sweeping files no record names."""
 
 import datetime as dt
-import io
 import json
 import logging
-import zipfile
 from typing import Any
 
-import rfc8785
 from django.core.files.base import ContentFile
 from django.core.files.storage import Storage
 from django.db import IntegrityError, transaction
 
 from checklists.models import Photo
-from compliance.models import DailyRecord, RecordPdf, SigningCredential, Site
+from compliance.models import DailyRecord, RecordPdf
 from compliance.record_pdf import render
-from compliance.signing import active_credential, sha256_hex, sign_pdf, sign_seal
-from compliance.verification import MANIFEST, MANIFEST_SIGNATURE, merkle_root
+from compliance.signing import sha256_hex, sign_pdf
 
 logger = logging.getLogger(__name__)
 
@@ -122,78 +118,3 @@ def sweep_orphan_pdfs(*, older_than: dt.timedelta, now: dt.datetime) -> list[str
         removed.append(name)
         logger.warning("removed %s: a record PDF no row names (an interrupted render)", name)
     return removed
-
-
-def export_filename(record: DailyRecord) -> str:
-    return f"records/{record.sequence:05d}-{record.kind}-{record.seal[:12]}.pdf"
-
-
-def build_export(site: Site, start: dt.date, end: dt.date) -> bytes:
-    """All records of a site-period as signed PDFs plus a manifest that verifies offline."""
-    records = list(
-        DailyRecord.objects.filter(site=site, job__date__gte=start, job__date__lte=end)
-        .select_related("credential", "site", "site__organisation")
-        .order_by("sequence")
-    )
-    buffer = io.BytesIO()
-    with zipfile.ZipFile(buffer, "w", zipfile.ZIP_DEFLATED) as archive:
-        entries = []
-        for record in records:
-            pdf = ensure_pdf(record)
-            with pdf.file.open("rb") as handle:
-                data = handle.read()
-            archive.writestr(export_filename(record), data)
-            entries.append(
-                {
-                    "sequence": record.sequence,
-                    "kind": record.kind,
-                    "date": json.loads(record.canonical_json)
-                    .get("record", {})
-                    .get("job", {})
-                    .get("date"),
-                    "seal": record.seal,
-                    "previous_seal": record.previous_seal,
-                    "file": export_filename(record),
-                    "file_sha256": sha256_hex(data),
-                    "signer": record.signer_name,
-                    "meaning": record.meaning,
-                }
-            )
-        certs = sorted(
-            set(
-                SigningCredential.objects.filter(
-                    organisation_id__in={
-                        site.organisation_id,
-                        *(r.organisation_id for r in records),
-                    }
-                ).values_list("certificate_pem", flat=True)
-            )
-        )
-        manifest = {
-            "format": "parapet.export/2",
-            "organisation": {"id": site.organisation_id, "name": site.organisation.name},
-            "site": {"id": site.pk, "name": site.name},
-            "period": {"start": start.isoformat(), "end": end.isoformat()},
-            "records": entries,
-            "merkle_root": merkle_root([bytes.fromhex(e["seal"]) for e in entries]),
-            "certificates": certs,
-            "how_to_verify": (
-                "python manage.py verify-record THIS.zip --trust FILE, FILE holding the"
-                " organisation's certificate fingerprints or CA (no database needed)"
-            ),
-        }
-        raw = rfc8785.dumps(manifest)
-        credential = active_credential(site.organisation_id)
-        archive.writestr(MANIFEST, raw)
-        archive.writestr(
-            MANIFEST_SIGNATURE,
-            json.dumps(
-                {
-                    "signs": f"SHA-256 of {MANIFEST}, RSA-PSS",
-                    "signature": sign_seal(sha256_hex(raw), credential),
-                    "certificate_pem": credential.certificate_pem,
-                },
-                indent=2,
-            ),
-        )
-    return buffer.getvalue()

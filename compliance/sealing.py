@@ -89,6 +89,26 @@ def check_links(rows: list[dict[str, Any]]) -> list[ChainBreak]:
     return breaks
 
 
+def merkle_root(leaves: list[bytes]) -> str:
+    """RFC 6962 section 2.1 Merkle tree hash: 0x00 prefix for leaves, 0x01 for inner nodes."""
+
+    def mth(items: list[bytes]) -> bytes:
+        if not items:
+            return hashlib.sha256(b"").digest()
+        if len(items) == 1:
+            return hashlib.sha256(b"\x00" + items[0]).digest()
+        k = 1
+        while k * 2 < len(items):
+            k *= 2
+        return hashlib.sha256(b"\x01" + mth(items[:k]) + mth(items[k:])).digest()
+
+    return mth(leaves).hex()
+
+
+EXPORT_FORMAT = "parapet.export/3"
+EXPORT_MANIFEST = "manifest.json"
+EXPORT_MANIFEST_SIGNATURE = "manifest.sig.json"
+
 HEAD_FORMAT = "parapet.chain-head/1"
 
 

@@ -6,6 +6,7 @@ manifest); the seal is recomputed from the attached canonical JSON; the stored r
 behind it and the site's chain are compared when a database is at hand.
 """
 
+import datetime as dt
 import hashlib
 import io
 import itertools
@@ -23,6 +24,16 @@ from pyhanko.sign.validation.status import SignatureCoverageLevel
 from pyhanko_certvalidator import ValidationContext
 
 from compliance.record_pdf import printed_seal, read_attachment
+from compliance.sealing import (
+    EXPORT_FORMAT,
+    merkle_root,
+)
+from compliance.sealing import (
+    EXPORT_MANIFEST as MANIFEST,
+)
+from compliance.sealing import (
+    EXPORT_MANIFEST_SIGNATURE as MANIFEST_SIGNATURE,
+)
 
 
 @dataclass
@@ -55,6 +66,8 @@ class Report:
     vouched: bool = False
     """True only when the signer was checked against a trust anchor and found in it."""
     trust_source: str = ""
+    document: dict[str, Any] | None = field(default=None, repr=False, compare=False)
+    """The sealed document attached to the PDF, once its seal checked out."""
 
     @property
     def intact(self) -> bool:
@@ -325,8 +338,7 @@ def check_database(report: Report, seal: str) -> Any:
     report.add(
         "record_stored",
         True,
-        f"Stored as record {record.sequence} of its organisation's chain at site"
-        f" {record.site_id}.",
+        f"Stored as record {record.sequence} of its organisation's chain at site {record.site_id}.",
     )
     if hashlib.sha256(record.canonical_json.encode()).hexdigest() != record.seal:
         report.add(
@@ -436,6 +448,7 @@ def verify_pdf(
     document = check_content(report, data)
     if document is None:
         return report
+    report.document = document
     if use_database:
         if document.get("format") == LOG_BOOK_FORMAT:
             check_log_book(report, document)
@@ -520,24 +533,6 @@ def check_log_book(report: Report, document: dict[str, Any]) -> None:
     report.add("chain_intact", True, "The site's anchor log is unbroken.")
 
 
-def merkle_root(leaves: list[bytes]) -> str:
-    """RFC 6962 section 2.1 Merkle tree hash: 0x00 prefix for leaves, 0x01 for inner nodes."""
-
-    def mth(items: list[bytes]) -> bytes:
-        if not items:
-            return hashlib.sha256(b"").digest()
-        if len(items) == 1:
-            return hashlib.sha256(b"\x00" + items[0]).digest()
-        k = 1
-        while k * 2 < len(items):
-            k *= 2
-        return hashlib.sha256(b"\x01" + mth(items[:k]) + mth(items[k:])).digest()
-
-    return mth(leaves).hex()
-
-
-MANIFEST = "manifest.json"
-MANIFEST_SIGNATURE = "manifest.sig.json"
 MAX_MANIFEST_BYTES = 8 * 1024 * 1024
 MAX_PDF_BYTES = 50 * 1024 * 1024
 MAX_EXPORT_BYTES = 2 * 1024 * 1024 * 1024
@@ -557,13 +552,25 @@ def _read_capped(archive: zipfile.ZipFile, name: str, cap: int) -> bytes:
     return data
 
 
+class _Refused(Exception):
+    """A check of the export failed; its name and words are in the report."""
+
+
+def _need(report: Report, name: str, ok: bool, detail: str) -> None:
+    if not ok:
+        report.add(name, False, detail)
+        raise _Refused
+
+
 def verify_export(
     data: bytes, *, trust: TrustList | None = None, use_database: bool = False
 ) -> Report:
-    """Verify an export: its signed manifest, the Merkle root and chain of its seals, and that
-    every PDF is the one the manifest names, intact and signed by the manifest's organisation.
-    VERIFIED needs a trust anchor: `trust`, or with the database the certificates the
-    manifest's organisation registered; without one the answer is integrity only."""
+    """Verify an export: its signed manifest, the Merkle root of its seals, and for each
+    organisation's chain in it that the records follow one another up to the chain's signed
+    head, and that every PDF is the one the manifest names, intact, sealed for that organisation
+    and site and signed with that organisation's certificate. VERIFIED needs a trust anchor:
+    `trust`, or with the database the certificates each organisation registered; without one
+    the answer is integrity only."""
     report = Report(subject="this export")
     try:
         archive = zipfile.ZipFile(io.BytesIO(data))
@@ -572,14 +579,18 @@ def verify_export(
         raw = _read_capped(archive, MANIFEST, MAX_MANIFEST_BYTES)
         manifest = json.loads(raw)
         signature = json.loads(_read_capped(archive, MANIFEST_SIGNATURE, MAX_MANIFEST_BYTES))
-        entries = manifest["records"]
-        organisation = manifest["organisation"]
-        allowed = {
-            hashlib.sha256(c.dump()).hexdigest() for c in _certs(list(manifest["certificates"]))
-        }
-        cert_pem = signature["certificate_pem"]
+        if manifest["format"] != EXPORT_FORMAT:
+            raise ValueError("format")
+        chains = list(manifest["chains"])
+        exporter = manifest["exported_by"]
+        site_id = manifest["site"]["id"]
+        period = (
+            dt.date.fromisoformat(manifest["period"]["start"]),
+            dt.date.fromisoformat(manifest["period"]["end"]),
+        )
+        cert_pem = str(signature["certificate_pem"])
         [signer_cert] = _certs([cert_pem])
-        seals = [bytes.fromhex(e["seal"]) for e in entries]
+        seals = [bytes.fromhex(e["seal"]) for c in chains for e in c["records"]]
     except (zipfile.BadZipFile, KeyError, TypeError, ValueError, AttributeError) as exc:
         why = str(exc) if "inflate" in str(exc) else type(exc).__name__
         report.add("manifest", False, f"The export has no readable, signed manifest ({why}).")
@@ -589,10 +600,9 @@ def verify_export(
         return report
     from compliance.signing import verify_seal_signature
 
-    manifest_seal = hashlib.sha256(raw).hexdigest()
     fingerprint = hashlib.sha256(signer_cert.dump()).hexdigest()
-    if fingerprint not in allowed or not verify_seal_signature(
-        manifest_seal, str(signature.get("signature", "")), cert_pem
+    if not verify_seal_signature(
+        hashlib.sha256(raw).hexdigest(), str(signature.get("signature", "")), cert_pem
     ):
         report.add(
             "manifest",
@@ -603,9 +613,13 @@ def verify_export(
     report.signer = Signer(
         subject=signer_cert.subject.human_friendly,
         fingerprint_sha256=fingerprint,
-        organisation=str(organisation.get("name", "")),
+        organisation=str(exporter.get("name", "")) if isinstance(exporter, dict) else "",
     )
-    report.add("manifest", True, f"The manifest lists {len(entries)} records and is signed.")
+    report.add(
+        "manifest",
+        True,
+        f"The manifest lists {len(seals)} records in {len(chains)} chains and is signed.",
+    )
     if merkle_root(seals) != manifest.get("merkle_root"):
         report.add(
             "merkle_root",
@@ -616,51 +630,130 @@ def verify_export(
         return report
     report.add("merkle_root", True, "The list of seals matches the manifest's Merkle root.")
     try:
-        breaks = _relative_links(entries)
-    except (KeyError, TypeError) as exc:
+        for chain in chains:
+            _check_export_chain(report, archive, chain, site_id, period, trust, use_database)
+    except _Refused:
+        return report
+    except (KeyError, TypeError, ValueError, AttributeError) as exc:
         report.add("chain_intact", False, f"A manifest entry is malformed ({type(exc).__name__}).")
         return report
-    if breaks:
-        report.add("chain_intact", False, f"The chain in the export is broken: {breaks}")
-        return report
-    report.add("chain_intact", True, "Each record follows the one before it.")
-    if trust is None and use_database and isinstance(organisation.get("id"), int):
-        trust = organisation_trust(organisation["id"])
-    for entry in entries:
-        name = str(entry.get("file"))
-        try:
-            pdf = _read_capped(archive, name, MAX_PDF_BYTES)
-        except KeyError:
-            report.add(f"file:{name}", False, f"{name} is listed but missing.")
-            return report
-        except (ValueError, zipfile.BadZipFile, OSError) as exc:
-            report.add(f"file:{name}", False, f"{name} cannot be read ({exc}).")
-            return report
-        if hashlib.sha256(pdf).hexdigest() != entry.get("file_sha256"):
-            report.add(
-                f"file:{name}", False, f"{name} is not the file the manifest names: it was swapped."
-            )
-            return report
-        sub = verify_pdf(pdf, trust=trust, use_database=False, name=name)
-        if not sub.intact:
-            report.add(f"file:{name}", False, sub.verdict())
-            return report
-        if sub.seal != entry.get("seal"):
-            report.add(f"file:{name}", False, f"{name} carries another record's seal.")
-            return report
-        if sub.signer is None or sub.signer.fingerprint_sha256 not in allowed:
-            report.add(
-                f"file:{name}",
-                False,
-                f"{name} was signed by a certificate the manifest does not list.",
-            )
-            return report
-        if trust is not None and not trust.empty and not sub.vouched:
-            report.add(f"file:{name}", False, sub.verdict())
-            return report
-        report.add(f"file:{name}", True, f"{name} is intact and is the file the manifest names.")
+    if trust is None and use_database and isinstance(exporter.get("id"), int):
+        trust = organisation_trust(exporter["id"])
     check_trust(report, trust, False)
     return report
+
+
+def _check_export_chain(
+    report: Report,
+    archive: zipfile.ZipFile,
+    chain: dict[str, Any],
+    site_id: int,
+    period: tuple[dt.date, dt.date],
+    trust: TrustList | None,
+    use_database: bool,
+) -> None:
+    """One organisation's chain in an export: links, signed head, nothing of the period left
+    out after it, and each PDF."""
+    from compliance.signing import verify_seal_signature
+
+    org = chain["organisation"]
+    name = str(org["name"])
+    certs = {
+        hashlib.sha256(c.dump()).hexdigest(): pem
+        for pem in chain["certificates"]
+        for c in _certs([pem])
+    }
+    records, later = list(chain["records"]), list(chain["after_period"])
+    breaks = _relative_links(records + later)
+    _need(report, "chain_intact", not breaks, f"{name}'s chain in the export is broken: {breaks}")
+    left_out = [
+        e["sequence"] for e in later if period[0].isoformat() <= e["date"] <= period[1].isoformat()
+    ]
+    _need(
+        report,
+        "chain_intact",
+        not left_out,
+        f"{name}'s records {left_out} fall in the period but are not in the export.",
+    )
+    head = chain["head"]
+    statement = json.loads(head["statement"])
+    pem = certs.get(str(head["certificate_sha256"]))
+    last = (records + later)[-1] if records or later else {"sequence": 0, "seal": ""}
+    _need(
+        report,
+        "chain_head",
+        pem is not None
+        and verify_seal_signature(
+            hashlib.sha256(str(head["statement"]).encode("utf-8")).hexdigest(),
+            str(head["signature"]),
+            pem,
+        )
+        and (statement["organisation"], statement["site"]) == (org["id"], site_id),
+        f"{name}'s chain head is not signed by {name} for this site.",
+    )
+    _need(
+        report,
+        "chain_head",
+        (statement["sequence"], statement["seal"]) == (last["sequence"], last["seal"]),
+        f"{name}'s signed chain head names record {statement['sequence']}, but the export's"
+        f" chain ends at record {last['sequence']}: records were removed from its end.",
+    )
+    report.add(
+        "chain_intact",
+        True,
+        f"{name}'s {len(records)} records follow one another up to the chain's signed head.",
+    )
+    chain_trust = trust
+    if chain_trust is None and use_database and isinstance(org["id"], int):
+        chain_trust = organisation_trust(org["id"])
+    for entry in records:
+        _check_export_file(report, archive, entry, org["id"], site_id, set(certs), chain_trust)
+
+
+def _check_export_file(
+    report: Report,
+    archive: zipfile.ZipFile,
+    entry: dict[str, Any],
+    organisation_id: int,
+    site_id: int,
+    fingerprints: set[str],
+    trust: TrustList | None,
+) -> None:
+    name = str(entry.get("file"))
+    check = f"file:{name}"
+    try:
+        pdf = _read_capped(archive, name, MAX_PDF_BYTES)
+    except KeyError:
+        _need(report, check, False, f"{name} is listed but missing.")
+    except (ValueError, zipfile.BadZipFile, OSError) as exc:
+        _need(report, check, False, f"{name} cannot be read ({exc}).")
+    _need(
+        report,
+        check,
+        hashlib.sha256(pdf).hexdigest() == entry.get("file_sha256"),
+        f"{name} is not the file the manifest names: it was swapped.",
+    )
+    sub = verify_pdf(pdf, trust=trust, use_database=False, name=name)
+    _need(report, check, sub.intact, sub.verdict())
+    _need(report, check, sub.seal == entry.get("seal"), f"{name} carries another record's seal.")
+    document = sub.document or {}
+    _need(
+        report,
+        check,
+        (document.get("organisation") or {}).get("id") == organisation_id
+        and (document.get("site") or {}).get("id") == site_id
+        and document.get("sequence") == entry.get("sequence"),
+        f"{name} was sealed for another organisation, site or place in the chain.",
+    )
+    _need(
+        report,
+        check,
+        sub.signer is not None and sub.signer.fingerprint_sha256 in fingerprints,
+        f"{name} was signed by a certificate its organisation's chain does not list.",
+    )
+    if trust is not None and not trust.empty:
+        _need(report, check, sub.vouched, sub.verdict())
+    report.add(check, True, f"{name} is intact and is the file the manifest names.")
 
 
 def _relative_links(entries: list[dict[str, Any]]) -> str:

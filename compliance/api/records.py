@@ -20,7 +20,9 @@ from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.daily_records import MEANINGS, add_addendum
-from compliance.models import DailyRecord, RecordPdf, Site
+from compliance.errors import NotPermitted
+from compliance.exports import build_export, export_scope
+from compliance.models import DailyRecord, RecordPdf
 from compliance.tasks import queue_render
 
 MAX_UPLOAD = 50 * 1024 * 1024
@@ -38,6 +40,10 @@ class SignInput(StrictInput, serializers.Serializer):
 class AddendumInput(StrictInput, serializers.Serializer):
     password = serializers.CharField(max_length=256, trim_whitespace=False)
     text = serializers.CharField(max_length=8000)
+    client_uuid = serializers.UUIDField(
+        required=False,
+        help_text="The request's own id: sent again after a lost answer, it adds nothing twice.",
+    )
 
 
 class RecordSerializer(serializers.ModelSerializer):
@@ -129,8 +135,18 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
         record = self.get_object()
         data = AddendumInput(data=request.data)
         data.is_valid(raise_exception=True)
+        client_uuid = data.validated_data.get("client_uuid")
+        again = (
+            client_uuid is not None
+            and DailyRecord.objects.filter(
+                organisation_id=record.organisation_id, client_uuid=client_uuid
+            ).exists()
+        )
         addendum = add_addendum(record=record, by=request.user, **data.validated_data)
-        return Response(RecordSerializer(addendum).data, status=status.HTTP_201_CREATED)
+        return Response(
+            RecordSerializer(addendum).data,
+            status=status.HTTP_200_OK if again else status.HTTP_201_CREATED,
+        )
 
     @extend_schema(
         parameters=[

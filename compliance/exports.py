@@ -1,0 +1,175 @@
+"""An auditor's export of a site-period: the signed PDFs and a signed manifest that verifies
+offline.
+
+Each organisation keeps its own chain of records at a site. An export holds, for each chain it
+covers, the unbroken run of records from the first to the last that falls in the period, the
+seals of every later record up to the chain's signed head (so a verifier sees that nothing at the
+end of the period was left out or removed), the head itself and the organisation's signing
+certificates. A contractor exports its own chain; the building's owner exports every chain at
+its building. The manifest is signed by the exporting organisation's key.
+"""
+
+import datetime as dt
+import io
+import json
+import zipfile
+from dataclasses import dataclass
+from typing import Any
+
+import rfc8785
+
+from compliance.errors import NotPermitted
+from compliance.models import (
+    DailyRecord,
+    Organisation,
+    RecordChainHead,
+    SigningCredential,
+    Site,
+    SiteAccess,
+    User,
+)
+from compliance.record_files import ensure_pdf
+from compliance.sealing import (
+    EXPORT_FORMAT,
+    EXPORT_MANIFEST,
+    EXPORT_MANIFEST_SIGNATURE,
+    merkle_root,
+)
+from compliance.signing import active_credential, sha256_hex, sign_seal
+
+FORMAT, MANIFEST, MANIFEST_SIGNATURE = EXPORT_FORMAT, EXPORT_MANIFEST, EXPORT_MANIFEST_SIGNATURE
+MAX_DAYS = 400
+
+
+@dataclass(frozen=True)
+class ExportScope:
+    """Which chains at a site an organisation may export."""
+
+    site: Site
+    organisation_ids: tuple[int, ...]
+
+
+def export_scope(*, user: User, site_id: int) -> ExportScope:
+    """The site's owner exports every chain at it; a contractor that works there (or did) its
+    own. Anyone else gets the same answer as for a site that does not exist."""
+    org = user.organisation_id
+    site = Site.objects.filter(pk=site_id).select_related("organisation").first()
+    if site is None or org is None:
+        raise NotPermitted("Unknown site.")
+    if site.organisation_id == org:
+        chains = RecordChainHead.objects.filter(site=site).values_list("organisation_id", flat=True)
+        return ExportScope(site, tuple(sorted({org, *chains})))
+    works_there = (
+        SiteAccess.objects.filter(site=site, contractor_id=org).exists()
+        or DailyRecord.objects.filter(site=site, organisation_id=org).exists()
+    )
+    if not works_there:
+        raise NotPermitted("Unknown site.")
+    return ExportScope(site, (org,))
+
+
+def export_filename(record: DailyRecord) -> str:
+    return (
+        f"records/{record.organisation_id}/{record.sequence:05d}-{record.kind}"
+        f"-{record.seal[:12]}.pdf"
+    )
+
+
+def _chain(
+    archive: zipfile.ZipFile, organisation: Organisation, site: Site, start: dt.date, end: dt.date
+) -> dict[str, Any] | None:
+    rows = DailyRecord.objects.filter(organisation=organisation, site=site).select_related(
+        "job", "credential", "site"
+    )
+    in_period = rows.filter(job__date__gte=start, job__date__lte=end)
+    first = in_period.order_by("sequence").values_list("sequence", flat=True).first()
+    head = RecordChainHead.objects.filter(organisation=organisation, site=site).first()
+    if first is None or head is None:
+        return None
+    last = in_period.order_by("-sequence").values_list("sequence", flat=True).first()
+    entries = []
+    for record in rows.filter(sequence__gte=first, sequence__lte=last).order_by("sequence"):
+        pdf = ensure_pdf(record)
+        with pdf.file.open("rb") as handle:
+            data = handle.read()
+        archive.writestr(export_filename(record), data)
+        entries.append(
+            {
+                "sequence": record.sequence,
+                "kind": record.kind,
+                "date": record.job.date.isoformat(),
+                "seal": record.seal,
+                "previous_seal": record.previous_seal,
+                "file": export_filename(record),
+                "file_sha256": sha256_hex(data),
+                "signer": record.signer_name,
+                "meaning": record.meaning,
+            }
+        )
+    after = [
+        {
+            "sequence": record.sequence,
+            "kind": record.kind,
+            "date": record.job.date.isoformat(),
+            "seal": record.seal,
+            "previous_seal": record.previous_seal,
+        }
+        for record in rows.filter(sequence__gt=last).order_by("sequence")
+    ]
+    certificates = sorted(
+        SigningCredential.objects.filter(organisation=organisation).values_list(
+            "certificate_pem", flat=True
+        )
+    )
+    return {
+        "organisation": {"id": organisation.pk, "name": organisation.name},
+        "records": entries,
+        "after_period": after,
+        "head": {
+            "statement": head.statement,
+            "signature": head.signature,
+            "certificate_sha256": head.credential.fingerprint_sha256 if head.credential else "",
+        },
+        "certificates": certificates,
+    }
+
+
+def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) -> bytes:
+    """All records of the scope's chains in a site-period, signed PDFs plus a signed manifest."""
+    site = scope.site
+    exporter = Organisation.objects.get(pk=by.organisation_id)
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w", zipfile.ZIP_DEFLATED) as archive:
+        chains = []
+        for org in Organisation.objects.filter(pk__in=scope.organisation_ids).order_by("pk"):
+            chain = _chain(archive, org, site, start, end)
+            if chain is not None:
+                chains.append(chain)
+        seals = [bytes.fromhex(e["seal"]) for c in chains for e in c["records"]]
+        manifest = {
+            "format": FORMAT,
+            "exported_by": {"id": exporter.pk, "name": exporter.name},
+            "site": {"id": site.pk, "name": site.name},
+            "period": {"start": start.isoformat(), "end": end.isoformat()},
+            "chains": chains,
+            "merkle_root": merkle_root(seals),
+            "how_to_verify": (
+                "python manage.py verify-record THIS.zip --trust FILE, FILE holding the"
+                " organisations' certificate fingerprints or CA (no database needed)"
+            ),
+        }
+        raw = rfc8785.dumps(manifest)
+        credential = active_credential(exporter.pk)
+        archive.writestr(MANIFEST, raw)
+        archive.writestr(
+            MANIFEST_SIGNATURE,
+            json.dumps(
+                {
+                    "signs": f"SHA-256 of {MANIFEST}, RSA-PSS",
+                    "signature": sign_seal(sha256_hex(raw), credential),
+                    "certificate_pem": credential.certificate_pem,
+                },
+                indent=2,
+            ),
+        )
+    return buffer.getvalue()

@@ -1,0 +1,194 @@
+"""Exports on a shared building: each contractor its own chain, the owner every chain, and a
+chain cut short or a day left out never verifies."""
+
+import datetime as dt
+import io
+import json
+import zipfile
+
+import pytest
+import rfc8785
+from django.db import connection
+from django.urls import reverse
+
+from compliance.daily_records import sign_daily_record
+from compliance.exports import build_export, export_scope
+from compliance.models import Organisation, SiteAccess
+from compliance.services import close_job, start_job
+from compliance.signing import create_self_signed, sha256_hex, sign_seal
+from compliance.verification import TrustList, verify_export
+from tests.conftest import client_for, fill_all
+from tests.factories import PASSWORD, JobFactory, OrganisationFactory, UserFactory, make_drop
+from tests.records.conftest import next_day_job
+
+pytestmark = pytest.mark.django_db
+
+
+@pytest.fixture
+def building(signed, simple_checklists, operator, supervisor, settings, tmp_path):
+    """The signed contractor's site now belongs to an owner; a second contractor works there
+    under a grant and signs its own day. Returns (owner admin, first record, second record)."""
+    settings.MEDIA_ROOT = tmp_path
+    site = signed.site
+    owner = OrganisationFactory(name="Harbour Lofts Ltd", kind=Organisation.Kind.OWNER)
+    create_self_signed(organisation=owner)
+    manager = UserFactory(organisation=owner, role="property_manager")
+    first = signed.organisation
+    site.organisation = owner
+    site.save()
+    other = OrganisationFactory(name="Second Rope Co")
+    create_self_signed(organisation=other)
+    for contractor in (first, other):
+        SiteAccess.objects.create(
+            site=site,
+            contractor=contractor,
+            starts_on=signed.job.date - dt.timedelta(days=60),
+            ends_on=signed.job.date + dt.timedelta(days=60),
+            granted_by=manager,
+        )
+    boss = UserFactory(organisation=other, role="supervisor")
+    crew = UserFactory(organisation=other, role="operator")
+    job = JobFactory(site=site, organisation=other, supervisor=boss, date=signed.job.date)
+    make_drop(job)
+    fill_all(job, simple_checklists, crew)
+    start_job(job=job, by=crew)
+    close_job(job=job, by=crew)
+    second = sign_daily_record(job=job, by=boss, password=PASSWORD, meaning="reviewed_safe")
+    return manager, signed, second
+
+
+def _export(user, record, start=None, end=None):
+    start = start or record.job.date
+    return build_export(
+        scope=export_scope(user=user, site_id=record.site_id),
+        by=user,
+        start=start,
+        end=end or start,
+    )
+
+
+def _manifest(data):
+    return json.loads(zipfile.ZipFile(io.BytesIO(data)).read("manifest.json"))
+
+
+def test_each_contractor_exports_its_own_chain_at_a_granted_site(building):
+    _, first, second = building
+    for record in (first, second):
+        data = _export(record.signer, record)
+        chains = _manifest(data)["chains"]
+        assert [c["organisation"]["id"] for c in chains] == [record.organisation_id]
+        report = verify_export(data, use_database=True)
+        assert report.ok, report.as_dict()
+
+
+def test_the_owner_exports_every_chain_at_its_building_and_it_verifies(building):
+    manager, first, second = building
+    data = _export(manager, first)
+    manifest = _manifest(data)
+    assert [c["organisation"]["id"] for c in manifest["chains"]] == sorted(
+        [first.organisation_id, second.organisation_id]
+    )
+    assert manifest["exported_by"]["id"] == manager.organisation_id
+    assert verify_export(data, use_database=True).ok
+    trust = TrustList(
+        fingerprints=frozenset(
+            {
+                first.credential.fingerprint_sha256,
+                second.credential.fingerprint_sha256,
+                manager.organisation.signing_credentials.get().fingerprint_sha256,
+            }
+        )
+    )
+    assert verify_export(data, trust=trust).ok
+    # An auditor who trusts only the first contractor does not get VERIFIED for the lot.
+    assert not verify_export(
+        data, trust=TrustList(fingerprints=frozenset({first.credential.fingerprint_sha256}))
+    ).ok
+
+
+def test_the_export_endpoint_answers_each_party_and_no_one_else(building):
+    manager, first, second = building
+    day = first.job.date.isoformat()
+    query = {"site": first.site_id, "start": day, "end": day}
+    for user, chains in (
+        (first.signer, 1),
+        (second.signer, 1),
+        (manager, 2),
+    ):
+        response = client_for(user).get(reverse("record-export"), query)
+        assert response.status_code == 200, user
+        assert len(_manifest(response.content)["chains"]) == chains
+    stranger = UserFactory(organisation=OrganisationFactory(), role="auditor")
+    response = client_for(stranger).get(reverse("record-export"), query)
+    assert response.status_code == 400
+    assert response.json() == {"site": ["Unknown site."]}
+
+
+def test_an_export_of_a_chain_whose_last_day_was_deleted_does_not_verify(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    settings.MEDIA_ROOT = tmp_path
+    later = next_day_job(signed.job, simple_checklists, operator, 1)
+    last = sign_daily_record(job=later, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    with connection.cursor() as cursor:
+        cursor.execute("DELETE FROM compliance_dailyrecord WHERE id = %s", [last.pk])
+    data = _export(supervisor, signed, signed.job.date, later.date)
+    report = verify_export(data, use_database=True)
+    assert report.first_failure.name == "chain_head"
+    assert "removed from its end" in report.first_failure.detail
+
+
+def test_a_day_of_the_period_moved_out_of_the_export_does_not_verify(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    """Even re-signed with the organisation's own key (an insider), a manifest that lists a day
+    of the period among the later seals, without its PDF, is refused."""
+    settings.MEDIA_ROOT = tmp_path
+    later = next_day_job(signed.job, simple_checklists, operator, 1)
+    sign_daily_record(job=later, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    data = _export(supervisor, signed, signed.job.date, later.date)
+    source = zipfile.ZipFile(io.BytesIO(data))
+    files = {n: source.read(n) for n in source.namelist()}
+    manifest = json.loads(files["manifest.json"])
+    chain = manifest["chains"][0]
+    moved = chain["records"].pop()
+    del files[moved["file"]]
+    chain["after_period"].insert(
+        0, {k: moved[k] for k in ("sequence", "kind", "date", "seal", "previous_seal")}
+    )
+    from compliance.sealing import merkle_root
+
+    manifest["merkle_root"] = merkle_root([bytes.fromhex(e["seal"]) for e in chain["records"]])
+    raw = rfc8785.dumps(manifest)
+    files["manifest.json"] = raw
+    files["manifest.sig.json"] = json.dumps(
+        {
+            "signature": sign_seal(sha256_hex(raw), signed.credential),
+            "certificate_pem": signed.credential.certificate_pem,
+        }
+    ).encode()
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w") as archive:
+        for name, content in files.items():
+            archive.writestr(name, content)
+    report = verify_export(out.getvalue(), use_database=True)
+    assert report.first_failure.name == "chain_intact"
+    assert "fall in the period but are not in the export" in report.first_failure.detail
+
+
+def test_an_addendum_signed_later_travels_with_its_day(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    from compliance.daily_records import add_addendum
+
+    settings.MEDIA_ROOT = tmp_path
+    later = next_day_job(signed.job, simple_checklists, operator, 1)
+    sign_daily_record(job=later, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    add_addendum(record=signed, by=supervisor, password=PASSWORD, text="Hose serial corrected.")
+    data = _export(supervisor, signed)
+    chain = _manifest(data)["chains"][0]
+    # The addendum (record 3) amends the exported day, so the export runs on to it and takes
+    # the next day's record (2) along to keep the chain unbroken.
+    assert [e["sequence"] for e in chain["records"]] == [1, 2, 3]
+    assert chain["after_period"] == []
+    assert verify_export(data, use_database=True).ok
