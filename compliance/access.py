@@ -12,12 +12,13 @@ from django.utils import timezone
 from compliance.models import Anchor, Organisation, Site, SiteAccess
 
 
+def live_grants(day: dt.date) -> QuerySet[SiteAccess]:
+    """Grants that cover the day and that their owner has not ended."""
+    return SiteAccess.objects.filter(starts_on__lte=day, ends_on__gte=day, end__isnull=True)
+
+
 def _grant(organisation_id: int | None, day: dt.date) -> Exists:
-    return Exists(
-        SiteAccess.objects.filter(
-            site=OuterRef("pk"), contractor_id=organisation_id, starts_on__lte=day, ends_on__gte=day
-        )
-    )
+    return Exists(live_grants(day).filter(site=OuterRef("pk"), contractor_id=organisation_id))
 
 
 def sites_visible_to(organisation_id: int | None, day: dt.date | None = None) -> QuerySet[Site]:
@@ -32,9 +33,7 @@ def anchors_visible_to(organisation_id: int | None, day: dt.date | None = None) 
 def can_work_at(organisation_id: int | None, site: Site, day: dt.date) -> bool:
     if site.organisation_id == organisation_id:
         return True
-    return SiteAccess.objects.filter(
-        site=site, contractor_id=organisation_id, starts_on__lte=day, ends_on__gte=day
-    ).exists()
+    return live_grants(day).filter(site=site, contractor_id=organisation_id).exists()
 
 
 def owns_site(organisation_id: int | None, site: Site) -> bool:

@@ -502,9 +502,10 @@ def add_addendum(
                 organisation_id=record.organisation_id, client_uuid=client_uuid
             ).first()
             if earlier is not None:
-                if earlier.amends_id != record.pk or json.loads(earlier.canonical_json).get(
-                    "text"
-                ) != text:
+                if (
+                    earlier.amends_id != record.pk
+                    or json.loads(earlier.canonical_json).get("text") != text
+                ):
                     raise InvalidTransition(
                         "This request id was already used for another addendum."
                     )

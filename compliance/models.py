@@ -158,7 +158,20 @@ class SiteAccess(AppendOnlyModel):
         ]
 
     def covers(self, day: dt.date) -> bool:
-        return self.starts_on <= day <= self.ends_on
+        """Within its dates and not ended."""
+        return not hasattr(self, "end") and self.starts_on <= day <= self.ends_on
+
+
+class SiteAccessEnd(AppendOnlyModel):
+    """The owner ends a grant: from then on it lets the contractor do nothing at the site.
+
+    The grant keeps its dates for the record; this row says who ended it, when and why.
+    """
+
+    grant = models.OneToOneField(SiteAccess, on_delete=models.PROTECT, related_name="end")
+    ended_by = models.ForeignKey("User", on_delete=models.PROTECT, related_name="+")
+    ended_at = models.DateTimeField(auto_now_add=True)
+    reason = models.TextField(blank=True)
 
 
 class Anchor(models.Model):

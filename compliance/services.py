@@ -21,6 +21,7 @@ from compliance.models import (
     Organisation,
     Site,
     SiteAccess,
+    SiteAccessEnd,
     User,
 )
 from compliance.selectors import job_blockers
@@ -255,6 +256,27 @@ def grant_site_access(
     return grant
 
 
+def end_grant(*, grant: SiteAccess, by: User, reason: str = "") -> SiteAccessEnd:
+    """End a grant now: the contractor loses the site, its anchors and its log book at once.
+
+    Its jobs there no longer start (``no_site_access``); the grant keeps its dates, and the
+    end row records who ended it, when and why.
+    """
+    _require_writer(by)
+    if not owns_site(by.organisation_id, grant.site):
+        raise NotPermitted("Only the site's owner manages access.")
+    if not by.can_keep_anchor_log:
+        raise NotPermitted("Only a property manager, supervisor or admin ends access.")
+    with transaction.atomic():
+        grant = SiteAccess.objects.select_for_update().get(pk=grant.pk)
+        if SiteAccessEnd.objects.filter(grant=grant).exists():
+            raise InvalidTransition("This grant has already been ended.")
+        end = SiteAccessEnd(grant=grant, ended_by=by, reason=reason)
+        end.full_clean()
+        end.save()
+    return end
+
+
 def create_equipment(*, by: User, **fields: Any) -> Equipment:
     _require_writer(by)
     with transaction.atomic():
@@ -271,6 +293,7 @@ __all__ = [
     "close_job",
     "create_equipment",
     "create_job",
+    "end_grant",
     "grant_site_access",
     "pause_job",
     "record_certification",

@@ -15,6 +15,7 @@ from django.utils import timezone
 from django.utils.dateparse import parse_datetime
 
 from checklists.models import ChecklistVersion
+from checklists.selectors import usable_versions
 from checklists.services import record_sheet
 from compliance import services
 from compliance.access import anchors_visible_to
@@ -74,7 +75,7 @@ def _get(model: Any, queryset: Any, pk: Any, field: str) -> Any:
         raise RecordRejected({field: ["Must be an id (a whole number)."]})
     obj = queryset.filter(pk=pk).first()
     if obj is None:
-        raise RecordRejected({field: [f"Unknown {model.__name__.lower()}."]})
+        raise RecordRejected({field: [f"Unknown {model._meta.verbose_name}."]})
     return obj
 
 
@@ -131,12 +132,7 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
     )
     if job is None:
         raise RecordRejected({"job": ["Required."]})
-    version = batch.lookup(
-        ChecklistVersion,
-        ChecklistVersion.objects.select_related("checklist"),
-        data.get("version"),
-        "version",
-    )
+    version = batch.lookup(ChecklistVersion, usable_versions(org), data.get("version"), "version")
     if version is None:
         raise RecordRejected({"version": ["Required."]})
     anchor = batch.lookup(Anchor, anchors_visible_to(org), data.get("anchor"), "anchor")

@@ -296,6 +296,52 @@ def test_a_grant_goes_only_to_a_contractor_organisation(shared):
     assert response.json()["contractor_name"] == new_crew.name
 
 
+def test_the_owner_ends_a_grant_and_the_contractor_loses_access_at_once(shared):
+    b = shared
+    north, south = b["north"], b["south"]
+    grant = SiteAccess.objects.get(site=b["site"], contractor=north["org"])
+    end_url = reverse("site-grant-end", args=[b["site"].pk, grant.pk])
+    reads = [
+        reverse("site-detail", args=[b["site"].pk]),
+        reverse("anchor-detail", args=[b["anchor"].pk]),
+    ]
+    for crew in (north, south):  # a contractor ends no grant, its own or another's
+        response = client_for(crew["supervisor"]).post(end_url, {}, format="json")
+        assert response.status_code == 403, response.json()
+    grants_before = SiteAccess.objects.count()
+    response = client_for(b["manager"]).post(end_url, {"reason": "Contract ended."}, format="json")
+    assert response.status_code == 200, response.json()
+    assert response.json()["ended_at"] is not None
+    assert SiteAccess.objects.count() == grants_before  # the grant keeps its dates
+    assert client_for(b["manager"]).post(end_url, {}, format="json").status_code == 409
+    client = client_for(north["supervisor"])
+    for url in [*reads, reverse("site-log-book", args=[b["site"].pk]), end_url]:
+        response = client.get(url) if url != end_url else client.post(url, {}, format="json")
+        assert response.status_code == 404, url
+    assert client.get(reverse("anchor-log-list")).json()["results"] == []
+    response = client.post(
+        reverse("job-list"),
+        {"site": b["site"].pk, "date": str(TODAY()), "supervisor": north["supervisor"].pk},
+        format="json",
+    )
+    assert response.status_code == 400 and list(response.json()) == ["site"]
+    started = client_for(north["operator"]).post(reverse("job-start", args=[north["job"].pk]))
+    assert started.status_code == 409
+    assert "no_site_access" in [r["code"] for r in started.json()["reasons"]]
+    before = snapshot()
+    response = client.post(
+        reverse("anchor-log-list"), log_body(b["anchor"], "repair"), format="json"
+    )
+    assert response.status_code == 400 and "anchor" in response.json()
+    assert snapshot() == before
+    other = client_for(south["supervisor"])
+    for url in reads:
+        assert other.get(url).status_code == 200, url
+    listed = client_for(b["manager"]).get(grant_url(b)).json()
+    ended = {g["contractor"]: g["ended_at"] is not None for g in listed}
+    assert ended == {north["org"].pk: True, south["org"].pk: False}
+
+
 def test_answers_never_name_another_owner(shared):
     """The north crew also works at a second owner's building; neither owner sees the other."""
     b = shared
@@ -432,12 +478,6 @@ def test_recording_a_sheet_on_another_tenants_version_answers_alike(shared, fore
     assert errors[0] == errors[1] == {"version": ["Unknown checklist version."]}
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="compliance/sync.py resolves a sheet's version from every organisation's versions and "
-    "names an unknown one 'Unknown checklistversion.'; it should use "
-    "checklists.selectors.usable_versions(org) and the words 'Unknown checklist version.'",
-)
 def test_a_synced_sheet_on_another_tenants_version_answers_alike(shared, foreign_versions):
     b = shared
     records = [

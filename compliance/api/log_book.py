@@ -23,7 +23,7 @@ from compliance.api.fields import PlausibleDateField, StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.models import AnchorLogEntry, Organisation, SiteAccess
-from compliance.services import UNKNOWN_CONTRACTOR, grant_site_access
+from compliance.services import UNKNOWN_CONTRACTOR, end_grant, grant_site_access
 
 
 class LogEntrySerializer(serializers.ModelSerializer):
@@ -115,6 +115,7 @@ class GrantSerializer(StrictInput, serializers.ModelSerializer):
         },
     )
     contractor_name = serializers.CharField(source="contractor.name", read_only=True)
+    ended_at = serializers.DateTimeField(source="end.ended_at", read_only=True, default=None)
     starts_on = PlausibleDateField()
     ends_on = PlausibleDateField()
 
@@ -128,6 +129,7 @@ class GrantSerializer(StrictInput, serializers.ModelSerializer):
             "starts_on",
             "ends_on",
             "granted_at",
+            "ended_at",
         ]
         read_only_fields = ["site", "granted_at"]
 
@@ -156,8 +158,32 @@ def site_grants(request: Request, pk: int) -> Response:
         data.is_valid(raise_exception=True)
         grant = grant_site_access(site=site, by=request.user, **data.validated_data)
         return Response(GrantSerializer(grant).data, status=status.HTTP_201_CREATED)
-    grants = SiteAccess.objects.filter(site=site).select_related("contractor").order_by("starts_on")
+    grants = (
+        SiteAccess.objects.filter(site=site)
+        .select_related("contractor", "end")
+        .order_by("starts_on", "id")
+    )
     return Response(GrantSerializer(grants, many=True).data)
+
+
+class EndGrantInput(StrictInput, serializers.Serializer):
+    reason = serializers.CharField(required=False, allow_blank=True, max_length=2000)
+
+
+@extend_schema(request=EndGrantInput, responses=GrantSerializer)
+@api_view(["POST"])
+@permission_classes([OrganisationMember])
+def end_site_grant(request: Request, pk: int, grant_pk: int) -> Response:
+    """The owner ends a grant now; the contractor loses the site at once."""
+    site = get_object_or_404(sites_visible_to(request.user.organisation_id), pk=pk)
+    if not owns_site(request.user.organisation_id, site):
+        return Response({"detail": "Only the site's owner manages access."}, status=403)
+    grant = get_object_or_404(SiteAccess.objects.filter(site=site), pk=grant_pk)
+    data = EndGrantInput(data=request.data)
+    data.is_valid(raise_exception=True)
+    end_grant(grant=grant, by=request.user, reason=data.validated_data.get("reason", ""))
+    grant = SiteAccess.objects.select_related("contractor", "end").get(pk=grant.pk)
+    return Response(GrantSerializer(grant).data)
 
 
 @extend_schema(responses={(200, "application/pdf"): bytes})

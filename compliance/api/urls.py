@@ -25,6 +25,11 @@ urlpatterns = [
     path("photos/", views.upload_photo, name="photos"),
     path("verify/", records.verify, name="verify"),
     path("sites/<int:pk>/grants/", log_book.site_grants, name="site-grants"),
+    path(
+        "sites/<int:pk>/grants/<int:grant_pk>/end/",
+        log_book.end_site_grant,
+        name="site-grant-end",
+    ),
     path("sites/<int:pk>/log-book/", log_book.log_book_pdf, name="site-log-book"),
     path("", include(router.urls)),
 ]
