@@ -223,6 +223,7 @@ def render(document: dict[str, Any], seal: str) -> bytes:
         bottomMargin=20 * mm,
         title=f"Anchor log book — {document['site']['name']}",
         creator="Parapet",
+        invariant=1,
     )
     doc.build(story, canvasmaker=_NumberedCanvas)
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(buffer.getvalue())))

@@ -23,6 +23,7 @@ from pyhanko.sign.validation import validate_pdf_signature
 from pyhanko.sign.validation.status import SignatureCoverageLevel
 from pyhanko_certvalidator import ValidationContext
 
+from compliance.page_check import differing_pages
 from compliance.record_pdf import printed_seal, read_attachment
 from compliance.sealing import (
     EXPORT_FORMAT,
@@ -317,6 +318,62 @@ def check_content(report: Report, data: bytes) -> dict[str, Any] | None:
     return document
 
 
+def _renderer(document: dict[str, Any]) -> Any:
+    from compliance import record_pdf
+
+    fmt = document.get("format")
+    if fmt in RECORD_FORMATS:
+        return record_pdf.render
+    if fmt == LOG_BOOK_FORMAT:
+        # The log book's layout module reads the database for its own printing; the check
+        # imports it only when a log book is in hand.
+        from compliance import log_book
+
+        return lambda doc, seal, photos: log_book.render(doc, seal)
+    return None
+
+
+RECORD_FORMATS = {
+    "parapet.daily-record/2",
+    "parapet.daily-record-addendum/2",
+}
+
+
+def check_pages(report: Report, data: bytes, document: dict[str, Any]) -> bool:
+    """The pages say what the sealed document says: the document is drawn again with the same
+    deterministic layout and compared page by page with the signed file (see page_check)."""
+    renderer = _renderer(document)
+    if renderer is None:
+        return report.add(
+            "pages_match_record",
+            False,
+            f"The record's format ({str(document.get('format'))[:60]}) is not one this verifier"
+            " can draw, so its pages cannot be checked.",
+        )
+    try:
+        problems = differing_pages(data, document, report.seal or "", renderer)
+    except Exception as exc:  # a malformed page tree or an undrawable document: not verified
+        return report.add(
+            "pages_match_record",
+            False,
+            f"The pages could not be compared with the sealed record ({type(exc).__name__}).",
+        )
+    if problems:
+        shown = ", ".join(problems[:3]) + (" …" if len(problems) > 3 else "")
+        return report.add(
+            "pages_match_record",
+            False,
+            "The pages do not show what the sealed record says: they were drawn or edited"
+            f" apart from it ({shown}).",
+        )
+    return report.add(
+        "pages_match_record",
+        True,
+        "Every page shows exactly what the sealed record draws to (text, figures, fonts,"
+        " images and layout).",
+    )
+
+
 def check_database(report: Report, seal: str) -> Any:
     """The stored record behind `seal` (None when there is none), checked against the file."""
     from compliance.daily_records import (
@@ -449,6 +506,8 @@ def verify_pdf(
     if document is None:
         return report
     report.document = document
+    if not check_pages(report, data, document):
+        return report
     if use_database:
         if document.get("format") == LOG_BOOK_FORMAT:
             check_log_book(report, document)

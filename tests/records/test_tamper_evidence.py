@@ -86,6 +86,7 @@ def test_a_genuine_record_verifies(signed, signed_pdf):
         "signature_covers_file",
         "record_attached",
         "seal_matches",
+        "pages_match_record",
         "record_stored",
         "stored_record_intact",
         "signer_is_the_records_organisation",

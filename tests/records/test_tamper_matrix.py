@@ -5,7 +5,10 @@ signing key) would make them: by raw SQL behind the ORM's append-only guard.
 """
 
 import datetime as dt
+import io
 import json
+import shutil
+import subprocess
 
 import pytest
 from django.db import connection
@@ -323,3 +326,73 @@ def test_two_contractors_at_one_building_keep_separate_chains(
     mine, theirs_report = _verify(signed), _verify(record)
     assert mine.ok, mine.as_dict()
     assert theirs_report.ok, theirs_report.as_dict()
+
+
+# -- Pages that say something other than the sealed record -----------------------------------
+
+
+def _false_pages(record, change, *, overlay: str | None = None) -> bytes:
+    """The genuine attachment and seal under pages drawn from an altered copy, signed with the
+    organisation's own key (an insider at the signing service)."""
+    from pypdf import PdfReader, PdfWriter
+    from pypdf.annotations import FreeText
+
+    from compliance.record_pdf import ATTACHMENT_NAME, render
+    from compliance.signing import sign_pdf
+
+    genuine = json.loads(record.canonical_json)
+    altered = json.loads(record.canonical_json)
+    change(altered)
+    reader = PdfReader(io.BytesIO(render(altered, record.seal)))
+    writer = PdfWriter()
+    for page in reader.pages:
+        writer.add_page(page)
+    writer.add_attachment(ATTACHMENT_NAME, canonical_bytes(genuine))
+    if overlay:
+        writer.add_annotation(0, FreeText(text=overlay, rect=(50, 700, 400, 750)))
+    out = io.BytesIO()
+    writer.write(out)
+    return sign_pdf(out.getvalue(), record.credential, signer_name="x", reason="x", location="x")
+
+
+def _remarks(doc):
+    doc["remarks"] = "All anchors re-certified today; no defects."
+
+
+def _signer(doc):
+    doc["signature"]["name"] = "Chief Engineer"
+
+
+def _state(doc):
+    doc["record"]["job"]["state"] = "working"
+
+
+def _nothing(doc):
+    pass
+
+
+@pytest.mark.parametrize(
+    ("change", "overlay"),
+    [(_remarks, None), (_signer, None), (_state, None), (_nothing, "Passed: no holds")],
+    ids=["remarks", "signer", "job-state", "overlaid-note"],
+)
+def test_pages_that_say_something_else_are_caught(signed, change, overlay, tmp_path):
+    forged = _false_pages(signed, change, overlay=overlay)
+    report = verify_pdf(forged)
+    assert not report.ok
+    assert report.first_failure.name == "pages_match_record"
+    # The signature itself is sound: a signature check alone would have passed this file.
+    names = [c.name for c in report.checks if c.ok]
+    assert {"signature_valid", "signature_covers_file", "seal_matches"} <= set(names)
+    if shutil.which("pdfsig") is None:
+        pytest.fail("pdfsig (poppler-utils) is missing: make test installs it")
+    path = tmp_path / "forged.pdf"
+    path.write_bytes(forged)
+    out = subprocess.run(["pdfsig", str(path)], capture_output=True, text=True).stdout
+    assert "Signature is Valid." in out
+
+
+def test_the_genuine_pages_match_offline_too(signed, signed_pdf):
+    report = verify_pdf(signed_pdf, use_database=False)
+    check = next(c for c in report.checks if c.name == "pages_match_record")
+    assert check.ok
