@@ -159,6 +159,28 @@ def test_corrections_are_signed_addenda(signed, supervisor):
     assert response.status_code == 201
 
 
+def test_a_resent_addendum_request_adds_one_addendum(signed, supervisor):
+    """A phone or page that lost the answer sends the same request again with its id."""
+    from compliance.models import DailyRecord
+
+    client = client_for(supervisor)
+    body = {
+        "password": PASSWORD,
+        "text": "The hose on drop 2 was the spare.",
+        "client_uuid": "6f1c1f5e-3d0a-4c55-9a53-0d6f8f4b2a11",
+    }
+    url = reverse("record-addenda", args=[signed.pk])
+    first = client.post(url, body, format="json")
+    again = client.post(url, body, format="json")
+    assert (first.status_code, again.status_code) == (201, 200)
+    assert first.json()["id"] == again.json()["id"]
+    assert DailyRecord.objects.filter(kind="addendum").count() == 1
+    other_text = client.post(url, {**body, "text": "Something else."}, format="json")
+    assert other_text.status_code == 409
+    assert other_text.json() == {"detail": "This request id was already used for another addendum."}
+    assert DailyRecord.objects.filter(kind="addendum").count() == 1
+
+
 def test_records_are_invisible_to_other_organisations(signed):
     stranger = UserFactory(role="auditor")
     client = client_for(stranger)
