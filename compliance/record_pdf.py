@@ -18,9 +18,7 @@ from xml.sax.saxutils import escape
 
 from pypdf import PdfReader, PdfWriter
 from reportlab.graphics.barcode.qr import QrCodeWidget
-from reportlab.graphics.charts.lineplots import LinePlot
-from reportlab.graphics.shapes import Drawing, String
-from reportlab.graphics.widgets.markers import makeMarker
+from reportlab.graphics.shapes import Circle, Drawing, Line, PolyLine, Rect, String
 from reportlab.lib import colors
 from reportlab.lib.pagesizes import A4
 from reportlab.lib.styles import ParagraphStyle, getSampleStyleSheet
@@ -50,14 +48,19 @@ CAUTION = (
 )
 FONT_DIRS = [Path("/usr/share/fonts/truetype/dejavu")]
 
-CELL_MAX_HEIGHT = 240.0
-"""The tallest a table cell is drawn, in points (a third of a page): longer text goes on in
+CELL_MAX_HEIGHT = 160.0
+"""The tallest a table cell is drawn, in points (a fifth of a page): longer text goes on in
 the next row, so no row is ever taller than a page."""
 CELL_PADDING = 3.0
 PHOTO_BOX = (40 * mm, 30 * mm)
 PHOTOS_PER_ROW = 4
 READINGS_PER_ROW = 8
+MARKED_SAMPLES = 120
+READING_CHARS = 6
+"""A reading longer than this would spill out of its column; it wraps instead."""
 PLOT_SIZE = (180 * mm, 62 * mm)
+FRAME_WIDTH = A4[0] - 30 * mm
+UNLIMITED = 1e9
 SHORT_TEXT = 40
 """A plain string cell longer than this is set as a paragraph, so it wraps and splits."""
 
@@ -103,6 +106,14 @@ def _styles() -> dict[str, ParagraphStyle]:
         ),
         "head": ParagraphStyle(
             "hd", parent=base["BodyText"], fontName=bold, fontSize=8, leading=9.6
+        ),
+        "readings": ParagraphStyle(
+            "r",
+            parent=base["BodyText"],
+            fontName=regular,
+            fontSize=6.5,
+            leading=7.5,
+            alignment=2,
         ),
         "stop": ParagraphStyle(
             "stop",
@@ -154,20 +165,32 @@ def _fmt(value: Any) -> str:
 
 
 def _split_paragraph(cell: Paragraph, width: float, limit: float) -> list[Paragraph]:
-    """`cell` cut into parts no taller than `limit` at `width` (reportlab's own line breaks)."""
-    parts: list[Paragraph] = []
-    rest = cell
-    while True:
-        _, height = rest.wrap(width, limit)
-        if height <= limit:
-            parts.append(rest)
-            return parts
-        pieces = rest.split(width, limit)
-        if len(pieces) < 2:
-            parts.append(rest)
-            return parts
-        parts.append(pieces[0])
-        rest = pieces[1]
+    """`cell` cut into parts no taller than `limit` at `width`, at reportlab's own line breaks.
+
+    Halving (at a multiple of `limit`) rather than peeling one part at a time keeps a text of
+    thousands of lines from being broken into lines thousands of times over.
+    """
+    _, height = cell.wrap(width, UNLIMITED)
+    if height <= limit:
+        return [cell]
+    pieces = cell.split(width, limit * max(1, math.floor(height / limit / 2)))
+    if len(pieces) < 2:
+        return [cell]
+    return _split_paragraph(pieces[0], width, limit) + _split_paragraph(pieces[1], width, limit)
+
+
+def _paras(text: Any, style: ParagraphStyle) -> list[Paragraph]:
+    """A text outside a table, as paragraphs no taller than a fifth of a page, which the
+    pages then break between; the parts after the first follow without a gap."""
+    first, *rest = _split_paragraph(_p(text, style), FRAME_WIDTH, CELL_MAX_HEIGHT)
+    for part in rest:
+        part.style = _continued(style)
+    return [first, *rest]
+
+
+@lru_cache(maxsize=16)
+def _continued(style: ParagraphStyle) -> ParagraphStyle:
+    return ParagraphStyle(f"{style.name}-continued", parent=style, spaceBefore=0)
 
 
 def _fit_rows(
@@ -426,11 +449,11 @@ def _cover(
         _p(seal, s["mono"]),
     ]
     if document.get("remarks"):
-        story += [_p("Remarks", s["h3"]), _p(document["remarks"], s["body"])]
+        story += [_p("Remarks", s["h3"]), *_paras(document["remarks"], s["body"])]
     story += [
         Spacer(1, 3 * mm),
         _p("Cautions", s["h3"]),
-        _p(record["profile"]["cautions"], s["small"]),
+        *_paras(record["profile"]["cautions"], s["small"]),
     ]
     return story
 
@@ -459,7 +482,7 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]
     else:
         story.append(_p("No holds this day.", s["body"]))
     for note in record.get("clock_notes", []):
-        story.append(_p(f"Clock: {note}", s["small"]))
+        story += _paras(f"Clock: {note}", s["small"])
     failed = [(sh, e) for sh in record["sheets"] for e in sh["entries"] if e["verdict"] == "fail"]
     if failed:
         story.append(Spacer(1, 3 * mm))
@@ -526,12 +549,12 @@ def _sheets(
             steps = (e.get("working") or {}).get("steps")
             if steps:
                 working += [_p(f"{e['item']}: working", s["small"])]
-                working += [_p("  " + str(step), s["mono"]) for step in steps]
+                working += [p for step in steps for p in _paras("  " + str(step), s["mono"])]
         highlight = [i + 1 for i, e in enumerate(entries) if e["verdict"] == "fail"]
         table = _table(rows, [60 * mm, 80 * mm, 20 * mm, 20 * mm], highlight=highlight)
         block: list[Any] = [head, table]
         if sheet["remarks"]:
-            block.append(_p(f"Remarks: {sheet['remarks']}", s["small"]))
+            block += _paras(f"Remarks: {sheet['remarks']}", s["small"])
         story += [KeepTogether(block), *series, *working]
         shots = [p for p in record["photos"] if p["sheet_uuid"] == sheet["client_uuid"]]
         if shots:
@@ -582,49 +605,96 @@ def _series_limits(entry: dict[str, Any], entries: list[dict[str, Any]]) -> list
     return found
 
 
+def _ticks(low: float, high: float, count: int = 5) -> list[float]:
+    """Round values from `low` to `high` for an axis (the two ends when none are found)."""
+    span = high / 2 - low / 2  # halves: never overflows, whatever finite numbers come
+    if not (math.isfinite(span) and span > 0):
+        return [low] if low == high else [low, high]
+    raw = span / count * 2
+    magnitude = 10.0 ** math.floor(math.log10(raw))
+    step = next(m * magnitude for m in (1.0, 2.0, 5.0, 10.0) if m * magnitude >= raw)
+    if not (math.isfinite(step) and step > 0):
+        return [low, high]
+    ticks: list[float] = []
+    value = math.ceil(low / step) * step
+    while value <= high and len(ticks) <= count * 2 and math.isfinite(value):
+        ticks.append(value)
+        value = ticks[0] + len(ticks) * step
+    return ticks or [low, high]
+
+
+def _scale(value: float, low: float, high: float, length: float) -> float:
+    """Where `value` falls between `low` and `high` on an axis of `length` points."""
+    span = high / 2 - low / 2
+    if not span > 0:
+        return length / 2
+    return (value / 2 - low / 2) / span * length
+
+
+def _widened(value: float, by: float) -> float:
+    moved = value + by
+    return moved if math.isfinite(moved) else value
+
+
 def _series_plot(
     samples: list[tuple[float, float]], unit: str, limits: list[tuple[str, float]]
 ) -> Drawing:
+    """The readings as a line (with a dot for each, when there are few) against time, and each
+    limit as a dashed red line; axes from the data, with round values where they fit."""
     regular, _ = _register_fonts()
     width, height = PLOT_SIZE
-    drawing = Drawing(width, height)
-    plot = LinePlot()
-    plot.x, plot.y = 14 * mm, 10 * mm
-    plot.width, plot.height = width - 20 * mm, height - 16 * mm
-    times = [t for t, _ in samples]
+    left, bottom = 18 * mm, 9 * mm
+    plot_w, plot_h = width - left - 6 * mm, height - bottom - 9 * mm
+    t0, t1 = samples[0][0], samples[-1][0]
     values = [v for _, v in samples] + [v for _, v in limits]
-    low, high = min(values), max(values)
-    pad = (high - low) * 0.08 or max(abs(high) * 0.05, 1.0)
-    start, end = times[0], times[-1] if times[-1] > times[0] else times[0] + 1.0
-    plot.data = [samples] + [[(start, v), (end, v)] for _, v in limits]
-    plot.xValueAxis.valueMin, plot.xValueAxis.valueMax = start, end
-    plot.yValueAxis.valueMin, plot.yValueAxis.valueMax = low - pad, high + pad
-    for axis in (plot.xValueAxis, plot.yValueAxis):
-        axis.labels.fontName, axis.labels.fontSize = regular, 6.5
-        axis.labelTextFormat = "%g"
-        axis.strokeWidth = 0.4
-    plot.lines[0].strokeColor = colors.HexColor("#1f4e8c")
-    plot.lines[0].strokeWidth = 0.8
-    if len(samples) <= 120:
-        plot.lines[0].symbol = makeMarker("FilledCircle", size=2.2)
-    for n in range(1, len(limits) + 1):
-        plot.lines[n].strokeColor = colors.HexColor("#9b1111")
-        plot.lines[n].strokeWidth = 0.8
-        plot.lines[n].strokeDashArray = [3, 2]
-    drawing.add(plot)
-    drawing.add(String(width - 6 * mm, 2 * mm, "s", fontName=regular, fontSize=7))
-    drawing.add(String(2 * mm, height - 4 * mm, unit, fontName=regular, fontSize=7))
-    for n, (label, _) in enumerate(limits):
+    half_span = max(values) / 2 - min(values) / 2
+    v0, v1 = _widened(min(values), -0.16 * half_span), _widened(max(values), 0.16 * half_span)
+    grey, ink, red = (colors.HexColor(c) for c in ("#999999", "#1f4e8c", "#9b1111"))
+    drawing = Drawing(width, height)
+
+    def at(t: float, v: float) -> tuple[float, float]:
+        return left + _scale(t, t0, t1, plot_w), bottom + _scale(v, v0, v1, plot_h)
+
+    def label(x: float, y: float, text: str, anchor: str = "start", colour: Any = None) -> None:
         drawing.add(
             String(
-                16 * mm,
-                height - 4 * mm - n * 3.2 * mm,
-                f"- - {label}",
+                x,
+                y,
+                text,
                 fontName=regular,
                 fontSize=6.5,
-                fillColor=colors.HexColor("#9b1111"),
+                textAnchor=anchor,
+                fillColor=colour or colors.black,
             )
         )
+
+    drawing.add(
+        Rect(left, bottom, plot_w, plot_h, strokeColor=grey, strokeWidth=0.4, fillColor=None)
+    )
+    for tick in _ticks(v0, v1):
+        y = bottom + _scale(tick, v0, v1, plot_h)
+        drawing.add(Line(left, y, left + plot_w, y, strokeColor=grey, strokeWidth=0.15))
+        label(left - 1.5 * mm, y - 2, _reading(tick), "end")
+    for tick in _ticks(t0, t1):
+        x = left + _scale(tick, t0, t1, plot_w)
+        drawing.add(Line(x, bottom, x, bottom - 1 * mm, strokeColor=grey, strokeWidth=0.4))
+        label(x, bottom - 4 * mm, _reading(tick), "middle")
+    label(left + plot_w, 0.5 * mm, "s", "end")
+    label(left - 1.5 * mm, bottom + plot_h + 2 * mm, unit, "end")
+    drawing.add(
+        PolyLine([c for t, v in samples for c in at(t, v)], strokeColor=ink, strokeWidth=0.8)
+    )
+    if len(samples) <= MARKED_SAMPLES:
+        for t, v in samples:
+            drawing.add(Circle(*at(t, v), 1.1, fillColor=ink, strokeColor=None))
+    for n, (text, value) in enumerate(limits):
+        y = bottom + _scale(value, v0, v1, plot_h)
+        drawing.add(
+            Line(
+                left, y, left + plot_w, y, strokeColor=red, strokeWidth=0.8, strokeDashArray=[3, 2]
+            )
+        )
+        label(left + 2 * mm, bottom + plot_h + 2 * mm + n * 3.2 * mm, f"- - {text}", colour=red)
     return drawing
 
 
@@ -632,11 +702,15 @@ def _series_table(samples: list[tuple[float, float]], unit: str) -> Table:
     """Every reading, READINGS_PER_ROW to a row, with the number of the row's first reading."""
     regular, bold = _register_fonts()
     pair = (170 * mm) / READINGS_PER_ROW / 2
-    rows: list[list[str]] = [["#"] + ["s", unit or "value"] * READINGS_PER_ROW]
+    style = _styles()["readings"]
+    rows: list[list[Any]] = [["#"] + ["s", _p(unit or "value", style)] * READINGS_PER_ROW]
     for first in range(0, len(samples), READINGS_PER_ROW):
-        row = [str(first + 1)]
+        row: list[Any] = [str(first + 1)]
         for t, v in samples[first : first + READINGS_PER_ROW]:
-            row += [_reading(t), _reading(v)]
+            row += [
+                text if len(text) <= READING_CHARS else _p(text, style)
+                for text in map(_reading, (t, v))
+            ]
         rows.append(row + [""] * (len(rows[0]) - len(row)))
     table = Table(rows, colWidths=[10 * mm] + [pair] * (2 * READINGS_PER_ROW), repeatRows=1)
     table.setStyle(
@@ -719,7 +793,7 @@ def _log(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]:
         ]
         story.append(_table(rows, [30 * mm, 35 * mm, 35 * mm, 80 * mm]))
     people = ", ".join(f"{p['name']} ({p['role']})" for p in record["people"])
-    story += [_p("People", s["h3"]), _p(people, s["body"])]
+    story += [_p("People", s["h3"]), *_paras(people, s["body"])]
     return story
 
 
@@ -745,7 +819,7 @@ def _addendum_story(document: dict[str, Any], s: dict[str, ParagraphStyle]) -> l
         ),
         Spacer(1, 4 * mm),
         _p("Text of the addendum", s["h3"]),
-        _p(document["text"], s["body"]),
+        *_paras(document["text"], s["body"]),
         Spacer(1, 4 * mm),
         _p(CAUTION, s["small"]),
     ]
