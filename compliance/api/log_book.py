@@ -20,6 +20,7 @@ from compliance.access import (
 )
 from compliance.anchor_log import SIGNED_KINDS, record_entry
 from compliance.api.fields import PlausibleDateField, StrictInput, query_id
+from compliance.api.pagination import BoundedLimitOffset
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.models import AnchorLogEntry, Organisation, SiteAccess
@@ -81,6 +82,7 @@ class AnchorLogViewSet(mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     """Entries of the anchor log books the user may see; new entries are signed."""
 
     serializer_class = LogEntrySerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [OrganisationMember]
     throttle_classes = [PasswordReentryThrottle]
 

@@ -28,6 +28,7 @@ from compliance import services
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
 from compliance.api.fields import StrictInput, query_id
+from compliance.api.pagination import BoundedLimitOffset
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
 from compliance.api.throttles import LOGIN_THROTTLES, PasswordReentryThrottle
@@ -198,6 +199,7 @@ class ReadOnlyCalc(IsAuthenticated):
 
 class ProfileViewSet(viewsets.ReadOnlyModelViewSet):
     serializer_class = s.ProfileSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [OrganisationMember]
     lookup_field = "key"
     queryset = JurisdictionProfile.objects.order_by("key")
@@ -232,6 +234,7 @@ class OrgScoped:
 
 class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     serializer_class = s.SiteSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [SupervisorWrites]
 
     def get_queryset(self) -> QuerySet[Site]:
@@ -251,6 +254,7 @@ class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelView
 
 class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     serializer_class = s.AnchorSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [SupervisorWrites]
 
     def get_queryset(self) -> QuerySet[Anchor]:
@@ -283,6 +287,7 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
 
 class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     serializer_class = s.EquipmentSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [SupervisorWrites]
 
     def get_queryset(self) -> QuerySet[Equipment]:
@@ -315,6 +320,7 @@ class ReasonInput(StrictInput, serializers.Serializer):
 
 class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     serializer_class = s.JobSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [OrganisationMember]
 
     def get_queryset(self) -> QuerySet[Job]:
@@ -396,6 +402,7 @@ def _is_date(text: str) -> bool:
 
 class ChecklistViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     serializer_class = s.ChecklistSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [SupervisorWrites]
 
     def get_queryset(self) -> QuerySet[Checklist]:
@@ -431,6 +438,7 @@ class ChecklistViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
 
 class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadOnlyModelViewSet):
     serializer_class = s.ChecklistVersionSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [SupervisorWrites]
     http_method_names = ["get", "patch", "post", "head", "options"]
 
@@ -492,6 +500,7 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
 
 class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
     serializer_class = s.SheetSerializer
+    pagination_class = BoundedLimitOffset
     permission_classes = [OrganisationMember]
 
     def get_queryset(self) -> QuerySet[Any]:
