@@ -12,13 +12,13 @@ Lock order is jobs (by id) before the site, as a sheet's transaction takes them.
 """
 
 import datetime as dt
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from django.db import transaction
 from django.utils import timezone
 
 from compliance.access import can_work_at, owns_site
+from compliance.anchor_status import status_requirement
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import (
     OPEN_STATES,
@@ -33,6 +33,7 @@ from compliance.models import (
     User,
 )
 from compliance.sealing import canonical_bytes, check_links, seal_of, utc
+from compliance.services import _transition, refresh_readiness
 from compliance.signing import active_credential, sign_seal
 
 if TYPE_CHECKING:
@@ -42,43 +43,6 @@ FORMAT = "parapet.anchor-log-entry/1"
 MEANING = "I made or witnessed the work recorded here and its result is as stated."
 PRE_USE_MEANING = "Pre-use check recorded from the contractor's pre-start check sheet."
 SIGNED_KINDS = [k for k in AnchorLogEntry.Kind if k != AnchorLogEntry.Kind.PRE_USE]
-INSPECTION_KINDS = (AnchorLogEntry.Kind.PERIODIC_INSPECTION, AnchorLogEntry.Kind.LOAD_TEST)
-
-
-def status_requirement(anchor: Anchor) -> str:
-    return f"anchor-status@anchor:{anchor.pk}"
-
-
-@dataclass(frozen=True)
-class AnchorStatus:
-    in_service: bool
-    removed_on: dt.date | None
-    removed_reason: str
-    last_inspection: dt.date | None
-    inspection_due: dt.date | None
-
-    def overdue_on(self, day: dt.date) -> bool:
-        return self.inspection_due is not None and self.inspection_due < day
-
-
-def anchor_status(anchor: Anchor, interval_days: int) -> AnchorStatus:
-    """From the anchor's prefetched log and certifications."""
-    entries = sorted(anchor.log.all(), key=lambda e: e.sequence)
-    in_service, removed_on, reason = True, None, ""
-    for entry in entries:
-        if entry.kind == AnchorLogEntry.Kind.REMOVED:
-            in_service, removed_on, reason = False, entry.performed_on, entry.details
-        elif entry.kind == AnchorLogEntry.Kind.RETURNED:
-            in_service, removed_on, reason = True, None, ""
-    dates = [c.certified_on for c in anchor.certifications.all()]
-    dates += [
-        e.performed_on
-        for e in entries
-        if e.kind in INSPECTION_KINDS and e.result == AnchorLogEntry.Result.PASS
-    ]
-    last = max(dates) if dates else None
-    due = last + dt.timedelta(days=interval_days) if last else None
-    return AnchorStatus(in_service, removed_on, reason, last, due)
 
 
 def _lock_chain(site_id: int) -> None:
@@ -280,8 +244,6 @@ def _jobs_using(anchor: Anchor) -> list[Job]:
 
 
 def _hold_jobs(jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
-    from compliance.services import _transition  # services imports selectors, which import us
-
     for job in jobs:
         Hold.objects.create(
             job=job,
@@ -298,8 +260,6 @@ def _hold_jobs(jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User)
 
 
 def _clear_holds_of(jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
-    from compliance.services import refresh_readiness  # as above: an import cycle otherwise
-
     for hold in Hold.objects.filter(requirement=status_requirement(anchor), clearance__isnull=True):
         HoldClearance.objects.create(hold=hold, log_entry=entry, by=by)
     for job in jobs:

@@ -18,6 +18,7 @@ import json
 from dataclasses import dataclass, field
 from typing import Any
 
+from celery import current_app
 from django.db import transaction
 from django.db.models import Prefetch
 from django.utils import timezone
@@ -41,12 +42,13 @@ from compliance.models import (
 )
 from compliance.sealing import ChainBreak, canonical_bytes, check_links, seal_of, utc
 from compliance.selectors import drops_of
+from compliance.services import close_job
+from compliance.signatures import verify_seal_signature
 from compliance.signing import (
     active_credential,
     sha256_hex,
     sign_chain_head,
     sign_seal,
-    verify_seal_signature,
 )
 
 FORMAT = "parapet.daily-record/2"
@@ -384,8 +386,6 @@ def sign_daily_record(
                 "Close the job (or leave it held) before signing the day's record."
             )
         if job.state == JobState.HELD:
-            from compliance.services import close_job
-
             close_job(job=job, by=by, reason="Signed off at day's end with the hold open.")
             job.refresh_from_db()
         _keep_profile_revision(job.site.profile)
@@ -471,14 +471,19 @@ def _store(
         client_uuid=client_uuid,
     )
     sign_chain_head(head, credential, sequence=record.sequence, seal=seal)
-    transaction.on_commit(lambda: _queue_render(record.pk))
+    transaction.on_commit(lambda: _queue_render(record.pk), robust=True)
     return record
 
 
-def _queue_render(record_id: int) -> None:
-    from compliance.tasks import render_daily_record
+RENDER_TASK = "compliance.tasks.render_daily_record"
 
-    render_daily_record.delay(record_id)
+
+def _queue_render(record_id: int) -> None:
+    """Queue the PDF's render once the record is committed. The task is found by name in the
+    Celery app's registry, so this service does not import the task layer above it; a failure
+    to queue is logged by on_commit(robust=True) and the sweep of records without a PDF picks
+    the record up."""
+    current_app.tasks[RENDER_TASK].delay(record_id)
 
 
 def add_addendum(

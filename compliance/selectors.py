@@ -6,7 +6,7 @@ from dataclasses import dataclass
 from django.db.models import Prefetch, QuerySet
 
 from compliance.access import can_work_at
-from compliance.anchor_log import anchor_status
+from compliance.anchor_status import anchor_status
 from compliance.errors import Reason
 from compliance.models import (
     Anchor,

@@ -192,6 +192,8 @@ CELERY_BEAT_SCHEDULE = {
     },
     "list-due-items": {"task": "compliance.tasks.list_due_items", "schedule": 24 * 3600},
     "sweep-orphan-pdfs": {"task": "compliance.tasks.sweep_orphan_pdfs", "schedule": 24 * 3600},
+    # A render that failed all its retries is queued again from here, not only when asked for.
+    "render-missing-pdfs": {"task": "compliance.tasks.render_missing_pdfs", "schedule": 600},
 }
 
 CACHES = {"default": env.cache("CACHE_URL", default="locmemcache://")}

@@ -13,7 +13,6 @@ from dataclasses import dataclass
 from asn1crypto import keys as asn1_keys
 from asn1crypto import x509 as asn1_x509
 from cryptography import x509
-from cryptography.exceptions import InvalidSignature
 from cryptography.hazmat.primitives import hashes, serialization
 from cryptography.hazmat.primitives.asymmetric import padding, rsa
 from cryptography.x509.oid import ExtendedKeyUsageOID, NameOID
@@ -158,22 +157,6 @@ def sign_seal(seal: str, credential: SigningCredential) -> str:
         hashes.SHA256(),
     )
     return base64.b64encode(signature).decode("ascii")
-
-
-def verify_seal_signature(seal: str, signature_b64: str, certificate_pem: str) -> bool:
-    cert = x509.load_pem_x509_certificate(certificate_pem.encode())
-    public_key = cert.public_key()
-    assert isinstance(public_key, rsa.RSAPublicKey)
-    try:
-        public_key.verify(
-            base64.b64decode(signature_b64),
-            seal.encode("ascii"),
-            padding.PSS(mgf=padding.MGF1(hashes.SHA256()), salt_length=padding.PSS.MAX_LENGTH),
-            hashes.SHA256(),
-        )
-    except (InvalidSignature, ValueError):
-        return False
-    return True
 
 
 def sign_pdf(

@@ -18,7 +18,8 @@ from compliance.log_book import signed_log_book
 from compliance.models import AnchorLogEntry, JobState, SiteAccess
 from compliance.sealing import seal_of
 from compliance.services import start_job
-from compliance.signing import create_self_signed, verify_seal_signature
+from compliance.signatures import verify_seal_signature
+from compliance.signing import create_self_signed
 from compliance.verification import verify_pdf
 from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import (

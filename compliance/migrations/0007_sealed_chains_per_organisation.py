@@ -5,70 +5,105 @@ from django.db import migrations, models
 
 
 class Migration(migrations.Migration):
-
     dependencies = [
-        ('compliance', '0006_profile_revisions'),
+        ("compliance", "0006_profile_revisions"),
     ]
 
     operations = [
         migrations.CreateModel(
-            name='RecordChainHead',
+            name="RecordChainHead",
             fields=[
-                ('id', models.BigAutoField(auto_created=True, primary_key=True, serialize=False, verbose_name='ID')),
-                ('sequence', models.PositiveIntegerField(default=0)),
-                ('seal', models.CharField(blank=True, max_length=64)),
-                ('statement', models.TextField(blank=True, help_text='RFC 8785 JSON of what was signed.')),
-                ('signature', models.TextField(blank=True)),
+                (
+                    "id",
+                    models.BigAutoField(
+                        auto_created=True, primary_key=True, serialize=False, verbose_name="ID"
+                    ),
+                ),
+                ("sequence", models.PositiveIntegerField(default=0)),
+                ("seal", models.CharField(blank=True, max_length=64)),
+                (
+                    "statement",
+                    models.TextField(blank=True, help_text="RFC 8785 JSON of what was signed."),
+                ),
+                ("signature", models.TextField(blank=True)),
             ],
         ),
         migrations.AlterModelOptions(
-            name='dailyrecord',
-            options={'ordering': ['site_id', 'organisation_id', 'sequence']},
+            name="dailyrecord",
+            options={"ordering": ["site_id", "organisation_id", "sequence"]},
         ),
         migrations.RemoveConstraint(
-            model_name='dailyrecord',
-            name='record_sequence_unique',
+            model_name="dailyrecord",
+            name="record_sequence_unique",
         ),
         migrations.AddField(
-            model_name='dailyrecord',
-            name='client_uuid',
-            field=models.UUIDField(blank=True, help_text='The id the phone or page gave the request, so a resent request adds nothing.', null=True),
+            model_name="dailyrecord",
+            name="client_uuid",
+            field=models.UUIDField(
+                blank=True,
+                help_text="The id the phone or page gave the request, so a resent request adds nothing.",
+                null=True,
+            ),
         ),
         migrations.AddField(
-            model_name='signingcredential',
-            name='retired_at',
-            field=models.DateTimeField(blank=True, help_text='When a newer key replaced this one; nothing signed after it is accepted.', null=True),
+            model_name="signingcredential",
+            name="retired_at",
+            field=models.DateTimeField(
+                blank=True,
+                help_text="When a newer key replaced this one; nothing signed after it is accepted.",
+                null=True,
+            ),
         ),
         migrations.AlterField(
-            model_name='dailyrecord',
-            name='sequence',
-            field=models.PositiveIntegerField(help_text="Position in the organisation's chain at this site, from 1."),
+            model_name="dailyrecord",
+            name="sequence",
+            field=models.PositiveIntegerField(
+                help_text="Position in the organisation's chain at this site, from 1."
+            ),
         ),
         migrations.AddConstraint(
-            model_name='dailyrecord',
-            constraint=models.UniqueConstraint(fields=('organisation', 'site', 'sequence'), name='record_sequence_unique'),
+            model_name="dailyrecord",
+            constraint=models.UniqueConstraint(
+                fields=("organisation", "site", "sequence"), name="record_sequence_unique"
+            ),
         ),
         migrations.AddConstraint(
-            model_name='dailyrecord',
-            constraint=models.UniqueConstraint(fields=('organisation', 'client_uuid'), name='record_client_uuid_unique'),
+            model_name="dailyrecord",
+            constraint=models.UniqueConstraint(
+                fields=("organisation", "client_uuid"), name="record_client_uuid_unique"
+            ),
         ),
         migrations.AddField(
-            model_name='recordchainhead',
-            name='credential',
-            field=models.ForeignKey(blank=True, null=True, on_delete=django.db.models.deletion.PROTECT, related_name='+', to='compliance.signingcredential'),
+            model_name="recordchainhead",
+            name="credential",
+            field=models.ForeignKey(
+                blank=True,
+                null=True,
+                on_delete=django.db.models.deletion.PROTECT,
+                related_name="+",
+                to="compliance.signingcredential",
+            ),
         ),
         migrations.AddField(
-            model_name='recordchainhead',
-            name='organisation',
-            field=models.ForeignKey(on_delete=django.db.models.deletion.PROTECT, related_name='+', to='compliance.organisation'),
+            model_name="recordchainhead",
+            name="organisation",
+            field=models.ForeignKey(
+                on_delete=django.db.models.deletion.PROTECT,
+                related_name="+",
+                to="compliance.organisation",
+            ),
         ),
         migrations.AddField(
-            model_name='recordchainhead',
-            name='site',
-            field=models.ForeignKey(on_delete=django.db.models.deletion.PROTECT, related_name='+', to='compliance.site'),
+            model_name="recordchainhead",
+            name="site",
+            field=models.ForeignKey(
+                on_delete=django.db.models.deletion.PROTECT, related_name="+", to="compliance.site"
+            ),
         ),
         migrations.AddConstraint(
-            model_name='recordchainhead',
-            constraint=models.UniqueConstraint(fields=('organisation', 'site'), name='one_head_per_chain'),
+            model_name="recordchainhead",
+            constraint=models.UniqueConstraint(
+                fields=("organisation", "site"), name="one_head_per_chain"
+            ),
         ),
     ]

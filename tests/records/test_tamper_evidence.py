@@ -19,8 +19,9 @@ from compliance.daily_records import seal_of, sign_daily_record, verify_chain
 from compliance.exports import build_export, export_scope
 from compliance.record_files import ensure_pdf
 from compliance.record_pdf import ATTACHMENT_NAME, render
+from compliance.sealing import merkle_root
 from compliance.signing import create_self_signed, sign_pdf, sign_seal
-from compliance.verification import TrustList, merkle_root, verify_export, verify_pdf
+from compliance.verification import TrustList, verify_export, verify_pdf
 from tests.conftest import client_for
 from tests.factories import PASSWORD, OrganisationFactory
 from tests.records.conftest import next_day_job

@@ -1,0 +1,46 @@
+"""An anchor's state read from its log book and certifications: in service or not, when it
+was last inspected and when the next inspection falls due. A read over prefetched rows, used by
+the selectors, the log book's printing and the holds the log book opens."""
+
+import datetime as dt
+from dataclasses import dataclass
+
+from compliance.models import Anchor, AnchorLogEntry
+
+INSPECTION_KINDS = (AnchorLogEntry.Kind.PERIODIC_INSPECTION, AnchorLogEntry.Kind.LOAD_TEST)
+
+
+def status_requirement(anchor: Anchor) -> str:
+    return f"anchor-status@anchor:{anchor.pk}"
+
+
+@dataclass(frozen=True)
+class AnchorStatus:
+    in_service: bool
+    removed_on: dt.date | None
+    removed_reason: str
+    last_inspection: dt.date | None
+    inspection_due: dt.date | None
+
+    def overdue_on(self, day: dt.date) -> bool:
+        return self.inspection_due is not None and self.inspection_due < day
+
+
+def anchor_status(anchor: Anchor, interval_days: int) -> AnchorStatus:
+    """From the anchor's prefetched log and certifications."""
+    entries = sorted(anchor.log.all(), key=lambda e: e.sequence)
+    in_service, removed_on, reason = True, None, ""
+    for entry in entries:
+        if entry.kind == AnchorLogEntry.Kind.REMOVED:
+            in_service, removed_on, reason = False, entry.performed_on, entry.details
+        elif entry.kind == AnchorLogEntry.Kind.RETURNED:
+            in_service, removed_on, reason = True, None, ""
+    dates = [c.certified_on for c in anchor.certifications.all()]
+    dates += [
+        e.performed_on
+        for e in entries
+        if e.kind in INSPECTION_KINDS and e.result == AnchorLogEntry.Result.PASS
+    ]
+    last = max(dates) if dates else None
+    due = last + dt.timedelta(days=interval_days) if last else None
+    return AnchorStatus(in_service, removed_on, reason, last, due)

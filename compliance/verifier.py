@@ -1,0 +1,630 @@
+"""The verifier an auditor can run on the bytes alone: a daily-record or log-book PDF, or an
+export, with a plain-language verdict. Nothing here reads the database (see verification for
+the checks against the stored rows).
+
+Each check says what was tested and why it failed. The PDF signature is validated with
+pyHanko's validator; the seal is recomputed from the attached canonical JSON; the pages are
+drawn again from it and compared; who signed is vouched for only by a trust anchor.
+"""
+
+import datetime as dt
+import hashlib
+import io
+import itertools
+import json
+import zipfile
+from collections.abc import Callable
+from dataclasses import asdict, dataclass, field, replace
+from typing import Any
+
+import rfc8785
+from asn1crypto import pem as asn1_pem
+from asn1crypto import x509 as asn1_x509
+from pyhanko.pdf_utils.reader import PdfFileReader
+from pyhanko.sign.validation import validate_pdf_signature
+from pyhanko.sign.validation.status import SignatureCoverageLevel
+from pyhanko_certvalidator import ValidationContext
+
+from compliance import log_book_pdf, record_pdf
+from compliance.page_check import Renderer, differing_pages
+from compliance.record_pdf import printed_seal, read_attachment
+from compliance.sealing import (
+    EXPORT_FORMAT,
+    merkle_root,
+)
+from compliance.sealing import (
+    EXPORT_MANIFEST as MANIFEST,
+)
+from compliance.sealing import (
+    EXPORT_MANIFEST_SIGNATURE as MANIFEST_SIGNATURE,
+)
+from compliance.signatures import verify_seal_signature
+
+
+@dataclass
+class Check:
+    name: str
+    ok: bool
+    detail: str
+
+
+@dataclass(frozen=True)
+class Signer:
+    """Who signed: the certificate's subject and SHA-256 fingerprint, and the organisation the
+    record (or the manifest) names, when known."""
+
+    subject: str
+    fingerprint_sha256: str
+    organisation: str = ""
+
+    def words(self) -> str:
+        org = f"{self.organisation}, " if self.organisation else ""
+        return f"{org}certificate {self.subject} (SHA-256 {self.fingerprint_sha256})"
+
+
+@dataclass
+class Report:
+    subject: str
+    checks: list[Check] = field(default_factory=list)
+    seal: str | None = None
+    signer: Signer | None = None
+    vouched: bool = False
+    """True only when the signer was checked against a trust anchor and found in it."""
+    trust_source: str = ""
+    document: dict[str, Any] | None = field(default=None, repr=False, compare=False)
+    """The sealed document attached to the PDF, once its seal checked out."""
+
+    @property
+    def intact(self) -> bool:
+        """Every check that ran passed: the file is what was signed (whoever signed it)."""
+        return bool(self.checks) and all(c.ok for c in self.checks)
+
+    @property
+    def ok(self) -> bool:
+        """VERIFIED: intact, and signed by a key the trust anchor vouches for."""
+        return self.intact and self.vouched
+
+    @property
+    def first_failure(self) -> Check | None:
+        return next((c for c in self.checks if not c.ok), None)
+
+    def add(self, name: str, ok: bool, detail: str) -> bool:
+        self.checks.append(Check(name, ok, detail))
+        return ok
+
+    def verdict(self) -> str:
+        signed_by = f" Signed by {self.signer.words()}." if self.signer else ""
+        if self.ok:
+            return (
+                f"VERIFIED: {self.subject} is exactly the record that was signed, and its place "
+                f"in the chain is intact.{signed_by} The signer is vouched for by"
+                f" {self.trust_source}."
+            )
+        if self.intact:
+            return (
+                f"INTEGRITY INTACT, SIGNER NOT VOUCHED FOR: {self.subject} has not been changed"
+                f" since it was signed, but no trust anchor was given to say whose key signed"
+                f" it.{signed_by} Supply the organisation's certificate fingerprints or CA"
+                " (--trust FILE), or check it on the Parapet server that holds them."
+            )
+        failure = self.first_failure
+        assert failure is not None
+        return f"NOT VERIFIED: {self.subject}: {failure.detail}"
+
+    def as_dict(self) -> dict[str, Any]:
+        return {
+            "ok": self.ok,
+            "intact": self.intact,
+            "vouched": self.vouched,
+            "verdict": self.verdict(),
+            "seal": self.seal,
+            "signer": None if self.signer is None else asdict(self.signer),
+            "trust": self.trust_source,
+            "checks": [asdict(c) for c in self.checks],
+        }
+
+
+@dataclass(frozen=True)
+class TrustList:
+    """A trust anchor: signer certificates known by SHA-256 fingerprint, and CA certificates a
+    signer's certificate may chain to. `source` says where it came from, for the verdict."""
+
+    fingerprints: frozenset[str] = frozenset()
+    roots: tuple[str, ...] = ()
+    source: str = "the trust list given"
+
+    @property
+    def empty(self) -> bool:
+        return not self.fingerprints and not self.roots
+
+    @classmethod
+    def from_pems(cls, pems: list[str], source: str) -> "TrustList":
+        """Certificates given as trusted: each is trusted itself and as a CA."""
+        certs = [c for pem in pems for c in _split_pems(pem)]
+        return cls(
+            fingerprints=frozenset(hashlib.sha256(c.dump()).hexdigest() for c in _certs(certs)),
+            roots=tuple(certs),
+            source=source,
+        )
+
+    @classmethod
+    def from_text(cls, text: str, source: str) -> "TrustList":
+        """A trust file: PEM certificates (a CA bundle or the signers'), or SHA-256 fingerprints
+        one a line (hex, colons allowed, '#' starts a comment)."""
+        if "-----BEGIN CERTIFICATE-----" in text:
+            return cls.from_pems([text], source)
+        prints = set()
+        for line in text.splitlines():
+            value = line.split("#", 1)[0].strip().replace(":", "").lower()
+            if not value:
+                continue
+            if len(value) != 64 or any(ch not in "0123456789abcdef" for ch in value):
+                raise ValueError(f"not a SHA-256 fingerprint: {line.strip()!r}")
+            prints.add(value)
+        return cls(fingerprints=frozenset(prints), source=source)
+
+
+def _split_pems(text: str) -> list[str]:
+    marker = "-----END CERTIFICATE-----"
+    return [part.strip() + "\n" + marker + "\n" for part in text.split(marker) if "BEGIN" in part]
+
+
+def check_trust(report: Report, trust: TrustList | None, chain_ok: bool) -> None:
+    """Vouch for the signer when the trust anchor holds its certificate (or its CA)."""
+    if report.signer is None or not report.intact:
+        return
+    if trust is None or trust.empty:
+        report.trust_source = ""
+        return
+    known = report.signer.fingerprint_sha256 in trust.fingerprints or chain_ok
+    if report.add(
+        "signer_vouched",
+        known,
+        f"The signer's certificate is in {trust.source}."
+        if known
+        else f"The signer ({report.signer.words()}) is not in {trust.source}: it may be a"
+        " self-made certificate or another organisation's.",
+    ):
+        report.vouched = True
+        report.trust_source = trust.source
+
+
+def _certs(pems: list[str]) -> list[asn1_x509.Certificate]:
+    out = []
+    for text in pems:
+        _, _, der = asn1_pem.unarmor(text.encode())
+        out.append(asn1_x509.Certificate.load(der))
+    return out
+
+
+def check_signature(report: Report, data: bytes, roots: tuple[str, ...] = ()) -> tuple[bool, bool]:
+    """Whether the PDF's one signature is intact over the whole file, and whether its certificate
+    chains to one of `roots`; names the signer in the report. Integrity only: who is trusted is
+    decided by `check_trust`."""
+    try:
+        reader = PdfFileReader(io.BytesIO(data), strict=False)
+        signatures = reader.embedded_signatures
+    except Exception as exc:
+        report.add("pdf_readable", False, f"The file is not a readable PDF ({type(exc).__name__}).")
+        return False, False
+    report.add("pdf_readable", True, "The file is a readable PDF.")
+    if len(signatures) != 1:
+        report.add("signature_present", False, f"Expected one signature, found {len(signatures)}.")
+        return False, False
+    context = ValidationContext(trust_roots=_certs(list(roots)), allow_fetching=False)
+    try:
+        status = validate_pdf_signature(signatures[0], context)
+    except Exception as exc:
+        report.add(
+            "signature_valid", False, f"The signature could not be checked ({type(exc).__name__})."
+        )
+        return False, False
+    if not (status.intact and status.valid):
+        report.add(
+            "signature_valid",
+            False,
+            "The PDF was changed after it was signed: the signature does not match the file.",
+        )
+        return False, False
+    if not _signature_container_exact(data, signatures[0].sig_object["/ByteRange"]):
+        report.add("signature_valid", False, "The signature's container was altered after signing.")
+        return False, False
+    report.add("signature_valid", True, "The signature matches the file's bytes.")
+    if status.coverage != SignatureCoverageLevel.ENTIRE_FILE:
+        report.add(
+            "signature_covers_file", False, "Content was added to the PDF after it was signed."
+        )
+        return False, False
+    report.add("signature_covers_file", True, "The signature covers the whole file.")
+    cert = status.signing_cert
+    report.signer = Signer(
+        subject=cert.subject.human_friendly,
+        fingerprint_sha256=hashlib.sha256(cert.dump()).hexdigest(),
+    )
+    return True, bool(roots) and bool(status.trusted)
+
+
+def _der_length(raw: bytes) -> int:
+    if len(raw) < 2 or raw[0] != 0x30:
+        raise ValueError("not a DER sequence")
+    if raw[1] < 0x80:
+        return 2 + raw[1]
+    count = raw[1] & 0x7F
+    return 2 + count + int.from_bytes(raw[2 : 2 + count], "big")
+
+
+def _signature_container_exact(data: bytes, byte_range: Any) -> bool:
+    """The bytes the signature leaves out (its own hex container) must be exactly as written.
+
+    The byte range excludes the /Contents hex string, so a changed padding byte or hex digit
+    there would not break the cryptographic check; we require the canonical form pyHanko writes:
+    upper-case hex of the CMS blob followed by zero padding.
+    """
+    start1, length1, start2, _ = (int(x) for x in byte_range)
+    gap = data[start1 + length1 : start2]
+    if len(gap) < 2 or gap[:1] != b"<" or gap[-1:] != b">":
+        return False
+    try:
+        raw = bytes.fromhex(gap[1:-1].decode("ascii"))
+        used = _der_length(raw)
+    except ValueError:
+        return False
+    if any(raw[used:]):
+        return False
+    return gap == b"<" + raw.hex().upper().encode("ascii") + b">"
+
+
+def check_content(report: Report, data: bytes) -> dict[str, Any] | None:
+    try:
+        attached = read_attachment(data)
+    except Exception:
+        attached = None
+    if attached is None:
+        report.add("record_attached", False, "The canonical record is not attached to the PDF.")
+        return None
+    try:
+        document = json.loads(attached)
+    except ValueError:
+        report.add("record_attached", False, "The attached record is not valid JSON.")
+        return None
+    report.add("record_attached", True, "The canonical record is attached.")
+    if rfc8785.dumps(document) != attached:
+        report.add(
+            "record_canonical", False, "The attached record is not in canonical form (RFC 8785)."
+        )
+        return None
+    seal = hashlib.sha256(attached).hexdigest()
+    report.seal = seal
+    printed = printed_seal(data)
+    if printed != seal:
+        report.add(
+            "seal_matches",
+            False,
+            "The attached record does not hash to the seal printed on the PDF: it was edited.",
+        )
+        return None
+    report.add(
+        "seal_matches", True, f"The attached record hashes to the printed seal {seal[:16]}…."
+    )
+    return document
+
+
+def _renderer(document: dict[str, Any]) -> Renderer | None:
+    fmt = document.get("format")
+    if fmt in RECORD_FORMATS:
+        return record_pdf.render
+    if fmt == LOG_BOOK_FORMAT:
+        return lambda doc, seal, photos: log_book_pdf.render(doc, seal)
+    return None
+
+
+LOG_BOOK_FORMAT = "parapet.anchor-log-book/1"
+RECORD_FORMATS = {
+    "parapet.daily-record/2",
+    "parapet.daily-record-addendum/2",
+}
+
+
+def check_pages(report: Report, data: bytes, document: dict[str, Any]) -> bool:
+    """The pages say what the sealed document says: the document is drawn again with the same
+    deterministic layout and compared page by page with the signed file (see page_check)."""
+    renderer = _renderer(document)
+    if renderer is None:
+        return report.add(
+            "pages_match_record",
+            False,
+            f"The record's format ({str(document.get('format'))[:60]}) is not one this verifier"
+            " can draw, so its pages cannot be checked.",
+        )
+    try:
+        problems = differing_pages(data, document, report.seal or "", renderer)
+    except Exception as exc:  # a malformed page tree or an undrawable document: not verified
+        return report.add(
+            "pages_match_record",
+            False,
+            f"The pages could not be compared with the sealed record ({type(exc).__name__}).",
+        )
+    if problems:
+        shown = ", ".join(problems[:3]) + (" …" if len(problems) > 3 else "")
+        return report.add(
+            "pages_match_record",
+            False,
+            "The pages do not show what the sealed record says: they were drawn or edited"
+            f" apart from it ({shown}).",
+        )
+    return report.add(
+        "pages_match_record",
+        True,
+        "Every page shows exactly what the sealed record draws to (text, figures, fonts,"
+        " images and layout).",
+    )
+
+
+DatabaseCheck = Callable[[Report, dict[str, Any]], tuple[TrustList, str] | None]
+"""Checks against the stored rows; returns the organisation's trust anchor and name."""
+
+
+def verify_pdf(
+    data: bytes,
+    *,
+    trusted_pems: list[str] | None = None,
+    trust: TrustList | None = None,
+    name: str = "this PDF",
+    database: DatabaseCheck | None = None,
+) -> Report:
+    """Check a record or log-book PDF from its bytes: signature, seal, pages. VERIFIED needs a
+    trust anchor: `trust` (or the PEMs in `trusted_pems`), or the one `database` finds for the
+    record's own organisation. Without one the answer is integrity only."""
+    if trust is None and trusted_pems is not None:
+        trust = TrustList.from_pems(trusted_pems, "the certificates given")
+    report = Report(subject=name)
+    intact, chained = check_signature(report, data, trust.roots if trust else ())
+    if not intact:
+        return report
+    document = check_content(report, data)
+    if document is None:
+        return report
+    report.document = document
+    if not check_pages(report, data, document):
+        return report
+    if database is not None:
+        found = database(report, document)
+        if found is not None:
+            stored_trust, organisation = found
+            trust = trust if trust is not None else stored_trust
+            if report.signer is not None:
+                report.signer = replace(report.signer, organisation=organisation)
+    check_trust(report, trust, chained)
+    return report
+
+
+MAX_MANIFEST_BYTES = 8 * 1024 * 1024
+MAX_PDF_BYTES = 50 * 1024 * 1024
+MAX_EXPORT_BYTES = 2 * 1024 * 1024 * 1024
+"""Decompressed sizes read from an export: a 300 KB ZIP can hold a 300 MiB manifest."""
+
+
+def _read_capped(archive: zipfile.ZipFile, name: str, cap: int) -> bytes:
+    """A member of the archive, refused by its declared size before anything is inflated, and
+    read no further than the cap whatever the header claims."""
+    info = archive.getinfo(name)
+    if info.file_size > cap:
+        raise ValueError(f"{name} would inflate to {info.file_size} bytes, over {cap}")
+    with archive.open(info) as handle:
+        data = handle.read(cap + 1)
+    if len(data) > cap:
+        raise ValueError(f"{name} inflates past {cap} bytes")
+    return data
+
+
+class _Refused(Exception):
+    """A check of the export failed; its name and words are in the report."""
+
+
+def _need(report: Report, name: str, ok: bool, detail: str) -> None:
+    if not ok:
+        report.add(name, False, detail)
+        raise _Refused
+
+
+TrustFor = Callable[[int], TrustList]
+"""The trust anchor of an organisation, by id (the server's registered certificates)."""
+
+
+def verify_export(
+    data: bytes, *, trust: TrustList | None = None, trust_for: TrustFor | None = None
+) -> Report:
+    """Verify an export: its signed manifest, the Merkle root of its seals, and for each
+    organisation's chain in it that the records follow one another up to the chain's signed
+    head, and that every PDF is the one the manifest names, intact, sealed for that organisation
+    and site and signed with that organisation's certificate. VERIFIED needs a trust anchor:
+    `trust`, or with the database the certificates each organisation registered; without one
+    the answer is integrity only."""
+    report = Report(subject="this export")
+    try:
+        archive = zipfile.ZipFile(io.BytesIO(data))
+        if sum(i.file_size for i in archive.infolist()) > MAX_EXPORT_BYTES:
+            raise ValueError("the export inflates past 2 GiB")
+        raw = _read_capped(archive, MANIFEST, MAX_MANIFEST_BYTES)
+        manifest = json.loads(raw)
+        signature = json.loads(_read_capped(archive, MANIFEST_SIGNATURE, MAX_MANIFEST_BYTES))
+        if manifest["format"] != EXPORT_FORMAT:
+            raise ValueError("format")
+        chains = list(manifest["chains"])
+        exporter = manifest["exported_by"]
+        site_id = manifest["site"]["id"]
+        period = (
+            dt.date.fromisoformat(manifest["period"]["start"]),
+            dt.date.fromisoformat(manifest["period"]["end"]),
+        )
+        cert_pem = str(signature["certificate_pem"])
+        [signer_cert] = _certs([cert_pem])
+        seals = [bytes.fromhex(e["seal"]) for c in chains for e in c["records"]]
+    except (zipfile.BadZipFile, KeyError, TypeError, ValueError, AttributeError) as exc:
+        why = str(exc) if "inflate" in str(exc) else type(exc).__name__
+        report.add("manifest", False, f"The export has no readable, signed manifest ({why}).")
+        return report
+    if rfc8785.dumps(manifest) != raw:
+        report.add("manifest", False, "The manifest is not in canonical form: it was rewritten.")
+        return report
+    fingerprint = hashlib.sha256(signer_cert.dump()).hexdigest()
+    if not verify_seal_signature(
+        hashlib.sha256(raw).hexdigest(), str(signature.get("signature", "")), cert_pem
+    ):
+        report.add(
+            "manifest",
+            False,
+            "The manifest's signature does not verify: it was changed after it was signed.",
+        )
+        return report
+    report.signer = Signer(
+        subject=signer_cert.subject.human_friendly,
+        fingerprint_sha256=fingerprint,
+        organisation=str(exporter.get("name", "")) if isinstance(exporter, dict) else "",
+    )
+    report.add(
+        "manifest",
+        True,
+        f"The manifest lists {len(seals)} records in {len(chains)} chains and is signed.",
+    )
+    if merkle_root(seals) != manifest.get("merkle_root"):
+        report.add(
+            "merkle_root",
+            False,
+            "The manifest's list of seals does not match its Merkle root: "
+            "a record was added, removed or reordered.",
+        )
+        return report
+    report.add("merkle_root", True, "The list of seals matches the manifest's Merkle root.")
+    try:
+        for chain in chains:
+            _check_export_chain(report, archive, chain, site_id, period, trust, trust_for)
+    except _Refused:
+        return report
+    except (KeyError, TypeError, ValueError, AttributeError) as exc:
+        report.add("chain_intact", False, f"A manifest entry is malformed ({type(exc).__name__}).")
+        return report
+    if trust is None and trust_for is not None and isinstance(exporter.get("id"), int):
+        trust = trust_for(exporter["id"])
+    check_trust(report, trust, False)
+    return report
+
+
+def _check_export_chain(
+    report: Report,
+    archive: zipfile.ZipFile,
+    chain: dict[str, Any],
+    site_id: int,
+    period: tuple[dt.date, dt.date],
+    trust: TrustList | None,
+    trust_for: TrustFor | None,
+) -> None:
+    """One organisation's chain in an export: links, signed head, nothing of the period left
+    out after it, and each PDF."""
+    org = chain["organisation"]
+    name = str(org["name"])
+    certs = {
+        hashlib.sha256(c.dump()).hexdigest(): pem
+        for pem in chain["certificates"]
+        for c in _certs([pem])
+    }
+    records, later = list(chain["records"]), list(chain["after_period"])
+    breaks = _relative_links(records + later)
+    _need(report, "chain_intact", not breaks, f"{name}'s chain in the export is broken: {breaks}")
+    left_out = [
+        e["sequence"] for e in later if period[0].isoformat() <= e["date"] <= period[1].isoformat()
+    ]
+    _need(
+        report,
+        "chain_intact",
+        not left_out,
+        f"{name}'s records {left_out} fall in the period but are not in the export.",
+    )
+    head = chain["head"]
+    statement = json.loads(head["statement"])
+    pem = certs.get(str(head["certificate_sha256"]))
+    last = (records + later)[-1] if records or later else {"sequence": 0, "seal": ""}
+    _need(
+        report,
+        "chain_head",
+        pem is not None
+        and verify_seal_signature(
+            hashlib.sha256(str(head["statement"]).encode("utf-8")).hexdigest(),
+            str(head["signature"]),
+            pem,
+        )
+        and (statement["organisation"], statement["site"]) == (org["id"], site_id),
+        f"{name}'s chain head is not signed by {name} for this site.",
+    )
+    _need(
+        report,
+        "chain_head",
+        (statement["sequence"], statement["seal"]) == (last["sequence"], last["seal"]),
+        f"{name}'s signed chain head names record {statement['sequence']}, but the export's"
+        f" chain ends at record {last['sequence']}: records were removed from its end.",
+    )
+    report.add(
+        "chain_intact",
+        True,
+        f"{name}'s {len(records)} records follow one another up to the chain's signed head.",
+    )
+    chain_trust = trust
+    if chain_trust is None and trust_for is not None and isinstance(org["id"], int):
+        chain_trust = trust_for(org["id"])
+    for entry in records:
+        _check_export_file(report, archive, entry, org["id"], site_id, set(certs), chain_trust)
+
+
+def _check_export_file(
+    report: Report,
+    archive: zipfile.ZipFile,
+    entry: dict[str, Any],
+    organisation_id: int,
+    site_id: int,
+    fingerprints: set[str],
+    trust: TrustList | None,
+) -> None:
+    name = str(entry.get("file"))
+    check = f"file:{name}"
+    try:
+        pdf = _read_capped(archive, name, MAX_PDF_BYTES)
+    except KeyError:
+        _need(report, check, False, f"{name} is listed but missing.")
+    except (ValueError, zipfile.BadZipFile, OSError) as exc:
+        _need(report, check, False, f"{name} cannot be read ({exc}).")
+    _need(
+        report,
+        check,
+        hashlib.sha256(pdf).hexdigest() == entry.get("file_sha256"),
+        f"{name} is not the file the manifest names: it was swapped.",
+    )
+    sub = verify_pdf(pdf, trust=trust, name=name)
+    _need(report, check, sub.intact, sub.verdict())
+    _need(report, check, sub.seal == entry.get("seal"), f"{name} carries another record's seal.")
+    document = sub.document or {}
+    _need(
+        report,
+        check,
+        (document.get("organisation") or {}).get("id") == organisation_id
+        and (document.get("site") or {}).get("id") == site_id
+        and document.get("sequence") == entry.get("sequence"),
+        f"{name} was sealed for another organisation, site or place in the chain.",
+    )
+    _need(
+        report,
+        check,
+        sub.signer is not None and sub.signer.fingerprint_sha256 in fingerprints,
+        f"{name} was signed by a certificate its organisation's chain does not list.",
+    )
+    if trust is not None and not trust.empty:
+        _need(report, check, sub.vouched, sub.verdict())
+    report.add(check, True, f"{name} is intact and is the file the manifest names.")
+
+
+def _relative_links(entries: list[dict[str, Any]]) -> str:
+    for before, after in itertools.pairwise(entries):
+        if after["sequence"] != before["sequence"] + 1:
+            return f"record {before['sequence'] + 1} is missing or out of order"
+        if after["previous_seal"] != before["seal"]:
+            return f"record {after['sequence']} does not follow record {before['sequence']}"
+    return ""
