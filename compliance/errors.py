@@ -35,3 +35,11 @@ class NotPermitted(DomainError):
     def __init__(self, message: str) -> None:
         super().__init__(message)
         self.message = message
+
+
+class PdfsPending(DomainError):
+    """Some records' PDFs are still being rendered; ``record_ids`` names them."""
+
+    def __init__(self, record_ids: list[int]) -> None:
+        super().__init__(f"{len(record_ids)} record PDFs are still being rendered.")
+        self.record_ids = record_ids

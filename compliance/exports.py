@@ -18,7 +18,7 @@ from typing import Any
 
 import rfc8785
 
-from compliance.errors import NotPermitted
+from compliance.errors import NotPermitted, PdfsPending
 from compliance.models import (
     DailyRecord,
     Organisation,
@@ -28,7 +28,6 @@ from compliance.models import (
     SiteAccess,
     User,
 )
-from compliance.record_files import ensure_pdf
 from compliance.sealing import (
     EXPORT_FORMAT,
     EXPORT_MANIFEST,
@@ -75,22 +74,39 @@ def export_filename(record: DailyRecord) -> str:
     )
 
 
-def _chain(
-    archive: zipfile.ZipFile, organisation: Organisation, site: Site, start: dt.date, end: dt.date
-) -> dict[str, Any] | None:
+def _slice(
+    organisation: Organisation, site: Site, start: dt.date, end: dt.date
+) -> tuple[list[DailyRecord], list[DailyRecord], RecordChainHead | None]:
+    """The run of an organisation's chain from the first to the last record of the period, and
+    the records after it."""
     rows = DailyRecord.objects.filter(organisation=organisation, site=site).select_related(
-        "job", "credential", "site"
+        "job", "credential", "site", "pdf"
     )
     in_period = rows.filter(job__date__gte=start, job__date__lte=end)
     first = in_period.order_by("sequence").values_list("sequence", flat=True).first()
-    head = RecordChainHead.objects.filter(organisation=organisation, site=site).first()
+    head = (
+        RecordChainHead.objects.filter(organisation=organisation, site=site)
+        .select_related("credential")
+        .first()
+    )
     if first is None or head is None:
-        return None
+        return [], [], None
     last = in_period.order_by("-sequence").values_list("sequence", flat=True).first()
+    slice_ = list(rows.filter(sequence__gte=first, sequence__lte=last).order_by("sequence"))
+    after = list(rows.filter(sequence__gt=last).order_by("sequence"))
+    return slice_, after, head
+
+
+def _chain(
+    archive: zipfile.ZipFile,
+    organisation: Organisation,
+    records: list[DailyRecord],
+    after: list[DailyRecord],
+    head: RecordChainHead,
+) -> dict[str, Any]:
     entries = []
-    for record in rows.filter(sequence__gte=first, sequence__lte=last).order_by("sequence"):
-        pdf = ensure_pdf(record)
-        with pdf.file.open("rb") as handle:
+    for record in records:
+        with record.pdf.file.open("rb") as handle:
             data = handle.read()
         archive.writestr(export_filename(record), data)
         entries.append(
@@ -106,16 +122,6 @@ def _chain(
                 "meaning": record.meaning,
             }
         )
-    after = [
-        {
-            "sequence": record.sequence,
-            "kind": record.kind,
-            "date": record.job.date.isoformat(),
-            "seal": record.seal,
-            "previous_seal": record.previous_seal,
-        }
-        for record in rows.filter(sequence__gt=last).order_by("sequence")
-    ]
     certificates = sorted(
         SigningCredential.objects.filter(organisation=organisation).values_list(
             "certificate_pem", flat=True
@@ -124,7 +130,16 @@ def _chain(
     return {
         "organisation": {"id": organisation.pk, "name": organisation.name},
         "records": entries,
-        "after_period": after,
+        "after_period": [
+            {
+                "sequence": record.sequence,
+                "kind": record.kind,
+                "date": record.job.date.isoformat(),
+                "seal": record.seal,
+                "previous_seal": record.previous_seal,
+            }
+            for record in after
+        ],
         "head": {
             "statement": head.statement,
             "signature": head.signature,
@@ -135,16 +150,26 @@ def _chain(
 
 
 def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) -> bytes:
-    """All records of the scope's chains in a site-period, signed PDFs plus a signed manifest."""
+    """All records of the scope's chains in a site-period, signed PDFs plus a signed manifest.
+
+    Raises PdfsPending when a record's PDF is not rendered yet (nothing is drawn in the request).
+    """
     site = scope.site
     exporter = Organisation.objects.get(pk=by.organisation_id)
+    slices = [
+        (org, *_slice(org, site, start, end))
+        for org in Organisation.objects.filter(pk__in=scope.organisation_ids).order_by("pk")
+    ]
+    pending = [r.pk for _, records, _, _ in slices for r in records if not hasattr(r, "pdf")]
+    if pending:
+        raise PdfsPending(pending)
     buffer = io.BytesIO()
     with zipfile.ZipFile(buffer, "w", zipfile.ZIP_DEFLATED) as archive:
-        chains = []
-        for org in Organisation.objects.filter(pk__in=scope.organisation_ids).order_by("pk"):
-            chain = _chain(archive, org, site, start, end)
-            if chain is not None:
-                chains.append(chain)
+        chains = [
+            _chain(archive, org, records, after, head)
+            for org, records, after, head in slices
+            if head is not None
+        ]
         seals = [bytes.fromhex(e["seal"]) for c in chains for e in c["records"]]
         manifest = {
             "format": FORMAT,

@@ -20,7 +20,7 @@ from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.daily_records import MEANINGS, add_addendum
-from compliance.errors import NotPermitted
+from compliance.errors import NotPermitted, PdfsPending
 from compliance.exports import build_export, export_scope
 from compliance.models import DailyRecord, RecordPdf
 from compliance.tasks import queue_render
@@ -182,7 +182,23 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
         if errors:
             return Response(errors, status=status.HTTP_400_BAD_REQUEST)
         assert scope is not None
-        data = build_export(scope=scope, by=request.user, start=dates["start"], end=dates["end"])
+        try:
+            data = build_export(
+                scope=scope, by=request.user, start=dates["start"], end=dates["end"]
+            )
+        except PdfsPending as pending:
+            for record_id in pending.record_ids:
+                queue_render(record_id)
+            response = Response(
+                {
+                    "status": "rendering",
+                    "detail": f"{len(pending.record_ids)} of the period's record PDFs are being"
+                    f" rendered. Ask again in {PDF_RETRY_AFTER_S} seconds.",
+                },
+                status=status.HTTP_202_ACCEPTED,
+            )
+            response["Retry-After"] = str(PDF_RETRY_AFTER_S)
+            return response
         response = HttpResponse(data, content_type="application/zip")
         response["Content-Disposition"] = (
             f'attachment; filename="records-{scope.site.pk}-{dates["start"]}-{dates["end"]}.zip"'

@@ -13,7 +13,8 @@ from django.urls import reverse
 
 from compliance.daily_records import sign_daily_record
 from compliance.exports import build_export, export_scope
-from compliance.models import Organisation, SiteAccess
+from compliance.models import DailyRecord, Organisation, SiteAccess
+from compliance.record_files import ensure_pdf
 from compliance.services import close_job, start_job
 from compliance.signing import create_self_signed, sha256_hex, sign_seal
 from compliance.verification import TrustList, verify_export
@@ -57,7 +58,14 @@ def building(signed, simple_checklists, operator, supervisor, settings, tmp_path
     return manager, signed, second
 
 
+def _rendered(site_id):
+    """Render every record's PDF, as the background task does once a sign-off commits."""
+    for stored in DailyRecord.objects.filter(site_id=site_id):
+        ensure_pdf(stored)
+
+
 def _export(user, record, start=None, end=None):
+    _rendered(record.site_id)
     start = start or record.job.date
     return build_export(
         scope=export_scope(user=user, site_id=record.site_id),
@@ -110,6 +118,7 @@ def test_the_export_endpoint_answers_each_party_and_no_one_else(building):
     manager, first, second = building
     day = first.job.date.isoformat()
     query = {"site": first.site_id, "start": day, "end": day}
+    _rendered(first.site_id)
     for user, chains in (
         (first.signer, 1),
         (second.signer, 1),
@@ -192,3 +201,18 @@ def test_an_addendum_signed_later_travels_with_its_day(
     assert [e["sequence"] for e in chain["records"]] == [1, 2, 3]
     assert chain["after_period"] == []
     assert verify_export(data, use_database=True).ok
+
+
+def test_an_export_waits_for_pdfs_still_rendering(signed, supervisor, settings, tmp_path):
+    """Nothing is drawn in the request: a record whose PDF is not ready answers 202 and its
+    render is queued; once rendered, the export is served."""
+    settings.MEDIA_ROOT = tmp_path
+    day = signed.job.date.isoformat()
+    query = {"site": signed.site_id, "start": day, "end": day}
+    client = client_for(supervisor)
+    waiting = client.get(reverse("record-export"), query)
+    assert waiting.status_code == 202
+    assert waiting["Retry-After"] == "5"
+    assert waiting.json()["status"] == "rendering"
+    # Run in-process here, the queued render has already drawn the PDF.
+    assert client.get(reverse("record-export"), query).status_code == 200

@@ -17,6 +17,7 @@ from pypdf import PdfReader
 
 from compliance.daily_records import seal_of, sign_daily_record, verify_chain
 from compliance.exports import build_export, export_scope
+from compliance.models import DailyRecord
 from compliance.record_files import ensure_pdf
 from compliance.record_pdf import ATTACHMENT_NAME, render
 from compliance.sealing import merkle_root
@@ -35,6 +36,8 @@ def failed(report):
 
 def export_of(record, start, end):
     """The export its own signer would download for the record's site and a period."""
+    for stored in DailyRecord.objects.filter(site_id=record.site_id):
+        ensure_pdf(stored)  # rendered on commit in the app; tests run inside one transaction
     scope = export_scope(user=record.signer, site_id=record.site_id)
     return build_export(scope=scope, by=record.signer, start=start, end=end)
 
