@@ -36,6 +36,7 @@ lint: $(VENV)/.installed
 	$(BIN)/ruff check .
 	$(BIN)/ruff format --check .
 	$(BIN)/mypy
+	$(BIN)/lint-imports
 
 test: setup system-packages lint
 	cd frontend && npm test --silent

@@ -23,12 +23,9 @@ from pyhanko.pdf_utils.incremental_writer import IncrementalPdfFileWriter
 from pyhanko.sign import fields, signers
 from pyhanko_certvalidator.registry import SimpleCertificateStore
 
+from compliance.errors import NoSigningCredential
 from compliance.models import Organisation, RecordChainHead, SigningCredential
 from compliance.sealing import canonical_bytes, head_statement
-
-
-class NoSigningCredential(Exception):
-    """The organisation has no active signing certificate; run manage.py signing_key."""
 
 
 def _passphrase() -> bytes:

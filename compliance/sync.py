@@ -19,7 +19,7 @@ from checklists.selectors import usable_versions
 from checklists.services import record_sheet
 from compliance import services
 from compliance.access import anchors_visible_to
-from compliance.errors import DomainError, InvalidTransition, JobBlocked, NotPermitted
+from compliance.errors import DomainError, rejection_for
 from compliance.models import Anchor, Drop, DropLog, Equipment, Job, SyncReceipt, User
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
@@ -284,20 +284,12 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
                 status = "applied"
             except RecordRejected as exc:
                 result, status = {"errors": exc.errors}, "rejected"
-            except ValidationError as exc:
-                from compliance.api.errors import django_errors
-
-                result, status = {"errors": django_errors(exc)}, "rejected"
-            except JobBlocked as exc:
-                result = {
-                    "errors": {"job": [r.message for r in exc.reasons]},
-                    "reasons": [r.as_dict() for r in exc.reasons],
-                }
-                status = "rejected"
-            except (InvalidTransition, NotPermitted) as exc:
-                result, status = {"errors": {"record": [exc.message]}}, "rejected"
-            except DomainError as exc:
-                result, status = {"errors": {"record": [str(exc)]}}, "rejected"
+            except (ValidationError, DomainError) as exc:
+                # The API's mapping of domain errors, as one refused record's errors.
+                result, status = (
+                    rejection_for(exc) or {"errors": {"record": [str(exc)]}},
+                    "rejected",
+                )
             if status == "applied":
                 SyncReceipt.objects.create(
                     client_uuid=client_uuid,
