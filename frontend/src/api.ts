@@ -49,7 +49,7 @@ export class ApiError extends Error {
 
 const SIGNED_OUT_CODES = new Set(["not_authenticated", "authentication_failed"]);
 
-export function csrfToken(): string {
+function csrfToken(): string {
   for (const part of document.cookie.split(";")) {
     const [name, ...rest] = part.trim().split("=");
     if (name === "csrftoken") return decodeURIComponent(rest.join("="));
@@ -64,7 +64,7 @@ interface Options {
   timeoutMs?: number;
 }
 
-export async function request<T>(path: string, opts: Options = {}): Promise<T> {
+async function request<T>(path: string, opts: Options = {}): Promise<T> {
   const method = opts.method ?? "GET";
   const headers: Record<string, string> = { Accept: "application/json" };
   let body: BodyInit | undefined;

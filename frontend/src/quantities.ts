@@ -134,7 +134,7 @@ export interface Quantity {
 }
 
 /** One output as a line, or null when it has no value (null is never shown). */
-export function quantity(key: string, value: unknown): Quantity | null {
+function quantity(key: string, value: unknown): Quantity | null {
   if (value === null || value === undefined) return null;
   let shown: string;
   let unit = "";

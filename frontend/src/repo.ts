@@ -1,17 +1,7 @@
 /** Server data with a fallback: fetch when possible, else the last copy kept in IndexedDB. */
 import { api, OfflineError } from "./api";
 import { cacheGet, cachePut } from "./storage";
-import type {
-  Anchor,
-  ChecklistVersion,
-  DailyRecord,
-  Equipment,
-  JobDetail,
-  JobSummary,
-  Profile,
-  Site,
-  User,
-} from "./types";
+import type { ChecklistVersion, DailyRecord, JobDetail, JobSummary, Reference, User } from "./types";
 
 export interface Loaded<T> {
   value: T;
@@ -19,7 +9,7 @@ export interface Loaded<T> {
   savedAt: string;
 }
 
-export async function load<T>(key: string, fetcher: () => Promise<T>): Promise<Loaded<T>> {
+async function load<T>(key: string, fetcher: () => Promise<T>): Promise<Loaded<T>> {
   try {
     const value = await fetcher();
     await cachePut(key, value);
@@ -45,13 +35,6 @@ export const loadJobs = (date: string) =>
 export const loadJob = (id: number) => load<JobDetail>(`job:${id}`, () => api.job(id));
 export const loadVersions = () =>
   load<ChecklistVersion[]>("versions", async () => (await api.versions()).results);
-
-export interface Reference {
-  profiles: Profile[];
-  equipment: Equipment[];
-  anchors: Anchor[];
-  sites: Site[];
-}
 
 /** Ratings, profiles and anchors the phone needs to judge readings before the server does. */
 export const loadReference = () =>

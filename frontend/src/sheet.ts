@@ -7,8 +7,18 @@ import { CalcInputError, run, UnknownCalculation, type CalcResult } from "./calc
 import { facadePosition } from "./calc/site_plan";
 import { labelOf } from "./quantities";
 import { num } from "./calc/working";
-import type { Reference } from "./repo";
-import type { Anchor, ChecklistItem, Entry, JobDetail, Requirement, Site, Source, Threshold, TickValue } from "./types";
+import type {
+  Anchor,
+  ChecklistItem,
+  Draft,
+  Entry,
+  JobDetail,
+  Reference,
+  Requirement,
+  Site,
+  Source,
+  Threshold,
+} from "./types";
 
 export type Context = Record<string, Record<string, unknown>>;
 
@@ -29,15 +39,6 @@ export interface ItemView {
   band: number | null;
   /** Why the band is there, from the profile threshold it names ("" when unknown). */
   bandReason: string;
-}
-
-/** What a sheet form holds before it becomes entries. */
-export interface Draft {
-  ticks: Record<string, TickValue>;
-  readings: Record<string, string>;
-  series: Record<string, number[][]>;
-  photos: Record<string, { uuid: string; blob: Blob; name: string }[]>;
-  notes: Record<string, string>;
 }
 
 export function emptyDraft(): Draft {
@@ -149,7 +150,7 @@ const REGISTER_WORDS: Record<string, string> = {
 };
 
 /** What a calculation input is, in the sheet's words; mirrors verdicts.input_words. */
-export function inputWords(source: Source | undefined, labels: Record<string, string>, name: string): string {
+function inputWords(source: Source | undefined, labels: Record<string, string>, name: string): string {
   const pairs = source ? Object.entries(source) : [];
   if (pairs.length !== 1) return name.replace(/_/g, " ");
   const [kind, ref] = pairs[0]!;

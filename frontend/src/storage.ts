@@ -1,9 +1,8 @@
 /** IndexedDB on the phone: the outbox, photos as blobs, and the last-known server data. */
 import { openDB, type DBSchema, type IDBPDatabase } from "idb";
-import type { Draft } from "./sheet";
-import type { OutRecord, Reason } from "./types";
+import type { Draft, OutRecord, Reason } from "./types";
 
-export type OutStatus = "waiting" | "applied" | "rejected";
+type OutStatus = "waiting" | "applied" | "rejected";
 
 /** One record made on the phone, kept until the server has answered for it. */
 export interface OutboxEntry {
@@ -70,7 +69,7 @@ interface ParapetDB extends DBSchema {
 
 let dbPromise: Promise<IDBPDatabase<ParapetDB>> | null = null;
 
-export function db(): Promise<IDBPDatabase<ParapetDB>> {
+function db(): Promise<IDBPDatabase<ParapetDB>> {
   dbPromise ??= openDB<ParapetDB>("parapet", 2, {
     upgrade(database, oldVersion) {
       if (oldVersion < 1) {
@@ -168,8 +167,4 @@ export async function draftPut(entry: DraftEntry): Promise<void> {
 
 export async function draftDelete(key: string): Promise<void> {
   await (await db()).delete("drafts", key);
-}
-
-export async function draftsAll(): Promise<DraftEntry[]> {
-  return (await db()).getAll("drafts");
 }

@@ -18,7 +18,7 @@ import {
 } from "./storage";
 import type { SyncResultLine } from "./types";
 
-export const BATCH = 200;
+const BATCH = 200;
 const KEEP_ANSWERED_MS = 3 * 24 * 3600 * 1000;
 const MAX_BACKOFF_MS = 60000;
 

@@ -21,7 +21,7 @@ export interface JobSummary {
   notes: string;
 }
 
-export interface Drop {
+interface Drop {
   id: number;
   label: string;
   robot: number;
@@ -53,7 +53,7 @@ export interface Reason {
   requirement?: string | null;
 }
 
-export interface Hold {
+interface Hold {
   id: number;
   requirement: string;
   item_key: string;
@@ -74,7 +74,7 @@ export interface JobDetail extends JobSummary {
 
 export type Source = Record<string, unknown>;
 
-export type ItemKind = "tick" | "reading" | "series" | "calc" | "photo" | "note";
+type ItemKind = "tick" | "reading" | "series" | "calc" | "photo" | "note";
 
 export interface ChecklistItem {
   key: string;
@@ -98,7 +98,7 @@ export interface ChecklistItem {
 }
 
 /** Where a timed series' numbers come from, e.g. `{"interval_s": {"profile": "decay_interval_s"}}`. */
-export interface SeriesScheduleSources {
+interface SeriesScheduleSources {
   interval_s: Source;
   tolerance_s?: Source;
   min_duration_s?: Source;
@@ -212,16 +212,6 @@ export interface SyncResponse {
   server_time: string;
 }
 
-export interface CalcResult {
-  name: string;
-  inputs: Record<string, unknown>;
-  outputs: Record<string, unknown>;
-  verdict: string;
-  margin: number | null;
-  governing: string | null;
-  steps: unknown[];
-  caution: string;
-}
 
 export type Meaning = "reviewed_safe" | "reviewed_stopped" | "reviewed_exceptions";
 
@@ -240,4 +230,23 @@ export interface DailyRecord {
   meaning: string;
   signed_at: string;
   pdf_ready: boolean;
+}
+
+/* Shapes the phone keeps for itself (not the server's). */
+
+/** What a sheet form holds before it becomes entries. */
+export interface Draft {
+  ticks: Record<string, TickValue>;
+  readings: Record<string, string>;
+  series: Record<string, number[][]>;
+  photos: Record<string, { uuid: string; blob: Blob; name: string }[]>;
+  notes: Record<string, string>;
+}
+
+/** Ratings, profiles and anchors the phone needs to judge readings before the server does. */
+export interface Reference {
+  profiles: Profile[];
+  equipment: Equipment[];
+  anchors: Anchor[];
+  sites: Site[];
 }

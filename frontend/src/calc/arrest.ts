@@ -43,7 +43,7 @@ const RULES: Rule[] = [
 ];
 
 /** Peak line force of a linear-elastic arrest, from the energy balance. */
-export function peakForceN(weightN: number, stiffnessNPerM: number, freeFallM: number): number {
+function peakForceN(weightN: number, stiffnessNPerM: number, freeFallM: number): number {
   return weightN + Math.sqrt(weightN) * Math.sqrt(weightN + 2 * stiffnessNPerM * freeFallM);
 }
 

@@ -45,7 +45,7 @@ const RULES: Rule[] = [
 ];
 
 /** What a timed series falls short of, in words; mirrors decay.schedule_problems. */
-export function scheduleProblems(
+function scheduleProblems(
   times: number[],
   o: { intervalS: number; toleranceS: number; minDurationS: number; minCount?: number },
 ): string[] {
@@ -63,14 +63,14 @@ export function scheduleProblems(
   return problems;
 }
 
-export interface LineFit {
+interface LineFit {
   intercept: number;
   slope: number;
   r2: number | null;
 }
 
 /** Ordinary least squares of y on x; an all-equal y is exactly flat. */
-export function fitLine(xs: number[], ys: number[]): LineFit {
+function fitLine(xs: number[], ys: number[]): LineFit {
   if (Math.min(...ys) === Math.max(...ys)) return { intercept: ys[0]!, slope: 0, r2: null };
   const n = xs.length;
   const sum = (a: number[]) => a.reduce((s, v) => s + v, 0);

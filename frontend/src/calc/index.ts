@@ -12,7 +12,7 @@ import { WIND_AT_HEIGHT } from "./wind";
 export { CalcInputError, UnknownCalculation };
 export type { CalcResult };
 
-export const CALCULATIONS: Record<string, Calculation> = Object.fromEntries(
+const CALCULATIONS: Record<string, Calculation> = Object.fromEntries(
   [SUCTION_HOLD, VACUUM_DECAY, ARREST_LOAD, WIND_AT_HEIGHT, WATER_LINE, SUSPENDED_MASS, WATER_USE].map((c) => [c.name, c]),
 );
 

@@ -8,7 +8,7 @@ import { CalcInputError, OutOfRange } from "./errors";
 import { build, type CalcResult, type Calculation, type Check, type InputValue, type OutputValue } from "./result";
 import { num } from "./working";
 
-export type FieldKind = "number" | "integer" | "choice" | "series";
+type FieldKind = "number" | "integer" | "choice" | "series";
 
 export interface Field {
   name: string;
@@ -261,7 +261,7 @@ function applyRule(rule: Rule, values: Record<string, InputValue>): void {
 }
 
 /** Check `raw` against the fields and rules; throw CalcInputError on the first problem. */
-export function validate(fields: Field[], rules: Rule[], raw: unknown): Inputs {
+function validate(fields: Field[], rules: Rule[], raw: unknown): Inputs {
   if (raw === null || typeof raw !== "object" || Array.isArray(raw)) {
     throw new CalcInputError("inputs", "must be an object of named values");
   }
@@ -284,7 +284,7 @@ export function validate(fields: Field[], rules: Rule[], raw: unknown): Inputs {
   return new Inputs(values);
 }
 
-export const OUT_OF_RANGE = "out_of_range";
+const OUT_OF_RANGE = "out_of_range";
 
 /** The first output that is not finite or check margin that is undefined, in words. */
 function problemOf(outputs: Record<string, OutputValue>, checks: Check[] = []): string | null {
@@ -298,7 +298,7 @@ function problemOf(outputs: Record<string, OutputValue>, checks: Check[] = []): 
 }
 
 /** The failing result of a working that left the range of doubles; mirrors calculation.out_of_range. */
-export function outOfRange(
+function outOfRange(
   name: string,
   inputs: Record<string, InputValue>,
   why: string,

@@ -4,7 +4,7 @@ import { pct } from "./working";
 
 export type OutputValue = number | string | null;
 export type InputValue = number | string | [number, number][];
-export type Verdict = "pass" | "fail";
+type Verdict = "pass" | "fail";
 
 export interface CalcResult {
   name: string;
@@ -57,7 +57,7 @@ function worst(checks: Check[]): Check {
 }
 
 /** The check that decides the verdict; mirrors result.governing_check. */
-export function governingCheck(checks: Check[]): Check | null {
+function governingCheck(checks: Check[]): Check | null {
   const gates = checks.filter((c) => !passed(c) && c.gate);
   const failing = gates.length ? gates : checks.filter((c) => !passed(c));
   if (failing.length) {
@@ -69,7 +69,7 @@ export function governingCheck(checks: Check[]): Check | null {
   return checks.find((c) => !c.gate) ?? null;
 }
 
-export function decide(checks: Check[]): [Verdict, number | null, string] {
+function decide(checks: Check[]): [Verdict, number | null, string] {
   const w = governingCheck(checks);
   if (w === null) return ["pass", null, "none"];
   const verdict: Verdict = checks.every(passed) ? "pass" : "fail";

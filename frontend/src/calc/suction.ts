@@ -8,10 +8,10 @@ import { num } from "./working";
 const NAME = "suction-hold";
 
 /** EN 1991-1-4 Table 7.1 cpe,1 on a side wall (from memory); C taken as the leeward worst. */
-export const CPE_1: Record<string, number> = { A: -1.4, B: -1.1, C: -0.7 };
+const CPE_1: Record<string, number> = { A: -1.4, B: -1.1, C: -0.7 };
 const HOSE_DRAG_COEFFICIENT = 1.2;
 
-export function facadeZone(cornerM: number, depthM: number | null, heightM: number): [string, number | null] {
+function facadeZone(cornerM: number, depthM: number | null, heightM: number): [string, number | null] {
   if (depthM === null) return ["A", null];
   const eM = Math.min(depthM, 2 * heightM);
   if (cornerM < eM / 5) return ["A", eM];

@@ -11,7 +11,7 @@ const LAMINAR_BELOW_RE = 2300;
 const TURBULENT_FROM_RE = 4000;
 
 /** Darcy friction factor from Colebrook-White by fixed-point iteration from Swamee-Jain. */
-export function colebrook(reynolds: number, relativeRoughness: number): number {
+function colebrook(reynolds: number, relativeRoughness: number): number {
   const a = relativeRoughness / 3.7;
   const b = 2.51 / reynolds;
   let x = -2 * Math.log10(a + 5.74 / reynolds ** 0.9);
@@ -26,7 +26,7 @@ export function colebrook(reynolds: number, relativeRoughness: number): number {
   return 1 / (x * x);
 }
 
-export function frictionFactor(reynolds: number, relativeRoughness: number): [number, string] {
+function frictionFactor(reynolds: number, relativeRoughness: number): [number, string] {
   if (reynolds < LAMINAR_BELOW_RE) return [64 / reynolds, "laminar"];
   const turbulent = colebrook(reynolds, relativeRoughness);
   if (reynolds < TURBULENT_FROM_RE) return [Math.max(64 / reynolds, turbulent), "transitional"];
@@ -67,7 +67,7 @@ const RULES: Rule[] = [
 ];
 
 /** Joukowsky's surge for a valve closing in `closureS`, and the wave's round trip 2·L/a. */
-export function surgeKpa(density: number, waveSpeedMs: number, velocityMs: number, lengthM: number, closureS: number): [number, number] {
+function surgeKpa(density: number, waveSpeedMs: number, velocityMs: number, lengthM: number, closureS: number): [number, number] {
   const roundTripS = (2 * lengthM) / waveSpeedMs;
   const full = (density * waveSpeedMs * velocityMs) / PA_PER_KPA;
   return closureS <= roundTripS ? [full, roundTripS] : [(full * roundTripS) / closureS, roundTripS];

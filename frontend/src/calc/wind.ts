@@ -7,7 +7,7 @@ import { num } from "./working";
 const NAME = "wind-at-height";
 
 /** EN 1991-1-4 Table 4.1: roughness length z0 and minimum height zmin per terrain category. */
-export const TERRAIN_Z0_ZMIN_M: Record<string, [number, number]> = {
+const TERRAIN_Z0_ZMIN_M: Record<string, [number, number]> = {
   "0": [0.003, 1.0],
   I: [0.01, 1.0],
   II: [0.05, 2.0],
@@ -23,13 +23,13 @@ const LOG_LAW_MAX_HEIGHT_M = 200;
 const BEAUFORT_LOWER_BOUNDS_MS = [0.3, 1.6, 3.4, 5.5, 8.0, 10.8, 13.9, 17.2, 20.8, 24.5, 28.5, 32.7];
 
 /** EN 1991-1-4 (4.5): kr = 0.19·(z0 / 0.05)^0.07. */
-export const terrainFactor = (z0M: number) => 0.19 * Math.pow(z0M / 0.05, 0.07);
+const terrainFactor = (z0M: number) => 0.19 * Math.pow(z0M / 0.05, 0.07);
 
 /** Power-law exponent matching the EN log profile between 10 m and 100 m. */
-export const defaultAlpha = (z0M: number) =>
+const defaultAlpha = (z0M: number) =>
   Math.log(Math.log(100 / z0M) / Math.log(10 / z0M)) / Math.log(10);
 
-export const beaufort = (meanMs: number) => BEAUFORT_LOWER_BOUNDS_MS.filter((b) => meanMs >= b).length;
+const beaufort = (meanMs: number) => BEAUFORT_LOWER_BOUNDS_MS.filter((b) => meanMs >= b).length;
 
 /** The air density input shared by the calculations that load something with the wind. */
 export const AIR_DENSITY = number("air_density_kgm3", "kg/m³", "air density", {

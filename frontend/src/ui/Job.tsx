@@ -24,8 +24,6 @@ function requirementStatus(req: Requirement, mine: OutboxEntry | undefined): { k
   return { kind: "mustdo", word: "To do" };
 }
 
-export { plainReason };
-
 export function JobScreen({ id, user }: { id: number; user: User }) {
   const version = useDataVersion();
   const status = useStatus();

@@ -8,7 +8,7 @@ import { href, timeOf, useDataVersion } from "./hooks";
 import { Badge, StateBadge } from "./signs";
 
 /** What a job still needs, in one line. */
-export function needsLine(job: JobDetail, outbox: OutboxEntry[]): string {
+function needsLine(job: JobDetail, outbox: OutboxEntry[]): string {
   const open = job.holds.filter((h) => !h.cleared_at).length;
   const waiting = outbox.filter((e) => e.job === job.id && e.status === "waiting").length;
   const missing = job.requirements.filter((r) => !r.satisfied).length;

@@ -22,11 +22,11 @@ import type { ChecklistItem } from "../types";
 import { Sign } from "./signs";
 
 /** Now on the phone's monotonic clock, in milliseconds on the epoch's scale. */
-export function monotonicNow(): number {
+function monotonicNow(): number {
   return performance.timeOrigin + performance.now();
 }
 
-export function Curve({ samples, unit }: { samples: number[][]; unit: string }) {
+function Curve({ samples, unit }: { samples: number[][]; unit: string }) {
   if (samples.length < 2) return null;
   const w = 320, h = 120, pad = 28;
   const ts = samples.map((s) => s[0]!);

@@ -1,5 +1,5 @@
 import { useEffect, useMemo, useRef, useState } from "preact/hooks";
-import { loadJob, loadReference, loadVersions, type Reference } from "../repo";
+import { loadJob, loadReference, loadVersions } from "../repo";
 import { enqueue } from "../outbox";
 import {
   buildContext,
@@ -12,13 +12,12 @@ import {
   seriesSchedule,
   stillNeeded,
   toEntries,
-  type Draft,
   type ItemView,
   type Steady,
 } from "../sheet";
 import { quantityLines } from "../quantities";
 import { draftDelete, draftGet, draftKey, draftPut, type PhotoEntry } from "../storage";
-import type { ChecklistVersion, JobDetail, TickValue } from "../types";
+import type { ChecklistVersion, Draft, JobDetail, Reference, TickValue } from "../types";
 import { deviceTime, newUuid } from "../uuid";
 import { BottomBar, CautionLine, Header } from "./common";
 import { go, href, timeOf } from "./hooks";

@@ -19,7 +19,7 @@ const ROLE_WORDS: Record<string, string> = {
   admin: "Organisation admin",
 };
 
-export function RecordCard({ record }: { record: DailyRecord }) {
+function RecordCard({ record }: { record: DailyRecord }) {
   return (
     <section class="card record" data-testid="record">
       <h2><Badge kind="safe" word="Day's record signed and sealed" /></h2>

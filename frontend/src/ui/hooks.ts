@@ -22,7 +22,7 @@ export type Route =
   | { name: "sign"; id: number }
   | { name: "outbox" };
 
-export function parseRoute(hash: string): Route {
+function parseRoute(hash: string): Route {
   const parts = hash.replace(/^#\/?/, "").split("/").filter(Boolean);
   const id = Number(parts[1]);
   if (parts[0] === "job" && Number.isInteger(id)) {

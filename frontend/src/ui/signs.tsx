@@ -63,7 +63,7 @@ export function Badge({ kind, word, testid }: { kind: SignKind; word: string; te
   );
 }
 
-export const STATE_SIGN: Record<JobState, { kind: SignKind; word: string }> = {
+const STATE_SIGN: Record<JobState, { kind: SignKind; word: string }> = {
   planned: { kind: "mustdo", word: "Planned: checks due" },
   cleared: { kind: "safe", word: "Cleared to start" },
   working: { kind: "safe", word: "Working" },
