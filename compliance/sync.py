@@ -101,23 +101,42 @@ def _device_time(data: dict[str, Any]) -> dt.datetime | None:
     return parsed
 
 
+UNSTORABLE_TEXT = "Text may not hold a NUL or an unpaired surrogate."
+
+
+def _unstorable(text: str) -> bool:
+    return "\x00" in text or any("\ud800" <= ch <= "\udfff" for ch in text)
+
+
+def printable(text: str) -> str:
+    """The text with each NUL and unpaired surrogate shown as U+FFFD: a name sent back in an
+    error must be writable as UTF-8, or the answer itself fails."""
+    if not _unstorable(text):
+        return text
+    return "".join("\ufffd" if ch == "\x00" or "\ud800" <= ch <= "\udfff" else ch for ch in text)
+
+
 def bad_text(value: Any, path: str) -> str | None:
     """The path of the first text holding a NUL or an unpaired surrogate (neither can be
-    stored: PostgreSQL refuses NUL in text, and UTF-8 has no surrogates), else None."""
-    if isinstance(value, str):
-        if "\x00" in value or any("\ud800" <= ch <= "\udfff" for ch in value):
-            return path
-        return None
-    if isinstance(value, dict):
-        for key, item in value.items():
-            found = bad_text(key, path) or bad_text(item, f"{path}.{key}" if path else str(key))
-            if found:
-                return found
-    if isinstance(value, list):
-        for index, item in enumerate(value):
-            found = bad_text(item, f"{path}[{index}]")
-            if found:
-                return found
+    stored: PostgreSQL refuses NUL in text and jsonb, and UTF-8 has no surrogates), else None.
+    A bad key is named with printable(). Walked without recursion, so no nesting the JSON
+    parser accepts can exhaust the stack here."""
+    stack: list[tuple[Any, str]] = [(value, path)]
+    while stack:
+        item, at = stack.pop()
+        if isinstance(item, str):
+            if _unstorable(item):
+                return at
+        elif isinstance(item, dict):
+            children = []
+            for key, sub in item.items():
+                name = f"{at}.{printable(str(key))}" if at else printable(str(key))
+                if isinstance(key, str) and _unstorable(key):
+                    return name
+                children.append((sub, name))
+            stack.extend(reversed(children))
+        elif isinstance(item, list):
+            stack.extend(reversed([(sub, f"{at}[{i}]") for i, sub in enumerate(item)]))
     return None
 
 
@@ -239,12 +258,16 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         }
     raw_uuid = record.get("client_uuid")
     try:
-        client_uuid = uuid.UUID(str(raw_uuid)) if raw_uuid is not None else None
+        client_uuid = (
+            uuid.UUID(str(raw_uuid))
+            if isinstance(raw_uuid, str | int) and not isinstance(raw_uuid, bool)
+            else None
+        )
     except ValueError:
         client_uuid = None
     if client_uuid is None:
         return {
-            "client_uuid": raw_uuid,
+            "client_uuid": printable(raw_uuid[:100]) if isinstance(raw_uuid, str) else None,
             "status": "rejected",
             "errors": {"client_uuid": ["A UUID made on the phone is required."]},
         }
@@ -254,7 +277,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         if receipt.user_id != user.pk:
             return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
         return {**line, "status": receipt.status, "duplicate": True, **receipt.result}
-    unknown = sorted(str(k)[:80] for k in record if k not in ENVELOPE_KEYS)
+    unknown = sorted(printable(str(k)[:80]) for k in record if k not in ENVELOPE_KEYS)
     if unknown:
         return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
     kind = record.get("type")
@@ -267,7 +290,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         }
     if not isinstance(data, dict):
         return {**line, "status": "rejected", "errors": {"data": ["Must be an object."]}}
-    unknown = sorted(str(k)[:80] for k in data if k not in DATA_KEYS[kind])
+    unknown = sorted(printable(str(k)[:80]) for k in data if k not in DATA_KEYS[kind])
     if unknown:
         return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
     where = bad_text(data, "")
@@ -275,7 +298,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         return {
             **line,
             "status": "rejected",
-            "errors": {where or "data": ["Text may not hold a NUL or an unpaired surrogate."]},
+            "errors": {where or "data": [UNSTORABLE_TEXT]},
         }
     try:
         with transaction.atomic():

@@ -7,18 +7,30 @@ from typing import Any
 
 from rest_framework import serializers
 
+from compliance.sync import UNSTORABLE_TEXT, bad_text, printable
+
 EARLIEST = dt.date(1950, 1, 1)
 LATEST = dt.date(2100, 12, 31)
 
 
 class StrictInput:
-    """Refuse fields the serializer does not know, naming each, so a typo never loses data."""
+    """Refuse fields the serializer does not know, naming each, so a typo never loses data; and
+    refuse text no database holds (a NUL, an unpaired surrogate) anywhere in the input, in JSON
+    fields and names too, naming its path, before anything is looked up or stored.
+
+    ``text_checked_later`` names fields whose contents are checked elsewhere (a sync batch
+    checks each record alone, so one bad record does not refuse the rest)."""
 
     fields: Any
+    text_checked_later: tuple[str, ...] = ()
 
     def to_internal_value(self, data: Any) -> Any:
         if isinstance(data, Mapping):
-            unknown = sorted(str(key)[:80] for key in data if key not in self.fields)
+            checked = {k: v for k, v in data.items() if k not in self.text_checked_later}
+            where = bad_text(checked, "")
+            if where is not None:
+                raise serializers.ValidationError({where: [UNSTORABLE_TEXT]})
+            unknown = sorted(printable(str(key)[:80]) for key in data if key not in self.fields)
             if unknown:
                 raise serializers.ValidationError({key: ["Unknown field."] for key in unknown})
         return super().to_internal_value(data)  # type: ignore[misc]

@@ -42,7 +42,7 @@ from compliance.models import (
     Site,
 )
 from compliance.selectors import job_readiness, jobs_for
-from compliance.sync import MAX_BATCH
+from compliance.sync import MAX_BATCH, printable
 
 
 class LoginInput(StrictInput, serializers.Serializer):
@@ -109,6 +109,7 @@ def me(request: Request) -> Response:
 class SyncInput(StrictInput, serializers.Serializer):
     records = serializers.ListField(child=serializers.JSONField(), max_length=MAX_BATCH)
     sent_at = serializers.DateTimeField(required=False, allow_null=True)
+    text_checked_later = ("records",)
 
 
 @extend_schema(
@@ -548,5 +549,9 @@ def calculate(request: Request, name: str) -> Response:
     try:
         result = run(name, dict(request.data))
     except CalcInputError as exc:
-        return Response({exc.field: [exc.message]}, status=status.HTTP_400_BAD_REQUEST)
+        # The field may be any name that was sent; echoed as it is, a lone surrogate in it
+        # would make the answer unwritable.
+        return Response(
+            {printable(exc.field): [printable(exc.message)]}, status=status.HTTP_400_BAD_REQUEST
+        )
     return Response(result.to_dict())

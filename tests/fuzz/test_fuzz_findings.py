@@ -4,11 +4,14 @@ Each answer must be a 4xx naming the field (or an ordinary 200), with nothing st
 refusal. A finding in code this team does not own stays here as a strict xfail until fixed.
 """
 
+import json
+
 import pytest
 from django.urls import reverse
 from rest_framework.test import APIClient
 
 from tests.conftest import client_for
+from tests.fuzz.hostile import baseline, sheet_body
 
 pytestmark = pytest.mark.django_db
 
@@ -51,3 +54,120 @@ def test_a_limit_past_any_integer_column_is_clamped(world, name, limit):
     response = answer(client, "get", reverse(name), data={"limit": limit})
     assert response.status_code == 200
     assert 0 < len(response.json()["results"]) <= 1000
+
+
+# Text a database cannot hold, inside JSON fields and field names --------------------------------
+
+UNSTORABLE = {"NUL": "gauge\x00reading", "lone surrogate": "kink \ud800"}
+
+
+def send_json(client: APIClient, method: str, url: str, body) -> tuple[int, dict]:
+    client.raise_request_exception = False
+    text = json.dumps(body, ensure_ascii=True)
+    response = client.generic(method, url, text, content_type="application/json")
+    assert response.status_code < 500, getattr(response, "exc_info", None)
+    return response.status_code, response.json()
+
+
+def _draft_items(world, text):
+    items = json.loads(json.dumps(world.draft.items))
+    items[0]["label"] = text
+    return {"items": items}
+
+
+def _entry_note(world, text):
+    body = sheet_body(world)
+    body["entries"]["condition"]["note"] = text
+    return body
+
+
+def _rating_named(world, text):
+    body = baseline(world, "POST", "/api/v1/equipment/", "supervisor")
+    body["ratings"][text] = 1.0
+    return body
+
+
+JSON_FIELDS = {
+    # (who, method, url, body with the text in it, the error's key)
+    "a checklist draft's item label": (
+        "supervisor",
+        "patch",
+        lambda w: f"/api/v1/checklist-versions/{w.draft.pk}/",
+        _draft_items,
+        "items[0].label",
+    ),
+    "a new draft's item label": (
+        "supervisor",
+        "post",
+        lambda w: f"/api/v1/checklists/{w.own_checklist.pk}/versions/",
+        _draft_items,
+        "items[0].label",
+    ),
+    "a note inside a sheet entry": (
+        "operator",
+        "post",
+        lambda w: "/api/v1/sheets/",
+        _entry_note,
+        "entries.condition.note",
+    ),
+    "the name of a rating": (
+        "supervisor",
+        "post",
+        lambda w: "/api/v1/equipment/",
+        _rating_named,
+        "ratings",
+    ),
+}
+
+
+@pytest.mark.parametrize("text", list(UNSTORABLE.values()), ids=list(UNSTORABLE))
+@pytest.mark.parametrize("where", list(JSON_FIELDS))
+def test_unstorable_text_inside_a_json_field_is_a_400_naming_its_path(world, where, text):
+    """A label of "\\ud800" was saved into a draft and then the answer could not be written as
+    UTF-8 (a 500 after the change was stored); PostgreSQL refused a NUL in jsonb (a 500)."""
+    who, method, url, body, key = JSON_FIELDS[where]
+    draft_items = json.loads(json.dumps(world.draft.items))
+    before = stored_counts()
+    status, errors = send_json(client_for(world.users[who]), method, url(world), body(world, text))
+    assert status == 400, errors
+    assert key in errors or any(k.startswith(key) for k in errors), errors
+    assert stored_counts() == before
+    world.draft.refresh_from_db()
+    assert world.draft.items == draft_items
+
+
+@pytest.mark.parametrize(
+    ("who", "url"),
+    [
+        ("supervisor", lambda w: f"/api/v1/jobs/{w.job.pk}/pause/"),
+        ("supervisor", lambda w: "/api/v1/sites/"),
+        ("operator", lambda w: "/api/v1/calc/suction-hold/"),
+    ],
+    ids=["pause", "sites", "calc"],
+)
+def test_a_field_named_with_a_lone_surrogate_is_named_printably(world, who, url):
+    """The name was echoed in the error and the answer could not be written as UTF-8."""
+    status, errors = send_json(client_for(world.users[who]), "post", url(world), {"k\ud800": 1})
+    assert status == 400
+    assert "k\ufffd" in errors, errors
+
+
+@pytest.mark.parametrize("name", ["login", "token"])
+def test_a_lone_surrogate_in_a_username_is_a_400_not_a_500(api, name):
+    """The sign-in limit hashed the username as UTF-8 before the input was checked."""
+    status, errors = send_json(
+        api, "post", reverse(name), {"username": "\ud800", "password": "correct horse"}
+    )
+    assert status == 400
+    assert "username" in errors, errors
+
+
+def stored_counts() -> tuple[int, ...]:
+    from checklists.models import ChecklistVersion, CheckSheet
+    from compliance.models import Equipment
+
+    return (
+        CheckSheet.objects.count(),
+        ChecklistVersion.objects.count(),
+        Equipment.objects.count(),
+    )
