@@ -39,5 +39,5 @@ lint: $(VENV)/.installed
 	$(BIN)/lint-imports
 
 test: setup system-packages lint
-	cd frontend && npm test --silent
+	cd frontend && npm test --silent && npm run --silent check:api-types
 	$(BIN)/python -m pytest $(PYTEST_ARGS)

@@ -23,10 +23,12 @@ describe("sealShort", () => {
 });
 
 describe("canSign", () => {
-  const user = (role: string): User => ({ id: 1, username: "u", name: "U", role, organisation: "o" });
+  type Role = NonNullable<User["role"]>;
+  const user = (role: Role): User => ({ id: 1, username: "u", name: "U", role, organisation: "o" });
   it("lets the supervisor and an admin sign, nobody else", () => {
-    expect(["supervisor", "admin"].map((r) => canSign(user(r)))).toEqual([true, true]);
-    expect(["operator", "auditor", "property_manager"].map((r) => canSign(user(r)))).toEqual([false, false, false]);
+    expect((["supervisor", "admin"] as Role[]).map((r) => canSign(user(r)))).toEqual([true, true]);
+    const others: Role[] = ["operator", "auditor", "property_manager"];
+    expect(others.map((r) => canSign(user(r)))).toEqual([false, false, false]);
     expect(canSign(null)).toBe(false);
   });
 });
