@@ -10,6 +10,7 @@ import type {
   Meaning,
   OutRecord,
   Page,
+  PdfRendering,
   Profile,
   Site,
   SyncResponse,
@@ -111,6 +112,45 @@ async function request<T>(path: string, opts: Options = {}): Promise<T> {
   return parsed as T;
 }
 
+/** The signed PDF's answer: ready (200), or still being rendered (202, ask again after Retry-After). */
+type PdfAnswer = { ready: true } | { ready: false; retryAfter: string | null; rendering: PdfRendering | null };
+
+/**
+ * Whether a record's signed PDF is ready. A 200's bytes are left unread: the link fetches them
+ * when the operator taps it.
+ */
+async function pdfAnswer(id: number): Promise<PdfAnswer> {
+  const controller = new AbortController();
+  const timer = setTimeout(() => controller.abort(), 20000);
+  let response: Response;
+  try {
+    response = await fetch(`${BASE}records/${id}/pdf/`, {
+      headers: { Accept: "application/pdf, application/json" },
+      credentials: "same-origin",
+      signal: controller.signal,
+    });
+  } catch {
+    throw new OfflineError();
+  } finally {
+    clearTimeout(timer);
+  }
+  if (response.status === 200) {
+    await response.body?.cancel().catch(() => undefined);
+    return { ready: true };
+  }
+  let parsed: unknown = null;
+  try {
+    parsed = await response.json();
+  } catch {
+    parsed = null;
+  }
+  if (response.status === 202) {
+    return { ready: false, retryAfter: response.headers.get("Retry-After"), rendering: parsed as PdfRendering | null };
+  }
+  if (response.status >= 500 && parsed === null) throw new OfflineError();
+  throw new ApiError(response.status, (parsed as Record<string, unknown>) ?? {});
+}
+
 export const api = {
   login: (username: string, password: string) =>
     request<User>("auth/login/", { method: "POST", json: { username, password } }),
@@ -138,6 +178,7 @@ export const api = {
     request<DailyRecord>(`jobs/${id}/sign/`, { method: "POST", json: { password, meaning, remarks }, timeoutMs: 60000 }),
   records: (site: number) => request<Page<DailyRecord>>(`records/?site=${site}&limit=1000`),
   recordPdf: (id: number) => `${BASE}records/${id}/pdf/`,
+  pdfAnswer,
   photo: (form: FormData) =>
     request<unknown>("photos/", { method: "POST", form, timeoutMs: 60000 }),
 };

@@ -8,6 +8,7 @@ import { api, ApiError, OfflineError } from "../api";
 import { keepRecord, loadJob, loadRecordOf } from "../repo";
 import { cachePut, outboxAll } from "../storage";
 import { dataChanged } from "../status";
+import { pdfWords, watchPdf, type PdfState } from "../record_pdf";
 import { canSign, MEANINGS, sealShort, STATEMENT } from "../signoff";
 import type { DailyRecord, JobDetail, Meaning, User } from "../types";
 import { BottomBar, CautionLine, errorLines, Header, plainReason } from "./common";
@@ -38,11 +39,33 @@ function RecordCard({ record }: { record: DailyRecord }) {
         <dt>Place in the site's chain</dt>
         <dd>Record {record.sequence}{record.previous_seal ? `, after seal ${sealShort(record.previous_seal)}` : ", the first"}</dd>
       </dl>
+      <RecordPdf record={record} />
+      <p class="muted small">The PDF carries the record itself, so an auditor can check it on its own.</p>
+    </section>
+  );
+}
+
+/** The PDF link once the server has rendered it; until then, words saying it is being prepared. */
+function RecordPdf({ record }: { record: DailyRecord }) {
+  const [state, setState] = useState<PdfState>(record.pdf_ready ? { kind: "ready" } : { kind: "preparing", retryAfterS: 0 });
+  useEffect(() => {
+    if (record.pdf_ready) {
+      setState({ kind: "ready" });
+      return undefined;
+    }
+    return watchPdf(record.id, setState);
+  }, [record.id, record.pdf_ready]);
+  if (state.kind === "ready") {
+    return (
       <a class="btn btn-primary" href={api.recordPdf(record.id)} download data-testid="record-pdf">
         Download the signed PDF
       </a>
-      <p class="muted small">The PDF carries the record itself, so an auditor can check it on its own.</p>
-    </section>
+    );
+  }
+  return (
+    <p class={state.kind === "refused" ? "error" : "note"} role="status" data-testid="record-pdf-wait">
+      {pdfWords(state)}
+    </p>
   );
 }
 
