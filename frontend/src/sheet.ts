@@ -4,6 +4,7 @@
  * evaluates again on sync; its verdict is the record.
  */
 import { CalcInputError, run, UnknownCalculation, type CalcResult } from "./calc";
+import { SLACK_S } from "./calc/decay";
 import { facadePosition } from "./calc/site_plan";
 import { labelOf } from "./quantities";
 import { num } from "./calc/working";
@@ -341,7 +342,9 @@ export function describeSchedule(schedule: Schedule): string {
  * What a series' times fall short of, as the server words it (checklists/verdicts.py with
  * compliance/engineering/decay.py schedule_problems, same arithmetic on the same numbers):
  * `spacing` can no longer be mended, the test must start again; `shortfall` is what it still
- * has to do. Times count from the first reading. A legacy schedule is judged on the count alone.
+ * has to do. Times count from the first reading, and a gap or a duration exactly at its edge
+ * keeps the schedule though floats make it a hair over (SLACK_S). A legacy schedule is judged on
+ * the count alone.
  */
 export function scheduleProblems(times: number[], schedule: Schedule): { spacing: string[]; shortfall: string[] } {
   const { interval_s, tolerance_s, min_duration_s, min_samples, readings, legacy } = schedule;
@@ -357,10 +360,10 @@ export function scheduleProblems(times: number[], schedule: Schedule): { spacing
   const plan = `one every ${fmt(interval_s)} s (± ${fmt(tolerance_s)} s)`;
   const shortest = gaps.length ? Math.min(...gaps) : interval_s;
   const longest = gaps.length ? Math.max(...gaps) : interval_s;
-  if (shortest < interval_s - tolerance_s) spacing.push(`two readings were ${fmt(shortest)} s apart; the test needs ${plan}`);
-  if (longest > interval_s + tolerance_s) spacing.push(`two readings were ${fmt(longest)} s apart; the test needs ${plan}`);
+  if (shortest < interval_s - tolerance_s - SLACK_S) spacing.push(`two readings were ${fmt(shortest)} s apart; the test needs ${plan}`);
+  if (longest > interval_s + tolerance_s + SLACK_S) spacing.push(`two readings were ${fmt(longest)} s apart; the test needs ${plan}`);
   const duration = rel.length ? rel[rel.length - 1]! : 0;
-  if (rel.length < min_samples || duration < min_duration_s) {
+  if (rel.length < min_samples || duration < min_duration_s - SLACK_S) {
     shortfall.push(
       rel.length < readings
         ? `${rel.length} of at least ${readings} readings`
@@ -377,7 +380,7 @@ export function scheduleProblems(times: number[], schedule: Schedule): { spacing
 export function readingLate(times: number[], at: number, schedule: Schedule): boolean {
   if (schedule.legacy || !times.length) return false;
   const t0 = times[0]!;
-  return at - t0 - (times[times.length - 1]! - t0) > schedule.interval_s + schedule.tolerance_s;
+  return at - t0 - (times[times.length - 1]! - t0) > schedule.interval_s + schedule.tolerance_s + SLACK_S;
 }
 
 /** A sample's time: seconds rounded to 0.1. */
@@ -589,6 +592,11 @@ export function ordered(
 ): { failed: ItemView[]; rest: ItemView[] } {
   const failed = views.filter((v) => steady[v.item.key]?.failed ?? (v.item.blocking && v.verdict === "fail"));
   return { failed, rest: views.filter((v) => !failed.includes(v)) };
+}
+
+/** The sheet's verdict as the phone sees it, as the server words it: failed if any item failed. */
+export function localVerdict(views: ItemView[]): "pass" | "fail" {
+  return views.some((v) => v.verdict === "fail") ? "fail" : "pass";
 }
 
 /** Items that still need an answer before the sheet can be saved. */

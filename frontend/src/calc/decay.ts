@@ -7,7 +7,7 @@ import { num } from "./working";
 const NAME = "vacuum-decay";
 
 /** Rounding allowance on a gap (22.1 - 10.1 is 12.000000000000002 in floats). */
-const SLACK_S = 1e-6;
+export const SLACK_S = 1e-6;
 
 /** How many of the last intervals are projected on their own. */
 const RECENT_INTERVALS = 2;
