@@ -8,10 +8,11 @@ import type { User } from "../src/types";
 
 describe("meanings of the signature", () => {
   it("are the server's own words, so the phone shows what is sealed", () => {
-    const server = readFileSync(new URL("../../compliance/daily_records.py", import.meta.url), "utf8");
-    const block = server.slice(server.indexOf("MEANINGS = {"), server.indexOf("}", server.indexOf("MEANINGS = {")));
-    const found = Object.fromEntries([...block.matchAll(/"([a-z_]+)":\s*"([^"]+)"/g)].map((m) => [m[1], m[2]]));
-    expect(found).toEqual(Object.fromEntries(MEANINGS.map((m) => [m.code, m.text])));
+    // fixtures/signature_meanings.json: the server's test checks it against what it seals.
+    const shared = JSON.parse(
+      readFileSync(new URL("../../fixtures/signature_meanings.json", import.meta.url), "utf8"),
+    ) as { meanings: Record<string, string> };
+    expect(Object.fromEntries(MEANINGS.map((m) => [m.code, m.text]))).toEqual(shared.meanings);
   });
 });
 
