@@ -206,7 +206,9 @@ def form_value(value: Any) -> str:
         return value.text
     if isinstance(value, str):
         return value
-    return json.dumps(value)
+    if isinstance(value, bytes):
+        return value.decode("latin-1")
+    return json_text(value) if isinstance(value, dict | list) else json.dumps(value)
 
 
 def png_bytes() -> bytes:
