@@ -109,11 +109,11 @@ def _unstorable(text: str) -> bool:
 
 
 def printable(text: str) -> str:
-    """The text with each NUL and unpaired surrogate shown as U+FFFD: a name sent back in an
-    error must be writable as UTF-8, or the answer itself fails."""
-    if not _unstorable(text):
+    """The text with each unpaired surrogate shown as U+FFFD: a name sent back in an error must
+    be writable as UTF-8, or the answer itself fails (a NUL is written as \\u0000)."""
+    if not any("\ud800" <= ch <= "\udfff" for ch in text):
         return text
-    return "".join("\ufffd" if ch == "\x00" or "\ud800" <= ch <= "\udfff" else ch for ch in text)
+    return "".join("\ufffd" if "\ud800" <= ch <= "\udfff" else ch for ch in text)
 
 
 def bad_text(value: Any, path: str) -> str | None:

@@ -275,10 +275,8 @@ class World:
     own_checklist: Any
     draft: Any
     log_entry: AnchorLogEntry
-
-    @property
-    def drop(self):
-        return self.job.drops.select_related().first()
+    drop: Any  # today's job's drop: its anchors and kit are reused in new drops
+    sheet: Any
 
     def site_for(self, role: str):
         return self.owner_site if role == "property_manager" else self.job.site
@@ -306,7 +304,7 @@ def build_world(versions: dict) -> World:
 
     today = timezone.localdate()
     job = JobFactory()
-    make_drop(job)
+    drop = make_drop(job)
     org = job.organisation
     operator = UserFactory(organisation=org, role="operator")
     supervisor = job.supervisor
@@ -363,6 +361,8 @@ def build_world(versions: dict) -> World:
         own_checklist=own,
         draft=draft,
         log_entry=entry,
+        drop=drop,
+        sheet=job.sheets.order_by("id").first(),
     )
 
 
@@ -389,7 +389,7 @@ def path_values(w: World, template: str, role: str) -> dict[str, Any]:
     elif "/records/" in template:
         ident = w.record.pk
     elif "/sheets/" in template:
-        ident = w.job.sheets.order_by("id").first().pk
+        ident = w.sheet.pk
     elif "/sites/" in template:
         ident = w.owner_site.pk if owner or "/grants/" in template else w.job.site_id
     else:
