@@ -75,3 +75,14 @@ def query_id(params: Mapping[str, str], name: str) -> int | None:
             {name: [f"An id is a whole number of at most {MAX_ID_DIGITS} digits (0-9)."]}
         )
     return int(value)
+
+
+def query_text(params: Mapping[str, str], name: str) -> str | None:
+    """The text filter named `name` in a query string, or None when it is absent or empty; one
+    holding a NUL is a 400 naming the parameter (PostgreSQL refuses NUL in a comparison)."""
+    value = params.get(name)
+    if not value:
+        return None
+    if "\x00" in value:
+        raise serializers.ValidationError({name: ["Text may not hold a NUL."]})
+    return value

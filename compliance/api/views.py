@@ -27,7 +27,7 @@ from checklists.selectors import sheets_for, usable_versions, visible_checklists
 from compliance import services
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
-from compliance.api.fields import StrictInput, query_id
+from compliance.api.fields import StrictInput, query_id, query_text
 from compliance.api.pagination import BoundedLimitOffset
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
@@ -293,7 +293,7 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
 
     def get_queryset(self) -> QuerySet[Equipment]:
         qs = Equipment.objects.filter(organisation_id=self.org_id)
-        kind = self.request.query_params.get("kind")
+        kind = query_text(self.request.query_params, "kind")
         return qs.filter(kind=kind) if kind else qs
 
     def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
@@ -445,7 +445,7 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
 
     def get_queryset(self) -> QuerySet[ChecklistVersion]:
         qs = usable_versions(self.org_id)
-        status_ = self.request.query_params.get("status")
+        status_ = query_text(self.request.query_params, "status")
         return qs.filter(status=status_) if status_ else qs
 
     def partial_update(self, request: Request, *args: Any, **kwargs: Any) -> Response:
@@ -519,7 +519,8 @@ class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVie
         data = s.SheetInputSerializer(data=request.data, context=self.get_serializer_context())
         data.is_valid(raise_exception=True)
         sheet, created = checklist_services.record_sheet(by=request.user, **data.validated_data)
-        sheet = self.get_queryset().get(pk=sheet.pk)
+        # Read back past the list's ?job= filter: the sheet is stored, whatever the URL says.
+        sheet = sheets_for(self.org_id).get(pk=sheet.pk)
         return Response(
             s.SheetSerializer(sheet).data,
             status=status.HTTP_201_CREATED if created else status.HTTP_200_OK,

@@ -171,3 +171,34 @@ def stored_counts() -> tuple[int, ...]:
         ChecklistVersion.objects.count(),
         Equipment.objects.count(),
     )
+
+
+# Query strings ----------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("query", ["job=0", f"job={HUGE}", "job=abc"])
+def test_a_sheet_posted_with_a_list_filter_in_its_url_is_stored_and_answered(world, query):
+    """The new sheet was read back through the list's ?job= filter: with ?job=0 it was stored
+    and then not found (a 500), with ?job=10**400 stored and then refused (a 400 the phone
+    would retry). A POST's query string filters nothing."""
+    from checklists.models import CheckSheet
+
+    body = sheet_body(world)
+    client = client_for(world.users["operator"])
+    client.raise_request_exception = False
+    response = client.post(f"/api/v1/sheets/?{query}", body, format="json")
+    assert response.status_code == 201, response.content[:300]
+    assert response.json()["client_uuid"] == body["client_uuid"]
+    assert CheckSheet.objects.filter(client_uuid=body["client_uuid"]).count() == 1
+
+
+@pytest.mark.parametrize(
+    ("url", "name"),
+    [("/api/v1/checklist-versions/", "status"), ("/api/v1/equipment/", "kind")],
+)
+def test_a_nul_in_a_text_filter_is_a_400_naming_it(world, url, name):
+    """PostgreSQL refuses a NUL in a text comparison: "?status=%00" was a 500 there."""
+    client = client_for(world.users["operator"])
+    response = answer(client, "get", f"{url}?{name}=draft%00")
+    assert response.status_code == 400
+    assert name in response.json()
