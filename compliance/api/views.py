@@ -107,7 +107,10 @@ def me(request: Request) -> Response:
 
 
 class SyncInput(StrictInput, serializers.Serializer):
-    records = serializers.ListField(child=serializers.JSONField(), max_length=MAX_BATCH)
+    # A null record is refused alone by apply_record, like any other record that is no object.
+    records = serializers.ListField(
+        child=serializers.JSONField(allow_null=True), max_length=MAX_BATCH
+    )
     sent_at = serializers.DateTimeField(required=False, allow_null=True)
     text_checked_later = ("records",)
 
@@ -412,7 +415,15 @@ class ChecklistViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
         )
 
     def perform_create(self, serializer: s.ChecklistSerializer) -> None:
-        serializer.save(organisation_id=self.org_id)
+        # As for sites: the key is unique within the organisation, which the serializer does
+        # not see, so a second checklist of one key is the caller's error (400), not a 500.
+        try:
+            with transaction.atomic():
+                serializer.save(organisation_id=self.org_id)
+        except IntegrityError:
+            raise serializers.ValidationError(
+                {"key": ["Your organisation already has a checklist of this key."]}
+            ) from None
 
     @extend_schema(
         request=s.ChecklistVersionSerializer, responses={201: s.ChecklistVersionSerializer}

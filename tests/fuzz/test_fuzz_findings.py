@@ -11,7 +11,7 @@ from django.urls import reverse
 from rest_framework.test import APIClient
 
 from tests.conftest import client_for
-from tests.fuzz.hostile import baseline, sheet_body
+from tests.fuzz.hostile import baseline, sheet_body, sheet_record
 
 pytestmark = pytest.mark.django_db
 
@@ -202,3 +202,36 @@ def test_a_nul_in_a_text_filter_is_a_400_naming_it(world, url, name):
     response = answer(client, "get", f"{url}?{name}=draft%00")
     assert response.status_code == 400
     assert name in response.json()
+
+
+# Names that must be unique ----------------------------------------------------------------------
+
+
+def test_a_second_checklist_of_one_key_is_a_400_naming_the_key(world):
+    """The key is unique within the organisation, which the serializer does not see: the
+    database refused the second one (a 500)."""
+    from checklists.models import Checklist
+
+    client = client_for(world.users["supervisor"])
+    body = {"key": world.own_checklist.key, "title": "Again", "applies_to": "hose"}
+    before = Checklist.objects.count()
+    response = answer(client, "post", "/api/v1/checklists/", data=body, format="json")
+    assert response.status_code == 400
+    assert list(response.json()) == ["key"]
+    assert Checklist.objects.count() == before
+
+
+def test_a_null_record_in_a_sync_batch_is_refused_alone(world):
+    """A null among the records refused the whole batch (400): the phone would resend the good
+    records with it for ever."""
+    good = sheet_record(world)
+    client = client_for(world.users["operator"])
+    response = answer(
+        client, "post", "/api/v1/sync/", data={"records": [good, None]}, format="json"
+    )
+    assert response.status_code == 200, response.content[:300]
+    applied, refused = response.json()["results"]
+    assert applied["status"] == "applied"
+    assert refused["status"] == "rejected" and refused["errors"] == {
+        "record": ["Must be an object."]
+    }
