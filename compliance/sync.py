@@ -5,6 +5,7 @@ half-way leaves whole records behind and a retry answers from the receipts.
 """
 
 import datetime as dt
+import math
 import uuid
 from dataclasses import dataclass, field
 from typing import Any
@@ -102,6 +103,7 @@ def _device_time(data: dict[str, Any]) -> dt.datetime | None:
 
 
 UNSTORABLE_TEXT = "Text may not hold a NUL or an unpaired surrogate."
+UNSTORABLE_NUMBER = "A number a float holds (at most about 1.8e308)."
 
 
 def _unstorable(text: str) -> bool:
@@ -116,23 +118,28 @@ def printable(text: str) -> str:
     return "".join("\ufffd" if "\ud800" <= ch <= "\udfff" else ch for ch in text)
 
 
-def bad_text(value: Any, path: str) -> str | None:
-    """The path of the first text holding a NUL or an unpaired surrogate (neither can be
-    stored: PostgreSQL refuses NUL in text and jsonb, and UTF-8 has no surrogates), else None.
-    A bad key is named with printable(). Walked without recursion, so no nesting the JSON
-    parser accepts can exhaust the stack here."""
+def unstorable(value: Any, path: str = "", numbers: bool = True) -> tuple[str, str] | None:
+    """(path, why) of the first part of a parsed JSON value nothing downstream can hold, else
+    None: text with a NUL or an unpaired surrogate (PostgreSQL refuses NUL in text and jsonb,
+    UTF-8 has no surrogates) or, with ``numbers``, a number past binary64 (JSON's 1e400 reads
+    as infinity, which no id, column or calculation takes). A bad key is named with
+    printable(). Walked without recursion, so no nesting the JSON parser accepts can exhaust
+    the stack here."""
     stack: list[tuple[Any, str]] = [(value, path)]
     while stack:
         item, at = stack.pop()
         if isinstance(item, str):
             if _unstorable(item):
-                return at
+                return at, UNSTORABLE_TEXT
+        elif isinstance(item, float):
+            if numbers and not math.isfinite(item):
+                return at, UNSTORABLE_NUMBER
         elif isinstance(item, dict):
             children = []
             for key, sub in item.items():
                 name = f"{at}.{printable(str(key))}" if at else printable(str(key))
                 if isinstance(key, str) and _unstorable(key):
-                    return name
+                    return name, UNSTORABLE_TEXT
                 children.append((sub, name))
             stack.extend(reversed(children))
         elif isinstance(item, list):
@@ -293,13 +300,10 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
     unknown = sorted(printable(str(k)[:80]) for k in data if k not in DATA_KEYS[kind])
     if unknown:
         return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
-    where = bad_text(data, "")
-    if where is not None:
-        return {
-            **line,
-            "status": "rejected",
-            "errors": {where or "data": [UNSTORABLE_TEXT]},
-        }
+    found = unstorable(data)
+    if found is not None:
+        where, why = found
+        return {**line, "status": "rejected", "errors": {where or "data": [why]}}
     try:
         with transaction.atomic():
             try:

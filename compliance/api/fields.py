@@ -5,35 +5,61 @@ import math
 from collections.abc import Mapping
 from typing import Any
 
+from drf_spectacular.types import OpenApiTypes
+from drf_spectacular.utils import extend_schema_field
 from rest_framework import serializers
 
-from compliance.sync import UNSTORABLE_TEXT, bad_text, printable
+from compliance.sync import printable, unstorable
 
 EARLIEST = dt.date(1950, 1, 1)
 LATEST = dt.date(2100, 12, 31)
 
 
-class StrictInput:
-    """Refuse fields the serializer does not know, naming each, so a typo never loses data; and
-    refuse text no database holds (a NUL, an unpaired surrogate) anywhere in the input, in JSON
-    fields and names too, naming its path, before anything is looked up or stored.
+class IdField(serializers.PrimaryKeyRelatedField):
+    """DRF's id field, with JSON's 1e400 (infinity once parsed) an incorrect type: looked up as
+    it is, it raised OverflowError ("cannot convert float infinity to integer"), a 500."""
 
-    ``text_checked_later`` names fields whose contents are checked elsewhere (a sync batch
-    checks each record alone, so one bad record does not refuse the rest)."""
+    def to_internal_value(self, data: Any) -> Any:
+        if isinstance(data, float) and not math.isfinite(data):
+            self.fail("incorrect_type", data_type="number past binary64")
+        return super().to_internal_value(data)
+
+
+class StrictInput:
+    """Refuse fields the serializer does not know, naming each, so a typo never loses data."""
+
+    # (The docstring above is every input's description in /api/schema/.) Also refused, naming
+    # its path, before anything is looked up or stored: text no database holds (a NUL, an
+    # unpaired surrogate; see sync.unstorable) anywhere in the input, JSON fields and names
+    # too. ``text_checked_later`` names fields checked elsewhere: a sync batch checks each
+    # record alone, so one bad record is refused without the rest. Ids are IdFields.
 
     fields: Any
     text_checked_later: tuple[str, ...] = ()
+    serializer_related_field = IdField  # for ModelSerializer's own foreign keys
 
     def to_internal_value(self, data: Any) -> Any:
         if isinstance(data, Mapping):
             checked = {k: v for k, v in data.items() if k not in self.text_checked_later}
-            where = bad_text(checked, "")
-            if where is not None:
-                raise serializers.ValidationError({where: [UNSTORABLE_TEXT]})
+            found = unstorable(checked, numbers=False)
+            if found is not None:
+                where, why = found
+                raise serializers.ValidationError({where or "non_field_errors": [why]})
             unknown = sorted(printable(str(key)[:80]) for key in data if key not in self.fields)
             if unknown:
                 raise serializers.ValidationError({key: ["Unknown field."] for key in unknown})
         return super().to_internal_value(data)  # type: ignore[misc]
+
+
+@extend_schema_field(OpenApiTypes.ANY)
+class ParsedJSON(serializers.Field):
+    """Any value the JSON parser gave, as it is; the caller checks it."""
+
+    def to_internal_value(self, data: Any) -> Any:
+        return data
+
+    def to_representation(self, value: Any) -> Any:
+        return value
 
 
 class FiniteFloatField(serializers.FloatField):

@@ -19,10 +19,11 @@ from compliance.access import (
     sites_visible_to,
 )
 from compliance.anchor_log import SIGNED_KINDS, record_entry
-from compliance.api.fields import PlausibleDateField, StrictInput, query_id
+from compliance.api.fields import IdField, PlausibleDateField, StrictInput, query_id
 from compliance.api.pagination import BoundedLimitOffset
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
+from compliance.log_book import signed_log_book
 from compliance.models import AnchorLogEntry, Organisation, SiteAccess
 from compliance.services import UNKNOWN_CONTRACTOR, end_grant, grant_site_access
 
@@ -62,7 +63,7 @@ class LogEntrySerializer(serializers.ModelSerializer):
 
 
 class LogEntryInput(StrictInput, serializers.Serializer):
-    anchor = serializers.PrimaryKeyRelatedField(queryset=AnchorLogEntry.objects.none())
+    anchor = IdField(queryset=AnchorLogEntry.objects.none())
     kind = serializers.ChoiceField(choices=[str(k) for k in SIGNED_KINDS])
     result = serializers.ChoiceField(choices=AnchorLogEntry.Result.choices, default="none")
     performed_on = PlausibleDateField()
@@ -109,7 +110,7 @@ class GrantSerializer(StrictInput, serializers.ModelSerializer):
     """A grant; on input the contractor is looked up only among the organisations the site's
     owner may grant to, so an owner's id reads exactly like one that does not exist."""
 
-    contractor = serializers.PrimaryKeyRelatedField(
+    contractor = IdField(
         queryset=Organisation.objects.none(),
         error_messages={
             "does_not_exist": UNKNOWN_CONTRACTOR,
@@ -193,8 +194,6 @@ def end_site_grant(request: Request, pk: int, grant_pk: int) -> Response:
 @permission_classes([OrganisationMember])
 def log_book_pdf(request: Request, pk: int) -> HttpResponse:
     """The signed PDF of the site's anchor log book (``?anchor=ID`` for one anchor)."""
-    from compliance.log_book import signed_log_book
-
     site = get_object_or_404(
         sites_visible_to(request.user.organisation_id).select_related("profile"), pk=pk
     )

@@ -8,7 +8,7 @@ from rest_framework import serializers
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.selectors import UNKNOWN_VERSION, usable_versions
 from compliance.access import anchors_visible_to, sites_visible_to
-from compliance.api.fields import FiniteFloatField, PlausibleDateField, StrictInput
+from compliance.api.fields import FiniteFloatField, IdField, PlausibleDateField, StrictInput
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -138,7 +138,7 @@ class CertificationSerializer(StrictInput, serializers.ModelSerializer):
         return attrs
 
 
-class AnchorSerializer(serializers.ModelSerializer):
+class AnchorSerializer(StrictInput, serializers.ModelSerializer):
     certification = serializers.SerializerMethodField()
 
     class Meta:
@@ -305,17 +305,13 @@ class SheetSerializer(serializers.ModelSerializer):
 
 class SheetInputSerializer(StrictInput, serializers.Serializer):
     client_uuid = serializers.UUIDField(required=False)
-    job = serializers.PrimaryKeyRelatedField(queryset=Job.objects.none())
-    version = serializers.PrimaryKeyRelatedField(
+    job = IdField(queryset=Job.objects.none())
+    version = IdField(
         queryset=ChecklistVersion.objects.none(),
         error_messages={"does_not_exist": UNKNOWN_VERSION},
     )
-    anchor = serializers.PrimaryKeyRelatedField(
-        queryset=Anchor.objects.none(), required=False, allow_null=True
-    )
-    equipment = serializers.PrimaryKeyRelatedField(
-        queryset=Equipment.objects.none(), required=False, allow_null=True
-    )
+    anchor = IdField(queryset=Anchor.objects.none(), required=False, allow_null=True)
+    equipment = IdField(queryset=Equipment.objects.none(), required=False, allow_null=True)
     device_time = serializers.DateTimeField(required=False, allow_null=True)
     remarks = serializers.CharField(required=False, allow_blank=True, max_length=4000)
     entries = serializers.DictField(child=serializers.JSONField())

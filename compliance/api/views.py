@@ -27,7 +27,7 @@ from checklists.selectors import sheets_for, usable_versions, visible_checklists
 from compliance import services
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
-from compliance.api.fields import StrictInput, query_id, query_text
+from compliance.api.fields import ParsedJSON, StrictInput, query_id, query_text
 from compliance.api.pagination import BoundedLimitOffset
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
@@ -107,10 +107,9 @@ def me(request: Request) -> Response:
 
 
 class SyncInput(StrictInput, serializers.Serializer):
-    # A null record is refused alone by apply_record, like any other record that is no object.
-    records = serializers.ListField(
-        child=serializers.JSONField(allow_null=True), max_length=MAX_BATCH
-    )
+    # Each record as parsed: apply_record refuses a bad one alone (null, not an object, holding
+    # 1e400), where a JSONField would refuse the whole batch.
+    records = serializers.ListField(child=ParsedJSON(allow_null=True), max_length=MAX_BATCH)
     sent_at = serializers.DateTimeField(required=False, allow_null=True)
     text_checked_later = ("records",)
 

@@ -419,9 +419,14 @@ def sheet_record(w: World) -> dict[str, Any]:
     return {"type": "sheet", "client_uuid": data.pop("client_uuid"), "data": data}
 
 
-def baseline(w: World, method: str, template: str, role: str) -> Any:
-    """A body the operation accepts from this role (None: the operation reads no body)."""
+def baseline(w: World, method: str, template: str, role: str, fresh: bool = True) -> Any:
+    """A body the operation accepts from this role (None: the operation reads no body). With
+    fresh=False, names that must be unique are fixed, so a second one is a duplicate."""
     today = timezone.localdate()
+
+    def unique(prefix: str) -> str:
+        return f"{prefix}-{uuid.uuid4().hex[:6]}" if fresh else f"{prefix}-1"
+
     drop = w.drop
     user = w.users[role]
     key = (method, template.removeprefix("/api/v1"))
@@ -438,7 +443,7 @@ def baseline(w: World, method: str, template: str, role: str) -> Any:
         },
         ("POST", "/anchors/"): lambda: {
             "site": w.site_for(role).pk,
-            "label": f"N-{uuid.uuid4().hex[:6]}",
+            "label": unique("N"),
             "x_m": 1.5,
             "y_m": 2.5,
             "description": "parapet, north",
@@ -458,7 +463,7 @@ def baseline(w: World, method: str, template: str, role: str) -> Any:
             "notes": "kinks added",
         },
         ("POST", "/checklists/"): lambda: {
-            "key": f"own-{uuid.uuid4().hex[:6]}",
+            "key": unique("own"),
             "title": "Own check",
             "applies_to": "hose",
             "description": "ours",
@@ -469,7 +474,7 @@ def baseline(w: World, method: str, template: str, role: str) -> Any:
         },
         ("POST", "/equipment/"): lambda: {
             "kind": "hose",
-            "label": f"H-{uuid.uuid4().hex[:6]}",
+            "label": unique("H"),
             "serial": "S-1",
             "ratings": {
                 "id_mm": 12.0,
@@ -484,14 +489,14 @@ def baseline(w: World, method: str, template: str, role: str) -> Any:
         },
         ("POST", "/jobs/"): lambda: {
             "site": w.site_for(role).pk,
-            "date": (today + dt.timedelta(days=3)).isoformat(),
+            "date": (today + dt.timedelta(days=3 if fresh else 0)).isoformat(),
             "supervisor": w.users["supervisor"].pk,
             "notes": "",
         },
         ("POST", "/jobs/{id}/close/"): lambda: {"reason": "wind"},
         ("POST", "/jobs/{id}/pause/"): lambda: {"reason": "wind"},
         ("POST", "/jobs/{id}/drops/"): lambda: {
-            "label": f"D-{uuid.uuid4().hex[:4]}",
+            "label": unique("D"),
             "robot": drop.robot_id,
             "anchor": drop.anchor_id,
             "safety_anchor": drop.safety_anchor_id,
@@ -518,7 +523,7 @@ def baseline(w: World, method: str, template: str, role: str) -> Any:
         },
         ("POST", "/sheets/"): lambda: sheet_body(w),
         ("POST", "/sites/"): lambda: {
-            "name": f"Tower {uuid.uuid4().hex[:6]}",
+            "name": unique("Tower"),
             "address": "1 Quay",
             "height_m": 80.0,
             "storeys": 20,
@@ -527,7 +532,7 @@ def baseline(w: World, method: str, template: str, role: str) -> Any:
             "roof_outline": [[0, 0], [30, 0], [30, 20], [0, 20]],
         },
         ("POST", "/sites/{id}/grants/"): lambda: {
-            "contractor": OrganisationFactory(kind="contractor").pk,
+            "contractor": OrganisationFactory(kind="contractor").pk if fresh else w.contractor.pk,
             "starts_on": today.isoformat(),
             "ends_on": (today + dt.timedelta(days=30)).isoformat(),
         },

@@ -235,3 +235,55 @@ def test_a_null_record_in_a_sync_batch_is_refused_alone(world):
     assert refused["status"] == "rejected" and refused["errors"] == {
         "record": ["Must be an object."]
     }
+
+
+# Numbers JSON can write and a float cannot hold -------------------------------------------------
+
+PAST_BINARY64 = ["1e400", "-1e400"]
+
+
+@pytest.mark.parametrize("number", PAST_BINARY64)
+@pytest.mark.parametrize(
+    ("who", "url", "body", "field"),
+    [
+        (
+            "supervisor",
+            "/api/v1/jobs/",
+            lambda w: baseline(w, "POST", "/jobs/", "supervisor"),
+            "site",
+        ),
+        (
+            "supervisor",
+            "/api/v1/anchors/",
+            lambda w: baseline(w, "POST", "/anchors/", "supervisor"),
+            "site",
+        ),
+        ("operator", "/api/v1/sheets/", sheet_body, "job"),
+    ],
+    ids=["job's site", "anchor's site", "sheet's job"],
+)
+def test_an_id_past_binary64_is_a_400_naming_it(world, number, who, url, body, field):
+    """1e400 is a JSON number that reads as infinity: looking it up as an id raised
+    OverflowError ("cannot convert float infinity to integer"), a 500."""
+    sent = body(world)
+    sent[field] = "@@number@@"
+    text = json.dumps(sent).replace('"@@number@@"', number)
+    client = client_for(world.users[who])
+    client.raise_request_exception = False
+    response = client.post(url, text, content_type="application/json")
+    assert response.status_code == 400, response.content[:300]
+    assert field in response.json()
+
+
+def test_a_sync_record_holding_a_number_past_binary64_is_refused_alone(world):
+    """A record with 1e400 in it refused the whole batch ("Value must be valid JSON.")."""
+    good, bad = sheet_record(world), sheet_record(world)
+    bad["data"]["entries"]["valve_pressure"]["value"] = "@@number@@"
+    text = json.dumps({"records": [good, bad]}).replace('"@@number@@"', "1e400")
+    client = client_for(world.users["operator"])
+    response = client.post("/api/v1/sync/", text, content_type="application/json")
+    assert response.status_code == 200, response.content[:300]
+    applied, refused = response.json()["results"]
+    assert applied["status"] == "applied"
+    assert refused["status"] == "rejected"
+    assert list(refused["errors"]) == ["entries.valve_pressure.value"]
