@@ -228,7 +228,7 @@ def _apply_job_action(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID
     batch.settle(job.pk)
     job.refresh_from_db()
     action = data.get("action")
-    if action not in ACTIONS:
+    if not isinstance(action, str) or action not in ACTIONS:
         raise RecordRejected({"action": [f"One of {', '.join(ACTIONS)}."]})
     extra = {} if action == "start" else {"reason": str(data.get("reason", ""))[:2000]}
     job = ACTIONS[action](job=job, by=user, **extra)
@@ -289,7 +289,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
     kind = record.get("type")
     data = record.get("data")
-    if kind not in APPLY:
+    if not isinstance(kind, str) or kind not in APPLY:  # an object or a list is unhashable
         return {
             **line,
             "status": "rejected",

@@ -287,3 +287,32 @@ def test_a_sync_record_holding_a_number_past_binary64_is_refused_alone(world):
     assert applied["status"] == "applied"
     assert refused["status"] == "rejected"
     assert list(refused["errors"]) == ["entries.valve_pressure.value"]
+
+
+@pytest.mark.parametrize("kind", [{"": ""}, ["sheet"]], ids=["object", "list"])
+def test_a_sync_record_whose_type_is_no_text_is_refused_alone(world, kind):
+    """`type` was looked up in a dict as it came: an object or a list is unhashable, a 500."""
+    good, bad = sheet_record(world), sheet_record(world)
+    bad["type"] = kind
+    client = client_for(world.users["operator"])
+    response = answer(client, "post", "/api/v1/sync/", data={"records": [good, bad]}, format="json")
+    assert response.status_code == 200
+    applied, refused = response.json()["results"]
+    assert applied["status"] == "applied"
+    assert refused["status"] == "rejected" and list(refused["errors"]) == ["type"]
+
+
+def test_a_job_action_whose_action_is_no_text_is_refused_alone(world):
+    """`action` was looked up the same way: an object was a 500."""
+    good = sheet_record(world)
+    bad = {
+        "type": "job_action",
+        "client_uuid": "0f6b1e52-5d2b-4a8e-9b1e-2f0c4d3a9e71",
+        "data": {"job": world.job.pk, "action": {"start": True}},
+    }
+    client = client_for(world.users["operator"])
+    response = answer(client, "post", "/api/v1/sync/", data={"records": [good, bad]}, format="json")
+    assert response.status_code == 200
+    applied, refused = response.json()["results"]
+    assert applied["status"] == "applied"
+    assert refused["status"] == "rejected" and list(refused["errors"]) == ["action"]

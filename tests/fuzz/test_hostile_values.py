@@ -260,14 +260,29 @@ def test_hostile_values_are_a_clear_refusal(world, method, template, op, data):
 # A batch with one bad record -------------------------------------------------------------------
 
 
-def bad_record(data: st.DataObject, w: h.World) -> tuple[Any, bool]:
+SPOILS = [
+    *("record", "uuid", "type", "id", "text", "device_time", "entries", "other", "unknown"),
+    *("job_action", "drop_log"),
+]
+
+
+def bad_record(data: st.DataObject, world: h.World) -> tuple[Any, bool]:
     """A record spoiled somewhere, and whether it must be refused (True) or may be applied."""
-    record = h.sheet_record(w)
-    where = data.draw(
-        st.sampled_from(
-            ["record", "uuid", "type", "id", "text", "device_time", "entries", "other", "unknown"]
+    record = h.sheet_record(world)
+    where = data.draw(st.sampled_from(SPOILS))
+    if where in ("job_action", "drop_log"):
+        # Never a valid action (it would change the job under the sheets beside it), and no
+        # drop is logged while the job is planned: refused, whatever else the data holds.
+        data_ = (
+            {"job": world.job.pk, "action": data.draw(h.hostile), "reason": data.draw(h.hostile)}
+            if where == "job_action"
+            else {
+                "drop": data.draw(st.one_of(st.just(world.drop.pk), h.hostile)),
+                "device_time": data.draw(h.hostile),
+                "note": data.draw(h.hostile),
+            }
         )
-    )
+        return {"type": where, "client_uuid": str(uuid.uuid4()), "data": data_}, True
     if where == "record":
         return data.draw(st.one_of(h.hostile_scalars, st.sampled_from(h.DEEP))), True
     if where == "uuid":
