@@ -15,6 +15,8 @@ from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
 from checklists.selectors import UNKNOWN_VERSION
 from checklists.verdicts import EntryError, SheetOutcome, evaluate
+from compliance.anchor_log import log_pre_use_check
+from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import Anchor, Equipment, Job, JobState, Organisation, User
@@ -23,8 +25,6 @@ from compliance.services import apply_sheet_outcome
 
 
 def _check_calc_names(items: list[dict[str, Any]]) -> None:
-    from compliance.engineering import CALCULATIONS
-
     errors = {
         f"items[{i}].calc": f"Unknown calculation {item['calc']!r}."
         for i, item in enumerate(items)
@@ -365,8 +365,6 @@ def record_sheet(
                 sheet=sheet, outcome=outcome, by=by, drops=drops, defer_readiness=defer_readiness
             )
             if subject_kind == "anchor":
-                from compliance.anchor_log import log_pre_use_check
-
                 log_pre_use_check(sheet)
     except IntegrityError:
         # A concurrent retry of the same batch won the race: return its copy.

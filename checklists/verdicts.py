@@ -10,6 +10,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from checklists.units import BeyondRange, UnitMismatch, to_unit
+from compliance.engineering import CalcInputError, UnknownCalculation, run
 from compliance.engineering.decay import schedule_problems
 from compliance.engineering.working import num, whole_pct
 
@@ -281,8 +282,6 @@ def evaluate(
     context: Mapping[str, Mapping[str, Any]],
 ) -> SheetOutcome:
     """Evaluate every item in order; raise EntryError for malformed or missing entries."""
-    from compliance.engineering import CalcInputError, UnknownCalculation, run
-
     known = {item["key"] for item in items}
     for key in entries:
         if key not in known:

@@ -12,11 +12,13 @@ Lock order is jobs (by id) before the site, as a sheet's transaction takes them.
 """
 
 import datetime as dt
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from django.db import transaction
+from django.db.models import Q
 from django.utils import timezone
 
+from checklists.models import CheckSheet
 from compliance.access import can_work_at, owns_site
 from compliance.anchor_status import status_requirement
 from compliance.errors import InvalidTransition, NotPermitted
@@ -35,9 +37,6 @@ from compliance.models import (
 from compliance.sealing import canonical_bytes, check_links, seal_of, utc
 from compliance.services import _transition, refresh_readiness
 from compliance.signing import active_credential, sign_seal
-
-if TYPE_CHECKING:
-    from checklists.models import CheckSheet
 
 FORMAT = "parapet.anchor-log-entry/1"
 MEANING = "I made or witnessed the work recorded here and its result is as stated."
@@ -194,7 +193,7 @@ def record_entry(
     return entry
 
 
-def log_pre_use_check(sheet: "CheckSheet") -> AnchorLogEntry:
+def log_pre_use_check(sheet: CheckSheet) -> AnchorLogEntry:
     """Copy a contractor's anchor pre-use sheet into the building's log book."""
     assert sheet.anchor is not None
     failed = [e for e in sheet.entries.all() if e.verdict == "fail"]
@@ -228,8 +227,6 @@ def log_pre_use_check(sheet: "CheckSheet") -> AnchorLogEntry:
 
 
 def _jobs_using(anchor: Anchor) -> list[Job]:
-    from django.db.models import Q
-
     ids = (
         Job.objects.filter(
             Q(drops__anchor=anchor) | Q(drops__safety_anchor=anchor),

@@ -11,7 +11,9 @@ from django.shortcuts import render
 from django.views.decorators.csrf import ensure_csrf_cookie
 from django.views.decorators.http import require_GET, require_http_methods
 
+from compliance.api.records import MAX_UPLOAD
 from compliance.api.throttles import login_allowed
+from compliance.verification import verify_export, verify_pdf
 
 APP_DIR = Path(settings.BASE_DIR) / "compliance" / "static" / "app"
 
@@ -48,9 +50,6 @@ def manifest(request: HttpRequest) -> HttpResponse:
 @require_http_methods(["GET", "POST"])
 def verify_page(request: HttpRequest) -> HttpResponse:
     """A page where an auditor uploads a record PDF or an export and reads the verdict."""
-    from compliance.api.records import MAX_UPLOAD
-    from compliance.verification import verify_export, verify_pdf
-
     context: dict[str, object] = {}
     if request.method == "POST":
         upload = request.FILES.get("file")

@@ -7,7 +7,7 @@ class ComplianceConfig(AppConfig):
 
     def ready(self) -> None:
         # Imported here: the models and the token module need the app registry ready.
-        from django.db.models.signals import post_save
+        from django.db.models.signals import post_save  # beside them, for one reading
 
         from compliance.api.tokens import revoke_on_password_change
         from compliance.models import User

@@ -8,6 +8,7 @@ from typing import Any
 from django.conf import settings
 from django.db import transaction
 
+from checklists.services import ensure_published
 from compliance.models import JurisdictionProfile, ProfileRevision
 
 
@@ -79,8 +80,6 @@ def profile_diff(before: ProfileRevision, after: ProfileRevision) -> dict[str, A
 
 
 def load_default_checklists(directory: Path | None = None) -> list[Any]:
-    from checklists.services import ensure_published
-
     directory = directory or Path(settings.PARAPET_FIXTURES_DIR) / "checklists"
     versions = []
     with transaction.atomic():

@@ -10,12 +10,15 @@ photo bytes lays out every page the same way.
 import io
 import json
 import math
+import re
 from collections.abc import Mapping
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
 from xml.sax.saxutils import escape
 
+import reportlab
+import rfc8785
 from pypdf import PdfReader, PdfWriter
 from reportlab.graphics.barcode.qr import QrCodeWidget
 from reportlab.graphics.shapes import Circle, Drawing, Line, PolyLine, Rect, String
@@ -73,8 +76,6 @@ def _register_fonts() -> tuple[str, str]:
         if regular.exists() and bold.exists():
             break
     else:
-        import reportlab
-
         folder = Path(reportlab.__file__).parent / "fonts"
         regular, bold = folder / "Vera.ttf", folder / "VeraBd.ttf"
     pdfmetrics.registerFont(TTFont("ParapetSans", str(regular)))
@@ -383,8 +384,6 @@ def _title(document: dict[str, Any]) -> str:
 
 
 def _attach(pdf: bytes, document: dict[str, Any]) -> bytes:
-    import rfc8785
-
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(pdf)))
     writer.add_attachment(ATTACHMENT_NAME, rfc8785.dumps(document))
     out = io.BytesIO()
@@ -833,8 +832,6 @@ def read_attachment(pdf: bytes) -> bytes | None:
 
 def printed_seal(pdf: bytes) -> str | None:
     """The seal printed on the PDF's pages (read back from the text)."""
-    import re
-
     reader = PdfReader(io.BytesIO(pdf))
     text = "".join(page.extract_text() or "" for page in reader.pages[:2])
     match = re.search(r"Seal ([0-9a-f]{64})", text)

@@ -5,6 +5,7 @@ from dataclasses import dataclass
 
 from django.db.models import Prefetch, QuerySet
 
+from checklists.selectors import current_versions, latest_sheets
 from compliance.access import can_work_at
 from compliance.anchor_status import anchor_status
 from compliance.errors import Reason
@@ -106,8 +107,6 @@ def job_subjects(drops: Iterable[Drop]) -> list[Subject]:
 
 def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirement]:
     """Which sheets the job needs, and whether the newest sheet for each passes."""
-    from checklists.selectors import current_versions, latest_sheets
-
     drops = drops_of(job) if drops is None else drops
     versions = current_versions(job.organisation_id)
     latest = latest_sheets(job)

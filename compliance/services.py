@@ -1,11 +1,13 @@
 """Every action that changes the state of a job or a register, with its audit entry."""
 
 import datetime as dt
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from django.core.exceptions import ValidationError
 from django.db import transaction
 
+from checklists.models import CheckSheet
+from checklists.verdicts import SheetOutcome
 from compliance.access import can_work_at, grantable_contractors, owns_site
 from compliance.errors import InvalidTransition, JobBlocked, NotPermitted, Reason
 from compliance.models import (
@@ -25,10 +27,6 @@ from compliance.models import (
     User,
 )
 from compliance.selectors import job_blockers
-
-if TYPE_CHECKING:
-    from checklists.models import CheckSheet
-    from checklists.verdicts import SheetOutcome
 
 
 def _require_writer(user: User) -> None:
@@ -152,8 +150,8 @@ def close_job(*, job: Job, by: User, reason: str = "") -> Job:
 
 def apply_sheet_outcome(
     *,
-    sheet: "CheckSheet",
-    outcome: "SheetOutcome",
+    sheet: CheckSheet,
+    outcome: SheetOutcome,
     by: User,
     drops: list[Drop] | None = None,
     defer_readiness: bool = False,

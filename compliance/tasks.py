@@ -8,7 +8,10 @@ from celery.exceptions import Retry
 from django.core.cache import cache
 from django.utils import timezone
 
+from compliance import record_files
 from compliance.models import DailyRecord
+from compliance.notices import flag_due, flag_unsigned
+from compliance.record_files import ensure_pdf
 
 logger = logging.getLogger(__name__)
 
@@ -39,8 +42,6 @@ def render_daily_record(self, record_id: int) -> int | Retry | None:  # type: ig
     next request for the PDF, or `render_missing_pdfs`, queues it again. Run in-process (no
     broker) a failure never reaches the caller: sign-off answers with the sealed record.
     """
-    from compliance.record_files import ensure_pdf
-
     try:
         record = DailyRecord.objects.select_related("credential", "site").get(pk=record_id)
     except DailyRecord.DoesNotExist:
@@ -104,23 +105,17 @@ def render_missing_pdfs(older_than_minutes: int = 10, limit: int = 200) -> int:
 
 @shared_task
 def flag_unsigned_records() -> int:
-    from compliance.notices import flag_unsigned
-
     return flag_unsigned(today=timezone.localdate())
 
 
 @shared_task
 def list_due_items(days: int = 30) -> int:
-    from compliance.notices import flag_due
-
     return flag_due(today=timezone.localdate(), within=dt.timedelta(days=days))
 
 
 @shared_task
 def sweep_orphan_pdfs(hours: int = 6) -> int:
     """Remove record PDFs whose render was killed before its row was committed."""
-    from compliance import record_files
-
     return len(
         record_files.sweep_orphan_pdfs(older_than=dt.timedelta(hours=hours), now=timezone.now())
     )

@@ -19,11 +19,12 @@ from rest_framework.response import Response
 from compliance.api.fields import StrictInput, query_id
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
-from compliance.daily_records import MEANINGS, add_addendum
+from compliance.daily_records import MEANINGS, add_addendum, sign_daily_record
 from compliance.errors import NotPermitted, PdfsPending
 from compliance.exports import build_export, export_scope
 from compliance.models import DailyRecord, RecordPdf
 from compliance.tasks import queue_render
+from compliance.verification import verify_export, verify_pdf
 
 MAX_UPLOAD = 50 * 1024 * 1024
 PDF_RETRY_AFTER_S = 5
@@ -209,8 +210,6 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
 def sign_job(request: Request, job: Any) -> Response:
     """Seal and sign the day: 201 with the sealed record once it is committed, whether its
     PDF rendered, is still rendering or failed to render (the render is retried apart)."""
-    from compliance.daily_records import sign_daily_record
-
     data = SignInput(data=request.data)
     data.is_valid(raise_exception=True)
     record = None
@@ -254,8 +253,6 @@ class VerifyInput(serializers.Serializer):
 @parser_classes([MultiPartParser])
 def verify(request: Request) -> Response:
     """Upload a record PDF or an export ZIP; answers a plain-language verdict and each check."""
-    from compliance.verification import verify_export, verify_pdf
-
     data = VerifyInput(data=request.data)
     data.is_valid(raise_exception=True)
     upload = data.validated_data["file"]

@@ -104,7 +104,7 @@ def test_a_failed_render_on_a_worker_is_retried_with_backoff_then_given_up(
     signed, logged, monkeypatch
 ):
     """Backoff: 15 s doubling, at most 30 min apart; after RENDER_MAX_RETRIES it fails."""
-    monkeypatch.setattr("compliance.record_files.ensure_pdf", mock.Mock(side_effect=Broken()))
+    monkeypatch.setattr("compliance.tasks.ensure_pdf", mock.Mock(side_effect=Broken()))
     asked: list[int] = []
 
     def retry(exc=None, countdown=None, **kwargs):
