@@ -141,7 +141,7 @@ REST_FRAMEWORK = {
         "rest_framework.parsers.MultiPartParser",
     ],
     "DEFAULT_SCHEMA_CLASS": "drf_spectacular.openapi.AutoSchema",
-    "DEFAULT_PAGINATION_CLASS": "rest_framework.pagination.LimitOffsetPagination",
+    "DEFAULT_PAGINATION_CLASS": "compliance.api.pagination.BoundedLimitOffset",
     "PAGE_SIZE": 50,
     "EXCEPTION_HANDLER": "compliance.api.errors.exception_handler",
     "DEFAULT_THROTTLE_RATES": {

@@ -35,13 +35,7 @@ LISTS = [
     "profile-list",
     "sheet-list",
     "site-list",
-    pytest.param(
-        "record-list",
-        marks=pytest.mark.xfail(
-            strict=True,
-            reason="compliance/api/records.py: RecordViewSet keeps DRF's unbounded paginator",
-        ),
-    ),
+    "record-list",
 ]
 
 
