@@ -162,6 +162,28 @@ def _series_samples(item: Mapping[str, Any], value: Any, path: str) -> list[list
     return samples
 
 
+def _seconds(
+    source: Mapping[str, Any],
+    context: Mapping[str, Mapping[str, Any]],
+    readings: Mapping[str, Any],
+    outputs: Mapping[str, Mapping[str, Any]],
+) -> float:
+    """A schedule's number in seconds. A profile threshold carries its unit: minutes or hours
+    are converted (a bare number, or one without a unit, is seconds); any other unit is a
+    schedule that cannot be found, never a number read as if it were seconds."""
+    value = float(resolve(source, context, readings, outputs))
+    ((kind, ref),) = source.items()
+    threshold = (context.get("profile") or {}).get(ref) if kind == "profile" else None
+    unit = threshold.get("unit") if isinstance(threshold, Mapping) else None
+    if unit in (None, ""):
+        return value
+    try:
+        return to_unit(value, str(unit), "s")
+    except UnitMismatch:
+        what = str(ref).replace("_", " ")
+        raise MissingSource(f"the site's profile gives {what} in {unit}, not a time") from None
+
+
 def _schedule_problems(
     item: Mapping[str, Any],
     samples: list[list[float]],
@@ -183,7 +205,7 @@ def _schedule_problems(
         return ""
     try:
         numbers = {
-            name: float(resolve(schedule[name], context, readings, outputs))
+            name: _seconds(schedule[name], context, readings, outputs)
             for name in ("interval_s", "tolerance_s", "min_duration_s")
         }
     except (MissingSource, KeyError, TypeError, ValueError) as exc:
