@@ -223,3 +223,31 @@ def test_start_log_drops_and_a_rejected_record_stays_visible(live_server, demo, 
     page.wait_for_selector("[data-testid=job-cautions]")
     assert "does not replace" in page.inner_text("[data-testid=job-cautions]")
     shot(page, "cautions.png")
+
+
+def test_a_server_error_on_refresh_still_shows_the_job_kept_on_the_phone(
+    live_server, demo, page, monkeypatch
+):
+    """A server error while the job is refreshed must not hide the copy the phone already keeps:
+    the operator on the roof still sees the job and its checks, with a line saying the server
+    did not answer as expected."""
+    from rest_framework.response import Response
+
+    from compliance.api.views import JobViewSet
+    from tests.browser.conftest import sign_in_as
+
+    job = demo
+    base = live_server.url
+    sign_in_as(page, base, "tomas")
+    # The live server runs in this process: from here on the job's detail answers 500 with a
+    # body (a 5xx without one reads as "offline", which already shows the kept copy).
+    monkeypatch.setattr(
+        JobViewSet,
+        "retrieve",
+        lambda self, request, *args, **kwargs: Response({"detail": "Broken."}, status=500),
+    )
+    page.goto(base + f"/#/job/{job.id}")
+    page.wait_for_selector("[data-testid=requirements]")
+    assert "did not answer as expected" in page.inner_text("[data-testid=job-refresh-failed]")
+    assert page.inner_text("[data-testid=job-state]").strip()
+    assert "State from the server" not in page.inner_text("main")

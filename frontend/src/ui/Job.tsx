@@ -65,7 +65,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
     loadRecordOf(job).then((r) => setRecord(r.value)).catch(() => undefined);
   }, [id, dayOver, version]);
 
-  if (error) return <main class="screen"><Header title="Job" back={href({ name: "jobs" })} /><p class="error">{error}</p></main>;
+  if (error && !job) return <main class="screen"><Header title="Job" back={href({ name: "jobs" })} /><p class="error">{error}</p></main>;
   if (!job) return <main class="screen"><Header title="Job" back={href({ name: "jobs" })} /><p class="muted">Loading…</p></main>;
 
   const latestFor = (key: string) =>
@@ -148,8 +148,13 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       <Header title={job.site_name} back={href({ name: "jobs" })} sub={<span>{job.date} · Supervisor {job.supervisor_name}</span>} />
       <section class="card state-card">
         <StateBadge state={job.state} testid="job-state" />
+        {error && (
+          <p class="error small" data-testid="job-refresh-failed">
+            The server did not answer as expected ({error}); this is the copy kept on this phone.
+          </p>
+        )}
         <p class="muted small">
-          {kept ? `Offline: the state the server gave at ${timeOf(kept)}.` : "State from the server."}
+          {kept ? `Offline: the state the server gave at ${timeOf(kept)}.` : error ? "" : "State from the server."}
           {" "}The server is the authority on verdicts and state.
         </p>
         {waitingHere.length > 0 && (
