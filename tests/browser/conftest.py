@@ -61,12 +61,33 @@ def context(browser, built_app):
     context.close()
 
 
+@pytest.hookimpl(wrapper=True, tryfirst=True)
+def pytest_runtest_makereport(item, call):
+    """Keep each phase's report on the test item, so a fixture can tell that its test failed."""
+    report = yield
+    setattr(item, f"report_{report.when}", report)
+    return report
+
+
 @pytest.fixture
-def page(context):
+def page(context, request):
     page = context.new_page()
     errors: list[str] = []
+    trail: list[str] = []
     page.on("pageerror", lambda exc: errors.append(str(exc)))
+    page.on("console", lambda msg: trail.append(f"console {msg.type}: {msg.text}"))
+    page.on("requestfailed", lambda r: trail.append(f"failed {r.method} {r.url}: {r.failure}"))
+    page.on("response", lambda r: r.status >= 400 and trail.append(f"{r.status} {r.url}"))
     yield page
+    failed = getattr(request.node, "report_call", None)
+    if failed is not None and failed.failed:
+        # What the person would have seen, and what the page said, for a failure in CI.
+        try:
+            seen = page.inner_text("body", timeout=2000)
+        except Exception as exc:  # a diagnostic must not hide the failure
+            seen = f"(could not read the page: {exc})"
+        print(f"--- page at failure: {page.url}\n{seen[:3000]}\n--- trail")
+        print("\n".join(trail[-60:]))
     # Leave the app before the database is flushed: a poll still running in the live server's
     # thread holds a table lock on SQLite, and the flush then fails ("table is locked").
     page.goto("about:blank")
