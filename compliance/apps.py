@@ -13,3 +13,8 @@ class ComplianceConfig(AppConfig):
         from compliance.models import User
 
         post_save.connect(revoke_on_password_change, sender=User, dispatch_uid="revoke-tokens")
+
+        # The tasks register themselves on the project's Celery app when their module is
+        # imported. Services queue them by name (they sit below the task layer and do not
+        # import it), so the module is loaded here, before any request can sign a record.
+        import compliance.tasks  # noqa: F401

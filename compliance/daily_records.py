@@ -18,12 +18,12 @@ import json
 from dataclasses import dataclass, field
 from typing import Any
 
-from celery import current_app
 from django.db import transaction
 from django.db.models import Prefetch
 from django.utils import timezone
 
 from checklists.models import CheckSheet, ItemEntry, Photo
+from compliance.celery import app as celery_app
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import (
     AnchorCertification,
@@ -480,10 +480,11 @@ RENDER_TASK = "compliance.tasks.render_daily_record"
 
 def _queue_render(record_id: int) -> None:
     """Queue the PDF's render once the record is committed. The task is found by name in the
-    Celery app's registry, so this service does not import the task layer above it; a failure
-    to queue is logged by on_commit(robust=True) and the sweep of records without a PDF picks
-    the record up."""
-    current_app.tasks[RENDER_TASK].delay(record_id)
+    project's Celery app (never `celery.current_app`, which is per thread and a bare default
+    app on a server's other threads), so this service does not import the task layer above it;
+    a failure to queue is logged by on_commit(robust=True) and the sweep of records without a
+    PDF picks the record up."""
+    celery_app.tasks[RENDER_TASK].delay(record_id)
 
 
 def add_addendum(

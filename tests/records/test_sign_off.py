@@ -241,3 +241,26 @@ def test_a_wrong_phone_clock_is_stated_in_the_record(
     assert len(content["clock_notes"]) == 1
     assert "5 h 0 min ahead of the server's receipt" in content["clock_notes"][0]
     assert "the server's time is the one of record" in content["clock_notes"][0]
+
+
+def test_a_day_signed_on_a_thread_of_a_threaded_server_gets_its_pdf(
+    transactional_db, closed_job, supervisor
+):
+    """A threaded server signs in a thread of its own. The render used to be looked up on
+    Celery's current app, which is per thread: on any thread but the one that made the app it
+    was a bare default app, the task was "not registered", and the PDF waited for the sweep."""
+    from concurrent.futures import ThreadPoolExecutor
+
+    from django.db import connection as thread_connection
+
+    def sign() -> int:
+        try:
+            return sign_daily_record(
+                job=closed_job, by=supervisor, password=PASSWORD, meaning="reviewed_safe"
+            ).pk
+        finally:
+            thread_connection.close()
+
+    with ThreadPoolExecutor(max_workers=1) as pool:
+        record_id = pool.submit(sign).result()
+    assert DailyRecord.objects.get(pk=record_id).pdf.size_bytes > 0
