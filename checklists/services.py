@@ -19,9 +19,21 @@ from compliance.anchor_log import log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted
-from compliance.models import Anchor, Equipment, Job, JobState, Organisation, User
+from compliance.models import (
+    Anchor,
+    Equipment,
+    Job,
+    JobState,
+    Organisation,
+    User,
+)
 from compliance.selectors import drops_of
-from compliance.services import apply_sheet_outcome
+from compliance.services import (
+    apply_sheet_outcome,
+    audit_register_change,
+    require_register_keeper,
+    save_new_register_row,
+)
 
 
 def _check_calc_names(items: list[dict[str, Any]]) -> None:
@@ -91,10 +103,41 @@ def _check_storable(outcome: SheetOutcome) -> None:
             )
 
 
+DEFAULTS_FIXED = "Default checklists change only by a new release of Parapet."
+
+
+def _own_checklist(checklist: Checklist, by: User | None, words: str) -> None:
+    """A person changes only the organisation's own checklists; the defaults (no organisation)
+    change with a release, through the loader, which acts as nobody (`by` None)."""
+    if by is not None and checklist.organisation_id != by.organisation_id:
+        raise NotPermitted(words)
+
+
+def create_checklist(
+    *, by: User, key: str, title: str, applies_to: str, description: str = ""
+) -> Checklist:
+    """A checklist of the organisation's own, with no version yet (drafts follow)."""
+    require_register_keeper(by)
+    checklist = Checklist(
+        organisation_id=by.organisation_id,
+        key=key,
+        title=title,
+        applies_to=applies_to,
+        description=description,
+    )
+    with transaction.atomic():
+        save_new_register_row(
+            checklist, unique={"key": "Your organisation already has a checklist of this key."}
+        )
+        audit_register_change(subject="checklist", row=checklist, action="created", by=by)
+    return checklist
+
+
 def create_draft(
     *, checklist: Checklist, items: list[dict[str, Any]], by: User | None, notes: str = ""
 ) -> ChecklistVersion:
     """Start a new draft version numbered after the newest existing one."""
+    _own_checklist(checklist, by, DEFAULTS_FIXED)
     validate_items(items)
     _check_literal_numbers(items)
     with transaction.atomic():
@@ -107,7 +150,14 @@ def create_draft(
     return version
 
 
-def update_draft(*, version: ChecklistVersion, items: list[dict[str, Any]]) -> ChecklistVersion:
+def update_draft(
+    *, version: ChecklistVersion, items: list[dict[str, Any]], by: User | None = None
+) -> ChecklistVersion:
+    """Change a draft's items; a published version never changes."""
+    if version.status == ChecklistVersion.Status.PUBLISHED or (
+        by is not None and version.checklist.organisation_id != by.organisation_id
+    ):
+        raise InvalidTransition("A published version never changes; start a new draft.")
     validate_items(items)
     _check_literal_numbers(items)
     version.items = items
@@ -117,6 +167,7 @@ def update_draft(*, version: ChecklistVersion, items: list[dict[str, Any]]) -> C
 
 def publish_version(*, version: ChecklistVersion, by: User | None) -> ChecklistVersion:
     """Seal a draft: validate, hash and freeze it. Publishing twice is refused."""
+    _own_checklist(version.checklist, by, "Default checklists are published with Parapet.")
     if by is not None and not by.can_supervise:
         raise NotPermitted("Only a supervisor or an admin can publish a checklist.")
     with transaction.atomic():

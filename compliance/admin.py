@@ -1,4 +1,9 @@
-"""Admin for the registers; append-only records are shown but never changed or deleted here."""
+"""Admin for people and organisations; everything else is shown here but never written here.
+
+Registers, jobs and safety records change only through their services (the API and the
+desk screens call them), each in a transaction with its audit entry: a form here would skip
+both. Append-only records are never changed or deleted anywhere.
+"""
 
 from typing import Any
 
@@ -9,12 +14,31 @@ from django.http import HttpRequest
 from compliance import models
 
 
-class AppendOnlyAdmin(admin.ModelAdmin):
+class ShownOnlyAdmin(admin.ModelAdmin):
+    """View only: no add, no change, no delete."""
+
+    def has_add_permission(self, request: HttpRequest, obj: Any = None) -> bool:
+        return False
+
     def has_change_permission(self, request: HttpRequest, obj: Any = None) -> bool:
         return False
 
     def has_delete_permission(self, request: HttpRequest, obj: Any = None) -> bool:
         return False
+
+
+class ShownOnlyInline(admin.TabularInline):
+    extra = 0
+    can_delete = False
+
+    def has_add_permission(self, request: HttpRequest, obj: Any = None) -> bool:
+        return False
+
+    def has_change_permission(self, request: HttpRequest, obj: Any = None) -> bool:
+        return False
+
+
+AppendOnlyAdmin = ShownOnlyAdmin
 
 
 @admin.register(models.User)
@@ -34,40 +58,34 @@ class ProfileAdmin(AppendOnlyAdmin):
     list_display = ("key", "name", "content_hash")
 
 
-class CertificationInline(admin.TabularInline):
+class CertificationInline(ShownOnlyInline):
     model = models.AnchorCertification
-    extra = 0
-    can_delete = False
-
-    def has_change_permission(self, request: HttpRequest, obj: Any = None) -> bool:
-        return False
 
 
 @admin.register(models.Site)
-class SiteAdmin(admin.ModelAdmin):
+class SiteAdmin(ShownOnlyAdmin):
     list_display = ("name", "organisation", "height_m", "profile")
 
 
 @admin.register(models.Anchor)
-class AnchorAdmin(admin.ModelAdmin):
+class AnchorAdmin(ShownOnlyAdmin):
     list_display = ("label", "site", "x_m", "y_m")
     list_filter = ("site",)
     inlines = [CertificationInline]
 
 
 @admin.register(models.Equipment)
-class EquipmentAdmin(admin.ModelAdmin):
+class EquipmentAdmin(ShownOnlyAdmin):
     list_display = ("label", "kind", "organisation", "in_service", "next_inspection_due")
     list_filter = ("kind", "organisation")
 
 
-class DropInline(admin.TabularInline):
+class DropInline(ShownOnlyInline):
     model = models.Drop
-    extra = 0
 
 
 @admin.register(models.Job)
-class JobAdmin(admin.ModelAdmin):
+class JobAdmin(ShownOnlyAdmin):
     list_display = ("site", "date", "state", "supervisor")
     list_filter = ("state", "site")
     readonly_fields = ("state",)
@@ -95,5 +113,8 @@ for model in (
     models.RecordPdf,
     models.Notice,
     models.SyncReceipt,
+    models.RegisterChange,
+    models.SiteAccess,
+    models.SiteAccessEnd,
 ):
     admin.site.register(model, AppendOnlyAdmin)

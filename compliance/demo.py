@@ -16,15 +16,11 @@ from compliance.anchor_log import record_entry
 from compliance.daily_records import sign_daily_record
 from compliance.models import (
     Anchor,
-    AnchorCertification,
     Drop,
-    DropLog,
     Equipment,
     Job,
     JurisdictionProfile,
     Organisation,
-    Site,
-    SiteAccess,
     User,
 )
 from compliance.profiles import load_defaults
@@ -112,8 +108,8 @@ def load_demo(path: Path | None = None) -> Organisation:
     manager.set_password(data["password"])
     manager.save()
     create_self_signed(organisation=owner)
-    site = Site.objects.create(
-        organisation=owner,
+    site = services.create_site(
+        by=manager,
         name=site_data["name"],
         address=site_data["address"],
         height_m=site_data["height_m"],
@@ -123,25 +119,27 @@ def load_demo(path: Path | None = None) -> Organisation:
         roof_outline=site_data["roof_outline"],
     )
     today = timezone.localdate()
-    SiteAccess.objects.create(
+    services.grant_site_access(
         site=site,
         contractor=org,
-        granted_by=manager,
+        by=manager,
         starts_on=today - dt.timedelta(days=30),
         ends_on=today + dt.timedelta(days=335),
     )
     anchors: dict[str, Anchor] = {}
     for a in data["anchors"]:
-        anchor = Anchor.objects.create(site=site, label=a["label"], x_m=a["x_m"], y_m=a["y_m"])
+        anchor = services.add_anchor(
+            site=site, by=manager, label=a["label"], x_m=a["x_m"], y_m=a["y_m"]
+        )
         certified_on = today - dt.timedelta(days=420 if a.get("expired") else 120)
-        AnchorCertification.objects.create(
+        services.record_certification(
             anchor=anchor,
+            by=manager,
             certifier=data["certifier"]["name"],
             certifier_company=data["certifier"]["company"],
             rated_capacity_kn=a["capacity_kn"],
             certified_on=certified_on,
             valid_until=certified_on + dt.timedelta(days=365),
-            recorded_by=people["rhea"],
         )
         anchors[a["label"]] = anchor
         record_entry(
@@ -213,7 +211,7 @@ def load_demo(path: Path | None = None) -> Organisation:
             )
             services.start_job(job=job, by=operator)
         for label in day["done"]:
-            DropLog.objects.create(
+            services.log_drop(
                 drop=Drop.objects.get(job=job, label=label),
                 by=operator,
                 note="Drop cleaned top to bottom.",

@@ -256,6 +256,32 @@ class Equipment(models.Model):
         validate_ratings(self.kind, self.ratings)
 
 
+class RegisterChange(AppendOnlyModel):
+    """The audit entry of a register change: a site, an anchor, equipment or a checklist made
+    or changed, by whom and when, with each changed field's value before and after.
+
+    Registers themselves stay editable (an inspection date moves, a robot goes out of service),
+    so what they said on a given day is read here, and in the sealed records that snapshot it.
+    """
+
+    SUBJECTS = ("site", "anchor", "equipment", "checklist")
+
+    organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="+")
+    subject = models.CharField(max_length=20, choices=[(s, s) for s in SUBJECTS])
+    object_id = models.PositiveBigIntegerField()
+    action = models.CharField(max_length=40)
+    changes = models.JSONField(default=dict, blank=True)
+    by = models.ForeignKey("User", on_delete=models.PROTECT, related_name="+")
+    at = models.DateTimeField(auto_now_add=True)
+
+    class Meta:
+        indexes = [models.Index(fields=["subject", "object_id"], name="register_change_subject")]
+        ordering = ["at", "pk"]
+
+    def __str__(self) -> str:
+        return f"{self.subject} {self.object_id} {self.action}"
+
+
 class JobState(models.TextChoices):
     PLANNED = "planned", "Planned"
     CLEARED = "cleared", "Cleared to start"

@@ -4,7 +4,7 @@ import datetime as dt
 from typing import Any
 
 from django.core.exceptions import ValidationError
-from django.db import transaction
+from django.db import IntegrityError, models, transaction
 
 from checklists.models import CheckSheet
 from checklists.verdicts import SheetOutcome
@@ -14,6 +14,7 @@ from compliance.models import (
     Anchor,
     AnchorCertification,
     Drop,
+    DropLog,
     Equipment,
     Hold,
     HoldClearance,
@@ -21,6 +22,7 @@ from compliance.models import (
     JobState,
     JobTransition,
     Organisation,
+    RegisterChange,
     Site,
     SiteAccess,
     SiteAccessEnd,
@@ -275,26 +277,212 @@ def end_grant(*, grant: SiteAccess, by: User, reason: str = "") -> SiteAccessEnd
     return end
 
 
+def require_register_keeper(user: User) -> None:
+    _require_writer(user)
+    if not user.can_keep_anchor_log:
+        raise NotPermitted(
+            "Only a supervisor, an admin or a property manager can change this register."
+        )
+
+
+def _plain(value: Any) -> Any:
+    """A field's value as the audit entry stores it (JSON)."""
+    if isinstance(value, dt.date):
+        return value.isoformat()
+    if isinstance(value, models.Model):
+        return value.pk
+    return value
+
+
+def audit_register_change(
+    *, subject: str, row: Any, action: str, by: User, changes: dict[str, Any] | None = None
+) -> RegisterChange:
+    organisation_id = getattr(row, "organisation_id", None) or by.organisation_id
+    return RegisterChange.objects.create(
+        organisation_id=organisation_id,
+        subject=subject,
+        object_id=row.pk,
+        action=action,
+        changes=changes or {},
+        by=by,
+    )
+
+
+def save_new_register_row(row: models.Model, *, unique: dict[str, str]) -> None:
+    """Validate and insert; a uniqueness the model states is the caller's error, named by
+    field, whether full_clean sees it first or the database does (two at once)."""
+    try:
+        row.full_clean()
+    except ValidationError as exc:
+        # full_clean names a composite unique constraint under __all__; name the field.
+        errors = exc.message_dict
+        if "__all__" in errors and unique:
+            ((field, words),) = unique.items()
+            errors.pop("__all__")
+            errors[field] = [words]
+        raise ValidationError(errors) from None
+    try:
+        with transaction.atomic():
+            row.save()
+    except IntegrityError:
+        ((field, words),) = unique.items()
+        raise ValidationError({field: [words]}) from None
+
+
+DUPLICATE_SITE = "Your organisation already has a site of this name."
+DUPLICATE_ANCHOR = "This site already has an anchor of this label."
+DUPLICATE_EQUIPMENT = "Your organisation already has equipment of this label."
+
+
+def create_site(
+    *,
+    by: User,
+    name: str,
+    height_m: float,
+    profile: Any,
+    address: str = "",
+    storeys: int | None = None,
+    terrain: str = "",
+    roof_outline: list[list[float]] | None = None,
+) -> Site:
+    """A building in the organisation's register: an owner's own, or a contractor's where no
+    owner keeps it in Parapet."""
+    require_register_keeper(by)
+    fields: dict[str, Any] = {"storeys": storeys, "roof_outline": roof_outline or []}
+    if terrain:
+        fields["terrain"] = terrain
+    with transaction.atomic():
+        site = Site(
+            organisation_id=by.organisation_id,
+            name=name,
+            address=address,
+            height_m=height_m,
+            profile=profile,
+            **fields,
+        )
+        save_new_register_row(
+            site, unique={"name": "Your organisation already has a site of this name."}
+        )
+        audit_register_change(subject="site", row=site, action="created", by=by)
+    return site
+
+
+def add_anchor(
+    *,
+    site: Site,
+    by: User,
+    label: str,
+    x_m: float = 0.0,
+    y_m: float = 0.0,
+    description: str = "",
+) -> Anchor:
+    """An anchor on the roof plan. Only the site's own organisation adds anchors to it."""
+    require_register_keeper(by)
+    if site.organisation_id != by.organisation_id:
+        raise NotPermitted("Only the building's owner adds anchors to its roof.")
+    with transaction.atomic():
+        anchor = Anchor(site=site, label=label, x_m=x_m, y_m=y_m, description=description)
+        save_new_register_row(
+            anchor, unique={"label": "This site already has an anchor of this label."}
+        )
+        audit_register_change(subject="anchor", row=anchor, action="created", by=by)
+    return anchor
+
+
 def create_equipment(*, by: User, **fields: Any) -> Equipment:
-    _require_writer(by)
+    """A robot, tether, safety line or hose in the organisation's register."""
+    require_register_keeper(by)
     with transaction.atomic():
         item = Equipment(organisation_id=by.organisation_id, **fields)
-        item.full_clean()
-        item.save()
+        save_new_register_row(
+            item, unique={"label": "Your organisation already has equipment of this label."}
+        )
+        audit_register_change(subject="equipment", row=item, action="created", by=by)
     return item
+
+
+EQUIPMENT_CHANGEABLE = ("label", "serial", "ratings", "made_on", "next_inspection_due")
+
+
+def update_equipment(*, item: Equipment, by: User, reason: str = "", **fields: Any) -> Equipment:
+    """Change a register entry: its label, serial, ratings, dates, or whether it is in service.
+
+    The kind never changes (its ratings would mean something else); the audit entry keeps
+    each changed field before and after. Taking equipment out of service needs a reason.
+    """
+    require_register_keeper(by)
+    if item.organisation_id != by.organisation_id:
+        raise NotPermitted("Only the organisation that keeps this equipment changes it.")
+    unknown = set(fields) - {*EQUIPMENT_CHANGEABLE, "in_service"}
+    if unknown:
+        raise ValidationError({name: ["This field cannot be changed."] for name in sorted(unknown)})
+    with transaction.atomic():
+        item = Equipment.objects.select_for_update().get(pk=item.pk)
+        changes = {
+            name: [_plain(getattr(item, name)), _plain(value)]
+            for name, value in fields.items()
+            if getattr(item, name) != value
+        }
+        if not changes:
+            return item
+        if fields.get("in_service") is False and item.in_service and not reason.strip():
+            raise ValidationError({"reason": ["Say why the equipment is taken out of service."]})
+        for name, value in fields.items():
+            setattr(item, name, value)
+        item.full_clean(validate_unique=False)
+        try:
+            with transaction.atomic():
+                item.save(update_fields=sorted(changes))
+        except IntegrityError:
+            raise ValidationError({"label": [DUPLICATE_EQUIPMENT]}) from None
+        if "in_service" in changes:
+            action = "returned to service" if item.in_service else "taken out of service"
+        else:
+            action = "updated"
+        if reason.strip():
+            changes["reason"] = reason.strip()
+        audit_register_change(subject="equipment", row=item, action=action, by=by, changes=changes)
+    return item
+
+
+DROP_NOTE_MAX = 500
+
+
+def log_drop(
+    *, drop: Drop, by: User, note: str = "", device_time: Any = None, client_uuid: Any = None
+) -> DropLog:
+    """A drop done while its job is working (the log row is its own audit entry)."""
+    _require_writer(by)
+    if len(note) > DROP_NOTE_MAX:
+        raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
+    with transaction.atomic():
+        job = _locked(drop.job)
+        if job.state != JobState.WORKING:
+            raise InvalidTransition(
+                f"Drops are logged while the job is working; it is {job.state}."
+            )
+        extra = {"client_uuid": client_uuid} if client_uuid is not None else {}
+        return DropLog.objects.create(drop=drop, by=by, device_time=device_time, note=note, **extra)
 
 
 __all__ = [
     "Reason",
+    "add_anchor",
     "add_drop",
     "apply_sheet_outcome",
+    "audit_register_change",
     "close_job",
     "create_equipment",
     "create_job",
+    "create_site",
     "end_grant",
     "grant_site_access",
+    "log_drop",
     "pause_job",
     "record_certification",
     "refresh_readiness",
+    "require_register_keeper",
+    "save_new_register_row",
     "start_job",
+    "update_equipment",
 ]

@@ -21,7 +21,7 @@ from checklists.services import record_sheet
 from compliance import services
 from compliance.access import anchors_visible_to
 from compliance.errors import DomainError, rejection_for
-from compliance.models import Anchor, Drop, DropLog, Equipment, Job, SyncReceipt, User
+from compliance.models import Anchor, Drop, Equipment, Job, SyncReceipt, User
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
 MAX_BATCH = 200
@@ -207,10 +207,10 @@ def _apply_drop_log(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) 
             {"drop": [f"Drops are logged while the job is working; it is {drop.job.state}."]}
         )
     note = data.get("note", "")
-    if not isinstance(note, str) or len(note) > 500:
-        raise RecordRejected({"note": ["A text of at most 500 characters."]})
-    log = DropLog.objects.create(
-        client_uuid=client_uuid, drop=drop, by=user, device_time=_device_time(data), note=note
+    if not isinstance(note, str) or len(note) > services.DROP_NOTE_MAX:
+        raise RecordRejected({"note": [f"A text of at most {services.DROP_NOTE_MAX} characters."]})
+    log = services.log_drop(
+        drop=drop, by=user, note=note, device_time=_device_time(data), client_uuid=client_uuid
     )
     return {"drop_log": log.pk, "job": drop.job_id}
 

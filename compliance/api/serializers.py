@@ -169,6 +169,23 @@ class EquipmentSerializer(StrictInput, serializers.ModelSerializer):
         ]
 
 
+class EquipmentChangeInput(StrictInput, serializers.Serializer):
+    """What a supervisor may change on a register entry (all optional); never its kind."""
+
+    label = serializers.CharField(max_length=80, required=False)
+    serial = serializers.CharField(max_length=80, required=False, allow_blank=True)
+    ratings = serializers.JSONField(required=False)
+    made_on = PlausibleDateField(required=False, allow_null=True)
+    next_inspection_due = PlausibleDateField(required=False, allow_null=True)
+    in_service = serializers.BooleanField(required=False)
+    reason = serializers.CharField(max_length=500, required=False, allow_blank=True)
+
+    def validate_ratings(self, value: Any) -> dict[str, Any]:
+        if not isinstance(value, dict):
+            raise serializers.ValidationError("An object of ratings, field by field.")
+        return value
+
+
 class DropSerializer(StrictInput, serializers.ModelSerializer):
     length_m = FiniteFloatField()
 

@@ -3,7 +3,6 @@
 from typing import Any
 
 from django.contrib.auth import authenticate, login, logout
-from django.db import IntegrityError, transaction
 from django.db.models import Prefetch, Q, QuerySet
 from django.shortcuts import get_object_or_404
 from drf_spectacular.types import OpenApiTypes
@@ -243,16 +242,11 @@ class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelView
     def get_queryset(self) -> QuerySet[Site]:
         return sites_visible_to(self.org_id).select_related("profile").order_by("name")
 
-    def perform_create(self, serializer: s.SiteSerializer) -> None:
-        # The name is unique within the organisation, which the serializer does not see: a
-        # second site of one name is the caller's error (400), not the database's (500).
-        try:
-            with transaction.atomic():
-                serializer.save(organisation_id=self.org_id)
-        except IntegrityError:
-            raise serializers.ValidationError(
-                {"name": ["Your organisation already has a site of this name."]}
-            ) from None
+    def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        data = self.get_serializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        site = services.create_site(by=request.user, **data.validated_data)
+        return Response(self.get_serializer(site).data, status=status.HTTP_201_CREATED)
 
 
 class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
@@ -276,6 +270,12 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
         if hasattr(serializer, "fields") and "site" in serializer.fields:
             serializer.fields["site"].queryset = Site.objects.filter(organisation_id=self.org_id)
         return serializer
+
+    def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        data = self.get_serializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        anchor = services.add_anchor(by=request.user, **data.validated_data)
+        return Response(self.get_serializer(anchor).data, status=status.HTTP_201_CREATED)
 
     @extend_schema(request=s.CertificationSerializer, responses={201: s.CertificationSerializer})
     @action(detail=True, methods=["post"])
@@ -303,6 +303,18 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
         data.is_valid(raise_exception=True)
         item = services.create_equipment(by=request.user, **data.validated_data)
         return Response(self.get_serializer(item).data, status=status.HTTP_201_CREATED)
+
+    @extend_schema(request=s.EquipmentChangeInput, responses={200: s.EquipmentSerializer})
+    def partial_update(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        """Change an entry: label, serial, ratings, dates, or take it out of service (with a
+        reason) and return it. The kind never changes; each change has its audit entry."""
+        item = self.get_object()
+        data = s.EquipmentChangeInput(data=request.data, context={"kind": item.kind})
+        data.is_valid(raise_exception=True)
+        fields = dict(data.validated_data)
+        reason = fields.pop("reason", "")
+        item = services.update_equipment(item=item, by=request.user, reason=reason, **fields)
+        return Response(self.get_serializer(item).data)
 
 
 def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
@@ -413,16 +425,11 @@ class ChecklistViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
             Prefetch("versions", queryset=ChecklistVersion.objects.order_by("number"))
         )
 
-    def perform_create(self, serializer: s.ChecklistSerializer) -> None:
-        # As for sites: the key is unique within the organisation, which the serializer does
-        # not see, so a second checklist of one key is the caller's error (400), not a 500.
-        try:
-            with transaction.atomic():
-                serializer.save(organisation_id=self.org_id)
-        except IntegrityError:
-            raise serializers.ValidationError(
-                {"key": ["Your organisation already has a checklist of this key."]}
-            ) from None
+    def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
+        data = self.get_serializer(data=request.data)
+        data.is_valid(raise_exception=True)
+        checklist = checklist_services.create_checklist(by=request.user, **data.validated_data)
+        return Response(self.get_serializer(checklist).data, status=status.HTTP_201_CREATED)
 
     @extend_schema(
         request=s.ChecklistVersionSerializer, responses={201: s.ChecklistVersionSerializer}
@@ -431,11 +438,6 @@ class ChecklistViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
     def versions(self, request: Request, pk: str | None = None) -> Response:
         """Start a draft version of one of the organisation's own checklists."""
         checklist = self.get_object()
-        if checklist.organisation_id != self.org_id:
-            return Response(
-                {"detail": "Default checklists change only by a new release of Parapet."},
-                status=status.HTTP_403_FORBIDDEN,
-            )
         data = s.ChecklistVersionSerializer(data=request.data)
         data.is_valid(raise_exception=True)
         version = checklist_services.create_draft(
@@ -460,18 +462,10 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
 
     def partial_update(self, request: Request, *args: Any, **kwargs: Any) -> Response:
         version = self.get_object()
-        if (
-            version.status == ChecklistVersion.Status.PUBLISHED
-            or version.checklist.organisation_id != self.org_id
-        ):
-            return Response(
-                {"detail": "A published version never changes; start a new draft."},
-                status=status.HTTP_409_CONFLICT,
-            )
         data = self.get_serializer(version, data=request.data, partial=True)
         data.is_valid(raise_exception=True)
         version = checklist_services.update_draft(
-            version=version, items=data.validated_data.get("items", version.items)
+            version=version, items=data.validated_data.get("items", version.items), by=request.user
         )
         return Response(self.get_serializer(version).data)
 
@@ -479,11 +473,6 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
     @action(detail=True, methods=["post"])
     def publish(self, request: Request, pk: str | None = None) -> Response:
         version = self.get_object()
-        if version.checklist.organisation_id != self.org_id:
-            return Response(
-                {"detail": "Default checklists are published with Parapet."},
-                status=status.HTTP_403_FORBIDDEN,
-            )
         version = checklist_services.publish_version(version=version, by=request.user)
         return Response(self.get_serializer(version).data)
 

@@ -291,7 +291,7 @@ export interface paths {
         delete?: never;
         options?: never;
         head?: never;
-        patch?: never;
+        patch: operations["v1_equipment_partial_update"];
         trace?: never;
     };
     "/api/v1/jobs/": {
@@ -1148,6 +1148,17 @@ export interface components {
             items?: unknown;
             notes?: string;
         };
+        PatchedEquipmentChangeInputRequest: {
+            label?: string;
+            serial?: string;
+            ratings?: unknown;
+            /** Format: date */
+            made_on?: string | null;
+            /** Format: date */
+            next_inspection_due?: string | null;
+            in_service?: boolean;
+            reason?: string;
+        };
         PdfRendering: {
             status: string;
             detail: string;
@@ -1857,6 +1868,33 @@ export interface operations {
             cookie?: never;
         };
         requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Equipment"];
+                };
+            };
+        };
+    };
+    v1_equipment_partial_update: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                id: number;
+            };
+            cookie?: never;
+        };
+        requestBody?: {
+            content: {
+                "application/json": components["schemas"]["PatchedEquipmentChangeInputRequest"];
+                "application/x-www-form-urlencoded": components["schemas"]["PatchedEquipmentChangeInputRequest"];
+                "multipart/form-data": components["schemas"]["PatchedEquipmentChangeInputRequest"];
+            };
+        };
         responses: {
             200: {
                 headers: {
