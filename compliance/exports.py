@@ -17,6 +17,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import rfc8785
+from django.core.exceptions import ValidationError
 
 from compliance.errors import NotPermitted, PdfsPending
 from compliance.models import (
@@ -149,11 +150,20 @@ def _chain(
     }
 
 
+MAX_EXPORT_DAYS = 400
+
+
 def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) -> bytes:
     """All records of the scope's chains in a site-period, signed PDFs plus a signed manifest.
 
-    Raises PdfsPending when a record's PDF is not rendered yet (nothing is drawn in the request).
+    Raises PdfsPending when a record's PDF is not rendered yet (nothing is drawn in the request)
+    and ValidationError naming `end` for a period that ends before it starts or is longer than
+    MAX_EXPORT_DAYS (one export stays a file a person can send and a verifier can open).
     """
+    if end < start:
+        raise ValidationError({"end": ["Must not be before start."]})
+    if (end - start).days > MAX_EXPORT_DAYS:
+        raise ValidationError({"end": [f"An export covers at most {MAX_EXPORT_DAYS} days."]})
     site = scope.site
     exporter = Organisation.objects.get(pk=by.organisation_id)
     slices = [

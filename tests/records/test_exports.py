@@ -216,3 +216,36 @@ def test_an_export_waits_for_pdfs_still_rendering(signed, supervisor, settings, 
     assert waiting.json()["status"] == "rendering"
     # Run in-process here, the queued render has already drawn the PDF.
     assert client.get(reverse("record-export"), query).status_code == 200
+
+
+@pytest.mark.parametrize(
+    ("start", "end", "words"),
+    [
+        ("2026-03-02", "2026-03-01", "Must not be before start."),
+        ("2025-01-01", "2026-02-06", "An export covers at most 400 days."),
+    ],
+)
+def test_an_export_period_is_checked_by_the_service_and_named_by_the_api(
+    signed, supervisor, start, end, words
+):
+    from django.core.exceptions import ValidationError
+
+    scope = export_scope(user=supervisor, site_id=signed.site_id)
+    with pytest.raises(ValidationError) as caught:
+        build_export(
+            scope=scope,
+            by=supervisor,
+            start=dt.date.fromisoformat(start),
+            end=dt.date.fromisoformat(end),
+        )
+    assert caught.value.message_dict == {"end": [words]}
+    query = {"site": signed.site_id, "start": start, "end": end}
+    response = client_for(supervisor).get(reverse("record-export"), query)
+    assert (response.status_code, response.json()) == (400, {"end": [words]})
+
+
+def test_an_export_of_exactly_400_days_is_allowed(signed, supervisor):
+    start = signed.job.date - dt.timedelta(days=400)
+    query = {"site": signed.site_id, "start": start.isoformat(), "end": signed.job.date.isoformat()}
+    # Accepted: the day's PDF is queued for rendering (202), not refused for its length.
+    assert client_for(supervisor).get(reverse("record-export"), query).status_code == 202
