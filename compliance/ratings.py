@@ -82,9 +82,49 @@ EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
 }
 
 EQUIPMENT_KINDS = tuple(EQUIPMENT_RATINGS)
+ESTOP_LOCATIONS = ("roof", "remote", "robot")
+KIND_WORDS = {
+    "robot": "Robot",
+    "tether": "Tether",
+    "safety_line": "Safety line",
+    "hose": "Hose",
+    "estop": "Emergency stop",
+}
+UNITS = ("kg", "m", "m²", "m/s", "kPa", "s", "kN", "mm", "kg/m", "years", "N")
+
+
+def rating_form(kind: str) -> list[dict[str, Any]]:
+    """A kind's ratings as a form draws them, field by field: label and unit apart, whether
+    the field is required, its lower bound in words and, for a text, its choices. The same
+    rules as validate_ratings, which stays the one that decides."""
+    fields = []
+    for rating in EQUIPMENT_RATINGS[kind]:
+        label, _, tail = rating.label.rpartition(", ")
+        unit = tail if label and tail in UNITS else ""
+        fields.append(
+            {
+                "key": rating.key,
+                "label": label if unit else rating.label,
+                "unit": unit,
+                "required": rating.required,
+                "text": rating.text,
+                "minimum": (
+                    None
+                    if rating.text
+                    else "above_zero"
+                    if rating.positive
+                    else "zero_or_more"
+                    if rating.non_negative
+                    else None
+                ),
+                "choices": list(ESTOP_LOCATIONS) if kind == "estop" and rating.text else [],
+            }
+        )
+    return fields
+
+
 MAX_FINITE = sys.float_info.max
 """An integer beyond this has no float value (JSON may carry 10**400)."""
-ESTOP_LOCATIONS = ("roof", "remote", "robot")
 
 
 def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:

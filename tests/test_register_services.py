@@ -258,3 +258,35 @@ def test_no_register_row_is_created_outside_the_services():
         if "/migrations/" not in line and not line.startswith("compliance/services.py")
     ]
     assert outside == []
+
+
+def test_each_kind_s_rating_form_follows_the_rules_that_decide(keeper):
+    """The form the desk draws for a kind is read from the same ratings the server validates:
+    every required field of the form is refused when missing, and a filled form passes."""
+    from compliance.ratings import EQUIPMENT_RATINGS, validate_ratings
+
+    answer = client_for(keeper).get(reverse("equipment-kinds"))
+    assert answer.status_code == 200
+    kinds = {k["kind"]: k for k in answer.json()}
+    assert list(kinds) == list(EQUIPMENT_RATINGS)
+    hose = {f["key"]: f for f in kinds["hose"]["ratings"]}
+    assert hose["rating_kpa"] == {
+        "key": "rating_kpa",
+        "label": "pressure rating",
+        "unit": "kPa",
+        "required": True,
+        "text": False,
+        "minimum": "above_zero",
+        "choices": [],
+    }
+    assert kinds["estop"]["ratings"][0]["choices"] == ["roof", "remote", "robot"]
+    for kind, form in kinds.items():
+        filled = {
+            f["key"]: (f["choices"] or ["x"])[0] if f["text"] else 1.0 for f in form["ratings"]
+        }
+        assert validate_ratings(kind, filled) == filled
+        for f in fields:
+            if f["required"]:
+                short = {k: v for k, v in filled.items() if k != f["key"]}
+                with pytest.raises(ValidationError):
+                    validate_ratings(kind, short)

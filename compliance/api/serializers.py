@@ -169,6 +169,22 @@ class EquipmentSerializer(StrictInput, serializers.ModelSerializer):
         ]
 
 
+class RatingFieldSerializer(serializers.Serializer):
+    key = serializers.CharField()
+    label = serializers.CharField()
+    unit = serializers.CharField()
+    required = serializers.BooleanField()
+    text = serializers.BooleanField()
+    minimum = serializers.ChoiceField(choices=["above_zero", "zero_or_more"], allow_null=True)
+    choices = serializers.ListField(child=serializers.CharField())
+
+
+class EquipmentKindSerializer(serializers.Serializer):
+    kind = serializers.CharField()
+    label = serializers.CharField()
+    ratings = RatingFieldSerializer(many=True)
+
+
 class EquipmentChangeInput(StrictInput, serializers.Serializer):
     """What a supervisor may change on a register entry (all optional); never its kind."""
 

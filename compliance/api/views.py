@@ -40,6 +40,7 @@ from compliance.models import (
     JurisdictionProfile,
     Site,
 )
+from compliance.ratings import EQUIPMENT_KINDS, KIND_WORDS, rating_form
 from compliance.selectors import job_readiness, jobs_for
 from compliance.sync import MAX_BATCH, printable
 
@@ -303,6 +304,18 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
         data.is_valid(raise_exception=True)
         item = services.create_equipment(by=request.user, **data.validated_data)
         return Response(self.get_serializer(item).data, status=status.HTTP_201_CREATED)
+
+    @extend_schema(responses=s.EquipmentKindSerializer(many=True))
+    @action(detail=False, methods=["get"])
+    def kinds(self, request: Request) -> Response:
+        """Each kind of equipment and the ratings its register entry carries, field by field
+        with units and lower bounds, so a form never asks for raw JSON."""
+        return Response(
+            [
+                {"kind": kind, "label": KIND_WORDS[kind], "ratings": rating_form(kind)}
+                for kind in EQUIPMENT_KINDS
+            ]
+        )
 
     @extend_schema(request=s.EquipmentChangeInput, responses={200: s.EquipmentSerializer})
     def partial_update(self, request: Request, *args: Any, **kwargs: Any) -> Response:

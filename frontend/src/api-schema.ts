@@ -294,6 +294,22 @@ export interface paths {
         patch: operations["v1_equipment_partial_update"];
         trace?: never;
     };
+    "/api/v1/equipment/kinds/": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get: operations["v1_equipment_kinds_list"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/api/v1/jobs/": {
         parameters: {
             query?: never;
@@ -865,6 +881,11 @@ export interface components {
             next_inspection_due?: string | null;
             in_service?: boolean;
         };
+        EquipmentKind: {
+            kind: string;
+            label: string;
+            ratings: components["schemas"]["RatingField"][];
+        };
         /** @enum {string} */
         EquipmentKindEnum: "robot" | "tether" | "safety_line" | "hose" | "estop";
         EquipmentRequest: {
@@ -979,6 +1000,10 @@ export interface components {
         };
         /** @enum {string} */
         MeaningEnum: "reviewed_exceptions" | "reviewed_safe" | "reviewed_stopped";
+        /** @enum {string} */
+        MinimumEnum: "above_zero" | "zero_or_more";
+        /** @enum {unknown} */
+        NullEnum: null;
         PaginatedAnchorList: {
             /** @example 123 */
             count: number;
@@ -1023,6 +1048,21 @@ export interface components {
              */
             previous?: string | null;
             results: components["schemas"]["ChecklistVersion"][];
+        };
+        PaginatedEquipmentKindList: {
+            /** @example 123 */
+            count: number;
+            /**
+             * Format: uri
+             * @example http://api.example.org/accounts/?offset=400&limit=100
+             */
+            next?: string | null;
+            /**
+             * Format: uri
+             * @example http://api.example.org/accounts/?offset=200&limit=100
+             */
+            previous?: string | null;
+            results: components["schemas"]["EquipmentKind"][];
         };
         PaginatedEquipmentList: {
             /** @example 123 */
@@ -1192,6 +1232,15 @@ export interface components {
             thresholds: unknown;
             cautions: string;
             content_hash: string;
+        };
+        RatingField: {
+            key: string;
+            label: string;
+            unit: string;
+            required: boolean;
+            text: boolean;
+            minimum: (components["schemas"]["MinimumEnum"] | components["schemas"]["NullEnum"]) | null;
+            choices: string[];
         };
         ReasonInputRequest: {
             reason?: string;
@@ -1902,6 +1951,28 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["Equipment"];
+                };
+            };
+        };
+    };
+    v1_equipment_kinds_list: {
+        parameters: {
+            query?: {
+                limit?: number;
+                offset?: number;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["PaginatedEquipmentKindList"];
                 };
             };
         };
