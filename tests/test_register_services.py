@@ -285,7 +285,7 @@ def test_each_kind_s_rating_form_follows_the_rules_that_decide(keeper):
             f["key"]: (f["choices"] or ["x"])[0] if f["text"] else 1.0 for f in form["ratings"]
         }
         assert validate_ratings(kind, filled) == filled
-        for f in fields:
+        for f in form["ratings"]:
             if f["required"]:
                 short = {k: v for k, v in filled.items() if k != f["key"]}
                 with pytest.raises(ValidationError):
