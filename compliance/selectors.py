@@ -10,6 +10,7 @@ from compliance.access import can_work_at
 from compliance.anchor_status import anchor_status
 from compliance.errors import Reason
 from compliance.models import (
+    OPEN_STATES,
     Anchor,
     AnchorCertification,
     AnchorLogEntry,
@@ -270,3 +271,130 @@ def job_readiness(job: Job) -> Readiness:
         blockers=job_blockers(job, drops, requirements),
         holds=list(Hold.objects.filter(job=job).select_related("clearance")),
     )
+
+
+@dataclass(frozen=True)
+class Conflict:
+    """Something wrong with a drop being planned, in words, against the field it concerns.
+
+    `refuses` marks what cannot be planned at all (a rig or an anchor in two places at once,
+    something out of service); the rest is shown while planning and then blocks the start
+    until it is put right (a certificate or an inspection lapsing by the day).
+    """
+
+    field: str
+    code: str
+    message: str
+    refuses: bool
+
+    def as_dict(self) -> dict[str, object]:
+        return {
+            "field": self.field,
+            "code": self.code,
+            "message": self.message,
+            "refuses": self.refuses,
+        }
+
+
+EQUIPMENT_FIELDS = ("robot", "tether", "safety_line", "hose")
+ANCHOR_FIELDS = ("anchor", "safety_anchor")
+
+
+def plan_conflicts(
+    *, job: Job, chosen: dict[str, Anchor | Equipment], exclude_drop: int | None = None
+) -> list[Conflict]:
+    """What stands against planning these anchors and this equipment on the job's day.
+
+    Equipment or an anchor already on another open job that day refuses (one robot, one
+    anchor, one place), whoever's job it is: the other contractor is not named. Within one job
+    drops are worked one after another, so reusing a robot or an anchor there is fine.
+    """
+    conflicts: list[Conflict] = []
+    day = job.date
+    others = Drop.objects.filter(job__date=day, job__state__in=OPEN_STATES).exclude(job=job)
+    if exclude_drop is not None:
+        others = others.exclude(pk=exclude_drop)
+    equipment = {f: chosen[f] for f in EQUIPMENT_FIELDS if isinstance(chosen.get(f), Equipment)}
+    anchors = {f: chosen[f] for f in ANCHOR_FIELDS if isinstance(chosen.get(f), Anchor)}
+    booked_equipment = set(
+        others.filter(job__organisation_id=job.organisation_id).values_list(
+            "robot", "tether", "safety_line", "hose"
+        )
+    )
+    busy = {pk for row in booked_equipment for pk in row}
+    anchor_ids = [a.pk for a in anchors.values()]
+    busy_anchors = set(others.filter(anchor__in=anchor_ids).values_list("anchor", flat=True)) | set(
+        others.filter(safety_anchor__in=anchor_ids).values_list("safety_anchor", flat=True)
+    )
+    for field, item in equipment.items():
+        what = f"{item.kind.replace('_', ' ').capitalize()} {item.label}"
+        if item.pk in busy:
+            conflicts.append(
+                Conflict(field, "equipment_booked", f"{what} is on another job on {day}.", True)
+            )
+        if not item.in_service:
+            conflicts.append(
+                Conflict(field, "equipment_out_of_service", f"{what} is out of service.", True)
+            )
+        elif item.next_inspection_due and item.next_inspection_due < day:
+            conflicts.append(
+                Conflict(
+                    field,
+                    "equipment_inspection_overdue",
+                    f"{what}'s periodic inspection falls due on {item.next_inspection_due},"
+                    f" before {day}.",
+                    False,
+                )
+            )
+    if anchors:
+        loaded = {
+            a.pk: a
+            for a in Anchor.objects.filter(pk__in=anchor_ids).prefetch_related(
+                "certifications", Prefetch("log", queryset=_status_entries())
+            )
+        }
+        interval_days = int(job.site.profile.threshold("certification_interval_days"))
+        for field, chosen_anchor in anchors.items():
+            anchor = loaded[chosen_anchor.pk]
+            what = f"Anchor {anchor.label}"
+            if anchor.pk in busy_anchors:
+                conflicts.append(
+                    Conflict(field, "anchor_booked", f"{what} is on another job on {day}.", True)
+                )
+            status = anchor_status(anchor, interval_days)
+            if not status.in_service:
+                conflicts.append(
+                    Conflict(
+                        field,
+                        "anchor_out_of_service",
+                        f"{what} is out of service since {status.removed_on}:"
+                        f" {status.removed_reason}",
+                        True,
+                    )
+                )
+                continue
+            cert = anchor.current_certification()
+            if cert is None:
+                conflicts.append(
+                    Conflict(field, "anchor_uncertified", f"{what} has no certificate.", False)
+                )
+            elif not cert.is_valid_on(day):
+                conflicts.append(
+                    Conflict(
+                        field,
+                        "anchor_certificate_lapses",
+                        f"{what}'s certificate is valid until {cert.valid_until}, before {day}.",
+                        False,
+                    )
+                )
+            elif status.overdue_on(day):
+                conflicts.append(
+                    Conflict(
+                        field,
+                        "anchor_inspection_overdue",
+                        f"{what}'s periodic inspection falls due on {status.inspection_due},"
+                        f" before {day}.",
+                        False,
+                    )
+                )
+    return conflicts

@@ -28,7 +28,7 @@ from compliance.models import (
     SiteAccessEnd,
     User,
 )
-from compliance.selectors import job_blockers
+from compliance.selectors import job_blockers, plan_conflicts
 
 
 def _require_writer(user: User) -> None:
@@ -95,7 +95,23 @@ def add_drop(
     _require_writer(by)
     if job.state not in (JobState.PLANNED, JobState.CLEARED):
         raise InvalidTransition("Drops can be planned only before work starts.")
+    chosen = {
+        "robot": robot,
+        "anchor": anchor,
+        "safety_anchor": safety_anchor,
+        "tether": tether,
+        "safety_line": safety_line,
+        "hose": hose,
+    }
     with transaction.atomic():
+        # Two supervisors planning one robot for the same day: the second waits, then sees it.
+        list(Equipment.objects.select_for_update().filter(pk__in=[robot.pk, tether.pk]))
+        refusals: dict[str, list[str]] = {}
+        for conflict in plan_conflicts(job=job, chosen=chosen):
+            if conflict.refuses:
+                refusals.setdefault(conflict.field, []).append(conflict.message)
+        if refusals:
+            raise ValidationError(refusals)
         drop = Drop(
             job=job,
             label=label,

@@ -229,6 +229,41 @@ class DropSerializer(StrictInput, serializers.ModelSerializer):
             self.fields[name].queryset = anchors_visible_to(org)
 
 
+class PlanCheckInput(StrictInput, serializers.Serializer):
+    """Any of a drop's anchors and equipment, as chosen so far on the planning form."""
+
+    robot = serializers.PrimaryKeyRelatedField(queryset=Equipment.objects.none(), required=False)
+    tether = serializers.PrimaryKeyRelatedField(queryset=Equipment.objects.none(), required=False)
+    safety_line = serializers.PrimaryKeyRelatedField(
+        queryset=Equipment.objects.none(), required=False
+    )
+    hose = serializers.PrimaryKeyRelatedField(queryset=Equipment.objects.none(), required=False)
+    anchor = serializers.PrimaryKeyRelatedField(queryset=Anchor.objects.none(), required=False)
+    safety_anchor = serializers.PrimaryKeyRelatedField(
+        queryset=Anchor.objects.none(), required=False
+    )
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        request = self.context.get("request")
+        org = getattr(getattr(request, "user", None), "organisation_id", None)
+        for name in ("robot", "tether", "safety_line", "hose"):
+            self.fields[name].queryset = Equipment.objects.filter(organisation_id=org)
+        for name in ("anchor", "safety_anchor"):
+            self.fields[name].queryset = anchors_visible_to(org)
+
+
+class ConflictSerializer(serializers.Serializer):
+    field = serializers.CharField()
+    code = serializers.CharField()
+    message = serializers.CharField()
+    refuses = serializers.BooleanField()
+
+
+class PlanCheckSerializer(serializers.Serializer):
+    conflicts = ConflictSerializer(many=True)
+
+
 class TransitionSerializer(serializers.ModelSerializer):
     by = serializers.CharField(source="by.display_name", default=None)
 

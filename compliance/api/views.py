@@ -41,7 +41,7 @@ from compliance.models import (
     Site,
 )
 from compliance.ratings import EQUIPMENT_KINDS, KIND_WORDS, rating_form
-from compliance.selectors import job_readiness, jobs_for
+from compliance.selectors import job_readiness, jobs_for, plan_conflicts
 from compliance.sync import MAX_BATCH, printable
 
 
@@ -403,6 +403,17 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
         data.is_valid(raise_exception=True)
         drop = services.add_drop(job=job, by=request.user, **data.validated_data)
         return Response(s.DropSerializer(drop).data, status=status.HTTP_201_CREATED)
+
+    @extend_schema(request=s.PlanCheckInput, responses=s.PlanCheckSerializer)
+    @action(detail=True, methods=["post"], url_path="plan-check")
+    def plan_check(self, request: Request, pk: str | None = None) -> Response:
+        """What stands against a drop being planned, in words, before it is added: refusals
+        (booked elsewhere that day, out of service) and what will block the start."""
+        job = self.get_object()
+        data = s.PlanCheckInput(data=request.data, context=self.get_serializer_context())
+        data.is_valid(raise_exception=True)
+        conflicts = plan_conflicts(job=job, chosen=dict(data.validated_data))
+        return Response({"conflicts": [c.as_dict() for c in conflicts]})
 
     @extend_schema(request=SignInput, responses={201: RecordSerializer})
     @action(detail=True, methods=["post"], throttle_classes=[PasswordReentryThrottle])

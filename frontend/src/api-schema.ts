@@ -390,6 +390,22 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/api/v1/jobs/{id}/plan-check/": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        post: operations["v1_jobs_plan_check_create"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/api/v1/jobs/{id}/sign/": {
         parameters: {
             query?: never;
@@ -843,6 +859,12 @@ export interface components {
             items: unknown;
             notes?: string;
         };
+        Conflict: {
+            field: string;
+            code: string;
+            message: string;
+            refuses: boolean;
+        };
         Drop: {
             readonly id: number;
             label: string;
@@ -1225,6 +1247,17 @@ export interface components {
             height: number;
             /** Format: date-time */
             uploaded_at: string;
+        };
+        PlanCheck: {
+            conflicts: components["schemas"]["Conflict"][];
+        };
+        PlanCheckInputRequest: {
+            robot?: number;
+            tether?: number;
+            safety_line?: number;
+            hose?: number;
+            anchor?: number;
+            safety_anchor?: number;
         };
         Profile: {
             key: string;
@@ -2122,6 +2155,33 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["Job"];
+                };
+            };
+        };
+    };
+    v1_jobs_plan_check_create: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                id: number;
+            };
+            cookie?: never;
+        };
+        requestBody?: {
+            content: {
+                "application/json": components["schemas"]["PlanCheckInputRequest"];
+                "application/x-www-form-urlencoded": components["schemas"]["PlanCheckInputRequest"];
+                "multipart/form-data": components["schemas"]["PlanCheckInputRequest"];
+            };
+        };
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["PlanCheck"];
                 };
             };
         };

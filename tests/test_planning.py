@@ -1,0 +1,209 @@
+"""Planning a day's drops: what cannot be planned is refused in words naming the field, and
+what would block the start is shown while planning."""
+
+import datetime as dt
+
+import pytest
+from django.core.exceptions import ValidationError
+from django.urls import reverse
+from django.utils import timezone
+
+from compliance import services
+from compliance.anchor_log import record_entry
+from compliance.models import AnchorLogEntry, Drop, SiteAccess
+from compliance.signing import create_self_signed
+from tests.conftest import client_for
+from tests.factories import (
+    PASSWORD,
+    AnchorFactory,
+    CertificationFactory,
+    EquipmentFactory,
+    JobFactory,
+    OrganisationFactory,
+    UserFactory,
+    make_drop,
+)
+
+pytestmark = pytest.mark.django_db
+
+
+def rig_of(drop: Drop) -> dict:
+    return {
+        name: getattr(drop, name)
+        for name in ("robot", "anchor", "safety_anchor", "tether", "safety_line", "hose")
+    }
+
+
+def ids(rig: dict) -> dict:
+    return {name: row.pk for name, row in rig.items()}
+
+
+@pytest.fixture
+def tomorrow_job(job):
+    """The same organisation's job at the same site tomorrow, with no drops yet."""
+    return JobFactory(
+        site=job.site, supervisor=job.supervisor, date=job.date + dt.timedelta(days=1)
+    )
+
+
+def test_a_robot_on_another_job_that_day_is_refused_naming_the_field(job):
+    rig = rig_of(job.drops.get())
+    other = JobFactory(site=job.site, supervisor=job.supervisor, date=job.date)
+    spare_day = job.date - dt.timedelta(days=5)
+    fresh = rig_of(
+        make_drop(JobFactory(site=job.site, supervisor=job.supervisor, date=spare_day), "spare")
+    )
+    with pytest.raises(ValidationError) as caught:
+        services.add_drop(
+            job=other,
+            by=job.supervisor,
+            label="D2",
+            length_m=90.0,
+            **{**fresh, "robot": rig["robot"]},
+        )
+    assert caught.value.message_dict == {
+        "robot": [f"Robot {rig['robot'].label} is on another job on {job.date}."]
+    }
+    assert not other.drops.exists()
+
+
+def test_a_robot_used_again_within_one_job_is_fine(job):
+    """Drops of one job are worked one after another by the same crew."""
+    rig = rig_of(job.drops.get())
+    services.add_drop(job=job, by=job.supervisor, label="D2", length_m=80.0, **rig)
+    assert job.drops.count() == 2
+
+
+def test_the_same_robot_another_day_is_fine(job, tomorrow_job):
+    rig = rig_of(job.drops.get())
+    services.add_drop(job=tomorrow_job, by=job.supervisor, label="D1", length_m=80.0, **rig)
+    assert tomorrow_job.drops.count() == 1
+
+
+def test_an_anchor_on_another_contractor_s_job_that_day_is_refused_without_naming_it():
+    owner = OrganisationFactory(name="Harbour Court owners", kind="owner")
+    manager = UserFactory(organisation=owner, role="property_manager")
+    site = JobFactory(site__organisation=owner, supervisor=manager).site
+    north, south = (OrganisationFactory(name=n) for n in ("North crew", "South crew"))
+    for contractor in (north, south):
+        SiteAccess.objects.create(
+            site=site,
+            contractor=contractor,
+            granted_by=manager,
+            starts_on=timezone.localdate(),
+            ends_on=timezone.localdate(),
+        )
+    jobs = [
+        services.create_job(
+            site=site,
+            date=timezone.localdate(),
+            supervisor=(boss := UserFactory(organisation=org, role="supervisor")),
+            by=boss,
+        )
+        for org in (north, south)
+    ]
+    anchors = [AnchorFactory(site=site) for _ in range(3)]
+    for anchor in anchors:
+        CertificationFactory(anchor=anchor)
+
+    def kit(org):
+        return {k: EquipmentFactory(organisation=org, kind=k) for k in ("robot", "tether")} | {
+            k: EquipmentFactory(organisation=org, kind=k) for k in ("safety_line", "hose")
+        }
+
+    services.add_drop(
+        job=jobs[0],
+        by=jobs[0].supervisor,
+        label="N1",
+        length_m=50.0,
+        anchor=anchors[0],
+        safety_anchor=anchors[1],
+        **kit(north),
+    )
+    client = client_for(jobs[1].supervisor)
+    body = {
+        "label": "S1",
+        "length_m": 50.0,
+        "anchor": anchors[1].pk,
+        "safety_anchor": anchors[2].pk,
+        **{k: v.pk for k, v in kit(south).items()},
+    }
+    response = client.post(reverse("job-drops", args=[jobs[1].pk]), body, format="json")
+    words = f"Anchor {anchors[1].label} is on another job on {timezone.localdate()}."
+    assert (response.status_code, response.json()) == (400, {"anchor": [words]})
+    assert "North" not in response.content.decode()
+    assert not jobs[1].drops.exists()
+
+
+def test_equipment_out_of_service_is_refused(job, tomorrow_job):
+    rig = rig_of(job.drops.get())
+    services.update_equipment(
+        item=rig["hose"], by=job.supervisor, in_service=False, reason="Split near coupling."
+    )
+    rig["hose"].refresh_from_db()
+    with pytest.raises(ValidationError) as caught:
+        services.add_drop(job=tomorrow_job, by=job.supervisor, label="D1", length_m=80.0, **rig)
+    assert caught.value.message_dict == {"hose": [f"Hose {rig['hose'].label} is out of service."]}
+
+
+def test_an_anchor_out_of_service_is_refused(job, tomorrow_job):
+    rig = rig_of(job.drops.get())
+    owner_manager = UserFactory(organisation=job.organisation, role="supervisor")
+    create_self_signed(organisation=job.organisation)
+    record_entry(
+        anchor=rig["anchor"],
+        by=owner_manager,
+        password=PASSWORD,
+        kind=AnchorLogEntry.Kind.REMOVED,
+        details="Fixing bolt loose.",
+        performed_on=job.date,
+    )
+    with pytest.raises(ValidationError) as caught:
+        services.add_drop(job=tomorrow_job, by=job.supervisor, label="D1", length_m=80.0, **rig)
+    assert caught.value.message_dict == {
+        "anchor": [
+            f"Anchor {rig['anchor'].label} is out of service since {job.date}: Fixing bolt loose."
+        ]
+    }
+
+
+def test_the_plan_check_shows_what_will_block_the_start_and_refuses_nothing(job, tomorrow_job):
+    rig = rig_of(job.drops.get())
+    services.update_equipment(item=rig["tether"], by=job.supervisor, next_inspection_due=job.date)
+    # The safety anchor's newest certificate is valid today but lapses before tomorrow's job.
+    CertificationFactory(
+        anchor=rig["safety_anchor"],
+        certified_on=job.date - dt.timedelta(days=50),
+        valid_until=job.date,
+    )
+    response = client_for(job.supervisor).post(
+        reverse("job-plan-check", args=[tomorrow_job.pk]), ids(rig), format="json"
+    )
+    assert response.status_code == 200
+    assert response.json() == {
+        "conflicts": [
+            {
+                "field": "tether",
+                "code": "equipment_inspection_overdue",
+                "message": f"Tether {rig['tether'].label}'s periodic inspection falls due on"
+                f" {job.date}, before {tomorrow_job.date}.",
+                "refuses": False,
+            },
+            {
+                "field": "safety_anchor",
+                "code": "anchor_certificate_lapses",
+                "message": f"Anchor {rig['safety_anchor'].label}'s certificate is valid until"
+                f" {job.date}, before {tomorrow_job.date}.",
+                "refuses": False,
+            },
+        ]
+    }
+    assert not tomorrow_job.drops.exists()
+
+
+def test_the_plan_check_of_another_organisation_s_job_is_not_found(job):
+    stranger = UserFactory(role="supervisor")
+    response = client_for(stranger).post(
+        reverse("job-plan-check", args=[job.pk]), {}, format="json"
+    )
+    assert response.status_code == 404
