@@ -18,6 +18,7 @@ from typing import Any
 
 import rfc8785
 from django.core.exceptions import ValidationError
+from django.db.models import Max, Min, Q
 
 from compliance.errors import NotPermitted, PdfsPending
 from compliance.models import (
@@ -39,6 +40,7 @@ from compliance.signing import active_credential, sha256_hex, sign_seal
 
 FORMAT, MANIFEST, MANIFEST_SIGNATURE = EXPORT_FORMAT, EXPORT_MANIFEST, EXPORT_MANIFEST_SIGNATURE
 MAX_DAYS = 400
+"""Longest period one export covers: a file a person can send and a verifier can open."""
 
 
 @dataclass(frozen=True)
@@ -75,27 +77,51 @@ def export_filename(record: DailyRecord) -> str:
     )
 
 
-def _slice(
-    organisation: Organisation, site: Site, start: dt.date, end: dt.date
-) -> tuple[list[DailyRecord], list[DailyRecord], RecordChainHead | None]:
-    """The run of an organisation's chain from the first to the last record of the period, and
-    the records after it."""
-    rows = DailyRecord.objects.filter(organisation=organisation, site=site).select_related(
-        "job", "credential", "site", "pdf"
+Slice = tuple[list[DailyRecord], list[DailyRecord], RecordChainHead | None]
+
+
+def _slices(
+    organisation_ids: list[int], site: Site, start: dt.date, end: dt.date
+) -> dict[int, Slice]:
+    """For each organisation, the run of its chain from the first to the last record of the
+    period, the records after it, and its chain head: in three queries whatever the number of
+    contractors that signed days at the building."""
+    ranges = {
+        row["organisation_id"]: (row["first"], row["last"])
+        for row in DailyRecord.objects.filter(
+            site=site,
+            organisation_id__in=organisation_ids,
+            job__date__gte=start,
+            job__date__lte=end,
+        )
+        .values("organisation_id")
+        .annotate(first=Min("sequence"), last=Max("sequence"))
+    }
+    heads = {
+        head.organisation_id: head
+        for head in RecordChainHead.objects.filter(
+            site=site, organisation_id__in=list(ranges)
+        ).select_related("credential")
+    }
+    wanted = [org for org in ranges if org in heads]
+    slices: dict[int, Slice] = {org: ([], [], None) for org in organisation_ids}
+    if not wanted:
+        return slices
+    from_first = Q()
+    for org in wanted:
+        from_first |= Q(organisation_id=org, sequence__gte=ranges[org][0])
+    rows = (
+        DailyRecord.objects.filter(from_first, site=site)
+        .select_related("job", "credential", "site", "pdf")
+        .order_by("organisation_id", "sequence")
     )
-    in_period = rows.filter(job__date__gte=start, job__date__lte=end)
-    first = in_period.order_by("sequence").values_list("sequence", flat=True).first()
-    head = (
-        RecordChainHead.objects.filter(organisation=organisation, site=site)
-        .select_related("credential")
-        .first()
-    )
-    if first is None or head is None:
-        return [], [], None
-    last = in_period.order_by("-sequence").values_list("sequence", flat=True).first()
-    slice_ = list(rows.filter(sequence__gte=first, sequence__lte=last).order_by("sequence"))
-    after = list(rows.filter(sequence__gt=last).order_by("sequence"))
-    return slice_, after, head
+    for org in wanted:
+        slices[org] = ([], [], heads[org])
+    for record in rows:
+        records, after, _ = slices[record.organisation_id]
+        last = ranges[record.organisation_id][1]
+        (records if record.sequence <= last else after).append(record)
+    return slices
 
 
 def _chain(
@@ -104,6 +130,7 @@ def _chain(
     records: list[DailyRecord],
     after: list[DailyRecord],
     head: RecordChainHead,
+    certificates_of: dict[int, list[str]],
 ) -> dict[str, Any]:
     entries = []
     for record in records:
@@ -123,11 +150,7 @@ def _chain(
                 "meaning": record.meaning,
             }
         )
-    certificates = sorted(
-        SigningCredential.objects.filter(organisation=organisation).values_list(
-            "certificate_pem", flat=True
-        )
-    )
+    certificates = sorted(certificates_of.get(organisation.pk, []))
     return {
         "organisation": {"id": organisation.pk, "name": organisation.name},
         "records": entries,
@@ -150,33 +173,34 @@ def _chain(
     }
 
 
-MAX_EXPORT_DAYS = 400
-
-
 def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) -> bytes:
     """All records of the scope's chains in a site-period, signed PDFs plus a signed manifest.
 
     Raises PdfsPending when a record's PDF is not rendered yet (nothing is drawn in the request)
     and ValidationError naming `end` for a period that ends before it starts or is longer than
-    MAX_EXPORT_DAYS (one export stays a file a person can send and a verifier can open).
+    MAX_DAYS.
     """
     if end < start:
         raise ValidationError({"end": ["Must not be before start."]})
-    if (end - start).days > MAX_EXPORT_DAYS:
-        raise ValidationError({"end": [f"An export covers at most {MAX_EXPORT_DAYS} days."]})
+    if (end - start).days > MAX_DAYS:
+        raise ValidationError({"end": [f"An export covers at most {MAX_DAYS} days."]})
     site = scope.site
     exporter = Organisation.objects.get(pk=by.organisation_id)
-    slices = [
-        (org, *_slice(org, site, start, end))
-        for org in Organisation.objects.filter(pk__in=scope.organisation_ids).order_by("pk")
-    ]
+    organisations = list(Organisation.objects.filter(pk__in=scope.organisation_ids).order_by("pk"))
+    by_org = _slices([o.pk for o in organisations], site, start, end)
+    slices = [(org, *by_org[org.pk]) for org in organisations]
     pending = [r.pk for _, records, _, _ in slices for r in records if not hasattr(r, "pdf")]
     if pending:
         raise PdfsPending(pending)
     buffer = io.BytesIO()
+    certificates_of: dict[int, list[str]] = {}
+    for org_id, pem in SigningCredential.objects.filter(
+        organisation_id__in=[org.pk for org, *_ in slices]
+    ).values_list("organisation_id", "certificate_pem"):
+        certificates_of.setdefault(org_id, []).append(pem)
     with zipfile.ZipFile(buffer, "w", zipfile.ZIP_DEFLATED) as archive:
         chains = [
-            _chain(archive, org, records, after, head)
+            _chain(archive, org, records, after, head, certificates_of)
             for org, records, after, head in slices
             if head is not None
         ]
