@@ -112,3 +112,24 @@ def query_text(params: Mapping[str, str], name: str) -> str | None:
     if "\x00" in value:
         raise serializers.ValidationError({name: ["Text may not hold a NUL."]})
     return value
+
+
+def query_period(params: Mapping[str, str]) -> tuple[dt.date | None, dt.date | None]:
+    """The `start` and `end` dates of a list's period (either may be absent), or a 400 naming
+    the parameter that is not a date as YYYY-MM-DD, or `end` when it falls before `start`."""
+    dates: dict[str, dt.date | None] = {}
+    for name in ("start", "end"):
+        value = params.get(name)
+        if not value:
+            dates[name] = None
+            continue
+        try:
+            dates[name] = dt.date.fromisoformat(value) if len(value) == 10 else None
+        except ValueError:
+            dates[name] = None
+        if dates[name] is None:
+            raise serializers.ValidationError({name: ["A date as YYYY-MM-DD."]})
+    start, end = dates["start"], dates["end"]
+    if start and end and end < start:
+        raise serializers.ValidationError({"end": ["Must not be before start."]})
+    return start, end

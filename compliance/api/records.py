@@ -16,7 +16,7 @@ from rest_framework.permissions import IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
 
-from compliance.api.fields import StrictInput, query_id
+from compliance.api.fields import StrictInput, query_id, query_period
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.daily_records import MEANINGS, add_addendum, sign_daily_record
@@ -89,6 +89,11 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
             value = query_id(self.request.query_params, name)
             if value is not None:
                 qs = qs.filter(**{f"{name}_id": value})
+        start, end = query_period(self.request.query_params)
+        if start is not None:
+            qs = qs.filter(job__date__gte=start)
+        if end is not None:
+            qs = qs.filter(job__date__lte=end)
         return qs.select_related("job", "pdf").order_by("site_id", "sequence")
 
     def retrieve(self, request: Request, *args: Any, **kwargs: Any) -> Response:

@@ -26,7 +26,7 @@ from checklists.selectors import sheets_for, usable_versions, visible_checklists
 from compliance import services
 from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
-from compliance.api.fields import ParsedJSON, StrictInput, query_id, query_text
+from compliance.api.fields import ParsedJSON, StrictInput, query_id, query_period, query_text
 from compliance.api.pagination import BoundedLimitOffset
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
@@ -369,8 +369,14 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
     def retrieve(self, request: Request, *args: Any, **kwargs: Any) -> Response:
         return Response(job_detail_data(self.get_object(), self.get_serializer_context()))
 
-    def _act(self, request: Request, service: Any, **extra: Any) -> Response:
+    def _act(self, request: Request, service: Any, *, reasoned: bool = False) -> Response:
+        # The job first: another organisation's job is 404 whatever the body holds.
         job = self.get_object()
+        extra = {}
+        if reasoned:
+            data = ReasonInput(data=request.data)
+            data.is_valid(raise_exception=True)
+            extra["reason"] = data.validated_data.get("reason", "")
         service(job=job, by=request.user, **extra)
         job.refresh_from_db()
         return Response(job_detail_data(job, self.get_serializer_context()))
@@ -384,16 +390,12 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
     @extend_schema(request=ReasonInput)
     @action(detail=True, methods=["post"])
     def pause(self, request: Request, pk: str | None = None) -> Response:
-        data = ReasonInput(data=request.data)
-        data.is_valid(raise_exception=True)
-        return self._act(request, services.pause_job, reason=data.validated_data.get("reason", ""))
+        return self._act(request, services.pause_job, reasoned=True)
 
     @extend_schema(request=ReasonInput)
     @action(detail=True, methods=["post"])
     def close(self, request: Request, pk: str | None = None) -> Response:
-        data = ReasonInput(data=request.data)
-        data.is_valid(raise_exception=True)
-        return self._act(request, services.close_job, reason=data.validated_data.get("reason", ""))
+        return self._act(request, services.close_job, reasoned=True)
 
     @extend_schema(request=s.DropSerializer, responses={201: s.DropSerializer})
     @action(detail=True, methods=["post"])
@@ -529,9 +531,16 @@ class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVie
 
     def get_queryset(self) -> QuerySet[Any]:
         qs = sheets_for(self.org_id).order_by("id")
-        job = query_id(self.request.query_params, "job")
-        if job is not None:
-            qs = qs.filter(job_id=job)
+        params = self.request.query_params
+        for name in ("job", "site"):
+            value = query_id(params, name)
+            if value is not None:
+                qs = qs.filter(**{f"job__{name}_id" if name == "site" else "job_id": value})
+        start, end = query_period(params)
+        if start is not None:
+            qs = qs.filter(job__date__gte=start)
+        if end is not None:
+            qs = qs.filter(job__date__lte=end)
         return qs
 
     @extend_schema(

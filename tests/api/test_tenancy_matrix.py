@@ -337,16 +337,7 @@ def _bad_body_cases() -> list[Any]:
         for action in actions:
             if action.body is _none:
                 continue
-            marks = []
-            if action.name in ("job-pause", "job-close"):
-                marks = [
-                    pytest.mark.xfail(
-                        strict=True,
-                        reason="JobViewSet.pause/close validate ReasonInput before get_object(), "
-                        "so a bad body to another organisation's job answers 400, not 404",
-                    )
-                ]
-            cases.append(pytest.param(action, relation, id=str(action), marks=marks))
+            cases.append(pytest.param(action, relation, id=str(action)))
     return cases
 
 
