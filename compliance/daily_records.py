@@ -18,6 +18,7 @@ import json
 from dataclasses import dataclass, field
 from typing import Any
 
+from django.conf import settings
 from django.db import transaction
 from django.db.models import Prefetch
 from django.utils import timezone
@@ -51,7 +52,10 @@ from compliance.signing import (
     sign_seal,
 )
 
-FORMAT = "parapet.daily-record/2"
+FORMAT = "parapet.daily-record/3"
+"""/3 adds each entry's label (the checklist's words) and the time zone the pages print times in;
+records sealed as /2 keep their format, their pages and their checks."""
+RECORD_FORMATS = ("parapet.daily-record/2", FORMAT)
 ADDENDUM_MEANING = (
     "Addendum: corrects or adds to the referenced record; the original stands unchanged."
 )
@@ -63,8 +67,10 @@ MEANINGS = {
 }
 
 
-def _entry(entry: ItemEntry) -> dict[str, Any]:
+def _entry(entry: ItemEntry, labels: dict[str, str] | None) -> dict[str, Any]:
+    labelled = {} if labels is None else {"label": labels.get(entry.item_key, entry.item_key)}
     return {
+        **labelled,
         "item": entry.item_key,
         "kind": entry.kind,
         "blocking": entry.blocking,
@@ -97,12 +103,16 @@ def _certification(cert: AnchorCertification | None, day: dt.date) -> dict[str, 
     }
 
 
-def day_content(job: Job, *, certifications: dict[int, int | None] | None = None) -> dict[str, Any]:
+def day_content(
+    job: Job, *, certifications: dict[int, int | None] | None = None, fmt: str = FORMAT
+) -> dict[str, Any]:
     """Everything recorded for the job-day, from the database rows (no signature yet).
 
     `certifications` (anchor id to certification id) names the certification each anchor had
-    when the record was sealed; without it, the one in force now is taken.
+    when the record was sealed; without it, the one in force now is taken. `fmt` is the record
+    format to build: a /2 record is rebuilt as /2 to be compared with its seal.
     """
+    labelled = fmt != "parapet.daily-record/2"
     site, profile = job.site, job.site.profile
     drops = drops_of(job)
     sheets = list(
@@ -218,7 +228,15 @@ def day_content(job: Job, *, certifications: dict[int, int | None] | None = None
                 "verdict": s.verdict,
                 "blocking_failures": s.blocking_failures,
                 "remarks": s.remarks,
-                "entries": [_entry(e) for e in s.entries.all()],
+                "entries": [
+                    _entry(
+                        e,
+                        {i["key"]: str(i.get("label", i["key"])) for i in s.version.items}
+                        if labelled
+                        else None,
+                    )
+                    for e in s.entries.all()
+                ],
             }
             for s in sheets
         ],
@@ -271,6 +289,7 @@ def day_content(job: Job, *, certifications: dict[int, int | None] | None = None
         "weather": weather,
         "clock_notes": clock_notes(sheets, logs),
         "units": "SI: lengths m, forces kN or N, pressures kPa, speeds m/s, masses kg, times UTC",
+        **({"time_zone": settings.TIME_ZONE} if labelled else {}),
     }
 
 
@@ -389,7 +408,7 @@ def sign_daily_record(
             close_job(job=job, by=by, reason="Signed off at day's end with the hold open.")
             job.refresh_from_db()
         _keep_profile_revision(job.site.profile)
-        content = day_content(job)
+        content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(
                 "This record has open holds; sign it as stopped or with exceptions."
@@ -647,9 +666,10 @@ def sealed_column_problems(record: DailyRecord) -> list[str]:
         if record.kind == DailyRecord.Kind.RECORD
         else (doc.get("amends") or {}).get("job")
     )
-    expected_format = FORMAT if record.kind == DailyRecord.Kind.RECORD else ADDENDUM_FORMAT
+    sealed_format = doc.get("format")
+    formats = RECORD_FORMATS if record.kind == DailyRecord.Kind.RECORD else (ADDENDUM_FORMAT,)
     pairs = {
-        "kind": (doc.get("format"), expected_format),
+        "kind": (sealed_format in formats, True),
         "organisation": ((doc.get("organisation") or {}).get("id"), record.organisation_id),
         "site": ((doc.get("site") or {}).get("id"), record.site_id),
         "job": (job_id, record.job_id),
@@ -668,8 +688,9 @@ def sealed_column_problems(record: DailyRecord) -> list[str]:
     return [name for name, (sealed, stored) in pairs.items() if sealed != stored]
 
 
-REGISTER_SNAPSHOT = ("site", "profile", "people", "equipment")
-"""Parts of a record that copy mutable registers as they stood; later edits are routine."""
+REGISTER_SNAPSHOT = ("site", "profile", "people", "equipment", "time_zone")
+"""Parts of a record that copy mutable registers (and the zone its pages print times in) as
+they stood; later edits are routine."""
 
 
 def _safety_view(content: dict[str, Any]) -> dict[str, Any]:
@@ -701,11 +722,16 @@ def verify_against_database(record: DailyRecord) -> list[str]:
     """
     if record.kind != DailyRecord.Kind.RECORD:
         return []
-    sealed = json.loads(record.canonical_json)["record"]
+    document = json.loads(record.canonical_json)
+    sealed = document["record"]
     certifications = {
         a["id"]: (a.get("certification") or {}).get("id") for a in sealed.get("anchors") or []
     }
-    live = json.loads(canonical_bytes(day_content(record.job, certifications=certifications)))
+    live = json.loads(
+        canonical_bytes(
+            day_content(record.job, certifications=certifications, fmt=document.get("format"))
+        )
+    )
     problems = _differences(_safety_view(sealed), _safety_view(live), "record")
     profile = sealed.get("profile") or {}
     if not _profile_stored(profile):

@@ -7,15 +7,18 @@ randomness), and where a photo sits depends only on its sealed size, so a render
 photo bytes lays out every page the same way.
 """
 
+import datetime as dt
 import io
 import json
 import math
 import re
 from collections.abc import Mapping
+from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
 from xml.sax.saxutils import escape
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import reportlab
 import rfc8785
@@ -330,6 +333,56 @@ class _PhotoBox(Flowable):
         self.canv.rect(x, y, w, h)
 
 
+FIRST_LAYOUT = "parapet.daily-record/2"
+"""Records sealed in this format keep the pages they were signed with (item keys, UTC times
+as stored), so that the verifier, which draws a record again to compare its pages, still
+finds them equal. Later formats get the readable layout."""
+
+
+@dataclass(frozen=True)
+class _Look:
+    """How a record's pages print what the document holds, chosen by the document's format."""
+
+    readable: bool
+    zone: ZoneInfo | None
+
+    @classmethod
+    def of(cls, document: dict[str, Any]) -> "_Look":
+        record = document.get("record") or {}
+        if document.get("format") == FIRST_LAYOUT or not record:
+            return cls(readable=False, zone=None)
+        try:
+            zone = ZoneInfo(str(record.get("time_zone") or "UTC"))
+        except (ZoneInfoNotFoundError, ValueError):
+            zone = ZoneInfo("UTC")
+        return cls(readable=True, zone=zone)
+
+    @property
+    def zone_name(self) -> str:
+        return str(self.zone) if self.zone is not None else "UTC"
+
+    def when(self, stamp: Any) -> str:
+        """A stored UTC time in the site's zone to the second (the first layout: as stored)."""
+        if not self.readable or not isinstance(stamp, str):
+            return str(stamp) if stamp is not None else ""
+        try:
+            moment = dt.datetime.fromisoformat(stamp.replace("Z", "+00:00"))
+        except ValueError:
+            return stamp
+        if moment.tzinfo is None:
+            moment = moment.replace(tzinfo=dt.UTC)
+        return moment.astimezone(self.zone).strftime("%Y-%m-%d %H:%M:%S")
+
+    def zone_heading(self, word: str) -> str:
+        return f"{word} ({self.zone_name})" if self.readable else f"{word} (UTC)"
+
+    def item(self, entry: dict[str, Any]) -> str:
+        """An entry's item in the checklist's words (the first layout: its key)."""
+        if self.readable and isinstance(entry.get("label"), str) and entry["label"].strip():
+            return str(entry["label"])
+        return str(entry.get("item", ""))
+
+
 def render(document: dict[str, Any], seal: str, photos: Mapping[str, bytes] | None = None) -> bytes:
     """Draw the record; attach its canonical JSON; return unsigned PDF bytes.
 
@@ -339,23 +392,26 @@ def render(document: dict[str, Any], seal: str, photos: Mapping[str, bytes] | No
     s = _styles()
     photos = photos or {}
     record = document.get("record")
+    look = _Look.of(document)
     story: list[Any] = []
     sig = document["signature"]
     if record is None:
         story += _addendum_story(document, s)
     else:
-        story += _cover(document, record, seal, s)
-        story += _failures(record, s)
-        story += _sheets(record, s, photos)
-        story += _log(record, s)
+        story += _cover(document, record, seal, s, look)
+        if look.readable:
+            story += _drop_plan(record, s)
+        story += _failures(record, s, look)
+        story += _sheets(record, s, photos, look)
+        story += _log(record, s, look)
+    signed_at = (
+        f"{look.when(sig['signed_at'])} {look.zone_name}" if look.readable else sig["signed_at"]
+    )
     story += [
         Spacer(1, 6 * mm),
         _p(SEAL_LABEL, s["h3"]),
         _p(seal, s["mono"]),
-        _p(
-            f"Signed by {sig['name']} ({sig['role']}) at {sig['signed_at']}: {sig['meaning']}",
-            s["small"],
-        ),
+        _p(f"Signed by {sig['name']} ({sig['role']}) at {signed_at}: {sig['meaning']}", s["small"]),
     ]
     buffer = io.BytesIO()
     doc = SimpleDocTemplate(
@@ -392,7 +448,11 @@ def _attach(pdf: bytes, document: dict[str, Any]) -> bytes:
 
 
 def _cover(
-    document: dict[str, Any], record: dict[str, Any], seal: str, s: dict[str, ParagraphStyle]
+    document: dict[str, Any],
+    record: dict[str, Any],
+    seal: str,
+    s: dict[str, ParagraphStyle],
+    look: _Look,
 ) -> list[Any]:
     site, job, sig = record["site"], record["job"], document["signature"]
     sheets = record["sheets"]
@@ -415,7 +475,11 @@ def _cover(
     signature = [
         ["Signed by", f"{sig['name']} — {sig['role']}"],
         ["Meaning", sig["meaning"]],
-        ["Signed at (UTC)", sig["signed_at"]],
+        (
+            ["Signed at", f"{look.when(sig['signed_at'])} ({look.zone_name})"]
+            if look.readable
+            else ["Signed at (UTC)", sig["signed_at"]]
+        ),
         ["How", sig["method"]],
         ["Certificate", f"SHA-256 {sig['certificate_sha256']}"],
     ]
@@ -457,10 +521,46 @@ def _cover(
     return story
 
 
-def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]:
-    story: list[Any] = [PageBreak(), _p("Holds and failed items", s["h2"])]
+def _subjects(record: dict[str, Any]) -> dict[str, str]:
+    """What a reference such as "anchor:12" names, in words: "anchor R1", "robot RB-2"."""
+    subjects = {f"anchor:{a['id']}": f"anchor {a['label']}" for a in record["anchors"]}
+    subjects |= {
+        f"equipment:{e['id']}": f"{e['kind'].replace('_', ' ')} {e['label']}"
+        for e in record["equipment"]
+    }
+    return subjects
+
+
+def _concerns(hold: dict[str, Any], subjects: dict[str, str]) -> str:
+    _, _, ref = str(hold.get("requirement") or "").partition("@")
+    return subjects.get(ref, "the site" if ref == "site" else ref or "the job")
+
+
+def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> list[Any]:
+    heading = _p("Holds and failed items", s["h2"])
+    story: list[Any] = [PageBreak()]
     holds = sorted(record["holds"], key=lambda h: h["cleared_at"] is not None)
-    if holds:
+    highlight = [i + 1 for i, h in enumerate(holds) if h["cleared_at"] is None]
+    if holds and look.readable:
+        subjects = _subjects(record)
+        rows = [
+            [look.zone_heading("Opened"), "Concerns", "Reason", "Cleared", "By sheet"],
+            *[
+                [
+                    _p(look.when(h["opened_at"]), s["small"]),
+                    _p(_concerns(h, subjects), s["small"]),
+                    _p(h["reason"], s["small"]),
+                    _p(look.when(h["cleared_at"]) if h["cleared_at"] else "OPEN", s["small"]),
+                    _p(f"#{h['cleared_by_sheet']}" if h["cleared_by_sheet"] else "—", s["small"]),
+                ]
+                for h in holds
+            ],
+        ]
+        widths = [28 * mm, 28 * mm, 78 * mm, 28 * mm, 18 * mm]
+        # The heading stays with its table; a table longer than a page still splits.
+        story.append(KeepTogether([heading, _table(rows, widths, highlight=highlight)]))
+    elif holds:
+        story.append(heading)
         rows = [["Opened (UTC)", "Reason", "Cleared (UTC)", "By sheet"]]
         rows += [
             [
@@ -471,15 +571,9 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]
             ]
             for h in holds
         ]
-        story.append(
-            _table(
-                rows,
-                [32 * mm, 98 * mm, 32 * mm, 18 * mm],
-                highlight=[i + 1 for i, h in enumerate(holds) if h["cleared_at"] is None],
-            )
-        )
+        story.append(_table(rows, [32 * mm, 98 * mm, 32 * mm, 18 * mm], highlight=highlight))
     else:
-        story.append(_p("No holds this day.", s["body"]))
+        story += [heading, _p("No holds this day.", s["body"])]
     for note in record.get("clock_notes", []):
         story += _paras(f"Clock: {note}", s["small"])
     failed = [(sh, e) for sh in record["sheets"] for e in sh["entries"] if e["verdict"] == "fail"]
@@ -489,7 +583,7 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]
         rows += [
             [
                 _p(f"#{sh['id']} {sh['title']}", s["small"]),
-                _p(e["item"], s["small"]),
+                _p(look.item(e), s["small"]),
                 "yes" if e["blocking"] else "no",
                 _p(e["message"], s["small"]),
             ]
@@ -500,13 +594,12 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]
 
 
 def _sheets(
-    record: dict[str, Any], s: dict[str, ParagraphStyle], photos: Mapping[str, bytes]
+    record: dict[str, Any],
+    s: dict[str, ParagraphStyle],
+    photos: Mapping[str, bytes],
+    look: _Look,
 ) -> list[Any]:
-    subjects = {f"anchor:{a['id']}": f"anchor {a['label']}" for a in record["anchors"]}
-    subjects |= {
-        f"equipment:{e['id']}": f"{e['kind'].replace('_', ' ')} {e['label']}"
-        for e in record["equipment"]
-    }
+    subjects = _subjects(record)
     story: list[Any] = [PageBreak(), _p("Check sheets", s["h2"])]
     order = sorted(record["sheets"], key=lambda sh: (sh["verdict"] != "fail", sh["id"]))
     for sheet in order:
@@ -518,7 +611,7 @@ def _sheets(
         head = _p(
             f"#{sheet['id']} {sheet['title']} v{sheet['version']} — {subjects.get(ref, 'site')} — "
             f"{sheet['verdict'].upper()} — by {sheet['filled_by']}, "
-            f"received {sheet['received_at']}",
+            f"received {look.when(sheet['received_at'])}",
             s["h3"],
         )
         entries = sorted(
@@ -534,20 +627,20 @@ def _sheets(
             shown = _fmt(value) + unit
             if samples is not None:
                 shown = _series_summary(samples, e["unit"] or "") + " (plotted and listed below)"
-                series += _series_block(e, samples, sheet["entries"], s)
+                series += _series_block(e, samples, sheet["entries"], s, look)
             margin = (
                 "—"
                 if e["margin"] is None
                 else whole_pct(e["margin"], passed=e["verdict"] != "fail")
             )
-            label = e["item"] + (" (blocking)" if e["blocking"] else "")
+            label = look.item(e) + (" (blocking)" if e["blocking"] else "")
             reason = (e.get("working") or {}).get("reason") if e["kind"] == "calc" else None
             if e["verdict"] == "fail" and isinstance(reason, str) and reason.strip():
                 label += "\n" + reason.strip()  # why it failed, in the calculation's words
             rows.append([_p(label, s["small"]), _p(shown, s["small"]), e["verdict"], margin])
             steps = (e.get("working") or {}).get("steps")
             if steps:
-                working += [_p(f"{e['item']}: working", s["small"])]
+                working += [_p(f"{look.item(e)}: working", s["small"])]
                 working += [p for step in steps for p in _paras("  " + str(step), s["mono"])]
         highlight = [i + 1 for i, e in enumerate(entries) if e["verdict"] == "fail"]
         table = _table(rows, [60 * mm, 80 * mm, 20 * mm, 20 * mm], highlight=highlight)
@@ -566,6 +659,61 @@ def _sheets(
     return story
 
 
+def _drop_plan(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]:
+    """Which robot, anchors, lines and hose each drop hung from, with the anchors' certificates
+    and the equipment's next inspection as the record holds them."""
+    anchors = {a["id"]: a for a in record["anchors"]}
+    kit = {e["id"]: e for e in record["equipment"]}
+
+    def anchor_line(anchor_id: Any) -> str:
+        anchor = anchors.get(anchor_id) or {}
+        cert = anchor.get("certification")
+        if not cert:
+            return f"{anchor.get('label', anchor_id)}: no certificate on record"
+        return (
+            f"{anchor.get('label', anchor_id)}: rated {_fmt(cert['rated_capacity_kn'])} kN,"
+            f" certified {cert['certified_on']} by {cert['certifier']},"
+            f" valid until {cert['valid_until']}"
+            + ("" if cert.get("valid_on_day", True) else " (NOT valid on the day)")
+        )
+
+    def kit_line(item_id: Any) -> str:
+        item = kit.get(item_id) or {}
+        serial = f" (serial {item['serial']})" if item.get("serial") else ""
+        due = item.get("next_inspection_due")
+        return f"{item.get('label', item_id)}{serial}, next inspection " + (
+            str(due) if due else "not recorded"
+        )
+
+    story: list[Any] = [PageBreak(), _p("Drop plan", s["h2"])]
+    if not record["drops"]:
+        return [*story, _p("No drops were planned.", s["body"])]
+    for drop in record["drops"]:
+        rows = [
+            ["Length worked", f"{_fmt(drop['length_m'])} m"],
+            ["Robot", kit_line(drop["robot"])],
+            ["Anchor", anchor_line(drop["anchor"])],
+            ["Safety anchor", anchor_line(drop["safety_anchor"])],
+            ["Tether", kit_line(drop["tether"])],
+            ["Safety line", kit_line(drop["safety_line"])],
+            ["Hose", kit_line(drop["hose"])],
+        ]
+        story.append(
+            KeepTogether(
+                [
+                    _p(f"Drop {drop['label']}", s["h3"]),
+                    _table(
+                        [[_p(k, s["small"]), _p(v, s["small"])] for k, v in rows],
+                        [35 * mm, 145 * mm],
+                        header=False,
+                    ),
+                    Spacer(1, 2 * mm),
+                ]
+            )
+        )
+    return story
+
+
 def _reading(value: float) -> str:
     return f"{value:.7g}"
 
@@ -580,7 +728,9 @@ def _series_summary(samples: list[tuple[float, float]], unit: str) -> str:
     )
 
 
-def _series_limits(entry: dict[str, Any], entries: list[dict[str, Any]]) -> list[tuple[str, float]]:
+def _series_limits(
+    entry: dict[str, Any], entries: list[dict[str, Any]], look: _Look
+) -> list[tuple[str, float]]:
     """The limit lines a series is drawn with: its own limits, if its working names any, and
     the hold limit of a vacuum-decay calculation worked from these very readings."""
     found: list[tuple[str, float]] = []
@@ -600,7 +750,7 @@ def _series_limits(entry: dict[str, Any], entries: list[dict[str, Any]]) -> list
             and _is_number(inputs.get("min_vacuum_kpa"))
         ):
             value = float(inputs["min_vacuum_kpa"])
-            found.append((f"hold limit {_reading(value)} kPa ({other['item']})", value))
+            found.append((f"hold limit {_reading(value)} kPa ({look.item(other)})", value))
     return found
 
 
@@ -736,14 +886,15 @@ def _series_block(
     samples: list[tuple[float, float]],
     entries: list[dict[str, Any]],
     s: dict[str, ParagraphStyle],
+    look: _Look,
 ) -> list[Any]:
     unit = entry.get("unit") or ""
-    limits = _series_limits(entry, entries)
+    limits = _series_limits(entry, entries, look)
     return [
         Spacer(1, 2 * mm),
         KeepTogether(
             [
-                _p(f"{entry['item']}: {_series_summary(samples, unit)}", s["small"]),
+                _p(f"{look.item(entry)}: {_series_summary(samples, unit)}", s["small"]),
                 _series_plot(samples, unit, limits),
             ]
         ),
@@ -769,12 +920,12 @@ def _photo_grid(
     return table
 
 
-def _log(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]:
+def _log(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> list[Any]:
     story: list[Any] = [_p("Job log", s["h2"])]
-    rows = [["At (UTC)", "From", "To", "By", "Why"]]
+    rows = [[look.zone_heading("At"), "From", "To", "By", "Why"]]
     rows += [
         [
-            _p(t["at"], s["small"]),
+            _p(look.when(t["at"]), s["small"]),
             t["from"],
             t["to"],
             _p(t["by"] or "system", s["small"]),
@@ -785,9 +936,14 @@ def _log(record: dict[str, Any], s: dict[str, ParagraphStyle]) -> list[Any]:
     story.append(_table(rows, [32 * mm, 17 * mm, 17 * mm, 30 * mm, 84 * mm]))
     if record["drops_done"]:
         story.append(_p("Drops done", s["h3"]))
-        rows = [["Drop", "By", "Logged (UTC)", "Note"]]
+        rows = [["Drop", "By", look.zone_heading("Logged"), "Note"]]
         rows += [
-            [d["drop"], d["by"], _p(d["received_at"], s["small"]), _p(d["note"], s["small"])]
+            [
+                d["drop"],
+                d["by"],
+                _p(look.when(d["received_at"]), s["small"]),
+                _p(d["note"], s["small"]),
+            ]
             for d in record["drops_done"]
         ]
         story.append(_table(rows, [30 * mm, 35 * mm, 35 * mm, 80 * mm]))

@@ -321,6 +321,7 @@ def _renderer(document: dict[str, Any]) -> Renderer | None:
 LOG_BOOK_FORMAT = "parapet.anchor-log-book/1"
 RECORD_FORMATS = {
     "parapet.daily-record/2",
+    "parapet.daily-record/3",
     "parapet.daily-record-addendum/2",
 }
 

@@ -1,0 +1,128 @@
+"""The record a person reads: the checklist's words, times in the site's zone to the second,
+holds that name what they concern, a drop plan with certificate and inspection dates. Records
+sealed in the first format keep the pages they were signed with, and still verify."""
+
+import re
+import subprocess
+from pathlib import Path
+
+import pytest
+from django.conf import settings as django_settings
+
+from compliance import daily_records
+from compliance.daily_records import sign_daily_record
+from compliance.models import Hold
+from compliance.record_files import render_signed_pdf
+from compliance.verification import verify_pdf
+from tests.conftest import fill_all
+from tests.factories import PASSWORD
+
+pytestmark = pytest.mark.django_db
+
+SCREENSHOTS = Path(django_settings.BASE_DIR) / "docs" / "screenshots"
+
+
+def text_of(pdf: bytes) -> str:
+    """The text as poppler's pdftotext reads it, pages in order (what a person sees)."""
+    done = subprocess.run(
+        ["pdftotext", "-layout", "-", "-"], input=pdf, capture_output=True, check=True
+    )
+    return done.stdout.decode("utf-8")
+
+
+@pytest.fixture
+def held_day(job, simple_checklists, operator, supervisor, credential, settings, tmp_path):
+    """A day with a failed blocking anchor item (a hold on the anchor), signed as stopped."""
+    settings.MEDIA_ROOT = tmp_path
+    settings.TIME_ZONE = "Europe/Helsinki"
+    fill_all(job, simple_checklists, operator, overrides={"anchor": {"sound": {"value": "fail"}}})
+    return job
+
+
+def test_a_record_reads_in_the_checklist_s_words_and_the_site_s_time(held_day, supervisor):
+    record = sign_daily_record(
+        job=held_day, by=supervisor, password=PASSWORD, meaning="reviewed_stopped"
+    )
+    pdf = render_signed_pdf(record)
+    text = text_of(pdf)
+    labels = {
+        entry["item"]: entry["label"]
+        for sheet in daily_records.json.loads(record.canonical_json)["record"]["sheets"]
+        for entry in sheet["entries"]
+    }
+    # The test checklists label "tag_capacity" as "tag capacity": the page shows the label.
+    assert labels["tag_capacity"] == "tag capacity"
+    for key, label in labels.items():
+        assert label in text, label
+        assert "_" not in key or key not in text, key
+    drop = held_day.drops.get()
+    # Times to the second in the site's zone, and no microseconds anywhere.
+    from zoneinfo import ZoneInfo
+
+    local = record.signed_at.astimezone(ZoneInfo("Europe/Helsinki"))
+    assert f"{local:%Y-%m-%d %H:%M:%S} (Europe/Helsinki)" in text
+    assert not re.search(r"\d{2}:\d{2}:\d{2}\.\d+", text)
+    # The hold names the anchor it concerns.
+    holds = Hold.objects.filter(job=held_day).order_by("id")
+    assert [h.requirement.partition("@")[2] for h in holds] == [
+        f"anchor:{a.pk}" for a in sorted((drop.anchor, drop.safety_anchor), key=lambda a: a.pk)
+    ]
+    concerns = text[text.index("Holds and failed items") :]
+    for anchor in (drop.anchor, drop.safety_anchor):
+        assert f"anchor {anchor.label}" in concerns
+    # The drop plan: anchors' certificates and the equipment's inspection dates.
+    cert = drop.anchor.current_certification()
+    assert "Drop plan" in text and f"Drop {drop.label}" in text
+    assert f"valid until {cert.valid_until:%Y-%m-%d}" in text
+    assert drop.robot.label in text
+    assert verify_pdf(pdf).ok
+
+
+def test_a_record_sealed_in_the_first_format_keeps_its_pages_and_verifies(
+    job, simple_checklists, operator, supervisor, credential, settings, tmp_path, monkeypatch
+):
+    settings.MEDIA_ROOT = tmp_path
+    fill_all(job, simple_checklists, operator)
+    from compliance.services import close_job, start_job
+
+    start_job(job=job, by=operator)
+    close_job(job=job, by=operator)
+    monkeypatch.setattr(daily_records, "FORMAT", "parapet.daily-record/2")
+    record = sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    document = daily_records.json.loads(record.canonical_json)
+    assert document["format"] == "parapet.daily-record/2"
+    assert "time_zone" not in document["record"]
+    assert all("label" not in e for s in document["record"]["sheets"] for e in s["entries"])
+    monkeypatch.undo()
+    pdf = render_signed_pdf(record)
+    text = text_of(pdf)
+    assert "Drop plan" not in text and "Signed at (UTC)" in text
+    report = verify_pdf(pdf)
+    assert report.ok, report.lines()
+    assert daily_records.verify_against_database(record) == []
+
+
+def test_the_demo_s_record_is_drawn_to_images_a_person_can_look_at(db, settings, tmp_path):
+    """The demo's signed day, first three pages as PNG: kept in docs/screenshots/."""
+    from compliance.demo import load_demo
+    from compliance.models import DailyRecord
+
+    settings.MEDIA_ROOT = tmp_path
+    org = load_demo()
+    record = (
+        DailyRecord.objects.filter(organisation=org, kind="record").order_by("-sequence").first()
+    )
+    pdf = render_signed_pdf(record)
+    assert "Drop plan" in text_of(pdf)
+    out = tmp_path / "page"
+    subprocess.run(
+        ["pdftoppm", "-png", "-r", "60", "-f", "1", "-l", "3", "-", str(out)],
+        input=pdf,
+        check=True,
+    )
+    pages = sorted(tmp_path.glob("page-*.png"))
+    assert len(pages) == 3
+    SCREENSHOTS.mkdir(parents=True, exist_ok=True)
+    for n, page in enumerate(pages, start=1):
+        assert page.stat().st_size > 5000  # drawn, not blank
+        (SCREENSHOTS / f"record-page-{n}.png").write_bytes(page.read_bytes())
