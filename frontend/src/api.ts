@@ -59,13 +59,14 @@ function csrfToken(): string {
 }
 
 interface Options {
-  method?: "GET" | "POST";
+  method?: "GET" | "POST" | "PATCH";
   json?: unknown;
   form?: FormData;
   timeoutMs?: number;
 }
 
-async function request<T>(path: string, opts: Options = {}): Promise<T> {
+/** One call to the API; the desk screens (desk/api.ts) use it too. */
+export async function request<T>(path: string, opts: Options = {}): Promise<T> {
   const method = opts.method ?? "GET";
   const headers: Record<string, string> = { Accept: "application/json" };
   let body: BodyInit | undefined;

@@ -8,7 +8,7 @@ import { prepareDay, refreshCounts, startSyncLoop } from "./sync";
 import type { User } from "./types";
 import { Cautions } from "./ui/Cautions";
 import { Strip } from "./ui/common";
-import { go, useRoute, useStatus } from "./ui/hooks";
+import { go, useRoute, useStatus, type Route } from "./ui/hooks";
 import { JobScreen } from "./ui/Job";
 import { Jobs } from "./ui/Jobs";
 import { Outbox } from "./ui/Outbox";
@@ -16,6 +16,19 @@ import { SheetScreen } from "./ui/Sheet";
 import { SignIn } from "./ui/SignIn";
 import { SignOff } from "./ui/SignOff";
 import "./styles.css";
+
+type DeskModule = typeof import("./desk/Desk");
+
+/** The desk side lives in its own chunk, fetched the first time a desk route opens. */
+function DeskLoader({ user, route }: { user: User; route: Extract<Route, { name: "desk" }> }) {
+  const [desk, setDesk] = useState<DeskModule | null>(null);
+  const [failed, setFailed] = useState(false);
+  useEffect(() => {
+    import("./desk/Desk").then(setDesk, () => setFailed(true));
+  }, []);
+  if (!desk) return <main class="screen"><p class="muted">{failed ? "No connection: the desk did not open." : "Opening…"}</p></main>;
+  return <desk.Desk user={user} route={route} />;
+}
 
 function App() {
   const route = useRoute();
@@ -70,6 +83,7 @@ function App() {
         if (!resumed) go({ name: "jobs" });
       }} />
     );
+  else if (route.name === "desk") return <DeskLoader user={user} route={route} />;
   else if (route.name === "job") screen = <JobScreen id={route.id} user={user} />;
   else if (route.name === "sign") screen = <SignOff id={route.id} user={user} />;
   else if (route.name === "sheet") screen = <SheetScreen key={`${route.id}:${route.requirement}`} id={route.id} requirement={route.requirement} />;

@@ -1,4 +1,7 @@
 import type { ComponentChildren } from "preact";
+import { useEffect, useState } from "preact/hooks";
+import { cacheGet } from "../storage";
+import type { User } from "../types";
 import { href, timeOf, useStatus } from "./hooks";
 import { Sign } from "./signs";
 
@@ -55,6 +58,15 @@ export function CautionLine({ job }: { job?: number }) {
   );
 }
 
+/** A plain link to the desk screens, for the people who plan and keep the registers. */
+function DeskLink() {
+  const [show, setShow] = useState(false);
+  useEffect(() => {
+    cacheGet<User>("me").then((me) => setShow(["supervisor", "admin", "property_manager"].includes(me?.value.role ?? "")), () => undefined);
+  }, []);
+  return show ? <a class="btn btn-back" href={href({ name: "desk", page: "jobs" })} data-testid="desk-link">Desk</a> : null;
+}
+
 export function Header({ title, back, sub }: { title: string; back?: string; sub?: ComponentChildren }) {
   return (
     <header class="head">
@@ -67,6 +79,7 @@ export function Header({ title, back, sub }: { title: string; back?: string; sub
         <h1>{title}</h1>
         {sub && <div class="head-sub">{sub}</div>}
       </div>
+      {!back && <DeskLink />}
     </header>
   );
 }

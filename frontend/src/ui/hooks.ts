@@ -20,7 +20,11 @@ export type Route =
   | { name: "sheet"; id: number; requirement: string }
   | { name: "cautions"; id: number }
   | { name: "sign"; id: number }
-  | { name: "outbox" };
+  | { name: "outbox" }
+  | { name: "desk"; page: DeskPage; id?: number };
+
+/** The desk side's screens (laptop or tablet), loaded apart from the phone's. */
+export type DeskPage = "jobs" | "plan" | "equipment";
 
 function parseRoute(hash: string): Route {
   const parts = hash.replace(/^#\/?/, "").split("/").filter(Boolean);
@@ -32,6 +36,11 @@ function parseRoute(hash: string): Route {
     return { name: "job", id };
   }
   if (parts[0] === "outbox") return { name: "outbox" };
+  if (parts[0] === "desk") {
+    const page: DeskPage = parts[1] === "plan" || parts[1] === "equipment" ? parts[1] : "jobs";
+    const deskId = Number(parts[2]);
+    return parts[2] && Number.isInteger(deskId) ? { name: "desk", page, id: deskId } : { name: "desk", page };
+  }
   return { name: "jobs" };
 }
 
@@ -49,6 +58,8 @@ export function href(route: Route): string {
       return `#/job/${route.id}/sign`;
     case "outbox":
       return "#/outbox";
+    case "desk":
+      return `#/desk/${route.page}${route.id === undefined ? "" : `/${route.id}`}`;
   }
 }
 

@@ -1,0 +1,78 @@
+/**
+ * The desk side (laptop or tablet): its own header, navigation and one main region per page.
+ * Loaded as a chunk of its own (main.tsx imports it on demand), so the phone's first load stays small.
+ */
+import type { User } from "../types";
+import { href, type DeskPage, type Route } from "../ui/hooks";
+import { DeskEquipment } from "./Equipment";
+import { DeskJobs } from "./Jobs";
+import { DeskPlan } from "./Plan";
+// The desk's styles travel inside its chunk and are added once it loads: a separate CSS file
+// would make the phone's first load carry Vite's preload helper for this one import.
+import deskCss from "./desk.css?inline";
+
+if (!document.getElementById("desk-css")) {
+  const style = document.createElement("style");
+  style.id = "desk-css";
+  style.textContent = deskCss;
+  document.head.append(style);
+}
+
+const PAGES: { page: DeskPage; name: string }[] = [
+  { page: "jobs", name: "Days and jobs" },
+  { page: "plan", name: "Plan a day" },
+  { page: "equipment", name: "Equipment register" },
+];
+
+const ROLE_WORDS: Record<string, string> = {
+  supervisor: "Supervisor",
+  admin: "Organisation admin",
+  property_manager: "Property manager",
+};
+
+export function Desk({ user, route }: { user: User; route: Extract<Route, { name: "desk" }> }) {
+  const role = ROLE_WORDS[user.role ?? ""];
+  const allowed = role !== undefined;
+  let screen;
+  if (!allowed) {
+    screen = (
+      <>
+        <h1>Desk</h1>
+        <p>The desk screens are for supervisors, organisation admins and property managers.</p>
+        <p><a class="btn" href={href({ name: "jobs" })}>Back to today's jobs</a></p>
+      </>
+    );
+  } else if (route.page === "plan") screen = <DeskPlan key={route.id ?? "new"} user={user} jobId={route.id} />;
+  else if (route.page === "equipment") screen = <DeskEquipment />;
+  else screen = <DeskJobs />;
+
+  return (
+    <div class="desk">
+      <header class="desk-head">
+        <span class="desk-brand">Parapet · desk</span>
+        <span class="desk-who" data-testid="desk-user">
+          {user.name || user.username}
+          {role ? `, ${role}` : ""}
+          {user.organisation ? ` · ${user.organisation}` : ""}
+        </span>
+        <a class="btn desk-phone-link" href={href({ name: "jobs" })}>Phone screens</a>
+      </header>
+      {allowed && (
+        <nav class="desk-nav" aria-label="Desk">
+          <ul>
+            {PAGES.map((p) => (
+              <li key={p.page}>
+                <a href={href({ name: "desk", page: p.page })} aria-current={route.page === p.page ? "page" : undefined}>
+                  {p.name}
+                </a>
+              </li>
+            ))}
+          </ul>
+        </nav>
+      )}
+      <main class="desk-main" data-testid={`desk-${allowed ? route.page : "refused"}`}>
+        {screen}
+      </main>
+    </div>
+  );
+}

@@ -1,0 +1,91 @@
+/**
+ * The desk side's calls to /api/v1/, typed from the server's schema. They go through the
+ * phone's one HTTP helper (session cookie, CSRF header, timeouts); nothing here is queued:
+ * a desk change needs the server at that moment and is shown as it answered.
+ */
+import { ApiError, request } from "../api";
+import type { components } from "../api-schema";
+import type { Anchor, DailyRecord, Equipment, JobDetail, JobSummary, Page, Site } from "../types";
+
+type Schemas = components["schemas"];
+
+export type EquipmentKind = Schemas["EquipmentKind"];
+export type RatingField = Schemas["RatingField"];
+export type Conflict = Schemas["Conflict"];
+export type DropInput = Schemas["DropRequest"];
+type JobInput = Schemas["JobRequest"];
+export type EquipmentInput = Omit<Schemas["EquipmentRequest"], "ratings"> & { ratings: Record<string, unknown> };
+type EquipmentChange = Schemas["PatchedEquipmentChangeInputRequest"];
+export type PlanChoice = Schemas["PlanCheckInputRequest"];
+export type Drop = JobDetail["drops"][number];
+
+const PAGE = 200;
+
+/** Every page of a list (limit/offset), for the few hundred rows a desk screen shows. */
+async function all<T>(path: string): Promise<T[]> {
+  const rows: T[] = [];
+  const join = path.includes("?") ? "&" : "?";
+  for (let offset = 0; ; offset += PAGE) {
+    const page = await request<Page<T>>(`${path}${join}limit=${PAGE}&offset=${offset}`);
+    rows.push(...page.results);
+    if (page.results.length < PAGE || (page.count !== undefined && rows.length >= page.count)) return rows;
+  }
+}
+
+export const desk = {
+  jobs: () => all<JobSummary>("jobs/"),
+  job: (id: number) => request<JobDetail>(`jobs/${id}/`),
+  createJob: (data: JobInput) => request<JobDetail>("jobs/", { method: "POST", json: data }),
+  planCheck: (job: number, chosen: PlanChoice) =>
+    request<Schemas["PlanCheck"]>(`jobs/${job}/plan-check/`, { method: "POST", json: chosen }),
+  addDrop: (job: number, data: Partial<DropInput>) =>
+    request<Drop>(`jobs/${job}/drops/`, { method: "POST", json: data }),
+  /** Signed records from a day on (kind "record"; addenda amend them). */
+  records: (start: string) => all<DailyRecord>(`records/?start=${encodeURIComponent(start)}`),
+  sites: () => all<Site>("sites/"),
+  anchors: (site: number) => all<Anchor>(`anchors/?site=${site}`),
+  equipment: (kind?: string) => all<Equipment>(kind ? `equipment/?kind=${encodeURIComponent(kind)}` : "equipment/"),
+  /** The kinds and their ratings field by field (a plain list; the schema calls it paginated). */
+  kinds: async () => {
+    const answer = await request<EquipmentKind[] | Page<EquipmentKind>>("equipment/kinds/");
+    return Array.isArray(answer) ? answer : answer.results;
+  },
+  addEquipment: (data: EquipmentInput) => request<Equipment>("equipment/", { method: "POST", json: data }),
+  changeEquipment: (id: number, change: EquipmentChange) =>
+    request<Equipment>(`equipment/${id}/`, { method: "PATCH", json: change }),
+};
+
+/**
+ * A 400's body as messages per field, keys joined with dots ("ratings.mass_kg"); messages for
+ * no field (non_field_errors, detail) under "". Anything else (offline, 5xx) is one line under "".
+ */
+export function fieldErrors(error: unknown): Record<string, string[]> {
+  if (!(error instanceof ApiError)) {
+    return { "": [error instanceof Error ? error.message : "Something went wrong; try again."] };
+  }
+  const out: Record<string, string[]> = {};
+  const add = (key: string, message: string) => (out[key] ??= []).push(message);
+  const walk = (value: unknown, key: string) => {
+    if (value === null || value === undefined) return;
+    if (typeof value === "string") add(key, value);
+    else if (Array.isArray(value)) value.forEach((v) => walk(v, key));
+    else if (typeof value === "object") {
+      for (const [k, v] of Object.entries(value as Record<string, unknown>)) {
+        if (k === "code") continue;
+        const field = k === "non_field_errors" || k === "detail" ? key : key ? `${key}.${k}` : k;
+        walk(v, field);
+      }
+    } else add(key, String(value));
+  };
+  walk(error.body, "");
+  if (!Object.keys(out).length) add("", error.message);
+  return out;
+}
+
+/** Today on this computer's calendar, and a day some days from it, as YYYY-MM-DD. */
+export function dayFrom(offsetDays = 0): string {
+  const d = new Date();
+  d.setDate(d.getDate() + offsetDays);
+  const pad = (n: number) => String(n).padStart(2, "0");
+  return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}`;
+}
