@@ -244,7 +244,7 @@ def test_a_wrong_phone_clock_is_stated_in_the_record(
 
 
 def test_a_day_signed_on_a_thread_of_a_threaded_server_gets_its_pdf(
-    transactional_db, closed_job, supervisor
+    transactional_db, closed_job, supervisor, request
 ):
     """A threaded server signs in a thread of its own. The render used to be looked up on
     Celery's current app, which is per thread: on any thread but the one that made the app it
@@ -252,6 +252,13 @@ def test_a_day_signed_on_a_thread_of_a_threaded_server_gets_its_pdf(
     from concurrent.futures import ThreadPoolExecutor
 
     from django.db import connection as thread_connection
+
+    from compliance.celery import app
+
+    # In-process, as the demo runs tasks; with a broker the message would wait for a worker.
+    eager = app.conf.task_always_eager
+    app.conf.task_always_eager = True
+    request.addfinalizer(lambda: setattr(app.conf, "task_always_eager", eager))
 
     def sign() -> int:
         try:
