@@ -222,6 +222,12 @@ class AnchorCertification(AppendOnlyModel):
             ),
         ]
 
+    def __str__(self) -> str:
+        return (
+            f"Anchor {self.anchor.label} certified {self.certified_on:%Y-%m-%d}, "
+            f"valid until {self.valid_until:%Y-%m-%d}"
+        )
+
     def is_valid_on(self, day: dt.date) -> bool:
         return self.certified_on <= day <= self.valid_until
 

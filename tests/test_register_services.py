@@ -290,3 +290,17 @@ def test_each_kind_s_rating_form_follows_the_rules_that_decide(keeper):
                 short = {k: v for k, v in filled.items() if k != f["key"]}
                 with pytest.raises(ValidationError):
                     validate_ratings(kind, short)
+
+
+def test_the_admin_names_a_certification_by_its_anchor_and_dates(keeper):
+    site = SiteFactory(organisation=keeper.organisation)
+    anchor = services.add_anchor(site=site, by=keeper, label="W4")
+    cert = services.record_certification(
+        anchor=anchor,
+        by=keeper,
+        certifier="A. Tester",
+        rated_capacity_kn=15.0,
+        certified_on=dt.date(2026, 6, 1),
+        valid_until=dt.date(2027, 6, 1),
+    )
+    assert str(cert) == "Anchor W4 certified 2026-06-01, valid until 2027-06-01"
