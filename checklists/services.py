@@ -21,6 +21,7 @@ from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import (
     Anchor,
+    Drop,
     Equipment,
     Job,
     JobState,
@@ -344,11 +345,14 @@ def record_sheet(
     remarks: str = "",
     phone_clock_offset_s: int | None = None,
     defer_readiness: bool = False,
+    drops: list[Drop] | None = None,
 ) -> tuple[CheckSheet, bool]:
     """Record a filled sheet exactly once per client uuid; return (sheet, created).
 
     Invalid input raises ValidationError keyed by field and stores nothing.
     ``phone_clock_offset_s`` is the phone's clock minus the server's when its batch was sent.
+    ``drops`` are the job's drops with their anchors and equipment, when the caller (a sync
+    batch of many sheets for one job) has already read them.
     """
     if not by.can_write:
         raise NotPermitted("Auditors have read-only access.")
@@ -368,7 +372,7 @@ def record_sheet(
     if job.state == JobState.CLOSED:
         raise InvalidTransition("This job is closed; its sheets can no longer change.")
     subject_kind = _subject_for(job, version, anchor, equipment)
-    drops = drops_of(job)
+    drops = drops_of(job) if drops is None else drops
     if not isinstance(entries, dict):
         raise ValidationError({"entries": "Entries are an object keyed by item key."})
     try:

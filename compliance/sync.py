@@ -22,6 +22,7 @@ from compliance import services
 from compliance.access import anchors_visible_to
 from compliance.errors import DomainError, rejection_for
 from compliance.models import Anchor, Drop, Equipment, Job, SyncReceipt, User
+from compliance.selectors import drops_of
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
 MAX_BATCH = 200
@@ -41,6 +42,16 @@ class Batch:
     phone_clock_offset_s: int | None = None
     pending_readiness: set[int] = field(default_factory=set)
     known: dict[tuple[str, int], Any] = field(default_factory=dict)
+    drops: dict[int, list[Drop]] = field(default_factory=dict)
+    receipts: dict[uuid.UUID, SyncReceipt] = field(default_factory=dict)
+    receipts_loaded: bool = False
+
+    def drops_of(self, job: Job) -> list[Drop]:
+        """A job's drops with their anchors and equipment, read once per batch: a batch
+        records sheets and actions but never adds a drop."""
+        if job.pk not in self.drops:
+            self.drops[job.pk] = drops_of(job)
+        return self.drops[job.pk]
 
     def lookup(self, model: Any, queryset: Any, pk: Any, name: str) -> Any:
         """_get, remembered for the batch: versions, anchors and equipment do not change in it."""
@@ -178,6 +189,7 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
         equipment=equipment,
         device_time=_device_time(data),
         remarks=remarks,
+        drops=batch.drops_of(job),
         phone_clock_offset_s=batch.phone_clock_offset_s,
         defer_readiness=True,
     )
@@ -235,6 +247,19 @@ def _apply_job_action(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID
     return {"job": job.pk, "state": job.state}
 
 
+def _uuids(records: list[Any]) -> list[uuid.UUID]:
+    """The well-formed client uuids of a batch (the others are refused record by record)."""
+    found = []
+    for record in records:
+        raw = record.get("client_uuid") if isinstance(record, dict) else None
+        if isinstance(raw, str | int) and not isinstance(raw, bool):
+            try:
+                found.append(uuid.UUID(str(raw)))
+            except ValueError:
+                continue
+    return found
+
+
 APPLY = {"sheet": _apply_sheet, "drop_log": _apply_drop_log, "job_action": _apply_job_action}
 
 
@@ -249,6 +274,12 @@ def apply_batch(
     """
     offset = None if sent_at is None else round((sent_at - timezone.now()).total_seconds())
     batch = Batch(user=user, phone_clock_offset_s=offset)
+    # The receipts of records sent before, all in one read; a record that another request
+    # applies meanwhile still meets the receipt's unique client uuid (see apply_record).
+    batch.receipts = {
+        r.client_uuid: r for r in SyncReceipt.objects.filter(client_uuid__in=_uuids(records))
+    }
+    batch.receipts_loaded = True
     results = [apply_record(batch, record) for record in records]
     batch.settle()
     return results
@@ -279,7 +310,11 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
             "errors": {"client_uuid": ["A UUID made on the phone is required."]},
         }
     line: dict[str, Any] = {"client_uuid": str(client_uuid)}
-    receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()
+    receipt = (
+        batch.receipts.get(client_uuid)
+        if batch.receipts_loaded
+        else SyncReceipt.objects.filter(client_uuid=client_uuid).first()
+    )
     if receipt is not None:
         if receipt.user_id != user.pk:
             return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
@@ -318,7 +353,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
                     "rejected",
                 )
             if status == "applied":
-                SyncReceipt.objects.create(
+                batch.receipts[client_uuid] = SyncReceipt.objects.create(
                     client_uuid=client_uuid,
                     kind=kind,
                     user=user,
@@ -331,5 +366,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()
         if receipt is None:
             raise
+        if receipt.user_id != user.pk:
+            return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
         return {**line, "status": receipt.status, "duplicate": True, **receipt.result}
     return {**line, "status": status, **result}

@@ -99,9 +99,9 @@ EXPECTED: dict[str, int] = {
     # One batch of passing site sheets for one job. The first record looks up the checklist
     # version, which the batch then remembers; each record after it costs SYNC_PER_RECORD more.
     "sync-1-record": 31,
-    "sync-20-records": 354,
+    "sync-20-records": 240,
 }
-SYNC_PER_RECORD = 17
+SYNC_PER_RECORD = 11
 
 KNOWN_N_PLUS_1: dict[str, str] = {}
 """Reads whose count grows with the tables, each with its cause: the grown data set is an

@@ -253,3 +253,33 @@ def test_a_small_file_declaring_too_many_pixels_is_refused_before_decoding(
     assert response.status_code == 400
     assert response.json() == {"image": ["A photo is at most 50 megapixels."]}
     assert Photo.objects.count() == 0
+
+
+def test_an_action_sent_twice_in_one_batch_is_applied_once(job, simple_checklists, operator):
+    """The batch reads its receipts once at the start; a record repeated later in the same
+    batch still finds the receipt its first copy left (a second start would be refused)."""
+    fill_all(job, simple_checklists, operator)
+    start = {
+        "type": "job_action",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {"job": job.pk, "action": "start"},
+    }
+    results = sync(client_for(operator), [start, start])["results"]
+    assert [r["status"] for r in results] == ["applied", "applied"]
+    assert results[1]["duplicate"] is True
+    assert JobTransition.objects.filter(job=job, to_state="working").count() == 1
+
+
+def test_a_uuid_another_person_used_is_refused_in_a_batch(job, simple_checklists, operator):
+    from tests.factories import UserFactory
+
+    record = site_record(job, simple_checklists)
+    assert sync(client_for(operator), [record])["results"][0]["status"] == "applied"
+    colleague = UserFactory(organisation=job.organisation, role="operator")
+    result = sync(client_for(colleague), [record])["results"][0]
+    assert result == {
+        "client_uuid": record["client_uuid"],
+        "status": "rejected",
+        "errors": {"client_uuid": ["Already used."]},
+    }
+    assert SyncReceipt.objects.filter(client_uuid=record["client_uuid"]).count() == 1
