@@ -101,7 +101,7 @@ function RatingInput({ field, value, error, onInput }: { field: RatingField; val
   const hint = [field.required ? "required" : "optional", field.minimum ? MINIMUM_WORDS[field.minimum] : ""].filter(Boolean).join(", ");
   return (
     <div class="field">
-      <label for={id}>{field.label} <span class="muted">({hint})</span></label>
+      <label for={id}>{field.label.charAt(0).toUpperCase() + field.label.slice(1)} <span class="muted">({hint})</span></label>
       <span class="input-unit">
         {field.text && field.choices.length ? (
           <select id={id} value={value} onChange={(e) => onInput(e.currentTarget.value)} aria-describedby={describedBy(error && errId)}>

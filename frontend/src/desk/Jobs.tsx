@@ -16,7 +16,7 @@ interface Loaded {
 function JobTable({ jobs, signed, today, testid }: { jobs: JobSummary[]; signed: Set<number>; today: string; testid: string }) {
   if (!jobs.length) return <p class="muted" data-testid={`${testid}-none`}>No jobs.</p>;
   return (
-    <table class="desk-table" data-testid={testid}>
+    <table class="desk-table desk-jobs" data-testid={testid}>
       <thead>
         <tr>
           <th scope="col">Date</th>
@@ -36,7 +36,8 @@ function JobTable({ jobs, signed, today, testid }: { jobs: JobSummary[]; signed:
               <th scope="row">{job.site_name}</th>
               <td><StateBadge state={job.state} /></td>
               <td>{job.supervisor_name}</td>
-              <td class="desk-actions">
+              <td>
+                <div class="desk-actions">
                 {isSigned && <Badge kind="safe" word="Record signed" testid="record-signed" />}
                 {!isSigned && finished && job.date < today && (
                   <a class="btn" href={href({ name: "sign", id: job.id })} data-testid="sign-link">
@@ -49,6 +50,7 @@ function JobTable({ jobs, signed, today, testid }: { jobs: JobSummary[]; signed:
                   </a>
                 )}
                 <a class="btn" href={href({ name: "job", id: job.id })}>Open on the phone screens</a>
+                </div>
               </td>
             </tr>
           );

@@ -102,9 +102,10 @@ function equipmentWords(item: Equipment): string {
   return parts.join(" · ");
 }
 
-function anchorWords(anchor: Anchor): string {
+function anchorWords(anchor: Anchor, today: string): string {
   const cert = anchor.certification;
-  return `${anchor.label} · ${cert ? `certified to ${cert.valid_until}` : "no certificate in force"}`;
+  if (!cert) return `${anchor.label} · no certificate on record`;
+  return `${anchor.label} · ${cert.valid_until < today ? "certificate ended" : "certified to"} ${cert.valid_until}`;
 }
 
 interface Reference {
@@ -168,12 +169,17 @@ function Planner({ jobId }: { jobId: number }) {
     );
   }, [choice, jobId]);
 
-  function choose(field: Field, value: string) {
-    setChoice((c) => ({ ...c, [field]: value ? Number(value) : null }));
+  // A new choice stands on its own: the server's earlier answer about that field no longer applies.
+  function choose(field: Field, value: number | null) {
+    setChoice((c) => ({ ...c, [field]: value }));
+    setErrors((e) => {
+      const { [field]: _gone, ...rest } = e;
+      return rest;
+    });
   }
 
   function pickOnPlan(anchor: number) {
-    setChoice((c) => ({ ...c, [pickFor]: anchor }));
+    choose(pickFor, anchor);
     if (pickFor === "anchor") setPickFor("safety_anchor");
   }
 
@@ -277,7 +283,7 @@ function Planner({ jobId }: { jobId: number }) {
               <div class="field" key={k.field}>
                 <label for={`f-${k.field}`}>{k.label}</label>
                 <select id={`f-${k.field}`} value={choice[k.field] === null ? "" : String(choice[k.field])}
-                  onChange={(e) => choose(k.field, e.currentTarget.value)}
+                  onChange={(e) => choose(k.field, e.currentTarget.value ? Number(e.currentTarget.value) : null)}
                   aria-describedby={describedBy(errors[k.field] && `err-${k.field}`)}>
                   <option value="">Choose…</option>
                   {(ref.kit[k.field] ?? []).map((item) => (
@@ -304,11 +310,11 @@ function Planner({ jobId }: { jobId: number }) {
               <div class="field" key={a.slot}>
                 <label for={`f-${a.slot}`}>{a.label} <span class="muted">(marked “{SLOT_WORDS[a.slot]}” on the plan)</span></label>
                 <select id={`f-${a.slot}`} value={choice[a.slot] === null ? "" : String(choice[a.slot])}
-                  onChange={(e) => choose(a.slot, e.currentTarget.value)}
+                  onChange={(e) => choose(a.slot, e.currentTarget.value ? Number(e.currentTarget.value) : null)}
                   aria-describedby={describedBy(errors[a.slot] && `err-${a.slot}`)}>
                   <option value="">Choose…</option>
                   {ref.anchors.map((anchor) => (
-                    <option key={anchor.id} value={String(anchor.id)}>{anchorWords(anchor)}</option>
+                    <option key={anchor.id} value={String(anchor.id)}>{anchorWords(anchor, dayFrom(0))}</option>
                   ))}
                 </select>
                 <ConflictLines field={a.slot} conflicts={conflicts} />
