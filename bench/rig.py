@@ -130,6 +130,11 @@ def forty_items(kind: str) -> list[dict]:
                 "samples": {"reading": "decay_0"},
                 "min_vacuum_kpa": {"value": 40.0},
                 "required_hold_s": {"profile": "vacuum_required_hold_s"},
+                "interval_s": {"value": 30},
+                "interval_tolerance_s": {"value": 10},
+                "min_duration_s": {"value": 60},
+                "max_extrapolation": {"value": 10},
+                "min_r2": {"value": 0.8},
             },
         }
     )

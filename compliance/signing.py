@@ -145,9 +145,12 @@ class KeyMaterial:
         return cls(x509.load_pem_x509_certificate(credential.certificate_pem.encode()), key)
 
 
-def sign_seal(seal: str, credential: SigningCredential) -> str:
-    """RSA-PSS/SHA-256 signature over the seal's ASCII hex, base64."""
-    material = KeyMaterial.of(credential)
+def sign_seal(
+    seal: str, credential: SigningCredential, *, material: KeyMaterial | None = None
+) -> str:
+    """RSA-PSS/SHA-256 signature over the seal's ASCII hex, base64. `material` is the
+    credential's key already decrypted, when the caller signs more than once."""
+    material = material or KeyMaterial.of(credential)
     signature = material.private_key.sign(
         seal.encode("ascii"),
         padding.PSS(mgf=padding.MGF1(hashes.SHA256()), salt_length=padding.PSS.MAX_LENGTH),
@@ -186,7 +189,12 @@ def sign_pdf(
 
 
 def sign_chain_head(
-    head: RecordChainHead, credential: SigningCredential, *, sequence: int, seal: str
+    head: RecordChainHead,
+    credential: SigningCredential,
+    *,
+    sequence: int,
+    seal: str,
+    material: KeyMaterial | None = None,
 ) -> RecordChainHead:
     """Move a chain's head to (sequence, seal) and sign the statement with `credential`."""
     raw = canonical_bytes(
@@ -199,7 +207,7 @@ def sign_chain_head(
         )
     )
     head.sequence, head.seal, head.statement = sequence, seal, raw.decode("utf-8")
-    head.signature = sign_seal(sha256_hex(raw), credential)
+    head.signature = sign_seal(sha256_hex(raw), credential, material=material)
     head.credential = credential
     head.save()
     return head
