@@ -10,9 +10,10 @@ from django.urls import reverse
 
 from checklists.services import record_sheet
 from compliance.append_only import AppendOnlyViolation
-from compliance.daily_records import MEANINGS, add_addendum, seal_of, sign_daily_record
+from compliance.daily_records import MEANINGS, add_addendum, sign_daily_record
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import DailyRecord
+from compliance.sealing import seal_of
 from tests.conftest import PASSING, client_for
 from tests.factories import PASSWORD, UserFactory
 

@@ -15,12 +15,12 @@ from django.urls import reverse
 from PIL import Image
 from pypdf import PdfReader
 
-from compliance.daily_records import seal_of, sign_daily_record, verify_chain
+from compliance.daily_records import sign_daily_record, verify_chain
 from compliance.exports import build_export, export_scope
 from compliance.models import DailyRecord
 from compliance.record_files import ensure_pdf
 from compliance.record_pdf import ATTACHMENT_NAME, render
-from compliance.sealing import merkle_root
+from compliance.sealing import merkle_root, seal_of
 from compliance.signing import create_self_signed, sign_pdf, sign_seal
 from compliance.verification import TrustList, verify_export, verify_pdf
 from tests.conftest import client_for

@@ -13,10 +13,10 @@ import subprocess
 import pytest
 from django.db import connection
 
-from compliance.daily_records import seal_of, sign_daily_record, verify_chain
+from compliance.daily_records import sign_daily_record, verify_chain
 from compliance.models import DailyRecord, Equipment, RecordChainHead, SiteAccess
 from compliance.record_files import render_signed_pdf
-from compliance.sealing import canonical_bytes
+from compliance.sealing import canonical_bytes, seal_of
 from compliance.services import record_certification
 from compliance.signing import KeyMaterial, create_self_signed, sign_seal
 from compliance.verification import verify_pdf
