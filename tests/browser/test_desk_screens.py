@@ -9,7 +9,7 @@ from pathlib import Path
 import pytest
 from django.conf import settings
 
-from tests.browser.conftest import off_loop, shot, sign_in_as
+from tests.browser.conftest import PASSWORD, off_loop, shot
 
 pytestmark = pytest.mark.browser
 
@@ -49,9 +49,21 @@ def desk_shot(page, name: str, top: str | None = None) -> None:
     shot(page, name)
 
 
+def sign_in(page, base: str, username: str) -> None:
+    """Sign in on the phone screen once its first requests (answered 403 before any sign-in)
+    are all back: a late 403 arriving after the sign-in reads as a lapsed session (the phone
+    app's race, seen under load), which is not what these tests are about."""
+    page.goto(base + "/")
+    page.wait_for_selector("input[name=username]")
+    page.wait_for_load_state("networkidle")
+    page.fill("input[name=username]", username)
+    page.fill("input[name=password]", PASSWORD)
+    page.click("button[type=submit]")
+
+
 def open_desk(page, base: str, username: str = "rhea") -> None:
     """Sign in on the phone, then take the header's Desk link, as a supervisor would."""
-    sign_in_as(page, base, username)
+    sign_in(page, base, username)
     page.set_viewport_size(DESK)
     page.click("[data-testid=desk-link]")
     page.wait_for_selector("[data-testid=desk-jobs]")
@@ -129,9 +141,10 @@ def past_and_upcoming_jobs(job) -> tuple[int, int]:
     """A day three days ago closed but never signed, and a day planned two days ahead."""
     from compliance import services
 
-    past = services.create_job(site=job.site, date=day(-3), supervisor=job.supervisor, by=job.supervisor)
-    services.close_job(job=past, by=job.supervisor, reason="Rained off; nothing done.")
-    ahead = services.create_job(site=job.site, date=day(2), supervisor=job.supervisor, by=job.supervisor)
+    boss = job.supervisor
+    past = services.create_job(site=job.site, date=day(-3), supervisor=boss, by=boss)
+    services.close_job(job=past, by=boss, reason="Rained off; nothing done.")
+    ahead = services.create_job(site=job.site, date=day(2), supervisor=boss, by=boss)
     return past.pk, ahead.pk
 
 
@@ -185,6 +198,9 @@ def test_jobs_of_every_day_past_today_upcoming(live_server, demo, page):
     assert page.get_attribute("nav a[aria-current=page]", "href") == "#/desk/jobs"
     axe_clean(page, "the desk's jobs")
     desk_shot(page, "desk-jobs.png")
+    page.emulate_media(color_scheme="dark")
+    axe_clean(page, "the desk's jobs in the dark theme")
+    page.emulate_media(color_scheme="light")
 
     # The unsigned day opens the existing sign-off screen.
     page.click(f"[data-testid=desk-job-{past_id}] [data-testid=sign-link]")
@@ -208,7 +224,8 @@ def test_supervisor_plans_tomorrow_with_two_drops(live_server, demo, page):
     assert jobs == [("Larkfield Tower", rhea.pk, "planned")]
     job = Job.objects.get(date=tomorrow)
     assert page.url.endswith(f"#/desk/plan/{job.pk}")
-    assert list(JobTransition.objects.filter(job=job).values_list("from_state", "to_state", "by")) == [
+    transitions = JobTransition.objects.filter(job=job)
+    assert list(transitions.values_list("from_state", "to_state", "by")) == [
         ("planned", "planned", rhea.pk)
     ]
     assert page.inner_text("[data-testid=plan-job-state]") == "Planned: checks due"
@@ -357,7 +374,9 @@ def test_register_adds_a_robot_and_takes_a_hose_out_and_back(live_server, demo, 
     page.wait_for_selector("[data-testid=equipment-added]")
     assert page.inner_text("[data-testid=equipment-added]") == "Robot RB-3 added to the register."
     added = list(
-        Equipment.objects.filter(label="RB-3").values_list("kind", "serial", "ratings", "in_service")
+        Equipment.objects.filter(label="RB-3").values_list(
+            "kind", "serial", "ratings", "in_service"
+        )
     )
     assert added == [("robot", "DEMO-R-0103", ratings, True)]
     robot = Equipment.objects.get(label="RB-3")
@@ -415,8 +434,9 @@ def test_register_adds_a_robot_and_takes_a_hose_out_and_back(live_server, demo, 
 
 def test_operator_has_no_desk(live_server, demo, page):
     base = live_server.url
-    sign_in_as(page, base, "tomas")
-    page.wait_for_timeout(300)
+    sign_in(page, base, "tomas")
+    page.wait_for_selector("[data-testid=jobs] a")
+    page.wait_for_timeout(500)  # the link, if any, shows once the kept sign-in is read
     assert page.locator("[data-testid=desk-link]").count() == 0
     page.set_viewport_size(DESK)
     page.goto(base + "/#/desk/jobs")
@@ -424,3 +444,19 @@ def test_operator_has_no_desk(live_server, demo, page):
     assert "for supervisors" in page.inner_text("main")
     assert page.locator("nav").count() == 0
     axe_clean(page, "the desk refused to an operator")
+
+
+def test_property_manager_reaches_the_desk_but_plans_no_day(live_server, demo, page):
+    base = live_server.url
+    sign_in(page, base, "pat")
+    page.set_viewport_size(DESK)
+    page.click("[data-testid=desk-link]")
+    page.wait_for_selector("[data-testid=desk-jobs] [data-testid=jobs-past-none]")
+    assert "Property manager" in page.inner_text("[data-testid=desk-user]")
+    assert page.locator("nav a").all_inner_texts() == ["Days and jobs", "Equipment register"]
+    assert page.locator("main a[href='#/desk/plan']").count() == 0
+    axe_clean(page, "the desk's jobs for a property manager")
+    page.goto(base + "/#/desk/plan")
+    page.wait_for_selector("[data-testid=desk-plan]")
+    assert "planned by the contractor's supervisor or admin" in page.inner_text("main")
+    assert page.locator("[data-testid=create-job]").count() == 0

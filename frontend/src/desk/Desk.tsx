@@ -18,11 +18,14 @@ if (!document.getElementById("desk-css")) {
   document.head.append(style);
 }
 
-const PAGES: { page: DeskPage; name: string }[] = [
+const PAGES: { page: DeskPage; name: string; plans?: true }[] = [
   { page: "jobs", name: "Days and jobs" },
-  { page: "plan", name: "Plan a day" },
+  { page: "plan", name: "Plan a day", plans: true },
   { page: "equipment", name: "Equipment register" },
 ];
+
+/** Who may be a job's supervisor, and so plan a day (the server's rule for a job's supervisor). */
+const PLANNERS = new Set(["supervisor", "admin"]);
 
 const ROLE_WORDS: Record<string, string> = {
   supervisor: "Supervisor",
@@ -33,6 +36,7 @@ const ROLE_WORDS: Record<string, string> = {
 export function Desk({ user, route }: { user: User; route: Extract<Route, { name: "desk" }> }) {
   const role = ROLE_WORDS[user.role ?? ""];
   const allowed = role !== undefined;
+  const plans = PLANNERS.has(user.role ?? "");
   let screen;
   if (!allowed) {
     screen = (
@@ -42,9 +46,16 @@ export function Desk({ user, route }: { user: User; route: Extract<Route, { name
         <p><a class="btn" href={href({ name: "jobs" })}>Back to today's jobs</a></p>
       </>
     );
+  } else if (route.page === "plan" && !plans) {
+    screen = (
+      <>
+        <h1>Plan a day</h1>
+        <p>A day is planned by the contractor's supervisor or admin, who is the job's supervisor.</p>
+      </>
+    );
   } else if (route.page === "plan") screen = <DeskPlan key={route.id ?? "new"} user={user} jobId={route.id} />;
   else if (route.page === "equipment") screen = <DeskEquipment />;
-  else screen = <DeskJobs />;
+  else screen = <DeskJobs plans={plans} />;
 
   return (
     <div class="desk">
@@ -60,7 +71,7 @@ export function Desk({ user, route }: { user: User; route: Extract<Route, { name
       {allowed && (
         <nav class="desk-nav" aria-label="Desk">
           <ul>
-            {PAGES.map((p) => (
+            {PAGES.filter((p) => plans || !p.plans).map((p) => (
               <li key={p.page}>
                 <a href={href({ name: "desk", page: p.page })} aria-current={route.page === p.page ? "page" : undefined}>
                   {p.name}

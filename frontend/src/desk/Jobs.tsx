@@ -13,7 +13,15 @@ interface Loaded {
   signed: Set<number>;
 }
 
-function JobTable({ jobs, signed, today, testid }: { jobs: JobSummary[]; signed: Set<number>; today: string; testid: string }) {
+interface TableProps {
+  jobs: JobSummary[];
+  signed: Set<number>;
+  today: string;
+  testid: string;
+  plans: boolean;
+}
+
+function JobTable({ jobs, signed, today, testid, plans }: TableProps) {
   if (!jobs.length) return <p class="muted" data-testid={`${testid}-none`}>No jobs.</p>;
   return (
     <table class="desk-table desk-jobs" data-testid={testid}>
@@ -44,7 +52,7 @@ function JobTable({ jobs, signed, today, testid }: { jobs: JobSummary[]; signed:
                     Sign the day's record
                   </a>
                 )}
-                {job.state === "planned" && (
+                {plans && (job.state === "planned" || job.state === "cleared") && (
                   <a class="btn" href={href({ name: "desk", page: "plan", id: job.id })} data-testid="plan-link">
                     Plan drops
                   </a>
@@ -60,7 +68,8 @@ function JobTable({ jobs, signed, today, testid }: { jobs: JobSummary[]; signed:
   );
 }
 
-export function DeskJobs() {
+/** `plans`: whether this person may plan a day (a supervisor or an admin). */
+export function DeskJobs({ plans }: { plans: boolean }) {
   const today = dayFrom(0);
   const [loaded, setLoaded] = useState<Loaded | null>(null);
   const [error, setError] = useState("");
@@ -90,7 +99,7 @@ export function DeskJobs() {
     <>
       <div class="desk-title">
         <h1>Days and jobs</h1>
-        <a class="btn btn-primary" href={href({ name: "desk", page: "plan" })}>Plan a day</a>
+        {plans && <a class="btn btn-primary" href={href({ name: "desk", page: "plan" })}>Plan a day</a>}
       </div>
       {error && <p class="error" role="alert">{error}</p>}
       {!loaded && !error && <p class="muted">Loading the jobs…</p>}
@@ -98,15 +107,15 @@ export function DeskJobs() {
         <>
           <section aria-labelledby="jobs-today">
             <h2 id="jobs-today">Today, {today}</h2>
-            <JobTable jobs={todays} signed={signed} today={today} testid="jobs-today" />
+            <JobTable jobs={todays} signed={signed} today={today} testid="jobs-today" plans={plans} />
           </section>
           <section aria-labelledby="jobs-upcoming">
             <h2 id="jobs-upcoming">Upcoming</h2>
-            <JobTable jobs={upcoming} signed={signed} today={today} testid="jobs-upcoming" />
+            <JobTable jobs={upcoming} signed={signed} today={today} testid="jobs-upcoming" plans={plans} />
           </section>
           <section aria-labelledby="jobs-past">
             <h2 id="jobs-past">Past</h2>
-            <JobTable jobs={past} signed={signed} today={today} testid="jobs-past" />
+            <JobTable jobs={past} signed={signed} today={today} testid="jobs-past" plans={plans} />
           </section>
         </>
       )}

@@ -258,6 +258,11 @@ function Planner({ jobId }: { jobId: number }) {
         )}
       </section>
 
+      {job.state !== "planned" && job.state !== "cleared" ? (
+        <p class="note" data-testid="plan-closed">
+          Drops are planned only before work starts; this job is {job.state}.
+        </p>
+      ) : (
       <section aria-labelledby="add-head">
         <h2 id="add-head">Add a drop</h2>
         {added && <p class="note" role="status" data-testid="drop-added">{added}</p>}
@@ -337,6 +342,7 @@ function Planner({ jobId }: { jobId: number }) {
           </div>
         </form>
       </section>
+      )}
       <DeskCaution />
     </>
   );
