@@ -64,6 +64,7 @@ def sign_in(page, base: str, username: str) -> None:
 def open_desk(page, base: str, username: str = "rhea") -> None:
     """Sign in on the phone, then take the header's Desk link, as a supervisor would."""
     sign_in(page, base, username)
+    page.wait_for_selector("[data-testid=desk-link]")
     page.set_viewport_size(DESK)
     page.click("[data-testid=desk-link]")
     page.wait_for_selector("[data-testid=desk-jobs]")
@@ -153,7 +154,17 @@ def test_jobs_of_every_day_past_today_upcoming(live_server, demo, page):
 
     past_id, ahead_id = off_loop(past_and_upcoming_jobs, demo)
     base = live_server.url
-    open_desk(page, base)
+    # On the phone, the desk is a plain link in the header of today's jobs.
+    sign_in(page, base, "rhea")
+    link = page.locator(".head [data-testid=desk-link]")
+    assert link.inner_text() == "Desk"
+    box = link.bounding_box()
+    assert box and box["height"] >= 48 and box["width"] >= 48
+    page.wait_for_selector("[data-testid=jobs] a")
+    shot(page, "desk-entry-phone.png")
+    page.set_viewport_size(DESK)
+    link.click()
+    page.wait_for_selector("[data-testid=desk-jobs]")
     page.wait_for_selector("[data-testid=jobs-past]")
 
     today_rows = page.locator("[data-testid=jobs-today] tbody tr")
@@ -280,6 +291,13 @@ def test_supervisor_plans_tomorrow_with_two_drops(live_server, demo, page):
     assert page.locator("[data-testid=drops] tbody tr").count() == 2
     axe_clean(page, "planning drops, two added")
     desk_shot(page, "desk-plan.png")
+
+    # A tablet held upright: one column, the same targets, still clean.
+    page.set_viewport_size({"width": 820, "height": 1180})
+    axe_clean(page, "planning drops on a tablet")
+    box = page.locator("[data-testid=plan-anchor-R1]").bounding_box()
+    assert box and box["width"] >= 48 and box["height"] >= 48
+    desk_shot(page, "desk-plan-tablet.png", top="#add-head")
 
 
 def test_robot_booked_today_is_refused_beside_its_field(live_server, demo, page):
