@@ -920,8 +920,13 @@ def _photo_grid(
     return table
 
 
+def _kept(look: _Look, heading: Any, table: Any) -> list[Any]:
+    """A heading and its table; in the readable layout the heading never ends a page alone."""
+    return [KeepTogether([heading, table])] if look.readable else [heading, table]
+
+
 def _log(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> list[Any]:
-    story: list[Any] = [_p("Job log", s["h2"])]
+    story: list[Any] = []
     rows = [[look.zone_heading("At"), "From", "To", "By", "Why"]]
     rows += [
         [
@@ -933,9 +938,10 @@ def _log(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> l
         ]
         for t in record["transitions"]
     ]
-    story.append(_table(rows, [32 * mm, 17 * mm, 17 * mm, 30 * mm, 84 * mm]))
+    story += _kept(
+        look, _p("Job log", s["h2"]), _table(rows, [32 * mm, 17 * mm, 17 * mm, 30 * mm, 84 * mm])
+    )
     if record["drops_done"]:
-        story.append(_p("Drops done", s["h3"]))
         rows = [["Drop", "By", look.zone_heading("Logged"), "Note"]]
         rows += [
             [
@@ -946,7 +952,9 @@ def _log(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> l
             ]
             for d in record["drops_done"]
         ]
-        story.append(_table(rows, [30 * mm, 35 * mm, 35 * mm, 80 * mm]))
+        story += _kept(
+            look, _p("Drops done", s["h3"]), _table(rows, [30 * mm, 35 * mm, 35 * mm, 80 * mm])
+        )
     people = ", ".join(f"{p['name']} ({p['role']})" for p in record["people"])
     story += [_p("People", s["h3"]), *_paras(people, s["body"])]
     return story
