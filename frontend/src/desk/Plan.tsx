@@ -225,7 +225,7 @@ function Planner({ jobId }: { jobId: number }) {
         <h1>Plan drops: {job.site_name}, {job.date}</h1>
         <StateBadge state={job.state} testid="plan-job-state" />
       </div>
-      <p class="muted">Supervisor {job.supervisor_name} · <a href={href({ name: "desk", page: "jobs" })}>All days and jobs</a></p>
+      <p class="muted">Supervisor {job.supervisor_name} · <a class="inline-link" href={href({ name: "desk", page: "jobs" })}>All days and jobs</a></p>
 
       <section aria-labelledby="drops-head">
         <h2 id="drops-head">Drops planned ({job.drops.length})</h2>
