@@ -48,9 +48,11 @@ def test_a_failed_calculation_prints_its_reason_under_the_item(tmp_path, setting
     assert sheets, "the record has its check sheets section"
     assert REASON in up_front  # the failed items' list already said it
     assert sheets.count(REASON) == 1
-    # Under the item's own row: its label, then the reason, then its entry.
+    # Under the item's own row: its label (the checklist's words), then the reason, then its
+    # entry.
     margin = whole_pct(decay["margin"], passed=False)
-    assert f"decay_test (blocking) {REASON} computed fail {margin}" in sheets
+    assert decay["label"] == "Time the grip lasts with the pump isolated"
+    assert f"{decay['label']} (blocking) {REASON} computed fail {margin}" in sheets
 
 
 def test_a_passing_calculation_prints_no_reason_line(tmp_path, settings):
@@ -61,4 +63,4 @@ def test_a_passing_calculation_prints_no_reason_line(tmp_path, settings):
     entries = [e for sheet in document["record"]["sheets"] for e in sheet["entries"]]
     assert all(e["verdict"] != "fail" for e in entries)
     text = _text(render(document, record.seal))
-    assert "decay_test (blocking) computed pass" in text
+    assert "Time the grip lasts with the pump isolated (blocking) computed pass" in text

@@ -27,15 +27,25 @@ export class OfflineError extends Error {
   }
 }
 
+/**
+ * Counts sign-ins on this page. A request remembers the count it was sent under: an answer of
+ * "not signed in" to a request sent before the latest sign-in (a slow first sync, say) speaks
+ * of the state before it and never ends the new session.
+ */
+let sessionEpoch = 0;
+
 /** The server answered with an error status; `body` is its parsed JSON, if any. */
 export class ApiError extends Error {
   readonly status: number;
   readonly body: Record<string, unknown>;
-  constructor(status: number, body: Record<string, unknown>) {
+  /** Sent before the latest sign-in: a lapse it reports is about the session before. */
+  readonly fromEarlierSession: boolean;
+  constructor(status: number, body: Record<string, unknown>, epoch: number = sessionEpoch) {
     super(typeof body.detail === "string" ? body.detail : `The server answered ${status}.`);
     this.name = "ApiError";
     this.status = status;
     this.body = body;
+    this.fromEarlierSession = epoch !== sessionEpoch;
   }
   /**
    * The session is gone (expired, or signed out on another tab). A 403 alone is not enough:
@@ -45,6 +55,10 @@ export class ApiError extends Error {
   get signedOut(): boolean {
     if (this.status === 401) return true;
     return this.status === 403 && SIGNED_OUT_CODES.has(String(this.body.code ?? ""));
+  }
+  /** Signed out, and about the current session: only then is a new sign-in asked for. */
+  get endsSession(): boolean {
+    return this.signedOut && !this.fromEarlierSession;
   }
 }
 
@@ -77,6 +91,7 @@ export async function request<T>(path: string, opts: Options = {}): Promise<T> {
     body = opts.form;
   }
   if (method !== "GET") headers["X-CSRFToken"] = csrfToken();
+  const epoch = sessionEpoch;
   const controller = new AbortController();
   const timer = setTimeout(() => controller.abort(), opts.timeoutMs ?? 20000);
   let response: Response;
@@ -103,9 +118,9 @@ export async function request<T>(path: string, opts: Options = {}): Promise<T> {
   if (!response.ok) {
     // A gateway or worker-level failure (e.g. offline fallback from the service worker)
     if (response.status >= 500 && parsed === null) throw new OfflineError();
-    const error = new ApiError(response.status, (parsed as Record<string, unknown>) ?? {});
+    const error = new ApiError(response.status, (parsed as Record<string, unknown>) ?? {}, epoch);
     // Any call that finds the session gone asks for a new sign-in; what waits stays on the phone.
-    if (error.signedOut && !path.startsWith("auth/")) {
+    if (error.endsSession && !path.startsWith("auth/")) {
       setStatus({ signedOut: true, lastError: "Signed out: sign in again to send." });
     }
     throw error;
@@ -121,6 +136,7 @@ type PdfAnswer = { ready: true } | { ready: false; retryAfter: string | null; re
  * when the operator taps it.
  */
 async function pdfAnswer(id: number): Promise<PdfAnswer> {
+  const epoch = sessionEpoch;
   const controller = new AbortController();
   const timer = setTimeout(() => controller.abort(), 20000);
   let response: Response;
@@ -149,12 +165,15 @@ async function pdfAnswer(id: number): Promise<PdfAnswer> {
     return { ready: false, retryAfter: response.headers.get("Retry-After"), rendering: parsed as PdfRendering | null };
   }
   if (response.status >= 500 && parsed === null) throw new OfflineError();
-  throw new ApiError(response.status, (parsed as Record<string, unknown>) ?? {});
+  throw new ApiError(response.status, (parsed as Record<string, unknown>) ?? {}, epoch);
 }
 
 export const api = {
-  login: (username: string, password: string) =>
-    request<User>("auth/login/", { method: "POST", json: { username, password } }),
+  login: async (username: string, password: string) => {
+    const user = await request<User>("auth/login/", { method: "POST", json: { username, password } });
+    sessionEpoch += 1;
+    return user;
+  },
   logout: () => request<void>("auth/logout/", { method: "POST", json: {} }),
   me: () => request<User>("me/"),
   jobs: (date: string) =>

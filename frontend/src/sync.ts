@@ -181,9 +181,13 @@ async function runOnce(): Promise<void> {
     await metaPut("lastSync", serverTime ?? new Date().toISOString());
     await prune();
   } catch (error) {
-    if (error instanceof ApiError && error.signedOut) {
+    if (error instanceof ApiError && error.endsSession) {
       setStatus({ signedOut: true, lastError: "Signed out: sign in again to send." });
-    } else if (error instanceof OfflineError || (error instanceof ApiError && error.status >= 500)) {
+    } else if (
+      error instanceof OfflineError ||
+      (error instanceof ApiError && (error.status >= 500 || error.signedOut))
+    ) {
+      // A "not signed in" sent before the latest sign-in is retried under the new session.
       setStatus({ lastError: "Sending failed; trying again shortly." });
       scheduleRetry();
     } else {

@@ -251,3 +251,48 @@ def test_a_server_error_on_refresh_still_shows_the_job_kept_on_the_phone(
     assert "did not answer as expected" in page.inner_text("[data-testid=job-refresh-failed]")
     assert page.inner_text("[data-testid=job-state]").strip()
     assert "State from the server" not in page.inner_text("main")
+
+
+def test_an_answer_to_a_request_sent_before_signing_in_does_not_end_the_new_session(
+    live_server, demo, page
+):
+    """On a slow roof connection the phone's first sync, sent before anyone signed in, can
+    answer "not signed in" after the operator has signed in: that late answer is about the
+    old state and must not put the sign-in prompt back."""
+    from tests.browser.conftest import PASSWORD
+
+    base = live_server.url
+    held: list = []
+    holding = [True]
+
+    def hold(route) -> None:
+        if holding[0]:
+            held.append(route)
+        else:
+            route.continue_()
+
+    page.route("**/api/v1/sites/**", hold)
+    page.goto(base + "/")
+    page.wait_for_selector("input[name=username]")
+    for _ in range(100):
+        if held:
+            break
+        page.wait_for_timeout(50)
+    assert held, "the first sync asks for the sites before anyone signs in"
+    holding[0] = False
+    page.fill("input[name=username]", "tomas")
+    page.fill("input[name=password]", PASSWORD)
+    page.click("button[type=submit]")
+    page.wait_for_selector("[data-testid=jobs] a")
+    # The answer to the request sent before the sign-in arrives now: "not signed in", as the
+    # server answered it then (a held request sent on now would carry the new session).
+    for route in held:
+        route.fulfill(
+            status=403,
+            content_type="application/json",
+            body='{"detail": "Authentication credentials were not provided.",'
+            ' "code": "not_authenticated"}',
+        )
+    page.wait_for_timeout(1500)
+    assert "Sign in again" not in page.inner_text("body")
+    assert page.query_selector("[data-testid=jobs] a") is not None
