@@ -306,7 +306,7 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
         return Response(self.get_serializer(item).data, status=status.HTTP_201_CREATED)
 
     @extend_schema(responses=s.EquipmentKindSerializer(many=True))
-    @action(detail=False, methods=["get"])
+    @action(detail=False, methods=["get"], pagination_class=None)
     def kinds(self, request: Request) -> Response:
         """Each kind of equipment and the ratings its register entry carries, field by field
         with units and lower bounds, so a form never asks for raw JSON."""
