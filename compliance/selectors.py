@@ -3,7 +3,7 @@
 from collections.abc import Iterable
 from dataclasses import dataclass
 
-from django.db.models import Prefetch, QuerySet
+from django.db.models import Exists, OuterRef, Prefetch, QuerySet
 
 from checklists.selectors import current_versions, latest_sheets
 from compliance.access import can_work_at
@@ -14,6 +14,7 @@ from compliance.models import (
     Anchor,
     AnchorCertification,
     AnchorLogEntry,
+    DailyRecord,
     Drop,
     Equipment,
     Hold,
@@ -246,9 +247,13 @@ def job_blockers(
 
 
 def jobs_for(user: User) -> QuerySet[Job]:
+    """The organisation's jobs, each with whether its day's record is signed (in the same
+    query), so a desk list shows the unsigned past days without a request per job."""
+    signed = DailyRecord.objects.filter(job=OuterRef("pk"), kind=DailyRecord.Kind.RECORD)
     return (
         Job.objects.filter(organisation_id=getattr(user, "organisation_id", None))
         .select_related("site", "site__profile", "supervisor")
+        .annotate(record_signed=Exists(signed))
         .order_by("-date", "id")
     )
 

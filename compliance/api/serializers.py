@@ -301,6 +301,7 @@ class JobSerializer(StrictInput, serializers.ModelSerializer):
     notes = serializers.CharField(max_length=4000, required=False, allow_blank=True)
     site_name = serializers.CharField(source="site.name", read_only=True)
     supervisor_name = serializers.CharField(source="supervisor.display_name", read_only=True)
+    record_signed = serializers.SerializerMethodField()
 
     class Meta:
         model = Job
@@ -313,8 +314,16 @@ class JobSerializer(StrictInput, serializers.ModelSerializer):
             "supervisor",
             "supervisor_name",
             "notes",
+            "record_signed",
         ]
         read_only_fields = ["state"]
+
+    def get_record_signed(self, job: Job) -> bool:
+        """Whether the day's record is signed (read along with the job by jobs_for)."""
+        found = getattr(job, "record_signed", None)
+        if found is None:
+            found = job.daily_records.filter(kind="record").exists()
+        return bool(found)
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

@@ -272,3 +272,18 @@ def test_a_day_signed_on_a_thread_of_a_threaded_server_gets_its_pdf(
     with ThreadPoolExecutor(max_workers=1) as pool:
         record_id = pool.submit(sign).result()
     assert DailyRecord.objects.get(pk=record_id).pdf.size_bytes > 0
+
+
+def test_the_job_list_says_which_days_are_signed(signed, supervisor, django_assert_num_queries):
+    """The desk lists unsigned past days from the job list alone, in the list's own queries."""
+    from tests.factories import JobFactory
+
+    unsigned = JobFactory(site=signed.job.site, supervisor=supervisor)
+    client = client_for(supervisor)
+    client.get(reverse("me"))
+    with django_assert_num_queries(2):  # the count, the page with its joins (token auth)
+        answer = client.get(reverse("job-list"))
+    shown = {j["id"]: j["record_signed"] for j in answer.json()["results"]}
+    assert shown == {signed.job_id: True, unsigned.pk: False}
+    detail = client.get(reverse("job-detail", args=[unsigned.pk]))
+    assert detail.json()["record_signed"] is False
