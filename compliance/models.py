@@ -600,6 +600,43 @@ class Notice(AppendOnlyModel):
         ]
 
 
+class NoticeEmail(AppendOnlyModel):
+    """That a notice went out by e-mail, and to whom: one row per notice, so it is sent once.
+
+    A row of its own because notices are append-only; the one-to-one key is the database's
+    guarantee that two runs of the sending task never both send the same notice.
+    """
+
+    notice = models.OneToOneField(Notice, on_delete=models.PROTECT, related_name="email")
+    sent_at = models.DateTimeField()
+    recipients = models.JSONField(default=list, help_text="The addresses it went to.")
+
+    def __str__(self) -> str:
+        return f"notice {self.notice_id} e-mailed {self.sent_at:%Y-%m-%d %H:%M}"
+
+
+class CalendarFeed(models.Model):
+    """A person's secret calendar address of due dates; only the token's SHA-256 is kept."""
+
+    user = models.ForeignKey(User, on_delete=models.CASCADE, related_name="calendar_feeds")
+    token_sha256 = models.CharField(max_length=64, unique=True)
+    created_at = models.DateTimeField(auto_now_add=True)
+    revoked_at = models.DateTimeField(null=True, blank=True)
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(
+                fields=["user"],
+                condition=Q(revoked_at__isnull=True),
+                name="one_live_calendar_feed",
+            ),
+        ]
+
+    def __str__(self) -> str:
+        state = "revoked" if self.revoked_at else "live"
+        return f"calendar feed of {self.user_id} ({state})"
+
+
 class AnchorLogEntry(AppendOnlyModel):
     """One entry of the building's anchor log book: signed by who made it, chained per site."""
 

@@ -1,14 +1,41 @@
-"""Nightly and daily checks: unsigned records of past days, certifications and inspections due."""
+"""Nightly and daily checks: unsigned records of past days, certifications and inspections due;
+and each notice, once, by e-mail to the people who act on it."""
 
 import datetime as dt
+import logging
 
+from django.conf import settings
+from django.core.mail import EmailMessage, get_connection
 from django.db import IntegrityError, transaction
 from django.db.models import Exists, OuterRef
 
-from compliance.models import Anchor, DailyRecord, Equipment, Job, Notice
+from compliance.due import CAUTION
+from compliance.models import (
+    Anchor,
+    DailyRecord,
+    Equipment,
+    Job,
+    Notice,
+    NoticeEmail,
+    Organisation,
+    Role,
+    User,
+)
+
+logger = logging.getLogger(__name__)
+
+MAIL_MAX_AGE_DAYS = 7
+"""A notice older than this that was never sent (mail down for a week, or the first run after
+an upgrade) is not sent late: the due list and the calendar feed show it anyway."""
 
 
 def _notice(**fields: object) -> bool:
+    """Raise a notice once per subject and due date: a certificate due in 20 days is not raised
+    (and e-mailed) again each night; a new due date is a new notice."""
+    if Notice.objects.filter(
+        kind=fields["kind"], subject=fields["subject"], due_on=fields.get("due_on")
+    ).exists():
+        return False
     try:
         with transaction.atomic():
             Notice.objects.create(**fields)
@@ -61,3 +88,67 @@ def flag_due(*, today: dt.date, within: dt.timedelta) -> int:
             f"{item.next_inspection_due:%Y-%m-%d}.",
         )
     return created
+
+
+def recipients_of(notice: Notice) -> list[User]:
+    """Who acts on a notice: the organisation's supervisors and admins, and for an anchor
+    certificate (raised to the site's organisation) its property managers; active people with
+    an e-mail address only."""
+    roles = [Role.SUPERVISOR, Role.ADMIN]
+    if notice.kind == Notice.Kind.CERT_DUE:
+        roles.append(Role.PROPERTY_MANAGER)
+    return list(
+        User.objects.filter(organisation_id=notice.organisation_id, role__in=roles, is_active=True)
+        .exclude(email="")
+        .order_by("email", "pk")
+    )
+
+
+def _message(notice: Notice, organisation: Organisation, to: str) -> EmailMessage:
+    body = (
+        f"{notice.message}\n\n"
+        f"Organisation: {organisation.name}\n"
+        f"Found by the check of {notice.day:%Y-%m-%d}.\n"
+        "Every date that falls due is on the due list in Parapet and in your calendar feed.\n\n"
+        f"{CAUTION}\n"
+    )
+    return EmailMessage(
+        subject=f"Parapet: {notice.get_kind_display()}",
+        body=body,
+        from_email=settings.DEFAULT_FROM_EMAIL,
+        to=[to],
+    )
+
+
+def email_notice(*, notice: Notice, now: dt.datetime) -> NoticeEmail | None:
+    """Send one notice to each of its recipients, one message each (no one sees another's
+    address), and record it as sent in the same transaction; None when it was sent already.
+
+    The row is written before sending: a second run waits on it or finds it, and a failed send
+    rolls it back, so the notice is tried again on the next run.
+    """
+    with transaction.atomic():
+        try:
+            with transaction.atomic():
+                people = recipients_of(notice)
+                sent = NoticeEmail.objects.create(
+                    notice=notice, sent_at=now, recipients=[p.email for p in people]
+                )
+        except IntegrityError:
+            return None
+        messages = [_message(notice, notice.organisation, p.email) for p in people]
+        if messages:
+            get_connection().send_messages(messages)
+        return sent
+
+
+def email_new_notices(*, now: dt.datetime) -> int:
+    """E-mail every notice not yet sent and at most MAIL_MAX_AGE_DAYS old; returns how many
+    notices were sent (to nobody, when no one has an address, so it is not tried forever)."""
+    since = now.date() - dt.timedelta(days=MAIL_MAX_AGE_DAYS)
+    pending = (
+        Notice.objects.filter(email__isnull=True, day__gte=since)
+        .select_related("organisation")
+        .order_by("pk")
+    )
+    return sum(email_notice(notice=notice, now=now) is not None for notice in pending)

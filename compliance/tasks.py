@@ -10,7 +10,7 @@ from django.utils import timezone
 
 from compliance import record_files
 from compliance.models import DailyRecord
-from compliance.notices import flag_due, flag_unsigned
+from compliance.notices import email_new_notices, flag_due, flag_unsigned
 from compliance.record_files import ensure_pdf
 
 logger = logging.getLogger(__name__)
@@ -111,6 +111,12 @@ def flag_unsigned_records() -> int:
 @shared_task
 def list_due_items(days: int = 30) -> int:
     return flag_due(today=timezone.localdate(), within=dt.timedelta(days=days))
+
+
+@shared_task
+def email_notices() -> int:
+    """Send each notice not yet sent to the people who act on it; a rerun sends nothing twice."""
+    return email_new_notices(now=timezone.now())
 
 
 @shared_task

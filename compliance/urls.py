@@ -3,11 +3,13 @@ from django.urls import include, path
 from drf_spectacular.views import SpectacularAPIView
 
 from compliance import app_views
+from compliance.api.due import calendar_feed
 
 urlpatterns = [
     path("admin/", admin.site.urls),
     path("api/v1/", include("compliance.api.urls")),
     path("api/schema/", SpectacularAPIView.as_view(), name="schema"),
+    path("calendar/<str:token>.ics", calendar_feed, name="calendar-feed"),
     path("verify/", app_views.verify_page, name="verify-page"),
     path(
         "login/",

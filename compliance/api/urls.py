@@ -1,7 +1,7 @@
 from django.urls import include, path
 from rest_framework.routers import DefaultRouter
 
-from compliance.api import log_book, records, views
+from compliance.api import due, log_book, records, views
 
 router = DefaultRouter()
 router.register("profiles", views.ProfileViewSet, basename="profile")
@@ -20,6 +20,8 @@ urlpatterns = [
     path("auth/logout/", views.session_logout, name="logout"),
     path("auth/token/", views.token_login, name="token"),
     path("me/", views.me, name="me"),
+    path("me/calendar/", due.my_calendar, name="my-calendar"),
+    path("due/", due.due_list, name="due"),
     path("calc/<slug:name>/", views.calculate, name="calc"),
     path("sync/", views.sync, name="sync"),
     path("photos/", views.upload_photo, name="photos"),

@@ -262,6 +262,22 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/api/v1/due/": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get: operations["v1_due_retrieve"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/api/v1/equipment/": {
         parameters: {
             query?: never;
@@ -465,6 +481,22 @@ export interface paths {
         put?: never;
         post?: never;
         delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/api/v1/me/calendar/": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        post: operations["v1_me_calendar_create"];
+        delete: operations["v1_me_calendar_destroy"];
         options?: never;
         head?: never;
         patch?: never;
@@ -797,6 +829,10 @@ export interface components {
         CalcResult: {
             verdict: string;
         };
+        CalendarAddress: {
+            /** Format: uri */
+            url: string;
+        };
         Certification: {
             readonly id: number;
             certifier: string;
@@ -888,6 +924,28 @@ export interface components {
             /** Format: double */
             length_m: number;
         };
+        DueItem: {
+            kind: components["schemas"]["DueItemKindEnum"];
+            uid: string;
+            subject: string;
+            /** Format: date */
+            due_on: string;
+            days_left: number;
+            state: string;
+            site: number | null;
+            anchor: number | null;
+            equipment: number | null;
+            job: number | null;
+        };
+        /** @enum {string} */
+        DueItemKindEnum: "anchor_certificate" | "equipment_inspection" | "unsigned_day";
+        DueList: {
+            /** Format: date */
+            today: string;
+            within_days: number;
+            items: components["schemas"]["DueItem"][];
+            caution: string;
+        };
         EndGrantInputRequest: {
             reason?: string;
         };
@@ -964,6 +1022,7 @@ export interface components {
             supervisor: number;
             readonly supervisor_name: string;
             notes?: string;
+            readonly record_signed: boolean;
         };
         JobRequest: {
             site: number;
@@ -1070,21 +1129,6 @@ export interface components {
              */
             previous?: string | null;
             results: components["schemas"]["ChecklistVersion"][];
-        };
-        PaginatedEquipmentKindList: {
-            /** @example 123 */
-            count: number;
-            /**
-             * Format: uri
-             * @example http://api.example.org/accounts/?offset=400&limit=100
-             */
-            next?: string | null;
-            /**
-             * Format: uri
-             * @example http://api.example.org/accounts/?offset=200&limit=100
-             */
-            previous?: string | null;
-            results: components["schemas"]["EquipmentKind"][];
         };
         PaginatedEquipmentList: {
             /** @example 123 */
@@ -1893,6 +1937,27 @@ export interface operations {
             };
         };
     };
+    v1_due_retrieve: {
+        parameters: {
+            query?: {
+                within?: number;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["DueList"];
+                };
+            };
+        };
+    };
     v1_equipment_list: {
         parameters: {
             query?: {
@@ -1990,10 +2055,7 @@ export interface operations {
     };
     v1_equipment_kinds_list: {
         parameters: {
-            query?: {
-                limit?: number;
-                offset?: number;
-            };
+            query?: never;
             header?: never;
             path?: never;
             cookie?: never;
@@ -2005,7 +2067,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": components["schemas"]["PaginatedEquipmentKindList"];
+                    "application/json": components["schemas"]["EquipmentKind"][];
                 };
             };
         };
@@ -2274,6 +2336,56 @@ export interface operations {
                 content: {
                     "application/json": components["schemas"]["User"];
                 };
+            };
+        };
+    };
+    v1_me_calendar_create: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            201: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["CalendarAddress"];
+                };
+            };
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
+            };
+        };
+    };
+    v1_me_calendar_destroy: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            201: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["CalendarAddress"];
+                };
+            };
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
             };
         };
     };

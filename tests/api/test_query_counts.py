@@ -68,6 +68,7 @@ pytestmark = pytest.mark.django_db
 EXPECTED: dict[str, int] = {
     "api-root": 0,
     "me": 1,
+    "due": 3,  # anchors with their newest certificate, equipment, unsigned days
     "profile-list": 2,
     "profile-detail": 1,
     "profile-revisions": 2,
@@ -343,6 +344,7 @@ def export_url(w: World) -> str:
 READS: dict[str, Callable[[World], str]] = {
     "api-root": lambda w: reverse("api-root"),
     "me": lambda w: reverse("me"),
+    "due": lambda w: f"{reverse('due')}?within=366",
     "profile-list": lambda w: reverse("profile-list"),
     "profile-detail": lambda w: reverse("profile-detail", args=[w.profile.key]),
     "profile-revisions": lambda w: reverse("profile-revisions", args=[w.profile.key]),
