@@ -45,7 +45,7 @@ def _notice(**fields: object) -> bool:
 
 
 def flag_unsigned(*, today: dt.date) -> int:
-    """One notice a day per past job whose daily record is not signed."""
+    """One notice per past job whose daily record is not signed."""
     signed = DailyRecord.objects.filter(job=OuterRef("pk"), kind="record")
     jobs = Job.objects.filter(date__lt=today).exclude(Exists(signed)).select_related("site")
     return sum(
@@ -151,4 +151,12 @@ def email_new_notices(*, now: dt.datetime) -> int:
         .select_related("organisation")
         .order_by("pk")
     )
-    return sum(email_notice(notice=notice, now=now) is not None for notice in pending)
+    sent = 0
+    for notice in pending:
+        try:
+            sent += email_notice(notice=notice, now=now) is not None
+        except Exception:
+            # One refused message (a bad address, the server down) must not hold back the
+            # others; this notice stays unsent and is tried again on the next run.
+            logger.exception("notice %s could not be e-mailed; tried again next run", notice.pk)
+    return sent
