@@ -114,6 +114,8 @@ for model in (
     models.Notice,
     models.SyncReceipt,
     models.RegisterChange,
+    models.NoticeEmail,
+    models.CalendarFeed,
     models.SiteAccess,
     models.SiteAccessEnd,
 ):
