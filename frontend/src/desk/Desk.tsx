@@ -4,8 +4,12 @@
  */
 import type { User } from "../types";
 import { href, type DeskPage, type Route } from "../ui/hooks";
+import { DeskBuilding } from "./Building";
+import { DeskCertificates } from "./Certificates";
 import { DeskEquipment } from "./Equipment";
+import { DeskGrants } from "./Grants";
 import { DeskJobs } from "./Jobs";
+import { DeskLogBook } from "./LogBook";
 import { DeskPlan } from "./Plan";
 // The desk's styles travel inside its chunk and are added once it loads: a separate CSS file
 // would make the phone's first load carry Vite's preload helper for this one import.
@@ -18,10 +22,15 @@ if (!document.getElementById("desk-css")) {
   document.head.append(style);
 }
 
-const PAGES: { page: DeskPage; name: string; plans?: true }[] = [
-  { page: "jobs", name: "Days and jobs" },
-  { page: "plan", name: "Plan a day", plans: true },
-  { page: "equipment", name: "Equipment register" },
+/** `contractor`: a contractor's pages, not the building owner's; `owner`: the owner's alone. */
+const PAGES: { page: DeskPage; name: string; plans?: true; contractor?: true; owner?: true }[] = [
+  { page: "jobs", name: "Days and jobs", contractor: true },
+  { page: "plan", name: "Plan a day", plans: true, contractor: true },
+  { page: "equipment", name: "Equipment register", contractor: true },
+  { page: "building", name: "Building" },
+  { page: "log", name: "Anchor log book" },
+  { page: "anchors", name: "Anchors and certificates" },
+  { page: "grants", name: "Access grants", owner: true },
 ];
 
 /** Who may be a job's supervisor, and so plan a day (the server's rule for a job's supervisor). */
@@ -37,6 +46,13 @@ export function Desk({ user, route }: { user: User; route: Extract<Route, { name
   const role = ROLE_WORDS[user.role ?? ""];
   const allowed = role !== undefined;
   const plans = PLANNERS.has(user.role ?? "");
+  // A property manager keeps the building: the contractor's pages are not theirs.
+  const manages = user.role === "property_manager";
+  const forRole = PAGES.filter((p) => (manages ? !p.contractor : !p.owner));
+  const page = forRole.some((p) => p.page === route.page) ? route.page : forRole[0]!.page;
+  const shown = forRole.filter((p) => plans || !p.plans);
+  // The owner's pages carry the chosen site's id from one to the next; a job's id stays behind.
+  const siteId = forRole.find((p) => p.page === page)?.contractor ? undefined : route.id;
   let screen;
   if (!allowed) {
     screen = (
@@ -46,15 +62,19 @@ export function Desk({ user, route }: { user: User; route: Extract<Route, { name
         <p><a class="btn" href={href({ name: "jobs" })}>Back to today's jobs</a></p>
       </>
     );
-  } else if (route.page === "plan" && !plans) {
+  } else if (page === "building") screen = <DeskBuilding key={route.id} siteId={route.id} />;
+  else if (page === "log") screen = <DeskLogBook key={route.id} siteId={route.id} />;
+  else if (page === "anchors") screen = <DeskCertificates key={route.id} siteId={route.id} />;
+  else if (page === "grants") screen = <DeskGrants key={route.id} siteId={route.id} />;
+  else if (page === "plan" && !plans) {
     screen = (
       <>
         <h1>Plan a day</h1>
         <p>A day is planned by the contractor's supervisor or admin, who is the job's supervisor.</p>
       </>
     );
-  } else if (route.page === "plan") screen = <DeskPlan key={route.id ?? "new"} user={user} jobId={route.id} />;
-  else if (route.page === "equipment") screen = <DeskEquipment />;
+  } else if (page === "plan") screen = <DeskPlan key={route.id ?? "new"} user={user} jobId={route.id} />;
+  else if (page === "equipment") screen = <DeskEquipment />;
   else screen = <DeskJobs plans={plans} />;
 
   return (
@@ -71,9 +91,9 @@ export function Desk({ user, route }: { user: User; route: Extract<Route, { name
       {allowed && (
         <nav class="desk-nav" aria-label="Desk">
           <ul>
-            {PAGES.filter((p) => plans || !p.plans).map((p) => (
+            {shown.map((p) => (
               <li key={p.page}>
-                <a href={href({ name: "desk", page: p.page })} aria-current={route.page === p.page ? "page" : undefined}>
+                <a href={href({ name: "desk", page: p.page, id: p.contractor ? undefined : siteId })} aria-current={page === p.page ? "page" : undefined}>
                   {p.name}
                 </a>
               </li>
@@ -81,7 +101,7 @@ export function Desk({ user, route }: { user: User; route: Extract<Route, { name
           </ul>
         </nav>
       )}
-      <main class="desk-main" data-testid={`desk-${allowed ? route.page : "refused"}`}>
+      <main class="desk-main" data-testid={`desk-${allowed ? page : "refused"}`}>
         {screen}
       </main>
     </div>

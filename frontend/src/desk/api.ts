@@ -5,7 +5,7 @@
  */
 import { ApiError, request } from "../api";
 import type { components } from "../api-schema";
-import type { Anchor, DailyRecord, Equipment, JobDetail, JobSummary, Page, Site } from "../types";
+import type { Anchor, DailyRecord, Equipment, JobDetail, JobSummary, Page, Profile, Site } from "../types";
 
 type Schemas = components["schemas"];
 
@@ -18,6 +18,14 @@ export type EquipmentInput = Omit<Schemas["EquipmentRequest"], "ratings"> & { ra
 type EquipmentChange = Schemas["PatchedEquipmentChangeInputRequest"];
 export type PlanChoice = Schemas["PlanCheckInputRequest"];
 export type Drop = JobDetail["drops"][number];
+export type Certification = Schemas["Certification"];
+export type CertificationInput = Schemas["CertificationRequest"];
+/** An anchor with its certificate in force as the server gives it (the phone reads less of it). */
+export type SiteAnchor = Omit<Anchor, "certification"> & { certification: Certification | null };
+export type LogEntry = Schemas["LogEntry"];
+export type LogEntryInput = Schemas["LogEntryInputRequest"];
+export type Grant = Schemas["Grant"];
+type GrantInput = Schemas["GrantRequest"];
 
 const PAGE = 200;
 
@@ -44,6 +52,17 @@ export const desk = {
   records: (start: string) => all<DailyRecord>(`records/?start=${encodeURIComponent(start)}`),
   sites: () => all<Site>("sites/"),
   anchors: (site: number) => all<Anchor>(`anchors/?site=${site}`),
+  siteAnchors: (site: number) => all<SiteAnchor>(`anchors/?site=${site}`),
+  profiles: () => all<Profile>("profiles/"),
+  /** The site's anchor log book in the server's order (by sequence, oldest first). */
+  log: (site: number) => all<LogEntry>(`anchor-log/?site=${site}`),
+  addLogEntry: (data: LogEntryInput) => request<LogEntry>("anchor-log/", { method: "POST", json: data }),
+  addCertification: (anchor: number, data: CertificationInput) =>
+    request<Certification>(`anchors/${anchor}/certifications/`, { method: "POST", json: data }),
+  grants: (site: number) => request<Grant[]>(`sites/${site}/grants/`),
+  grant: (site: number, data: GrantInput) => request<Grant>(`sites/${site}/grants/`, { method: "POST", json: data }),
+  endGrant: (site: number, grant: number, reason: string) =>
+    request<Grant>(`sites/${site}/grants/${grant}/end/`, { method: "POST", json: { reason } }),
   equipment: (kind?: string) => all<Equipment>(kind ? `equipment/?kind=${encodeURIComponent(kind)}` : "equipment/"),
   /** The kinds and their ratings field by field (a plain list; the schema calls it paginated). */
   kinds: async () => {

@@ -24,7 +24,7 @@ export type Route =
   | { name: "desk"; page: DeskPage; id?: number };
 
 /** The desk side's screens (laptop or tablet), loaded apart from the phone's. */
-export type DeskPage = "jobs" | "plan" | "equipment";
+export type DeskPage = "jobs" | "plan" | "equipment" | "building" | "log" | "anchors" | "grants";
 
 function parseRoute(hash: string): Route {
   const parts = hash.replace(/^#\/?/, "").split("/").filter(Boolean);
@@ -37,7 +37,9 @@ function parseRoute(hash: string): Route {
   }
   if (parts[0] === "outbox") return { name: "outbox" };
   if (parts[0] === "desk") {
-    const page: DeskPage = parts[1] === "plan" || parts[1] === "equipment" ? parts[1] : "jobs";
+    // Unchecked here to keep the phone's first load small: the desk chunk shows its first page
+    // for a name it does not know (desk/Desk.tsx).
+    const page = (parts[1] ?? "jobs") as DeskPage;
     const deskId = Number(parts[2]);
     return parts[2] && Number.isInteger(deskId) ? { name: "desk", page, id: deskId } : { name: "desk", page };
   }
