@@ -15,6 +15,8 @@ from compliance.engineering.decay import schedule_problems
 from compliance.engineering.working import num, whole_pct
 
 TICK_VALUES = ("pass", "fail", "na")
+NOTE_MAX = 8000
+"""Longest note an item takes (the phone's field stops there too)."""
 
 
 class EntryError(ValueError):
@@ -470,5 +472,7 @@ def evaluate(
         elif kind == "note":
             if value is not None and not isinstance(value, str):
                 raise EntryError(f"{path}.value", "A note is a text.")
+            if value is not None and len(value) > NOTE_MAX:
+                raise EntryError(f"{path}.value", f"A note of at most {NOTE_MAX} characters.")
             results.append(ItemResult(**base, verdict="recorded", value=value or ""))
     return SheetOutcome(items=tuple(results))

@@ -228,3 +228,16 @@ def test_input_words_name_an_input_as_the_sheet_shows_it():
     assert input_words({"robot": "mass_kg"}, labels, "m") == "the robot's mass kg"
     assert input_words({"crane": "reach_m"}, labels, "r") == "the crane's reach m"
     assert input_words(None, labels, "wind_ms") == "wind ms"
+
+
+def test_a_note_longer_than_a_record_page_holds_sensibly_is_refused():
+    """A note is capped like the sheet's remarks (a pasted log would fill pages of the record
+    and the phone's storage); the limit itself is kept."""
+    note = {"key": "n", "kind": "note", "label": "Note", "blocking": False}
+    error = refusal([note], {"n": {"value": "x" * 8001}})
+    assert (error.field, error.message) == (
+        "entries.n.value",
+        "A note of at most 8000 characters.",
+    )
+    kept = evaluate([note], {"n": {"value": "y" * 8000}}, {})
+    assert kept.items[0].value == "y" * 8000

@@ -368,7 +368,7 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         )}
 
         {item.kind === "note" && (
-          <textarea rows={3} value={draft.notes[key] ?? ""} aria-label={item.label}
+          <textarea rows={3} maxLength={8000} value={draft.notes[key] ?? ""} aria-label={item.label}
             onInput={(e) => set("notes", key, (e.target as HTMLTextAreaElement).value)} data-testid={`note-${key}`} />
         )}
 
