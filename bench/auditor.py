@@ -274,7 +274,28 @@ def main() -> None:
         f"{statistics.median(s['sql_ms'] for s in per):.1f} | "
         f"{statistics.median(s['bytes'] for s in per) / 1024:.0f} |"
     )
-    print(f"| whole site-month | {total_ms:.0f} | {total_q} | | |")
+    print(f"| whole site-month, one list per job | {total_ms:.0f} | {total_q} | | |")
+    # The same month in two requests: the site's records and sheets filtered by period.
+    month_end = MONTH + dt.timedelta(days=DAYS + 5)
+    period = f"site={site.pk}&start={MONTH.isoformat()}&end={month_end.isoformat()}"
+    month_records = measure(client, f"/api/v1/records/?{period}")
+    month_sheets = measure(client, f"/api/v1/sheets/?{period}&limit=1000")
+    assert month_records["body"]["count"] == DAYS, month_records["body"]["count"]
+    assert month_sheets["body"]["count"] == DAYS * SHEETS_PER_JOB, month_sheets["body"]["count"]
+    two_ms = month_records["ms"] + month_sheets["ms"]
+    two_q = month_records["queries"] + month_sheets["queries"]
+    print(
+        f"| GET /api/v1/records/?site=&start=&end= | {month_records['ms']:.1f} | "
+        f"{month_records['queries']} | {month_records['sql_ms']:.1f} | "
+        f"{month_records['bytes'] / 1024:.0f} |"
+    )
+    print(
+        f"| GET /api/v1/sheets/?site=&start=&end= ({DAYS * SHEETS_PER_JOB} sheets) | "
+        f"{month_sheets['ms']:.1f} | {month_sheets['queries']} | {month_sheets['sql_ms']:.1f} | "
+        f"{month_sheets['bytes'] / 1024:.0f} |"
+    )
+    print(f"| whole site-month, two requests | {two_ms:.0f} | {two_q} | | |")
+    print(f"\ntwo requests / one list per job = {two_ms / total_ms:.2f}x the time")
     for name, result in (("records", records), ("sheets", per[0])):
         slow = result["slowest"]
         print(f"\nslowest query of the {name} list ({float(slow['time']) * 1000:.1f} ms):")
