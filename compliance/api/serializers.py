@@ -335,49 +335,61 @@ class JobSerializer(StrictInput, serializers.ModelSerializer):
         )
 
 
+SHEET_FIELDS = [
+    "id",
+    "client_uuid",
+    "job",
+    "checklist",
+    "version",
+    "version_number",
+    "version_hash",
+    "subject_kind",
+    "anchor",
+    "equipment",
+    "filled_by",
+    "device_time",
+    "received_at",
+    "verdict",
+    "blocking_failures",
+    "remarks",
+]
+ENTRY_FIELDS = [
+    "item_key",
+    "kind",
+    "value",
+    "unit",
+    "verdict",
+    "blocking",
+    "margin",
+    "message",
+    "working",
+]
+
+
 class ItemEntrySerializer(serializers.ModelSerializer):
     class Meta:
         model = ItemEntry
-        fields = [
-            "item_key",
-            "kind",
-            "value",
-            "unit",
-            "verdict",
-            "blocking",
-            "margin",
-            "message",
-            "working",
-        ]
+        fields = ENTRY_FIELDS
 
 
-class SheetSerializer(serializers.ModelSerializer):
+class SheetHeadSerializer(serializers.ModelSerializer):
+    """A sheet without its entries: a long list reads the entries as plain rows instead."""
+
     checklist = serializers.CharField(source="version.checklist.key")
     version_number = serializers.IntegerField(source="version.number")
     filled_by = serializers.CharField(source="filled_by.display_name")
+
+    class Meta:
+        model = CheckSheet
+        fields = SHEET_FIELDS
+
+
+class SheetSerializer(SheetHeadSerializer):
     entries = ItemEntrySerializer(many=True)
 
     class Meta:
         model = CheckSheet
-        fields = [
-            "id",
-            "client_uuid",
-            "job",
-            "checklist",
-            "version",
-            "version_number",
-            "version_hash",
-            "subject_kind",
-            "anchor",
-            "equipment",
-            "filled_by",
-            "device_time",
-            "received_at",
-            "verdict",
-            "blocking_failures",
-            "remarks",
-            "entries",
-        ]
+        fields = [*SHEET_FIELDS, "entries"]
 
 
 class SheetInputSerializer(StrictInput, serializers.Serializer):

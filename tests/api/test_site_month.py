@@ -64,3 +64,16 @@ def test_the_month_s_records_of_one_site(job):
     )
     assert (answer.status_code, answer.json()["count"]) == (200, 0)
     assert Job.objects.filter(site=job.site).exists()
+
+
+def test_the_list_answers_each_sheet_as_its_detail_does(month, job):
+    """The list reads entries as plain rows; what it answers must be what the detail answers
+    (the serializer's output), value for value and in the same order."""
+    client = client_for(job.supervisor)
+    listed = client.get(reverse("sheet-list"), {"site": job.site_id, "limit": 1000}).json()
+    assert listed["count"] == CheckSheet.objects.filter(job__site=job.site).count() > 5
+    for row in listed["results"]:
+        detail = client.get(reverse("sheet-detail", args=[row["id"]]))
+        assert detail.status_code == 200
+        assert row == detail.json()
+        assert list(row) == list(detail.json())
