@@ -45,8 +45,12 @@ def axe_clean(page, screen: str) -> None:
     assert violations == [], f"axe-core on {screen}:\n{json.dumps(violations, indent=1)}"
 
 
-def desk_shot(page, name: str) -> None:
-    page.evaluate("() => window.scrollTo(0, 0)")
+def desk_shot(page, name: str, top: str | None = None) -> None:
+    """A 1280 x 800 screenshot from the page's top, or with the element `top` at the top."""
+    if top:
+        page.locator(top).evaluate("e => e.scrollIntoView()")
+    else:
+        page.evaluate("() => window.scrollTo(0, 0)")
     shot(page, name)
 
 
@@ -195,6 +199,8 @@ def test_manager_keeps_the_log_book_and_removal_holds_the_contractors_job(
     page.wait_for_selector(f"[data-testid=anchor-{used.label}][data-state=out_of_service]")
     assert "Cracked base plate" in page.inner_text(f"[data-testid=anchor-{used.label}]")
     assert page.get_attribute(f"[data-testid=mark-{used.label}]", "data-state") == "out_of_service"
+    axe_clean(page, "building with an anchor out of service")
+    desk_shot(page, "desk-owner-building-held.png", top="#plan-head")
 
     # The contractor's operator sees the job held on the phone.
     phone = browser.new_context(viewport={"width": 390, "height": 844}, locale="en-GB")

@@ -5,7 +5,7 @@
  * and screen-reader users; the plan only adds where each anchor is.
  */
 import { href } from "../ui/hooks";
-import { Badge, Sign } from "../ui/signs";
+import { Badge } from "../ui/signs";
 import { dayFrom } from "./api";
 import { anchorState, DUE_SOON_DAYS } from "./anchorState";
 import { DeskCaution } from "./parts";
@@ -40,9 +40,8 @@ export function DeskBuilding({ siteId }: { siteId?: number }) {
               const s = stateOf.get(a.id)!;
               return (
                 <span key={a.id} class={`roof-mark roof-mark-${s.sign}`} style={style} data-testid={`mark-${a.label}`} data-state={s.key}>
-                  <Sign kind={s.sign} size={20} />
                   <span class="roof-mark-label">{a.label}</span>
-                  <span class="roof-mark-word">{s.word}</span>
+                  <Badge kind={s.sign} word={s.word} />
                 </span>
               );
             }}

@@ -49,7 +49,8 @@ export function Desk({ user, route }: { user: User; route: Extract<Route, { name
   // A property manager keeps the building: the contractor's pages are not theirs.
   const manages = user.role === "property_manager";
   const forRole = PAGES.filter((p) => (manages ? !p.contractor : !p.owner));
-  const page = forRole.some((p) => p.page === route.page) ? route.page : forRole[0]!.page;
+  // A page not for this role opens the role's first, except planning, which says who plans a day.
+  const page = route.page === "plan" || forRole.some((p) => p.page === route.page) ? route.page : forRole[0]!.page;
   const shown = forRole.filter((p) => plans || !p.plans);
   // The owner's pages carry the chosen site's id from one to the next; a job's id stays behind.
   const siteId = forRole.find((p) => p.page === page)?.contractor ? undefined : route.id;

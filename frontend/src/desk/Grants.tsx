@@ -94,7 +94,7 @@ function GiveGrant({ site, known, onGiven }: { site: number; known: { id: number
       </div>
       {choice === "other" && (
         <div class="field">
-          <label for="grant-number">Contractor's organisation number <span class="muted">(they find it in their Parapet account)</span></label>
+          <label for="grant-number">Contractor's organisation number <span class="muted">(from the platform's staff: Parapet lists no other organisations)</span></label>
           <input id="grant-number" type="text" inputMode="numeric" autocomplete="off" value={number} onInput={(e) => setNumber(e.currentTarget.value)}
             aria-describedby={describedBy(errors.contractor && "err-grant-contractor")} />
         </div>
