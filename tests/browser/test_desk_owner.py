@@ -214,6 +214,19 @@ def test_manager_keeps_the_log_book_and_removal_holds_the_contractors_job(
     finally:
         phone.close()
 
+    # Returned to service: the hold the removal opened is cleared.
+    page.click("nav.desk-nav a:has-text('Anchor log book')")
+    page.wait_for_selector("[data-testid=desk-log] [data-testid=log-form]")
+    # The log book's signed PDF, fetched with the manager's session.
+    pdf = page.request.get(live_server.url + page.get_attribute("[data-testid=log-pdf]", "href"))
+    assert (pdf.status, pdf.headers["content-type"]) == (200, "application/pdf")
+    sign_entry(
+        page, used.pk, "returned_to_service", "Base plate replaced and proof loaded.", PASSWORD
+    )
+    page.wait_for_selector("[data-testid=log-done]")
+    assert log_rows(site)[-1][:2] == (used.label, "returned_to_service")
+    assert not Hold.objects.filter(job=job, clearance__isnull=True).exists()
+
 
 @pytest.mark.django_db(transaction=True)
 def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_server, demo):

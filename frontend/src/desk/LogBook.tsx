@@ -65,6 +65,9 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
     setErrors({});
     try {
       const entry = await desk.addLogEntry(body);
+      // A fresh form: a removal from service is never one click away from being signed twice.
+      setAnchor("");
+      setKind("periodic_inspection");
       setDetails("");
       setBy("");
       setCompany("");
