@@ -3,7 +3,7 @@
 from collections.abc import Iterable
 from dataclasses import dataclass
 
-from django.db.models import Exists, OuterRef, Prefetch, QuerySet
+from django.db.models import Exists, OuterRef, Prefetch, QuerySet, Subquery
 
 from checklists.selectors import current_versions, latest_sheets
 from compliance.access import can_work_at
@@ -19,6 +19,7 @@ from compliance.models import (
     Equipment,
     Hold,
     Job,
+    RegisterChange,
     User,
 )
 
@@ -403,3 +404,32 @@ def plan_conflicts(
                     )
                 )
     return conflicts
+
+
+WITHDRAWN = "taken out of service"
+
+
+def equipment_of(organisation_id: int | None) -> QuerySet[Equipment]:
+    """The organisation's equipment, each with the reason given when it was last taken out of
+    service (from its audit entries, in the same query)."""
+    reason = (
+        RegisterChange.objects.filter(
+            subject="equipment", object_id=OuterRef("pk"), action=WITHDRAWN
+        )
+        .order_by("-at", "-pk")
+        .values("changes__reason")[:1]
+    )
+    return Equipment.objects.filter(organisation_id=organisation_id).annotate(
+        withdrawn_reason=Subquery(reason)
+    )
+
+
+def withdrawn_reason(item: Equipment) -> str:
+    """The reason given when this equipment was last taken out of service ("" if none)."""
+    found = (
+        RegisterChange.objects.filter(subject="equipment", object_id=item.pk, action=WITHDRAWN)
+        .order_by("-at", "-pk")
+        .values_list("changes__reason", flat=True)
+        .first()
+    )
+    return found or ""

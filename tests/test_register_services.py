@@ -304,3 +304,20 @@ def test_the_admin_names_a_certification_by_its_anchor_and_dates(keeper):
         valid_until=dt.date(2027, 6, 1),
     )
     assert str(cert) == "Anchor W4 certified 2026-06-01, valid until 2027-06-01"
+
+
+def test_equipment_out_of_service_says_why(keeper, django_assert_num_queries):
+    hose = services.create_equipment(by=keeper, kind="hose", label="H7", ratings=RATINGS["hose"])
+    services.create_equipment(by=keeper, kind="hose", label="H8", ratings=RATINGS["hose"])
+    client = client_for(keeper)
+    url = reverse("equipment-detail", args=[hose.pk])
+    answer = client.patch(url, {"in_service": False, "reason": "Kinked at 40 m."}, format="json")
+    assert answer.json()["out_of_service_reason"] == "Kinked at 40 m."
+    with django_assert_num_queries(2):  # the count, the page with each reason (token auth)
+        listed = client.get(reverse("equipment-list")).json()["results"]
+    assert {i["label"]: i["out_of_service_reason"] for i in listed} == {
+        "H7": "Kinked at 40 m.",
+        "H8": None,
+    }
+    client.patch(url, {"in_service": True}, format="json")
+    assert client.get(url).json()["out_of_service_reason"] is None

@@ -22,6 +22,7 @@ from compliance.models import (
     User,
 )
 from compliance.ratings import EQUIPMENT_KINDS
+from compliance.selectors import withdrawn_reason
 
 
 class UserSerializer(serializers.ModelSerializer):
@@ -154,6 +155,7 @@ class EquipmentSerializer(StrictInput, serializers.ModelSerializer):
     kind = serializers.ChoiceField(choices=EQUIPMENT_KINDS)
     made_on = PlausibleDateField(required=False, allow_null=True)
     next_inspection_due = PlausibleDateField(required=False, allow_null=True)
+    out_of_service_reason = serializers.SerializerMethodField()
 
     class Meta:
         model = Equipment
@@ -166,7 +168,16 @@ class EquipmentSerializer(StrictInput, serializers.ModelSerializer):
             "made_on",
             "next_inspection_due",
             "in_service",
+            "out_of_service_reason",
         ]
+
+    def get_out_of_service_reason(self, item: Equipment) -> str | None:
+        """Why it is out of service, as said when it was taken out (None while in service)."""
+        if item.in_service or item.pk is None:
+            return None
+        if hasattr(item, "withdrawn_reason"):
+            return item.withdrawn_reason or ""
+        return withdrawn_reason(item)
 
 
 class RatingFieldSerializer(serializers.Serializer):

@@ -41,7 +41,7 @@ from compliance.models import (
     Site,
 )
 from compliance.ratings import EQUIPMENT_KINDS, KIND_WORDS, rating_form
-from compliance.selectors import job_readiness, jobs_for, plan_conflicts
+from compliance.selectors import equipment_of, job_readiness, jobs_for, plan_conflicts
 from compliance.sync import MAX_BATCH, printable
 
 
@@ -295,7 +295,7 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
     permission_classes = [SupervisorWrites]
 
     def get_queryset(self) -> QuerySet[Equipment]:
-        qs = Equipment.objects.filter(organisation_id=self.org_id)
+        qs = equipment_of(self.org_id)
         kind = query_text(self.request.query_params, "kind")
         return qs.filter(kind=kind) if kind else qs
 

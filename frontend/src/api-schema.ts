@@ -960,6 +960,7 @@ export interface components {
             /** Format: date */
             next_inspection_due?: string | null;
             in_service?: boolean;
+            readonly out_of_service_reason: string | null;
         };
         EquipmentKind: {
             kind: string;
