@@ -307,3 +307,32 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
     assert (ended.ended_by.username, ended.reason) == (MANAGER, "Work finished early.")
     # The demo contractor's grant is untouched.
     assert SiteAccess.objects.filter(site=site, end__isnull=True).count() == 1
+
+
+@pytest.mark.django_db(transaction=True)
+def test_contractor_supervisor_reads_the_building_but_manages_no_access(page, live_server, demo):
+    base = live_server.url
+    page.goto(base + "/")
+    page.wait_for_selector("input[name=username]")
+    page.wait_for_load_state("networkidle")
+    page.fill("input[name=username]", "rhea")
+    page.fill("input[name=password]", PASSWORD)
+    page.click("button[type=submit]")
+    page.wait_for_selector("[data-testid=desk-link]")
+    page.set_viewport_size(DESK)
+    page.click("[data-testid=desk-link]")
+    page.wait_for_selector("[data-testid=desk-jobs]")
+    assert page.locator("nav.desk-nav a").all_inner_texts() == [
+        "Days and jobs",
+        "Plan a day",
+        "Equipment register",
+        "Building",
+        "Anchor log book",
+        "Anchors and certificates",
+    ]
+    # The owner's grants page is not the contractor's: the address opens its first page.
+    page.goto(base + "/#/desk/grants")
+    page.wait_for_selector("[data-testid=desk-jobs]")
+    page.click("nav.desk-nav a:has-text('Building')")
+    page.wait_for_selector("[data-testid=desk-building] [data-testid=anchor-R8][data-state=lapsed]")
+    axe_clean(page, "building for a contractor's supervisor")
