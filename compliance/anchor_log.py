@@ -15,27 +15,20 @@ import datetime as dt
 from typing import Any
 
 from django.db import transaction
-from django.db.models import Q
 from django.utils import timezone
 
 from checklists.models import CheckSheet
 from compliance.access import can_work_at, owns_site
-from compliance.anchor_status import status_requirement
 from compliance.errors import InvalidTransition, NotPermitted
+from compliance.holds import clear_for_returned_anchor, hold_for_removed_anchor, jobs_using
 from compliance.models import (
-    OPEN_STATES,
     Anchor,
     AnchorLogEntry,
-    Hold,
-    HoldClearance,
-    Job,
-    JobState,
     SigningCredential,
     Site,
     User,
 )
 from compliance.sealing import canonical_bytes, check_links, seal_of, utc
-from compliance.services import _transition, refresh_readiness
 from compliance.signing import active_credential, sign_seal
 
 FORMAT = "parapet.anchor-log-entry/1"
@@ -172,7 +165,7 @@ def record_entry(
     credential = active_credential(by.organisation_id)
     with transaction.atomic():
         moves_jobs = kind in (AnchorLogEntry.Kind.REMOVED, AnchorLogEntry.Kind.RETURNED)
-        jobs = _jobs_using(anchor) if moves_jobs else []  # locked before the chain: lock order
+        jobs = jobs_using(anchor) if moves_jobs else []  # locked before the chain: lock order
         entry = _create(
             anchor=anchor,
             by=by,
@@ -187,9 +180,9 @@ def record_entry(
             method="user id and password re-entered at the moment of signing",
         )
         if kind == AnchorLogEntry.Kind.REMOVED:
-            _hold_jobs(jobs, anchor, entry, by)
+            hold_for_removed_anchor(jobs=jobs, anchor=anchor, entry=entry, by=by)
         elif kind == AnchorLogEntry.Kind.RETURNED:
-            _clear_holds_of(jobs, anchor, entry, by)
+            clear_for_returned_anchor(jobs=jobs, anchor=anchor, entry=entry, by=by)
     return entry
 
 
@@ -224,43 +217,6 @@ def log_pre_use_check(sheet: CheckSheet) -> AnchorLogEntry:
         method=f"recorded from pre-start check sheet {sheet.pk} signed in by its operator",
         sheet=sheet,
     )
-
-
-def _jobs_using(anchor: Anchor) -> list[Job]:
-    ids = (
-        Job.objects.filter(
-            Q(drops__anchor=anchor) | Q(drops__safety_anchor=anchor),
-            state__in=OPEN_STATES,
-            date__gte=timezone.localdate(),
-        )
-        .values_list("pk", flat=True)
-        .distinct()
-    )
-    # PostgreSQL refuses FOR UPDATE with DISTINCT: find the jobs, then lock them by id.
-    return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
-
-
-def _hold_jobs(jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
-    for job in jobs:
-        Hold.objects.create(
-            job=job,
-            requirement=status_requirement(anchor),
-            item_key="in_service",
-            log_entry=entry,
-            reason=f"Anchor {anchor.label} was removed from service on "
-            f"{entry.performed_on:%Y-%m-%d}: {entry.details}",
-        )
-        if job.state != JobState.HELD:
-            _transition(
-                job, JobState.HELD, by, f"Stop work: anchor {anchor.label} removed from service."
-            )
-
-
-def _clear_holds_of(jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User) -> None:
-    for hold in Hold.objects.filter(requirement=status_requirement(anchor), clearance__isnull=True):
-        HoldClearance.objects.create(hold=hold, log_entry=entry, by=by)
-    for job in jobs:
-        refresh_readiness(job=job, by=by)
 
 
 def verify_log_chain(site_id: int) -> list[Any]:

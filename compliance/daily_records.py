@@ -26,6 +26,7 @@ from django.utils import timezone
 from checklists.models import CheckSheet, ItemEntry, Photo
 from compliance.celery import app as celery_app
 from compliance.errors import InvalidTransition, NotPermitted
+from compliance.holds import OPEN_HOLDS_NOT_SAFE, SIGNED_HELD
 from compliance.models import (
     AnchorCertification,
     DailyRecord,
@@ -406,14 +407,12 @@ def sign_daily_record(
                 "Close the job (or leave it held) before signing the day's record."
             )
         if job.state == JobState.HELD:
-            close_job(job=job, by=by, reason="Signed off at day's end with the hold open.")
+            close_job(job=job, by=by, reason=SIGNED_HELD)
             job.refresh_from_db()
         _keep_profile_revision(job.site.profile)
         content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
-            raise InvalidTransition(
-                "This record has open holds; sign it as stopped or with exceptions."
-            )
+            raise InvalidTransition(OPEN_HOLDS_NOT_SAFE)
         head = _locked_head(job.organisation_id, job.site_id)
         sequence, previous = head.sequence + 1, head.seal
         signed_at = timezone.now()

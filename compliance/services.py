@@ -10,14 +10,19 @@ from checklists.models import CheckSheet
 from checklists.verdicts import SheetOutcome
 from compliance.access import can_work_at, grantable_contractors, owns_site
 from compliance.errors import InvalidTransition, JobBlocked, NotPermitted, Reason
+from compliance.holds import (
+    clear_by_passing_sheet,
+    hold_for_failed_items,
+    locked,
+    refresh_readiness,
+    transition,
+)
 from compliance.models import (
     Anchor,
     AnchorCertification,
     Drop,
     DropLog,
     Equipment,
-    Hold,
-    HoldClearance,
     Job,
     JobState,
     JobTransition,
@@ -34,23 +39,6 @@ from compliance.selectors import job_blockers, plan_conflicts
 def _require_writer(user: User) -> None:
     if not user.can_write:
         raise NotPermitted("Auditors have read-only access.")
-
-
-def _transition(job: Job, to_state: str, by: User | None, reason: str) -> Job:
-    JobTransition.objects.create(
-        job=job, from_state=job.state, to_state=to_state, by=by, reason=reason
-    )
-    job.state = to_state
-    job.save(update_fields=["state"])
-    return job
-
-
-def _locked(job: Job) -> Job:
-    """The job's row, locked until the transaction ends; its site and profile are read along
-    but not locked (every crew under one profile would otherwise wait on the others)."""
-    return (
-        Job.objects.select_for_update(of=("self",)).select_related("site__profile").get(pk=job.pk)
-    )
 
 
 def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
@@ -125,9 +113,9 @@ def add_drop(
         )
         drop.full_clean()
         drop.save()
-        job = _locked(job)
+        job = locked(job)
         if job.state == JobState.CLEARED:
-            _transition(job, JobState.PLANNED, by, f"Drop {label} added; its checks are needed.")
+            transition(job, JobState.PLANNED, by, f"Drop {label} added; its checks are needed.")
     return drop
 
 
@@ -135,7 +123,7 @@ def start_job(*, job: Job, by: User) -> Job:
     """Move a job to working, or raise JobBlocked with every reason it cannot start."""
     _require_writer(by)
     with transaction.atomic():
-        job = _locked(job)
+        job = locked(job)
         if job.state == JobState.WORKING:
             return job
         if job.state == JobState.CLOSED:
@@ -143,27 +131,27 @@ def start_job(*, job: Job, by: User) -> Job:
         reasons = job_blockers(job)
         if reasons:
             raise JobBlocked(reasons)
-        return _transition(job, JobState.WORKING, by, "Pre-start checks passed; work started.")
+        return transition(job, JobState.WORKING, by, "Pre-start checks passed; work started.")
 
 
 def pause_job(*, job: Job, by: User, reason: str = "") -> Job:
     _require_writer(by)
     with transaction.atomic():
-        job = _locked(job)
+        job = locked(job)
         if job.state != JobState.WORKING:
             raise InvalidTransition(f"Only a working job can be paused; this one is {job.state}.")
-        return _transition(job, JobState.CLEARED, by, reason or "Work paused.")
+        return transition(job, JobState.CLEARED, by, reason or "Work paused.")
 
 
 def close_job(*, job: Job, by: User, reason: str = "") -> Job:
     _require_writer(by)
     with transaction.atomic():
-        job = _locked(job)
+        job = locked(job)
         if job.state == JobState.CLOSED:
             raise InvalidTransition("This job is already closed.")
         if job.state == JobState.HELD and not reason.strip():
             raise InvalidTransition("Closing a held job needs a reason.")
-        return _transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")
+        return transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")
 
 
 def apply_sheet_outcome(
@@ -174,55 +162,21 @@ def apply_sheet_outcome(
     drops: list[Drop] | None = None,
     defer_readiness: bool = False,
 ) -> Job:
-    """Open holds for failed blocking items, or clear this requirement's holds on a pass.
+    """Open holds for failed blocking items, or clear this requirement's holds on a pass (the
+    rules are in compliance.holds).
 
     Holds open at once. With ``defer_readiness`` the move back to cleared or planned waits for
     the caller's ``refresh_readiness`` (a sync batch does it once per job, not once per sheet).
     """
-    job = _locked(sheet.job)
-    requirement = sheet.requirement
-    failures = outcome.blocking_failures
-    if failures:
-        if job.state == JobState.CLOSED:
-            return job
-        for item in failures:
-            Hold.objects.create(
-                job=job,
-                requirement=requirement,
-                item_key=item.key,
-                sheet=sheet,
-                reason=f"{item.label}: {item.message or 'failed'}",
-            )
-        if job.state != JobState.HELD:
-            names = ", ".join(i.label for i in failures)
-            _transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
-        return job
-    # A sheet clears only what a sheet opened: the owner's stop work (an anchor removed from
-    # service) waits for the owner's return to service, whatever the crew's checklist is called.
-    for hold in Hold.objects.filter(
-        job=job, requirement=requirement, clearance__isnull=True, sheet__isnull=False
-    ):
-        HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
+    job = locked(sheet.job)
+    if outcome.blocking_failures:
+        return hold_for_failed_items(
+            job=job, sheet=sheet, failures=outcome.blocking_failures, by=by
+        )
+    clear_by_passing_sheet(job=job, sheet=sheet, by=by)
     if defer_readiness:
         return job
     return refresh_readiness(job=job, by=by, drops=drops)
-
-
-def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = None) -> Job:
-    """Move a held or planned job to cleared (or back to planned) from what it now has."""
-    if job.state not in (JobState.PLANNED, JobState.HELD, JobState.CLEARED):
-        return job
-    if Hold.objects.filter(job=job, clearance__isnull=True).exists():
-        return job
-    ready = not job_blockers(job, drops)
-    if job.state == JobState.HELD:
-        target = JobState.CLEARED if ready else JobState.PLANNED
-        return _transition(job, target, by, "Every hold cleared by a passing re-check.")
-    if job.state == JobState.PLANNED and ready:
-        return _transition(job, JobState.CLEARED, by, "Every required pre-start check passed.")
-    if job.state == JobState.CLEARED and not ready:
-        return _transition(job, JobState.PLANNED, by, "A required check is no longer satisfied.")
-    return job
 
 
 def record_certification(*, anchor: Anchor, by: User, **fields: Any) -> AnchorCertification:
@@ -472,7 +426,7 @@ def log_drop(
     if len(note) > DROP_NOTE_MAX:
         raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
     with transaction.atomic():
-        job = _locked(drop.job)
+        job = locked(drop.job)
         if job.state != JobState.WORKING:
             raise InvalidTransition(
                 f"Drops are logged while the job is working; it is {job.state}."

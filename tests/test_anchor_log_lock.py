@@ -175,7 +175,7 @@ def test_a_removal_and_a_crews_pre_use_check_at_once_both_land_and_the_job_is_he
 def test_locking_a_job_leaves_its_building_and_profile_free(simple_checklists):
     """A job is locked while its state moves; its site and jurisdiction profile are only read.
     Locking them too made every crew under one profile, at any building, wait for each other."""
-    from compliance.services import _locked
+    from compliance.holds import locked as _locked
 
     first, second = JobFactory(), JobFactory()
     assert first.site_id != second.site_id and first.site.profile_id == second.site.profile_id

@@ -1,0 +1,151 @@
+"""Stop work: every rule that opens or clears a hold on a job, and moves its state with it.
+
+- A failed blocking item opens a hold per item at once, and the job goes to held (a closed day
+  keeps its state: its record shows the failure).
+- Only a passing sheet for the same requirement clears the holds a sheet opened; the owner's
+  stop work (an anchor removed from service) is never cleared by a crew's sheet.
+- Removing an anchor from service holds every open job, of any contractor, that hangs a drop
+  from it today or later; returning it clears those holds, and each job's readiness is read
+  again.
+- A job with an open hold never moves to cleared; when its last hold clears it goes to cleared
+  if nothing else blocks it, else back to planned.
+- A held day may still be signed at its end, never as "reviewed, safe" (see SIGNED_HELD and
+  daily_records.sign_daily_record).
+
+Every function here runs inside its caller's transaction, with the job's row locked.
+"""
+
+from collections.abc import Iterable
+
+from django.db.models import Q
+from django.utils import timezone
+
+from checklists.models import CheckSheet
+from checklists.verdicts import ItemResult
+from compliance.anchor_status import status_requirement
+from compliance.models import (
+    OPEN_STATES,
+    Anchor,
+    AnchorLogEntry,
+    Drop,
+    Hold,
+    HoldClearance,
+    Job,
+    JobState,
+    JobTransition,
+    User,
+)
+from compliance.selectors import job_blockers
+
+SIGNED_HELD = "Signed off at day's end with the hold open."
+"""The reason written when a held day is closed by signing its record."""
+OPEN_HOLDS_NOT_SAFE = "This record has open holds; sign it as stopped or with exceptions."
+
+
+def transition(job: Job, to_state: str, by: User | None, reason: str) -> Job:
+    """Move the job to `to_state` with its log entry (the job's row is locked by the caller)."""
+    JobTransition.objects.create(
+        job=job, from_state=job.state, to_state=to_state, by=by, reason=reason
+    )
+    job.state = to_state
+    job.save(update_fields=["state"])
+    return job
+
+
+def locked(job: Job) -> Job:
+    """The job's row, locked until the transaction ends; its site and profile are read along
+    but not locked (every crew under one profile would otherwise wait on the others)."""
+    return (
+        Job.objects.select_for_update(of=("self",)).select_related("site__profile").get(pk=job.pk)
+    )
+
+
+def hold_for_failed_items(
+    *, job: Job, sheet: CheckSheet, failures: Iterable[ItemResult], by: User
+) -> Job:
+    """Open a hold for each failed blocking item of the sheet and put the job on hold."""
+    if job.state == JobState.CLOSED:
+        return job
+    failures = list(failures)
+    for item in failures:
+        Hold.objects.create(
+            job=job,
+            requirement=sheet.requirement,
+            item_key=item.key,
+            sheet=sheet,
+            reason=f"{item.label}: {item.message or 'failed'}",
+        )
+    if job.state != JobState.HELD:
+        names = ", ".join(i.label for i in failures)
+        transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
+    return job
+
+
+def clear_by_passing_sheet(*, job: Job, sheet: CheckSheet, by: User) -> None:
+    """A passing sheet clears the holds sheets opened on its requirement, and only those."""
+    for hold in Hold.objects.filter(
+        job=job, requirement=sheet.requirement, clearance__isnull=True, sheet__isnull=False
+    ):
+        HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
+
+
+def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = None) -> Job:
+    """Move a held or planned job to cleared (or back to planned) from what it now has."""
+    if job.state not in (JobState.PLANNED, JobState.HELD, JobState.CLEARED):
+        return job
+    if Hold.objects.filter(job=job, clearance__isnull=True).exists():
+        return job
+    ready = not job_blockers(job, drops)
+    if job.state == JobState.HELD:
+        target = JobState.CLEARED if ready else JobState.PLANNED
+        return transition(job, target, by, "Every hold cleared by a passing re-check.")
+    if job.state == JobState.PLANNED and ready:
+        return transition(job, JobState.CLEARED, by, "Every required pre-start check passed.")
+    if job.state == JobState.CLEARED and not ready:
+        return transition(job, JobState.PLANNED, by, "A required check is no longer satisfied.")
+    return job
+
+
+def jobs_using(anchor: Anchor) -> list[Job]:
+    """Open jobs of today or later, of any contractor, with a drop hung from the anchor;
+    locked."""
+    ids = (
+        Job.objects.filter(
+            Q(drops__anchor=anchor) | Q(drops__safety_anchor=anchor),
+            state__in=OPEN_STATES,
+            date__gte=timezone.localdate(),
+        )
+        .values_list("pk", flat=True)
+        .distinct()
+    )
+    # PostgreSQL refuses FOR UPDATE with DISTINCT: find the jobs, then lock them by id.
+    return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
+
+
+def hold_for_removed_anchor(
+    *, jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User
+) -> None:
+    """The owner's stop work: each job using the anchor is held until the anchor returns."""
+    for job in jobs:
+        Hold.objects.create(
+            job=job,
+            requirement=status_requirement(anchor),
+            item_key="in_service",
+            log_entry=entry,
+            reason=f"Anchor {anchor.label} was removed from service on "
+            f"{entry.performed_on:%Y-%m-%d}: {entry.details}",
+        )
+        if job.state != JobState.HELD:
+            transition(
+                job, JobState.HELD, by, f"Stop work: anchor {anchor.label} removed from service."
+            )
+
+
+def clear_for_returned_anchor(
+    *, jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User
+) -> None:
+    """The anchor's return clears the holds its removal opened; readiness is read again."""
+    for hold in Hold.objects.filter(requirement=status_requirement(anchor), clearance__isnull=True):
+        HoldClearance.objects.create(hold=hold, log_entry=entry, by=by)
+    for job in jobs:
+        refresh_readiness(job=job, by=by)
