@@ -469,11 +469,17 @@ def test_property_manager_reaches_the_desk_but_plans_no_day(live_server, demo, p
     sign_in(page, base, "pat")
     page.set_viewport_size(DESK)
     page.click("[data-testid=desk-link]")
-    page.wait_for_selector("[data-testid=desk-jobs] [data-testid=jobs-past-none]")
+    # The owner's desk opens on the building; planning stays with the contractor.
+    page.wait_for_selector("[data-testid=desk-building] [data-testid=building-anchors]")
     assert "Property manager" in page.inner_text("[data-testid=desk-user]")
-    assert page.locator("nav a").all_inner_texts() == ["Days and jobs", "Equipment register"]
+    assert page.locator("nav a").all_inner_texts() == [
+        "Building",
+        "Anchor log book",
+        "Anchors and certificates",
+        "Access grants",
+    ]
     assert page.locator("main a[href='#/desk/plan']").count() == 0
-    axe_clean(page, "the desk's jobs for a property manager")
+    axe_clean(page, "the desk's building for a property manager")
     page.goto(base + "/#/desk/plan")
     page.wait_for_selector("[data-testid=desk-plan]")
     assert "planned by the contractor's supervisor or admin" in page.inner_text("main")
