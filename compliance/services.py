@@ -92,8 +92,12 @@ def add_drop(
         "hose": hose,
     }
     with transaction.atomic():
-        # Two supervisors planning one robot for the same day: the second waits, then sees it.
-        list(Equipment.objects.select_for_update().filter(pk__in=[robot.pk, tether.pk]))
+        # Two supervisors planning one robot or anchor for the same day: the second waits for
+        # the first's drop, then sees it as booked.
+        kit = [robot.pk, tether.pk, safety_line.pk, hose.pk]
+        list(Equipment.objects.select_for_update().filter(pk__in=kit).order_by("pk"))
+        pair = [anchor.pk, safety_anchor.pk]
+        list(Anchor.objects.select_for_update().filter(pk__in=pair).order_by("pk"))
         refusals: dict[str, list[str]] = {}
         for conflict in plan_conflicts(job=job, chosen=chosen):
             if conflict.refuses:
