@@ -321,3 +321,38 @@ def test_equipment_out_of_service_says_why(keeper, django_assert_num_queries):
     }
     client.patch(url, {"in_service": True}, format="json")
     assert client.get(url).json()["out_of_service_reason"] is None
+
+
+def test_an_anchor_s_certificates_are_listed_newest_first(keeper):
+    site = SiteFactory(organisation=keeper.organisation)
+    anchor = services.add_anchor(site=site, by=keeper, label="C9")
+    for year in (2024, 2026, 2025):
+        services.record_certification(
+            anchor=anchor,
+            by=keeper,
+            certifier=f"Tester {year}",
+            rated_capacity_kn=15.0,
+            certified_on=dt.date(year, 3, 1),
+            valid_until=dt.date(year + 1, 3, 1),
+        )
+    answer = client_for(keeper).get(reverse("anchor-certifications", args=[anchor.pk]))
+    assert answer.status_code == 200
+    assert [c["certifier"] for c in answer.json()] == ["Tester 2026", "Tester 2025", "Tester 2024"]
+
+
+def test_a_site_says_whether_the_asker_owns_it():
+    from compliance.models import SiteAccess
+
+    owner = UserFactory(role="property_manager", organisation=OrganisationFactory(kind="owner"))
+    contractor = UserFactory(role="supervisor")
+    site = SiteFactory(organisation=owner.organisation)
+    SiteAccess.objects.create(
+        site=site,
+        contractor=contractor.organisation,
+        granted_by=owner,
+        starts_on=dt.date(2026, 1, 1),
+        ends_on=dt.date(2027, 12, 31),
+    )
+    url = reverse("site-detail", args=[site.pk])
+    assert client_for(owner).get(url).json()["owned"] is True
+    assert client_for(contractor).get(url).json()["owned"] is False

@@ -54,6 +54,7 @@ class SiteSerializer(StrictInput, serializers.ModelSerializer):
     profile = serializers.SlugRelatedField(
         slug_field="key", queryset=JurisdictionProfile.objects.all()
     )
+    owned = serializers.SerializerMethodField()
 
     class Meta:
         model = Site
@@ -66,7 +67,14 @@ class SiteSerializer(StrictInput, serializers.ModelSerializer):
             "profile",
             "terrain",
             "roof_outline",
+            "owned",
         ]
+
+    def get_owned(self, site: Site) -> bool:
+        """Whether the asker's organisation owns the building (and so keeps its anchors, their
+        certificates, its log book and its grants); a contractor works there under a grant."""
+        request = self.context.get("request")
+        return site.organisation_id == getattr(getattr(request, "user", None), "organisation_id", 0)
 
     def validate_roof_outline(self, value: Any) -> list[list[float]]:
         """No plan (an empty list), or a polygon: at least three [x_m, y_m] corners in metres,

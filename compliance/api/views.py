@@ -278,11 +278,26 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
         anchor = services.add_anchor(by=request.user, **data.validated_data)
         return Response(self.get_serializer(anchor).data, status=status.HTTP_201_CREATED)
 
-    @extend_schema(request=s.CertificationSerializer, responses={201: s.CertificationSerializer})
-    @action(detail=True, methods=["post"])
+    @extend_schema(
+        methods=["GET"],
+        request=None,
+        responses={200: s.CertificationSerializer(many=True)},
+    )
+    @extend_schema(
+        methods=["POST"],
+        request=s.CertificationSerializer,
+        responses={201: s.CertificationSerializer},
+    )
+    @action(detail=True, methods=["get", "post"], pagination_class=None)
     def certifications(self, request: Request, pk: str | None = None) -> Response:
-        """Add a certification (append-only; an old one is never edited)."""
+        """Every certification of the anchor, newest first (GET), or add one (POST: append
+        only; an old one is never edited)."""
         anchor = self.get_object()
+        if request.method == "GET":
+            history = sorted(
+                anchor.certifications.all(), key=lambda c: (c.certified_on, c.pk), reverse=True
+            )
+            return Response(s.CertificationSerializer(history, many=True).data)
         data = s.CertificationSerializer(data=request.data)
         data.is_valid(raise_exception=True)
         cert = services.record_certification(anchor=anchor, by=request.user, **data.validated_data)

@@ -77,7 +77,7 @@ export interface paths {
             path?: never;
             cookie?: never;
         };
-        get?: never;
+        get: operations["v1_anchors_certifications_list"];
         put?: never;
         post: operations["v1_anchors_certifications_create"];
         delete?: never;
@@ -1401,6 +1401,7 @@ export interface components {
             profile: string;
             terrain?: components["schemas"]["TerrainEnum"];
             roof_outline?: unknown;
+            readonly owned: boolean;
         };
         SiteRequest: {
             name: string;
@@ -1606,6 +1607,27 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["Anchor"];
+                };
+            };
+        };
+    };
+    v1_anchors_certifications_list: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                id: number;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Certification"][];
                 };
             };
         };

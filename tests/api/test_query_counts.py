@@ -78,6 +78,7 @@ EXPECTED: dict[str, int] = {
     "site-log-book": 7,
     "anchor-list": 3,
     "anchor-detail": 2,
+    "anchor-certifications": 2,  # the anchor, its certifications
     "anchor-log-list": 2,
     "anchor-log-detail": 1,
     "equipment-list": 2,
@@ -354,6 +355,7 @@ READS: dict[str, Callable[[World], str]] = {
     "site-log-book": lambda w: reverse("site-log-book", args=[w.site.pk]),
     "anchor-list": lambda w: reverse("anchor-list"),
     "anchor-detail": lambda w: reverse("anchor-detail", args=[w.anchor.pk]),
+    "anchor-certifications": lambda w: reverse("anchor-certifications", args=[w.anchor.pk]),
     "anchor-log-list": lambda w: reverse("anchor-log-list"),
     "anchor-log-detail": lambda w: reverse("anchor-log-detail", args=[w.log_entry.pk]),
     "equipment-list": lambda w: reverse("equipment-list"),
@@ -384,6 +386,7 @@ ONE_ROW = {
     "profile-detail",
     "site-detail",
     "anchor-detail",
+    "anchor-certifications",
     "anchor-log-detail",
     "equipment-detail",
     "record-detail",
