@@ -148,3 +148,20 @@ def _fresh_cache():
     cache.clear()
     yield
     cache.clear()
+
+
+@pytest.fixture(autouse=True)
+def _tasks_in_process(request):
+    """Background tasks run in the test's own process, as with no broker, so a test that signs
+    a day finds its PDF drawn; only tests marked `redis` send them through the broker (to a
+    real worker they start). Without this, the run on Redis queued every render for a worker
+    that no other test starts, and the tests that read the PDF waited for nothing."""
+    from compliance.celery import app
+
+    if request.node.get_closest_marker("redis"):
+        yield
+        return
+    eager = app.conf.task_always_eager
+    app.conf.task_always_eager = True
+    yield
+    app.conf.task_always_eager = eager
