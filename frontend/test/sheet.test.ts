@@ -272,12 +272,12 @@ describe("a decay test's schedule", () => {
 
 describe("where a drop hangs on its facade", () => {
   it("measures from the roof plan's nearest edge and its nearer corner", () => {
-    const site = { id: 1, name: "S", height_m: 150, profile: "generic", roof_outline: [[0, 0], [32, 0], [32, 24], [0, 24]] };
+    const site = { id: 1, name: "S", height_m: 150, profile: "generic", owned: false, roof_outline: [[0, 0], [32, 0], [32, 24], [0, 24]] };
     const place = dropPlace(site, { id: 1, site: 1, label: "R1", x_m: 2, y_m: 0.8, certification: null });
     expect(place).toEqual({ corner_distance_m: 2, building_depth_m: 24 });
   });
   it("takes a drop with no roof plan to stand at a corner, the worst place", () => {
-    const site = { id: 1, name: "S", height_m: 40, profile: "generic", roof_outline: [] };
+    const site = { id: 1, name: "S", height_m: 40, profile: "generic", owned: false, roof_outline: [] };
     const place = dropPlace(site, { id: 1, site: 1, label: "R1", x_m: 2, y_m: 0.8, certification: null });
     expect(place).toEqual({ corner_distance_m: 0, building_depth_m: 80 });
   });
