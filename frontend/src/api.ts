@@ -73,7 +73,7 @@ function csrfToken(): string {
 }
 
 interface Options {
-  method?: "GET" | "POST" | "PATCH";
+  method?: "GET" | "POST" | "PATCH" | "DELETE";
   json?: unknown;
   form?: FormData;
   timeoutMs?: number;

@@ -326,9 +326,12 @@ def test_contractor_supervisor_reads_the_building_but_manages_no_access(page, li
         "Days and jobs",
         "Plan a day",
         "Equipment register",
+        "Checklist versions",
         "Building",
         "Anchor log book",
         "Anchors and certificates",
+        "Due dates",
+        "Daily records",
     ]
     # The owner's grants page is not the contractor's: the address opens its first page.
     page.goto(base + "/#/desk/grants")

@@ -477,6 +477,7 @@ def test_property_manager_reaches_the_desk_but_plans_no_day(live_server, demo, p
         "Anchor log book",
         "Anchors and certificates",
         "Access grants",
+        "Due dates",
     ]
     assert page.locator("main a[href='#/desk/plan']").count() == 0
     axe_clean(page, "the desk's building for a property manager")

@@ -5,7 +5,7 @@
  */
 import { ApiError, request } from "../api";
 import type { components } from "../api-schema";
-import type { Anchor, DailyRecord, Equipment, JobDetail, JobSummary, Page, Profile, Site } from "../types";
+import type { Anchor, ChecklistVersion, DailyRecord, Equipment, JobDetail, JobSummary, Page, Profile, Site } from "../types";
 
 type Schemas = components["schemas"];
 
@@ -26,6 +26,25 @@ export type LogEntry = Schemas["LogEntry"];
 export type LogEntryInput = Schemas["LogEntryInputRequest"];
 export type Grant = Schemas["Grant"];
 type GrantInput = Schemas["GrantRequest"];
+/** A checklist with its versions in order (the schema says only "objects"). */
+export type Checklist = Omit<Schemas["Checklist"], "versions"> & {
+  versions: { id: number; number: number; status: ChecklistVersion["status"]; content_hash: string }[];
+};
+interface VersionRef {
+  id: number;
+  number: number;
+  content_hash: string;
+}
+/** What changed between two versions (checklists.services.diff_versions; the schema names only `added`). */
+export type VersionDiff = Omit<Schemas["VersionDiff"], "added"> & {
+  from: VersionRef;
+  to: VersionRef;
+  added: ChecklistVersion["items"];
+  removed: ChecklistVersion["items"];
+  changed: { key: string; fields: string[]; before: Record<string, unknown>; after: Record<string, unknown> }[];
+};
+export type DueList = Schemas["DueList"];
+export type DueItem = Schemas["DueItem"];
 
 const PAGE = 200;
 
@@ -72,6 +91,16 @@ export const desk = {
   addEquipment: (data: EquipmentInput) => request<Equipment>("equipment/", { method: "POST", json: data }),
   changeEquipment: (id: number, change: EquipmentChange) =>
     request<Equipment>(`equipment/${id}/`, { method: "PATCH", json: change }),
+  checklists: () => all<Checklist>("checklists/"),
+  versions: () => all<ChecklistVersion>("checklist-versions/"),
+  /** The changes from version `against` to version `id`. */
+  versionDiff: (id: number, against: number) => request<VersionDiff>(`checklist-versions/${id}/diff/?against=${against}`),
+  publishVersion: (id: number) => request<ChecklistVersion>(`checklist-versions/${id}/publish/`, { method: "POST" }),
+  /** What falls due within `within` days, and everything overdue. */
+  due: (within: number) => request<DueList>(`due/?within=${within}`),
+  /** A new secret calendar address (the old one stops); the server shows it this once. */
+  createCalendar: () => request<Schemas["CalendarAddress"]>("me/calendar/", { method: "POST" }),
+  revokeCalendar: () => request<void>("me/calendar/", { method: "DELETE" }),
 };
 
 /**

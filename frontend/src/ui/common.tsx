@@ -62,7 +62,7 @@ export function CautionLine({ job }: { job?: number }) {
 function DeskLink() {
   const [show, setShow] = useState(false);
   useEffect(() => {
-    cacheGet<User>("me").then((me) => setShow(["supervisor", "admin", "property_manager"].includes(me?.value.role ?? "")), () => undefined);
+    cacheGet<User>("me").then((me) => setShow(["supervisor", "admin", "property_manager", "auditor"].includes(me?.value.role ?? "")), () => undefined);
   }, []);
   return show ? <a class="btn btn-back" href={href({ name: "desk", page: "jobs" })} data-testid="desk-link">Desk</a> : null;
 }

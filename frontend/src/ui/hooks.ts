@@ -21,10 +21,10 @@ export type Route =
   | { name: "cautions"; id: number }
   | { name: "sign"; id: number }
   | { name: "outbox" }
-  | { name: "desk"; page: DeskPage; id?: number };
+  | { name: "desk"; page: DeskPage; id?: number; at?: string };
 
 /** The desk side's screens (laptop or tablet), loaded apart from the phone's. */
-export type DeskPage = "jobs" | "plan" | "equipment" | "building" | "log" | "anchors" | "grants";
+export type DeskPage = "jobs" | "plan" | "equipment" | "building" | "log" | "anchors" | "grants" | "checklists" | "due" | "records";
 
 function parseRoute(hash: string): Route {
   const parts = hash.replace(/^#\/?/, "").split("/").filter(Boolean);
@@ -41,6 +41,8 @@ function parseRoute(hash: string): Route {
     // for a name it does not know (desk/Desk.tsx).
     const page = (parts[1] ?? "jobs") as DeskPage;
     const deskId = Number(parts[2]);
+    // A month or a day after the id (the daily records' pages check it: desk/Records.tsx).
+    if (parts[2] && Number.isInteger(deskId) && parts[3]) return { name: "desk", page, id: deskId, at: parts[3] };
     return parts[2] && Number.isInteger(deskId) ? { name: "desk", page, id: deskId } : { name: "desk", page };
   }
   return { name: "jobs" };
@@ -61,7 +63,7 @@ export function href(route: Route): string {
     case "outbox":
       return "#/outbox";
     case "desk":
-      return `#/desk/${route.page}${route.id === undefined ? "" : `/${route.id}`}`;
+      return `#/desk/${route.page}${route.id === undefined ? "" : `/${route.id}${route.at ? `/${route.at}` : ""}`}`;
   }
 }
 
