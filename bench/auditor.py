@@ -33,10 +33,10 @@ TAG = "Audit org"
 
 def fill() -> None:
     from checklists.services import record_sheet
-    from compliance.daily_records import sign_daily_record
+    from compliance.jobs.services import close_job
     from compliance.models import Drop, Equipment, Job, Organisation, Site, User
-    from compliance.services import close_job
-    from compliance.signing import create_self_signed
+    from compliance.records.services import sign_daily_record
+    from compliance.records.signing import create_self_signed
 
     versions = rig.checklists()
     version = versions["bench-robot"]

@@ -25,7 +25,8 @@ from reportlab.platypus import Paragraph, SimpleDocTemplate, Spacer, Table, Tabl
 from bench import rig
 from bench.common import migrate, print_machine
 from checklists.services import record_sheet
-from compliance.daily_records import day_content, sign_daily_record
+from compliance.jobs.selectors import job_requirements
+from compliance.jobs.services import close_job
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -36,12 +37,11 @@ from compliance.models import (
     Site,
     User,
 )
-from compliance.record_files import render_signed_pdf
-from compliance.record_pdf import render
-from compliance.selectors import job_requirements
-from compliance.services import close_job
-from compliance.signing import create_self_signed, sign_pdf
-from compliance.verification import verify_pdf
+from compliance.records.checks import verify_pdf
+from compliance.records.files import render_signed_pdf
+from compliance.records.pdf import render
+from compliance.records.services import day_content, sign_daily_record
+from compliance.records.signing import create_self_signed, sign_pdf
 
 DROPS = 10
 SHEETS = 30

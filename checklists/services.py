@@ -15,10 +15,12 @@ from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
 from checklists.selectors import UNKNOWN_VERSION
 from checklists.verdicts import EntryError, SheetOutcome, evaluate
-from compliance.anchor_log import log_pre_use_check
+from compliance.anchor_log.services import log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted
+from compliance.jobs.selectors import drops_of
+from compliance.jobs.services import apply_sheet_outcome
 from compliance.models import (
     Anchor,
     Drop,
@@ -28,9 +30,7 @@ from compliance.models import (
     Organisation,
     User,
 )
-from compliance.selectors import drops_of
-from compliance.services import (
-    apply_sheet_outcome,
+from compliance.registers.services import (
     audit_register_change,
     require_register_keeper,
     save_new_register_row,
@@ -212,7 +212,10 @@ def ensure_published(
 
 
 def diff_versions(a: ChecklistVersion, b: ChecklistVersion) -> dict[str, Any]:
-    """A readable diff: items added, removed and changed by key, plus a unified text diff."""
+    """A readable diff: items added, removed and changed by key, plus a unified text diff.
+    Only two versions of one checklist compare."""
+    if a.checklist_id != b.checklist_id:
+        raise ValidationError({"against": ["A version of the same checklist."]})
     items_a = {i["key"]: i for i in a.items}
     items_b = {i["key"]: i for i in b.items}
     changed = []

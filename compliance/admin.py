@@ -116,7 +116,7 @@ for model in (
     models.RegisterChange,
     models.NoticeEmail,
     models.CalendarFeed,
-    models.SiteAccess,
-    models.SiteAccessEnd,
+    models.SiteGrant,
+    models.SiteGrantEnd,
 ):
     admin.site.register(model, AppendOnlyAdmin)

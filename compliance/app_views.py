@@ -13,7 +13,7 @@ from django.views.decorators.http import require_GET, require_http_methods
 
 from compliance.api.records import MAX_UPLOAD
 from compliance.api.throttles import login_allowed
-from compliance.verification import verify_export, verify_pdf
+from compliance.records.checks import verify_export, verify_pdf
 
 APP_DIR = Path(settings.BASE_DIR) / "compliance" / "static" / "app"
 

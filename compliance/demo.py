@@ -11,9 +11,9 @@ from django.utils import timezone
 
 from checklists.selectors import current_versions
 from checklists.services import record_sheet
-from compliance import services
-from compliance.anchor_log import record_entry
-from compliance.daily_records import sign_daily_record
+from compliance.anchor_log.services import record_entry
+from compliance.jobs import services
+from compliance.jobs.selectors import job_requirements
 from compliance.models import (
     Anchor,
     Drop,
@@ -23,9 +23,10 @@ from compliance.models import (
     Organisation,
     User,
 )
-from compliance.profiles import load_defaults
-from compliance.selectors import job_requirements
-from compliance.signing import create_self_signed
+from compliance.records.services import sign_daily_record
+from compliance.records.signing import create_self_signed
+from compliance.registers import services as register_services
+from compliance.registers.profiles import load_defaults
 
 
 def scenario_path() -> Path:
@@ -108,7 +109,7 @@ def load_demo(path: Path | None = None) -> Organisation:
     manager.set_password(data["password"])
     manager.save()
     create_self_signed(organisation=owner)
-    site = services.create_site(
+    site = register_services.create_site(
         by=manager,
         name=site_data["name"],
         address=site_data["address"],
@@ -119,7 +120,7 @@ def load_demo(path: Path | None = None) -> Organisation:
         roof_outline=site_data["roof_outline"],
     )
     today = timezone.localdate()
-    services.grant_site_access(
+    register_services.give_grant(
         site=site,
         contractor=org,
         by=manager,
@@ -128,11 +129,11 @@ def load_demo(path: Path | None = None) -> Organisation:
     )
     anchors: dict[str, Anchor] = {}
     for a in data["anchors"]:
-        anchor = services.add_anchor(
+        anchor = register_services.add_anchor(
             site=site, by=manager, label=a["label"], x_m=a["x_m"], y_m=a["y_m"]
         )
         certified_on = today - dt.timedelta(days=420 if a.get("expired") else 120)
-        services.record_certification(
+        register_services.record_certification(
             anchor=anchor,
             by=manager,
             certifier=data["certifier"]["name"],
@@ -155,7 +156,7 @@ def load_demo(path: Path | None = None) -> Organisation:
         )
     kit: dict[str, Equipment] = {}
     for e in data["equipment"]:
-        kit[e["label"]] = services.create_equipment(
+        kit[e["label"]] = register_services.create_equipment(
             by=people["rhea"],
             kind=e["kind"],
             label=e["label"],

@@ -191,7 +191,7 @@ CELERY_BEAT_SCHEDULE = {
         "schedule": 24 * 3600,
     },
     "list-due-items": {"task": "compliance.tasks.list_due_items", "schedule": 24 * 3600},
-    # Each notice goes out once, to the people who act on it (see compliance/notices.py).
+    # Each notice goes out once, to the people who act on it (see compliance/due/notices.py).
     "email-notices": {"task": "compliance.tasks.email_notices", "schedule": 24 * 3600},
     "sweep-orphan-pdfs": {"task": "compliance.tasks.sweep_orphan_pdfs", "schedule": 24 * 3600},
     # A render that failed all its retries is queued again from here, not only when asked for.

@@ -8,10 +8,10 @@ from celery.exceptions import Retry
 from django.core.cache import cache
 from django.utils import timezone
 
-from compliance import record_files
+from compliance.due.notices import email_new_notices, flag_due, flag_unsigned
 from compliance.models import DailyRecord
-from compliance.notices import email_new_notices, flag_due, flag_unsigned
-from compliance.record_files import ensure_pdf
+from compliance.records import files as record_files
+from compliance.records.files import ensure_pdf
 
 logger = logging.getLogger(__name__)
 

@@ -90,7 +90,7 @@ PASSING = {
 def fill_all(job: Job, versions: dict[str, ChecklistVersion], by, overrides: dict | None = None):
     """Record a passing sheet for every requirement of the job (overrides per subject kind)."""
     from checklists.services import record_sheet
-    from compliance.selectors import job_requirements
+    from compliance.jobs.selectors import job_requirements
 
     sheets = []
     for req in job_requirements(job):

@@ -11,16 +11,16 @@ from django.utils import timezone
 from pypdf import PdfReader
 
 from checklists.services import record_sheet
-from compliance.anchor_log import record_entry, verify_log_chain
+from compliance.anchor_log.document import signed_anchor_log
+from compliance.anchor_log.services import record_entry, verify_log_chain
 from compliance.append_only import AppendOnlyViolation
 from compliance.errors import JobBlocked, NotPermitted
-from compliance.log_book import signed_log_book
-from compliance.models import AnchorLogEntry, JobState, SiteAccess
-from compliance.sealing import seal_of
-from compliance.services import start_job
-from compliance.signatures import verify_seal_signature
-from compliance.signing import create_self_signed
-from compliance.verification import verify_pdf
+from compliance.jobs.services import start_job
+from compliance.models import AnchorLogEntry, JobState, SiteGrant
+from compliance.records.checks import verify_pdf
+from compliance.records.sealing import seal_of
+from compliance.records.signatures import verify_seal_signature
+from compliance.records.signing import create_self_signed
 from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import (
     PASSWORD,
@@ -46,7 +46,7 @@ def building(simple_checklists):
     site = SiteFactory(organisation=owner)
     contractor = OrganisationFactory(name="Facade crew")
     create_self_signed(organisation=contractor)
-    SiteAccess.objects.create(
+    SiteGrant.objects.create(
         site=site,
         contractor=contractor,
         granted_by=manager,
@@ -120,7 +120,7 @@ def test_contractor_with_a_current_grant_works_and_sees_the_log(building):
 def test_contractor_whose_grant_expired_sees_nothing_and_cannot_start(building, simple_checklists):
     b = building
     fill_all(b["job"], simple_checklists, b["operator"])
-    SiteAccess.objects.create(
+    SiteGrant.objects.create(
         site=b["site"],
         contractor=b["contractor"],
         granted_by=b["manager"],
@@ -129,7 +129,7 @@ def test_contractor_whose_grant_expired_sees_nothing_and_cannot_start(building, 
     )
     with connection.cursor() as cursor:  # the current grant ends yesterday (grants are append-only)
         cursor.execute(
-            "UPDATE compliance_siteaccess SET ends_on = %s WHERE ends_on > %s",
+            "UPDATE compliance_sitegrant SET ends_on = %s WHERE ends_on > %s",
             [TODAY() - dt.timedelta(days=1), TODAY()],
         )
     client = client_for(b["supervisor"])
@@ -144,7 +144,7 @@ def test_contractor_whose_grant_expired_sees_nothing_and_cannot_start(building, 
     assert response.status_code == 400 and "site" in response.json()
     with pytest.raises(JobBlocked) as caught:
         start_job(job=b["job"], by=b["operator"])
-    assert "no_site_access" in [r.code for r in caught.value.reasons]
+    assert "no_grant_for_day" in [r.code for r in caught.value.reasons]
 
 
 def test_a_third_party_sees_nothing(building):
@@ -155,7 +155,7 @@ def test_a_third_party_sees_nothing(building):
     for url in urls(b)[:2]:
         assert client.get(url).status_code == 404
     assert client.get(urls(b)[2]).json()["results"] == []
-    assert client.get(reverse("site-log-book", args=[b["site"].pk])).status_code == 404
+    assert client.get(reverse("anchor-log-pdf") + f"?site={b['site'].pk}").status_code == 404
     with pytest.raises(NotPermitted):
         record_entry(
             anchor=b["drop"].anchor,
@@ -325,7 +325,7 @@ def test_the_log_book_pdf_carries_every_entry_and_verifies(building, simple_chec
         anchor=b["drop"].anchor,
         entries=PASSING["anchor"],
     )
-    response = client_for(b["manager"]).get(reverse("site-log-book", args=[b["site"].pk]))
+    response = client_for(b["manager"]).get(reverse("anchor-log-pdf") + f"?site={b['site'].pk}")
     assert response.status_code == 200
     pdf = response.content
     report = verify_pdf(pdf)
@@ -351,7 +351,7 @@ def test_one_anchors_log_book(building):
     b = building
     sign(b)
     sign(b, anchor=b["drop"].safety_anchor)
-    pdf, _ = signed_log_book(b["site"], b["manager"], anchor=b["drop"].anchor)
+    pdf, _ = signed_anchor_log(b["site"], b["manager"], anchor=b["drop"].anchor)
     document = json.loads(PdfReader(io.BytesIO(pdf)).attachments["daily-record.json"][0])
     assert [item["entry"]["anchor"]["id"] for item in document["entries"]] == [b["drop"].anchor_id]
     assert verify_pdf(pdf).ok

@@ -11,11 +11,11 @@ import pytest
 from django.db import connection, transaction
 from django.utils import timezone
 
-import compliance.anchor_log as anchor_log
 from checklists.services import record_sheet
-from compliance.anchor_log import record_entry, verify_log_chain
-from compliance.models import AnchorLogEntry, Job, JobState, SiteAccess
-from compliance.signing import create_self_signed
+from compliance.anchor_log import services as anchor_log
+from compliance.anchor_log.services import record_entry, verify_log_chain
+from compliance.models import AnchorLogEntry, Job, JobState, SiteGrant
+from compliance.records.signing import create_self_signed
 from tests.conftest import PASSING, fill_all
 from tests.factories import (
     PASSWORD,
@@ -90,7 +90,7 @@ def tower(simple_checklists):
     managers = [UserFactory(organisation=owner, role="property_manager") for _ in range(2)]
     site = SiteFactory(organisation=owner)
     crew = OrganisationFactory(name="Harbour facade crew", kind="contractor")
-    SiteAccess.objects.create(
+    SiteGrant.objects.create(
         site=site,
         contractor=crew,
         granted_by=managers[0],
@@ -175,7 +175,7 @@ def test_a_removal_and_a_crews_pre_use_check_at_once_both_land_and_the_job_is_he
 def test_locking_a_job_leaves_its_building_and_profile_free(simple_checklists):
     """A job is locked while its state moves; its site and jurisdiction profile are only read.
     Locking them too made every crew under one profile, at any building, wait for each other."""
-    from compliance.holds import locked as _locked
+    from compliance.jobs.holds import locked as _locked
 
     first, second = JobFactory(), JobFactory()
     assert first.site_id != second.site_id and first.site.profile_id == second.site.profile_id

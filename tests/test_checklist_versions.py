@@ -224,3 +224,27 @@ def test_passing_entries_fixture_is_complete(simple_checklists, job):
         job=job, version=simple_checklists["site"], by=operator, entries=PASSING["site"]
     )
     assert created and sheet.verdict == "pass"
+
+
+def test_versions_of_two_checklists_do_not_compare(own_checklist, supervisor, simple_checklists):
+    """The diff compares two versions of one checklist; another checklist's is refused by name."""
+    mine = publish_version(
+        version=create_draft(checklist=own_checklist, items=[tick("a")], by=supervisor),
+        by=supervisor,
+    )
+    other = simple_checklists["site"]
+    assert other.checklist_id != mine.checklist_id
+    answer = client_for(supervisor).get(
+        reverse("checklist-version-diff", args=[mine.pk]), {"against": other.pk}
+    )
+    assert answer.status_code == 400
+    assert answer.json() == {"against": ["A version of the same checklist."]}
+    same = client_for(supervisor).get(
+        reverse("checklist-version-diff", args=[mine.pk]), {"against": mine.pk}
+    )
+    assert same.status_code == 200
+    assert same.json()["from"] == same.json()["to"] == {
+        "id": mine.pk,
+        "number": mine.number,
+        "content_hash": mine.content_hash,
+    }

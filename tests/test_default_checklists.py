@@ -6,7 +6,7 @@ from django.core.management import call_command
 from checklists.models import ItemEntry
 from compliance.demo import load_demo
 from compliance.models import DailyRecord, Hold, Job, Organisation, User
-from compliance.verification import verify_pdf
+from compliance.records.checks import verify_pdf
 
 pytestmark = pytest.mark.django_db
 
@@ -67,7 +67,7 @@ def test_calc_items_show_their_working_and_inputs_from_ratings(demo):
 
 
 def test_demo_records_verify(demo):
-    from compliance.record_files import ensure_pdf
+    from compliance.records.files import ensure_pdf
 
     for record in DailyRecord.objects.all():
         with ensure_pdf(record).file.open("rb") as handle:

@@ -12,8 +12,8 @@ from checklists.models import CheckSheet
 from checklists.selectors import current_versions
 from checklists.services import record_sheet
 from compliance.demo import _entries, load_demo, scenario_path
+from compliance.jobs.selectors import job_requirements
 from compliance.models import Equipment, Hold, Job
-from compliance.selectors import job_requirements
 
 pytestmark = pytest.mark.django_db
 

@@ -17,11 +17,11 @@ from django.utils import timezone
 from icalendar import Calendar
 from rest_framework.test import APIClient
 
-from compliance.calendar_feed import create_feed
-from compliance.due import CAUTION
+from compliance.due.calendar import create_feed
+from compliance.due.notices import email_new_notices, flag_due, flag_unsigned
+from compliance.due.selectors import CAUTION
 from compliance.models import CalendarFeed, Job, Notice, NoticeEmail, Organisation, User
-from compliance.notices import email_new_notices, flag_due, flag_unsigned
-from compliance.services import end_grant, grant_site_access
+from compliance.registers.services import end_grant, give_grant
 from compliance.tasks import email_notices
 from tests.conftest import client_for
 from tests.factories import (
@@ -88,10 +88,10 @@ def world() -> World:
 
     tower = SiteFactory(organisation=owner, name="North Tower")
     b1, c_b1 = certified(tower, "B1", 20)
-    grant_site_access(site=tower, contractor=crew, starts_on=days(-1), ends_on=days(60), by=manager)
+    give_grant(site=tower, contractor=crew, starts_on=days(-1), ends_on=days(60), by=manager)
     ended_site = SiteFactory(organisation=owner, name="South Tower")
     certified(ended_site, "S1", 5)
-    grant = grant_site_access(
+    grant = give_grant(
         site=ended_site, contractor=crew, starts_on=days(-1), ends_on=days(60), by=manager
     )
     end_grant(grant=grant, by=manager, reason="Work finished.")
@@ -544,6 +544,24 @@ def test_a_new_address_revokes_the_old_and_delete_revokes_it(world):
     assert response.content == b""
     assert APIClient().get(second).status_code == 404
     assert APIClient().get("/calendar/not-a-token-anyone-holds.ics").status_code == 404
+
+
+def test_the_address_s_state_is_read_without_the_address(world):
+    """GET says whether a live address exists and since when; never the address, which is not
+    kept (only its digest)."""
+    me = client_for(world.operator)
+    assert me.get(reverse("my-calendar")).json() == {"live": False, "created_at": None}
+    new_address(world.operator)
+    feed = CalendarFeed.objects.get(user=world.operator, revoked_at__isnull=True)
+    answer = me.get(reverse("my-calendar"))
+    assert answer.status_code == 200
+    assert answer.json() == {
+        "live": True,
+        "created_at": feed.created_at.isoformat().replace("+00:00", "Z"),
+    }
+    me.delete(reverse("my-calendar"))
+    assert me.get(reverse("my-calendar")).json() == {"live": False, "created_at": None}
+    assert APIClient().get(reverse("my-calendar")).status_code == 403
 
 
 def test_a_feed_never_shows_another_organisations_dates(world):

@@ -8,9 +8,9 @@ from django.utils import timezone
 from checklists.services import record_sheet
 from compliance.append_only import AppendOnlyViolation
 from compliance.errors import InvalidTransition, JobBlocked
+from compliance.jobs.selectors import job_requirements
+from compliance.jobs.services import close_job, pause_job, start_job
 from compliance.models import Hold, JobState, JobTransition
-from compliance.selectors import job_requirements
-from compliance.services import close_job, pause_job, start_job
 from tests.conftest import PASSING, fill_all
 from tests.factories import (
     AnchorFactory,

@@ -8,10 +8,11 @@ from django.core.exceptions import ValidationError
 from django.urls import reverse
 from django.utils import timezone
 
-from compliance import services
-from compliance.anchor_log import record_entry
-from compliance.models import AnchorLogEntry, Drop, SiteAccess
-from compliance.signing import create_self_signed
+from compliance.anchor_log.services import record_entry
+from compliance.jobs import services
+from compliance.models import AnchorLogEntry, Drop, SiteGrant
+from compliance.records.signing import create_self_signed
+from compliance.registers import services as register_services
 from tests.conftest import client_for
 from tests.factories import (
     PASSWORD,
@@ -86,7 +87,7 @@ def test_an_anchor_on_another_contractor_s_job_that_day_is_refused_without_namin
     site = JobFactory(site__organisation=owner, supervisor=manager).site
     north, south = (OrganisationFactory(name=n) for n in ("North crew", "South crew"))
     for contractor in (north, south):
-        SiteAccess.objects.create(
+        SiteGrant.objects.create(
             site=site,
             contractor=contractor,
             granted_by=manager,
@@ -137,7 +138,7 @@ def test_an_anchor_on_another_contractor_s_job_that_day_is_refused_without_namin
 
 def test_equipment_out_of_service_is_refused(job, tomorrow_job):
     rig = rig_of(job.drops.get())
-    services.update_equipment(
+    register_services.update_equipment(
         item=rig["hose"], by=job.supervisor, in_service=False, reason="Split near coupling."
     )
     rig["hose"].refresh_from_db()
@@ -169,7 +170,9 @@ def test_an_anchor_out_of_service_is_refused(job, tomorrow_job):
 
 def test_the_plan_check_shows_what_will_block_the_start_and_refuses_nothing(job, tomorrow_job):
     rig = rig_of(job.drops.get())
-    services.update_equipment(item=rig["tether"], by=job.supervisor, next_inspection_due=job.date)
+    register_services.update_equipment(
+        item=rig["tether"], by=job.supervisor, next_inspection_due=job.date
+    )
     # The safety anchor's newest certificate is valid today but lapses before tomorrow's job.
     CertificationFactory(
         anchor=rig["safety_anchor"],

@@ -11,7 +11,7 @@ from django.urls import reverse
 
 from compliance.append_only import AppendOnlyViolation
 from compliance.models import ProfileRevision
-from compliance.profiles import load_profiles
+from compliance.registers.profiles import load_profiles
 from tests.conftest import client_for
 
 pytestmark = pytest.mark.django_db

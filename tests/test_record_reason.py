@@ -10,7 +10,7 @@ from pypdf import PdfReader
 from compliance.demo import load_demo
 from compliance.engineering.working import whole_pct
 from compliance.models import DailyRecord
-from compliance.record_pdf import render
+from compliance.records.pdf import render
 
 pytestmark = pytest.mark.django_db
 

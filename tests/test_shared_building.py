@@ -11,7 +11,7 @@ from django.utils import timezone
 
 from checklists.models import ChecklistVersion, CheckSheet
 from checklists.services import record_sheet
-from compliance.anchor_log import SIGNED_KINDS, record_entry
+from compliance.anchor_log.services import SIGNED_KINDS, record_entry
 from compliance.errors import NotPermitted
 from compliance.models import (
     AnchorCertification,
@@ -21,10 +21,10 @@ from compliance.models import (
     Job,
     JobState,
     JobTransition,
-    SiteAccess,
+    SiteGrant,
 )
-from compliance.services import record_certification
-from compliance.signing import create_self_signed
+from compliance.records.signing import create_self_signed
+from compliance.registers.services import record_certification
 from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import (
     PASSWORD,
@@ -41,8 +41,8 @@ pytestmark = pytest.mark.django_db
 TODAY = timezone.localdate
 
 
-def _grant(site, contractor, by) -> SiteAccess:
-    return SiteAccess.objects.create(
+def _grant(site, contractor, by) -> SiteGrant:
+    return SiteGrant.objects.create(
         site=site,
         contractor=contractor,
         granted_by=by,
@@ -279,7 +279,7 @@ def test_a_grant_goes_only_to_a_contractor_organisation(shared):
     b = shared
     other_owner = OrganisationFactory(name="Riverside Estates owners", kind="owner")
     client = client_for(b["manager"])
-    before = SiteAccess.objects.count()
+    before = SiteGrant.objects.count()
     missing = max(other_owner.pk, b["owner"].pk) + 1000
     answers = []
     for contractor_id in (other_owner.pk, b["owner"].pk, missing):
@@ -289,7 +289,7 @@ def test_a_grant_goes_only_to_a_contractor_organisation(shared):
         assert other_owner.name not in response.content.decode()
         answers.append(response.json())
     assert answers[0] == answers[1] == answers[2]
-    assert SiteAccess.objects.count() == before
+    assert SiteGrant.objects.count() == before
     new_crew = OrganisationFactory(name="East facade crew", kind="contractor")
     response = client.post(grant_url(b), grant_body(new_crew.pk), format="json")
     assert response.status_code == 201, response.json()
@@ -299,7 +299,7 @@ def test_a_grant_goes_only_to_a_contractor_organisation(shared):
 def test_the_owner_ends_a_grant_and_the_contractor_loses_access_at_once(shared):
     b = shared
     north, south = b["north"], b["south"]
-    grant = SiteAccess.objects.get(site=b["site"], contractor=north["org"])
+    grant = SiteGrant.objects.get(site=b["site"], contractor=north["org"])
     end_url = reverse("site-grant-end", args=[b["site"].pk, grant.pk])
     reads = [
         reverse("site-detail", args=[b["site"].pk]),
@@ -308,14 +308,14 @@ def test_the_owner_ends_a_grant_and_the_contractor_loses_access_at_once(shared):
     for crew in (north, south):  # a contractor ends no grant, its own or another's
         response = client_for(crew["supervisor"]).post(end_url, {}, format="json")
         assert response.status_code == 403, response.json()
-    grants_before = SiteAccess.objects.count()
+    grants_before = SiteGrant.objects.count()
     response = client_for(b["manager"]).post(end_url, {"reason": "Contract ended."}, format="json")
     assert response.status_code == 200, response.json()
     assert response.json()["ended_at"] is not None
-    assert SiteAccess.objects.count() == grants_before  # the grant keeps its dates
+    assert SiteGrant.objects.count() == grants_before  # the grant keeps its dates
     assert client_for(b["manager"]).post(end_url, {}, format="json").status_code == 409
     client = client_for(north["supervisor"])
-    for url in [*reads, reverse("site-log-book", args=[b["site"].pk]), end_url]:
+    for url in [*reads, reverse("anchor-log-pdf") + f"?site={b['site'].pk}", end_url]:
         response = client.get(url) if url != end_url else client.post(url, {}, format="json")
         assert response.status_code == 404, url
     assert client.get(reverse("anchor-log-list")).json()["results"] == []
@@ -327,7 +327,7 @@ def test_the_owner_ends_a_grant_and_the_contractor_loses_access_at_once(shared):
     assert response.status_code == 400 and list(response.json()) == ["site"]
     started = client_for(north["operator"]).post(reverse("job-start", args=[north["job"].pk]))
     assert started.status_code == 409
-    assert "no_site_access" in [r["code"] for r in started.json()["reasons"]]
+    assert "no_grant_for_day" in [r["code"] for r in started.json()["reasons"]]
     before = snapshot()
     response = client.post(
         reverse("anchor-log-list"), log_body(b["anchor"], "repair"), format="json"

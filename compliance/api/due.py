@@ -14,13 +14,14 @@ from rest_framework.request import Request
 from rest_framework.response import Response
 
 from compliance.api.permissions import OrganisationMember
-from compliance.calendar_feed import FEED_DAYS, create_feed, render_feed, revoke_feeds
-from compliance.due import (
+from compliance.due.calendar import FEED_DAYS, create_feed, render_feed, revoke_feeds
+from compliance.due.selectors import (
     CAUTION,
     DEFAULT_WITHIN_DAYS,
     MAX_WITHIN_DAYS,
     DueItem,
     due_items,
+    feed_of,
     live_feed,
 )
 from compliance.models import User
@@ -102,18 +103,28 @@ class PersonalSetting(BasePermission):
         return isinstance(user, User) and user.is_authenticated and bool(user.organisation_id)
 
 
+class CalendarStateSerializer(serializers.Serializer):
+    live = serializers.BooleanField()
+    created_at = serializers.DateTimeField(allow_null=True)
+
+
 @extend_schema(
     request=None,
     responses={
+        200: CalendarStateSerializer,
         201: inline_serializer("CalendarAddress", {"url": serializers.URLField()}),
         204: None,
     },
 )
-@api_view(["POST", "DELETE"])
+@api_view(["GET", "POST", "DELETE"])
 @permission_classes([PersonalSetting])
 def my_calendar(request: Request) -> Response:
-    """POST: a new secret calendar address (shown this once), revoking the old one.
-    DELETE: revoke it. Whoever holds the address reads your organisation's due dates."""
+    """GET: whether you have a live calendar address and since when (never the address: only
+    its digest is kept). POST: a new secret calendar address (shown this once), revoking the
+    old one. DELETE: revoke it. Whoever holds the address reads your organisation's due dates."""
+    if request.method == "GET":
+        feed = feed_of(request.user.pk)
+        return Response({"live": feed is not None, "created_at": feed.created_at if feed else None})
     if request.method == "DELETE":
         revoke_feeds(user=request.user)
         return Response(status=status.HTTP_204_NO_CONTENT)

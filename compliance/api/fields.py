@@ -9,7 +9,7 @@ from drf_spectacular.types import OpenApiTypes
 from drf_spectacular.utils import extend_schema_field
 from rest_framework import serializers
 
-from compliance.sync import printable, unstorable
+from compliance.jobs.sync import printable, unstorable
 
 EARLIEST = dt.date(1950, 1, 1)
 LATEST = dt.date(2100, 12, 31)

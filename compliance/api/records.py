@@ -19,12 +19,12 @@ from rest_framework.response import Response
 from compliance.api.fields import StrictInput, query_id, query_period
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
-from compliance.daily_records import MEANINGS, add_addendum, sign_daily_record
 from compliance.errors import NotPermitted, PdfsPending
-from compliance.exports import build_export, export_scope
 from compliance.models import DailyRecord, RecordPdf
+from compliance.records.checks import verify_export, verify_pdf
+from compliance.records.exports import build_export, export_scope
+from compliance.records.services import MEANINGS, add_addendum, sign_daily_record
 from compliance.tasks import queue_render
-from compliance.verification import verify_export, verify_pdf
 
 MAX_UPLOAD = 50 * 1024 * 1024
 PDF_RETRY_AFTER_S = 5

@@ -3,11 +3,11 @@
 import math
 from typing import Any
 
+from django.urls import reverse
 from rest_framework import serializers
 
-from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
+from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry, Verdict
 from checklists.selectors import UNKNOWN_VERSION, usable_versions
-from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api.fields import FiniteFloatField, IdField, PlausibleDateField, StrictInput
 from compliance.models import (
     Anchor,
@@ -16,13 +16,15 @@ from compliance.models import (
     Equipment,
     Hold,
     Job,
+    JobState,
     JobTransition,
     JurisdictionProfile,
     Site,
     User,
 )
-from compliance.ratings import EQUIPMENT_KINDS
-from compliance.selectors import withdrawn_reason
+from compliance.registers.ratings import EQUIPMENT_KINDS
+from compliance.registers.selectors import withdrawn_reason
+from compliance.registers.visibility import anchors_visible_to, sites_visible_to
 
 
 class UserSerializer(serializers.ModelSerializer):
@@ -118,6 +120,10 @@ class CertificationSerializer(StrictInput, serializers.ModelSerializer):
     recorded_by = serializers.CharField(
         source="recorded_by.display_name", read_only=True, default=None
     )
+    # The certificate's file: sent with the form (multipart), checked by the service; read back
+    # through the API (``document_url``, for those who may see the anchor) with its SHA-256.
+    document = serializers.FileField(write_only=True, required=False, allow_empty_file=False)
+    document_url = serializers.SerializerMethodField()
 
     class Meta:
         model = AnchorCertification
@@ -129,10 +135,17 @@ class CertificationSerializer(StrictInput, serializers.ModelSerializer):
             "certified_on",
             "valid_until",
             "document",
+            "document_url",
+            "document_sha256",
             "recorded_by",
             "recorded_at",
         ]
-        read_only_fields = ["recorded_at", "document"]
+        read_only_fields = ["recorded_at", "document_sha256"]
+
+    def get_document_url(self, cert: AnchorCertification) -> str | None:
+        if not cert.document:
+            return None
+        return reverse("anchor-certificate-file", args=[cert.anchor_id, cert.pk])
 
     def validate_rated_capacity_kn(self, value: float) -> float:
         if value <= 0:
@@ -292,8 +305,11 @@ class TransitionSerializer(serializers.ModelSerializer):
 
 
 class HoldSerializer(serializers.ModelSerializer):
-    cleared_at = serializers.DateTimeField(source="clearance.at", default=None)
-    cleared_by_sheet = serializers.IntegerField(source="clearance.sheet_id", default=None)
+    # A hold still open has no clearance: both are null (the schema says so, for the phone).
+    cleared_at = serializers.DateTimeField(source="clearance.at", read_only=True, allow_null=True)
+    cleared_by_sheet = serializers.IntegerField(
+        source="clearance.sheet_id", read_only=True, allow_null=True
+    )
 
     class Meta:
         model = Hold
@@ -352,6 +368,79 @@ class JobSerializer(StrictInput, serializers.ModelSerializer):
         self.fields["supervisor"].queryset = User.objects.filter(
             organisation_id=org, role__in=["supervisor", "admin"]
         )
+
+
+class RequirementSerializer(serializers.Serializer):
+    """One check a job requires before it may start (a selector's ``Requirement.as_dict``)."""
+
+    key = serializers.CharField()
+    checklist = serializers.CharField()
+    title = serializers.CharField()
+    version = serializers.IntegerField()
+    subject_kind = serializers.CharField()
+    subject = serializers.CharField()
+    anchor = serializers.IntegerField(allow_null=True)
+    equipment = serializers.IntegerField(allow_null=True)
+    satisfied = serializers.BooleanField()
+    latest_sheet = serializers.IntegerField(allow_null=True)
+    latest_verdict = serializers.CharField(allow_null=True)
+
+
+class ReasonSerializer(serializers.Serializer):
+    """Why a job cannot go on, in words, with the requirement it concerns if any."""
+
+    code = serializers.CharField()
+    message = serializers.CharField()
+    requirement = serializers.CharField(allow_null=True, required=False)
+
+
+class JobDetailSerializer(JobSerializer):
+    """A job with its drops, what it requires, what blocks it, its holds and the profile's
+    cautions: the answer of a job's detail and of every action on it (built by the API's
+    ``job_detail_data``, which renders each part with these serializers)."""
+
+    drops = DropSerializer(many=True, read_only=True)
+    requirements = RequirementSerializer(many=True, read_only=True)
+    blockers = ReasonSerializer(many=True, read_only=True)
+    holds = HoldSerializer(many=True, read_only=True)
+    cautions = serializers.CharField(read_only=True)
+
+    class Meta(JobSerializer.Meta):
+        fields = [
+            *JobSerializer.Meta.fields,
+            *("drops", "requirements", "blockers", "holds", "cautions"),
+        ]
+
+
+class SyncLineSerializer(serializers.Serializer):
+    """One record's answer in a sync batch: applied (with what it made) or refused alone with its
+    errors; ``duplicate`` when the record had been applied before and this is its stored answer."""
+
+    client_uuid = serializers.CharField(allow_null=True)
+    status = serializers.ChoiceField(choices=["applied", "rejected"])
+    duplicate = serializers.BooleanField(required=False)
+    errors = serializers.DictField(required=False)
+    reasons = ReasonSerializer(many=True, required=False)
+    sheet = serializers.IntegerField(required=False)
+    verdict = serializers.ChoiceField(choices=Verdict.choices, required=False)
+    blocking_failures = serializers.IntegerField(required=False)
+    drop_log = serializers.IntegerField(required=False)
+    job = serializers.IntegerField(required=False)
+    state = serializers.ChoiceField(choices=JobState.choices, required=False)
+
+
+class SyncJobSerializer(serializers.Serializer):
+    """A job's state after the batch: today's jobs and every job the batch touched."""
+
+    id = serializers.IntegerField()
+    state = serializers.ChoiceField(choices=JobState.choices)
+    date = serializers.DateField()
+
+
+class SyncResultSerializer(serializers.Serializer):
+    results = SyncLineSerializer(many=True)
+    jobs = SyncJobSerializer(many=True)
+    server_time = serializers.DateTimeField()
 
 
 SHEET_FIELDS = [
@@ -475,3 +564,34 @@ class ChecklistSerializer(StrictInput, serializers.ModelSerializer):
             {"id": v.pk, "number": v.number, "status": v.status, "content_hash": v.content_hash}
             for v in checklist.versions.all()
         ]
+
+
+class VersionRefSerializer(serializers.Serializer):
+    id = serializers.IntegerField()
+    number = serializers.IntegerField()
+    content_hash = serializers.CharField()
+
+
+class ItemChangeSerializer(serializers.Serializer):
+    """One item in both versions that differs: the fields that changed, before and after."""
+
+    key = serializers.CharField()
+    fields = serializers.ListField(child=serializers.CharField())
+    before = serializers.DictField()
+    after = serializers.DictField()
+
+
+class VersionDiffSerializer(serializers.Serializer):
+    """Two versions of one checklist compared item by item (items are JSON, as in a version)."""
+
+    from_ = VersionRefSerializer()
+    to = VersionRefSerializer()
+    added = serializers.ListField(child=serializers.DictField())
+    removed = serializers.ListField(child=serializers.DictField())
+    changed = ItemChangeSerializer(many=True)
+    unified = serializers.CharField()
+
+    def get_fields(self) -> dict[str, serializers.Field]:
+        fields = super().get_fields()
+        fields["from"] = fields.pop("from_")  # "from" is a Python keyword
+        return fields

@@ -1,7 +1,7 @@
 from django.urls import include, path
 from rest_framework.routers import DefaultRouter
 
-from compliance.api import due, log_book, records, views
+from compliance.api import anchor_log, due, grants, records, views
 
 router = DefaultRouter()
 router.register("profiles", views.ProfileViewSet, basename="profile")
@@ -13,7 +13,7 @@ router.register("checklists", views.ChecklistViewSet, basename="checklist")
 router.register("checklist-versions", views.ChecklistVersionViewSet, basename="checklist-version")
 router.register("sheets", views.SheetViewSet, basename="sheet")
 router.register("records", records.RecordViewSet, basename="record")
-router.register("anchor-log", log_book.AnchorLogViewSet, basename="anchor-log")
+router.register("anchor-log", anchor_log.AnchorLogViewSet, basename="anchor-log")
 
 urlpatterns = [
     path("auth/login/", views.session_login, name="login"),
@@ -26,12 +26,11 @@ urlpatterns = [
     path("sync/", views.sync, name="sync"),
     path("photos/", views.upload_photo, name="photos"),
     path("verify/", records.verify, name="verify"),
-    path("sites/<int:pk>/grants/", log_book.site_grants, name="site-grants"),
+    path("sites/<int:pk>/grants/", grants.site_grants, name="site-grants"),
     path(
         "sites/<int:pk>/grants/<int:grant_pk>/end/",
-        log_book.end_site_grant,
+        grants.end_site_grant,
         name="site-grant-end",
     ),
-    path("sites/<int:pk>/log-book/", log_book.log_book_pdf, name="site-log-book"),
     path("", include(router.urls)),
 ]

@@ -4,9 +4,10 @@ from typing import Any
 
 from django.contrib.auth import authenticate, login, logout
 from django.db.models import Prefetch, Q, QuerySet
+from django.http import FileResponse, Http404
 from django.shortcuts import get_object_or_404
 from drf_spectacular.types import OpenApiTypes
-from drf_spectacular.utils import extend_schema, inline_serializer
+from drf_spectacular.utils import OpenApiParameter, extend_schema, inline_serializer
 from rest_framework import mixins, serializers, status, viewsets
 from rest_framework.decorators import (
     action,
@@ -23,8 +24,6 @@ from rest_framework.response import Response
 from checklists import services as checklist_services
 from checklists.models import Checklist, ChecklistVersion
 from checklists.selectors import entry_rows, sheets_for, usable_versions, visible_checklists
-from compliance import services
-from compliance.access import anchors_visible_to, sites_visible_to
 from compliance.api import serializers as s
 from compliance.api.fields import ParsedJSON, StrictInput, query_id, query_period, query_text
 from compliance.api.pagination import BoundedLimitOffset
@@ -32,6 +31,9 @@ from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
 from compliance.api.throttles import LOGIN_THROTTLES, PasswordReentryThrottle
 from compliance.api.tokens import issue_token, revoke_tokens, token_lifetime
+from compliance.jobs import services
+from compliance.jobs.selectors import job_readiness, jobs_for, plan_conflicts
+from compliance.jobs.sync import MAX_BATCH, printable
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -40,9 +42,11 @@ from compliance.models import (
     JurisdictionProfile,
     Site,
 )
-from compliance.ratings import EQUIPMENT_KINDS, KIND_WORDS, rating_form
-from compliance.selectors import equipment_of, job_readiness, jobs_for, plan_conflicts
-from compliance.sync import MAX_BATCH, printable
+from compliance.registers import services as register_services
+from compliance.registers.documents import content_type
+from compliance.registers.ratings import EQUIPMENT_KINDS, KIND_WORDS, rating_form
+from compliance.registers.selectors import equipment_of
+from compliance.registers.visibility import anchors_visible_to, sites_visible_to
 
 
 class LoginInput(StrictInput, serializers.Serializer):
@@ -116,14 +120,7 @@ class SyncInput(StrictInput, serializers.Serializer):
 
 @extend_schema(
     request=SyncInput,
-    responses=inline_serializer(
-        "SyncResult",
-        {
-            "results": serializers.ListField(),
-            "jobs": serializers.ListField(),
-            "server_time": serializers.DateTimeField(),
-        },
-    ),
+    responses=s.SyncResultSerializer,
 )
 @api_view(["POST"])
 @permission_classes([OrganisationMember])
@@ -131,7 +128,7 @@ def sync(request: Request) -> Response:
     """Apply a batch of records made offline; each once, whatever the number of retries."""
     from django.utils import timezone
 
-    from compliance.sync import apply_batch
+    from compliance.jobs.sync import apply_batch
 
     data = SyncInput(data=request.data)
     data.is_valid(raise_exception=True)
@@ -211,7 +208,7 @@ class ProfileViewSet(viewsets.ReadOnlyModelViewSet):
     @action(detail=True, methods=["get"])
     def revisions(self, request: Request, key: str | None = None) -> Response:
         """Every revision of the profile, oldest first, each with what it changed."""
-        from compliance.profiles import profile_diff
+        from compliance.registers.profiles import profile_diff
 
         revisions = list(self.get_object().revisions.select_related("profile"))
         return Response(
@@ -246,7 +243,7 @@ class SiteViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelView
     def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
         data = self.get_serializer(data=request.data)
         data.is_valid(raise_exception=True)
-        site = services.create_site(by=request.user, **data.validated_data)
+        site = register_services.create_site(by=request.user, **data.validated_data)
         return Response(self.get_serializer(site).data, status=status.HTTP_201_CREATED)
 
 
@@ -275,7 +272,7 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
     def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
         data = self.get_serializer(data=request.data)
         data.is_valid(raise_exception=True)
-        anchor = services.add_anchor(by=request.user, **data.validated_data)
+        anchor = register_services.add_anchor(by=request.user, **data.validated_data)
         return Response(self.get_serializer(anchor).data, status=status.HTTP_201_CREATED)
 
     @extend_schema(
@@ -300,8 +297,39 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
             return Response(s.CertificationSerializer(history, many=True).data)
         data = s.CertificationSerializer(data=request.data)
         data.is_valid(raise_exception=True)
-        cert = services.record_certification(anchor=anchor, by=request.user, **data.validated_data)
+        cert = register_services.record_certification(
+            anchor=anchor, by=request.user, **data.validated_data
+        )
         return Response(s.CertificationSerializer(cert).data, status=status.HTTP_201_CREATED)
+
+    @extend_schema(responses={(200, "application/octet-stream"): bytes})
+    @action(
+        detail=True,
+        methods=["get"],
+        url_path=r"certifications/(?P<cert_pk>[0-9]{1,18})/file",
+        url_name="certificate-file",
+    )
+    def certificate_file(
+        self, request: Request, pk: str | None = None, cert_pk: str | None = None
+    ) -> FileResponse:
+        """The certificate's file as it was received (PDF, PNG or JPEG), for anyone who may see
+        the anchor; its SHA-256 is in the certification."""
+        anchor = self.get_object()
+        # The anchor comes with its certifications (the viewset's prefetch): find it there.
+        cert = next(
+            (c for c in anchor.certifications.all() if str(c.pk) == cert_pk and c.document), None
+        )
+        if cert is None:
+            raise Http404("No such certificate file.")
+        extension = cert.document.name.rsplit(".", 1)[-1]
+        response = FileResponse(
+            cert.document.open("rb"),
+            content_type=content_type(cert.document.name),
+            as_attachment=True,
+            filename=f"anchor-{anchor.label}-certificate-{cert.certified_on}.{extension}",
+        )
+        response["X-Content-Type-Options"] = "nosniff"
+        return response
 
 
 class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
@@ -317,7 +345,7 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
     def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
         data = self.get_serializer(data=request.data)
         data.is_valid(raise_exception=True)
-        item = services.create_equipment(by=request.user, **data.validated_data)
+        item = register_services.create_equipment(by=request.user, **data.validated_data)
         return Response(self.get_serializer(item).data, status=status.HTTP_201_CREATED)
 
     @extend_schema(responses=s.EquipmentKindSerializer(many=True))
@@ -341,7 +369,9 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
         data.is_valid(raise_exception=True)
         fields = dict(data.validated_data)
         reason = fields.pop("reason", "")
-        item = services.update_equipment(item=item, by=request.user, reason=reason, **fields)
+        item = register_services.update_equipment(
+            item=item, by=request.user, reason=reason, **fields
+        )
         return Response(self.get_serializer(item).data)
 
 
@@ -350,8 +380,10 @@ def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
     return {
         **s.JobSerializer(job, context=context).data,
         "drops": s.DropSerializer(readiness.drops, many=True, context=context).data,
-        "requirements": [r.as_dict() for r in readiness.requirements],
-        "blockers": [r.as_dict() for r in readiness.blockers],
+        "requirements": s.RequirementSerializer(
+            [r.as_dict() for r in readiness.requirements], many=True
+        ).data,
+        "blockers": s.ReasonSerializer([r.as_dict() for r in readiness.blockers], many=True).data,
         "holds": s.HoldSerializer(readiness.holds, many=True).data,
         "cautions": job.site.profile.cautions,
     }
@@ -373,6 +405,7 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
             qs = qs.filter(date=date) if _is_date(date) else qs.none()
         return qs
 
+    @extend_schema(request=s.JobSerializer, responses={201: s.JobDetailSerializer})
     def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
         data = self.get_serializer(data=request.data)
         data.is_valid(raise_exception=True)
@@ -381,6 +414,7 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
             job_detail_data(job, self.get_serializer_context()), status=status.HTTP_201_CREATED
         )
 
+    @extend_schema(responses=s.JobDetailSerializer)
     def retrieve(self, request: Request, *args: Any, **kwargs: Any) -> Response:
         return Response(job_detail_data(self.get_object(), self.get_serializer_context()))
 
@@ -396,18 +430,18 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
         job.refresh_from_db()
         return Response(job_detail_data(job, self.get_serializer_context()))
 
-    @extend_schema(request=None)
+    @extend_schema(request=None, responses=s.JobDetailSerializer)
     @action(detail=True, methods=["post"])
     def start(self, request: Request, pk: str | None = None) -> Response:
         """Start work; 409 with the reasons when a check is missing or failed."""
         return self._act(request, services.start_job)
 
-    @extend_schema(request=ReasonInput)
+    @extend_schema(request=ReasonInput, responses=s.JobDetailSerializer)
     @action(detail=True, methods=["post"])
     def pause(self, request: Request, pk: str | None = None) -> Response:
         return self._act(request, services.pause_job, reasoned=True)
 
-    @extend_schema(request=ReasonInput)
+    @extend_schema(request=ReasonInput, responses=s.JobDetailSerializer)
     @action(detail=True, methods=["post"])
     def close(self, request: Request, pk: str | None = None) -> Response:
         return self._act(request, services.close_job, reasoned=True)
@@ -517,7 +551,10 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
         version = checklist_services.publish_version(version=version, by=request.user)
         return Response(self.get_serializer(version).data)
 
-    @extend_schema(responses=inline_serializer("VersionDiff", {"added": serializers.ListField()}))
+    @extend_schema(
+        parameters=[OpenApiParameter("against", int, required=False)],
+        responses=s.VersionDiffSerializer,
+    )
     @action(detail=True, methods=["get"])
     def diff(self, request: Request, pk: str | None = None) -> Response:
         """Compare with ``?against=<version id>`` (default: the previous version)."""
@@ -536,7 +573,9 @@ class ChecklistVersionViewSet(OrgScoped, mixins.UpdateModelMixin, viewsets.ReadO
                 return Response(
                     {"against": ["This is the first version; name one to compare."]}, status=400
                 )
-        return Response(checklist_services.diff_versions(other, version))
+        return Response(
+            s.VersionDiffSerializer(checklist_services.diff_versions(other, version)).data
+        )
 
 
 class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):

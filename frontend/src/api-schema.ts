@@ -38,6 +38,22 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/api/v1/anchor-log/pdf/": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get: operations["v1_anchor_log_pdf_retrieve"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/api/v1/anchors/": {
         parameters: {
             query?: never;
@@ -80,6 +96,22 @@ export interface paths {
         get: operations["v1_anchors_certifications_list"];
         put?: never;
         post: operations["v1_anchors_certifications_create"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/api/v1/anchors/{id}/certifications/{cert_pk}/file/": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get: operations["v1_anchors_certifications_file_retrieve"];
+        put?: never;
+        post?: never;
         delete?: never;
         options?: never;
         head?: never;
@@ -493,7 +525,7 @@ export interface paths {
             path?: never;
             cookie?: never;
         };
-        get?: never;
+        get: operations["v1_me_calendar_retrieve"];
         put?: never;
         post: operations["v1_me_calendar_create"];
         delete: operations["v1_me_calendar_destroy"];
@@ -742,22 +774,6 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
-    "/api/v1/sites/{id}/log-book/": {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        get: operations["v1_sites_log_book_retrieve"];
-        put?: never;
-        post?: never;
-        delete?: never;
-        options?: never;
-        head?: never;
-        patch?: never;
-        trace?: never;
-    };
     "/api/v1/sync/": {
         parameters: {
             query?: never;
@@ -833,6 +849,11 @@ export interface components {
             /** Format: uri */
             url: string;
         };
+        CalendarState: {
+            live: boolean;
+            /** Format: date-time */
+            created_at: string | null;
+        };
         Certification: {
             readonly id: number;
             certifier: string;
@@ -843,8 +864,8 @@ export interface components {
             certified_on: string;
             /** Format: date */
             valid_until: string;
-            /** Format: uri */
-            readonly document: string | null;
+            readonly document_url: string | null;
+            readonly document_sha256: string;
             readonly recorded_by: string;
             /** Format: date-time */
             readonly recorded_at: string;
@@ -858,6 +879,8 @@ export interface components {
             certified_on: string;
             /** Format: date */
             valid_until: string;
+            /** Format: binary */
+            document?: string;
         };
         Checklist: {
             readonly id: number;
@@ -882,7 +905,7 @@ export interface components {
             readonly title: string;
             readonly applies_to: string;
             readonly number: number;
-            readonly status: components["schemas"]["StatusEnum"];
+            readonly status: components["schemas"]["ChecklistVersionStatusEnum"];
             items: unknown;
             notes?: string;
             readonly content_hash: string;
@@ -895,6 +918,8 @@ export interface components {
             items: unknown;
             notes?: string;
         };
+        /** @enum {string} */
+        ChecklistVersionStatusEnum: "draft" | "published";
         Conflict: {
             field: string;
             code: string;
@@ -1001,6 +1026,28 @@ export interface components {
             /** Format: date */
             ends_on: string;
         };
+        Hold: {
+            readonly id: number;
+            requirement: string;
+            item_key: string;
+            reason: string;
+            sheet?: number | null;
+            /** Format: date-time */
+            readonly opened_at: string;
+            /** Format: date-time */
+            readonly cleared_at: string | null;
+            readonly cleared_by_sheet: number | null;
+        };
+        ItemChange: {
+            key: string;
+            fields: string[];
+            before: {
+                [key: string]: unknown;
+            };
+            after: {
+                [key: string]: unknown;
+            };
+        };
         ItemEntry: {
             item_key: string;
             kind: string;
@@ -1024,6 +1071,23 @@ export interface components {
             readonly supervisor_name: string;
             notes?: string;
             readonly record_signed: boolean;
+        };
+        JobDetail: {
+            readonly id: number;
+            site: number;
+            readonly site_name: string;
+            /** Format: date */
+            date: string;
+            readonly state: components["schemas"]["JobStateEnum"];
+            supervisor: number;
+            readonly supervisor_name: string;
+            notes?: string;
+            readonly record_signed: boolean;
+            readonly drops: components["schemas"]["Drop"][];
+            readonly requirements: components["schemas"]["Requirement"][];
+            readonly blockers: components["schemas"]["Reason"][];
+            readonly holds: components["schemas"]["Hold"][];
+            readonly cautions: string;
         };
         JobRequest: {
             site: number;
@@ -1320,6 +1384,11 @@ export interface components {
             minimum: (components["schemas"]["MinimumEnum"] | components["schemas"]["NullEnum"]) | null;
             choices: string[];
         };
+        Reason: {
+            code: string;
+            message: string;
+            requirement?: string | null;
+        };
         ReasonInputRequest: {
             reason?: string;
         };
@@ -1344,6 +1413,19 @@ export interface components {
         };
         /** @enum {string} */
         RecordKindEnum: "record" | "addendum";
+        Requirement: {
+            key: string;
+            checklist: string;
+            title: string;
+            version: number;
+            subject_kind: string;
+            subject: string;
+            anchor: number | null;
+            equipment: number | null;
+            satisfied: boolean;
+            latest_sheet: number | null;
+            latest_verdict: string | null;
+        };
         /** @enum {string} */
         ResultEnum: "pass" | "fail" | "none";
         /** @enum {string} */
@@ -1415,17 +1497,38 @@ export interface components {
             roof_outline?: unknown;
         };
         /** @enum {string} */
-        StatusEnum: "draft" | "published";
-        /** @enum {string} */
         SubjectKindEnum: "anchor" | "robot" | "tether" | "safety_line" | "hose" | "site";
         SyncInputRequest: {
             records: unknown[];
             /** Format: date-time */
             sent_at?: string | null;
         };
+        SyncJob: {
+            id: number;
+            state: components["schemas"]["JobStateEnum"];
+            /** Format: date */
+            date: string;
+        };
+        SyncLine: {
+            client_uuid: string | null;
+            status: components["schemas"]["SyncLineStatusEnum"];
+            duplicate?: boolean;
+            errors?: {
+                [key: string]: unknown;
+            };
+            reasons?: components["schemas"]["Reason"][];
+            sheet?: number;
+            verdict?: components["schemas"]["VerdictEnum"];
+            blocking_failures?: number;
+            drop_log?: number;
+            job?: number;
+            state?: components["schemas"]["JobStateEnum"];
+        };
+        /** @enum {string} */
+        SyncLineStatusEnum: "applied" | "rejected";
         SyncResult: {
-            results: unknown[];
-            jobs: unknown[];
+            results: components["schemas"]["SyncLine"][];
+            jobs: components["schemas"]["SyncJob"][];
             /** Format: date-time */
             server_time: string;
         };
@@ -1464,7 +1567,21 @@ export interface components {
             verdict: string;
         };
         VersionDiff: {
-            added: unknown[];
+            to: components["schemas"]["VersionRef"];
+            added: {
+                [key: string]: unknown;
+            }[];
+            removed: {
+                [key: string]: unknown;
+            }[];
+            changed: components["schemas"]["ItemChange"][];
+            unified: string;
+            from: components["schemas"]["VersionRef"];
+        };
+        VersionRef: {
+            id: number;
+            number: number;
+            content_hash: string;
         };
     };
     responses: never;
@@ -1539,6 +1656,28 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["LogEntry"];
+                };
+            };
+        };
+    };
+    v1_anchor_log_pdf_retrieve: {
+        parameters: {
+            query: {
+                anchor?: number;
+                site: number;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/pdf": string;
                 };
             };
         };
@@ -1655,6 +1794,28 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["Certification"];
+                };
+            };
+        };
+    };
+    v1_anchors_certifications_file_retrieve: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                cert_pk: string;
+                id: number;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/octet-stream": string;
                 };
             };
         };
@@ -1825,7 +1986,9 @@ export interface operations {
     };
     v1_checklist_versions_diff_retrieve: {
         parameters: {
-            query?: never;
+            query?: {
+                against?: number;
+            };
             header?: never;
             path: {
                 id: number;
@@ -2137,7 +2300,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": components["schemas"]["Job"];
+                    "application/json": components["schemas"]["JobDetail"];
                 };
             };
         };
@@ -2158,7 +2321,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": components["schemas"]["Job"];
+                    "application/json": components["schemas"]["JobDetail"];
                 };
             };
         };
@@ -2185,7 +2348,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": components["schemas"]["Job"];
+                    "application/json": components["schemas"]["JobDetail"];
                 };
             };
         };
@@ -2239,7 +2402,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": components["schemas"]["Job"];
+                    "application/json": components["schemas"]["JobDetail"];
                 };
             };
         };
@@ -2314,7 +2477,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": components["schemas"]["Job"];
+                    "application/json": components["schemas"]["JobDetail"];
                 };
             };
         };
@@ -2362,6 +2525,39 @@ export interface operations {
             };
         };
     };
+    v1_me_calendar_retrieve: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["CalendarState"];
+                };
+            };
+            201: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["CalendarAddress"];
+                };
+            };
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
+            };
+        };
+    };
     v1_me_calendar_create: {
         parameters: {
             query?: never;
@@ -2371,6 +2567,14 @@ export interface operations {
         };
         requestBody?: never;
         responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["CalendarState"];
+                };
+            };
             201: {
                 headers: {
                     [name: string]: unknown;
@@ -2396,6 +2600,14 @@ export interface operations {
         };
         requestBody?: never;
         responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["CalendarState"];
+                };
+            };
             201: {
                 headers: {
                     [name: string]: unknown;
@@ -2839,27 +3051,6 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["Grant"];
-                };
-            };
-        };
-    };
-    v1_sites_log_book_retrieve: {
-        parameters: {
-            query?: never;
-            header?: never;
-            path: {
-                id: number;
-            };
-            cookie?: never;
-        };
-        requestBody?: never;
-        responses: {
-            200: {
-                headers: {
-                    [name: string]: unknown;
-                };
-                content: {
-                    "application/pdf": string;
                 };
             };
         };

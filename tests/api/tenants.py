@@ -22,8 +22,9 @@ from rest_framework.test import APIClient
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet
 from checklists.services import record_sheet
-from compliance.anchor_log import record_entry
-from compliance.daily_records import sign_daily_record
+from compliance.anchor_log.services import record_entry
+from compliance.jobs.selectors import job_requirements
+from compliance.jobs.services import close_job, start_job
 from compliance.models import (
     Anchor,
     AnchorLogEntry,
@@ -33,11 +34,11 @@ from compliance.models import (
     JobState,
     Organisation,
     Site,
-    SiteAccess,
+    SiteGrant,
 )
-from compliance.selectors import job_requirements
-from compliance.services import close_job, end_grant, start_job
-from compliance.signing import create_self_signed
+from compliance.records.services import sign_daily_record
+from compliance.records.signing import create_self_signed
+from compliance.registers.services import end_grant
 from tests.conftest import PASSING, fill_all
 from tests.factories import (
     PASSWORD,
@@ -156,9 +157,9 @@ class Tenant:
             result="pass",
         )
 
-    def grant(self) -> SiteAccess:
+    def grant(self) -> SiteGrant:
         """A live grant of the organisation's own building to a crew of its choosing."""
-        return SiteAccess.objects.create(
+        return SiteGrant.objects.create(
             site=self.site,
             contractor=OrganisationFactory(kind=Organisation.Kind.CONTRACTOR),
             granted_by=self.people["supervisor"],
@@ -262,7 +263,7 @@ def build_world(checklists: dict[str, ChecklistVersion]) -> World:
     world = World({"owner": Tenant(owner, tower, checklists)})
     for name in ("north", "south"):
         crew = OrganisationFactory(name=f"{name.title()} crew", kind=Organisation.Kind.CONTRACTOR)
-        SiteAccess.objects.create(
+        SiteGrant.objects.create(
             site=tower,
             contractor=crew,
             granted_by=world["owner"].people["property_manager"],
@@ -275,7 +276,7 @@ def build_world(checklists: dict[str, ChecklistVersion]) -> World:
         depot = SiteFactory(organisation=crew, name=f"{name.title()} depot")
         world.tenants[name] = Tenant(crew, depot, checklists)
     manager = world["owner"].people["property_manager"]
-    grant = SiteAccess.objects.create(
+    grant = SiteGrant.objects.create(
         site=tower,
         contractor=world["former"].org,
         granted_by=manager,

@@ -10,6 +10,7 @@ from django.core.management.base import CommandError
 from django.urls import reverse
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
+from compliance.jobs.selectors import job_requirements
 from compliance.models import (
     AnchorCertification,
     Equipment,
@@ -18,7 +19,6 @@ from compliance.models import (
     JobTransition,
     SyncReceipt,
 )
-from compliance.selectors import job_requirements
 from tests.conftest import PASSING, client_for
 from tests.engineering.examples import SUCTION
 from tests.factories import published_checklist, tick

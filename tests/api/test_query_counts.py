@@ -22,6 +22,7 @@ from typing import Any
 from unittest import mock
 
 import pytest
+from django.core.files.base import ContentFile
 from django.db import transaction
 from django.test import override_settings
 from django.urls import URLResolver, get_resolver, reverse
@@ -30,10 +31,11 @@ from rest_framework.test import APIClient
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet
 from checklists.services import create_draft, record_sheet
-from compliance.anchor_log import record_entry
-from compliance.daily_records import add_addendum, sign_daily_record
+from compliance.anchor_log.services import record_entry
+from compliance.jobs.services import close_job, pause_job, start_job
 from compliance.models import (
     Anchor,
+    AnchorCertification,
     AnchorLogEntry,
     DailyRecord,
     Equipment,
@@ -44,9 +46,10 @@ from compliance.models import (
     Site,
     User,
 )
-from compliance.record_files import ensure_pdf
-from compliance.services import close_job, end_grant, grant_site_access, pause_job, start_job
-from compliance.signing import create_self_signed
+from compliance.records.files import ensure_pdf
+from compliance.records.services import add_addendum, sign_daily_record
+from compliance.records.signing import create_self_signed
+from compliance.registers.services import end_grant, give_grant
 from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import (
     PASSWORD,
@@ -75,10 +78,12 @@ EXPECTED: dict[str, int] = {
     "site-list": 2,
     "site-detail": 1,
     "site-grants": 2,
-    "site-log-book": 7,
+    "anchor-log-pdf": 7,
     "anchor-list": 3,
     "anchor-detail": 2,
     "anchor-certifications": 2,  # the anchor, its certifications
+    "anchor-certificate-file": 2,  # the anchor, the certification
+    "my-calendar": 1,  # the person's live feed, if any
     "anchor-log-list": 2,
     "anchor-log-detail": 1,
     "equipment-list": 2,
@@ -128,6 +133,7 @@ class World:
     checklist: Checklist
     version: ChecklistVersion
     log_entry: AnchorLogEntry
+    certificate: AnchorCertification
     record: DailyRecord
     profile: JurisdictionProfile
 
@@ -204,7 +210,7 @@ def build_world(size: int) -> World:
     for n in range(size):
         days.append((finished_day(site, supervisor, operator, versions, n), supervisor))
         crew = OrganisationFactory()
-        grant_site_access(
+        give_grant(
             site=site,
             contractor=crew,
             starts_on=today - dt.timedelta(days=60),
@@ -217,7 +223,7 @@ def build_world(size: int) -> World:
         owner = OrganisationFactory(kind="owner")
         theirs = SiteFactory(organisation=owner)
         AnchorFactory(site=theirs)
-        grant_site_access(
+        give_grant(
             site=theirs,
             contractor=org,
             starts_on=today,
@@ -225,7 +231,7 @@ def build_world(size: int) -> World:
             by=UserFactory(organisation=owner, role="property_manager"),
         )
         SiteFactory(organisation=org)
-    ended = grant_site_access(
+    ended = give_grant(
         site=site, contractor=OrganisationFactory(), starts_on=today, ends_on=today, by=supervisor
     )
     end_grant(grant=ended, by=supervisor, reason="Contract ended.")
@@ -250,9 +256,15 @@ def build_world(size: int) -> World:
             performed_on=today,
         )
 
+    certificate = CertificationFactory(
+        anchor=anchor,
+        certified_on=today - dt.timedelta(days=100),
+        document=ContentFile(b"%PDF-1.7\n%%EOF\n", name="certificate.pdf"),
+    )
+
     # Every record's PDF, stored as the background render stores it. The reads only open and
     # hash the file; drawing and signing each one would cost a third of a second.
-    with mock.patch("compliance.record_files.render_signed_pdf", return_value=STAND_IN_PDF):
+    with mock.patch("compliance.records.files.render_signed_pdf", return_value=STAND_IN_PDF):
         for record in DailyRecord.objects.filter(site=site):
             ensure_pdf(record)
 
@@ -304,6 +316,7 @@ def build_world(size: int) -> World:
         checklist=checklists[0],
         version=checklists[0].versions.order_by("-number").first(),
         log_entry=AnchorLogEntry.objects.filter(anchor=anchor).order_by("-sequence").first(),
+        certificate=certificate,
         record=DailyRecord.objects.filter(site=site, organisation=org).order_by("sequence")[0],
         profile=profile,
     )
@@ -352,10 +365,14 @@ READS: dict[str, Callable[[World], str]] = {
     "site-list": lambda w: reverse("site-list"),
     "site-detail": lambda w: reverse("site-detail", args=[w.site.pk]),
     "site-grants": lambda w: reverse("site-grants", args=[w.site.pk]),
-    "site-log-book": lambda w: reverse("site-log-book", args=[w.site.pk]),
+    "anchor-log-pdf": lambda w: reverse("anchor-log-pdf") + f"?site={w.site.pk}",
     "anchor-list": lambda w: reverse("anchor-list"),
     "anchor-detail": lambda w: reverse("anchor-detail", args=[w.anchor.pk]),
     "anchor-certifications": lambda w: reverse("anchor-certifications", args=[w.anchor.pk]),
+    "anchor-certificate-file": lambda w: reverse(
+        "anchor-certificate-file", args=[w.anchor.pk, w.certificate.pk]
+    ),
+    "my-calendar": lambda w: reverse("my-calendar"),
     "anchor-log-list": lambda w: reverse("anchor-log-list"),
     "anchor-log-detail": lambda w: reverse("anchor-log-detail", args=[w.log_entry.pk]),
     "equipment-list": lambda w: reverse("equipment-list"),
@@ -377,7 +394,7 @@ READS: dict[str, Callable[[World], str]] = {
     "record-export": export_url,
 }
 
-FILES = {"site-log-book", "record-pdf", "record-export"}
+FILES = {"anchor-log-pdf", "record-pdf", "record-export", "anchor-certificate-file"}
 """Reads that answer a file (PDF or zip), not JSON."""
 ONE_ROW = {
     "api-root",
@@ -387,6 +404,8 @@ ONE_ROW = {
     "site-detail",
     "anchor-detail",
     "anchor-certifications",
+    "anchor-certificate-file",
+    "my-calendar",
     "anchor-log-detail",
     "equipment-detail",
     "record-detail",

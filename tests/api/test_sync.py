@@ -10,8 +10,8 @@ from hypothesis import strategies as st
 from PIL import Image
 
 from checklists.models import CheckSheet, Photo
+from compliance.jobs.selectors import job_requirements
 from compliance.models import DropLog, JobTransition, SyncReceipt
-from compliance.selectors import job_requirements
 from tests.conftest import PASSING, client_for, fill_all
 
 pytestmark = pytest.mark.django_db

@@ -83,15 +83,15 @@ def _route(name: str, build: Callable[[Side], Any]) -> Callable[[Side, Tenant], 
     return lambda side, caller: reverse(name, args=[build(side).pk])
 
 
-def _log_book(side: Side, caller: Tenant) -> str:
+def _anchor_log_pdf(side: Side, caller: Tenant) -> str:
     caller.signing()  # the caller's organisation signs the book it downloads
-    return reverse("site-log-book", args=[side.site.pk])
+    return reverse("anchor-log-pdf") + f"?site={side.site.pk}"
 
 
-def _log_book_of_anchor(side: Side, caller: Tenant) -> str:
+def _anchor_log_pdf_of_anchor(side: Side, caller: Tenant) -> str:
     """The caller's own building, one of the other organisation's anchors named."""
     caller.signing()
-    return reverse("site-log-book", args=[caller.site.pk]) + f"?anchor={side.anchor().pk}"
+    return reverse("anchor-log-pdf") + f"?site={caller.site.pk}&anchor={side.anchor().pk}"
 
 
 def _pdf_answer(own: Once) -> int:
@@ -128,8 +128,8 @@ SITE_READS = [
     Read("anchor-detail", _route("anchor-detail", lambda side: side.anchor())),
     Read("anchor-log-detail", _route("anchor-log-detail", lambda side: side.log_entry())),
     Read("site-grants", lambda side, caller: reverse("site-grants", args=[side.site.pk])),
-    Read("site-log-book", _log_book),
-    Read("site-log-book-of-anchor", _log_book_of_anchor),
+    Read("anchor-log-pdf", _anchor_log_pdf),
+    Read("anchor-log-pdf-of-anchor", _anchor_log_pdf_of_anchor),
 ]
 """What belongs to a building, read by an organisation with no live grant there."""
 

@@ -14,8 +14,8 @@ from django.urls import reverse
 from checklists.models import CheckSheet
 from checklists.selectors import current_versions
 from compliance.demo import _entries, load_demo, scenario_path
+from compliance.jobs.selectors import job_requirements
 from compliance.models import Job, Site
-from compliance.selectors import job_requirements
 from tests.conftest import client_for
 from tests.engineering.examples import ARREST, DECAY, SUCTION, WATER, vary
 

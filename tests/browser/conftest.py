@@ -142,7 +142,7 @@ def fill_passing_except(job, skip: set[str]) -> None:
     from checklists.selectors import current_versions
     from checklists.services import record_sheet
     from compliance.demo import scenario_path
-    from compliance.selectors import job_requirements
+    from compliance.jobs.selectors import job_requirements
 
     readings = json.loads(scenario_path().read_text(encoding="utf-8"))["readings"]
     versions = {

@@ -35,8 +35,8 @@ def add_auditor(org) -> None:
 
 def add_addendum_to(job) -> None:
     """The supervisor amends yesterday's signed record (its PDF renders in-process)."""
-    from compliance.daily_records import add_addendum
     from compliance.models import DailyRecord
+    from compliance.records.services import add_addendum
 
     record = DailyRecord.objects.get(job=job, kind="record")
     add_addendum(record=record, by=job.supervisor, password=PASSWORD, text=ADDENDUM)
@@ -80,7 +80,7 @@ def api_paths(urls: list[str]) -> list[str]:
 
 def test_auditor_walks_a_month_checks_a_signed_day_and_exports_it(live_server, demo, page):
     from compliance.models import DailyRecord, Job, Organisation, Site
-    from compliance.verification import verify_export, verify_pdf
+    from compliance.records.checks import verify_export, verify_pdf
 
     org = demo.organisation
     site = demo.site

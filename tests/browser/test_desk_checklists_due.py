@@ -193,12 +193,13 @@ def test_supervisor_compares_two_versions_in_words_and_publishes_the_draft(live_
 def due_rows(job) -> tuple[int, int]:
     """An anchor whose certificate runs out in 20 days, and a day three days ago, closed, not
     signed. (The demo's R8 certificate ran out 55 days ago.)"""
-    from compliance import services
+    from compliance.jobs import services
     from compliance.models import User
+    from compliance.registers import services as register_services
 
     manager = User.objects.get(username=MANAGER)
-    anchor = services.add_anchor(site=job.site, by=manager, label="R9", x_m=10, y_m=23.2)
-    cert = services.record_certification(
+    anchor = register_services.add_anchor(site=job.site, by=manager, label="R9", x_m=10, y_m=23.2)
+    cert = register_services.record_certification(
         anchor=anchor,
         by=manager,
         certifier="J. Whitcombe (demo)",

@@ -230,7 +230,7 @@ def test_manager_keeps_the_log_book_and_removal_holds_the_contractors_job(
 
 @pytest.mark.django_db(transaction=True)
 def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_server, demo):
-    from compliance.models import AnchorCertification, Organisation, SiteAccess, SiteAccessEnd
+    from compliance.models import AnchorCertification, Organisation, SiteGrant, SiteGrantEnd
 
     site = demo.site
     other = Organisation.objects.create(name="Second Facade Crew (test)", kind="contractor")
@@ -278,7 +278,7 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
     # Access grants: give one to a second contractor, then end it with a reason.
     page.click("nav.desk-nav a:has-text('Access grants')")
     page.wait_for_selector("[data-testid=desk-grants] [data-testid=grant-form]")
-    assert SiteAccess.objects.filter(site=site).count() == 1
+    assert SiteGrant.objects.filter(site=site).count() == 1
     page.select_option("#grant-contractor", "other")
     page.type("#grant-number", str(other.pk), delay=TYPE_MS)
     start = dt.date.today().isoformat()
@@ -286,7 +286,7 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
     page.fill("#grant-to", end)
     page.click("[data-testid=grant-submit]")
     page.wait_for_selector("[data-testid=grant-done]")
-    grant = SiteAccess.objects.get(site=site, contractor=other)
+    grant = SiteGrant.objects.get(site=site, contractor=other)
     assert (grant.starts_on.isoformat(), grant.ends_on.isoformat(), grant.granted_by.username) == (
         start,
         end,
@@ -303,10 +303,10 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
     page.wait_for_selector(
         f"[data-testid=grant-{grant.pk}] [data-testid=grant-state]:has-text('Ended')"
     )
-    ended = SiteAccessEnd.objects.get(grant=grant)
+    ended = SiteGrantEnd.objects.get(grant=grant)
     assert (ended.ended_by.username, ended.reason) == (MANAGER, "Work finished early.")
     # The demo contractor's grant is untouched.
-    assert SiteAccess.objects.filter(site=site, end__isnull=True).count() == 1
+    assert SiteGrant.objects.filter(site=site, end__isnull=True).count() == 1
 
 
 @pytest.mark.django_db(transaction=True)

@@ -122,9 +122,9 @@ def choose_kit(page, robot: str, tether: str, line: str, hose: str) -> None:
 
 def add_spare_kit() -> None:
     """A robot, a tether, a safety line and a hose on no job today (the demo's are all booked)."""
-    from compliance import services
     from compliance.demo import scenario_path
     from compliance.models import User
+    from compliance.registers import services as register_services
 
     data = json.loads(scenario_path().read_text(encoding="utf-8"))
     ratings = {e["label"]: e["ratings"] for e in data["equipment"]}
@@ -135,12 +135,12 @@ def add_spare_kit() -> None:
         ("safety_line", "S-3", "S-1"),
         ("hose", "H-3", "H-1"),
     ):
-        services.create_equipment(by=rhea, kind=kind, label=label, ratings=ratings[like])
+        register_services.create_equipment(by=rhea, kind=kind, label=label, ratings=ratings[like])
 
 
 def past_and_upcoming_jobs(job) -> tuple[int, int]:
     """A day three days ago closed but never signed, and a day planned two days ahead."""
-    from compliance import services
+    from compliance.jobs import services
 
     boss = job.supervisor
     past = services.create_job(site=job.site, date=day(-3), supervisor=boss, by=boss)

@@ -187,7 +187,7 @@ def test_interrupted_sync_is_retried_without_loss_or_duplicates(live_server, dem
 
 
 def test_start_log_drops_and_a_rejected_record_stays_visible(live_server, demo, context, page):
-    from compliance import services
+    from compliance.jobs import services
     from compliance.models import DropLog, Job
 
     job = demo

@@ -63,8 +63,8 @@ def focused_testid(page) -> str | None:
 def test_every_default_reading_typed_at_a_persons_pace_is_recorded_whole(live_server, demo, page):
     from checklists.models import ChecklistVersion, CheckSheet
     from compliance.demo import scenario_path
+    from compliance.jobs.selectors import job_requirements
     from compliance.models import Hold
-    from compliance.selectors import job_requirements
 
     job = demo
     base = live_server.url

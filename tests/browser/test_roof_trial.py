@@ -61,8 +61,8 @@ def run_decay_test(page, series: list) -> None:
 
 def test_the_demo_job_filled_end_to_end_at_a_persons_pace_is_cleared(live_server, demo, page):
     from checklists.models import CheckSheet
+    from compliance.jobs.selectors import job_requirements
     from compliance.models import Hold
-    from compliance.selectors import job_requirements
 
     job = demo
     base = live_server.url

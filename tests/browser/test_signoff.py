@@ -17,7 +17,7 @@ pytestmark = pytest.mark.browser
 
 def close_day(job) -> None:
     """Every check passes, work starts and the supervisor closes it for the day."""
-    from compliance import services
+    from compliance.jobs import services
     from compliance.models import Job
 
     fill_passing_except(job, set())

@@ -17,7 +17,7 @@ pytestmark = pytest.mark.browser
 
 
 def requirement_keys(job) -> dict[str, str]:
-    from compliance.selectors import job_requirements
+    from compliance.jobs.selectors import job_requirements
 
     keys: dict[str, str] = {}
     for req in job_requirements(job):

@@ -9,7 +9,7 @@ vectors as the other data the server shares with the phone.
 import json
 from pathlib import Path
 
-from compliance.daily_records import MEANINGS
+from compliance.records.services import MEANINGS
 
 PATH = Path(__file__).resolve().parents[2] / "fixtures" / "signature_meanings.json"
 

@@ -31,9 +31,9 @@ def main() -> None:
     import django
 
     django.setup()
-    from compliance import record_files
     from compliance.celery import app
     from compliance.models import RecordPdf
+    from compliance.records import files as record_files
 
     if point == "rendered":
         render = record_files.render_signed_pdf

@@ -8,8 +8,8 @@ from django.urls import reverse
 from django.utils import timezone
 
 from checklists.models import CheckSheet
-from compliance.daily_records import day_content
 from compliance.models import SyncReceipt
+from compliance.records.services import day_content
 from tests.conftest import PASSING, client_for
 
 pytestmark = pytest.mark.django_db

@@ -10,9 +10,9 @@ from django.db import connection
 from django.urls import reverse
 
 from checklists.models import CheckSheet, ItemEntry
+from compliance.jobs.selectors import job_requirements
+from compliance.jobs.services import start_job
 from compliance.models import DropLog, Hold, Job, JobTransition, SyncReceipt
-from compliance.selectors import job_requirements
-from compliance.services import start_job
 from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import UserFactory
 

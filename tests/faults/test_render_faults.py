@@ -5,8 +5,8 @@ from unittest import mock
 import pytest
 
 from compliance.models import RecordPdf
+from compliance.records.checks import verify_pdf
 from compliance.tasks import render_daily_record
-from compliance.verification import verify_pdf
 
 pytestmark = pytest.mark.django_db
 
@@ -90,7 +90,7 @@ def test_the_sweep_removes_only_old_pdfs_no_row_names(signed_record, settings, t
 
     from django.utils import timezone
 
-    from compliance.record_files import ensure_pdf, sweep_orphan_pdfs
+    from compliance.records.files import ensure_pdf, sweep_orphan_pdfs
     from compliance.tasks import sweep_orphan_pdfs as sweep_task
 
     settings.MEDIA_ROOT = tmp_path
@@ -122,7 +122,7 @@ def test_the_sweep_runs_on_an_empty_store(db, settings, tmp_path):
 
     from django.utils import timezone
 
-    from compliance.record_files import sweep_orphan_pdfs
+    from compliance.records.files import sweep_orphan_pdfs
 
     settings.MEDIA_ROOT = tmp_path / "nothing-yet"
     assert sweep_orphan_pdfs(older_than=dt.timedelta(hours=6), now=timezone.now()) == []

@@ -9,9 +9,9 @@ from django.urls import reverse
 from rest_framework.test import APIClient
 
 from checklists.models import CheckSheet, ItemEntry
-from compliance import sync as sync_module
+from compliance.jobs import sync as sync_module
+from compliance.jobs.selectors import job_requirements
 from compliance.models import SyncReceipt
-from compliance.selectors import job_requirements
 from tests.conftest import PASSING, client_for
 
 
@@ -82,7 +82,7 @@ def post(client, records):
 
 FAULT_POINTS = {
     # before the record touches the database
-    "apply": ("compliance.sync.APPLY", "sheet"),
+    "apply": ("compliance.jobs.sync.APPLY", "sheet"),
     # after the sheet and its entries are written, before holds and readiness
     "outcome": ("checklists.services.apply_sheet_outcome", None),
     # after everything is applied, while writing the receipt

@@ -23,9 +23,9 @@ from django.db import connection
 from django.utils import timezone
 
 from compliance.models import RecordPdf
-from compliance.record_files import sweep_orphan_pdfs
+from compliance.records.checks import verify_pdf
+from compliance.records.files import sweep_orphan_pdfs
 from compliance.tasks import render_daily_record
-from compliance.verification import verify_pdf
 from tests.faults.conftest import sign_closed_job
 
 pytestmark = [pytest.mark.redis, pytest.mark.postgres, pytest.mark.django_db(transaction=True)]
@@ -37,7 +37,7 @@ VISIBILITY_TIMEOUT_S = 3
 @pytest.fixture
 def record(job, simple_checklists, operator, supervisor):
     """A signed record whose render the test queues itself, on a queue of its own."""
-    with mock.patch("compliance.daily_records._queue_render"):
+    with mock.patch("compliance.records.services._queue_render"):
         return sign_closed_job(job, simple_checklists, operator, supervisor)
 
 

@@ -20,9 +20,9 @@ from urllib.parse import quote
 from django.utils import timezone
 from hypothesis import strategies as st
 
-from compliance import signing
-from compliance.anchor_log import SIGNED_KINDS, record_entry
-from compliance.models import AnchorLogEntry, JobState, Organisation, SiteAccess
+from compliance.anchor_log.services import SIGNED_KINDS, record_entry
+from compliance.models import AnchorLogEntry, JobState, Organisation, SiteGrant
+from compliance.records import signing
 from tests.conftest import PASSING, fill_all
 from tests.engineering.examples import SUCTION
 from tests.factories import (
@@ -270,7 +270,7 @@ class World:
     contractor: Organisation
     owner_site: Any
     owner_anchors: list
-    grant: SiteAccess
+    grant: SiteGrant
     versions: dict
     own_checklist: Any
     draft: Any
@@ -299,7 +299,7 @@ def credential(organisation: Organisation) -> Any:
 
 def build_world(versions: dict) -> World:
     from checklists.services import create_draft
-    from compliance.daily_records import sign_daily_record
+    from compliance.records.services import sign_daily_record
     from tests.factories import published_checklist, tick
 
     today = timezone.localdate()
@@ -330,7 +330,7 @@ def build_world(versions: dict) -> World:
     anchors = [AnchorFactory(site=owner_site) for _ in range(2)]
     for anchor in anchors:
         CertificationFactory(anchor=anchor)
-    grant = SiteAccess.objects.create(
+    grant = SiteGrant.objects.create(
         site=owner_site,
         contractor=org,
         granted_by=manager,
@@ -559,7 +559,6 @@ EXTRA_QUERY = {
     "/api/v1/records/": ["site", "job"],
     "/api/v1/records/export/": ["site", "start", "end"],
     "/api/v1/anchor-log/": ["site", "anchor"],
-    "/api/v1/sites/{id}/log-book/": ["anchor"],
 }
 """Query parameters the views read that the schema does not declare."""
 

@@ -23,8 +23,8 @@ from hypothesis import strategies as st
 
 from checklists.models import CheckSheet, ItemEntry
 from compliance.engineering import CALCULATIONS, CalcInputError, CalcResult, Field, run
+from compliance.jobs.selectors import job_requirements
 from compliance.models import Hold, HoldClearance, JobTransition, SyncReceipt
-from compliance.selectors import job_requirements
 from tests.conftest import client_for
 from tests.engineering.examples import BY_NAME
 from tests.factories import published_checklist, reading, tick

@@ -18,9 +18,9 @@ import pytest
 from django.urls import reverse
 
 from checklists.models import CheckSheet
-from compliance.daily_records import day_content
+from compliance.jobs.selectors import job_requirements
 from compliance.models import AnchorCertification, Equipment, Job
-from compliance.selectors import job_requirements
+from compliance.records.services import day_content
 from tests.conftest import PASSING, client_for
 from tests.engineering.examples import SUCTION
 

@@ -1,8 +1,8 @@
 import pytest
 
-from compliance.daily_records import sign_daily_record
-from compliance.services import close_job, start_job
-from compliance.signing import create_self_signed
+from compliance.jobs.services import close_job, start_job
+from compliance.records.services import sign_daily_record
+from compliance.records.signing import create_self_signed
 from tests.conftest import fill_all
 from tests.factories import PASSWORD, JobFactory, make_drop
 
@@ -48,6 +48,6 @@ def signed(closed_job, supervisor):
 
 @pytest.fixture
 def signed_pdf(signed):
-    from compliance.record_files import render_signed_pdf
+    from compliance.records.files import render_signed_pdf
 
     return render_signed_pdf(signed)

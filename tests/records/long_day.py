@@ -3,8 +3,8 @@
 import math
 
 from checklists.services import record_sheet
+from compliance.jobs.services import close_job, start_job
 from compliance.models import Job
-from compliance.services import close_job, start_job
 from tests.conftest import PASSING, fill_all
 from tests.factories import published_checklist, tick
 

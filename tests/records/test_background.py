@@ -6,9 +6,9 @@ import os
 import pytest
 from django.utils import timezone
 
-from compliance.daily_records import sign_daily_record
+from compliance.due.notices import flag_due, flag_unsigned
 from compliance.models import Notice, RecordPdf
-from compliance.notices import flag_due, flag_unsigned
+from compliance.records.services import sign_daily_record
 from compliance.tasks import render_daily_record
 from tests.factories import PASSWORD, CertificationFactory, EquipmentFactory, JobFactory
 
@@ -74,8 +74,8 @@ def test_a_real_worker_renders_through_redis(simple_checklists, tmp_path, settin
     from celery.contrib.testing.worker import start_worker
 
     from compliance.celery import app
-    from compliance.services import close_job, start_job
-    from compliance.signing import create_self_signed
+    from compliance.jobs.services import close_job, start_job
+    from compliance.records.signing import create_self_signed
     from tests.conftest import fill_all
     from tests.factories import UserFactory, make_drop
 

@@ -11,13 +11,13 @@ import rfc8785
 from django.db import connection
 from django.urls import reverse
 
-from compliance.daily_records import sign_daily_record
-from compliance.exports import build_export, export_scope
-from compliance.models import DailyRecord, Organisation, SiteAccess
-from compliance.record_files import ensure_pdf
-from compliance.services import close_job, start_job
-from compliance.signing import create_self_signed, sha256_hex, sign_seal
-from compliance.verification import TrustList, verify_export
+from compliance.jobs.services import close_job, start_job
+from compliance.models import DailyRecord, Organisation, SiteGrant
+from compliance.records.checks import TrustList, verify_export
+from compliance.records.exports import build_export, export_scope
+from compliance.records.files import ensure_pdf
+from compliance.records.services import sign_daily_record
+from compliance.records.signing import create_self_signed, sha256_hex, sign_seal
 from tests.conftest import client_for, fill_all
 from tests.factories import PASSWORD, JobFactory, OrganisationFactory, UserFactory, make_drop
 from tests.records.conftest import next_day_job
@@ -40,7 +40,7 @@ def building(signed, simple_checklists, operator, supervisor, settings, tmp_path
     other = OrganisationFactory(name="Second Rope Co")
     create_self_signed(organisation=other)
     for contractor in (first, other):
-        SiteAccess.objects.create(
+        SiteGrant.objects.create(
             site=site,
             contractor=contractor,
             starts_on=signed.job.date - dt.timedelta(days=60),
@@ -165,7 +165,7 @@ def test_a_day_of_the_period_moved_out_of_the_export_does_not_verify(
     chain["after_period"].insert(
         0, {k: moved[k] for k in ("sequence", "kind", "date", "seal", "previous_seal")}
     )
-    from compliance.sealing import merkle_root
+    from compliance.records.sealing import merkle_root
 
     manifest["merkle_root"] = merkle_root([bytes.fromhex(e["seal"]) for e in chain["records"]])
     raw = rfc8785.dumps(manifest)
@@ -188,7 +188,7 @@ def test_a_day_of_the_period_moved_out_of_the_export_does_not_verify(
 def test_an_addendum_signed_later_travels_with_its_day(
     signed, simple_checklists, operator, supervisor, settings, tmp_path
 ):
-    from compliance.daily_records import add_addendum
+    from compliance.records.services import add_addendum
 
     settings.MEDIA_ROOT = tmp_path
     later = next_day_job(signed.job, simple_checklists, operator, 1)

@@ -8,8 +8,8 @@ from django.urls import reverse
 from pypdf import PdfReader
 
 from compliance.models import DailyRecord, RecordPdf
-from compliance.record_files import render_signed_pdf
-from compliance.record_pdf import CAUTION
+from compliance.records.files import render_signed_pdf
+from compliance.records.pdf import CAUTION
 from tests.conftest import client_for
 from tests.factories import PASSWORD
 from tests.records.long_day import (

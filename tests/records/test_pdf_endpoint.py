@@ -69,7 +69,7 @@ def test_sign_off_answers_201_with_the_sealed_record_when_the_render_fails(
     that fails is logged and retried, and the signer still gets the sealed record."""
     settings.MEDIA_ROOT = tmp_path
     client = client_for(supervisor)
-    with mock.patch("compliance.record_files.render_signed_pdf", side_effect=Broken("x")) as r:
+    with mock.patch("compliance.records.files.render_signed_pdf", side_effect=Broken("x")) as r:
         response = client.post(
             reverse("job-sign", args=[closed_job.pk]),
             {"password": PASSWORD, "meaning": "reviewed_safe"},

@@ -9,11 +9,11 @@ from pathlib import Path
 import pytest
 from django.conf import settings as django_settings
 
-from compliance import daily_records
-from compliance.daily_records import sign_daily_record
 from compliance.models import Hold
-from compliance.record_files import render_signed_pdf
-from compliance.verification import verify_pdf
+from compliance.records import services as daily_records
+from compliance.records.checks import verify_pdf
+from compliance.records.files import render_signed_pdf
+from compliance.records.services import sign_daily_record
 from tests.conftest import fill_all
 from tests.factories import PASSWORD
 
@@ -83,7 +83,7 @@ def test_a_record_sealed_in_the_first_format_keeps_its_pages_and_verifies(
 ):
     settings.MEDIA_ROOT = tmp_path
     fill_all(job, simple_checklists, operator)
-    from compliance.services import close_job, start_job
+    from compliance.jobs.services import close_job, start_job
 
     start_job(job=job, by=operator)
     close_job(job=job, by=operator)

@@ -9,7 +9,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from pypdf import PdfReader
 
-from compliance.record_pdf import CAUTION, render
+from compliance.records.pdf import CAUTION, render
 
 pytestmark = pytest.mark.django_db
 

@@ -12,10 +12,10 @@ from pypdf import PdfReader
 
 from checklists.models import Photo
 from checklists.photos import store_photo
-from compliance.daily_records import sign_daily_record
-from compliance.record_files import _photo_bytes, render_signed_pdf
-from compliance.record_pdf import render
-from compliance.verification import verify_pdf
+from compliance.records.checks import verify_pdf
+from compliance.records.files import _photo_bytes, render_signed_pdf
+from compliance.records.pdf import render
+from compliance.records.services import sign_daily_record
 from tests.factories import PASSWORD
 from tests.records.object_storage import use_object_storage
 
@@ -136,7 +136,7 @@ def test_another_process_renders_the_same_bytes(photographed, tmp_path):
     path.write_text(json.dumps({"document": document, "seal": photographed.seal}))
     script = (
         "import hashlib, json, sys\n"
-        "from compliance.record_pdf import render\n"
+        "from compliance.records.pdf import render\n"
         "given = json.load(open(sys.argv[1]))\n"
         "print(hashlib.sha256(render(given['document'], given['seal'])).hexdigest())\n"
     )

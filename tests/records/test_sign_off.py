@@ -10,10 +10,10 @@ from django.urls import reverse
 
 from checklists.services import record_sheet
 from compliance.append_only import AppendOnlyViolation
-from compliance.daily_records import MEANINGS, add_addendum, sign_daily_record
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import DailyRecord
-from compliance.sealing import seal_of
+from compliance.records.sealing import seal_of
+from compliance.records.services import MEANINGS, add_addendum, sign_daily_record
 from tests.conftest import PASSING, client_for
 from tests.factories import PASSWORD, UserFactory
 
@@ -214,11 +214,11 @@ def test_a_wrong_phone_clock_is_stated_in_the_record(
 
     from django.utils import timezone
 
-    from compliance.services import close_job, start_job
+    from compliance.jobs.services import close_job, start_job
 
     ahead = timezone.now() + dt.timedelta(hours=5)
     sheets = []
-    from compliance.selectors import job_requirements
+    from compliance.jobs.selectors import job_requirements
 
     for req in job_requirements(job):
         entries = PASSING[req.subject.kind]

@@ -15,14 +15,14 @@ from django.urls import reverse
 from PIL import Image
 from pypdf import PdfReader
 
-from compliance.daily_records import sign_daily_record, verify_chain
-from compliance.exports import build_export, export_scope
 from compliance.models import DailyRecord
-from compliance.record_files import ensure_pdf
-from compliance.record_pdf import ATTACHMENT_NAME, render
-from compliance.sealing import merkle_root, seal_of
-from compliance.signing import create_self_signed, sign_pdf, sign_seal
-from compliance.verification import TrustList, verify_export, verify_pdf
+from compliance.records.checks import TrustList, verify_export, verify_pdf
+from compliance.records.exports import build_export, export_scope
+from compliance.records.files import ensure_pdf
+from compliance.records.pdf import ATTACHMENT_NAME, render
+from compliance.records.sealing import merkle_root, seal_of
+from compliance.records.services import sign_daily_record, verify_chain
+from compliance.records.signing import create_self_signed, sign_pdf, sign_seal
 from tests.conftest import client_for
 from tests.factories import PASSWORD, OrganisationFactory
 from tests.records.conftest import next_day_job

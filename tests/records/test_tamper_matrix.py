@@ -13,13 +13,13 @@ import subprocess
 import pytest
 from django.db import connection
 
-from compliance.daily_records import sign_daily_record, verify_chain
-from compliance.models import DailyRecord, Equipment, RecordChainHead, SiteAccess
-from compliance.record_files import render_signed_pdf
-from compliance.sealing import canonical_bytes, seal_of
-from compliance.services import record_certification
-from compliance.signing import KeyMaterial, create_self_signed, sign_seal
-from compliance.verification import verify_pdf
+from compliance.models import DailyRecord, Equipment, RecordChainHead, SiteGrant
+from compliance.records.checks import verify_pdf
+from compliance.records.files import render_signed_pdf
+from compliance.records.sealing import canonical_bytes, seal_of
+from compliance.records.services import sign_daily_record, verify_chain
+from compliance.records.signing import KeyMaterial, create_self_signed, sign_seal
+from compliance.registers.services import record_certification
 from tests.conftest import fill_all
 from tests.factories import (
     PASSWORD,
@@ -195,7 +195,7 @@ def test_the_last_day_rewritten_with_a_replaced_key_is_caught(three_days, creden
     create_self_signed(organisation=job.organisation)  # the organisation replaces its key
     seal = _rewrite(three_days[2], credential)
     head = RecordChainHead.objects.get(organisation_id=job.organisation_id)
-    from compliance.signing import sign_chain_head
+    from compliance.records.signing import sign_chain_head
 
     sign_chain_head(head, credential, sequence=3, seal=seal)  # the head too, with the old key
     chain = verify_chain(job.organisation_id, job.site_id)
@@ -302,7 +302,7 @@ def test_two_contractors_at_one_building_keep_separate_chains(
 ):
     other = OrganisationFactory()
     create_self_signed(organisation=other)
-    SiteAccess.objects.create(
+    SiteGrant.objects.create(
         site=job.site,
         contractor=other,
         starts_on=job.date - dt.timedelta(days=30),
@@ -314,7 +314,7 @@ def test_two_contractors_at_one_building_keep_separate_chains(
     theirs = JobFactory(site=job.site, organisation=other, supervisor=boss, date=job.date)
     make_drop(theirs)
     fill_all(theirs, simple_checklists, crew)
-    from compliance.services import close_job, start_job
+    from compliance.jobs.services import close_job, start_job
 
     start_job(job=theirs, by=crew)
     close_job(job=theirs, by=crew)
@@ -337,8 +337,8 @@ def _false_pages(record, change, *, overlay: str | None = None) -> bytes:
     from pypdf import PdfReader, PdfWriter
     from pypdf.annotations import FreeText
 
-    from compliance.record_pdf import ATTACHMENT_NAME, render
-    from compliance.signing import sign_pdf
+    from compliance.records.pdf import ATTACHMENT_NAME, render
+    from compliance.records.signing import sign_pdf
 
     genuine = json.loads(record.canonical_json)
     altered = json.loads(record.canonical_json)

@@ -2,7 +2,7 @@ from typing import Any
 
 from django.core.management.base import BaseCommand
 
-from compliance.profiles import load_default_checklists, load_profiles
+from compliance.registers.profiles import load_default_checklists, load_profiles
 
 
 class Command(BaseCommand):

@@ -4,7 +4,7 @@ from typing import Any
 from django.core.management.base import BaseCommand, CommandError, CommandParser
 
 from compliance.models import ProfileRevision
-from compliance.profiles import profile_diff
+from compliance.registers.profiles import profile_diff
 
 
 class Command(BaseCommand):

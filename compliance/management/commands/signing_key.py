@@ -4,7 +4,7 @@ from typing import Any
 from django.core.management.base import BaseCommand, CommandError, CommandParser
 
 from compliance.models import Organisation
-from compliance.signing import create_self_signed, store_credential
+from compliance.records.signing import create_self_signed, store_credential
 
 
 class Command(BaseCommand):

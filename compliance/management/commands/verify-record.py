@@ -5,7 +5,7 @@ from typing import Any
 
 from django.core.management.base import BaseCommand, CommandError, CommandParser
 
-from compliance.verification import TrustList, verify_export, verify_pdf
+from compliance.records.checks import TrustList, verify_export, verify_pdf
 
 
 class Command(BaseCommand):

@@ -1,6 +1,6 @@
 /**
  * Anchors and their certificates: the certificate in force for each anchor, and a form to
- * record a new one (append-only; an old certificate is never edited). The API gives only the
+ * record a new one with its file as evidence (append-only; an old certificate is never edited). The API gives only the
  * certificate in force, so earlier ones show here only once recorded in this visit.
  */
 import { useState } from "preact/hooks";
@@ -19,6 +19,8 @@ function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (
   const [capacity, setCapacity] = useState("");
   const [on, setOn] = useState(dayFrom(0));
   const [until, setUntil] = useState("");
+  const [file, setFile] = useState<File | null>(null);
+  const [fileKey, setFileKey] = useState(0);
   const [errors, setErrors] = useState<Errors>({});
   const [busy, setBusy] = useState(false);
   const [done, setDone] = useState("");
@@ -42,10 +44,12 @@ function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (
         rated_capacity_kn: kn,
         certified_on: on,
         valid_until: until,
-      });
+      }, file);
       const label = data.anchors.find((a) => a.id === id)?.label ?? "";
       setCapacity("");
       setUntil("");
+      setFile(null);
+      setFileKey((k) => k + 1);
       await onRecorded(id, cert);
       setDone(`Certificate recorded for anchor ${label}: ${cert.rated_capacity_kn} kN, valid until ${cert.valid_until}.`);
     } catch (e) {
@@ -96,9 +100,13 @@ function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (
         <input id="cert-until" type="date" value={until} onInput={(e) => setUntil(e.currentTarget.value)} aria-describedby={describedBy(err("valid_until"))} />
         <FieldErrors id="err-cert-valid_until" messages={errors.valid_until} />
       </div>
+      <div class="field">
+        <label for="cert-file">The certificate's file <span class="muted">(PDF, PNG or JPEG, at most 10 MB)</span></label>
+        <input key={fileKey} id="cert-file" type="file" accept="application/pdf,image/png,image/jpeg" onChange={(e) => setFile(e.currentTarget.files?.[0] ?? null)} aria-describedby={describedBy(err("document"))} />
+        <FieldErrors id="err-cert-document" messages={errors.document} />
+      </div>
       <p class="muted small">
-        The certificate's file cannot be attached here yet: the server keeps a document field but does not accept an upload for it.
-        Keep the paper or PDF with the building's records.
+        The file is kept unchanged as evidence, with its SHA-256 fingerprint; a certificate is never edited, a new one is recorded.
       </p>
       <button class="btn btn-primary" type="submit" disabled={busy} data-testid="cert-submit">
         {busy ? "Recording…" : "Record the certificate"}
@@ -143,7 +151,15 @@ export function DeskCertificates({ siteId }: { siteId?: number }) {
                       <dd>{current.rated_capacity_kn} kN, {current.certified_on} to {current.valid_until}</dd>
                       <dt>Certified by</dt>
                       <dd>{current.certifier}{current.certifier_company ? `, ${current.certifier_company}` : ""}</dd>
-                      {current.document && <><dt>File</dt><dd><a class="inline-link" href={current.document}>Certificate file</a></dd></>}
+                      {current.document_url && (
+                        <>
+                          <dt>File</dt>
+                          <dd>
+                            <a class="inline-link" href={current.document_url} download data-testid="cert-file-link">Certificate file</a>{" "}
+                            <span class="muted small" title={current.document_sha256}>SHA-256 {current.document_sha256.slice(0, 12)}…</span>
+                          </dd>
+                        </>
+                      )}
                     </dl>
                   ) : (
                     <p class="muted">No certificate in force.</p>

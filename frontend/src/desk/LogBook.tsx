@@ -163,7 +163,7 @@ export function DeskLogBook({ siteId }: { siteId?: number }) {
     <>
       <SiteTitle title="Anchor log book" page="log" data={data} />
       <p>
-        <a class="btn" href={`/api/v1/sites/${data.site.id}/log-book/`} download data-testid="log-pdf">Download the signed log book (PDF)</a>
+        <a class="btn" href={`/api/v1/anchor-log/pdf/?site=${data.site.id}`} download data-testid="log-pdf">Download the signed log book (PDF)</a>
       </p>
       <div class="desk-columns">
         <section aria-labelledby="entries-head">

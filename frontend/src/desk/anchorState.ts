@@ -1,6 +1,6 @@
 /**
  * An anchor's state for the building's desk, read from its certificate in force and its log
- * book, as the server reads it (compliance/anchor_status.py): a removal from service with no
+ * book, as the server reads it (compliance/registers/selectors.py): a removal from service with no
  * later return means out of service; the last passed inspection or load test (or the
  * certificate's date) plus the profile's interval is when the next inspection falls due.
  * The server holds jobs on its own reading; this is what the desk shows.

@@ -76,8 +76,14 @@ export const desk = {
   /** The site's anchor log book in the server's order (by sequence, oldest first). */
   log: (site: number) => all<LogEntry>(`anchor-log/?site=${site}`),
   addLogEntry: (data: LogEntryInput) => request<LogEntry>("anchor-log/", { method: "POST", json: data }),
-  addCertification: (anchor: number, data: CertificationInput) =>
-    request<Certification>(`anchors/${anchor}/certifications/`, { method: "POST", json: data }),
+  /** A certification, with the certificate's file (PDF, PNG or JPEG) sent alongside when given. */
+  addCertification: (anchor: number, data: Omit<CertificationInput, "document">, file?: File | null) => {
+    if (!file) return request<Certification>(`anchors/${anchor}/certifications/`, { method: "POST", json: data });
+    const form = new FormData();
+    for (const [key, value] of Object.entries(data)) if (value !== undefined) form.append(key, String(value));
+    form.append("document", file);
+    return request<Certification>(`anchors/${anchor}/certifications/`, { method: "POST", form });
+  },
   grants: (site: number) => request<Grant[]>(`sites/${site}/grants/`),
   grant: (site: number, data: GrantInput) => request<Grant>(`sites/${site}/grants/`, { method: "POST", json: data }),
   endGrant: (site: number, grant: number, reason: string) =>

@@ -11,8 +11,8 @@ from django.db import IntegrityError, transaction
 
 from checklists.models import Photo
 from compliance.models import DailyRecord, RecordPdf
-from compliance.record_pdf import render
-from compliance.signing import sha256_hex, sign_pdf
+from compliance.records.pdf import render
+from compliance.records.signing import sha256_hex, sign_pdf
 
 logger = logging.getLogger(__name__)
 

@@ -1,11 +1,14 @@
-"""An anchor's state read from its log book and certifications: in service or not, when it
-was last inspected and when the next inspection falls due. A read over prefetched rows, used by
-the selectors, the log book's printing and the holds the log book opens."""
+"""Reads of the registers. An anchor's state read from its log book and certifications (in
+service or not, when it was last inspected and when the next inspection falls due: a read over
+prefetched rows, used by the job selectors, the log book's printing and the holds the log book
+opens), and equipment with the reason it was last taken out of service."""
 
 import datetime as dt
 from dataclasses import dataclass
 
-from compliance.models import Anchor, AnchorLogEntry
+from django.db.models import OuterRef, QuerySet, Subquery
+
+from compliance.models import Anchor, AnchorLogEntry, Equipment, RegisterChange
 
 INSPECTION_KINDS = (AnchorLogEntry.Kind.PERIODIC_INSPECTION, AnchorLogEntry.Kind.LOAD_TEST)
 
@@ -44,3 +47,32 @@ def anchor_status(anchor: Anchor, interval_days: int) -> AnchorStatus:
     last = max(dates) if dates else None
     due = last + dt.timedelta(days=interval_days) if last else None
     return AnchorStatus(in_service, removed_on, reason, last, due)
+
+
+WITHDRAWN = "taken out of service"
+
+
+def equipment_of(organisation_id: int | None) -> QuerySet[Equipment]:
+    """The organisation's equipment, each with the reason given when it was last taken out of
+    service (from its audit entries, in the same query)."""
+    reason = (
+        RegisterChange.objects.filter(
+            subject="equipment", object_id=OuterRef("pk"), action=WITHDRAWN
+        )
+        .order_by("-at", "-pk")
+        .values("changes__reason")[:1]
+    )
+    return Equipment.objects.filter(organisation_id=organisation_id).annotate(
+        withdrawn_reason=Subquery(reason)
+    )
+
+
+def withdrawn_reason(item: Equipment) -> str:
+    """The reason given when this equipment was last taken out of service ("" if none)."""
+    found = (
+        RegisterChange.objects.filter(subject="equipment", object_id=item.pk, action=WITHDRAWN)
+        .order_by("-at", "-pk")
+        .values_list("changes__reason", flat=True)
+        .first()
+    )
+    return found or ""

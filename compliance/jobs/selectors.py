@@ -3,11 +3,9 @@
 from collections.abc import Iterable
 from dataclasses import dataclass
 
-from django.db.models import Exists, OuterRef, Prefetch, QuerySet, Subquery
+from django.db.models import Exists, OuterRef, Prefetch, QuerySet
 
 from checklists.selectors import current_versions, latest_sheets
-from compliance.access import can_work_at
-from compliance.anchor_status import anchor_status
 from compliance.errors import Reason
 from compliance.models import (
     OPEN_STATES,
@@ -19,9 +17,10 @@ from compliance.models import (
     Equipment,
     Hold,
     Job,
-    RegisterChange,
     User,
 )
+from compliance.registers.selectors import anchor_status
+from compliance.registers.visibility import can_work_at
 
 
 @dataclass(frozen=True)
@@ -151,7 +150,7 @@ def job_blockers(
     interval_days = int(profile.threshold("certification_interval_days"))
     if not can_work_at(job.organisation_id, job.site, job.date):
         reasons.append(
-            Reason("no_site_access", "The building owner's access grant does not cover this day.")
+            Reason("no_grant_for_day", "The building owner's access grant does not cover this day.")
         )
     seen: set[int] = set()
     for drop in drops:
@@ -404,32 +403,3 @@ def plan_conflicts(
                     )
                 )
     return conflicts
-
-
-WITHDRAWN = "taken out of service"
-
-
-def equipment_of(organisation_id: int | None) -> QuerySet[Equipment]:
-    """The organisation's equipment, each with the reason given when it was last taken out of
-    service (from its audit entries, in the same query)."""
-    reason = (
-        RegisterChange.objects.filter(
-            subject="equipment", object_id=OuterRef("pk"), action=WITHDRAWN
-        )
-        .order_by("-at", "-pk")
-        .values("changes__reason")[:1]
-    )
-    return Equipment.objects.filter(organisation_id=organisation_id).annotate(
-        withdrawn_reason=Subquery(reason)
-    )
-
-
-def withdrawn_reason(item: Equipment) -> str:
-    """The reason given when this equipment was last taken out of service ("" if none)."""
-    found = (
-        RegisterChange.objects.filter(subject="equipment", object_id=item.pk, action=WITHDRAWN)
-        .order_by("-at", "-pk")
-        .values_list("changes__reason", flat=True)
-        .first()
-    )
-    return found or ""

@@ -26,7 +26,9 @@ from django.utils import timezone
 from checklists.models import CheckSheet, ItemEntry, Photo
 from compliance.celery import app as celery_app
 from compliance.errors import InvalidTransition, NotPermitted
-from compliance.holds import OPEN_HOLDS_NOT_SAFE, SIGNED_HELD
+from compliance.jobs.holds import OPEN_HOLDS_NOT_SAFE, SIGNED_HELD
+from compliance.jobs.selectors import drops_of
+from compliance.jobs.services import close_job
 from compliance.models import (
     AnchorCertification,
     DailyRecord,
@@ -42,11 +44,9 @@ from compliance.models import (
     Site,
     User,
 )
-from compliance.sealing import ChainBreak, canonical_bytes, check_links, utc
-from compliance.selectors import drops_of
-from compliance.services import close_job
-from compliance.signatures import verify_seal_signature
-from compliance.signing import (
+from compliance.records.sealing import ChainBreak, canonical_bytes, check_links, utc
+from compliance.records.signatures import verify_seal_signature
+from compliance.records.signing import (
     KeyMaterial,
     active_credential,
     sha256_hex,

@@ -9,7 +9,7 @@ from django.core.mail import EmailMessage, get_connection
 from django.db import IntegrityError, transaction
 from django.db.models import Exists, OuterRef
 
-from compliance.due import CAUTION
+from compliance.due.selectors import CAUTION
 from compliance.models import (
     Anchor,
     DailyRecord,

@@ -5,11 +5,11 @@ from typing import Any
 
 from django.utils import timezone
 
-from compliance.anchor_status import anchor_status
-from compliance.log_book_pdf import CAUTION, FORMAT, render
+from compliance.anchor_log.pdf import CAUTION, FORMAT, render
 from compliance.models import Anchor, AnchorLogEntry, Site, User
-from compliance.sealing import seal_of, utc
-from compliance.signing import active_credential, sign_pdf
+from compliance.records.sealing import seal_of, utc
+from compliance.records.signing import active_credential, sign_pdf
+from compliance.registers.selectors import anchor_status
 
 
 def build_document(site: Site, by: User, anchor: Anchor | None = None) -> dict[str, Any]:
@@ -71,7 +71,7 @@ def build_document(site: Site, by: User, anchor: Anchor | None = None) -> dict[s
     }
 
 
-def signed_log_book(site: Site, by: User, anchor: Anchor | None = None) -> tuple[bytes, str]:
+def signed_anchor_log(site: Site, by: User, anchor: Anchor | None = None) -> tuple[bytes, str]:
     document = build_document(site, by, anchor)
     seal = seal_of(document)
     credential = active_credential(by.organisation_id)

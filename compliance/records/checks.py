@@ -6,21 +6,17 @@ import hashlib
 import json
 from typing import Any
 
-from compliance.anchor_log import verify_log_chain
-from compliance.daily_records import (
+from compliance.anchor_log.services import verify_log_chain
+from compliance.models import AnchorLogEntry, DailyRecord, Organisation, SigningCredential
+from compliance.records.services import (
     sealed_column_problems,
     verify_against_database,
     verify_chain,
 )
-from compliance.models import AnchorLogEntry, DailyRecord, Organisation, SigningCredential
-from compliance.signatures import verify_seal_signature
-from compliance.verifier import (
-    LOG_BOOK_FORMAT,
-    Report,
-    TrustList,
-)
-from compliance.verifier import verify_export as verify_export_bytes
-from compliance.verifier import verify_pdf as verify_pdf_bytes
+from compliance.records.signatures import verify_seal_signature
+from compliance.records.verifier import LOG_BOOK_FORMAT, Report, TrustList
+from compliance.records.verifier import verify_export as verify_export_bytes
+from compliance.records.verifier import verify_pdf as verify_pdf_bytes
 
 __all__ = ["Report", "TrustList", "organisation_trust", "verify_export", "verify_pdf"]
 

@@ -22,7 +22,7 @@ from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.verdicts import ItemResult
-from compliance.anchor_status import status_requirement
+from compliance.jobs.selectors import job_blockers
 from compliance.models import (
     OPEN_STATES,
     Anchor,
@@ -35,7 +35,7 @@ from compliance.models import (
     JobTransition,
     User,
 )
-from compliance.selectors import job_blockers
+from compliance.registers.selectors import status_requirement
 
 SIGNED_HELD = "Signed off at day's end with the hold open."
 """The reason written when a held day is closed by signing its record."""

@@ -25,20 +25,14 @@ from pyhanko.sign.validation import validate_pdf_signature
 from pyhanko.sign.validation.status import SignatureCoverageLevel
 from pyhanko_certvalidator import ValidationContext
 
-from compliance import log_book_pdf, record_pdf
-from compliance.page_check import Renderer, differing_pages
-from compliance.record_pdf import printed_seal, read_attachment
-from compliance.sealing import (
-    EXPORT_FORMAT,
-    merkle_root,
-)
-from compliance.sealing import (
-    EXPORT_MANIFEST as MANIFEST,
-)
-from compliance.sealing import (
-    EXPORT_MANIFEST_SIGNATURE as MANIFEST_SIGNATURE,
-)
-from compliance.signatures import verify_seal_signature
+from compliance.anchor_log import pdf as log_book_pdf
+from compliance.records import pdf as record_pdf
+from compliance.records.page_check import Renderer, differing_pages
+from compliance.records.pdf import printed_seal, read_attachment
+from compliance.records.sealing import EXPORT_FORMAT, merkle_root
+from compliance.records.sealing import EXPORT_MANIFEST as MANIFEST
+from compliance.records.sealing import EXPORT_MANIFEST_SIGNATURE as MANIFEST_SIGNATURE
+from compliance.records.signatures import verify_seal_signature
 
 
 @dataclass

@@ -12,7 +12,7 @@ from reportlab.lib.pagesizes import A4
 from reportlab.lib.units import mm
 from reportlab.platypus import SimpleDocTemplate, Spacer
 
-from compliance.record_pdf import ATTACHMENT_NAME, SEAL_LABEL, _NumberedCanvas, _p, _styles, _table
+from compliance.records.pdf import ATTACHMENT_NAME, SEAL_LABEL, _NumberedCanvas, _p, _styles, _table
 
 FORMAT = "parapet.anchor-log-book/1"
 CAUTION = (

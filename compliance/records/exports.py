@@ -27,16 +27,16 @@ from compliance.models import (
     RecordChainHead,
     SigningCredential,
     Site,
-    SiteAccess,
+    SiteGrant,
     User,
 )
-from compliance.sealing import (
+from compliance.records.sealing import (
     EXPORT_FORMAT,
     EXPORT_MANIFEST,
     EXPORT_MANIFEST_SIGNATURE,
     merkle_root,
 )
-from compliance.signing import active_credential, sha256_hex, sign_seal
+from compliance.records.signing import active_credential, sha256_hex, sign_seal
 
 FORMAT, MANIFEST, MANIFEST_SIGNATURE = EXPORT_FORMAT, EXPORT_MANIFEST, EXPORT_MANIFEST_SIGNATURE
 MAX_DAYS = 400
@@ -62,7 +62,7 @@ def export_scope(*, user: User, site_id: int) -> ExportScope:
         chains = RecordChainHead.objects.filter(site=site).values_list("organisation_id", flat=True)
         return ExportScope(site, tuple(sorted({org, *chains})))
     works_there = (
-        SiteAccess.objects.filter(site=site, contractor_id=org).exists()
+        SiteGrant.objects.filter(site=site, contractor_id=org).exists()
         or DailyRecord.objects.filter(site=site, organisation_id=org).exists()
     )
     if not works_there:

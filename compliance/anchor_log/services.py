@@ -18,9 +18,8 @@ from django.db import transaction
 from django.utils import timezone
 
 from checklists.models import CheckSheet
-from compliance.access import can_work_at, owns_site
 from compliance.errors import InvalidTransition, NotPermitted
-from compliance.holds import clear_for_returned_anchor, hold_for_removed_anchor, jobs_using
+from compliance.jobs.holds import clear_for_returned_anchor, hold_for_removed_anchor, jobs_using
 from compliance.models import (
     Anchor,
     AnchorLogEntry,
@@ -28,8 +27,9 @@ from compliance.models import (
     Site,
     User,
 )
-from compliance.sealing import canonical_bytes, check_links, seal_of, utc
-from compliance.signing import active_credential, sign_seal
+from compliance.records.sealing import canonical_bytes, check_links, seal_of, utc
+from compliance.records.signing import active_credential, sign_seal
+from compliance.registers.visibility import can_work_at, owns_site
 
 FORMAT = "parapet.anchor-log-entry/1"
 MEANING = "I made or witnessed the work recorded here and its result is as stated."

@@ -11,8 +11,8 @@ from dataclasses import dataclass
 
 from django.db.models import Exists, OuterRef, Subquery
 
-from compliance.access import sites_visible_to
 from compliance.models import Anchor, AnchorCertification, CalendarFeed, DailyRecord, Equipment, Job
+from compliance.registers.visibility import sites_visible_to
 
 DEFAULT_WITHIN_DAYS = 30
 MAX_WITHIN_DAYS = 366
@@ -156,3 +156,8 @@ def live_feed(token: str) -> CalendarFeed | None:
         .select_related("user__organisation")
         .first()
     )
+
+
+def feed_of(user_id: int) -> CalendarFeed | None:
+    """The person's live calendar feed, if any (its address is never kept, only its digest)."""
+    return CalendarFeed.objects.filter(user_id=user_id, revoked_at__isnull=True).first()

@@ -9,12 +9,12 @@ import datetime as dt
 from django.db.models import Exists, OuterRef, Q, QuerySet
 from django.utils import timezone
 
-from compliance.models import Anchor, Organisation, Site, SiteAccess
+from compliance.models import Anchor, Organisation, Site, SiteGrant
 
 
-def live_grants(day: dt.date) -> QuerySet[SiteAccess]:
+def live_grants(day: dt.date) -> QuerySet[SiteGrant]:
     """Grants that cover the day and that their owner has not ended."""
-    return SiteAccess.objects.filter(starts_on__lte=day, ends_on__gte=day, end__isnull=True)
+    return SiteGrant.objects.filter(starts_on__lte=day, ends_on__gte=day, end__isnull=True)
 
 
 def _grant(organisation_id: int | None, day: dt.date) -> Exists:

@@ -1,39 +1,26 @@
-"""Every action that changes the state of a job or a register, with its audit entry."""
+"""Every change to a register (sites, anchors, certifications, equipment, access grants), each
+in one transaction with its audit entry; these services are the only writers of those rows."""
 
 import datetime as dt
-from typing import Any
+from typing import IO, Any
 
 from django.core.exceptions import ValidationError
 from django.db import IntegrityError, models, transaction
 
-from checklists.models import CheckSheet
-from checklists.verdicts import SheetOutcome
-from compliance.access import can_work_at, grantable_contractors, owns_site
-from compliance.errors import InvalidTransition, JobBlocked, NotPermitted, Reason
-from compliance.holds import (
-    clear_by_passing_sheet,
-    hold_for_failed_items,
-    locked,
-    refresh_readiness,
-    transition,
-)
+from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import (
     Anchor,
     AnchorCertification,
-    Drop,
-    DropLog,
     Equipment,
-    Job,
-    JobState,
-    JobTransition,
     Organisation,
     RegisterChange,
     Site,
-    SiteAccess,
-    SiteAccessEnd,
+    SiteGrant,
+    SiteGrantEnd,
     User,
 )
-from compliance.selectors import job_blockers, plan_conflicts
+from compliance.registers.documents import check_document
+from compliance.registers.visibility import grantable_contractors, owns_site
 
 
 def _require_writer(user: User) -> None:
@@ -41,150 +28,12 @@ def _require_writer(user: User) -> None:
         raise NotPermitted("Auditors have read-only access.")
 
 
-def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
-    _require_writer(by)
-    if not can_work_at(by.organisation_id, site, date):
-        raise ValidationError(
-            {"site": "Your organisation has no access to this site on that date."}
-        )
-    with transaction.atomic():
-        job = Job(
-            organisation_id=by.organisation_id,
-            site=site,
-            date=date,
-            supervisor=supervisor,
-            notes=notes,
-        )
-        job.full_clean()
-        job.save()
-        JobTransition.objects.create(
-            job=job,
-            from_state=JobState.PLANNED,
-            to_state=JobState.PLANNED,
-            by=by,
-            reason="Job planned.",
-        )
-    return job
-
-
-def add_drop(
-    *,
-    job: Job,
-    by: User,
-    label: str,
-    robot: Equipment,
-    anchor: Anchor,
-    safety_anchor: Anchor,
-    tether: Equipment,
-    safety_line: Equipment,
-    hose: Equipment,
-    length_m: float,
-) -> Drop:
-    _require_writer(by)
-    if job.state not in (JobState.PLANNED, JobState.CLEARED):
-        raise InvalidTransition("Drops can be planned only before work starts.")
-    chosen = {
-        "robot": robot,
-        "anchor": anchor,
-        "safety_anchor": safety_anchor,
-        "tether": tether,
-        "safety_line": safety_line,
-        "hose": hose,
-    }
-    with transaction.atomic():
-        # Two supervisors planning one robot or anchor for the same day: the second waits for
-        # the first's drop, then sees it as booked.
-        kit = [robot.pk, tether.pk, safety_line.pk, hose.pk]
-        list(Equipment.objects.select_for_update().filter(pk__in=kit).order_by("pk"))
-        pair = [anchor.pk, safety_anchor.pk]
-        list(Anchor.objects.select_for_update().filter(pk__in=pair).order_by("pk"))
-        refusals: dict[str, list[str]] = {}
-        for conflict in plan_conflicts(job=job, chosen=chosen):
-            if conflict.refuses:
-                refusals.setdefault(conflict.field, []).append(conflict.message)
-        if refusals:
-            raise ValidationError(refusals)
-        drop = Drop(
-            job=job,
-            label=label,
-            robot=robot,
-            anchor=anchor,
-            safety_anchor=safety_anchor,
-            tether=tether,
-            safety_line=safety_line,
-            hose=hose,
-            length_m=length_m,
-        )
-        drop.full_clean()
-        drop.save()
-        job = locked(job)
-        if job.state == JobState.CLEARED:
-            transition(job, JobState.PLANNED, by, f"Drop {label} added; its checks are needed.")
-    return drop
-
-
-def start_job(*, job: Job, by: User) -> Job:
-    """Move a job to working, or raise JobBlocked with every reason it cannot start."""
-    _require_writer(by)
-    with transaction.atomic():
-        job = locked(job)
-        if job.state == JobState.WORKING:
-            return job
-        if job.state == JobState.CLOSED:
-            raise InvalidTransition("This job is closed.")
-        reasons = job_blockers(job)
-        if reasons:
-            raise JobBlocked(reasons)
-        return transition(job, JobState.WORKING, by, "Pre-start checks passed; work started.")
-
-
-def pause_job(*, job: Job, by: User, reason: str = "") -> Job:
-    _require_writer(by)
-    with transaction.atomic():
-        job = locked(job)
-        if job.state != JobState.WORKING:
-            raise InvalidTransition(f"Only a working job can be paused; this one is {job.state}.")
-        return transition(job, JobState.CLEARED, by, reason or "Work paused.")
-
-
-def close_job(*, job: Job, by: User, reason: str = "") -> Job:
-    _require_writer(by)
-    with transaction.atomic():
-        job = locked(job)
-        if job.state == JobState.CLOSED:
-            raise InvalidTransition("This job is already closed.")
-        if job.state == JobState.HELD and not reason.strip():
-            raise InvalidTransition("Closing a held job needs a reason.")
-        return transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")
-
-
-def apply_sheet_outcome(
-    *,
-    sheet: CheckSheet,
-    outcome: SheetOutcome,
-    by: User,
-    drops: list[Drop] | None = None,
-    defer_readiness: bool = False,
-) -> Job:
-    """Open holds for failed blocking items, or clear this requirement's holds on a pass (the
-    rules are in compliance.holds).
-
-    Holds open at once. With ``defer_readiness`` the move back to cleared or planned waits for
-    the caller's ``refresh_readiness`` (a sync batch does it once per job, not once per sheet).
-    """
-    job = locked(sheet.job)
-    if outcome.blocking_failures:
-        return hold_for_failed_items(
-            job=job, sheet=sheet, failures=outcome.blocking_failures, by=by
-        )
-    clear_by_passing_sheet(job=job, sheet=sheet, by=by)
-    if defer_readiness:
-        return job
-    return refresh_readiness(job=job, by=by, drops=drops)
-
-
-def record_certification(*, anchor: Anchor, by: User, **fields: Any) -> AnchorCertification:
-    """Add a certification; only the building's own organisation certifies its anchors."""
+def record_certification(
+    *, anchor: Anchor, by: User, document: IO[bytes] | None = None, **fields: Any
+) -> AnchorCertification:
+    """Add a certification; only the building's own organisation certifies its anchors. The
+    certificate's file, if given, is checked (a PDF, PNG or JPEG by its bytes) and kept under
+    its SHA-256; a row refused after the file was stored takes the file with it."""
     _require_writer(by)
     if not by.can_keep_anchor_log:
         raise NotPermitted(
@@ -195,19 +44,29 @@ def record_certification(*, anchor: Anchor, by: User, **fields: Any) -> AnchorCe
             "Only the building's owner certifies its anchors; "
             "record your own pre-use checks on a sheet."
         )
+    checked = check_document(document) if document is not None else None
     with transaction.atomic():
         cert = AnchorCertification(anchor=anchor, recorded_by=by, **fields)
         cert.full_clean()
-        cert.save()
+        if checked is None:
+            cert.save()
+            return cert
+        cert.document.save(checked.name, checked.content, save=False)
+        cert.document_sha256 = checked.sha256
+        try:
+            cert.save()
+        except Exception:
+            cert.document.storage.delete(cert.document.name)
+            raise
     return cert
 
 
 UNKNOWN_CONTRACTOR = "Unknown contractor organisation."
 
 
-def grant_site_access(
+def give_grant(
     *, site: Site, contractor: Organisation, starts_on: dt.date, ends_on: dt.date, by: User
-) -> SiteAccess:
+) -> SiteGrant:
     """Let a contractor organisation work at the owner's site for a period.
 
     The grant row is its own audit entry (who granted it and when) and is never edited. Any
@@ -222,7 +81,7 @@ def grant_site_access(
     if not grantable_contractors(site).filter(pk=contractor.pk).exists():
         raise ValidationError({"contractor": UNKNOWN_CONTRACTOR})
     with transaction.atomic():
-        grant = SiteAccess(
+        grant = SiteGrant(
             site=site, contractor=contractor, starts_on=starts_on, ends_on=ends_on, granted_by=by
         )
         grant.full_clean()
@@ -230,10 +89,10 @@ def grant_site_access(
     return grant
 
 
-def end_grant(*, grant: SiteAccess, by: User, reason: str = "") -> SiteAccessEnd:
+def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> SiteGrantEnd:
     """End a grant now: the contractor loses the site, its anchors and its log book at once.
 
-    Its jobs there no longer start (``no_site_access``); the grant keeps its dates, and the
+    Its jobs there no longer start (``no_grant_for_day``); the grant keeps its dates, and the
     end row records who ended it, when and why.
     """
     _require_writer(by)
@@ -242,10 +101,10 @@ def end_grant(*, grant: SiteAccess, by: User, reason: str = "") -> SiteAccessEnd
     if not by.can_keep_anchor_log:
         raise NotPermitted("Only a property manager, supervisor or admin ends access.")
     with transaction.atomic():
-        grant = SiteAccess.objects.select_for_update().get(pk=grant.pk)
-        if SiteAccessEnd.objects.filter(grant=grant).exists():
+        grant = SiteGrant.objects.select_for_update().get(pk=grant.pk)
+        if SiteGrantEnd.objects.filter(grant=grant).exists():
             raise InvalidTransition("This grant has already been ended.")
-        end = SiteAccessEnd(grant=grant, ended_by=by, reason=reason)
+        end = SiteGrantEnd(grant=grant, ended_by=by, reason=reason)
         end.full_clean()
         end.save()
     return end
@@ -417,46 +276,3 @@ def update_equipment(*, item: Equipment, by: User, reason: str = "", **fields: A
             changes["reason"] = reason.strip()
         audit_register_change(subject="equipment", row=item, action=action, by=by, changes=changes)
     return item
-
-
-DROP_NOTE_MAX = 500
-
-
-def log_drop(
-    *, drop: Drop, by: User, note: str = "", device_time: Any = None, client_uuid: Any = None
-) -> DropLog:
-    """A drop done while its job is working (the log row is its own audit entry)."""
-    _require_writer(by)
-    if len(note) > DROP_NOTE_MAX:
-        raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
-    with transaction.atomic():
-        job = locked(drop.job)
-        if job.state != JobState.WORKING:
-            raise InvalidTransition(
-                f"Drops are logged while the job is working; it is {job.state}."
-            )
-        extra = {"client_uuid": client_uuid} if client_uuid is not None else {}
-        return DropLog.objects.create(drop=drop, by=by, device_time=device_time, note=note, **extra)
-
-
-__all__ = [
-    "Reason",
-    "add_anchor",
-    "add_drop",
-    "apply_sheet_outcome",
-    "audit_register_change",
-    "close_job",
-    "create_equipment",
-    "create_job",
-    "create_site",
-    "end_grant",
-    "grant_site_access",
-    "log_drop",
-    "pause_job",
-    "record_certification",
-    "refresh_readiness",
-    "require_register_keeper",
-    "save_new_register_row",
-    "start_job",
-    "update_equipment",
-]

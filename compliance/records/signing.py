@@ -25,7 +25,7 @@ from pyhanko_certvalidator.registry import SimpleCertificateStore
 
 from compliance.errors import NoSigningCredential
 from compliance.models import Organisation, RecordChainHead, SigningCredential
-from compliance.sealing import canonical_bytes, head_statement
+from compliance.records.sealing import canonical_bytes, head_statement
 
 
 def _passphrase() -> bytes:

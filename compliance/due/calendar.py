@@ -13,7 +13,7 @@ from django.db import transaction
 from django.utils import timezone
 from icalendar import Calendar, Event
 
-from compliance.due import CAUTION, DueItem, DueKind, token_hash
+from compliance.due.selectors import CAUTION, DueItem, DueKind, token_hash
 from compliance.models import CalendarFeed, User
 
 TOKEN_BYTES = 32

@@ -18,11 +18,11 @@ from django.utils.dateparse import parse_datetime
 from checklists.models import ChecklistVersion
 from checklists.selectors import usable_versions
 from checklists.services import record_sheet
-from compliance import services
-from compliance.access import anchors_visible_to
 from compliance.errors import DomainError, rejection_for
+from compliance.jobs import services
+from compliance.jobs.selectors import drops_of
 from compliance.models import Anchor, Drop, Equipment, Job, SyncReceipt, User
-from compliance.selectors import drops_of
+from compliance.registers.visibility import anchors_visible_to
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
 MAX_BATCH = 200

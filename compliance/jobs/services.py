@@ -1,0 +1,212 @@
+"""Every action that changes the state of a job (plan, drops, start, pause, close, sheet outcomes,
+drop logs), each in one transaction with its transition."""
+
+import datetime as dt
+from typing import Any
+
+from django.core.exceptions import ValidationError
+from django.db import transaction
+
+from checklists.models import CheckSheet
+from checklists.verdicts import SheetOutcome
+from compliance.errors import InvalidTransition, JobBlocked, NotPermitted, Reason
+from compliance.jobs.holds import (
+    clear_by_passing_sheet,
+    hold_for_failed_items,
+    locked,
+    refresh_readiness,
+    transition,
+)
+from compliance.jobs.selectors import job_blockers, plan_conflicts
+from compliance.models import (
+    Anchor,
+    Drop,
+    DropLog,
+    Equipment,
+    Job,
+    JobState,
+    JobTransition,
+    Site,
+    User,
+)
+from compliance.registers.visibility import can_work_at
+
+
+def _require_writer(user: User) -> None:
+    if not user.can_write:
+        raise NotPermitted("Auditors have read-only access.")
+
+
+def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
+    _require_writer(by)
+    if not can_work_at(by.organisation_id, site, date):
+        raise ValidationError(
+            {"site": "Your organisation has no access to this site on that date."}
+        )
+    with transaction.atomic():
+        job = Job(
+            organisation_id=by.organisation_id,
+            site=site,
+            date=date,
+            supervisor=supervisor,
+            notes=notes,
+        )
+        job.full_clean()
+        job.save()
+        JobTransition.objects.create(
+            job=job,
+            from_state=JobState.PLANNED,
+            to_state=JobState.PLANNED,
+            by=by,
+            reason="Job planned.",
+        )
+    return job
+
+
+def add_drop(
+    *,
+    job: Job,
+    by: User,
+    label: str,
+    robot: Equipment,
+    anchor: Anchor,
+    safety_anchor: Anchor,
+    tether: Equipment,
+    safety_line: Equipment,
+    hose: Equipment,
+    length_m: float,
+) -> Drop:
+    _require_writer(by)
+    if job.state not in (JobState.PLANNED, JobState.CLEARED):
+        raise InvalidTransition("Drops can be planned only before work starts.")
+    chosen = {
+        "robot": robot,
+        "anchor": anchor,
+        "safety_anchor": safety_anchor,
+        "tether": tether,
+        "safety_line": safety_line,
+        "hose": hose,
+    }
+    with transaction.atomic():
+        # Two supervisors planning one robot or anchor for the same day: the second waits for
+        # the first's drop, then sees it as booked.
+        kit = [robot.pk, tether.pk, safety_line.pk, hose.pk]
+        list(Equipment.objects.select_for_update().filter(pk__in=kit).order_by("pk"))
+        pair = [anchor.pk, safety_anchor.pk]
+        list(Anchor.objects.select_for_update().filter(pk__in=pair).order_by("pk"))
+        refusals: dict[str, list[str]] = {}
+        for conflict in plan_conflicts(job=job, chosen=chosen):
+            if conflict.refuses:
+                refusals.setdefault(conflict.field, []).append(conflict.message)
+        if refusals:
+            raise ValidationError(refusals)
+        drop = Drop(
+            job=job,
+            label=label,
+            robot=robot,
+            anchor=anchor,
+            safety_anchor=safety_anchor,
+            tether=tether,
+            safety_line=safety_line,
+            hose=hose,
+            length_m=length_m,
+        )
+        drop.full_clean()
+        drop.save()
+        job = locked(job)
+        if job.state == JobState.CLEARED:
+            transition(job, JobState.PLANNED, by, f"Drop {label} added; its checks are needed.")
+    return drop
+
+
+def start_job(*, job: Job, by: User) -> Job:
+    """Move a job to working, or raise JobBlocked with every reason it cannot start."""
+    _require_writer(by)
+    with transaction.atomic():
+        job = locked(job)
+        if job.state == JobState.WORKING:
+            return job
+        if job.state == JobState.CLOSED:
+            raise InvalidTransition("This job is closed.")
+        reasons = job_blockers(job)
+        if reasons:
+            raise JobBlocked(reasons)
+        return transition(job, JobState.WORKING, by, "Pre-start checks passed; work started.")
+
+
+def pause_job(*, job: Job, by: User, reason: str = "") -> Job:
+    _require_writer(by)
+    with transaction.atomic():
+        job = locked(job)
+        if job.state != JobState.WORKING:
+            raise InvalidTransition(f"Only a working job can be paused; this one is {job.state}.")
+        return transition(job, JobState.CLEARED, by, reason or "Work paused.")
+
+
+def close_job(*, job: Job, by: User, reason: str = "") -> Job:
+    _require_writer(by)
+    with transaction.atomic():
+        job = locked(job)
+        if job.state == JobState.CLOSED:
+            raise InvalidTransition("This job is already closed.")
+        if job.state == JobState.HELD and not reason.strip():
+            raise InvalidTransition("Closing a held job needs a reason.")
+        return transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")
+
+
+def apply_sheet_outcome(
+    *,
+    sheet: CheckSheet,
+    outcome: SheetOutcome,
+    by: User,
+    drops: list[Drop] | None = None,
+    defer_readiness: bool = False,
+) -> Job:
+    """Open holds for failed blocking items, or clear this requirement's holds on a pass (the
+    rules are in compliance.jobs.holds).
+
+    Holds open at once. With ``defer_readiness`` the move back to cleared or planned waits for
+    the caller's ``refresh_readiness`` (a sync batch does it once per job, not once per sheet).
+    """
+    job = locked(sheet.job)
+    if outcome.blocking_failures:
+        return hold_for_failed_items(
+            job=job, sheet=sheet, failures=outcome.blocking_failures, by=by
+        )
+    clear_by_passing_sheet(job=job, sheet=sheet, by=by)
+    if defer_readiness:
+        return job
+    return refresh_readiness(job=job, by=by, drops=drops)
+
+
+DROP_NOTE_MAX = 500
+
+
+def log_drop(
+    *, drop: Drop, by: User, note: str = "", device_time: Any = None, client_uuid: Any = None
+) -> DropLog:
+    """A drop done while its job is working (the log row is its own audit entry)."""
+    _require_writer(by)
+    if len(note) > DROP_NOTE_MAX:
+        raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
+    with transaction.atomic():
+        job = locked(drop.job)
+        if job.state != JobState.WORKING:
+            raise InvalidTransition(
+                f"Drops are logged while the job is working; it is {job.state}."
+            )
+        extra = {"client_uuid": client_uuid} if client_uuid is not None else {}
+        return DropLog.objects.create(drop=drop, by=by, device_time=device_time, note=note, **extra)
+
+
+__all__ = [
+    "Reason",
+    "add_drop",
+    "apply_sheet_outcome",
+    "close_job",
+    "create_job",
+    "log_drop",
+    "pause_job",
+    "refresh_readiness",
+    "start_job",
+]
