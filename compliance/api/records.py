@@ -78,6 +78,37 @@ class RecordSerializer(serializers.ModelSerializer):
         return hasattr(record, "pdf")
 
 
+class SignerSerializer(serializers.Serializer):
+    subject = serializers.CharField()
+    fingerprint_sha256 = serializers.CharField()
+    organisation = serializers.CharField()
+
+
+class CheckSerializer(serializers.Serializer):
+    name = serializers.CharField()
+    ok = serializers.BooleanField()
+    detail = serializers.CharField()
+
+
+class VerifyReportSerializer(serializers.Serializer):
+    """The verifier's answer: VERIFIED only when intact and vouched for by a trust anchor."""
+
+    ok = serializers.BooleanField()
+    intact = serializers.BooleanField()
+    vouched = serializers.BooleanField()
+    verdict = serializers.CharField()
+    seal = serializers.CharField(allow_null=True)
+    signer = SignerSerializer(allow_null=True)
+    trust = serializers.CharField()
+    checks = CheckSerializer(many=True)
+
+
+PDF_RENDERING = inline_serializer(
+    "PdfRendering", {"status": serializers.CharField(), "detail": serializers.CharField()}
+)
+"""The answer while a record's PDF is being rendered (202, with Retry-After)."""
+
+
 class RecordViewSet(viewsets.ReadOnlyModelViewSet):
     serializer_class = RecordSerializer
     permission_classes = [OrganisationMember]
@@ -105,10 +136,7 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
     @extend_schema(
         responses={
             (200, "application/pdf"): bytes,
-            202: inline_serializer(
-                "PdfRendering",
-                {"status": serializers.CharField(), "detail": serializers.CharField()},
-            ),
+            202: PDF_RENDERING,
         }
     )
     @action(detail=True, methods=["get"])
@@ -118,22 +146,41 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
         record = self.get_object()
         stored = RecordPdf.objects.filter(record=record).first()
         if stored is None:
-            queue_render(record.pk)
-            response = Response(
-                {
-                    "status": "rendering",
-                    "detail": "The record is sealed; its PDF is being rendered. Ask again "
-                    f"in {PDF_RETRY_AFTER_S} seconds.",
-                },
-                status=status.HTTP_202_ACCEPTED,
-            )
-            response["Retry-After"] = str(PDF_RETRY_AFTER_S)
-            return response
+            return self._rendering(record)
         response = FileResponse(stored.file.open("rb"), content_type="application/pdf")
         response["Content-Disposition"] = (
             f'attachment; filename="daily-record-{record.site_id}-{record.sequence}.pdf"'
         )
         return response
+
+    def _rendering(self, record: DailyRecord) -> Response:
+        """No PDF yet: queue its render and say when to ask again."""
+        queue_render(record.pk)
+        response = Response(
+            {
+                "status": "rendering",
+                "detail": "The record is sealed; its PDF is being rendered. Ask again "
+                f"in {PDF_RETRY_AFTER_S} seconds.",
+            },
+            status=status.HTTP_202_ACCEPTED,
+        )
+        response["Retry-After"] = str(PDF_RETRY_AFTER_S)
+        return response
+
+    @extend_schema(responses={200: VerifyReportSerializer, 202: PDF_RENDERING})
+    @action(detail=True, methods=["get"])
+    def verify(self, request: Request, pk: str | None = None) -> Response:
+        """The server's check of the stored record's signed PDF, as an auditor's upload of it
+        would be checked (with the database and the organisation's registered certificates);
+        202 while the PDF is being rendered."""
+        record = self.get_object()
+        stored = RecordPdf.objects.filter(record=record).first()
+        if stored is None:
+            return self._rendering(record)
+        with stored.file.open("rb") as handle:
+            content = handle.read()
+        name = f"daily record {record.site_id}-{record.sequence}"
+        return Response(VerifyReportSerializer(verify_pdf(content, name=name).as_dict()).data)
 
     @extend_schema(request=AddendumInput, responses={201: RecordSerializer})
     @action(detail=True, methods=["post"], throttle_classes=[PasswordReentryThrottle])
@@ -239,15 +286,7 @@ class VerifyInput(serializers.Serializer):
 
 @extend_schema(
     request={"multipart/form-data": VerifyInput},
-    responses=inline_serializer(
-        "VerifyReport",
-        {
-            "ok": serializers.BooleanField(),
-            "intact": serializers.BooleanField(),
-            "vouched": serializers.BooleanField(),
-            "verdict": serializers.CharField(),
-        },
-    ),
+    responses=VerifyReportSerializer,
 )
 @api_view(["POST"])
 @permission_classes([VerifyAllowed])
@@ -265,4 +304,4 @@ def verify(request: Request) -> Response:
         if content[:2] == b"PK"
         else verify_pdf(content, name=upload.name)
     )
-    return Response(report.as_dict())
+    return Response(VerifyReportSerializer(report.as_dict()).data)

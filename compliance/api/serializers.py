@@ -447,6 +447,7 @@ SHEET_FIELDS = [
     "id",
     "client_uuid",
     "job",
+    "date",
     "checklist",
     "version",
     "version_number",
@@ -486,6 +487,8 @@ class SheetHeadSerializer(serializers.ModelSerializer):
     checklist = serializers.CharField(source="version.checklist.key")
     version_number = serializers.IntegerField(source="version.number")
     filled_by = serializers.CharField(source="filled_by.display_name")
+    # The job's day, so a day without a signed record is placed on its own date.
+    date = serializers.DateField(source="job.date", read_only=True)
 
     class Meta:
         model = CheckSheet
@@ -529,12 +532,17 @@ class ChecklistVersionSerializer(StrictInput, serializers.ModelSerializer):
     checklist = serializers.CharField(source="checklist.key", read_only=True)
     applies_to = serializers.CharField(source="checklist.applies_to", read_only=True)
     title = serializers.CharField(source="checklist.title", read_only=True)
+    # Which checklist, by id: an organisation's own and a default may share a key.
+    checklist_id = serializers.IntegerField(read_only=True)
+    default = serializers.SerializerMethodField()
 
     class Meta:
         model = ChecklistVersion
         fields = [
             "id",
             "checklist",
+            "checklist_id",
+            "default",
             "title",
             "applies_to",
             "number",
@@ -546,6 +554,10 @@ class ChecklistVersionSerializer(StrictInput, serializers.ModelSerializer):
             "published_at",
         ]
         read_only_fields = ["number", "status", "content_hash", "created_at", "published_at"]
+
+    def get_default(self, version: ChecklistVersion) -> bool:
+        """A default checklist (Parapet's, changed only with a release), not the organisation's."""
+        return version.checklist.organisation_id is None
 
 
 class ChecklistSerializer(StrictInput, serializers.ModelSerializer):

@@ -67,6 +67,8 @@ class Report:
     trust_source: str = ""
     document: dict[str, Any] | None = field(default=None, repr=False, compare=False)
     """The sealed document attached to the PDF, once its seal checked out."""
+    claim: str = "is exactly the record that was signed, and its place in the chain is intact"
+    """What VERIFIED says of the subject (an export says it of every record it holds)."""
 
     @property
     def intact(self) -> bool:
@@ -90,8 +92,7 @@ class Report:
         signed_by = f" Signed by {self.signer.words()}." if self.signer else ""
         if self.ok:
             return (
-                f"VERIFIED: {self.subject} is exactly the record that was signed, and its place "
-                f"in the chain is intact.{signed_by} The signer is vouched for by"
+                f"VERIFIED: {self.subject} {self.claim}.{signed_by} The signer is vouched for by"
                 f" {self.trust_source}."
             )
         if self.intact:
@@ -435,7 +436,13 @@ def verify_export(
     and site and signed with that organisation's certificate. VERIFIED needs a trust anchor:
     `trust`, or with the database the certificates each organisation registered; without one
     the answer is integrity only."""
-    report = Report(subject="this export")
+    report = Report(
+        subject="this export",
+        claim=(
+            "holds exactly the records that were signed, each PDF the one its signed manifest"
+            " names, and their chain is intact"
+        ),
+    )
     try:
         archive = zipfile.ZipFile(io.BytesIO(data))
         if sum(i.file_size for i in archive.infolist()) > MAX_EXPORT_BYTES:

@@ -662,6 +662,22 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/api/v1/records/{id}/verify/": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get: operations["v1_records_verify_retrieve"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/api/v1/records/export/": {
         parameters: {
             query?: never;
@@ -882,6 +898,11 @@ export interface components {
             /** Format: binary */
             document?: string;
         };
+        Check: {
+            name: string;
+            ok: boolean;
+            detail: string;
+        };
         Checklist: {
             readonly id: number;
             key: string;
@@ -902,6 +923,8 @@ export interface components {
         ChecklistVersion: {
             readonly id: number;
             readonly checklist: string;
+            readonly checklist_id: number;
+            readonly default: boolean;
             readonly title: string;
             readonly applies_to: string;
             readonly number: number;
@@ -1435,6 +1458,8 @@ export interface components {
             /** Format: uuid */
             client_uuid?: string;
             job: number;
+            /** Format: date */
+            readonly date: string;
             checklist: string;
             version: number;
             version_number: number;
@@ -1471,6 +1496,11 @@ export interface components {
             password: string;
             meaning: components["schemas"]["MeaningEnum"];
             remarks?: string;
+        };
+        Signer: {
+            subject: string;
+            fingerprint_sha256: string;
+            organisation: string;
         };
         Site: {
             readonly id: number;
@@ -1565,6 +1595,10 @@ export interface components {
             intact: boolean;
             vouched: boolean;
             verdict: string;
+            seal: string | null;
+            signer: components["schemas"]["Signer"] | null;
+            trust: string;
+            checks: components["schemas"]["Check"][];
         };
         VersionDiff: {
             to: components["schemas"]["VersionRef"];
@@ -2800,6 +2834,35 @@ export interface operations {
                 };
                 content: {
                     "application/pdf": string;
+                };
+            };
+            202: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["PdfRendering"];
+                };
+            };
+        };
+    };
+    v1_records_verify_retrieve: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                id: number;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["VerifyReport"];
                 };
             };
             202: {

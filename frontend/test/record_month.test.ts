@@ -21,9 +21,9 @@ function record(id: number, job: number, date: string, kind: "record" | "addendu
   };
 }
 
-function sheet(id: number, job: number, verdict: Sheet["verdict"], deviceTime: string | null, receivedAt = "2026-12-20T09:00:00"): Sheet {
+function sheet(id: number, job: number, verdict: Sheet["verdict"], deviceTime: string | null, date = "2026-12-02", receivedAt = "2026-12-20T09:00:00"): Sheet {
   return {
-    id, job, checklist: "anchor-pre-use", version: 1, version_number: 1, version_hash: "", subject_kind: "anchor",
+    id, job, date, checklist: "anchor-pre-use", version: 1, version_number: 1, version_hash: "", subject_kind: "anchor",
     filled_by: "Tomas Lind", device_time: deviceTime, received_at: receivedAt, verdict, entries: [],
   };
 }
@@ -67,11 +67,11 @@ describe("monthsOf", () => {
 });
 
 describe("monthDays", () => {
-  it("places records, addenda and their sheets on the job's date, every day of the month listed", () => {
+  it("places records, addenda and sheets on the job's date, every day of the month listed", () => {
     const days = monthDays(
       "2026-12",
       [record(1, 10, "2026-12-02"), record(2, 10, "2026-12-02", "addendum", 1)],
-      // Filled the day before the job's date by the phone's clock: the record's date wins.
+      // Filled the day before the job's date by the phone's clock: the job's date wins.
       [sheet(100, 10, "pass", "2026-12-01T23:30:00"), sheet(101, 10, "fail", null)],
     );
     expect(days).toHaveLength(31);
@@ -80,29 +80,27 @@ describe("monthDays", () => {
     expect(second.records.map((r) => r.id)).toEqual([1]);
     expect(second.addenda.map((r) => r.id)).toEqual([2]);
     expect(second.sheets.map((s) => s.id)).toEqual([100, 101]);
-    expect(second.datedBySheets).toBe(false);
     expect(days[0]!.sheets).toEqual([]);
   });
 
-  it("dates an unsigned job by its earliest sheet, kept inside the month", () => {
+  it("places an unsigned job's sheets on its date, and none outside the month", () => {
     const days = monthDays("2026-12", [], [
-      sheet(1, 20, "pass", "2026-12-05T08:00:00"),
-      sheet(2, 20, "pass", "2026-12-04T18:00:00"),
-      sheet(3, 21, "pass", null, "2027-01-01T00:30:00"),
+      sheet(1, 20, "pass", "2026-12-05T08:00:00", "2026-12-04"),
+      sheet(2, 20, "pass", "2026-12-04T18:00:00", "2026-12-04"),
+      sheet(3, 21, "pass", null, "2027-01-01"),
     ]);
     expect(days[3]!.sheets.map((s) => s.id)).toEqual([1, 2]);
-    expect(days[3]!.datedBySheets).toBe(true);
-    expect(days[30]!.sheets.map((s) => s.id)).toEqual([3]);
+    expect(days.flatMap((d) => d.sheets).map((s) => s.id)).toEqual([1, 2]);
   });
 });
 
 describe("words", () => {
   it("says each day's state", () => {
     const [signed, unsigned, open, none] = [
-      { date: "2026-12-02", records: [record(1, 1, "2026-12-02")], addenda: [], sheets: [], datedBySheets: false },
-      { date: "2026-12-03", records: [], addenda: [], sheets: [sheet(1, 2, "pass", null)], datedBySheets: true },
-      { date: "2026-12-04", records: [], addenda: [], sheets: [sheet(2, 3, "pass", null)], datedBySheets: true },
-      { date: "2026-12-05", records: [], addenda: [], sheets: [], datedBySheets: false },
+      { date: "2026-12-02", records: [record(1, 1, "2026-12-02")], addenda: [], sheets: [] },
+      { date: "2026-12-03", records: [], addenda: [], sheets: [sheet(1, 2, "pass", null)] },
+      { date: "2026-12-04", records: [], addenda: [], sheets: [sheet(2, 3, "pass", null)] },
+      { date: "2026-12-05", records: [], addenda: [], sheets: [] },
     ];
     expect(dayState(signed, "2026-12-04")).toEqual({ key: "signed", sign: "safe", word: "Signed" });
     expect(dayState(unsigned, "2026-12-04").key).toBe("unsigned");

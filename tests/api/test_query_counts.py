@@ -102,6 +102,7 @@ EXPECTED: dict[str, int] = {
     "record-list": 2,
     "record-detail": 1,
     "record-pdf": 2,
+    "record-verify": 2,  # the record, its PDF: the stand-in PDF stops the verifier at once
     "record-export": 9,  # organisations, ranges, heads, records, certificates, and the rest
     # One batch of passing site sheets for one job. The first record looks up the checklist
     # version, which the batch then remembers; each record after it costs SYNC_PER_RECORD more.
@@ -391,6 +392,7 @@ READS: dict[str, Callable[[World], str]] = {
     "record-list": lambda w: reverse("record-list"),
     "record-detail": lambda w: reverse("record-detail", args=[w.record.pk]),
     "record-pdf": lambda w: reverse("record-pdf", args=[w.record.pk]),
+    "record-verify": lambda w: reverse("record-verify", args=[w.record.pk]),
     "record-export": export_url,
 }
 
@@ -409,6 +411,7 @@ ONE_ROW = {
     "anchor-log-detail",
     "equipment-detail",
     "record-detail",
+    "record-verify",
 }
 """Reads whose JSON lists no grown rows: a fixed answer, or one row out of a grown table."""
 

@@ -111,6 +111,7 @@ JOB_READS = [
     Read("sheet-detail", _route("sheet-detail", lambda side: side.sheet())),
     Read("record-detail", _route("record-detail", lambda side: side.record())),
     Read("record-pdf", _route("record-pdf", lambda side: side.record()), ok=_pdf_answer),
+    Read("record-verify", _route("record-verify", lambda side: side.record()), ok=_pdf_answer),
     Read("equipment-detail", _route("equipment-detail", lambda side: side.equipment())),
     Read("checklist-detail", _route("checklist-detail", lambda side: side.checklist())),
     Read(

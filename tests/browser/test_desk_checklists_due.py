@@ -277,8 +277,18 @@ def test_due_list_and_the_calendar_feed_made_used_and_stopped(live_server, demo,
     # The calendar feed: the warning first, then the address, shown once, with a copy button.
     feed = page.locator("[data-testid=calendar-feed]")
     assert "Anyone who has the address sees your organisation's due dates" in feed.inner_text()
+    # The page asks whether an address exists (the server never gives it again).
+    page.wait_for_selector("[data-testid=feed-state]")
+    assert page.inner_text("[data-testid=feed-state]") == "You have no calendar address."
+    assert page.locator("[data-testid=feed-revoke]").count() == 0
     page.click("[data-testid=feed-create]")
     page.wait_for_selector("[data-testid=feed-url]")
+    page.wait_for_function(
+        "() => document.querySelector('[data-testid=feed-state]').textContent.includes('made on')"
+    )
+    assert page.inner_text("[data-testid=feed-state]") == (
+        f"You have a calendar address, made on {dt.date.today().isoformat()}."
+    )
     url = page.input_value("[data-testid=feed-url]")
     assert re.fullmatch(re.escape(base) + r"/calendar/[A-Za-z0-9_-]{43}\.ics", url), url
     rhea = User.objects.get(username="rhea")
@@ -304,6 +314,8 @@ def test_due_list_and_the_calendar_feed_made_used_and_stopped(live_server, demo,
         "Your calendar address is stopped: a calendar that uses it gets no more dates."
     )
     assert page.locator("[data-testid=feed-url]").count() == 0
+    assert page.inner_text("[data-testid=feed-state]") == "You have no calendar address."
+    assert page.locator("[data-testid=feed-revoke]").count() == 0
     assert live.count() == 0
     assert CalendarFeed.objects.filter(user=rhea, revoked_at__isnull=False).count() == 1
     assert page.request.get(url).status == 404

@@ -5,6 +5,7 @@ import logging
 from unittest import mock
 
 import pytest
+from django.core.files.uploadedfile import SimpleUploadedFile
 from django.urls import reverse
 
 from compliance.models import DailyRecord, RecordPdf
@@ -137,3 +138,34 @@ def test_records_left_without_a_pdf_are_queued_again(signed, settings, tmp_path)
         with mock.patch("django.utils.timezone.now", return_value=later):
             assert render_missing_pdfs(older_than_minutes=10) == 1
     delay.assert_called_once_with(signed.pk)
+
+
+def test_the_stored_record_is_checked_on_the_server_as_an_upload_of_it_would_be(
+    signed, supervisor, settings, tmp_path, django_assert_num_queries
+):
+    """GET verify checks the stored PDF with the database: the same answer as uploading that
+    PDF to POST /verify/, VERIFIED by the organisation's own registered certificate; 202 while
+    the PDF is not rendered yet."""
+    from compliance.records.files import ensure_pdf
+
+    settings.MEDIA_ROOT = tmp_path
+    client = client_for(supervisor)
+    url = reverse("record-verify", args=[signed.pk])
+    with mock.patch.object(render_daily_record, "delay"):
+        assert client.get(url).status_code == 202
+    ensure_pdf(signed)
+    # The record, its PDF, then the verifier's checks against the stored rows, the chain and
+    # the organisation's certificates (pinned: a change that adds one fails here).
+    with django_assert_num_queries(26):
+        answer = client.get(url)
+    assert answer.status_code == 200
+    report = answer.json()
+    assert report["ok"] is True and report["verdict"].startswith("VERIFIED: daily record ")
+    assert report["signer"]["organisation"] == signed.organisation.name
+    stored = RecordPdf.objects.get(record=signed).file.open("rb").read()
+    uploaded = client.post(
+        reverse("verify"), {"file": SimpleUploadedFile("r.pdf", stored)}, format="multipart"
+    ).json()
+    assert {k: v for k, v in uploaded.items() if k != "verdict"} == {
+        k: v for k, v in report.items() if k != "verdict"
+    }

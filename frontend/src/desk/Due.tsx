@@ -58,6 +58,11 @@ function NextStep({ item, contractor }: { item: DueItem; contractor: boolean }) 
 
 function CalendarFeed() {
   const [url, setUrl] = useState("");
+  // Whether a live address exists and since when (the server never gives the address again).
+  const [live, setLive] = useState<{ live: boolean; created_at: string | null } | null>(null);
+  useEffect(() => {
+    desk.calendarState().then(setLive, () => setLive(null));
+  }, []);
   const [copied, setCopied] = useState("");
   const [message, setMessage] = useState("");
   const [error, setError] = useState("");
@@ -80,12 +85,14 @@ function CalendarFeed() {
   const create = () =>
     act(async () => {
       setUrl((await desk.createCalendar()).url);
+      setLive(await desk.calendarState());
       setMessage("A new calendar address is made; any address you had before no longer works.");
     });
   const revoke = () =>
     act(async () => {
       await desk.revokeCalendar();
       setUrl("");
+      setLive({ live: false, created_at: null });
       setMessage("Your calendar address is stopped: a calendar that uses it gets no more dates.");
     });
 
@@ -113,6 +120,13 @@ function CalendarFeed() {
           stops the one before; stop it here if it reaches anyone else.
         </span>
       </p>
+      {live && (
+        <p data-testid="feed-state">
+          {live.live && live.created_at
+            ? `You have a calendar address, made on ${live.created_at.slice(0, 10)}.`
+            : "You have no calendar address."}
+        </p>
+      )}
       {message && <p class="note" role="status" data-testid="feed-message">{message}</p>}
       {error && <p class="error" role="alert" data-testid="feed-error">{error}</p>}
       {url && (
@@ -129,11 +143,13 @@ function CalendarFeed() {
       )}
       <div class="desk-actions">
         <button class={url ? "btn" : "btn btn-primary"} type="button" disabled={busy} onClick={() => void create()} data-testid="feed-create">
-          {url ? "Create a new address" : "Create my calendar address"}
+          {url || live?.live ? "Create a new address" : "Create my calendar address"}
         </button>
-        <button class="btn" type="button" disabled={busy} onClick={() => void revoke()} data-testid="feed-revoke">
-          Stop my calendar address
-        </button>
+        {live?.live !== false && (
+          <button class="btn" type="button" disabled={busy} onClick={() => void revoke()} data-testid="feed-revoke">
+            Stop my calendar address
+          </button>
+        )}
       </div>
     </section>
   );

@@ -169,7 +169,7 @@ function AddendumCard({ addendum: a }: { addendum: DailyRecord }) {
       <div class="desk-actions">
         <PdfLink record={a} label="Download the addendum's signed PDF" />
       </div>
-      <VerifyPanel file={() => records.pdf(a.id)} label="Check this addendum's signature on the server" testid="addendum-verify" />
+      <VerifyPanel check={() => records.verifyRecord(a.id)} label="Check this addendum's signature on the server" testid="addendum-verify" />
     </section>
   );
 }
@@ -185,7 +185,7 @@ function RecordCard({ record, addenda }: { record: DailyRecord; addenda: DailyRe
       <div class="desk-actions">
         <PdfLink record={record} label="Download the signed PDF" />
       </div>
-      <VerifyPanel file={() => records.pdf(record.id)} label="Check this record's signature on the server" testid="record-verify" />
+      <VerifyPanel check={() => records.verifyRecord(record.id)} label="Check this record's signature on the server" testid="record-verify" />
       {addenda.map((a) => (
         <AddendumCard key={a.id} addendum={a} />
       ))}
@@ -222,7 +222,7 @@ export function RecordDay({ siteId, day, user }: { siteId: number; day: string; 
   const signed = data.records.filter((r) => r.kind === "record");
   const addenda = data.records.filter((r) => r.kind === "addendum");
   // The server filtered on the jobs' date, so every sheet here is of this day.
-  const state = dayState({ date: day, records: signed, addenda, sheets: data.sheets, datedBySheets: false }, today);
+  const state = dayState({ date: day, records: signed, addenda, sheets: data.sheets }, today);
   // An addendum whose record is not among the day's (not expected): shown on its own.
   const loose = addenda.filter((a) => !signed.some((r) => r.id === a.amends));
 

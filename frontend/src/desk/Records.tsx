@@ -179,11 +179,6 @@ function RecordMonth({ siteId, month, user }: { siteId: number; month: string; u
           })}
         </tbody>
       </table>
-      {days.some((d) => d.datedBySheets) && (
-        <p class="muted small" data-testid="month-dated-by-sheets">
-          A day without a signed record is placed by when its sheets were filled.
-        </p>
-      )}
       <ExportPanel siteId={site.id} start={start} end={end} />
       <DeskCaution />
     </>

@@ -30,18 +30,11 @@ type GrantInput = Schemas["GrantRequest"];
 export type Checklist = Omit<Schemas["Checklist"], "versions"> & {
   versions: { id: number; number: number; status: ChecklistVersion["status"]; content_hash: string }[];
 };
-interface VersionRef {
-  id: number;
-  number: number;
-  content_hash: string;
-}
-/** What changed between two versions (checklists.services.diff_versions; the schema names only `added`). */
-export type VersionDiff = Omit<Schemas["VersionDiff"], "added"> & {
-  from: VersionRef;
-  to: VersionRef;
+/** What changed between two versions (checklists.services.diff_versions). The schema has the items
+ * as JSON; the desk reads them as a version's items. */
+export type VersionDiff = Omit<Schemas["VersionDiff"], "added" | "removed"> & {
   added: ChecklistVersion["items"];
   removed: ChecklistVersion["items"];
-  changed: { key: string; fields: string[]; before: Record<string, unknown>; after: Record<string, unknown> }[];
 };
 export type DueList = Schemas["DueList"];
 export type DueItem = Schemas["DueItem"];
@@ -104,6 +97,8 @@ export const desk = {
   publishVersion: (id: number) => request<ChecklistVersion>(`checklist-versions/${id}/publish/`, { method: "POST" }),
   /** What falls due within `within` days, and everything overdue. */
   due: (within: number) => request<DueList>(`due/?within=${within}`),
+  /** Whether the person has a live calendar address, and since when (never the address). */
+  calendarState: () => request<Schemas["CalendarState"]>("me/calendar/"),
   /** A new secret calendar address (the old one stops); the server shows it this once. */
   createCalendar: () => request<Schemas["CalendarAddress"]>("me/calendar/", { method: "POST" }),
   revokeCalendar: () => request<void>("me/calendar/", { method: "DELETE" }),

@@ -11,7 +11,7 @@ import { Badge, type SignKind } from "../ui/signs";
 import { fieldErrors } from "./api";
 import { describedBy, FieldErrors } from "./parts";
 import { errorWords } from "./recordPage";
-import { records, type FileAnswer, type VerifyAnswer } from "./recordsApi";
+import { records, type CheckAnswer, type VerifyAnswer } from "./recordsApi";
 
 function pdfWaitWords(state: PdfState): string {
   switch (state.kind) {
@@ -102,20 +102,20 @@ type Checking =
   | { kind: "failed"; message: string };
 
 /**
- * A button that sends a file the server already holds (the record's PDF, an export just built)
- * back to POST verify/ and shows the verdict. Checking stores nothing.
+ * A button that asks the server for its verdict (a stored record checked where it is kept, or
+ * an export just built sent back to verify/) and shows it. Checking stores nothing.
  */
-export function VerifyPanel({ file, label, testid }: { file: () => Promise<FileAnswer>; label: string; testid: string }) {
+export function VerifyPanel({ check: ask, label, testid }: { check: () => Promise<CheckAnswer>; label: string; testid: string }) {
   const [state, setState] = useState<Checking>({ kind: "idle" });
   async function check() {
     setState({ kind: "working" });
     try {
-      const got = await file();
+      const got = await ask();
       if (got.kind === "pending") {
         setState({ kind: "pending", detail: got.detail || "The file is still being prepared; check it again in a moment." });
         return;
       }
-      setState({ kind: "done", answer: await records.verify(got.blob, got.name) });
+      setState({ kind: "done", answer: got.answer });
     } catch (e) {
       setState({ kind: "failed", message: errorWords(e) });
     }
@@ -214,7 +214,7 @@ export function ExportPanel({ siteId, start: firstStart, end: firstEnd }: { site
             </a>
             <VerifyPanel
               key={state.url}
-              file={() => Promise.resolve({ kind: "file", blob: state.blob, name: state.name })}
+              check={() => records.verify(state.blob, state.name)}
               label="Check this export on the server"
               testid="export-verify"
             />

@@ -104,43 +104,23 @@ export interface RecordDay {
   records: DailyRecord[];
   addenda: DailyRecord[];
   sheets: Sheet[];
-  /** Some sheets belong to a job with no signed record: they are dated by when they were filled. */
-  datedBySheets: boolean;
 }
 
 /**
- * Every day of the month with its records, addenda and sheets. A sheet's job is dated by its
- * signed record; a job with no record is dated by its sheets' earliest filling time (the phone's
- * clock, else when the server received it), kept inside the month the server filtered on.
+ * Every day of the month with its records, addenda and sheets, each on its job's date (the
+ * server gives a sheet its job's date, whatever the phone's clock said when it was filled).
  */
 export function monthDays(month: string, records: DailyRecord[], sheets: Sheet[]): RecordDay[] {
   const { start, end } = monthBounds(month);
   const days = new Map<string, RecordDay>();
   for (let d = start; d <= end; d = dayFrom(d, 1)) {
-    days.set(d, { date: d, records: [], addenda: [], sheets: [], datedBySheets: false });
+    days.set(d, { date: d, records: [], addenda: [], sheets: [] });
   }
-  const jobDate = new Map<number, string>();
   for (const r of records) {
-    jobDate.set(r.job, r.date);
     const day = days.get(r.date);
-    if (!day) continue;
-    (r.kind === "addendum" ? day.addenda : day.records).push(r);
+    if (day) (r.kind === "addendum" ? day.addenda : day.records).push(r);
   }
-  const filled = new Map<number, string>();
-  for (const s of sheets) {
-    if (jobDate.has(s.job)) continue;
-    const when = localDay(new Date(s.device_time ?? s.received_at));
-    const kept = when < start ? start : when > end ? end : when;
-    const earlier = filled.get(s.job);
-    if (earlier === undefined || kept < earlier) filled.set(s.job, kept);
-  }
-  for (const s of sheets) {
-    const date = jobDate.get(s.job) ?? filled.get(s.job);
-    const day = date === undefined ? undefined : days.get(date);
-    if (!day) continue;
-    day.sheets.push(s);
-    if (!jobDate.has(s.job)) day.datedBySheets = true;
-  }
+  for (const s of sheets) days.get(s.date)?.sheets.push(s);
   return [...days.values()];
 }
 

@@ -1,6 +1,7 @@
 /**
- * The calls the daily-record pages make. All of them read: the one POST (verify/) checks a
- * file the server already holds and stores nothing, so an auditor may make it.
+ * The calls the daily-record pages make. All of them read: the one POST (verify/) checks an
+ * export just built and stores nothing, so an auditor may make it; a stored record is checked
+ * where the server keeps it (GET records/{id}/verify/).
  */
 import { ApiError, OfflineError, request } from "../api";
 import type { components } from "../api-schema";
@@ -26,19 +27,11 @@ async function pages<T>(path: string): Promise<T[]> {
 const period = (site: number, start: string, end: string) =>
   `site=${site}&start=${encodeURIComponent(start)}&end=${encodeURIComponent(end)}`;
 
-interface VerifyCheck {
-  name: string;
-  ok: boolean;
-  detail: string;
-}
+/** The verifier's answer (POST verify/, GET records/{id}/verify/). */
+export type VerifyAnswer = Schemas["VerifyReport"];
 
-/** POST verify/'s answer: the schema names four fields; the server sends these too. */
-export type VerifyAnswer = Schemas["VerifyReport"] & {
-  seal?: string | null;
-  signer?: { subject: string; fingerprint_sha256: string; organisation: string } | null;
-  trust?: string;
-  checks?: VerifyCheck[];
-};
+/** A check's outcome: the verdict, or the file still being prepared (202, ask again later). */
+export type CheckAnswer = { kind: "done"; answer: VerifyAnswer } | { kind: "pending"; detail: string };
 
 /** A file's answer: its bytes and name, or still being prepared (202, ask again later). */
 export type FileAnswer =
@@ -111,9 +104,15 @@ export const records = {
   export: (site: number, start: string, end: string) =>
     file(`records/export/?${period(site, start, end)}`, "application/zip", `records-${site}-${start}-${end}.zip`),
   /** The server's verdict on a file: a record PDF or an export ZIP. */
-  verify: (blob: Blob, name: string) => {
+  verify: async (blob: Blob, name: string): Promise<CheckAnswer> => {
     const form = new FormData();
     form.append("file", blob, name);
-    return request<VerifyAnswer>("verify/", { method: "POST", form, timeoutMs: 120000 });
+    const answer = await request<VerifyAnswer>("verify/", { method: "POST", form, timeoutMs: 120000 });
+    return { kind: "done", answer };
+  },
+  /** The server's verdict on a record it holds, checked where it is kept (no download). */
+  verifyRecord: async (id: number): Promise<CheckAnswer> => {
+    const answer = await request<VerifyAnswer | Schemas["PdfRendering"]>(`records/${id}/verify/`, { timeoutMs: 120000 });
+    return "status" in answer ? { kind: "pending", detail: answer.detail } : { kind: "done", answer };
   },
 };

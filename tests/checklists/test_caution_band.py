@@ -15,7 +15,7 @@ from checklists.verdicts import evaluate
 from compliance.engineering import run
 from compliance.engineering.working import whole_pct
 
-FIXTURES = Path(__file__).resolve().parent.parent / "fixtures"
+FIXTURES = Path(__file__).resolve().parents[2] / "fixtures"
 PROFILE = json.loads((FIXTURES / "profiles" / "generic.json").read_text())["thresholds"]
 REASON = PROFILE["wind_caution_band"]["source"]
 BAND = {"profile": "wind_caution_band"}

@@ -243,8 +243,12 @@ def test_versions_of_two_checklists_do_not_compare(own_checklist, supervisor, si
         reverse("checklist-version-diff", args=[mine.pk]), {"against": mine.pk}
     )
     assert same.status_code == 200
-    assert same.json()["from"] == same.json()["to"] == {
-        "id": mine.pk,
-        "number": mine.number,
-        "content_hash": mine.content_hash,
-    }
+    assert (
+        same.json()["from"]
+        == same.json()["to"]
+        == {
+            "id": mine.pk,
+            "number": mine.number,
+            "content_hash": mine.content_hash,
+        }
+    )
