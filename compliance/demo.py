@@ -132,7 +132,8 @@ def load_demo(path: Path | None = None) -> Organisation:
         anchor = register_services.add_anchor(
             site=site, by=manager, label=a["label"], x_m=a["x_m"], y_m=a["y_m"]
         )
-        certified_on = today - dt.timedelta(days=420 if a.get("expired") else 120)
+        age = a.get("certified_days_ago", 420 if a.get("expired") else 120)
+        certified_on = today - dt.timedelta(days=age)
         register_services.record_certification(
             anchor=anchor,
             by=manager,
@@ -153,6 +154,19 @@ def load_demo(path: Path | None = None) -> Organisation:
             performed_by=data["certifier"]["name"],
             performed_by_company=data["certifier"]["company"],
             details="Annual inspection and proof load; tag renewed.",
+        )
+    # The owner's log book before today: tests, repairs, a removal from service and the return.
+    for entry in data.get("owner_log", []):
+        record_entry(
+            anchor=anchors[entry["anchor"]],
+            by=manager,
+            password=data["password"],
+            kind=entry["kind"],
+            result=entry["result"],
+            performed_on=today - dt.timedelta(days=entry["days_ago"]),
+            performed_by=data["certifier"]["name"],
+            performed_by_company=data["certifier"]["company"],
+            details=entry["details"],
         )
     kit: dict[str, Equipment] = {}
     for e in data["equipment"]:
@@ -218,6 +232,8 @@ def load_demo(path: Path | None = None) -> Organisation:
                 note="Drop cleaned top to bottom.",
             )
         services.close_job(job=job, by=supervisor)
+        if not day.get("sign", True):
+            continue  # left for the supervisor to sign at the desk
         sign_daily_record(
             job=job,
             by=supervisor,

@@ -10,6 +10,7 @@ import json
 
 import pytest
 from django.urls import reverse
+from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.selectors import current_versions
@@ -128,7 +129,7 @@ def test_calc_arrest_line_at_top_longer_than_the_line_is_a_400(calc):
 def today(tmp_path, settings) -> Job:
     settings.MEDIA_ROOT = tmp_path
     org = load_demo()
-    return Job.objects.filter(organisation=org, state="planned").order_by("-date").first()
+    return Job.objects.get(organisation=org, date=timezone.localdate())  # today's job
 
 
 def post_sheet(job: Job, key: str, entries_changes=None, **readings):

@@ -7,6 +7,7 @@ from pathlib import Path
 
 import pytest
 from django.conf import settings
+from django.utils import timezone
 
 os.environ["DJANGO_ALLOW_ASYNC_UNSAFE"] = "true"
 
@@ -114,12 +115,13 @@ def off_loop(fn, *args):
 
 @pytest.fixture
 def demo(transactional_db):
-    """The invented demo scenario; today's job is planned with no sheets."""
+    """The invented demo scenario; today's job is planned with no sheets (tomorrow's is planned
+    too, and a day three days back was worked and closed but never signed)."""
     from compliance.demo import load_demo
     from compliance.models import Job
 
     org = off_loop(load_demo)
-    job = Job.objects.filter(organisation=org, state="planned").order_by("-date").first()
+    job = Job.objects.filter(organisation=org, date=timezone.localdate()).first()
     assert job is not None
     return job
 

@@ -177,8 +177,17 @@ def test_auditor_walks_a_month_checks_a_signed_day_and_exports_it(live_server, d
         )
         assert row.locator("[data-testid=day-sheets]").inner_text() == sheets_words(demo)
         assert row.locator("[data-testid=day-link]").count() == 1
+    if day(-3).strftime("%Y-%m") == month:
+        # Worked and closed, its record never signed: the month says so.
+        row = page.locator(f"[data-testid=day-{day(-3)}]")
+        assert row.get_attribute("data-state") == "unsigned"
+        assert row.locator("[data-testid=day-state]").inner_text() == (
+            "Not signed: sheets without a signed record"
+        )
     quiet = [
-        d for d in range(1, last.day + 1) if first.replace(day=d) not in (day(0), day(-1), day(-2))
+        d
+        for d in range(1, last.day + 1)
+        if first.replace(day=d) not in (day(0), day(-1), day(-2), day(-3))
     ]
     for d in quiet:
         row = page.locator(f"[data-testid=day-{first.replace(day=d)}]")

@@ -191,26 +191,14 @@ def test_supervisor_compares_two_versions_in_words_and_publishes_the_draft(live_
 
 
 def due_rows(job) -> tuple[int, int]:
-    """An anchor whose certificate runs out in 20 days, and a day three days ago, closed, not
-    signed. (The demo's R8 certificate ran out 55 days ago.)"""
-    from compliance.jobs import services
-    from compliance.models import User
-    from compliance.registers import services as register_services
+    """The demo's own: R7's certificate runs out in 25 days, and the day three days ago was
+    worked and closed but never signed. (R8's certificate ran out 55 days ago.)"""
+    from compliance.models import AnchorCertification, Job
 
-    manager = User.objects.get(username=MANAGER)
-    anchor = register_services.add_anchor(site=job.site, by=manager, label="R9", x_m=10, y_m=23.2)
-    cert = register_services.record_certification(
-        anchor=anchor,
-        by=manager,
-        certifier="J. Whitcombe (demo)",
-        certifier_company="Roofline Engineering (demo)",
-        rated_capacity_kn=25.0,
-        certified_on=day(-345),
-        valid_until=day(20),
-    )
-    boss = job.supervisor
-    past = services.create_job(site=job.site, date=day(-3), supervisor=boss, by=boss)
-    services.close_job(job=past, by=boss, reason="Rained off; nothing done.")
+    cert = AnchorCertification.objects.get(anchor__site=job.site, anchor__label="R7")
+    assert cert.valid_until == day(25)
+    past = Job.objects.get(site=job.site, date=day(-3))
+    assert past.state == "closed" and not past.daily_records.exists()
     return cert.pk, past.pk
 
 
@@ -250,7 +238,7 @@ def test_due_list_and_the_calendar_feed_made_used_and_stopped(live_server, demo,
             "Overdue by 55 days",
         ),
         (f"due-unsigned-day-{past_id}@parapet", day(-3).isoformat(), "held", "Overdue by 3 days"),
-        (f"due-anchor-cert-{cert_id}@parapet", day(20).isoformat(), "caution", "Due in 20 days"),
+        (f"due-anchor-cert-{cert_id}@parapet", day(25).isoformat(), "caution", "Due in 25 days"),
     ]
     unsigned = rows.nth(1)
     assert "Daily record of the day not signed" in unsigned.inner_text()
@@ -260,7 +248,7 @@ def test_due_list_and_the_calendar_feed_made_used_and_stopped(live_server, demo,
     )
     soon = rows.nth(2)
     assert "Anchor certificate runs out" in soon.inner_text()
-    assert soon.locator("th").inner_text() == "Anchor R9 at Larkfield Tower"
+    assert soon.locator("th").inner_text() == "Anchor R7 at Larkfield Tower"
     assert soon.locator("[data-sign=caution] svg path").count() == 1  # the triangle
     assert rows.nth(0).locator("[data-sign=held] svg circle").count() == 1  # the circle
     assert page.inner_text("[data-testid=due-summary]").endswith("3 due, 2 of them overdue.")
@@ -304,7 +292,7 @@ def test_due_list_and_the_calendar_feed_made_used_and_stopped(live_server, demo,
     assert answer.status == 200
     assert answer.headers["content-type"] == "text/calendar; charset=utf-8"
     events = summaries(answer.body())
-    assert "Anchor R9 at Larkfield Tower: anchor certificate, due within 20 days" in events
+    assert "Anchor R7 at Larkfield Tower: anchor certificate, due within 25 days" in events
     assert f"Larkfield Tower on {day(-3).isoformat()}: daily record not signed, overdue" in events
 
     # Stopped: the page says so, the address is gone from it, and the feed answers 404.
@@ -351,6 +339,8 @@ def test_property_manager_has_due_dates_but_not_checklist_versions(live_server, 
 
 def test_due_window_is_chosen_on_the_page(live_server, demo, page):
     """Equipment inspections 90 days out show once the window reaches them, as must-do."""
+    from compliance.models import Equipment
+
     base = live_server.url
     open_desk(page, base)
     page.goto(base + "/#/desk/due")
@@ -359,7 +349,8 @@ def test_due_window_is_chosen_on_the_page(live_server, demo, page):
     page.select_option("#due-within", "90")
     page.wait_for_selector("[data-kind=equipment_inspection]")
     inspections = page.locator("[data-kind=equipment_inspection]")
-    assert inspections.count() == 10
+    # Every piece of the demo's kit (three robots' sets and two stop buttons) falls due then.
+    assert inspections.count() == Equipment.objects.count() == 14
     first = inspections.first
     assert first.get_attribute("data-sign") == "mustdo"
     assert first.locator("[data-testid=due-state]").inner_text() == "Due in 90 days"

@@ -5,6 +5,7 @@ out of service holds the contractor's job, as its operator's phone then shows. E
 is run through axe-core with no violation allowed."""
 
 import datetime as dt
+import hashlib
 import json
 from pathlib import Path
 
@@ -21,6 +22,8 @@ TYPE_MS = 40  # a person typing at a desk
 MANAGER = json.loads(
     (Path(settings.BASE_DIR) / "fixtures" / "demo" / "scenario.json").read_text(encoding="utf-8")
 )["owner"]["username"]
+CERT_PDF = b"%PDF-1.7\n1 0 obj <<>> endobj\ntrailer <<>>\n%%EOF\n"
+"""A certificate file as a competent person's office might send it (a minimal PDF)."""
 
 
 def axe_clean(page, screen: str) -> None:
@@ -251,8 +254,21 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
     # The server's refusal of a capacity of zero shows beside the field; nothing stored.
     page.wait_for_selector("[data-testid=error-cert-rated_capacity_kn]")
     assert r8.certifications.count() == 1
+    # A page saved with a .pdf name is not a certificate: refused beside the file field.
+    page.set_input_files(
+        "#cert-file",
+        {"name": "certificate.pdf", "mimeType": "application/pdf", "buffer": b"<html></html>"},
+    )
     page.fill("#cert-capacity", "")
     page.type("#cert-capacity", "22,5", delay=TYPE_MS)
+    page.click("[data-testid=cert-submit]")
+    page.wait_for_selector("[data-testid=error-cert-document]")
+    assert r8.certifications.count() == 1
+    # The real certificate, a PDF, kept as evidence with its SHA-256.
+    page.set_input_files(
+        "#cert-file",
+        {"name": "R8-certificate.pdf", "mimeType": "application/pdf", "buffer": CERT_PDF},
+    )
     page.click("[data-testid=cert-submit]")
     page.wait_for_selector("[data-testid=cert-done]")
     cert = AnchorCertification.objects.filter(anchor=r8).order_by("-id").first()
@@ -272,6 +288,9 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
         MANAGER,
     )
     page.wait_for_selector("[data-testid=certs-R8] [data-testid=cert-current]:has-text('22.5 kN')")
+    assert cert.document_sha256 == hashlib.sha256(CERT_PDF).hexdigest()
+    link = page.locator("[data-testid=certs-R8] [data-testid=cert-file-link]")
+    assert page.request.get(live_server.url + link.get_attribute("href")).body() == CERT_PDF
     axe_clean(page, "anchors and certificates")
     desk_shot(page, "desk-owner-certificates.png")
 

@@ -130,22 +130,22 @@ def add_spare_kit() -> None:
     ratings = {e["label"]: e["ratings"] for e in data["equipment"]}
     rhea = User.objects.get(username="rhea")
     for kind, label, like in (
-        ("robot", "RB-3", "RB-1"),
-        ("tether", "T-3", "T-1"),
-        ("safety_line", "S-3", "S-1"),
-        ("hose", "H-3", "H-1"),
+        ("robot", "RB-7", "RB-1"),
+        ("tether", "T-7", "T-1"),
+        ("safety_line", "S-7", "S-1"),
+        ("hose", "H-7", "H-1"),
     ):
         register_services.create_equipment(by=rhea, kind=kind, label=label, ratings=ratings[like])
 
 
 def past_and_upcoming_jobs(job) -> tuple[int, int]:
-    """A day three days ago closed but never signed, and a day planned two days ahead."""
-    from compliance.jobs import services
+    """The demo's day three days ago, worked and closed but never signed, and tomorrow's job."""
+    from compliance.models import Job
 
-    boss = job.supervisor
-    past = services.create_job(site=job.site, date=day(-3), supervisor=boss, by=boss)
-    services.close_job(job=past, by=boss, reason="Rained off; nothing done.")
-    ahead = services.create_job(site=job.site, date=day(2), supervisor=boss, by=boss)
+    past = Job.objects.get(site=job.site, date=day(-3))
+    ahead = Job.objects.get(site=job.site, date=day(1))
+    assert past.state == "closed" and not past.daily_records.exists()
+    assert ahead.state == "planned"
     return past.pk, ahead.pk
 
 
@@ -175,7 +175,7 @@ def test_jobs_of_every_day_past_today_upcoming(live_server, demo, page):
 
     upcoming = page.locator("[data-testid=jobs-upcoming] tbody tr")
     assert [upcoming.nth(i).get_attribute("data-date") for i in range(upcoming.count())] == [
-        day(2).isoformat()
+        day(1).isoformat()
     ]
     assert upcoming.first.locator("[data-testid=plan-link]").get_attribute("href") == (
         f"#/desk/plan/{ahead_id}"
@@ -231,9 +231,11 @@ def test_supervisor_plans_tomorrow_with_two_drops(live_server, demo, page):
     page.wait_for_selector("[data-testid=add-drop]")
 
     rhea = User.objects.get(username="rhea")
-    jobs = list(Job.objects.filter(date=tomorrow).values_list("site__name", "supervisor", "state"))
+    # Beside the demo's own job for tomorrow (drop North 3 on R3 and R4, with RB-3).
+    planned = Job.objects.filter(date=tomorrow).exclude(drops__label="North 3")
+    jobs = list(planned.values_list("site__name", "supervisor", "state"))
     assert jobs == [("Larkfield Tower", rhea.pk, "planned")]
-    job = Job.objects.get(date=tomorrow)
+    job = planned.get()
     assert page.url.endswith(f"#/desk/plan/{job.pk}")
     transitions = JobTransition.objects.filter(job=job)
     assert list(transitions.values_list("from_state", "to_state", "by")) == [
@@ -316,7 +318,7 @@ def test_robot_booked_today_is_refused_beside_its_field(live_server, demo, page)
     page.type("#f-label", "South 1", delay=TYPE_MS)
     page.type("#f-length", "140", delay=TYPE_MS)
     # RB-1 is on today's demo job: the plan check refuses it, in words with the stop sign.
-    choose_kit(page, "RB-1", "T-3", "S-3", "H-3")
+    choose_kit(page, "RB-1", "T-7", "S-7", "H-7")
     page.click("[data-testid=plan-anchor-R5]")
     page.click("[data-testid=plan-anchor-R6]")
     refusal = page.locator("[data-testid=conflicts-robot] li[data-refuses=yes]")
@@ -342,12 +344,12 @@ def test_robot_booked_today_is_refused_beside_its_field(live_server, demo, page)
     desk_shot(page, "desk-plan-refused.png", top="#add-head")
 
     # RB-2 is booked today as well; the spare RB-3 clears it, and the drop is added.
-    choose_kit(page, "RB-3", "T-3", "S-3", "H-3")
+    choose_kit(page, "RB-7", "T-7", "S-7", "H-7")
     page.wait_for_selector("[data-testid=plan-check][data-state=done][data-refusals='0']")
     assert page.locator("[data-testid=error-robot]").count() == 0
     page.click("[data-testid=add-drop-submit]")
     page.wait_for_selector("[data-testid='drop-South 1']")
-    assert drop_rows(new) == [("South 1", 140.0, "RB-3", "R5", "R6", "T-3", "S-3", "H-3")]
+    assert drop_rows(new) == [("South 1", 140.0, "RB-7", "R5", "R6", "T-7", "S-7", "H-7")]
 
 
 def robot_ratings() -> dict:
@@ -374,8 +376,8 @@ def test_register_adds_a_robot_and_takes_a_hose_out_and_back(live_server, demo, 
     assert page.get_attribute("#rating-mass_kg", "inputmode") == "decimal"
     mass_field = page.locator("#rating-mass_kg").locator("xpath=..")
     assert mass_field.locator(".unit").inner_text() == "kg"
-    page.type("#add-label", "RB-3", delay=TYPE_MS)
-    page.type("#add-serial", "DEMO-R-0103", delay=TYPE_MS)
+    page.type("#add-label", "RB-4", delay=TYPE_MS)
+    page.type("#add-serial", "DEMO-R-0104", delay=TYPE_MS)
     ratings = robot_ratings()
     for key, value in ratings.items():
         if key != "mass_kg":
@@ -385,25 +387,25 @@ def test_register_adds_a_robot_and_takes_a_hose_out_and_back(live_server, demo, 
     page.wait_for_selector("[data-testid='error-ratings.mass_kg']")
     assert "Required" in page.inner_text("[data-testid='error-ratings.mass_kg']")
     assert page.get_attribute("#rating-mass_kg", "aria-describedby") == "err-ratings.mass_kg"
-    assert not Equipment.objects.filter(label="RB-3").exists()
+    assert not Equipment.objects.filter(label="RB-4").exists()
     axe_clean(page, "the equipment register, a field refused")
     page.type("#rating-mass_kg", str(ratings["mass_kg"]), delay=TYPE_MS)
     page.click("[data-testid=add-equipment-submit]")
     page.wait_for_selector("[data-testid=equipment-added]")
-    assert page.inner_text("[data-testid=equipment-added]") == "Robot RB-3 added to the register."
+    assert page.inner_text("[data-testid=equipment-added]") == "Robot RB-4 added to the register."
     added = list(
-        Equipment.objects.filter(label="RB-3").values_list(
+        Equipment.objects.filter(label="RB-4").values_list(
             "kind", "serial", "ratings", "in_service"
         )
     )
-    assert added == [("robot", "DEMO-R-0103", ratings, True)]
-    robot = Equipment.objects.get(label="RB-3")
+    assert added == [("robot", "DEMO-R-0104", ratings, True)]
+    robot = Equipment.objects.get(label="RB-4")
     assert list(
         RegisterChange.objects.filter(subject="equipment", object_id=robot.pk).values_list(
             "action", "by"
         )
     ) == [("created", rhea.pk)]
-    page.wait_for_selector("[data-testid=kind-robot] [data-testid=item-RB-3]")
+    page.wait_for_selector("[data-testid=kind-robot] [data-testid=item-RB-4]")
     desk_shot(page, "desk-equipment-added.png")
 
     # Hose H-2 out of service: a reason is asked for first, then recorded.

@@ -1,7 +1,10 @@
 """Default checklists end to end: calc items draw on readings and ratings and show working."""
 
+import datetime as dt
+
 import pytest
 from django.core.management import call_command
+from django.utils import timezone
 
 from checklists.models import ItemEntry
 from compliance.demo import load_demo
@@ -19,8 +22,16 @@ def demo(tmp_path, settings):
 
 def test_demo_history_has_a_hold_and_its_repair(demo):
     jobs = list(Job.objects.filter(organisation=demo).order_by("date"))
-    assert [j.state for j in jobs] == ["closed", "closed", "planned"]
-    held_day = jobs[1]
+    today = timezone.localdate()
+    assert [((j.date - today).days, j.state) for j in jobs] == [
+        (-3, "closed"),  # worked, closed, its record left for the supervisor to sign
+        (-2, "closed"),
+        (-1, "closed"),
+        (0, "planned"),
+        (1, "planned"),
+    ]
+    assert [j.daily_records.count() for j in jobs] == [0, 1, 1, 0, 0]
+    held_day = jobs[2]
     hold = Hold.objects.get(job=held_day)
     assert hold.item_key == "decay_test" and hold.clearance.sheet.verdict == "pass"
     assert [(t.from_state, t.to_state) for t in held_day.transitions.all()][3:5] == [
@@ -28,6 +39,43 @@ def test_demo_history_has_a_hold_and_its_repair(demo):
         ("held", "cleared"),
     ]
     assert DailyRecord.objects.filter(site__name="Larkfield Tower").count() == 2
+
+
+def test_the_demo_gives_every_desk_screen_something_to_show(demo):
+    """Tomorrow's job with its drop, a certificate falling due within 30 days, and the owner's
+    log book with a history: a load test, a repair, a removal from service and the return."""
+    from compliance.models import AnchorCertification, AnchorLogEntry, Site
+    from compliance.registers.selectors import anchor_status
+
+    today = timezone.localdate()
+    tomorrow = Job.objects.get(organisation=demo, date=today + dt.timedelta(days=1))
+    assert [(d.label, d.robot.label, d.anchor.label) for d in tomorrow.drops.all()] == [
+        ("North 3", "RB-3", "R3")
+    ]
+    due_soon = [
+        c.anchor.label
+        for c in AnchorCertification.objects.select_related("anchor")
+        if today <= c.valid_until <= today + dt.timedelta(days=30)
+    ]
+    assert due_soon == ["R7"]
+    kinds = list(
+        AnchorLogEntry.objects.exclude(kind="periodic_inspection")
+        .exclude(kind="pre_use_check")
+        .order_by("sequence")
+        .values_list("anchor__label", "kind")
+    )
+    assert kinds == [
+        ("R2", "load_test"),
+        ("R3", "repair"),
+        ("R4", "removed_from_service"),
+        ("R4", "returned_to_service"),
+        ("R5", "modification"),
+    ]
+    site = Site.objects.get(name="Larkfield Tower")
+    assert (site.height_m, site.storeys) == (118.0, 31)
+    r4 = site.anchors.prefetch_related("log", "certifications").get(label="R4")
+    interval = int(site.profile.threshold("certification_interval_days"))
+    assert anchor_status(r4, interval).in_service
 
 
 def test_loading_the_demo_twice_changes_nothing(demo):

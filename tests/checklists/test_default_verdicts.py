@@ -7,6 +7,7 @@ and reads the verdicts the server stored, the record.
 import json
 
 import pytest
+from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.selectors import current_versions
@@ -24,7 +25,7 @@ GOOD = [[t, 62.0 - t / 75.0] for t in range(0, 181, 30)]
 def today(tmp_path, settings) -> Job:
     settings.MEDIA_ROOT = tmp_path
     org = load_demo()
-    return Job.objects.filter(organisation=org).order_by("-date").first()
+    return Job.objects.get(organisation=org, date=timezone.localdate())  # today's job
 
 
 def _fill(job: Job, key: str, **changes):
@@ -118,7 +119,7 @@ def test_demo_safety_line_passes_at_the_top_and_the_foot(today):
 
 
 def test_a_shorter_line_at_the_top_stops_work_in_words(today):
-    """The anchor and line pass at the full 146 m; 1 m of line at the top overloads them."""
+    """The anchor and line pass at the full 114 m drop; 1 m of line at the top overloads them."""
     arrest = _fill(today, "safety-line-pre-use", line_at_top=1.0)[0]["arrest"]
     assert arrest.verdict == "fail"
     assert arrest.message.startswith("A fall at the top of the drop would load the")
