@@ -1,11 +1,13 @@
 """Thin API views: parse, call one service or selector, shape the answer."""
 
+import datetime as dt
 from typing import Any
 
 from django.contrib.auth import authenticate, login, logout
 from django.db.models import Prefetch, Q, QuerySet
 from django.http import FileResponse, Http404
 from django.shortcuts import get_object_or_404
+from django.utils import timezone
 from drf_spectacular.types import OpenApiTypes
 from drf_spectacular.utils import OpenApiParameter, extend_schema, inline_serializer
 from rest_framework import mixins, serializers, status, viewsets
@@ -23,6 +25,7 @@ from rest_framework.response import Response
 
 from checklists import services as checklist_services
 from checklists.models import Checklist, ChecklistVersion
+from checklists.photos import store_photo
 from checklists.selectors import entry_rows, sheets_for, usable_versions, visible_checklists
 from compliance.api import serializers as s
 from compliance.api.fields import ParsedJSON, StrictInput, query_id, query_period, query_text
@@ -31,9 +34,10 @@ from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
 from compliance.api.throttles import LOGIN_THROTTLES, PasswordReentryThrottle
 from compliance.api.tokens import issue_token, revoke_tokens, token_lifetime
+from compliance.engineering import CALCULATIONS, CalcInputError, run
 from compliance.jobs import services
 from compliance.jobs.selectors import job_readiness, jobs_for, plan_conflicts
-from compliance.jobs.sync import MAX_BATCH, printable
+from compliance.jobs.sync import MAX_BATCH, apply_batch, printable
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -44,6 +48,7 @@ from compliance.models import (
 )
 from compliance.registers import services as register_services
 from compliance.registers.documents import content_type
+from compliance.registers.profiles import profile_diff
 from compliance.registers.ratings import EQUIPMENT_KINDS, KIND_WORDS, rating_form
 from compliance.registers.selectors import equipment_of
 from compliance.registers.visibility import anchors_visible_to, sites_visible_to
@@ -126,10 +131,6 @@ class SyncInput(StrictInput, serializers.Serializer):
 @permission_classes([OrganisationMember])
 def sync(request: Request) -> Response:
     """Apply a batch of records made offline; each once, whatever the number of retries."""
-    from django.utils import timezone
-
-    from compliance.jobs.sync import apply_batch
-
     data = SyncInput(data=request.data)
     data.is_valid(raise_exception=True)
     results = apply_batch(
@@ -171,8 +172,6 @@ class PhotoOutput(serializers.Serializer):
 @parser_classes([MultiPartParser])
 def upload_photo(request: Request) -> Response:
     """Store a roof photo once per client uuid; it is re-encoded and its metadata dropped."""
-    from checklists.photos import store_photo
-
     data = PhotoInput(data=request.data)
     data.is_valid(raise_exception=True)
     values = data.validated_data
@@ -208,8 +207,6 @@ class ProfileViewSet(viewsets.ReadOnlyModelViewSet):
     @action(detail=True, methods=["get"])
     def revisions(self, request: Request, key: str | None = None) -> Response:
         """Every revision of the profile, oldest first, each with what it changed."""
-        from compliance.registers.profiles import profile_diff
-
         revisions = list(self.get_object().revisions.select_related("profile"))
         return Response(
             [
@@ -481,8 +478,6 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
 
 
 def _is_date(text: str) -> bool:
-    import datetime as dt
-
     try:
         dt.date.fromisoformat(text)
     except ValueError:
@@ -635,8 +630,6 @@ class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVie
 @permission_classes([OrganisationMember | ReadOnlyCalc])
 def calculate(request: Request, name: str) -> Response:
     """Run a named calculation on the JSON object posted; the answer shows its working."""
-    from compliance.engineering import CALCULATIONS, CalcInputError, run
-
     if name not in CALCULATIONS:
         return Response(
             {"detail": f"No calculation named {name!r}.", "calculations": sorted(CALCULATIONS)},
