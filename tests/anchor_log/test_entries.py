@@ -355,3 +355,21 @@ def test_one_anchors_log_book(building):
     document = json.loads(PdfReader(io.BytesIO(pdf)).attachments["daily-record.json"][0])
     assert [item["entry"]["anchor"]["id"] for item in document["entries"]] == [b["drop"].anchor_id]
     assert verify_pdf(pdf).ok
+
+
+@pytest.mark.parametrize(
+    "query,answer",
+    [
+        ("", {"site": ["A site id is required."]}),
+        ("?site=", {"site": ["A site id is required."]}),
+        ("?site=%C2%B2", None),  # a superscript two is not a plain digit
+        ("?site=1" + "0" * 30, None),
+    ],
+    ids=["no-site", "empty", "superscript", "too-long"],
+)
+def test_the_log_book_pdf_without_a_usable_site_is_a_400_naming_it(building, query, answer):
+    response = client_for(building["manager"]).get(reverse("anchor-log-pdf") + query)
+    assert response.status_code == 400
+    assert list(response.json()) == ["site"]
+    if answer is not None:
+        assert response.json() == answer
