@@ -53,11 +53,13 @@ def record_certification(
             return cert
         cert.document.save(checked.name, checked.content, save=False)
         cert.document_sha256 = checked.sha256
+        saved = False
         try:
             cert.save()
-        except Exception:
-            cert.document.storage.delete(cert.document.name)
-            raise
+            saved = True
+        finally:
+            if not saved:  # whatever stopped the row, the file does not stay without it
+                cert.document.storage.delete(cert.document.name)
     return cert
 
 

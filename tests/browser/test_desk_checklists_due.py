@@ -12,12 +12,11 @@ from pathlib import Path
 import pytest
 from django.conf import settings
 
-from tests.browser.conftest import off_loop
+from tests.browser.conftest import DESK, off_loop
 from tests.browser.test_desk_screens import axe_clean, day, desk_shot, open_desk, sign_in
 
 pytestmark = pytest.mark.browser
 
-DESK = {"width": 1280, "height": 800}
 MANAGER = json.loads(
     (Path(settings.BASE_DIR) / "fixtures" / "demo" / "scenario.json").read_text(encoding="utf-8")
 )["owner"]["username"]

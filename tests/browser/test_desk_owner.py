@@ -12,49 +12,22 @@ from pathlib import Path
 import pytest
 from django.conf import settings
 
-from tests.browser.conftest import PASSWORD, shot, sign_in_as
+from tests.browser.conftest import (
+    DESK,
+    PASSWORD,
+    TYPE_MS,
+    axe_clean,
+    desk_shot,
+    sign_in_as,
+)
 
 pytestmark = pytest.mark.browser
 
-AXE = Path(settings.BASE_DIR) / "frontend" / "node_modules" / "axe-core" / "axe.min.js"
-DESK = {"width": 1280, "height": 800}
-TYPE_MS = 40  # a person typing at a desk
 MANAGER = json.loads(
     (Path(settings.BASE_DIR) / "fixtures" / "demo" / "scenario.json").read_text(encoding="utf-8")
 )["owner"]["username"]
 CERT_PDF = b"%PDF-1.7\n1 0 obj <<>> endobj\ntrailer <<>>\n%%EOF\n"
 """A certificate file as a competent person's office might send it (a minimal PDF)."""
-
-
-def axe_clean(page, screen: str) -> None:
-    """No axe-core violation on the page as it stands, with WCAG AAA text contrast (7:1) on."""
-    if not AXE.is_file():
-        pytest.fail(f"{AXE} is missing; run `npm ci` in frontend/.")
-    # The server's CSP (script-src 'self') blocks the inline <script> that add_script_tag(path=)
-    # writes; evaluating the file through the driver leaves the page's policy as it is.
-    if not page.evaluate("() => typeof axe !== 'undefined'"):
-        page.evaluate(AXE.read_text(encoding="utf-8"))
-    violations = page.evaluate(
-        """async () => {
-            const result = await axe.run(document, {
-                rules: { "color-contrast-enhanced": { enabled: true } },
-            });
-            return result.violations.map((v) => ({
-                id: v.id, impact: v.impact, help: v.help,
-                nodes: v.nodes.map((n) => `${n.target.join(" ")}: ${n.failureSummary}`),
-            }));
-        }"""
-    )
-    assert violations == [], f"axe-core on {screen}:\n{json.dumps(violations, indent=1)}"
-
-
-def desk_shot(page, name: str, top: str | None = None) -> None:
-    """A 1280 x 800 screenshot from the page's top, or with the element `top` at the top."""
-    if top:
-        page.locator(top).evaluate("e => e.scrollIntoView()")
-    else:
-        page.evaluate("() => window.scrollTo(0, 0)")
-    shot(page, name)
 
 
 def open_desk(page, base: str) -> None:

@@ -148,3 +148,29 @@ def test_only_those_who_see_the_anchor_read_its_file_and_a_contractor_cannot_add
     assert refused.status_code == 403
     assert AnchorCertification.objects.count() == 1
     assert len(stored_files()) == 1
+
+
+def test_a_row_that_fails_to_save_takes_its_stored_file_with_it(tower):
+    """The file is stored just before the row; if the row's save fails (a lost connection, a
+    constraint), the file is deleted, not left behind without its certification."""
+    from unittest import mock
+
+    from django.db import OperationalError
+
+    from compliance.registers.services import record_certification
+
+    with (
+        mock.patch.object(AnchorCertification, "save", side_effect=OperationalError("gone")),
+        pytest.raises(OperationalError),
+    ):
+        record_certification(
+            anchor=tower["anchor"],
+            by=tower["manager"],
+            document=io.BytesIO(PDF),
+            certifier="M. Adeyemi",
+            rated_capacity_kn=15.0,
+            certified_on=dt.date(2026, 11, 20),
+            valid_until=dt.date(2027, 11, 20),
+        )
+    assert stored_files() == []
+    assert AnchorCertification.objects.count() == 0
