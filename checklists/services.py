@@ -18,7 +18,7 @@ from checklists.verdicts import EntryError, SheetOutcome, evaluate
 from compliance.anchor_log.services import log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
-from compliance.errors import InvalidTransition, NotPermitted
+from compliance.errors import InvalidTransition, NotPermitted, require_writer
 from compliance.jobs.selectors import drops_of
 from compliance.jobs.services import apply_sheet_outcome
 from compliance.models import (
@@ -357,8 +357,7 @@ def record_sheet(
     ``drops`` are the job's drops with their anchors and equipment, when the caller (a sync
     batch of many sheets for one job) has already read them.
     """
-    if not by.can_write:
-        raise NotPermitted("Auditors have read-only access.")
+    require_writer(by)
     client_uuid = client_uuid or uuid.uuid4()
     existing = CheckSheet.objects.filter(client_uuid=client_uuid).first()
     if existing is not None:

@@ -44,6 +44,15 @@ class NotPermitted(DomainError):
         self.message = message
 
 
+READ_ONLY = "Auditors have read-only access."
+
+
+def require_writer(user: Any) -> None:
+    """Every service that changes something refuses a read-only person (an auditor) first."""
+    if not user.can_write:
+        raise NotPermitted(READ_ONLY)
+
+
 class PdfsPending(DomainError):
     """Some records' PDFs are still being rendered; ``record_ids`` names them."""
 

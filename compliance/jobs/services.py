@@ -9,7 +9,7 @@ from django.db import transaction
 
 from checklists.models import CheckSheet
 from checklists.verdicts import SheetOutcome
-from compliance.errors import InvalidTransition, JobBlocked, NotPermitted, Reason
+from compliance.errors import InvalidTransition, JobBlocked, Reason, require_writer
 from compliance.jobs.holds import (
     clear_by_passing_sheet,
     hold_for_failed_items,
@@ -32,13 +32,8 @@ from compliance.models import (
 from compliance.registers.visibility import can_work_at
 
 
-def _require_writer(user: User) -> None:
-    if not user.can_write:
-        raise NotPermitted("Auditors have read-only access.")
-
-
 def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
-    _require_writer(by)
+    require_writer(by)
     if not can_work_at(by.organisation_id, site, date):
         raise ValidationError(
             {"site": "Your organisation has no access to this site on that date."}
@@ -76,7 +71,7 @@ def add_drop(
     hose: Equipment,
     length_m: float,
 ) -> Drop:
-    _require_writer(by)
+    require_writer(by)
     if job.state not in (JobState.PLANNED, JobState.CLEARED):
         raise InvalidTransition("Drops can be planned only before work starts.")
     chosen = {
@@ -121,7 +116,7 @@ def add_drop(
 
 def start_job(*, job: Job, by: User) -> Job:
     """Move a job to working, or raise JobBlocked with every reason it cannot start."""
-    _require_writer(by)
+    require_writer(by)
     with transaction.atomic():
         job = locked(job)
         if job.state == JobState.WORKING:
@@ -135,7 +130,7 @@ def start_job(*, job: Job, by: User) -> Job:
 
 
 def pause_job(*, job: Job, by: User, reason: str = "") -> Job:
-    _require_writer(by)
+    require_writer(by)
     with transaction.atomic():
         job = locked(job)
         if job.state != JobState.WORKING:
@@ -144,7 +139,7 @@ def pause_job(*, job: Job, by: User, reason: str = "") -> Job:
 
 
 def close_job(*, job: Job, by: User, reason: str = "") -> Job:
-    _require_writer(by)
+    require_writer(by)
     with transaction.atomic():
         job = locked(job)
         if job.state == JobState.CLOSED:
@@ -186,7 +181,7 @@ def log_drop(
     *, drop: Drop, by: User, note: str = "", device_time: Any = None, client_uuid: Any = None
 ) -> DropLog:
     """A drop done while its job is working (the log row is its own audit entry)."""
-    _require_writer(by)
+    require_writer(by)
     if len(note) > DROP_NOTE_MAX:
         raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
     with transaction.atomic():

@@ -7,7 +7,7 @@ from typing import IO, Any
 from django.core.exceptions import ValidationError
 from django.db import IntegrityError, models, transaction
 
-from compliance.errors import InvalidTransition, NotPermitted
+from compliance.errors import InvalidTransition, NotPermitted, require_writer
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -23,18 +23,13 @@ from compliance.registers.documents import check_document
 from compliance.registers.visibility import grantable_contractors, owns_site
 
 
-def _require_writer(user: User) -> None:
-    if not user.can_write:
-        raise NotPermitted("Auditors have read-only access.")
-
-
 def record_certification(
     *, anchor: Anchor, by: User, document: IO[bytes] | None = None, **fields: Any
 ) -> AnchorCertification:
     """Add a certification; only the building's own organisation certifies its anchors. The
     certificate's file, if given, is checked (a PDF, PNG or JPEG by its bytes) and kept under
     its SHA-256; a row refused after the file was stored takes the file with it."""
-    _require_writer(by)
+    require_writer(by)
     if not by.can_keep_anchor_log:
         raise NotPermitted(
             "Only a supervisor, an admin or a property manager records anchor certifications."
@@ -75,7 +70,7 @@ def give_grant(
     organisation that is not a contractor, the owner itself included, is refused in the same
     words as an id that does not exist, so the answer names no other organisation.
     """
-    _require_writer(by)
+    require_writer(by)
     if not owns_site(by.organisation_id, site):
         raise NotPermitted("Only the site's owner manages access.")
     if not by.can_keep_anchor_log:
@@ -97,7 +92,7 @@ def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> SiteGrantEnd:
     Its jobs there no longer start (``no_grant_for_day``); the grant keeps its dates, and the
     end row records who ended it, when and why.
     """
-    _require_writer(by)
+    require_writer(by)
     if not owns_site(by.organisation_id, grant.site):
         raise NotPermitted("Only the site's owner manages access.")
     if not by.can_keep_anchor_log:
@@ -113,7 +108,7 @@ def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> SiteGrantEnd:
 
 
 def require_register_keeper(user: User) -> None:
-    _require_writer(user)
+    require_writer(user)
     if not user.can_keep_anchor_log:
         raise NotPermitted(
             "Only a supervisor, an admin or a property manager can change this register."
