@@ -174,7 +174,14 @@ export const api = {
     sessionEpoch += 1;
     return user;
   },
-  logout: () => request<void>("auth/logout/", { method: "POST", json: {} }),
+  /**
+   * Signing out starts a new session epoch before asking the server: an answer to a request
+   * sent before it ("not signed in") is then about the session being left, not a lapse.
+   */
+  logout: async () => {
+    sessionEpoch += 1;
+    await request<void>("auth/logout/", { method: "POST", json: {} });
+  },
   me: () => request<User>("me/"),
   jobs: (date: string) =>
     request<Page<JobSummary>>(`jobs/?date=${encodeURIComponent(date)}`),

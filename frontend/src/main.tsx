@@ -1,5 +1,5 @@
 import { render } from "preact";
-import { useEffect, useState } from "preact/hooks";
+import { useEffect, useRef, useState } from "preact/hooks";
 import { api, ApiError } from "./api";
 import { loadMe } from "./repo";
 import { cacheGet, clearCache, outboxWaiting } from "./storage";
@@ -36,6 +36,8 @@ function App() {
   const [user, setUser] = useState<User | null | undefined>(undefined);
   // The user whose session ended without signing out: the records waiting are theirs.
   const [lapsed, setLapsed] = useState<User | null>(null);
+  // Set while signing out: a "not signed in" heard then is the sign-out itself, not a lapse.
+  const leaving = useRef(false);
 
   useEffect(() => {
     loadMe()
@@ -50,7 +52,7 @@ function App() {
   // The session ended (it timed out, or was ended elsewhere): ask for a sign-in again and stay
   // on the same screen; everything on the phone (records, photos, drafts) is kept.
   useEffect(() => {
-    if (status.signedOut && user) {
+    if (status.signedOut && user && !leaving.current) {
       setLapsed(user);
       setUser(null);
     }
@@ -59,15 +61,23 @@ function App() {
   async function signOut() {
     const waiting = (await outboxWaiting()).length;
     if (waiting && !confirm(`${waiting} records are not sent yet. They stay on this phone and go after the next sign-in. Sign out?`)) return;
+    leaving.current = true;
     try {
-      await api.logout();
-    } catch (e) {
-      if (!(e instanceof ApiError)) return alert("Signing out needs a connection.");
+      try {
+        await api.logout();
+      } catch (e) {
+        if (!(e instanceof ApiError)) return alert("Signing out needs a connection.");
+      }
+      await clearCache();
+      if ("caches" in window) await caches.delete("parapet-api");
+      // The next person starts from an empty form, with no notice meant for a lapsed session.
+      setLapsed(null);
+      setUser(null);
+      setStatus({ signedOut: false, lastError: null });
+      go({ name: "jobs" });
+    } finally {
+      leaving.current = false;
     }
-    await clearCache();
-    if ("caches" in window) await caches.delete("parapet-api");
-    setUser(null);
-    go({ name: "jobs" });
   }
 
   let screen;
