@@ -349,17 +349,24 @@ def record_sheet(
     phone_clock_offset_s: int | None = None,
     defer_readiness: bool = False,
     drops: list[Drop] | None = None,
+    job_locked: bool = False,
+    uuid_unused: bool = False,
+    open_hold_requirements: set[str] | None = None,
 ) -> tuple[CheckSheet, bool]:
     """Record a filled sheet exactly once per client uuid; return (sheet, created).
 
     Invalid input raises ValidationError keyed by field and stores nothing.
     ``phone_clock_offset_s`` is the phone's clock minus the server's when its batch was sent.
-    ``drops`` are the job's drops with their anchors and equipment, when the caller (a sync
-    batch of many sheets for one job) has already read them.
+    A sync batch applying many sheets for one job in one transaction passes what it has
+    already read: ``drops`` (the job's drops with their anchors and equipment),
+    ``job_locked`` (``job`` is its row, locked until the batch's transaction ends),
+    ``uuid_unused`` (no sheet holds ``client_uuid``: it looked under that lock) and
+    ``open_hold_requirements`` (the requirements with holds a sheet opened, kept up to date
+    here as holds open and clear).
     """
     require_writer(by)
     client_uuid = client_uuid or uuid.uuid4()
-    existing = CheckSheet.objects.filter(client_uuid=client_uuid).first()
+    existing = None if uuid_unused else CheckSheet.objects.filter(client_uuid=client_uuid).first()
     if existing is not None:
         if existing.job_id != job.pk or existing.filled_by.organisation_id != by.organisation_id:
             raise ValidationError({"client_uuid": "This id belongs to another record."})
@@ -419,7 +426,13 @@ def record_sheet(
                 ]
             )
             apply_sheet_outcome(
-                sheet=sheet, outcome=outcome, by=by, drops=drops, defer_readiness=defer_readiness
+                sheet=sheet,
+                outcome=outcome,
+                by=by,
+                drops=drops,
+                defer_readiness=defer_readiness,
+                job_locked=job_locked,
+                open_hold_requirements=open_hold_requirements,
             )
             if subject_kind == "anchor":
                 log_pre_use_check(sheet)

@@ -156,19 +156,29 @@ def apply_sheet_outcome(
     by: User,
     drops: list[Drop] | None = None,
     defer_readiness: bool = False,
+    job_locked: bool = False,
+    open_hold_requirements: set[str] | None = None,
 ) -> Job:
     """Open holds for failed blocking items, or clear this requirement's holds on a pass (the
     rules are in compliance.jobs.holds).
 
     Holds open at once. With ``defer_readiness`` the move back to cleared or planned waits for
     the caller's ``refresh_readiness`` (a sync batch does it once per job, not once per sheet).
+    With ``job_locked`` the sheet's job is already the locked row (a sync batch locks it once);
+    ``open_hold_requirements``, when given, is the set of requirements with open holds that
+    sheets opened: a pass for a requirement outside it has nothing to clear and reads nothing.
     """
-    job = locked(sheet.job)
+    job = sheet.job if job_locked else locked(sheet.job)
     if outcome.blocking_failures:
+        if open_hold_requirements is not None and job.state != JobState.CLOSED:
+            open_hold_requirements.add(sheet.requirement)
         return hold_for_failed_items(
             job=job, sheet=sheet, failures=outcome.blocking_failures, by=by
         )
-    clear_by_passing_sheet(job=job, sheet=sheet, by=by)
+    if open_hold_requirements is None or sheet.requirement in open_hold_requirements:
+        clear_by_passing_sheet(job=job, sheet=sheet, by=by)
+        if open_hold_requirements is not None:
+            open_hold_requirements.discard(sheet.requirement)
     if defer_readiness:
         return job
     return refresh_readiness(job=job, by=by, drops=drops)

@@ -1,7 +1,11 @@
 """The phone's offline queue lands here: a batch of client records, each applied exactly once.
 
-Each record is applied in its own transaction together with its receipt, so a batch cut off
-half-way leaves whole records behind and a retry answers from the receipts.
+The records that follow one another for one job are applied in one transaction that locks the
+job's row first: each record in its own savepoint, their receipts written together at the end,
+the job's readiness settled once before it commits. A record refused rolls back alone; a batch
+cut off half-way leaves whole records behind (those of the jobs it finished), and a retry answers
+from the receipts. A record of no job (a drop log, one that names no usable job) is applied in
+its own transaction with its receipt.
 """
 
 import datetime as dt
@@ -15,13 +19,13 @@ from django.db import IntegrityError, transaction
 from django.utils import timezone
 from django.utils.dateparse import parse_datetime
 
-from checklists.models import ChecklistVersion
+from checklists.models import ChecklistVersion, CheckSheet
 from checklists.selectors import usable_versions
 from checklists.services import record_sheet
 from compliance.errors import DomainError, rejection_for
 from compliance.jobs import services
 from compliance.jobs.selectors import drops_of
-from compliance.models import Anchor, Drop, Equipment, Job, SyncReceipt, User
+from compliance.models import Anchor, Drop, Equipment, Hold, Job, SyncReceipt, User
 from compliance.registers.visibility import anchors_visible_to
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
@@ -45,6 +49,7 @@ class Batch:
     drops: dict[int, list[Drop]] = field(default_factory=dict)
     receipts: dict[uuid.UUID, SyncReceipt] = field(default_factory=dict)
     receipts_loaded: bool = False
+    run: "JobRun | None" = None
 
     def drops_of(self, job: Job) -> list[Drop]:
         """A job's drops with their anchors and equipment, read once per batch: a batch
@@ -62,6 +67,28 @@ class Batch:
             self.known[(name, pk)] = obj
         return obj
 
+    def preload(self, records: list[Any]) -> None:
+        """Read every version, anchor and equipment the batch names in one query each (the
+        ones not found are looked up, and refused, record by record)."""
+        org = self.user.organisation_id
+        wanted: dict[str, set[int]] = {"version": set(), "anchor": set(), "equipment": set()}
+        for record in records:
+            data = record.get("data") if isinstance(record, dict) else None
+            if not isinstance(data, dict) or record.get("type") != "sheet":
+                continue
+            for name, ids in wanted.items():
+                if _is_id(data.get(name)):
+                    ids.add(data[name])
+        sources = {
+            "version": usable_versions(org),
+            "anchor": anchors_visible_to(org),
+            "equipment": Equipment.objects.filter(organisation_id=org),
+        }
+        for name, ids in wanted.items():
+            if ids:
+                for pk, obj in sources[name].in_bulk(sorted(ids)).items():
+                    self.known[(name, pk)] = obj
+
     def settle(self, job_id: int | None = None) -> None:
         """Bring the jobs whose sheets passed up to date (one job, or all of them)."""
         ids = [job_id] if job_id is not None else sorted(self.pending_readiness)
@@ -69,15 +96,37 @@ class Batch:
             if pk not in self.pending_readiness:
                 continue
             self.pending_readiness.discard(pk)
+            if self.run is not None and self.run.job is not None and self.run.job.pk == pk:
+                services.refresh_readiness(job=self.run.job, by=self.user, drops=self.drops.get(pk))
+                continue
             with transaction.atomic():
                 job = Job.objects.select_for_update().select_related("site__profile").get(pk=pk)
                 services.refresh_readiness(job=job, by=self.user)
+
+
+@dataclass
+class JobRun:
+    """Consecutive records of one job, applied in one transaction with the job's row locked."""
+
+    job_id: int
+    job: Job | None
+    unused_uuids: set[uuid.UUID]
+    open_hold_requirements: set[str]
+    receipts: list[SyncReceipt] = field(default_factory=list)
 
 
 class RecordRejected(Exception):
     def __init__(self, errors: dict[str, Any]) -> None:
         super().__init__(str(errors))
         self.errors = errors
+
+
+MAX_ID = 2**63 - 1
+
+
+def _is_id(value: Any) -> bool:
+    """A whole number a primary key column can hold."""
+    return isinstance(value, int) and not isinstance(value, bool) and 0 < value <= MAX_ID
 
 
 def _get(model: Any, queryset: Any, pk: Any, field: str) -> Any:
@@ -161,12 +210,19 @@ def unstorable(value: Any, path: str = "", numbers: bool = True) -> tuple[str, s
 def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
     user = batch.user
     org = user.organisation_id
-    job = _get(
-        Job,
-        Job.objects.filter(organisation_id=org).select_related("site__profile"),
-        data.get("job"),
-        "job",
-    )
+    run = batch.run
+    in_run = run is not None and data.get("job") == run.job_id
+    if run is not None and in_run:
+        if run.job is None:
+            raise RecordRejected({"job": ["Unknown job."]})
+        job = run.job
+    else:
+        job = _get(
+            Job,
+            Job.objects.filter(organisation_id=org).select_related("site__profile"),
+            data.get("job"),
+            "job",
+        )
     if job is None:
         raise RecordRejected({"job": ["Required."]})
     version = batch.lookup(ChecklistVersion, usable_versions(org), data.get("version"), "version")
@@ -192,6 +248,9 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
         drops=batch.drops_of(job),
         phone_clock_offset_s=batch.phone_clock_offset_s,
         defer_readiness=True,
+        job_locked=in_run,
+        uuid_unused=in_run and run is not None and client_uuid in run.unused_uuids,
+        open_hold_requirements=run.open_hold_requirements if in_run and run else None,
     )
     batch.pending_readiness.add(job.pk)
     return {
@@ -232,18 +291,27 @@ ACTIONS = {"start": services.start_job, "pause": services.pause_job, "close": se
 
 def _apply_job_action(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> dict[str, Any]:
     user = batch.user
-    job = _get(
-        Job, Job.objects.filter(organisation_id=user.organisation_id), data.get("job"), "job"
-    )
-    if job is None:
-        raise RecordRejected({"job": ["Required."]})
-    batch.settle(job.pk)
-    job.refresh_from_db()
+    run = batch.run
+    if run is not None and data.get("job") == run.job_id:
+        if run.job is None:
+            raise RecordRejected({"job": ["Unknown job."]})
+        batch.settle(run.job_id)
+        job = run.job
+    else:
+        job = _get(
+            Job, Job.objects.filter(organisation_id=user.organisation_id), data.get("job"), "job"
+        )
+        if job is None:
+            raise RecordRejected({"job": ["Required."]})
+        batch.settle(job.pk)
+        job.refresh_from_db()
     action = data.get("action")
     if not isinstance(action, str) or action not in ACTIONS:
         raise RecordRejected({"action": [f"One of {', '.join(ACTIONS)}."]})
     extra = {} if action == "start" else {"reason": str(data.get("reason", ""))[:2000]}
     job = ACTIONS[action](job=job, by=user, **extra)
+    if run is not None and run.job is not None and job.pk == run.job_id:
+        run.job = job  # the action's locked row, with the state it moved the job to
     return {"job": job.pk, "state": job.state}
 
 
@@ -280,9 +348,84 @@ def apply_batch(
         r.client_uuid: r for r in SyncReceipt.objects.filter(client_uuid__in=_uuids(records))
     }
     batch.receipts_loaded = True
-    results = [apply_record(batch, record) for record in records]
+    batch.preload(records)
+    results: list[dict[str, Any]] = []
+    start = 0
+    while start < len(records):
+        job_id = _job_named(records[start])
+        end = start + 1
+        if job_id is None:
+            results.append(apply_record(batch, records[start]))
+        else:
+            while end < len(records) and _job_named(records[end]) == job_id:
+                end += 1
+            results.extend(_apply_job_run(batch, job_id, records[start:end]))
+        start = end
     batch.settle()
     return results
+
+
+def _job_named(record: Any) -> int | None:
+    """The job a sheet or a job action names, if it is an id; else None (a drop log names a
+    drop, and a malformed record is refused on its own)."""
+    if not isinstance(record, dict) or record.get("type") not in ("sheet", "job_action"):
+        return None
+    data = record.get("data")
+    if not isinstance(data, dict):
+        return None
+    job_id = data.get("job")
+    return job_id if _is_id(job_id) else None
+
+
+def _apply_job_run(batch: Batch, job_id: int, records: list[Any]) -> list[dict[str, Any]]:
+    """Apply consecutive records of one job in one transaction (see the module's docstring).
+
+    The job's row is locked first, so a second request with the same records waits here and
+    then finds their receipts. Should one be written meanwhile all the same (a receipt's
+    client uuid is unique), the whole run rolls back and each record is applied on its own,
+    answering from the receipt the other request wrote.
+    """
+    uuids = [u for u in _uuids(records) if u not in batch.receipts]
+    known_before = dict(batch.receipts)
+    try:
+        with transaction.atomic():
+            job = (
+                Job.objects.select_for_update(of=("self",))
+                .select_related("site__profile")
+                .filter(organisation_id=batch.user.organisation_id, pk=job_id)
+                .first()
+            )
+            unused: set[uuid.UUID] = set()
+            open_holds: set[str] = set()
+            if job is not None and uuids:
+                # Receipts written while this request waited for the lock.
+                for receipt in SyncReceipt.objects.filter(client_uuid__in=uuids):
+                    batch.receipts[receipt.client_uuid] = receipt
+                used = set(
+                    CheckSheet.objects.filter(client_uuid__in=uuids).values_list(
+                        "client_uuid", flat=True
+                    )
+                )
+                unused = {u for u in uuids if u not in used and u not in batch.receipts}
+                open_holds = set(
+                    Hold.objects.filter(
+                        job=job, clearance__isnull=True, sheet__isnull=False
+                    ).values_list("requirement", flat=True)
+                )
+            batch.run = JobRun(
+                job_id=job_id, job=job, unused_uuids=unused, open_hold_requirements=open_holds
+            )
+            lines = [apply_record(batch, record) for record in records]
+            if batch.run.receipts:
+                SyncReceipt.objects.bulk_create(batch.run.receipts)
+            batch.settle(job_id)
+            batch.run = None
+            return lines
+    except IntegrityError:
+        batch.run = None
+        batch.receipts = known_before
+        batch.pending_readiness.discard(job_id)
+        return [apply_record(batch, record) for record in records]
 
 
 def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
@@ -353,7 +496,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
                     "rejected",
                 )
             if status == "applied":
-                batch.receipts[client_uuid] = SyncReceipt.objects.create(
+                receipt = SyncReceipt(
                     client_uuid=client_uuid,
                     kind=kind,
                     user=user,
@@ -362,6 +505,11 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
                     device_time=_device_time(data),
                     phone_clock_offset_s=batch.phone_clock_offset_s,
                 )
+                if batch.run is not None:
+                    batch.run.receipts.append(receipt)  # written with the run's last record
+                else:
+                    receipt.save()
+                batch.receipts[client_uuid] = receipt
     except IntegrityError:
         receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()
         if receipt is None:

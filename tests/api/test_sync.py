@@ -13,6 +13,7 @@ from checklists.models import CheckSheet, Photo
 from compliance.jobs.selectors import job_requirements
 from compliance.models import DropLog, JobTransition, SyncReceipt
 from tests.conftest import PASSING, client_for, fill_all
+from tests.factories import make_drop
 
 pytestmark = pytest.mark.django_db
 
@@ -283,3 +284,95 @@ def test_a_uuid_another_person_used_is_refused_in_a_batch(job, simple_checklists
         "errors": {"client_uuid": ["Already used."]},
     }
     assert SyncReceipt.objects.filter(client_uuid=record["client_uuid"]).count() == 1
+
+
+def morning_batch(job, versions, failing_kind: str | None = None) -> list[dict]:
+    """Every requirement's sheet for the job, as a phone queues them before work (one of a
+    kind failing first and re-checked at the end, when asked), then the start."""
+    records, recheck = [], None
+    for req in job_requirements(job):
+        entries = dict(PASSING[req.subject.kind])
+        if req.subject.kind == failing_kind and recheck is None:
+            key = next(iter(entries))
+            records.append(
+                sheet_record(
+                    job,
+                    versions[req.subject.kind],
+                    {**entries, key: {"value": "fail"}},
+                    req.subject,
+                )
+            )
+            recheck = sheet_record(job, versions[req.subject.kind], entries, req.subject)
+        else:
+            records.append(sheet_record(job, versions[req.subject.kind], entries, req.subject))
+    if recheck is not None:
+        records.append(recheck)
+    start = {
+        "type": "job_action",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {"job": job.pk, "action": "start"},
+    }
+    return [*records, start]
+
+
+def test_a_whole_morning_in_one_batch_holds_clears_and_starts(job, simple_checklists, operator):
+    """One transaction for the job's records: the robot's failed check holds the job at once,
+    the re-check later in the same batch clears the hold, readiness is settled before the
+    start, and the start finds the job cleared."""
+    body = sync(client_for(operator), morning_batch(job, simple_checklists, "robot"))
+    assert [r["status"] for r in body["results"]] == ["applied"] * len(body["results"])
+    assert body["results"][-1]["state"] == "working"
+    states = list(
+        JobTransition.objects.filter(job=job).order_by("pk").values_list("to_state", flat=True)
+    )
+    assert states == ["held", "cleared", "working"]
+    hold = job.holds.get()
+    assert hold.clearance.sheet.verdict == "pass"
+    assert SyncReceipt.objects.count() == len(body["results"])
+
+
+def test_records_of_two_jobs_interleaved_each_land_once(job, simple_checklists, operator):
+    from tests.factories import JobFactory
+
+    other = JobFactory(site=job.site, organisation=job.organisation)
+    make_drop(other)
+    records = [
+        site_record(job, simple_checklists),
+        site_record(other, simple_checklists),
+        site_record(
+            job,
+            simple_checklists,
+            {"zone_closed": {"value": "fail"}, "roof_wind": {"value": 6.5, "unit": "m/s"}},
+        ),
+    ]
+    client = client_for(operator)
+    first = sync(client, records)
+    assert [r["job"] for r in first["results"]] == [job.pk, other.pk, job.pk]
+    assert [r["verdict"] for r in first["results"]] == ["pass", "pass", "fail"]
+    again = sync(client, list(reversed(records)))
+    assert all(r["duplicate"] for r in again["results"])
+    assert CheckSheet.objects.filter(job=job).count() == 2
+    assert CheckSheet.objects.filter(job=other).count() == 1
+    assert job.holds.count() == 1 and other.holds.count() == 0
+
+
+def test_a_receipt_written_by_another_request_meanwhile_rolls_the_run_back_and_answers_once(
+    job, simple_checklists, operator
+):
+    """Two requests with the same records: the second normally waits on the job's lock and
+    then reads the first's receipts. Here it does not see them (the batch's reads of receipts
+    and used uuids find nothing), so the run's receipts collide with the other's at the end:
+    the run rolls back and each record is applied on its own, the other's answered from its
+    receipt. Each sheet is stored once."""
+    from unittest import mock
+
+    client = client_for(operator)
+    records = [site_record(job, simple_checklists) for _ in range(3)]
+    sync(client, records[1:2])  # "the other request" applied the second record
+    with mock.patch("compliance.jobs.sync._uuids", return_value=[]):
+        body = sync(client, records)
+    assert [r["status"] for r in body["results"]] == ["applied"] * 3
+    assert [r.get("duplicate", False) for r in body["results"]] == [False, True, False]
+    for record in records:
+        assert CheckSheet.objects.filter(client_uuid=record["client_uuid"]).count() == 1
+        assert SyncReceipt.objects.filter(client_uuid=record["client_uuid"]).count() == 1

@@ -13,9 +13,10 @@ from compliance.jobs import sync as sync_module
 from compliance.jobs.selectors import job_requirements
 from compliance.models import SyncReceipt
 from tests.conftest import PASSING, client_for
+from tests.factories import JobFactory, make_drop
 
 
-def batch_for(job, versions, size=3):
+def sheet_records(job, versions, size):
     """``size`` passing sheet records for the job's first requirements, in a fixed order."""
     records = []
     for req in job_requirements(job)[:size]:
@@ -29,18 +30,28 @@ def batch_for(job, versions, size=3):
             data["anchor"] = req.subject.anchor.pk
         if req.subject.equipment is not None:
             data["equipment"] = req.subject.equipment.pk
-        records.append({"type": "sheet", "client_uuid": str(uuid.uuid4()), "data": data})
+        records.append(
+            {"type": "sheet", "client_uuid": str(uuid.uuid4()), "data": data, "kind": req}
+        )
     assert len(records) == size
     return records
 
 
-def entries_per_record(job, versions, records):
-    return {
-        r["client_uuid"]: len(versions[kind].items)
-        for r, kind in zip(
-            records, [req.subject.kind for req in job_requirements(job)], strict=False
-        )
-    }
+def batch_for(job, versions):
+    """Three records: the first for a second job at the site, the next two for ``job``.
+
+    A batch's records for one job go in one transaction, committed when the job's records
+    end; so a fault on the second record leaves the first (another job's, committed) whole
+    and the second and third (this job's run, rolled back) without a trace."""
+    other = JobFactory(site=job.site, organisation=job.organisation, supervisor=job.supervisor)
+    make_drop(other)
+    return sheet_records(other, versions, 1) + sheet_records(job, versions, 2)
+
+
+def entries_per_record(versions, records):
+    """How many entries each record's sheet holds, by client uuid (and strip the helper key)."""
+    expected = {r["client_uuid"]: len(versions[r.pop("kind").subject.kind].items) for r in records}
+    return expected
 
 
 def assert_whole(records, expected_entries, applied):
@@ -85,8 +96,8 @@ FAULT_POINTS = {
     "apply": ("compliance.jobs.sync.APPLY", "sheet"),
     # after the sheet and its entries are written, before holds and readiness
     "outcome": ("checklists.services.apply_sheet_outcome", None),
-    # after everything is applied, while writing the receipt
-    "receipt": ("compliance.models.SyncReceipt.objects.create", None),
+    # after every record of the second job's run is applied, while writing their receipts
+    "receipt": ("compliance.models.SyncReceipt.objects.bulk_create", None),
 }
 
 
@@ -100,7 +111,9 @@ def patch_fault(point):
 
         return mock.patch(target, side_effect=fail_on_call(2, services.apply_sheet_outcome))
     return mock.patch.object(
-        SyncReceipt.objects, "create", side_effect=fail_on_call(2, SyncReceipt.objects.create)
+        SyncReceipt.objects,
+        "bulk_create",
+        side_effect=fail_on_call(2, SyncReceipt.objects.bulk_create),
     )
 
 
@@ -108,7 +121,7 @@ def patch_fault(point):
 @pytest.mark.parametrize("point", sorted(FAULT_POINTS))
 def test_connection_lost_on_the_second_record(job, simple_checklists, operator, point):
     records = batch_for(job, simple_checklists)
-    expected = entries_per_record(job, simple_checklists, records)
+    expected = entries_per_record(simple_checklists, records)
     client = client_for(operator)
     with patch_fault(point), pytest.raises(OperationalError):
         post(client, records)
@@ -131,6 +144,7 @@ def test_connection_lost_on_the_second_record(job, simple_checklists, operator, 
 def test_the_phone_sees_a_server_error_not_a_partial_answer(job, simple_checklists, operator):
     """Over HTTP the cut-off batch is a 5xx, so the phone keeps every record queued."""
     records = batch_for(job, simple_checklists)
+    entries_per_record(simple_checklists, records)
     client = APIClient(raise_request_exception=False)
     client.force_authenticate(operator)
     with patch_fault("outcome"):
@@ -149,7 +163,7 @@ def test_backend_killed_mid_batch_on_postgresql(job, simple_checklists, operator
     from checklists import services
 
     records = batch_for(job, simple_checklists)
-    expected = entries_per_record(job, simple_checklists, records)
+    expected = entries_per_record(simple_checklists, records)
     db = settings.DATABASES["default"]
     dsn = f"host={db['HOST']} port={db['PORT'] or 5432} user={db['USER']} dbname={db['NAME']}"
     calls = {"count": 0}
@@ -174,4 +188,20 @@ def test_backend_killed_mid_batch_on_postgresql(job, simple_checklists, operator
 
     results = post(client, records).json()["results"]
     assert [r.get("duplicate", False) for r in results] == [True, False, False]
+    assert_whole(records, expected, applied={r["client_uuid"] for r in records})
+
+
+@pytest.mark.django_db
+def test_a_fault_in_a_jobs_run_leaves_none_of_its_records(job, simple_checklists, operator):
+    """Every record of one job: a fault on the second rolls back the first too (they share the
+    job's transaction), so the phone, which got a 5xx, resends all three and each lands once."""
+    records = sheet_records(job, simple_checklists, 3)
+    expected = entries_per_record(simple_checklists, records)
+    client = client_for(operator)
+    with patch_fault("outcome"), pytest.raises(OperationalError):
+        post(client, records)
+    assert_whole(records, expected, applied=set())
+    results = post(client, records).json()["results"]
+    assert [r["status"] for r in results] == ["applied"] * 3
+    assert not any(r.get("duplicate") for r in results)
     assert_whole(records, expected, applied={r["client_uuid"] for r in records})

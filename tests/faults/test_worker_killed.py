@@ -28,7 +28,12 @@ from compliance.records.files import sweep_orphan_pdfs
 from compliance.tasks import render_daily_record
 from tests.faults.conftest import sign_closed_job
 
-pytestmark = [pytest.mark.redis, pytest.mark.postgres, pytest.mark.django_db(transaction=True)]
+pytestmark = [
+    pytest.mark.redis,
+    pytest.mark.postgres,
+    pytest.mark.django_db(transaction=True),
+    pytest.mark.xdist_group("broker"),  # one test at a time on the broker (see pyproject)
+]
 
 ROOT = Path(__file__).resolve().parents[2]
 VISIBILITY_TIMEOUT_S = 3

@@ -68,6 +68,7 @@ def test_certifications_and_inspections_falling_due(job):
 
 
 @pytest.mark.redis
+@pytest.mark.xdist_group("broker")  # one test at a time on the broker (see pyproject)
 @pytest.mark.django_db(transaction=True)
 def test_a_real_worker_renders_through_redis(simple_checklists, tmp_path, settings):
     """With CELERY_BROKER_URL set (as in .ci/run), the task travels through Redis to a worker."""
