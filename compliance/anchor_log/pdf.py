@@ -4,7 +4,6 @@ verifier can draw it again and compare the pages with a signed copy."""
 import io
 from typing import Any
 
-import rfc8785
 from pypdf import PdfReader, PdfWriter
 from reportlab.graphics.shapes import Circle, Drawing, Polygon, Rect, String
 from reportlab.lib import colors
@@ -13,6 +12,7 @@ from reportlab.lib.units import mm
 from reportlab.platypus import SimpleDocTemplate, Spacer
 
 from compliance.records.pdf import ATTACHMENT_NAME, SEAL_LABEL, _NumberedCanvas, _p, _styles, _table
+from compliance.records.sealing import canonical_bytes
 
 FORMAT = "parapet.anchor-log-book/1"
 CAUTION = (
@@ -163,7 +163,7 @@ def render(document: dict[str, Any], seal: str) -> bytes:
     )
     doc.build(story, canvasmaker=_NumberedCanvas)
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(buffer.getvalue())))
-    writer.add_attachment(ATTACHMENT_NAME, rfc8785.dumps(document))
+    writer.add_attachment(ATTACHMENT_NAME, canonical_bytes(document))
     out = io.BytesIO()
     writer.write(out)
     return out.getvalue()

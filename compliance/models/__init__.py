@@ -15,7 +15,13 @@ from compliance.models.jobs import (
 )
 from compliance.models.people import Organisation, Role, User
 from compliance.models.profiles import JurisdictionProfile, ProfileRevision
-from compliance.models.records import DailyRecord, RecordChainHead, RecordPdf, SigningCredential
+from compliance.models.records import (
+    DailyRecord,
+    PageCheck,
+    RecordChainHead,
+    RecordPdf,
+    SigningCredential,
+)
 from compliance.models.registers import (
     Anchor,
     AnchorCertification,
@@ -45,6 +51,7 @@ __all__ = [
     "Notice",
     "NoticeEmail",
     "Organisation",
+    "PageCheck",
     "ProfileRevision",
     "RecordChainHead",
     "RecordPdf",

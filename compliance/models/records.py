@@ -124,3 +124,32 @@ class RecordPdf(AppendOnlyModel):
     sha256 = models.CharField(max_length=64)
     size_bytes = models.PositiveIntegerField()
     created_at = models.DateTimeField(auto_now_add=True)
+
+
+class PageCheck(models.Model):
+    """A page check that passed: the PDF whose bytes hash to ``pdf_sha256`` shows exactly what
+    the record sealed as ``seal`` draws to (compliance/records/page_check.py).
+
+    The check draws the whole record again (seconds for a long day); its answer for the same
+    bytes, seal and method never changes, so a passed check is kept and the same file is not
+    drawn again on every verification. ``mac`` is an HMAC of the row under a key derived from
+    the server's secret key: a row written into the database by someone without that key (an
+    insider with database access, a restored dump from elsewhere) fails it and is ignored, and
+    the file is drawn and compared again. Only passes are kept; a failure is always recomputed.
+    """
+
+    pdf_sha256 = models.CharField(max_length=64)
+    seal = models.CharField(max_length=64)
+    method = models.CharField(max_length=40)
+    checked_at = models.DateTimeField(auto_now_add=True)
+    mac = models.CharField(max_length=64)
+
+    class Meta:
+        constraints = [
+            models.UniqueConstraint(
+                fields=["pdf_sha256", "seal", "method"], name="one_page_check_per_file"
+            ),
+        ]
+
+    def __str__(self) -> str:
+        return f"pages of {self.pdf_sha256[:12]} match record {self.seal[:12]}"

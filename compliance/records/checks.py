@@ -2,12 +2,22 @@
 against the stored record, its rows, its organisation's chain and registered certificates, on
 top of the bytes-only checks of the verifier."""
 
+import datetime as dt
 import hashlib
 import json
 from typing import Any
 
+from django.db import IntegrityError, transaction
+from django.utils.crypto import constant_time_compare, salted_hmac
+
 from compliance.anchor_log.services import verify_log_chain
-from compliance.models import AnchorLogEntry, DailyRecord, Organisation, SigningCredential
+from compliance.models import (
+    AnchorLogEntry,
+    DailyRecord,
+    Organisation,
+    PageCheck,
+    SigningCredential,
+)
 from compliance.records.services import (
     sealed_column_problems,
     verify_against_database,
@@ -19,6 +29,45 @@ from compliance.records.verifier import verify_export as verify_export_bytes
 from compliance.records.verifier import verify_pdf as verify_pdf_bytes
 
 __all__ = ["Report", "TrustList", "organisation_trust", "verify_export", "verify_pdf"]
+
+
+PAGE_CHECK_METHOD = "redraw-compare/1"
+"""Names the page comparison of compliance/records/page_check.py; change it when the comparison
+changes, and every kept pass is checked again."""
+
+
+class StoredPageChecks:
+    """Passed page checks kept in the database (PageCheck), each row under an HMAC."""
+
+    @staticmethod
+    def _mac(pdf_sha256: str, seal: str) -> str:
+        return salted_hmac(
+            "parapet.page-check",
+            f"{PAGE_CHECK_METHOD}:{pdf_sha256}:{seal}",
+            algorithm="sha256",
+        ).hexdigest()
+
+    def passed_before(self, pdf_sha256: str, seal: str) -> str | None:
+        row = (
+            PageCheck.objects.filter(pdf_sha256=pdf_sha256, seal=seal, method=PAGE_CHECK_METHOD)
+            .values("mac", "checked_at")
+            .first()
+        )
+        if row is None or not constant_time_compare(row["mac"], self._mac(pdf_sha256, seal)):
+            return None
+        at = row["checked_at"].astimezone(dt.UTC)
+        return f"when it was first checked here, {at:%Y-%m-%d %H:%M} UTC"
+
+    def remember(self, pdf_sha256: str, seal: str) -> None:
+        """Keep a pass (a cache of the comparison, not a record: rewriting a row whose HMAC
+        fails is allowed)."""
+        key = {"pdf_sha256": pdf_sha256, "seal": seal, "method": PAGE_CHECK_METHOD}
+        mac = self._mac(pdf_sha256, seal)
+        try:
+            with transaction.atomic():
+                PageCheck.objects.create(**key, mac=mac)
+        except IntegrityError:  # kept by another verification, or a row whose HMAC failed
+            PageCheck.objects.filter(**key).update(mac=mac)
 
 
 def organisation_trust(organisation_id: int) -> TrustList:
@@ -94,7 +143,8 @@ def check_database(report: Report, seal: str) -> Any:
             " with an old key.",
         )
         return record
-    columns = sealed_column_problems(record)
+    document = json.loads(record.canonical_json)  # read once for the checks below
+    columns = sealed_column_problems(record, document)
     if columns:
         report.add(
             "stored_columns_sealed",
@@ -108,7 +158,7 @@ def check_database(report: Report, seal: str) -> Any:
         True,
         "Organisation, site, job, signer, meaning, time and place in the chain are as sealed.",
     )
-    differences = verify_against_database(record)
+    differences = verify_against_database(record, document)
     if differences:
         shown = ", ".join(differences[:3]) + (" …" if len(differences) > 3 else "")
         report.add(
@@ -217,6 +267,7 @@ def verify_pdf(
         trust=trust,
         name=name,
         database=_database_checks if use_database else None,
+        memory=StoredPageChecks() if use_database else None,
     )
 
 

@@ -16,7 +16,6 @@ import zipfile
 from dataclasses import dataclass
 from typing import Any
 
-import rfc8785
 from django.core.exceptions import ValidationError
 from django.db.models import Max, Min, Q
 
@@ -34,6 +33,7 @@ from compliance.records.sealing import (
     EXPORT_FORMAT,
     EXPORT_MANIFEST,
     EXPORT_MANIFEST_SIGNATURE,
+    canonical_bytes,
     merkle_root,
 )
 from compliance.records.signing import active_credential, sha256_hex, sign_seal
@@ -217,7 +217,7 @@ def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) 
                 " organisations' certificate fingerprints or CA (no database needed)"
             ),
         }
-        raw = rfc8785.dumps(manifest)
+        raw = canonical_bytes(manifest)
         credential = active_credential(exporter.pk)
         archive.writestr(MANIFEST, raw)
         archive.writestr(

@@ -21,7 +21,6 @@ from xml.sax.saxutils import escape
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import reportlab
-import rfc8785
 from pypdf import PdfReader, PdfWriter
 from reportlab.graphics.barcode.qr import QrCodeWidget
 from reportlab.graphics.shapes import Circle, Drawing, Line, PolyLine, Rect, String
@@ -45,6 +44,7 @@ from reportlab.platypus import (
 )
 
 from compliance.engineering.working import whole_pct
+from compliance.records.sealing import canonical_bytes
 
 ATTACHMENT_NAME = "daily-record.json"
 SEAL_LABEL = "Seal (SHA-256 of the attached canonical JSON):"
@@ -441,7 +441,7 @@ def _title(document: dict[str, Any]) -> str:
 
 def _attach(pdf: bytes, document: dict[str, Any]) -> bytes:
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(pdf)))
-    writer.add_attachment(ATTACHMENT_NAME, rfc8785.dumps(document))
+    writer.add_attachment(ATTACHMENT_NAME, canonical_bytes(document))
     out = io.BytesIO()
     writer.write(out)
     return out.getvalue()

@@ -20,7 +20,6 @@ from typing import Any
 
 from django.conf import settings
 from django.db import transaction
-from django.db.models import Prefetch
 from django.utils import timezone
 
 from checklists.models import CheckSheet, ItemEntry, Photo
@@ -69,20 +68,41 @@ MEANINGS = {
 }
 
 
-def _entry(entry: ItemEntry, labels: dict[str, str] | None) -> dict[str, Any]:
-    labelled = {} if labels is None else {"label": labels.get(entry.item_key, entry.item_key)}
+ENTRY_COLUMNS = (
+    "sheet_id",
+    "item_key",
+    "kind",
+    "blocking",
+    "value",
+    "unit",
+    "verdict",
+    "margin",
+    "message",
+    "working",
+)
+
+
+def _entry(entry: dict[str, Any], labels: dict[str, str] | None) -> dict[str, Any]:
+    """An entry as sealed, from its row's ENTRY_COLUMNS (plain values: a 30-sheet day has
+    1,200 entries, and building a model instance for each was the largest cost of a day)."""
+    key = entry["item_key"]
+    labelled = {} if labels is None else {"label": labels.get(key, key)}
     return {
         **labelled,
-        "item": entry.item_key,
-        "kind": entry.kind,
-        "blocking": entry.blocking,
-        "value": entry.value,
-        "unit": entry.unit,
-        "verdict": entry.verdict,
-        "margin": entry.margin,
-        "message": entry.message,
-        "working": entry.working,
+        "item": key,
+        "kind": entry["kind"],
+        "blocking": entry["blocking"],
+        "value": entry["value"],
+        "unit": entry["unit"],
+        "verdict": entry["verdict"],
+        "margin": entry["margin"],
+        "message": entry["message"],
+        "working": entry["working"],
     }
+
+
+def _item_labels(items: list[dict[str, Any]]) -> dict[str, str]:
+    return {i["key"]: str(i.get("label", i["key"])) for i in items}
 
 
 def _person(user: User | None) -> dict[str, Any] | None:
@@ -120,9 +140,11 @@ def day_content(
     sheets = list(
         CheckSheet.objects.filter(job=job)
         .select_related("version__checklist", "filled_by", "anchor", "equipment")
-        .prefetch_related(Prefetch("entries", queryset=ItemEntry.objects.order_by("id")))
         .order_by("id")
     )
+    entries: dict[int, list[dict[str, Any]]] = {s.pk: [] for s in sheets}
+    for row in ItemEntry.objects.filter(sheet__job=job).order_by("id").values(*ENTRY_COLUMNS):
+        entries[row["sheet_id"]].append(row)
     holds = list(Hold.objects.filter(job=job).select_related("clearance").order_by("id"))
     transitions = list(JobTransition.objects.filter(job=job).select_related("by").order_by("id"))
     logs = list(DropLog.objects.filter(drop__job=job).select_related("drop", "by").order_by("id"))
@@ -165,11 +187,17 @@ def day_content(
                 else None,
             }
     weather = [
-        {"sheet": s.pk, "item": e.item_key, "value": e.value, "unit": e.unit, "verdict": e.verdict}
+        {
+            "sheet": s.pk,
+            "item": e["item_key"],
+            "value": e["value"],
+            "unit": e["unit"],
+            "verdict": e["verdict"],
+        }
         for s in sheets
         if s.version.checklist.key == "weather"
-        for e in s.entries.all()
-        if e.kind in ("reading", "calc")
+        for e in entries[s.pk]
+        if e["kind"] in ("reading", "calc")
     ]
     return {
         "site": {
@@ -231,13 +259,9 @@ def day_content(
                 "blocking_failures": s.blocking_failures,
                 "remarks": s.remarks,
                 "entries": [
-                    _entry(
-                        e,
-                        {i["key"]: str(i.get("label", i["key"])) for i in s.version.items}
-                        if labelled
-                        else None,
-                    )
-                    for e in s.entries.all()
+                    _entry(e, labels)
+                    for labels in [_item_labels(s.version.items) if labelled else None]
+                    for e in entries[s.pk]
                 ],
             }
             for s in sheets
@@ -662,10 +686,13 @@ def verify_chain(organisation_id: int, site_id: int) -> ChainReport:
     return report
 
 
-def sealed_column_problems(record: DailyRecord) -> list[str]:
+def sealed_column_problems(
+    record: DailyRecord, document: dict[str, Any] | None = None
+) -> list[str]:
     """The stored columns that disagree with what the record's seal covers (who signed, when,
-    with what meaning and key, for which organisation, site and job, and where in the chain)."""
-    doc = json.loads(record.canonical_json)
+    with what meaning and key, for which organisation, site and job, and where in the chain).
+    ``document`` is the record's canonical JSON already parsed, if the caller has it."""
+    doc = json.loads(record.canonical_json) if document is None else document
     signature = doc.get("signature") or {}
     job_id = (
         (doc.get("record") or {}).get("job", {}).get("id")
@@ -719,7 +746,9 @@ def _safety_view(content: dict[str, Any]) -> dict[str, Any]:
     return view
 
 
-def verify_against_database(record: DailyRecord) -> list[str]:
+def verify_against_database(
+    record: DailyRecord, document: dict[str, Any] | None = None
+) -> list[str]:
     """Compare a sealed record with the safety rows behind it today; return the differing paths.
 
     Certifications are taken as the record names them (they are append-only: a renewal adds a
@@ -728,7 +757,8 @@ def verify_against_database(record: DailyRecord) -> list[str]:
     """
     if record.kind != DailyRecord.Kind.RECORD:
         return []
-    document = json.loads(record.canonical_json)
+    if document is None:
+        document = json.loads(record.canonical_json)
     sealed = document["record"]
     certifications = {
         a["id"]: (a.get("certification") or {}).get("id") for a in sealed.get("anchors") or []

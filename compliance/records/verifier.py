@@ -15,9 +15,8 @@ import json
 import zipfile
 from collections.abc import Callable
 from dataclasses import asdict, dataclass, field, replace
-from typing import Any
+from typing import Any, Protocol
 
-import rfc8785
 from asn1crypto import pem as asn1_pem
 from asn1crypto import x509 as asn1_x509
 from pyhanko.pdf_utils.reader import PdfFileReader
@@ -29,7 +28,7 @@ from compliance.anchor_log import pdf as log_book_pdf
 from compliance.records import pdf as record_pdf
 from compliance.records.page_check import Renderer, differing_pages
 from compliance.records.pdf import printed_seal, read_attachment
-from compliance.records.sealing import EXPORT_FORMAT, merkle_root
+from compliance.records.sealing import EXPORT_FORMAT, canonical_bytes, merkle_root
 from compliance.records.sealing import EXPORT_MANIFEST as MANIFEST
 from compliance.records.sealing import EXPORT_MANIFEST_SIGNATURE as MANIFEST_SIGNATURE
 from compliance.records.signatures import verify_seal_signature
@@ -283,7 +282,7 @@ def check_content(report: Report, data: bytes) -> dict[str, Any] | None:
         report.add("record_attached", False, "The attached record is not valid JSON.")
         return None
     report.add("record_attached", True, "The canonical record is attached.")
-    if rfc8785.dumps(document) != attached:
+    if canonical_bytes(document) != attached:
         report.add(
             "record_canonical", False, "The attached record is not in canonical form (RFC 8785)."
         )
@@ -321,9 +320,36 @@ RECORD_FORMATS = {
 }
 
 
-def check_pages(report: Report, data: bytes, document: dict[str, Any]) -> bool:
+class PageMemory(Protocol):
+    """Where passed page checks are kept (on the server, compliance.records.checks)."""
+
+    def passed_before(self, pdf_sha256: str, seal: str) -> str | None:
+        """When these very bytes passed against this seal, in words; None if never (or if the
+        kept row cannot be vouched for)."""
+
+    def remember(self, pdf_sha256: str, seal: str) -> None:
+        """Keep a pass."""
+
+
+def check_pages(
+    report: Report, data: bytes, document: dict[str, Any], memory: PageMemory | None = None
+) -> bool:
     """The pages say what the sealed document says: the document is drawn again with the same
-    deterministic layout and compared page by page with the signed file (see page_check)."""
+    deterministic layout and compared page by page with the signed file (see page_check).
+
+    With ``memory``, a file whose exact bytes passed before against the same seal is not drawn
+    again: the comparison's answer for the same bytes and seal cannot change."""
+    digest = hashlib.sha256(data).hexdigest()
+    seal = report.seal or ""
+    when = memory.passed_before(digest, seal) if memory is not None else None
+    if when is not None:
+        return report.add(
+            "pages_match_record",
+            True,
+            "Every page shows exactly what the sealed record draws to (text, figures, fonts,"
+            f" images and layout): this exact file (SHA-256 {digest[:16]}…) was drawn again and"
+            f" compared page by page {when}.",
+        )
     renderer = _renderer(document)
     if renderer is None:
         return report.add(
@@ -348,6 +374,8 @@ def check_pages(report: Report, data: bytes, document: dict[str, Any]) -> bool:
             "The pages do not show what the sealed record says: they were drawn or edited"
             f" apart from it ({shown}).",
         )
+    if memory is not None:
+        memory.remember(digest, seal)
     return report.add(
         "pages_match_record",
         True,
@@ -367,6 +395,7 @@ def verify_pdf(
     trust: TrustList | None = None,
     name: str = "this PDF",
     database: DatabaseCheck | None = None,
+    memory: PageMemory | None = None,
 ) -> Report:
     """Check a record or log-book PDF from its bytes: signature, seal, pages. VERIFIED needs a
     trust anchor: `trust` (or the PEMs in `trusted_pems`), or the one `database` finds for the
@@ -381,7 +410,7 @@ def verify_pdf(
     if document is None:
         return report
     report.document = document
-    if not check_pages(report, data, document):
+    if not check_pages(report, data, document, memory):
         return report
     if database is not None:
         found = database(report, document)
@@ -466,7 +495,7 @@ def verify_export(
         why = str(exc) if "inflate" in str(exc) else type(exc).__name__
         report.add("manifest", False, f"The export has no readable, signed manifest ({why}).")
         return report
-    if rfc8785.dumps(manifest) != raw:
+    if canonical_bytes(manifest) != raw:
         report.add("manifest", False, "The manifest is not in canonical form: it was rewritten.")
         return report
     fingerprint = hashlib.sha256(signer_cert.dump()).hexdigest()

@@ -5,6 +5,7 @@ signing key) would make them: by raw SQL behind the ORM's append-only guard.
 """
 
 import datetime as dt
+import hashlib
 import io
 import json
 import shutil
@@ -396,3 +397,31 @@ def test_the_genuine_pages_match_offline_too(signed, signed_pdf):
     report = verify_pdf(signed_pdf, use_database=False)
     check = next(c for c in report.checks if c.name == "pages_match_record")
     assert check.ok
+
+
+def test_a_pass_written_into_the_database_for_lying_pages_is_not_believed(signed):
+    """The kept page checks are a cache an insider could write to: a row for a forged file,
+    without the server's HMAC, is ignored; the pages are drawn again and the lie is caught."""
+    from compliance.records.checks import PAGE_CHECK_METHOD
+
+    forged = _false_pages(signed, _remarks)
+    digest = hashlib.sha256(forged).hexdigest()
+    _sql(
+        "INSERT INTO compliance_pagecheck (pdf_sha256, seal, method, checked_at, mac)"
+        " VALUES (%s, %s, %s, %s, %s)",
+        [digest, signed.seal, PAGE_CHECK_METHOD, dt.datetime.now(dt.UTC), "0" * 64],
+    )
+    report = verify_pdf(forged)
+    assert not report.ok
+    assert report.first_failure.name == "pages_match_record"
+
+
+def test_a_failed_page_check_is_never_kept_and_a_pass_is_kept_once(signed, signed_pdf):
+    from compliance.models import PageCheck
+
+    verify_pdf(_false_pages(signed, _signer))
+    assert PageCheck.objects.count() == 0
+    assert verify_pdf(signed_pdf).ok
+    assert verify_pdf(signed_pdf).ok
+    kept = PageCheck.objects.get()
+    assert kept.pdf_sha256 == hashlib.sha256(signed_pdf).hexdigest() and kept.seal == signed.seal
