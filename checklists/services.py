@@ -391,8 +391,11 @@ def record_sheet(
     except EntryError as exc:
         raise ValidationError({exc.field: exc.message}) from None
     _check_storable(outcome)
+    # A sync batch's run gives each record a savepoint of its own and has looked for the uuid
+    # under the job's lock: a second savepoint here would only cost two statements.
+    savepoint = not (job_locked and uuid_unused)
     try:
-        with transaction.atomic():
+        with transaction.atomic(savepoint=savepoint):
             sheet = CheckSheet.objects.create(
                 client_uuid=client_uuid,
                 job=job,
@@ -408,7 +411,7 @@ def record_sheet(
                 blocking_failures=len(outcome.blocking_failures),
                 remarks=remarks,
             )
-            ItemEntry.objects.bulk_create(
+            created = ItemEntry.objects.bulk_create(
                 [
                     ItemEntry(
                         sheet=sheet,
@@ -435,8 +438,10 @@ def record_sheet(
                 open_hold_requirements=open_hold_requirements,
             )
             if subject_kind == "anchor":
-                log_pre_use_check(sheet)
+                log_pre_use_check(sheet, entries=created)
     except IntegrityError:
+        if not savepoint:  # the caller's savepoint rolls back, and it answers the retry
+            raise
         # A concurrent retry of the same batch won the race: return its copy.
         existing = CheckSheet.objects.filter(client_uuid=client_uuid).first()
         if existing is None:

@@ -12,12 +12,13 @@ Lock order is jobs (by id) before the site, as a sheet's transaction takes them.
 """
 
 import datetime as dt
+from collections.abc import Sequence
 from typing import Any
 
 from django.db import transaction
 from django.utils import timezone
 
-from checklists.models import CheckSheet
+from checklists.models import CheckSheet, ItemEntry
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.jobs.holds import clear_for_returned_anchor, hold_for_removed_anchor, jobs_using
 from compliance.models import (
@@ -186,10 +187,14 @@ def record_entry(
     return entry
 
 
-def log_pre_use_check(sheet: CheckSheet) -> AnchorLogEntry:
-    """Copy a contractor's anchor pre-use sheet into the building's log book."""
+def log_pre_use_check(
+    sheet: CheckSheet, entries: Sequence[ItemEntry] | None = None
+) -> AnchorLogEntry:
+    """Copy a contractor's anchor pre-use sheet into the building's log book (``entries`` are
+    the sheet's entries, when the caller has just written them)."""
     assert sheet.anchor is not None
-    failed = [e for e in sheet.entries.all() if e.verdict == "fail"]
+    written = sheet.entries.all() if entries is None else entries
+    failed = [e for e in written if e.verdict == "fail"]
     details = (
         "All items passed."
         if not failed

@@ -22,7 +22,7 @@ from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.verdicts import ItemResult
-from compliance.jobs.selectors import job_blockers
+from compliance.jobs.selectors import job_blockers, open_holds
 from compliance.models import (
     OPEN_STATES,
     Anchor,
@@ -93,9 +93,10 @@ def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = N
     """Move a held or planned job to cleared (or back to planned) from what it now has."""
     if job.state not in (JobState.PLANNED, JobState.HELD, JobState.CLEARED):
         return job
-    if Hold.objects.filter(job=job, clearance__isnull=True).exists():
+    holds = open_holds(job)
+    if holds:
         return job
-    ready = not job_blockers(job, drops)
+    ready = not job_blockers(job, drops, holds=holds)
     if job.state == JobState.HELD:
         target = JobState.CLEARED if ready else JobState.PLANNED
         return transition(job, target, by, "Every hold cleared by a passing re-check.")

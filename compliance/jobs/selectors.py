@@ -85,7 +85,14 @@ def _status_entries() -> QuerySet[AnchorLogEntry]:
 def drops_of(job: Job) -> list[Drop]:
     return list(
         Drop.objects.filter(job=job)
-        .select_related("robot", "tether", "safety_line", "hose", "anchor", "safety_anchor")
+        .select_related(
+            "robot",
+            "tether",
+            "safety_line",
+            "hose",
+            "anchor__site",
+            "safety_anchor__site",
+        )
         .prefetch_related(
             Prefetch("anchor__certifications", queryset=AnchorCertification.objects.all()),
             Prefetch("safety_anchor__certifications", queryset=AnchorCertification.objects.all()),
@@ -136,14 +143,18 @@ def open_holds(job: Job) -> list[Hold]:
 
 
 def job_blockers(
-    job: Job, drops: list[Drop] | None = None, requirements: list[Requirement] | None = None
+    job: Job,
+    drops: list[Drop] | None = None,
+    requirements: list[Requirement] | None = None,
+    holds: list[Hold] | None = None,
 ) -> list[Reason]:
-    """Everything that keeps the job from starting, in plain words."""
+    """Everything that keeps the job from starting, in plain words (``drops``,
+    ``requirements`` and ``holds`` when the caller has read them)."""
     drops = drops_of(job) if drops is None else drops
     reasons: list[Reason] = []
     if not drops:
         reasons.append(Reason("no_drops", "No drops are planned for this job."))
-    for hold in open_holds(job):
+    for hold in open_holds(job) if holds is None else holds:
         reasons.append(Reason("open_hold", f"Stop work: {hold.reason}", hold.requirement))
     profile = job.site.profile
     min_capacity = profile.threshold("min_anchor_capacity_kn")

@@ -19,7 +19,7 @@ from django.db import IntegrityError, transaction
 from django.utils import timezone
 from django.utils.dateparse import parse_datetime
 
-from checklists.models import ChecklistVersion, CheckSheet
+from checklists.models import ChecklistVersion
 from checklists.selectors import usable_versions
 from checklists.services import record_sheet
 from compliance.errors import DomainError, rejection_for
@@ -235,6 +235,12 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
     remarks = data.get("remarks", "")
     if not isinstance(remarks, str) or len(remarks) > 4000:
         raise RecordRejected({"remarks": ["A text of at most 4000 characters."]})
+    drops = batch.drops_of(job)
+    if anchor is not None:
+        # The same anchor as the job's drops read it, certifications and log prefetched.
+        anchor = next(
+            (a for d in drops for a in (d.anchor, d.safety_anchor) if a.pk == anchor.pk), anchor
+        )
     sheet, _ = record_sheet(
         job=job,
         version=version,
@@ -245,7 +251,7 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
         equipment=equipment,
         device_time=_device_time(data),
         remarks=remarks,
-        drops=batch.drops_of(job),
+        drops=drops,
         phone_clock_offset_s=batch.phone_clock_offset_s,
         defer_readiness=True,
         job_locked=in_run,
@@ -343,10 +349,15 @@ def apply_batch(
     offset = None if sent_at is None else round((sent_at - timezone.now()).total_seconds())
     batch = Batch(user=user, phone_clock_offset_s=offset)
     # The receipts of records sent before, all in one read; a record that another request
-    # applies meanwhile still meets the receipt's unique client uuid (see apply_record).
-    batch.receipts = {
-        r.client_uuid: r for r in SyncReceipt.objects.filter(client_uuid__in=_uuids(records))
-    }
+    # applies meanwhile still meets the receipt's unique client uuid (see apply_record). The
+    # records of a job's run are looked up again under the job's lock, so this read covers
+    # only the others (none, in a morning's batch of sheets).
+    alone = [r for r in records if _job_named(r) is None]
+    wanted = _uuids(alone)
+    if wanted:
+        batch.receipts = {
+            r.client_uuid: r for r in SyncReceipt.objects.filter(client_uuid__in=wanted)
+        }
     batch.receipts_loaded = True
     batch.preload(records)
     results: list[dict[str, Any]] = []
@@ -397,16 +408,16 @@ def _apply_job_run(batch: Batch, job_id: int, records: list[Any]) -> list[dict[s
             )
             unused: set[uuid.UUID] = set()
             open_holds: set[str] = set()
-            if job is not None and uuids:
-                # Receipts written while this request waited for the lock.
+            if uuids:
+                # Receipts of records sent before, or written while this request waited for
+                # the lock.
                 for receipt in SyncReceipt.objects.filter(client_uuid__in=uuids):
                     batch.receipts[receipt.client_uuid] = receipt
-                used = set(
-                    CheckSheet.objects.filter(client_uuid__in=uuids).values_list(
-                        "client_uuid", flat=True
-                    )
-                )
-                unused = {u for u in uuids if u not in used and u not in batch.receipts}
+            if job is not None and uuids:
+                # A uuid with no receipt is taken as unused: a sheet made with it some other
+                # way (POST /sheets/) clashes on insert, and the run is applied record by
+                # record instead (below).
+                unused = {u for u in uuids if u not in batch.receipts}
                 open_holds = set(
                     Hold.objects.filter(
                         job=job, clearance__isnull=True, sheet__isnull=False

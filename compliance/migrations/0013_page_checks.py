@@ -4,24 +4,32 @@ from django.db import migrations, models
 
 
 class Migration(migrations.Migration):
-
     dependencies = [
-        ('compliance', '0012_certificate_file_digest'),
+        ("compliance", "0012_certificate_file_digest"),
     ]
 
     operations = [
         migrations.CreateModel(
-            name='PageCheck',
+            name="PageCheck",
             fields=[
-                ('id', models.BigAutoField(auto_created=True, primary_key=True, serialize=False, verbose_name='ID')),
-                ('pdf_sha256', models.CharField(max_length=64)),
-                ('seal', models.CharField(max_length=64)),
-                ('method', models.CharField(max_length=40)),
-                ('checked_at', models.DateTimeField(auto_now_add=True)),
-                ('mac', models.CharField(max_length=64)),
+                (
+                    "id",
+                    models.BigAutoField(
+                        auto_created=True, primary_key=True, serialize=False, verbose_name="ID"
+                    ),
+                ),
+                ("pdf_sha256", models.CharField(max_length=64)),
+                ("seal", models.CharField(max_length=64)),
+                ("method", models.CharField(max_length=40)),
+                ("checked_at", models.DateTimeField(auto_now_add=True)),
+                ("mac", models.CharField(max_length=64)),
             ],
             options={
-                'constraints': [models.UniqueConstraint(fields=('pdf_sha256', 'seal', 'method'), name='one_page_check_per_file')],
+                "constraints": [
+                    models.UniqueConstraint(
+                        fields=("pdf_sha256", "seal", "method"), name="one_page_check_per_file"
+                    )
+                ],
             },
         ),
     ]

@@ -105,14 +105,14 @@ EXPECTED: dict[str, int] = {
     "record-verify": 2,  # the record, its PDF: the stand-in PDF stops the verifier at once
     "record-export": 9,  # organisations, ranges, heads, records, certificates, and the rest
     # One batch of passing site sheets for one job, applied in one transaction with the job
-    # locked: the batch reads its receipts and versions once, the job's run reads its lock,
-    # receipts, used uuids, open holds and drops once, writes the receipts together and settles
-    # readiness once. Each record costs SYNC_PER_RECORD: its savepoint and the sheet's (two
-    # statements each) and the two inserts (sheet, entries).
-    "sync-1-record": 25,
-    "sync-20-records": 139,
+    # locked: the batch reads its versions once; the job's run reads its lock, receipts, open
+    # holds and drops once, writes the receipts together and settles readiness once. Each
+    # record costs SYNC_PER_RECORD: its savepoint (two statements) and the sheet's two inserts
+    # (the sheet, its entries).
+    "sync-1-record": 20,
+    "sync-20-records": 96,
 }
-SYNC_PER_RECORD = 6
+SYNC_PER_RECORD = 4
 
 KNOWN_N_PLUS_1: dict[str, str] = {}
 """Reads whose count grows with the tables, each with its cause: the grown data set is an

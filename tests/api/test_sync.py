@@ -376,3 +376,28 @@ def test_a_receipt_written_by_another_request_meanwhile_rolls_the_run_back_and_a
     for record in records:
         assert CheckSheet.objects.filter(client_uuid=record["client_uuid"]).count() == 1
         assert SyncReceipt.objects.filter(client_uuid=record["client_uuid"]).count() == 1
+
+
+def test_a_uuid_a_sheet_was_made_with_another_way_is_answered_with_that_sheet(
+    job, simple_checklists, operator
+):
+    """The run takes a uuid with no receipt as unused; a sheet made with it outside sync (the
+    sheets endpoint) clashes on insert, the run is rolled back and applied record by record,
+    and the record is answered with the sheet that exists. Nothing is stored twice."""
+    from checklists.services import record_sheet
+
+    client = client_for(operator)
+    first, second = site_record(job, simple_checklists), site_record(job, simple_checklists)
+    made, _ = record_sheet(
+        job=job,
+        version=simple_checklists["site"],
+        by=operator,
+        entries=PASSING["site"],
+        client_uuid=uuid.UUID(second["client_uuid"]),
+    )
+    body = sync(client, [first, second])
+    assert [r["status"] for r in body["results"]] == ["applied", "applied"]
+    assert body["results"][1]["sheet"] == made.pk
+    assert CheckSheet.objects.filter(client_uuid=second["client_uuid"]).count() == 1
+    assert CheckSheet.objects.filter(client_uuid=first["client_uuid"]).count() == 1
+    assert SyncReceipt.objects.count() == 2
