@@ -37,7 +37,11 @@ changes, and every kept pass is checked again."""
 
 
 class StoredPageChecks:
-    """Passed page checks kept in the database (PageCheck), each row under an HMAC."""
+    """Passed page checks kept in the database (PageCheck), each row under an HMAC; one
+    verification asks twice (for the printed seal, then for the pages) and reads once."""
+
+    def __init__(self) -> None:
+        self._answers: dict[tuple[str, str], str | None] = {}
 
     @staticmethod
     def _mac(pdf_sha256: str, seal: str) -> str:
@@ -48,6 +52,11 @@ class StoredPageChecks:
         ).hexdigest()
 
     def passed_before(self, pdf_sha256: str, seal: str) -> str | None:
+        if (pdf_sha256, seal) not in self._answers:
+            self._answers[(pdf_sha256, seal)] = self._read(pdf_sha256, seal)
+        return self._answers[(pdf_sha256, seal)]
+
+    def _read(self, pdf_sha256: str, seal: str) -> str | None:
         row = (
             PageCheck.objects.filter(pdf_sha256=pdf_sha256, seal=seal, method=PAGE_CHECK_METHOD)
             .values("mac", "checked_at")

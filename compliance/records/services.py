@@ -763,8 +763,10 @@ def verify_against_database(
     certifications = {
         a["id"]: (a.get("certification") or {}).get("id") for a in sealed.get("anchors") or []
     }
+    # Through JSON and back, so the rows compare as the sealed document reads (lists, not
+    # tuples); a number compares by value (the seal's 5 equals the row's 5.0).
     live = json.loads(
-        canonical_bytes(
+        json.dumps(
             day_content(record.job, certifications=certifications, fmt=document.get("format"))
         )
     )

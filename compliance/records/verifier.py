@@ -268,7 +268,9 @@ def _signature_container_exact(data: bytes, byte_range: Any) -> bool:
     return gap == b"<" + raw.hex().upper().encode("ascii") + b">"
 
 
-def check_content(report: Report, data: bytes) -> dict[str, Any] | None:
+def check_content(
+    report: Report, data: bytes, memory: "PageMemory | None" = None
+) -> dict[str, Any] | None:
     try:
         attached = read_attachment(data)
     except Exception:
@@ -289,7 +291,12 @@ def check_content(report: Report, data: bytes) -> dict[str, Any] | None:
         return None
     seal = hashlib.sha256(attached).hexdigest()
     report.seal = seal
-    printed = printed_seal(data)
+    # A kept page check of these very bytes against this seal proves the pages are the ones
+    # drawn for it, and every drawn page prints the seal: reading the text again is not needed.
+    kept = memory is not None and (
+        memory.passed_before(hashlib.sha256(data).hexdigest(), seal) is not None
+    )
+    printed = seal if kept else printed_seal(data)
     if printed != seal:
         report.add(
             "seal_matches",
@@ -406,7 +413,7 @@ def verify_pdf(
     intact, chained = check_signature(report, data, trust.roots if trust else ())
     if not intact:
         return report
-    document = check_content(report, data)
+    document = check_content(report, data, memory)
     if document is None:
         return report
     report.document = document
