@@ -82,6 +82,64 @@ class _Slow(Exception):
     """A value canonical_bytes leaves to rfc8785."""
 
 
+class _NotJson(Exception):
+    """NaN or Infinity: Python's parser takes them, JSON (and so RFC 8785) does not."""
+
+
+def is_canonical(raw: bytes) -> bool:
+    """Whether ``raw`` is exactly the RFC 8785 form of the JSON value it holds: the answer of
+    ``canonical_bytes(json.loads(raw)) == raw``, found without walking the value in Python.
+
+    The parser itself swaps each number with a fraction or exponent for a token (its hooks
+    see the number's text), so Python's C encoder can write the rest and each token is then
+    written as rfc8785 writes that number. Text with a character outside the Basic
+    Multilingual Plane (a four-byte UTF-8 sequence) may order keys differently, and an integer
+    past 2**53 is refused by RFC 8785: those go the long way."""
+    if re.search(rb"[\xf0-\xf4]", raw):
+        return _canonical_the_long_way(raw)
+    nonce = secrets.token_hex(8)
+    numbers: list[str] = []
+
+    def on_float(text: str) -> str:
+        numbers.append(text)
+        return f"\x00{nonce}:{len(numbers) - 1}\x00"
+
+    def on_int(text: str) -> int:
+        value = int(text)
+        if -_SAFE_INT <= value <= _SAFE_INT:
+            return value
+        raise _Slow
+
+    def on_constant(text: str) -> Any:
+        raise _NotJson
+
+    try:
+        value = json.loads(raw, parse_float=on_float, parse_int=on_int, parse_constant=on_constant)
+    except _Slow:
+        return _canonical_the_long_way(raw)
+    except (_NotJson, ValueError):  # not JSON at all (a UnicodeDecodeError is a ValueError)
+        return False
+    text = json.dumps(value, ensure_ascii=False, sort_keys=True, separators=(",", ":"))
+    if numbers:
+        try:
+            written = [rfc8785.dumps(float(n)).decode() for n in numbers]
+        except rfc8785.CanonicalizationError:  # 1e400 reads as infinity, which JCS refuses
+            return False
+        token = re.compile(f'"\\\\u0000{nonce}:([0-9]+)\\\\u0000"')
+        text = token.sub(lambda m: written[int(m.group(1))], text)
+    try:
+        return text.encode("utf-8") == raw
+    except UnicodeEncodeError:  # a lone surrogate: no UTF-8 form, so not canonical
+        return False
+
+
+def _canonical_the_long_way(raw: bytes) -> bool:
+    try:
+        return canonical_bytes(json.loads(raw)) == raw
+    except (ValueError, rfc8785.CanonicalizationError):
+        return False
+
+
 def seal_of(document: dict[str, Any]) -> str:
     return hashlib.sha256(canonical_bytes(document)).hexdigest()
 

@@ -28,7 +28,7 @@ from compliance.anchor_log import pdf as log_book_pdf
 from compliance.records import pdf as record_pdf
 from compliance.records.page_check import Renderer, differing_pages
 from compliance.records.pdf import printed_seal, read_attachment
-from compliance.records.sealing import EXPORT_FORMAT, canonical_bytes, merkle_root
+from compliance.records.sealing import EXPORT_FORMAT, is_canonical, merkle_root
 from compliance.records.sealing import EXPORT_MANIFEST as MANIFEST
 from compliance.records.sealing import EXPORT_MANIFEST_SIGNATURE as MANIFEST_SIGNATURE
 from compliance.records.signatures import verify_seal_signature
@@ -284,7 +284,7 @@ def check_content(
         report.add("record_attached", False, "The attached record is not valid JSON.")
         return None
     report.add("record_attached", True, "The canonical record is attached.")
-    if canonical_bytes(document) != attached:
+    if not is_canonical(attached):
         report.add(
             "record_canonical", False, "The attached record is not in canonical form (RFC 8785)."
         )
@@ -502,7 +502,7 @@ def verify_export(
         why = str(exc) if "inflate" in str(exc) else type(exc).__name__
         report.add("manifest", False, f"The export has no readable, signed manifest ({why}).")
         return report
-    if canonical_bytes(manifest) != raw:
+    if not is_canonical(raw):
         report.add("manifest", False, "The manifest is not in canonical form: it was rewritten.")
         return report
     fingerprint = hashlib.sha256(signer_cert.dump()).hexdigest()

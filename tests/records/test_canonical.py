@@ -4,6 +4,7 @@ Reference: the ``rfc8785`` package (PyPI, by Trail of Bits), an implementation o
 JSON Canonicalization Scheme; it is the function the seals were written with before.
 """
 
+import json
 import math
 
 import pytest
@@ -11,7 +12,7 @@ import rfc8785
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from compliance.records.sealing import canonical_bytes
+from compliance.records.sealing import canonical_bytes, is_canonical
 
 SAFE = 2**53 - 1
 
@@ -67,3 +68,62 @@ def test_any_json_value_is_written_as_rfc8785_writes_it(value):
 def test_the_cases_where_the_fast_path_could_go_wrong(value):
     mine, reference = both(value)
     assert mine == reference
+
+
+def reference_is_canonical(raw: bytes) -> bool:
+    """The definition: the bytes are what rfc8785 writes for the value they hold."""
+    try:
+        return rfc8785.dumps(json.loads(raw)) == raw
+    except (ValueError, rfc8785.CanonicalizationError):
+        return False
+
+
+writers = st.sampled_from(
+    [
+        rfc8785.dumps,
+        lambda v: json.dumps(v, ensure_ascii=False, sort_keys=True, separators=(",", ":")).encode(
+            "utf-8", "surrogatepass"
+        ),
+        lambda v: json.dumps(v).encode("utf-8", "surrogatepass"),
+        lambda v: json.dumps(v, ensure_ascii=False, separators=(",", ":")).encode(
+            "utf-8", "surrogatepass"
+        ),
+    ]
+)
+
+
+@settings(max_examples=400, deadline=None)
+@given(values, writers)
+def test_is_canonical_answers_as_the_definition_for_any_writer(value, write):
+    try:
+        raw = write(value)
+    except (ValueError, rfc8785.CanonicalizationError):
+        return
+    assert is_canonical(raw) is reference_is_canonical(raw)
+
+
+@pytest.mark.parametrize(
+    "raw",
+    [
+        b'{"a":1}',
+        b'{"a":1.0}',
+        b'{"b":1,"a":2}',
+        b'{"a":NaN}',
+        b'{"a":Infinity}',
+        b'{"a":1e400}',
+        b'{"a":-0}',
+        b'{"a":-0.0}',
+        b'{"a":1E2}',
+        b'{"a":100}',
+        b'{"a":9007199254740993}',
+        b'{"a":"\\ud800"}',
+        '{"\U0001f600":1,"\ufb01":2}'.encode(),
+        '{"\ufb01":2,"\U0001f600":1}'.encode(),
+        b'{"a":1} ',
+        b"\xef\xbb\xbf{}",
+        b"not json",
+        '{"a":"é"}'.encode("utf-16"),
+    ],
+)
+def test_is_canonical_on_the_edges(raw):
+    assert is_canonical(raw) is reference_is_canonical(raw)
