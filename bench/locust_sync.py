@@ -39,6 +39,9 @@ class Crew(HttpUser):
     wait_time = constant(0)
 
     def on_start(self):
+        # locust may start a user again after one stops; with every crew sent, it has none.
+        if not PLAN["crews"]:
+            raise StopUser()
         self.crew = PLAN["crews"].pop()
 
     @task

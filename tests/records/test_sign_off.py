@@ -287,3 +287,44 @@ def test_the_job_list_says_which_days_are_signed(signed, supervisor, django_asse
     assert shown == {signed.job_id: True, unsigned.pk: False}
     detail = client.get(reverse("job-detail", args=[unsigned.pk]))
     assert detail.json()["record_signed"] is False
+
+
+SIGN_OFF_QUERIES = 21
+"""After the chain's first record: the job locked, the record and state checks, the profile's
+revision found, the rows of the day (drops with their prefetches, sheets, entries, holds,
+transitions, logs, photos, crew), the chain head locked, the record and the head written."""
+
+
+def _day(job, simple_checklists, operator, days: int, drops: int):
+    """A closed day at the same site ``days`` later, with ``drops`` drops."""
+    import datetime as dt
+
+    from compliance.jobs.services import close_job, start_job
+    from tests.conftest import fill_all
+    from tests.factories import JobFactory, make_drop
+
+    day = JobFactory(
+        site=job.site, supervisor=job.supervisor, date=job.date + dt.timedelta(days=days)
+    )
+    for n in range(drops):
+        make_drop(day, label=f"D{n + 1}")
+    fill_all(day, simple_checklists, operator)
+    start_job(job=day, by=operator)
+    close_job(job=day, by=operator)
+    day.refresh_from_db()
+    return day
+
+
+def test_sign_off_costs_its_pinned_queries_whatever_the_day_holds(
+    closed_job, simple_checklists, operator, supervisor, django_assert_num_queries
+):
+    """Sealing and signing a day reads its rows in a fixed number of queries: a day with three
+    drops (three times the sheets and entries) costs what a day with one costs. The chain's
+    first record also writes its head and the profile's revision, so it is signed first."""
+    sign_daily_record(job=closed_job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    small = _day(closed_job, simple_checklists, operator, days=1, drops=1)
+    grown = _day(closed_job, simple_checklists, operator, days=2, drops=3)
+    assert grown.sheets.count() > 2 * small.sheets.count()
+    for day in (small, grown):
+        with django_assert_num_queries(SIGN_OFF_QUERIES):
+            sign_daily_record(job=day, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
