@@ -104,7 +104,13 @@ TEMPLATES = [
 DATABASES = {"default": env.db("DATABASE_URL", default=f"sqlite:///{BASE_DIR / 'db.sqlite3'}")}
 DATABASES["default"]["ATOMIC_REQUESTS"] = False
 if DATABASES["default"]["ENGINE"] == "django.db.backends.postgresql":
-    DATABASES["default"].setdefault("CONN_MAX_AGE", env.int("DATABASE_CONN_MAX_AGE", default=0))
+    # A deploy keeps each worker's connection for a minute (checked before reuse) instead of
+    # opening one per request: a morning sync is many short requests. Development and the tests
+    # (DEBUG on) open one per request, as Django does by default.
+    DATABASES["default"].setdefault(
+        "CONN_MAX_AGE", env.int("DATABASE_CONN_MAX_AGE", default=0 if DEBUG else 60)
+    )
+    DATABASES["default"].setdefault("CONN_HEALTH_CHECKS", not DEBUG)
 
 AUTH_USER_MODEL = "compliance.User"
 PASSWORD_HASHERS = [
