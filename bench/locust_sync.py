@@ -133,7 +133,13 @@ def main() -> None:
         run(url, warm, 2)
         for n in args.crews:
             rows.append(run(url, batches[n], args.spawn_rate))
-            print(rows[-1], flush=True)
+            row = rows[-1]
+            print(
+                f"x; locust N={n}, every crew at once: {row['sheets_per_s']:.1f} sheets/s,"
+                f" p95 {row['p95']} ms, {row['failures']} failures (the queue behind the workers;"
+                " its floor is bench.sync's)",
+                flush=True,
+            )
     print(table(rows, ["N", "requests", "failures", "wall_s", "sheets_per_s", "p50", "p95", "p99"]))
 
 
