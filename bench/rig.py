@@ -24,6 +24,7 @@ from compliance.models import (
     Site,
     User,
 )
+from compliance.records.signing import create_self_signed
 
 PASSWORD = "bench climbing 2026"
 CREWS_PER_ORGANISATION = 10
@@ -199,6 +200,9 @@ def make_crews(count: int, tag: str, day: dt.date | None = None) -> list[Crew]:
     crews: list[Crew] = []
     for start in range(0, count, CREWS_PER_ORGANISATION):
         org = Organisation.objects.create(name=f"Bench {tag} {start // CREWS_PER_ORGANISATION}")
+        # As in use: an organisation that signs its days has a signing key, so each anchor
+        # pre-use sheet is copied into the log book as a signed entry.
+        create_self_signed(organisation=org)
         boss = User.objects.create(
             username=f"{tag}-boss-{start}", password=password, organisation=org, role="supervisor"
         )

@@ -6,6 +6,7 @@ signing certificate, no trusted timestamp); the signing time is the signer's cla
 
 import base64
 import datetime as dt
+import functools
 import hashlib
 import io
 from dataclasses import dataclass
@@ -138,11 +139,28 @@ class KeyMaterial:
 
     @classmethod
     def of(cls, credential: SigningCredential) -> "KeyMaterial":
-        key = serialization.load_pem_private_key(
-            credential.encrypted_key_pem.encode(), password=_passphrase()
+        """The credential's key, decrypted. Decrypting costs tens of milliseconds (the
+        passphrase's key derivation), and a morning sync signs an anchor-log entry for every
+        anchor sheet, so each process keeps the keys it decrypted (see _decrypted)."""
+        return _decrypted(
+            credential.pk, credential.encrypted_key_pem, credential.certificate_pem, _passphrase()
         )
-        assert isinstance(key, rsa.RSAPrivateKey)
-        return cls(x509.load_pem_x509_certificate(credential.certificate_pem.encode()), key)
+
+
+@functools.lru_cache(maxsize=64)
+def _decrypted(
+    credential_id: int, encrypted_key_pem: str, certificate_pem: str, passphrase: bytes
+) -> KeyMaterial:
+    """Decrypt once per process for the same row, key bytes and passphrase.
+
+    Keeping a decrypted key in the process's memory adds nothing an attacker with that memory
+    lacks: the passphrase that decrypts every stored key is in the same memory for the
+    process's whole life. A replaced key (other bytes), a restored or edited row, or another
+    passphrase is a different entry, decrypted afresh (and refused if the passphrase is wrong).
+    """
+    key = serialization.load_pem_private_key(encrypted_key_pem.encode(), password=passphrase)
+    assert isinstance(key, rsa.RSAPrivateKey)
+    return KeyMaterial(x509.load_pem_x509_certificate(certificate_pem.encode()), key)
 
 
 def sign_seal(
