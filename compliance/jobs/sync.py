@@ -438,13 +438,14 @@ def _apply_job_run(batch: Batch, job_id: int, records: list[Any]) -> list[dict[s
             if batch.run.receipts:
                 SyncReceipt.objects.bulk_create(batch.run.receipts)
             batch.settle(job_id)
-            batch.run = None
             return lines
     except IntegrityError:
         batch.run = None
         batch.receipts = known_before
         batch.pending_readiness.discard(job_id)
         return [apply_record(batch, record) for record in records]
+    finally:
+        batch.run = None  # whatever ended the run, later records are not applied as its own
 
 
 def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
