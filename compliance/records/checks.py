@@ -2,7 +2,6 @@
 against the stored record, its rows, its organisation's chain and registered certificates, on
 top of the bytes-only checks of the verifier."""
 
-import datetime as dt
 import hashlib
 import json
 from typing import Any
@@ -41,7 +40,7 @@ class StoredPageChecks:
     verification asks twice (for the printed seal, then for the pages) and reads once."""
 
     def __init__(self) -> None:
-        self._answers: dict[tuple[str, str], str | None] = {}
+        self._answers: dict[tuple[str, str], bool] = {}
 
     @staticmethod
     def _mac(pdf_sha256: str, seal: str) -> str:
@@ -51,21 +50,18 @@ class StoredPageChecks:
             algorithm="sha256",
         ).hexdigest()
 
-    def passed_before(self, pdf_sha256: str, seal: str) -> str | None:
+    def passed_before(self, pdf_sha256: str, seal: str) -> bool:
         if (pdf_sha256, seal) not in self._answers:
             self._answers[(pdf_sha256, seal)] = self._read(pdf_sha256, seal)
         return self._answers[(pdf_sha256, seal)]
 
-    def _read(self, pdf_sha256: str, seal: str) -> str | None:
-        row = (
+    def _read(self, pdf_sha256: str, seal: str) -> bool:
+        mac = (
             PageCheck.objects.filter(pdf_sha256=pdf_sha256, seal=seal, method=PAGE_CHECK_METHOD)
-            .values("mac", "checked_at")
+            .values_list("mac", flat=True)
             .first()
         )
-        if row is None or not constant_time_compare(row["mac"], self._mac(pdf_sha256, seal)):
-            return None
-        at = row["checked_at"].astimezone(dt.UTC)
-        return f"when it was first checked here, {at:%Y-%m-%d %H:%M} UTC"
+        return mac is not None and constant_time_compare(mac, self._mac(pdf_sha256, seal))
 
     def remember(self, pdf_sha256: str, seal: str) -> None:
         """Keep a pass (a cache of the comparison, not a record: rewriting a row whose HMAC

@@ -293,9 +293,7 @@ def check_content(
     report.seal = seal
     # A kept page check of these very bytes against this seal proves the pages are the ones
     # drawn for it, and every drawn page prints the seal: reading the text again is not needed.
-    kept = memory is not None and (
-        memory.passed_before(hashlib.sha256(data).hexdigest(), seal) is not None
-    )
+    kept = memory is not None and memory.passed_before(hashlib.sha256(data).hexdigest(), seal)
     printed = seal if kept else printed_seal(data)
     if printed != seal:
         report.add(
@@ -330,9 +328,9 @@ RECORD_FORMATS = {
 class PageMemory(Protocol):
     """Where passed page checks are kept (on the server, compliance.records.checks)."""
 
-    def passed_before(self, pdf_sha256: str, seal: str) -> str | None:
-        """When these very bytes passed against this seal, in words; None if never (or if the
-        kept row cannot be vouched for)."""
+    def passed_before(self, pdf_sha256: str, seal: str) -> bool:
+        """Whether these very bytes passed against this seal (False if the kept row cannot be
+        vouched for)."""
 
     def remember(self, pdf_sha256: str, seal: str) -> None:
         """Keep a pass."""
@@ -348,15 +346,15 @@ def check_pages(
     again: the comparison's answer for the same bytes and seal cannot change."""
     digest = hashlib.sha256(data).hexdigest()
     seal = report.seal or ""
-    when = memory.passed_before(digest, seal) if memory is not None else None
-    if when is not None:
-        return report.add(
-            "pages_match_record",
-            True,
-            "Every page shows exactly what the sealed record draws to (text, figures, fonts,"
-            f" images and layout): this exact file (SHA-256 {digest[:16]}…) was drawn again and"
-            f" compared page by page {when}.",
-        )
+    # The same words whether the comparison ran now or was kept: an answer must not tell
+    # whoever holds a file whether, or when, someone else checked it here.
+    kept_words = (
+        "Every page shows exactly what the sealed record draws to (text, figures, fonts, images"
+        " and layout): the record was drawn again and compared page by page, and this server"
+        " keeps that result for these exact bytes."
+    )
+    if memory is not None and memory.passed_before(digest, seal):
+        return report.add("pages_match_record", True, kept_words)
     renderer = _renderer(document)
     if renderer is None:
         return report.add(
@@ -383,6 +381,7 @@ def check_pages(
         )
     if memory is not None:
         memory.remember(digest, seal)
+        return report.add("pages_match_record", True, kept_words)
     return report.add(
         "pages_match_record",
         True,
