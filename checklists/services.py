@@ -360,7 +360,8 @@ def record_sheet(
     A sync batch applying many sheets for one job in one transaction passes what it has
     already read: ``drops`` (the job's drops with their anchors and equipment),
     ``job_locked`` (``job`` is its row, locked until the batch's transaction ends),
-    ``uuid_unused`` (no sheet holds ``client_uuid``: it looked under that lock) and
+    ``uuid_unused`` (no receipt holds ``client_uuid``, read under that lock; a sheet made
+    with it some other way then clashes on insert and the IntegrityError is the caller's) and
     ``open_hold_requirements`` (the requirements with holds a sheet opened, kept up to date
     here as holds open and clear).
     """
