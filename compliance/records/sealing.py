@@ -37,7 +37,7 @@ def canonical_bytes(document: Any) -> bytes:
     orders keys by, puts it before U+E000-U+FFFF), an integer past 2**53 (refused), a float
     that is not finite (refused) or a type that is not JSON's. tests/records/test_canonical.py
     checks the two agree on generated values."""
-    nonce = secrets.token_hex(8)
+    numbers = _Numbers()
     floats: list[float] = []
 
     def swap(value: Any) -> Any:
@@ -52,7 +52,7 @@ def canonical_bytes(document: Any) -> bytes:
             if not math.isfinite(value):
                 raise _Slow
             floats.append(value)
-            return f"\x00{nonce}:{len(floats) - 1}\x00"
+            return numbers.token(len(floats) - 1)
         if kind is dict:
             out = {}
             for key, item in value.items():
@@ -68,10 +68,7 @@ def canonical_bytes(document: Any) -> bytes:
         swapped = swap(document)
     except (_Slow, RecursionError):
         return rfc8785.dumps(document)
-    text = json.dumps(swapped, ensure_ascii=False, sort_keys=True, separators=(",", ":"))
-    if floats:
-        token = re.compile(f'"\\\\u0000{nonce}:([0-9]+)\\\\u0000"')
-        text = token.sub(lambda m: rfc8785.dumps(floats[int(m.group(1))]).decode(), text)
+    text = numbers.write(swapped, [rfc8785.dumps(f).decode() for f in floats])
     try:
         return text.encode("utf-8")
     except UnicodeEncodeError:  # a lone surrogate: rfc8785 refuses it with its own error
@@ -80,6 +77,28 @@ def canonical_bytes(document: Any) -> bytes:
 
 class _Slow(Exception):
     """A value canonical_bytes leaves to rfc8785."""
+
+
+class _Numbers:
+    """Numbers stood in for by tokens while Python's C encoder writes the rest of a value.
+
+    A token is a string holding a NUL and a random nonce (the encoder writes the NUL as
+    ``\\u0000``), so no text of the value can pass for one."""
+
+    def __init__(self) -> None:
+        self.nonce = secrets.token_hex(8)
+
+    def token(self, index: int) -> str:
+        return f"\x00{self.nonce}:{index}\x00"
+
+    def write(self, value: Any, texts: list[str]) -> str:
+        """The value as the C encoder writes it (keys sorted, no spaces, UTF-8 unescaped), each
+        token replaced by ``texts[index]``."""
+        text = json.dumps(value, ensure_ascii=False, sort_keys=True, separators=(",", ":"))
+        if not texts:
+            return text
+        token = re.compile(f'"\\\\u0000{self.nonce}:([0-9]+)\\\\u0000"')
+        return token.sub(lambda m: texts[int(m.group(1))], text)
 
 
 class _NotJson(Exception):
@@ -97,12 +116,12 @@ def is_canonical(raw: bytes) -> bool:
     past 2**53 is refused by RFC 8785: those go the long way."""
     if re.search(rb"[\xf0-\xf4]", raw):
         return _canonical_the_long_way(raw)
-    nonce = secrets.token_hex(8)
+    tokens = _Numbers()
     numbers: list[str] = []
 
     def on_float(text: str) -> str:
         numbers.append(text)
-        return f"\x00{nonce}:{len(numbers) - 1}\x00"
+        return tokens.token(len(numbers) - 1)
 
     def on_int(text: str) -> int:
         value = int(text)
@@ -119,14 +138,11 @@ def is_canonical(raw: bytes) -> bool:
         return _canonical_the_long_way(raw)
     except (_NotJson, ValueError):  # not JSON at all (a UnicodeDecodeError is a ValueError)
         return False
-    text = json.dumps(value, ensure_ascii=False, sort_keys=True, separators=(",", ":"))
-    if numbers:
-        try:
-            written = [rfc8785.dumps(float(n)).decode() for n in numbers]
-        except rfc8785.CanonicalizationError:  # 1e400 reads as infinity, which JCS refuses
-            return False
-        token = re.compile(f'"\\\\u0000{nonce}:([0-9]+)\\\\u0000"')
-        text = token.sub(lambda m: written[int(m.group(1))], text)
+    try:
+        written = [rfc8785.dumps(float(n)).decode() for n in numbers]
+    except rfc8785.CanonicalizationError:  # 1e400 reads as infinity, which JCS refuses
+        return False
+    text = tokens.write(value, written)
     try:
         return text.encode("utf-8") == raw
     except UnicodeEncodeError:  # a lone surrogate: no UTF-8 form, so not canonical
