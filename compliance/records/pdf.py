@@ -21,7 +21,7 @@ from xml.sax.saxutils import escape
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import reportlab
-from pypdf import PdfReader, PdfWriter
+from pypdf import PdfReader
 from reportlab.graphics.barcode.qr import QrCodeWidget
 from reportlab.graphics.shapes import Circle, Drawing, Line, PolyLine, Rect, String
 from reportlab.lib import colors
@@ -29,7 +29,7 @@ from reportlab.lib.pagesizes import A4
 from reportlab.lib.styles import ParagraphStyle, getSampleStyleSheet
 from reportlab.lib.units import mm
 from reportlab.lib.utils import ImageReader
-from reportlab.pdfbase import pdfmetrics
+from reportlab.pdfbase import pdfdoc, pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
 from reportlab.pdfgen import canvas as rl_canvas
 from reportlab.platypus import (
@@ -69,6 +69,8 @@ FRAME_WIDTH = A4[0] - 30 * mm
 UNLIMITED = 1e9
 SHORT_TEXT = 40
 """A plain string cell longer than this is set as a paragraph, so it wraps and splits."""
+PLAIN_SLACK = 1.0
+"""Points kept free at the right of a plain cell, so rounding never lets text touch the rule."""
 
 
 def _register_fonts() -> tuple[str, str]:
@@ -129,8 +131,30 @@ def _styles() -> dict[str, ParagraphStyle]:
     }
 
 
+class _Para(Paragraph):
+    """A paragraph that breaks its lines once per width.
+
+    A cell's paragraph is wrapped at the same width when its row is cut to CELL_MAX_HEIGHT, when
+    its table measures its rows and again when the table draws them; reportlab's line breaking
+    depends on the width and the style alone, so the lines of the first are kept and handed out
+    again. The pages come out byte for byte the same (tests/records/test_layout_stability.py).
+    """
+
+    _kept: tuple[float, ParagraphStyle, Any, float] | None = None
+
+    def wrap(self, availWidth: float, availHeight: float) -> tuple[float, float]:
+        kept = self._kept
+        if kept is not None and kept[0] == availWidth and kept[1] is self.style:
+            self.width, self.blPara, self.height = availWidth, kept[2], kept[3]
+            return availWidth, kept[3]
+        width, height = super().wrap(availWidth, availHeight)
+        if hasattr(self, "blPara") and width == availWidth:
+            self._kept = (availWidth, self.style, self.blPara, height)
+        return width, height
+
+
 def _p(text: Any, style: ParagraphStyle) -> Paragraph:
-    return Paragraph(escape("" if text is None else str(text)).replace("\n", "<br/>"), style)
+    return _Para(escape("" if text is None else str(text)).replace("\n", "<br/>"), style)
 
 
 def _is_number(value: Any) -> bool:
@@ -221,28 +245,57 @@ def _fit_rows(
     return out, marked
 
 
+def _fits(text: str, width: float, style: ParagraphStyle) -> bool:
+    """Whether `text` can be drawn plain on one line of a cell `width` wide: printable
+    characters only (no line breaks, tabs or controls) and narrower than the cell's inside."""
+    return text.isprintable() and (
+        pdfmetrics.stringWidth(text, style.fontName, style.fontSize)
+        <= width - 2 * CELL_PADDING - PLAIN_SLACK
+    )
+
+
 def _table(
     rows: list[list[Any]],
     widths: list[float],
     header: bool = True,
     highlight: list[int] | None = None,
+    plain: bool = False,
 ) -> Table:
-    """A grid of cells; long text wraps, and a cell too tall for a page goes on in new rows."""
+    """A grid of cells; long text wraps, and a cell too tall for a page goes on in new rows.
+
+    `plain` (the layouts from /4): the body is set in the small style, and a string cell that
+    fits on one line stays plain text; any other string cell becomes a paragraph.
+    """
     regular, bold = _register_fonts()
     s = _styles()
-    cells = [
-        [
-            _p(cell, s["head"] if header and r == 0 else s["cell"])
-            if isinstance(cell, str) and (len(cell) > SHORT_TEXT or "\n" in cell)
-            else cell
-            for cell in row
+    if plain:
+        small = s["small"]
+        cells = [
+            [
+                cell
+                if not isinstance(cell, str)
+                or (header and r == 0 and len(cell) <= SHORT_TEXT and "\n" not in cell)
+                or (not (header and r == 0) and _fits(cell, width, small))
+                else _p(cell, s["head"] if header and r == 0 else small)
+                for cell, width in zip(row, widths, strict=False)
+            ]
+            for r, row in enumerate(rows)
         ]
-        for r, row in enumerate(rows)
-    ]
+    else:
+        cells = [
+            [
+                _p(cell, s["head"] if header and r == 0 else s["cell"])
+                if isinstance(cell, str) and (len(cell) > SHORT_TEXT or "\n" in cell)
+                else cell
+                for cell in row
+            ]
+            for r, row in enumerate(rows)
+        ]
     cells, marked = _fit_rows(cells, widths, set(highlight or []), header)
     table = Table(cells, colWidths=widths, repeatRows=1 if header else 0)
     style = [
         ("FONT", (0, 0), (-1, -1), regular, 8),
+        *([("FONT", (0, 1 if header else 0), (-1, -1), regular, 7.5, 9.5)] if plain else []),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
         ("GRID", (0, 0), (-1, -1), 0.3, colors.HexColor("#777777")),
         ("LEFTPADDING", (0, 0), (-1, -1), CELL_PADDING),
@@ -272,6 +325,8 @@ class _NumberedCanvas(rl_canvas.Canvas):
     """Two-pass canvas: 'page n of m', the seal and the caution in every footer."""
 
     seal = ""
+    attachment: bytes | None = None
+    """The canonical JSON to embed as ATTACHMENT_NAME (None: a file with no attachment)."""
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)
@@ -287,7 +342,36 @@ class _NumberedCanvas(rl_canvas.Canvas):
             self.__dict__.update(state)
             self._footer(total)
             super().showPage()
+        if self.attachment is not None:
+            self._embed(self.attachment)
         super().save()
+
+    def _embed(self, data: bytes) -> None:
+        """The document's one embedded file, written by reportlab with the pages (the name
+        tree, its file specification and the compressed stream), rather than by parsing the
+        finished file and writing it all out again. Nothing on a page refers to it."""
+        doc = self._doc
+        stream = pdfdoc.PDFStream(
+            pdfdoc.PDFDictionary(
+                {
+                    "Type": pdfdoc.PDFName("EmbeddedFile"),
+                    "Params": pdfdoc.PDFDictionary({"Size": len(data)}),
+                }
+            ),
+            content=data,
+            filters=[pdfdoc.PDFZCompress],
+        )
+        name = pdfdoc.PDFString(ATTACHMENT_NAME)
+        spec = pdfdoc.PDFDictionary(
+            {
+                "Type": pdfdoc.PDFName("Filespec"),
+                "F": name,
+                "UF": name,
+                "EF": pdfdoc.PDFDictionary({"F": doc.Reference(stream)}),
+            }
+        )
+        tree = pdfdoc.PDFDictionary({"Names": pdfdoc.PDFArray([name, doc.Reference(spec)])})
+        doc.Catalog.Names = pdfdoc.PDFDictionary({"EmbeddedFiles": tree})
 
     def _footer(self, total: int) -> None:
         regular, _ = _register_fonts()
@@ -298,9 +382,9 @@ class _NumberedCanvas(rl_canvas.Canvas):
         self.drawRightString(width - 15 * mm, 12 * mm, f"Page {self._pageNumber} of {total}")
 
 
-def _canvas_for(seal: str) -> type[_NumberedCanvas]:
+def _canvas_for(seal: str, attachment: bytes | None) -> type[_NumberedCanvas]:
     """A canvas class of its own per render, so two renders at once never share a seal."""
-    return type("_SealedCanvas", (_NumberedCanvas,), {"seal": seal})
+    return type("_SealedCanvas", (_NumberedCanvas,), {"seal": seal, "attachment": attachment})
 
 
 class _PhotoBox(Flowable):
@@ -337,6 +421,10 @@ FIRST_LAYOUT = "parapet.daily-record/2"
 """Records sealed in this format keep the pages they were signed with (item keys, UTC times
 as stored), so that the verifier, which draws a record again to compare its pages, still
 finds them equal. Later formats get the readable layout."""
+READABLE_LAYOUT = "parapet.daily-record/3"
+"""Records sealed in this format keep the readable layout with every table cell set as a
+paragraph and the plots drawn as reportlab graphics. Later formats draw the same pages with
+plain cells and plots drawn on the canvas, which is what makes them quick to draw and check."""
 
 
 @dataclass(frozen=True)
@@ -345,6 +433,9 @@ class _Look:
 
     readable: bool
     zone: ZoneInfo | None
+    plain: bool = False
+    """From /4: a table cell that fits on one line is drawn as plain text (one text operation,
+    no paragraph to parse and break into lines), and a plot straight on the canvas."""
 
     @classmethod
     def of(cls, document: dict[str, Any]) -> "_Look":
@@ -355,7 +446,14 @@ class _Look:
             zone = ZoneInfo(str(record.get("time_zone") or "UTC"))
         except (ZoneInfoNotFoundError, ValueError):
             zone = ZoneInfo("UTC")
-        return cls(readable=True, zone=zone)
+        return cls(readable=True, zone=zone, plain=document.get("format") != READABLE_LAYOUT)
+
+    def cell(self, text: Any, style: ParagraphStyle) -> Any:
+        """A table cell of `text`: plain (`_table(..., plain=True)` decides whether it fits on
+        one line) from /4, a paragraph in `style` before."""
+        if self.plain:
+            return "" if text is None else str(text)
+        return _p(text, style)
 
     @property
     def zone_name(self) -> str:
@@ -383,11 +481,18 @@ class _Look:
         return str(entry.get("item", ""))
 
 
-def render(document: dict[str, Any], seal: str, photos: Mapping[str, bytes] | None = None) -> bytes:
+def render(
+    document: dict[str, Any],
+    seal: str,
+    photos: Mapping[str, bytes] | None = None,
+    *,
+    attach: bool = True,
+) -> bytes:
     """Draw the record; attach its canonical JSON; return unsigned PDF bytes.
 
     `photos` maps a photo's client uuid to its stored bytes; a photo not given is drawn as its
-    empty box. The same arguments give the same bytes on every run.
+    empty box. The same arguments give the same bytes on every run. `attach=False` leaves the
+    attachment out, for a drawing made only to compare pages with (the pages are the same).
     """
     s = _styles()
     photos = photos or {}
@@ -428,8 +533,9 @@ def render(document: dict[str, Any], seal: str, photos: Mapping[str, bytes] | No
         producer="Parapet",
         invariant=1,
     )
-    doc.build(story, canvasmaker=_canvas_for(seal))
-    return _attach(buffer.getvalue(), document)
+    attachment = canonical_bytes(document) if attach else None
+    doc.build(story, canvasmaker=_canvas_for(seal, attachment))
+    return buffer.getvalue()
 
 
 def _title(document: dict[str, Any]) -> str:
@@ -437,14 +543,6 @@ def _title(document: dict[str, Any]) -> str:
     if record is None:
         return f"Addendum {document['sequence']} to record {document['amends']['sequence']}"
     return f"Daily record — {record['site']['name']} — {record['job']['date']}"
-
-
-def _attach(pdf: bytes, document: dict[str, Any]) -> bytes:
-    writer = PdfWriter(clone_from=PdfReader(io.BytesIO(pdf)))
-    writer.add_attachment(ATTACHMENT_NAME, canonical_bytes(document))
-    out = io.BytesIO()
-    writer.write(out)
-    return out.getvalue()
 
 
 def _cover(
@@ -547,18 +645,24 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look)
             [look.zone_heading("Opened"), "Concerns", "Reason", "Cleared", "By sheet"],
             *[
                 [
-                    _p(look.when(h["opened_at"]), s["small"]),
-                    _p(_concerns(h, subjects), s["small"]),
-                    _p(h["reason"], s["small"]),
-                    _p(look.when(h["cleared_at"]) if h["cleared_at"] else "OPEN", s["small"]),
-                    _p(f"#{h['cleared_by_sheet']}" if h["cleared_by_sheet"] else "—", s["small"]),
+                    look.cell(look.when(h["opened_at"]), s["small"]),
+                    look.cell(_concerns(h, subjects), s["small"]),
+                    look.cell(h["reason"], s["small"]),
+                    look.cell(
+                        look.when(h["cleared_at"]) if h["cleared_at"] else "OPEN", s["small"]
+                    ),
+                    look.cell(
+                        f"#{h['cleared_by_sheet']}" if h["cleared_by_sheet"] else "—", s["small"]
+                    ),
                 ]
                 for h in holds
             ],
         ]
         widths = [28 * mm, 28 * mm, 78 * mm, 28 * mm, 18 * mm]
         # The heading stays with its table; a table longer than a page still splits.
-        story.append(KeepTogether([heading, _table(rows, widths, highlight=highlight)]))
+        story.append(
+            KeepTogether([heading, _table(rows, widths, highlight=highlight, plain=look.plain)])
+        )
     elif holds:
         story.append(heading)
         rows = [["Opened (UTC)", "Reason", "Cleared (UTC)", "By sheet"]]
@@ -582,14 +686,14 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look)
         rows = [["Sheet", "Item", "Blocking", "Why"]]
         rows += [
             [
-                _p(f"#{sh['id']} {sh['title']}", s["small"]),
-                _p(look.item(e), s["small"]),
+                look.cell(f"#{sh['id']} {sh['title']}", s["small"]),
+                look.cell(look.item(e), s["small"]),
                 "yes" if e["blocking"] else "no",
-                _p(e["message"], s["small"]),
+                look.cell(e["message"], s["small"]),
             ]
             for sh, e in failed
         ]
-        story.append(_table(rows, [55 * mm, 35 * mm, 15 * mm, 75 * mm]))
+        story.append(_table(rows, [55 * mm, 35 * mm, 15 * mm, 75 * mm], plain=look.plain))
     return story
 
 
@@ -637,13 +741,17 @@ def _sheets(
             reason = (e.get("working") or {}).get("reason") if e["kind"] == "calc" else None
             if e["verdict"] == "fail" and isinstance(reason, str) and reason.strip():
                 label += "\n" + reason.strip()  # why it failed, in the calculation's words
-            rows.append([_p(label, s["small"]), _p(shown, s["small"]), e["verdict"], margin])
+            rows.append(
+                [look.cell(label, s["small"]), look.cell(shown, s["small"]), e["verdict"], margin]
+            )
             steps = (e.get("working") or {}).get("steps")
             if steps:
                 working += [_p(f"{look.item(e)}: working", s["small"])]
                 working += [p for step in steps for p in _paras("  " + str(step), s["mono"])]
         highlight = [i + 1 for i, e in enumerate(entries) if e["verdict"] == "fail"]
-        table = _table(rows, [60 * mm, 80 * mm, 20 * mm, 20 * mm], highlight=highlight)
+        table = _table(
+            rows, [60 * mm, 80 * mm, 20 * mm, 20 * mm], highlight=highlight, plain=look.plain
+        )
         block: list[Any] = [head, table]
         if sheet["remarks"]:
             block += _paras(f"Remarks: {sheet['remarks']}", s["small"])
@@ -785,12 +893,17 @@ def _widened(value: float, by: float) -> float:
     return moved if math.isfinite(moved) else value
 
 
-def _series_plot(
+_Part = tuple[Any, ...]
+"""One mark of a plot: ("rect", x, y, w, h, colour, width), ("line", x1, y1, x2, y2, colour,
+width, dash), ("text", x, y, text, anchor, colour), ("poly", points, colour, width) or
+("dot", x, y, radius, colour), in points from the plot's lower left corner."""
+
+
+def _plot_parts(
     samples: list[tuple[float, float]], unit: str, limits: list[tuple[str, float]]
-) -> Drawing:
+) -> list[_Part]:
     """The readings as a line (with a dot for each, when there are few) against time, and each
     limit as a dashed red line; axes from the data, with round values where they fit."""
-    regular, _ = _register_fonts()
     width, height = PLOT_SIZE
     left, bottom = 18 * mm, 9 * mm
     plot_w, plot_h = width - left - 6 * mm, height - bottom - 9 * mm
@@ -799,52 +912,137 @@ def _series_plot(
     half_span = max(values) / 2 - min(values) / 2
     v0, v1 = _widened(min(values), -0.16 * half_span), _widened(max(values), 0.16 * half_span)
     grey, ink, red = (colors.HexColor(c) for c in ("#999999", "#1f4e8c", "#9b1111"))
-    drawing = Drawing(width, height)
 
     def at(t: float, v: float) -> tuple[float, float]:
         return left + _scale(t, t0, t1, plot_w), bottom + _scale(v, v0, v1, plot_h)
 
-    def label(x: float, y: float, text: str, anchor: str = "start", colour: Any = None) -> None:
-        drawing.add(
-            String(
-                x,
-                y,
-                text,
-                fontName=regular,
-                fontSize=6.5,
-                textAnchor=anchor,
-                fillColor=colour or colors.black,
-            )
-        )
-
-    drawing.add(
-        Rect(left, bottom, plot_w, plot_h, strokeColor=grey, strokeWidth=0.4, fillColor=None)
-    )
+    parts: list[_Part] = [("rect", left, bottom, plot_w, plot_h, grey, 0.4)]
     for tick in _ticks(v0, v1):
         y = bottom + _scale(tick, v0, v1, plot_h)
-        drawing.add(Line(left, y, left + plot_w, y, strokeColor=grey, strokeWidth=0.15))
-        label(left - 1.5 * mm, y - 2, _reading(tick), "end")
+        parts.append(("line", left, y, left + plot_w, y, grey, 0.15, None))
+        parts.append(("text", left - 1.5 * mm, y - 2, _reading(tick), "end", None))
     for tick in _ticks(t0, t1):
         x = left + _scale(tick, t0, t1, plot_w)
-        drawing.add(Line(x, bottom, x, bottom - 1 * mm, strokeColor=grey, strokeWidth=0.4))
-        label(x, bottom - 4 * mm, _reading(tick), "middle")
-    label(left + plot_w, 0.5 * mm, "s", "end")
-    label(left - 1.5 * mm, bottom + plot_h + 2 * mm, unit, "end")
-    drawing.add(
-        PolyLine([c for t, v in samples for c in at(t, v)], strokeColor=ink, strokeWidth=0.8)
-    )
+        parts.append(("line", x, bottom, x, bottom - 1 * mm, grey, 0.4, None))
+        parts.append(("text", x, bottom - 4 * mm, _reading(tick), "middle", None))
+    parts.append(("text", left + plot_w, 0.5 * mm, "s", "end", None))
+    parts.append(("text", left - 1.5 * mm, bottom + plot_h + 2 * mm, unit, "end", None))
+    parts.append(("poly", [c for t, v in samples for c in at(t, v)], ink, 0.8))
     if len(samples) <= MARKED_SAMPLES:
-        for t, v in samples:
-            drawing.add(Circle(*at(t, v), 1.1, fillColor=ink, strokeColor=None))
+        parts += [("dot", *at(t, v), 1.1, ink) for t, v in samples]
     for n, (text, value) in enumerate(limits):
         y = bottom + _scale(value, v0, v1, plot_h)
-        drawing.add(
-            Line(
-                left, y, left + plot_w, y, strokeColor=red, strokeWidth=0.8, strokeDashArray=[3, 2]
+        parts.append(("line", left, y, left + plot_w, y, red, 0.8, [3, 2]))
+        parts.append(
+            (
+                "text",
+                left + 2 * mm,
+                bottom + plot_h + 2 * mm + n * 3.2 * mm,
+                f"- - {text}",
+                "start",
+                red,
             )
         )
-        label(left + 2 * mm, bottom + plot_h + 2 * mm + n * 3.2 * mm, f"- - {text}", colour=red)
+    return parts
+
+
+def _series_plot(
+    samples: list[tuple[float, float]], unit: str, limits: list[tuple[str, float]]
+) -> Drawing:
+    """The plot as reportlab graphics (the layouts up to /3)."""
+    regular, _ = _register_fonts()
+    drawing = Drawing(*PLOT_SIZE)
+    for part in _plot_parts(samples, unit, limits):
+        kind = part[0]
+        if kind == "rect":
+            _, x, y, w, h, colour, line_width = part
+            drawing.add(
+                Rect(x, y, w, h, strokeColor=colour, strokeWidth=line_width, fillColor=None)
+            )
+        elif kind == "line":
+            _, x1, y1, x2, y2, colour, line_width, dash = part
+            drawing.add(
+                Line(x1, y1, x2, y2, strokeColor=colour, strokeWidth=line_width)
+                if dash is None
+                else Line(
+                    x1, y1, x2, y2, strokeColor=colour, strokeWidth=line_width, strokeDashArray=dash
+                )
+            )
+        elif kind == "text":
+            _, x, y, text, anchor, colour = part
+            drawing.add(
+                String(
+                    x,
+                    y,
+                    text,
+                    fontName=regular,
+                    fontSize=6.5,
+                    textAnchor=anchor,
+                    fillColor=colour or colors.black,
+                )
+            )
+        elif kind == "poly":
+            _, points, colour, line_width = part
+            drawing.add(PolyLine(points, strokeColor=colour, strokeWidth=line_width))
+        else:
+            _, x, y, radius, colour = part
+            drawing.add(Circle(x, y, radius, fillColor=colour, strokeColor=None))
     return drawing
+
+
+class _CanvasPlot(Flowable):
+    """The plot drawn straight on the page's canvas (the layouts from /4): the same marks as
+    `_series_plot`, without building and walking a graphics tree for them."""
+
+    def __init__(self, parts: list[_Part]) -> None:
+        super().__init__()
+        self.width, self.height = PLOT_SIZE
+        self.parts = parts
+
+    def wrap(self, avail_width: float, avail_height: float) -> tuple[float, float]:
+        return self.width, self.height
+
+    def draw(self) -> None:
+        regular, _ = _register_fonts()
+        c = self.canv
+        c.saveState()
+        c.setFont(regular, 6.5)
+        for part in self.parts:
+            kind = part[0]
+            if kind == "rect":
+                _, x, y, w, h, colour, line_width = part
+                c.setStrokeColor(colour)
+                c.setLineWidth(line_width)
+                c.rect(x, y, w, h, stroke=1, fill=0)
+            elif kind == "line":
+                _, x1, y1, x2, y2, colour, line_width, dash = part
+                c.setStrokeColor(colour)
+                c.setLineWidth(line_width)
+                c.setDash(dash or [])
+                c.line(x1, y1, x2, y2)
+            elif kind == "text":
+                _, x, y, text, anchor, colour = part
+                c.setFillColor(colour or colors.black)
+                draw = {
+                    "end": c.drawRightString,
+                    "middle": c.drawCentredString,
+                }.get(anchor, c.drawString)
+                draw(x, y, text)
+            elif kind == "poly":
+                _, points, colour, line_width = part
+                c.setStrokeColor(colour)
+                c.setLineWidth(line_width)
+                c.setDash([])
+                path = c.beginPath()
+                path.moveTo(points[0], points[1])
+                for i in range(2, len(points), 2):
+                    path.lineTo(points[i], points[i + 1])
+                c.drawPath(path, stroke=1, fill=0)
+            else:
+                _, x, y, radius, colour = part
+                c.setFillColor(colour)
+                c.circle(x, y, radius, stroke=0, fill=1)
+        c.restoreState()
 
 
 def _series_table(samples: list[tuple[float, float]], unit: str) -> Table:
@@ -895,7 +1093,9 @@ def _series_block(
         KeepTogether(
             [
                 _p(f"{look.item(entry)}: {_series_summary(samples, unit)}", s["small"]),
-                _series_plot(samples, unit, limits),
+                _CanvasPlot(_plot_parts(samples, unit, limits))
+                if look.plain
+                else _series_plot(samples, unit, limits),
             ]
         ),
         _series_table(samples, unit),
@@ -930,16 +1130,18 @@ def _log(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> l
     rows = [[look.zone_heading("At"), "From", "To", "By", "Why"]]
     rows += [
         [
-            _p(look.when(t["at"]), s["small"]),
+            look.cell(look.when(t["at"]), s["small"]),
             t["from"],
             t["to"],
-            _p(t["by"] or "system", s["small"]),
-            _p(t["reason"], s["small"]),
+            look.cell(t["by"] or "system", s["small"]),
+            look.cell(t["reason"], s["small"]),
         ]
         for t in record["transitions"]
     ]
     story += _kept(
-        look, _p("Job log", s["h2"]), _table(rows, [32 * mm, 17 * mm, 17 * mm, 30 * mm, 84 * mm])
+        look,
+        _p("Job log", s["h2"]),
+        _table(rows, [32 * mm, 17 * mm, 17 * mm, 30 * mm, 84 * mm], plain=look.plain),
     )
     if record["drops_done"]:
         rows = [["Drop", "By", look.zone_heading("Logged"), "Note"]]
@@ -947,13 +1149,15 @@ def _log(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> l
             [
                 d["drop"],
                 d["by"],
-                _p(look.when(d["received_at"]), s["small"]),
-                _p(d["note"], s["small"]),
+                look.cell(look.when(d["received_at"]), s["small"]),
+                look.cell(d["note"], s["small"]),
             ]
             for d in record["drops_done"]
         ]
         story += _kept(
-            look, _p("Drops done", s["h3"]), _table(rows, [30 * mm, 35 * mm, 35 * mm, 80 * mm])
+            look,
+            _p("Drops done", s["h3"]),
+            _table(rows, [30 * mm, 35 * mm, 35 * mm, 80 * mm], plain=look.plain),
         )
     people = ", ".join(f"{p['name']} ({p['role']})" for p in record["people"])
     story += [_p("People", s["h3"]), *_paras(people, s["body"])]

@@ -53,10 +53,12 @@ from compliance.records.signing import (
     sign_seal,
 )
 
-FORMAT = "parapet.daily-record/3"
-"""/3 adds each entry's label (the checklist's words) and the time zone the pages print times in;
-records sealed as /2 keep their format, their pages and their checks."""
-RECORD_FORMATS = ("parapet.daily-record/2", FORMAT)
+FORMAT = "parapet.daily-record/4"
+"""/3 added each entry's label (the checklist's words) and the time zone the pages print times
+in; /4 holds the same document and is drawn with plain table cells and plots drawn on the
+canvas (quicker to draw, and so to check). Records sealed as /2 or /3 keep their format, their
+pages and their checks."""
+RECORD_FORMATS = ("parapet.daily-record/2", "parapet.daily-record/3", FORMAT)
 ADDENDUM_MEANING = (
     "Addendum: corrects or adds to the referenced record; the original stands unchanged."
 )

@@ -311,7 +311,8 @@ def check_content(
 def _renderer(document: dict[str, Any]) -> Renderer | None:
     fmt = document.get("format")
     if fmt in RECORD_FORMATS:
-        return record_pdf.render
+        # Drawn only to compare pages with: the attachment is the signed file's own.
+        return lambda doc, seal, photos: record_pdf.render(doc, seal, photos, attach=False)
     if fmt == LOG_BOOK_FORMAT:
         return lambda doc, seal, photos: log_book_pdf.render(doc, seal)
     return None
@@ -321,6 +322,7 @@ LOG_BOOK_FORMAT = "parapet.anchor-log-book/1"
 RECORD_FORMATS = {
     "parapet.daily-record/2",
     "parapet.daily-record/3",
+    "parapet.daily-record/4",
     "parapet.daily-record-addendum/2",
 }
 

@@ -11,7 +11,8 @@ the old formats drawn exactly as before.
 `layouts/documents.json` holds the fixed documents: a day's record with a failed item, an open
 and a cleared hold, a clock note, a photo (drawn as its empty box), series, calculations and
 a drop plan, a series of 300 readings whose table runs over pages and a remark split over
-rows, once in each record format; and an addendum.
+rows, drawn in each record format (the formats differ only in how they are drawn); and an
+addendum.
 """
 
 import hashlib
@@ -21,16 +22,25 @@ from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
+from reportlab.lib.units import mm
 
 from compliance.records.page_check import page_prints
-from compliance.records.pdf import document_of, read_attachment, render
+from compliance.records.pdf import _fits, _styles, document_of, read_attachment, render
 from compliance.records.sealing import canonical_bytes
 
 FIXTURES = json.loads((Path(__file__).parent / "layouts" / "documents.json").read_text())
+DOCUMENTS = {
+    **{
+        f"record-{n}": {**FIXTURES["record"], "format": f"parapet.daily-record/{n}"}
+        for n in (2, 3, 4)
+    },
+    "addendum": FIXTURES["addendum"],
+}
 
 PINNED = {
     "record-2": "1af3565704aac78ca024d232ceb61faf09995cb56e74a9b603999b088e764c69",
     "record-3": "1bf403c39c6803fef925baf34c1bf626e8056d675464caa8066fc1c8d1672ced",
+    "record-4": "dfb099bc60292370362756cc395e13b18e88cb10a57946ff0c43f2a03d2b3da2",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
 }
 
@@ -42,16 +52,46 @@ def prints_digest(pdf: bytes) -> str:
 
 @pytest.mark.parametrize("name", sorted(PINNED))
 def test_the_pages_of_each_format_are_drawn_as_they_were_signed(name):
-    pdf = render(FIXTURES["documents"][name], FIXTURES["seal"])
+    pdf = render(DOCUMENTS[name], FIXTURES["seal"])
 
     assert prints_digest(pdf) == PINNED[name]
 
 
 @pytest.mark.parametrize("name", sorted(PINNED))
 def test_the_file_carries_the_canonical_document(name):
-    document = FIXTURES["documents"][name]
+    document = DOCUMENTS[name]
 
     pdf = render(document, FIXTURES["seal"])
 
     assert read_attachment(pdf) == canonical_bytes(document)
     assert document_of(pdf) == document
+
+
+@pytest.mark.parametrize(
+    ("text", "fits"),
+    [
+        ("pass", True),
+        ("anchor visual check 1 (blocking)", True),
+        ("a\ttab", False),
+        ("two\nlines", False),
+        ("a control \x07 character", False),
+        ("word " * 40, False),
+        ("", True),
+    ],
+)
+def test_a_cell_is_drawn_plain_only_when_it_fits_on_one_line(text, fits):
+    """From /4 a plain cell is one text operation: it must never run past its column or hide
+    a line break; anything else is set as a paragraph, which wraps."""
+    assert _fits(text, 60 * mm, _styles()["small"]) is fits
+
+
+def test_a_long_cell_in_the_plain_layout_wraps_and_keeps_every_word():
+    document = json.loads(json.dumps(DOCUMENTS["record-4"]))
+    label = " ".join(f"word{n}" for n in range(80))
+    document["record"]["sheets"][0]["entries"][0]["label"] = label
+
+    text = "".join(
+        page.extract_text() for page in PdfReader(io.BytesIO(render(document, "5e" * 32))).pages
+    )
+
+    assert all(f"word{n}" in text for n in range(80))

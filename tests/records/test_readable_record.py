@@ -2,17 +2,21 @@
 holds that name what they concern, a drop plan with certificate and inspection dates. Records
 sealed in the first format keep the pages they were signed with, and still verify."""
 
+import io
 import re
 import subprocess
 from pathlib import Path
 
 import pytest
 from django.conf import settings as django_settings
+from pypdf import PdfReader
 
 from compliance.models import Hold
+from compliance.records import pdf as record_pdf
 from compliance.records import services as daily_records
 from compliance.records.checks import verify_pdf
 from compliance.records.files import render_signed_pdf
+from compliance.records.page_check import page_prints
 from compliance.records.services import sign_daily_record
 from tests.conftest import fill_all
 from tests.factories import PASSWORD
@@ -78,28 +82,58 @@ def test_a_record_reads_in_the_checklist_s_words_and_the_site_s_time(held_day, s
     assert verify_pdf(pdf).ok
 
 
+def signed_in_format(fmt, job, checklists, operator, supervisor, monkeypatch):
+    """The job's day, filled, closed and signed as a record of format `fmt`."""
+    from compliance.jobs.services import close_job, start_job
+
+    fill_all(job, checklists, operator)
+    start_job(job=job, by=operator)
+    close_job(job=job, by=operator)
+    with monkeypatch.context() as patched:
+        patched.setattr(daily_records, "FORMAT", fmt)
+        record = sign_daily_record(
+            job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe"
+        )
+    document = daily_records.json.loads(record.canonical_json)
+    assert document["format"] == fmt
+    return record, document
+
+
 def test_a_record_sealed_in_the_first_format_keeps_its_pages_and_verifies(
     job, simple_checklists, operator, supervisor, credential, settings, tmp_path, monkeypatch
 ):
     settings.MEDIA_ROOT = tmp_path
-    fill_all(job, simple_checklists, operator)
-    from compliance.jobs.services import close_job, start_job
-
-    start_job(job=job, by=operator)
-    close_job(job=job, by=operator)
-    monkeypatch.setattr(daily_records, "FORMAT", "parapet.daily-record/2")
-    record = sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
-    document = daily_records.json.loads(record.canonical_json)
-    assert document["format"] == "parapet.daily-record/2"
+    record, document = signed_in_format(
+        "parapet.daily-record/2", job, simple_checklists, operator, supervisor, monkeypatch
+    )
     assert "time_zone" not in document["record"]
     assert all("label" not in e for s in document["record"]["sheets"] for e in s["entries"])
-    monkeypatch.undo()
     pdf = render_signed_pdf(record)
     text = text_of(pdf)
     assert "Drop plan" not in text and "Signed at (UTC)" in text
     report = verify_pdf(pdf)
     assert report.ok, report.lines()
     assert daily_records.verify_against_database(record) == []
+
+
+def test_a_record_sealed_in_the_third_format_keeps_its_pages_and_verifies(
+    job, simple_checklists, operator, supervisor, credential, settings, tmp_path, monkeypatch
+):
+    """/3 and /4 hold the same document; a /3 record is drawn again the /3 way (every cell a
+    paragraph, plots as graphics), so it still verifies after /4 drew cells plainly."""
+    settings.MEDIA_ROOT = tmp_path
+    record, document = signed_in_format(
+        "parapet.daily-record/3", job, simple_checklists, operator, supervisor, monkeypatch
+    )
+    pdf = render_signed_pdf(record)
+    assert "Drop plan" in text_of(pdf)
+    report = verify_pdf(pdf)
+    assert report.ok, report.lines()
+    assert daily_records.verify_against_database(record) == []
+    drawn_as_four = record_pdf.render({**document, "format": "parapet.daily-record/4"}, record.seal)
+    assert page_prints(PdfReader(io.BytesIO(drawn_as_four))) != page_prints(
+        PdfReader(io.BytesIO(pdf))
+    )
 
 
 def test_the_demo_s_record_is_drawn_to_images_a_person_can_look_at(db, settings, tmp_path):
