@@ -11,6 +11,7 @@ from django.db import IntegrityError, transaction
 
 from checklists.models import Photo
 from compliance.models import DailyRecord, RecordPdf
+from compliance.records.checks import StoredPageChecks
 from compliance.records.pdf import render
 from compliance.records.signing import sha256_hex, sign_pdf
 
@@ -78,6 +79,9 @@ def ensure_pdf(record: DailyRecord) -> RecordPdf:
                 save=False,
             )
             pdf.save()
+            # The pages of the file just drawn are by construction what the renderer draws
+            # from the sealed document: its first check on the server need not draw them again.
+            StoredPageChecks().remember(pdf.sha256, record.seal)
     except BaseException as exc:
         # A crash between storing the file and its row leaves no orphan file behind.
         if pdf.file.name:

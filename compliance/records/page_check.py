@@ -35,25 +35,43 @@ class PagesUnreadable(Exception):
     """The signed file's pages cannot be walked (malformed, too deep, too many)."""
 
 
-def _canon(value: Any, depth: int = 0) -> Any:
+def _canon(value: Any, depth: int = 0, seen: dict[tuple[int, int], Any] | None = None) -> Any:
     """A plain, comparable form of a PDF object: object numbers left out, streams by the hash
-    of their decoded bytes."""
+    of their decoded bytes.
+
+    `seen` keeps the form of each indirect object already walked in this file, so the fonts
+    every page shares are decoded and hashed once, not once per page. An object's form does
+    not depend on the path it was reached by; it is kept only once fully walked, so a cycle
+    still runs into the depth limit.
+    """
     if depth > MAX_DEPTH:
         raise PagesUnreadable("objects nested too deep")
+    key = None
     if isinstance(value, IndirectObject):
+        key = (value.idnum, value.generation)
+        if seen is not None and key in seen:
+            return seen[key]
         value = value.get_object()
     if isinstance(value, StreamObject):
-        return {
+        form: Any = {
             "stream": hashlib.sha256(value.get_data()).hexdigest(),
             "dict": {
-                str(k): _canon(v, depth + 1) for k, v in value.items() if k not in SKIPPED_KEYS
+                str(k): _canon(v, depth + 1, seen)
+                for k, v in value.items()
+                if k not in SKIPPED_KEYS
             },
         }
-    if isinstance(value, DictionaryObject):
-        return {str(k): _canon(v, depth + 1) for k, v in value.items() if k not in SKIPPED_KEYS}
-    if isinstance(value, ArrayObject | list):
-        return [_canon(v, depth + 1) for v in value]
-    return f"{type(value).__name__}:{value}"
+    elif isinstance(value, DictionaryObject):
+        form = {
+            str(k): _canon(v, depth + 1, seen) for k, v in value.items() if k not in SKIPPED_KEYS
+        }
+    elif isinstance(value, ArrayObject | list):
+        form = [_canon(v, depth + 1, seen) for v in value]
+    else:
+        form = f"{type(value).__name__}:{value}"
+    if key is not None and seen is not None:
+        seen[key] = form
+    return form
 
 
 def _is_signature_widget(annotation: DictionaryObject) -> bool:
@@ -78,6 +96,7 @@ def page_prints(reader: PdfReader) -> list[dict[str, Any]]:
     pages = []
     if len(reader.pages) > MAX_PAGES:
         raise PagesUnreadable(f"more than {MAX_PAGES} pages")
+    seen: dict[tuple[int, int], Any] = {}
     for page in reader.pages:
         contents = page.get_contents()
         annotations = []
@@ -93,7 +112,7 @@ def page_prints(reader: PdfReader) -> list[dict[str, Any]]:
                 "contents": hashlib.sha256(
                     b"" if contents is None else contents.get_data()
                 ).hexdigest(),
-                "resources": _canon(page.get("/Resources") or {}),
+                "resources": _canon(page.get("/Resources") or {}, seen=seen),
                 "box": [float(x) for x in page.mediabox],
                 "rotate": int(page.get("/Rotate", 0) or 0),
                 "annotations": annotations,

@@ -22,6 +22,7 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import reportlab
 from pypdf import PdfReader
+from reportlab import rl_config
 from reportlab.graphics.barcode.qr import QrCodeWidget
 from reportlab.graphics.shapes import Circle, Drawing, Line, PolyLine, Rect, String
 from reportlab.lib import colors
@@ -53,6 +54,12 @@ CAUTION = (
     "maker's manual or a licensed engineer's certification."
 )
 FONT_DIRS = [Path("/usr/share/fonts/truetype/dejavu")]
+
+# Streams are Flate-compressed only. reportlab's default adds ASCII85 on top, which makes every
+# page's stream a quarter larger and costs an encoding at each render and a (pure Python)
+# decoding at each check. The page check compares decoded streams, so records drawn with it
+# still compare equal.
+rl_config.useA85 = 0
 
 CELL_MAX_HEIGHT = 160.0
 """The tallest a table cell is drawn, in points (a fifth of a page): longer text goes on in
