@@ -15,7 +15,7 @@ from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
 from checklists.selectors import UNKNOWN_VERSION
 from checklists.verdicts import EntryError, SheetOutcome, evaluate
-from compliance.anchor_log.services import log_pre_use_check
+from compliance.anchor_log.services import HeldChains, log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
@@ -352,6 +352,7 @@ def record_sheet(
     job_locked: bool = False,
     uuid_unused: bool = False,
     open_hold_requirements: set[str] | None = None,
+    held_chains: HeldChains | None = None,
 ) -> tuple[CheckSheet, bool]:
     """Record a filled sheet exactly once per client uuid; return (sheet, created).
 
@@ -363,7 +364,8 @@ def record_sheet(
     ``uuid_unused`` (no receipt holds ``client_uuid``, read under that lock; a sheet made
     with it some other way then clashes on insert and the IntegrityError is the caller's) and
     ``open_hold_requirements`` (the requirements with holds a sheet opened, kept up to date
-    here as holds open and clear).
+    here as holds open and clear) and ``held_chains`` (the log chains its transaction has
+    appended to; see HeldChains).
     """
     require_writer(by)
     client_uuid = client_uuid or uuid.uuid4()
@@ -439,7 +441,7 @@ def record_sheet(
                 open_hold_requirements=open_hold_requirements,
             )
             if subject_kind == "anchor":
-                log_pre_use_check(sheet, entries=created)
+                log_pre_use_check(sheet, entries=created, held=held_chains)
     except IntegrityError:
         if not savepoint:  # the caller's savepoint rolls back, and it answers the retry
             raise

@@ -13,6 +13,7 @@ Lock order is jobs (by id) before the site, as a sheet's transaction takes them.
 
 import datetime as dt
 from collections.abc import Sequence
+from dataclasses import dataclass, field
 from typing import Any
 
 from django.db import transaction
@@ -36,6 +37,25 @@ FORMAT = "parapet.anchor-log-entry/1"
 MEANING = "I made or witnessed the work recorded here and its result is as stated."
 PRE_USE_MEANING = "Pre-use check recorded from the contractor's pre-start check sheet."
 SIGNED_KINDS = [k for k in AnchorLogEntry.Kind if k != AnchorLogEntry.Kind.PRE_USE]
+
+
+@dataclass
+class HeldChains:
+    """What one transaction that appends many pre-use entries (a sync batch's run) already
+    knows: each organisation's signing credential, and for each site whose chain it has
+    locked, where the next entry goes (sequence, previous seal). While the transaction holds
+    a site's lock no one else appends to that chain, so its next entry follows the last one
+    written here without locking or reading the chain again.
+
+    Valid only while every savepoint that appended stands: a savepoint rolled back takes its
+    entries and its row lock with it, so whoever rolls one back calls ``forget()``.
+    """
+
+    next_positions: dict[int, tuple[int, str]] = field(default_factory=dict)
+    credentials: dict[int | None, SigningCredential | None] = field(default_factory=dict)
+
+    def forget(self) -> None:
+        self.next_positions.clear()
 
 
 def _lock_chain(site_id: int) -> None:
@@ -76,10 +96,14 @@ def _create(
     meaning: str,
     method: str,
     sheet: "CheckSheet | None" = None,
+    held: HeldChains | None = None,
 ) -> AnchorLogEntry:
     """Append one sealed entry; the caller's transaction holds the chain until it commits."""
-    _lock_chain(anchor.site_id)
-    sequence, previous = _next_position(anchor.site_id)
+    if held is not None and anchor.site_id in held.next_positions:
+        sequence, previous = held.next_positions[anchor.site_id]
+    else:
+        _lock_chain(anchor.site_id)
+        sequence, previous = _next_position(anchor.site_id)
     signed_at = timezone.now()
     document = {
         "format": FORMAT,
@@ -106,7 +130,7 @@ def _create(
         },
     }
     seal = seal_of(document)
-    return AnchorLogEntry.objects.create(
+    entry = AnchorLogEntry.objects.create(
         site_id=anchor.site_id,
         anchor=anchor,
         kind=kind,
@@ -127,6 +151,9 @@ def _create(
         meaning=meaning,
         signed_at=signed_at,
     )
+    if held is not None:
+        held.next_positions[anchor.site_id] = (sequence + 1, seal)
+    return entry
 
 
 def record_entry(
@@ -188,10 +215,13 @@ def record_entry(
 
 
 def log_pre_use_check(
-    sheet: CheckSheet, entries: Sequence[ItemEntry] | None = None
+    sheet: CheckSheet,
+    entries: Sequence[ItemEntry] | None = None,
+    held: HeldChains | None = None,
 ) -> AnchorLogEntry:
     """Copy a contractor's anchor pre-use sheet into the building's log book (``entries`` are
-    the sheet's entries, when the caller has just written them)."""
+    the sheet's entries, when the caller has just written them; ``held``, what the caller's
+    transaction already knows of the chains it appends to)."""
     assert sheet.anchor is not None
     written = sheet.entries.all() if entries is None else entries
     failed = [e for e in written if e.verdict == "fail"]
@@ -201,9 +231,13 @@ def log_pre_use_check(
         else "Failed: "
         + "; ".join(f"{e.item_key}{' (' + e.message + ')' if e.message else ''}" for e in failed)
     )
-    credential = SigningCredential.objects.filter(
-        organisation_id=sheet.filled_by.organisation_id, active=True
-    ).first()
+    org = sheet.filled_by.organisation_id
+    if held is not None and org in held.credentials:
+        credential = held.credentials[org]
+    else:
+        credential = SigningCredential.objects.filter(organisation_id=org, active=True).first()
+        if held is not None:
+            held.credentials[org] = credential
     return _create(
         anchor=sheet.anchor,
         by=sheet.filled_by,
@@ -221,6 +255,7 @@ def log_pre_use_check(
         meaning=PRE_USE_MEANING,
         method=f"recorded from pre-start check sheet {sheet.pk} signed in by its operator",
         sheet=sheet,
+        held=held,
     )
 
 

@@ -23,6 +23,7 @@ from django.utils.dateparse import parse_datetime
 from checklists.models import ChecklistVersion
 from checklists.selectors import usable_versions
 from checklists.services import record_sheet
+from compliance.anchor_log.services import HeldChains
 from compliance.errors import DomainError, rejection_for
 from compliance.jobs import services
 from compliance.jobs.selectors import drops_of
@@ -116,6 +117,7 @@ class JobRun:
     unused_uuids: set[uuid.UUID]
     open_hold_requirements: set[str]
     receipts: list[SyncReceipt] = field(default_factory=list)
+    chains: HeldChains = field(default_factory=HeldChains)
 
 
 class RecordRejected(Exception):
@@ -265,6 +267,7 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
         job_locked=in_run,
         uuid_unused=in_run and run is not None and client_uuid in run.unused_uuids,
         open_hold_requirements=run.open_hold_requirements if in_run and run else None,
+        held_chains=run.chains if in_run and run else None,
     )
     batch.pending_readiness.add(job.pk)
     return {
@@ -530,7 +533,17 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
                 else:
                     receipt.save()
                 batch.receipts[client_uuid] = receipt
-    except IntegrityError:
+        if status != "applied" and batch.run is not None:
+            # A refused record's savepoint may have been rolled back (an inner block that
+            # failed marks it so), with whatever it appended: see below.
+            batch.run.chains.forget()
+    except BaseException as exc:
+        if batch.run is not None:
+            # This record's savepoint rolled back, with any log entries it appended and the
+            # chain locks it took: the run's next entry locks and reads its chain again.
+            batch.run.chains.forget()
+        if not isinstance(exc, IntegrityError):
+            raise
         receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()
         if receipt is None:
             raise

@@ -31,7 +31,7 @@ from rest_framework.test import APIClient
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet
 from checklists.services import create_draft, record_sheet
-from compliance.anchor_log.services import record_entry
+from compliance.anchor_log.services import record_entry, verify_log_chain
 from compliance.jobs.services import close_job, pause_job, start_job
 from compliance.models import (
     Anchor,
@@ -113,6 +113,11 @@ EXPECTED: dict[str, int] = {
     "sync-20-records": 96,
 }
 SYNC_PER_RECORD = 4
+SYNC_ANCHOR_SHEETS = {1: 27, 3: 37}
+"""A batch of passing anchor sheets for one site: each also appends a pre-use entry to the
+site's log book. The first reads the organisation's signing credential, locks the site's chain
+and reads its last entry; the run then knows where its next entry goes and holds the lock, so
+each later one costs SYNC_PER_RECORD and its entry's insert."""
 
 KNOWN_N_PLUS_1: dict[str, str] = {}
 """Reads whose count grows with the tables, each with its cause: the grown data set is an
@@ -134,6 +139,7 @@ class World:
     equipment: Equipment
     sheet: CheckSheet
     site_check: ChecklistVersion
+    anchor_check: ChecklistVersion
     checklist: Checklist
     version: ChecklistVersion
     log_entry: AnchorLogEntry
@@ -317,6 +323,7 @@ def build_world(size: int) -> World:
         equipment=equipment,
         sheet=sheet,
         site_check=versions["site"],
+        anchor_check=versions["anchor"],
         checklist=checklists[0],
         version=checklists[0].versions.order_by("-number").first(),
         log_entry=AnchorLogEntry.objects.filter(anchor=anchor).order_by("-sequence").first(),
@@ -500,3 +507,33 @@ def test_a_sync_batch_costs_its_pinned_queries(
     assert response.status_code == 200, response.content[:500]
     assert [r["status"] for r in response.json()["results"]] == ["applied"] * count
     assert EXPECTED[name] == EXPECTED["sync-1-record"] + (count - 1) * SYNC_PER_RECORD
+
+
+@pytest.mark.parametrize("count", sorted(SYNC_ANCHOR_SHEETS))
+def test_a_sync_batch_of_anchor_sheets_locks_and_reads_the_log_chain_once(
+    world: World, count: int, django_assert_num_queries
+) -> None:
+    drop = world.job.drops.order_by("id").first()
+    anchors = [drop.anchor, drop.safety_anchor]
+    records = [
+        {
+            "type": "sheet",
+            "client_uuid": str(uuid.uuid4()),
+            "data": {
+                "job": world.job.pk,
+                "version": world.anchor_check.pk,
+                "anchor": anchors[n % 2].pk,
+                "entries": PASSING["anchor"],
+                "device_time": timezone.now().isoformat(),
+            },
+        }
+        for n in range(count)
+    ]
+    before = AnchorLogEntry.objects.filter(site=world.site).count()
+    with django_assert_num_queries(SYNC_ANCHOR_SHEETS[count]):
+        response = reader(world).post(reverse("sync"), {"records": records}, format="json")
+    assert response.status_code == 200, response.content[:500]
+    assert [r["status"] for r in response.json()["results"]] == ["applied"] * count
+    assert AnchorLogEntry.objects.filter(site=world.site).count() == before + count
+    assert verify_log_chain(world.site.pk) == []
+    assert SYNC_ANCHOR_SHEETS[3] == SYNC_ANCHOR_SHEETS[1] + 2 * (SYNC_PER_RECORD + 1)

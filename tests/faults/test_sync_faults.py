@@ -205,3 +205,47 @@ def test_a_fault_in_a_jobs_run_leaves_none_of_its_records(job, simple_checklists
     assert [r["status"] for r in results] == ["applied"] * 3
     assert not any(r.get("duplicate") for r in results)
     assert_whole(records, expected, applied={r["client_uuid"] for r in records})
+
+
+@pytest.mark.django_db
+def test_a_refused_record_that_had_appended_to_the_log_book_leaves_the_chain_whole(
+    job, simple_checklists, operator
+):
+    """Within a job's run, the log chain is locked and read once, then followed from the last
+    entry the run wrote. A record whose savepoint rolls back after it appended an entry (here,
+    refused after the append) takes that entry with it: the next anchor sheet of the run must
+    not chain to it."""
+    from checklists import services as sheet_services
+    from compliance.anchor_log.services import log_pre_use_check, verify_log_chain
+    from compliance.models import AnchorLogEntry
+
+    drop = job.drops.get()
+    records = []
+    for anchor in (drop.anchor, drop.safety_anchor, drop.anchor):
+        records.append(
+            {
+                "type": "sheet",
+                "client_uuid": str(uuid.uuid4()),
+                "data": {
+                    "job": job.pk,
+                    "version": simple_checklists["anchor"].pk,
+                    "anchor": anchor.pk,
+                    "entries": PASSING["anchor"],
+                },
+            }
+        )
+    calls = {"count": 0}
+
+    def append_then_refuse(*args, **kwargs):
+        entry = log_pre_use_check(*args, **kwargs)
+        calls["count"] += 1
+        if calls["count"] == 2:
+            raise sheet_services.ValidationError({"entries": "Refused after the append."})
+        return entry
+
+    with mock.patch.object(sheet_services, "log_pre_use_check", side_effect=append_then_refuse):
+        results = post(client_for(operator), records).json()["results"]
+
+    assert [r["status"] for r in results] == ["applied", "rejected", "applied"]
+    assert AnchorLogEntry.objects.filter(site=job.site).count() == 2
+    assert verify_log_chain(job.site_id) == []
