@@ -111,7 +111,7 @@ def run(url: str, crews: list[rig.Crew], spawn_rate: int) -> dict[str, object]:
         wall = time.perf_counter() - started
         out = Path(folder) / "out.json"
         if not out.exists():
-            raise RuntimeError(f"locust reported nothing:\n{result.stderr[-3000:]}")
+            raise RuntimeError(f"locust reported nothing (exit {result.returncode}); see above")
         row = json.loads(out.read_text())
     sheets = len(crews) * rig.SHEETS_PER_BATCH
     return {"N": len(crews), **row, "wall_s": wall, "sheets_per_s": sheets / wall}
