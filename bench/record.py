@@ -209,27 +209,31 @@ def main() -> None:
     figures["reportlab alone, same tables, Paragraph cells"], para = timed(
         lambda: plain_tables(document, paragraphs=True), args.repeat
     )
-    # The file the server stores (rendered, signed and kept as checked, as the render task
-    # does), checked for the first time: what an auditor's download is checked as.
+    # The file the server stores: rendered, signed and kept as checked, as the render task
+    # does, so its first check on the server (an auditor's download) draws nothing.
     with RecordPdf.objects.get(record=ensure_pdf(record).record).file.open("rb") as stored:
         signed = stored.read()
-    started = time.perf_counter()
-    report = verify_pdf(signed, name="record.pdf")
-    figures["verify with the database, the server's own file, its first check"] = (
-        time.perf_counter() - started
-    )
-    assert report.ok, report.verdict()
-    PageCheck.objects.filter(seal=record.seal).delete()
-    started = time.perf_counter()
-    report = verify_pdf(signed, name="record.pdf")
-    figures["verify with the database, a file not seen before (pages drawn again)"] = (
-        time.perf_counter() - started
-    )
-    assert report.ok, report.verdict()
-    figures["verify with the database, the same file again (page check kept)"], report = timed(
+    assert PageCheck.objects.filter(seal=record.seal).count() == 1
+    verify_pdf(signed, name="record.pdf")  # the process's first verification (cold caches)
+    figures["verify with the database, the file the server made (kept as checked)"], report = timed(
         lambda: verify_pdf(signed, name="record.pdf"), args.repeat
     )
     assert report.ok, report.verdict()
+
+    def first_check() -> Report:
+        """A file this server did not make: nothing kept, the pages drawn again."""
+        PageCheck.objects.filter(seal=record.seal).delete()
+        started = time.perf_counter()
+        report = verify_pdf(signed, name="record.pdf")
+        drawn.append(time.perf_counter() - started)
+        return report
+
+    drawn: list[float] = []
+    for _ in range(args.repeat):
+        assert first_check().ok
+    figures["verify with the database, a file not seen before (pages drawn again)"] = (
+        statistics.median(drawn)
+    )
     figures["verify offline (no database: pages drawn again)"], _ = timed(
         lambda: verify_pdf(
             signed,
@@ -270,14 +274,13 @@ def main() -> None:
     )
     for label, name in (
         (
-            "verify db, the server's own file, first check",
-            "verify with the database, the server's own file, its first check",
+            "verify db, the file the server made",
+            "verify with the database, the file the server made (kept as checked)",
         ),
         (
-            "verify db, new file",
+            "verify db, a file never seen",
             "verify with the database, a file not seen before (pages drawn again)",
         ),
-        ("verify db, same file", "verify with the database, the same file again (page check kept)"),
         ("verify offline", "verify offline (no database: pages drawn again)"),
     ):
         print(

@@ -9,6 +9,7 @@ photo bytes lays out every page the same way.
 
 import datetime as dt
 import io
+import itertools
 import json
 import math
 import re
@@ -23,6 +24,7 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 import reportlab
 from pypdf import PdfReader
 from reportlab import rl_config
+from reportlab.graphics.barcode import qrencoder
 from reportlab.graphics.barcode.qr import QrCodeWidget
 from reportlab.graphics.shapes import Circle, Drawing, Line, PolyLine, Rect, String
 from reportlab.lib import colors
@@ -319,13 +321,61 @@ def _table(
     return table
 
 
+QR_SIZE = 32 * mm
+QR_BORDER = 4
+"""Modules of white space around the code, as a reader needs."""
+
+
 def _qr(seal: str) -> Drawing:
+    """The seal as a QR code, as reportlab graphics (the layouts up to /3)."""
     widget = QrCodeWidget(f"parapet-seal:{seal}")
     x1, y1, x2, y2 = widget.getBounds()
-    size = 32 * mm
-    drawing = Drawing(size, size, transform=[size / (x2 - x1), 0, 0, size / (y2 - y1), 0, 0])
+    # getBounds() drew the code once, working out its modules; drawing it again on the page
+    # would work them out again, to the same modules (a tenth of a record's drawing).
+    widget.qr.make = lambda: None
+    drawing = Drawing(
+        QR_SIZE, QR_SIZE, transform=[QR_SIZE / (x2 - x1), 0, 0, QR_SIZE / (y2 - y1), 0, 0]
+    )
     drawing.add(widget)
     return drawing
+
+
+class _CanvasQr(Flowable):
+    """The seal as a QR code drawn straight on the canvas (the layouts from /4): its modules
+    worked out once, each row's runs of dark modules filled as one path."""
+
+    def __init__(self, seal: str) -> None:
+        super().__init__()
+        self.width = self.height = QR_SIZE
+        code = qrencoder.QRCode(None, qrencoder.QRErrorCorrectLevel.L)
+        code.addData(f"parapet-seal:{seal}")
+        code.make()
+        self.modules = [[bool(m) for m in row] for row in code.modules]
+
+    def wrap(self, avail_width: float, avail_height: float) -> tuple[float, float]:
+        return self.width, self.height
+
+    def draw(self) -> None:
+        count = len(self.modules)
+        box = QR_SIZE / (count + 2 * QR_BORDER)
+        c = self.canv
+        c.saveState()
+        c.setFillColor(colors.black)
+        path = c.beginPath()
+        for r, row in enumerate(self.modules):
+            column = 0
+            for dark, run in itertools.groupby(row):
+                length = len(list(run))
+                if dark:
+                    path.rect(
+                        (column + QR_BORDER) * box,
+                        QR_SIZE - (r + QR_BORDER + 1) * box,
+                        length * box,
+                        box,
+                    )
+                column += length
+        c.drawPath(path, stroke=0, fill=1)
+        c.restoreState()
 
 
 class _NumberedCanvas(rl_canvas.Canvas):
@@ -607,7 +657,7 @@ def _cover(
                         [32 * mm, 110 * mm],
                         header=False,
                     ),
-                    _qr(seal),
+                    _CanvasQr(seal) if look.plain else _qr(seal),
                 ]
             ],
             colWidths=[145 * mm, 35 * mm],
