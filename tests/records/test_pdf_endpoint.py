@@ -186,3 +186,24 @@ def test_the_stored_record_is_checked_on_the_server_as_an_upload_of_it_would_be(
     assert {k: v for k, v in uploaded.items() if k != "verdict"} == {
         k: v for k, v in report.items() if k != "verdict"
     }
+
+
+RENDER_QUERIES = 9
+"""Rendering and storing a record's PDF: is one stored, its signing credential and site (for the
+signature; a record with photos reads them too, in one query), then the file's row in its
+transaction (a savepoint inside a test's) and the kept page check (a savepoint, its insert, its
+release)."""
+
+
+def test_rendering_a_record_costs_its_pinned_queries(
+    signed, settings, tmp_path, django_assert_num_queries
+):
+    from compliance.records.files import ensure_pdf
+
+    settings.MEDIA_ROOT = tmp_path
+    record = DailyRecord.objects.get(pk=signed.pk)
+    with django_assert_num_queries(RENDER_QUERIES):
+        stored = ensure_pdf(record)
+    assert PageCheck.objects.filter(pdf_sha256=stored.sha256, seal=record.seal).count() == 1
+    with django_assert_num_queries(1):  # rendered once: the stored one is returned
+        assert ensure_pdf(record) == stored
