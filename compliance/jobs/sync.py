@@ -1,11 +1,13 @@
 """The phone's offline queue lands here: a batch of client records, each applied exactly once.
 
 The records that follow one another for one job are applied in one transaction that locks the
-job's row first: each record in its own savepoint, their receipts written together at the end,
-the job's readiness settled once before it commits. A record refused rolls back alone; a batch
-cut off half-way leaves whole records behind (those of the jobs it finished), and a retry answers
-from the receipts. A record of no job (a drop log, one that names no usable job) is applied in
-its own transaction with its receipt.
+job's row first, their receipts written together at the end, the job's readiness settled once
+before it commits. The run is first applied without a savepoint per record (two statements a
+record saved); should any of its records be refused or clash, the whole run rolls back and is
+applied again with each record in its own savepoint, so a record refused rolls back alone. A
+batch cut off half-way leaves whole records behind (those of the jobs it finished), and a retry
+answers from the receipts. A record of no job (a drop log, one that names no usable job) is
+applied in its own transaction with its receipt.
 """
 
 import datetime as dt
@@ -120,6 +122,13 @@ class JobRun:
     open_hold_requirements: set[str]
     receipts: list[SyncReceipt] = field(default_factory=list)
     chains: HeldChains = field(default_factory=HeldChains)
+    optimistic: bool = False
+    """No savepoint per record: any refusal or clash raises RunRefused instead of being
+    answered, and the run is applied again with a savepoint per record."""
+
+
+class RunRefused(Exception):
+    """A record of an optimistic run was refused or clashed; the run rolls back whole."""
 
 
 class RecordRejected(Exception):
@@ -401,13 +410,16 @@ def _job_named(record: Any) -> int | None:
     return job_id if _is_id(job_id) else None
 
 
-def _apply_job_run(batch: Batch, job_id: int, records: list[Any]) -> list[dict[str, Any]]:
+def _apply_job_run(
+    batch: Batch, job_id: int, records: list[Any], optimistic: bool = True
+) -> list[dict[str, Any]]:
     """Apply consecutive records of one job in one transaction (see the module's docstring).
 
     The job's row is locked first, so a second request with the same records waits here and
     then finds their receipts. Should one be written meanwhile all the same (a receipt's
     client uuid is unique), the whole run rolls back and each record is applied on its own,
-    answering from the receipt the other request wrote.
+    answering from the receipt the other request wrote. ``optimistic``: no savepoint per
+    record; a refused record rolls the run back and it is applied again with them.
     """
     uuids = [u for u in _uuids(records) if u not in batch.receipts]
     known_before = dict(batch.receipts)
@@ -437,13 +449,22 @@ def _apply_job_run(batch: Batch, job_id: int, records: list[Any]) -> list[dict[s
                     ).values_list("requirement", flat=True)
                 )
             batch.run = JobRun(
-                job_id=job_id, job=job, unused_uuids=unused, open_hold_requirements=open_holds
+                job_id=job_id,
+                job=job,
+                unused_uuids=unused,
+                open_hold_requirements=open_holds,
+                optimistic=optimistic,
             )
             lines = [apply_record(batch, record) for record in records]
             if batch.run.receipts:
                 SyncReceipt.objects.bulk_create(batch.run.receipts)
             batch.settle(job_id)
             return lines
+    except RunRefused:
+        batch.run = None
+        batch.receipts = known_before
+        batch.pending_readiness.discard(job_id)
+        return _apply_job_run(batch, job_id, records, optimistic=False)
     except IntegrityError:
         batch.run = None
         batch.receipts = known_before
@@ -507,19 +528,23 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
     if found is not None:
         where, why = found
         return {**line, "status": "rejected", "errors": {where or "data": [why]}}
+    optimistic = batch.run is not None and batch.run.optimistic
     try:
-        with transaction.atomic():
+        with transaction.atomic(savepoint=not optimistic):
             try:
                 result = APPLY[kind](batch, data, client_uuid)
                 status = "applied"
-            except RecordRejected as exc:
-                result, status = {"errors": exc.errors}, "rejected"
-            except (ValidationError, DomainError) as exc:
-                # The API's mapping of domain errors, as one refused record's errors.
-                result, status = (
-                    rejection_for(exc) or {"errors": {"record": [str(exc)]}},
-                    "rejected",
-                )
+            except (RecordRejected, ValidationError, DomainError) as exc:
+                if optimistic:  # no savepoint to roll this record back to alone
+                    raise RunRefused from exc
+                if isinstance(exc, RecordRejected):
+                    result, status = {"errors": exc.errors}, "rejected"
+                else:
+                    # The API's mapping of domain errors, as one refused record's errors.
+                    result, status = (
+                        rejection_for(exc) or {"errors": {"record": [str(exc)]}},
+                        "rejected",
+                    )
             if status == "applied":
                 receipt = SyncReceipt(
                     client_uuid=client_uuid,
@@ -544,6 +569,8 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
             # This record's savepoint rolled back, with any log entries it appended and the
             # chain locks it took: the run's next entry locks and reads its chain again.
             batch.run.chains.forget()
+        if optimistic and isinstance(exc, IntegrityError):
+            raise RunRefused from exc  # the transaction is broken: no read is possible
         if not isinstance(exc, IntegrityError):
             raise
         receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()

@@ -107,13 +107,13 @@ EXPECTED: dict[str, int] = {
     # One batch of passing site sheets for one job, applied in one transaction with the job
     # locked: the batch reads its versions once; the job's run reads its lock, receipts, open
     # holds and drops once, writes the receipts together and settles readiness once. Each
-    # record costs SYNC_PER_RECORD: its savepoint (two statements) and the sheet's two inserts
-    # (the sheet, its entries).
-    "sync-1-record": 20,
-    "sync-20-records": 96,
+    # record costs SYNC_PER_RECORD: the sheet's two inserts (the sheet, its entries); a run
+    # whose records all apply needs no savepoint per record.
+    "sync-1-record": 18,
+    "sync-20-records": 56,
 }
-SYNC_PER_RECORD = 4
-SYNC_ANCHOR_SHEETS = {1: 27, 3: 37}
+SYNC_PER_RECORD = 2
+SYNC_ANCHOR_SHEETS = {1: 25, 3: 31}
 """A batch of passing anchor sheets for one site: each also appends a pre-use entry to the
 site's log book. The first reads the organisation's signing credential, locks the site's chain
 and reads its last entry; the run then knows where its next entry goes and holds the lock, so

@@ -61,3 +61,34 @@ def test_a_sheet_posted_alone_with_unstorable_text_is_a_400_naming_it(
     assert response.status_code == 400, response.content[:300]
     assert list(response.json()) == ["remarks"]
     assert CheckSheet.objects.count() == 0
+
+
+def test_a_record_refused_after_it_wrote_leaves_nothing_and_its_run_applies_once(
+    job, simple_checklists, operator, monkeypatch
+):
+    """A job's run is first applied with no savepoint per record; a record refused after its
+    sheet was written (here, its outcome refused) rolls the whole run back, and the run is
+    applied again with a savepoint per record: the refused one leaves nothing, the others land
+    once, with one receipt each."""
+    from checklists import services as sheet_services
+    from compliance.errors import InvalidTransition
+    from compliance.models import SyncReceipt
+
+    records = [site_record(job, simple_checklists) for _ in range(3)]
+    refused = records[1]["client_uuid"]
+    outcome = sheet_services.apply_sheet_outcome
+
+    def refuse_the_second(*, sheet, **kwargs):
+        outcome(sheet=sheet, **kwargs)
+        if str(sheet.client_uuid) == refused:
+            raise InvalidTransition("Refused after the sheet was written.")
+
+    monkeypatch.setattr(sheet_services, "apply_sheet_outcome", refuse_the_second)
+    response = client_for(operator).post(reverse("sync"), {"records": records}, format="json")
+
+    assert [r["status"] for r in response.json()["results"]] == ["applied", "rejected", "applied"]
+    kept = {records[0]["client_uuid"], records[2]["client_uuid"]}
+    assert {str(u) for u in CheckSheet.objects.values_list("client_uuid", flat=True)} == kept
+    assert {str(u) for u in SyncReceipt.objects.values_list("client_uuid", flat=True)} == kept
+    sheet = CheckSheet.objects.get(client_uuid=records[0]["client_uuid"])
+    assert sheet.entries.count() == len(simple_checklists["site"].items)

@@ -234,12 +234,11 @@ def test_a_refused_record_that_had_appended_to_the_log_book_leaves_the_chain_who
                 },
             }
         )
-    calls = {"count": 0}
+    refused = records[1]["client_uuid"]
 
-    def append_then_refuse(*args, **kwargs):
-        entry = log_pre_use_check(*args, **kwargs)
-        calls["count"] += 1
-        if calls["count"] == 2:
+    def append_then_refuse(sheet, *args, **kwargs):
+        entry = log_pre_use_check(sheet, *args, **kwargs)
+        if str(sheet.client_uuid) == refused:
             raise sheet_services.ValidationError({"entries": "Refused after the append."})
         return entry
 
