@@ -263,6 +263,17 @@ def _fits(text: str, width: float, style: ParagraphStyle) -> bool:
     )
 
 
+def _plain_cell(cell: Any, width: float, heading: bool) -> Any:
+    """A cell of the plain layout: a string stays plain text when it fits on one line (a
+    heading: when it is short), else it becomes a paragraph; anything else is kept."""
+    if not isinstance(cell, str):
+        return cell
+    s = _styles()
+    if heading:
+        return cell if len(cell) <= SHORT_TEXT and "\n" not in cell else _p(cell, s["head"])
+    return cell if _fits(cell, width, s["small"]) else _p(cell, s["small"])
+
+
 def _table(
     rows: list[list[Any]],
     widths: list[float],
@@ -278,14 +289,9 @@ def _table(
     regular, bold = _register_fonts()
     s = _styles()
     if plain:
-        small = s["small"]
         cells = [
             [
-                cell
-                if not isinstance(cell, str)
-                or (header and r == 0 and len(cell) <= SHORT_TEXT and "\n" not in cell)
-                or (not (header and r == 0) and _fits(cell, width, small))
-                else _p(cell, s["head"] if header and r == 0 else small)
+                _plain_cell(cell, width, header and r == 0)
                 for cell, width in zip(row, widths, strict=False)
             ]
             for r, row in enumerate(rows)
@@ -342,7 +348,7 @@ def _qr(seal: str) -> Drawing:
 
 class _CanvasQr(Flowable):
     """The seal as a QR code drawn straight on the canvas (the layouts from /4): its modules
-    worked out once, each row's runs of dark modules filled as one path."""
+    worked out once, every run of dark modules a rectangle of one filled path."""
 
     def __init__(self, seal: str) -> None:
         super().__init__()
