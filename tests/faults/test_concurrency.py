@@ -143,3 +143,28 @@ def test_start_job_called_concurrently_moves_once(simple_checklists, rounds):
         states = at_once(*[(lambda u=u, j=job: start_job(job=j, by=u).state) for u in crew])
         assert states == ["working"] * 3
         assert JobTransition.objects.filter(job=job, to_state="working").count() == 1
+
+
+def test_two_jobs_at_one_building_append_to_its_log_book_at_once(job, simple_checklists, operator):
+    """Each job's run locks the building's log chain once and then follows the entries it
+    wrote itself: two runs at once must still take turns, so the chain stays one unbroken
+    line holding every pre-use entry of both."""
+    from compliance.anchor_log.services import verify_log_chain
+    from compliance.models import AnchorLogEntry
+    from tests.factories import JobFactory, make_drop
+
+    other = JobFactory(site=job.site, organisation=job.organisation, supervisor=job.supervisor)
+    make_drop(other)
+    first, second = sheet_records(job, simple_checklists), sheet_records(other, simple_checklists)
+    anchor_sheets = sum(1 for r in first + second if "anchor" in r["data"])
+    assert anchor_sheets >= 4
+
+    (status_a, body_a), (status_b, body_b) = at_once(
+        poster(operator, first), poster(operator, second)
+    )
+
+    assert (status_a, status_b) == (200, 200), (body_a, body_b)
+    assert {r["status"] for r in body_a["results"] + body_b["results"]} == {"applied"}
+    entries = AnchorLogEntry.objects.filter(site=job.site)
+    assert sorted(entries.values_list("sequence", flat=True)) == list(range(1, anchor_sheets + 1))
+    assert verify_log_chain(job.site_id) == []
