@@ -44,6 +44,8 @@ def canonical_bytes(document: Any) -> bytes:
         kind = type(value)
         if kind is str or kind is bool or value is None:
             return value
+        if isinstance(value, str):  # a subclass, such as a model's choice: JSON writes its text
+            return str.__str__(value)
         if kind is int:
             if -_SAFE_INT <= value <= _SAFE_INT:
                 return value

@@ -127,3 +127,34 @@ def test_is_canonical_answers_as_the_definition_for_any_writer(value, write):
 )
 def test_is_canonical_on_the_edges(raw):
     assert is_canonical(raw) is reference_is_canonical(raw)
+
+
+def test_a_str_subclass_is_written_as_its_text_without_leaving_the_fast_path(monkeypatch):
+    """A model's choice (a str subclass, such as an anchor log entry's kind) is written as the
+    text it holds, as rfc8785 writes it, by the C encoder: it sent whole log entries down the
+    pure Python writer before."""
+    import enum
+
+    from compliance.records import sealing
+
+    class Kind(enum.StrEnum):
+        PRE_USE = "pre_use_check"
+
+        def __str__(self) -> str:  # what str() says is not what JSON writes
+            return "Kind.PRE_USE"
+
+    value = {"kind": Kind.PRE_USE, "result": "pass", "ratio": 0.5}
+    expected = rfc8785.dumps({"kind": "pre_use_check", "result": "pass", "ratio": 0.5})
+    assert rfc8785.dumps(value) == expected
+    whole = []
+    real = sealing.rfc8785.dumps
+
+    def dumps(written):
+        if isinstance(written, dict):
+            whole.append(written)
+        return real(written)
+
+    monkeypatch.setattr(sealing.rfc8785, "dumps", dumps)
+
+    assert canonical_bytes(value) == expected
+    assert whole == []
