@@ -1,0 +1,83 @@
+"""A sheet's entries written by one COPY on PostgreSQL are the rows the ORM writes."""
+
+import pytest
+from django.db import connection
+
+from checklists.models import CheckSheet, ItemEntry
+from checklists.services import _insert_entries
+
+pytestmark = [pytest.mark.postgres, pytest.mark.django_db]
+
+ODD_VALUES = [
+    None,
+    "pass",
+    'Ünïcode — ½ kN, "quoted", back\\slash, tab\tand newline\n',
+    0.1,
+    1e-7,
+    -0.0,
+    2**53,
+    [[0, 70.0], [5, 69.4]],
+    {"nested": {"list": [1, 2.5, None, True]}, "empty": {}},
+]
+
+
+def _rows(sheet):
+    with connection.cursor() as cursor:
+        cursor.execute(
+            "SELECT item_key, kind, value IS NULL, value::text, unit, verdict, blocking, margin,"
+            " message, working::text FROM checklists_itementry WHERE sheet_id = %s"
+            " ORDER BY item_key",
+            [sheet.pk],
+        )
+        return cursor.fetchall()
+
+
+def _entries(sheet):
+    return [
+        ItemEntry(
+            sheet=sheet,
+            item_key=f"item_{n}",
+            kind="reading",
+            value=value,
+            unit="kN",
+            verdict="pass" if n % 2 else "fail",
+            blocking=bool(n % 3),
+            margin=None if n % 4 == 0 else n / 7,
+            message=f"message {n} with ümlauts",
+            working={"inputs": {"value": value}, "steps": [f"step {n}"]},
+        )
+        for n, value in enumerate(ODD_VALUES)
+    ]
+
+
+def test_the_copied_rows_are_the_rows_the_orm_writes(job, simple_checklists, operator):
+    version = simple_checklists["site"]
+    fresh_a = CheckSheet.objects.create(
+        client_uuid="00000000-0000-4000-8000-00000000000a",
+        job=job,
+        version=version,
+        version_hash=version.content_hash,
+        subject_kind="site",
+        filled_by=operator,
+        verdict="pass",
+        blocking_failures=0,
+    )
+    fresh_b = CheckSheet.objects.create(
+        client_uuid="00000000-0000-4000-8000-00000000000b",
+        job=job,
+        version=version,
+        version_hash=version.content_hash,
+        subject_kind="site",
+        filled_by=operator,
+        verdict="pass",
+        blocking_failures=0,
+    )
+
+    _insert_entries(_entries(fresh_a))
+    ItemEntry.objects.bulk_create(_entries(fresh_b))
+
+    assert len(_rows(fresh_a)) == len(ODD_VALUES)
+    assert _rows(fresh_a) == _rows(fresh_b)
+    # What a reader gets back is the same too.
+    read = {e.item_key: (e.value, e.working) for e in ItemEntry.objects.filter(sheet=fresh_a)}
+    assert read == {e.item_key: (e.value, e.working) for e in _entries(fresh_b)}
