@@ -50,28 +50,23 @@ def _entries(sheet):
     ]
 
 
+def _sheet(job, version, operator, n):
+    return CheckSheet.objects.create(
+        client_uuid=f"00000000-0000-4000-8000-00000000000{n}",
+        job=job,
+        version=version,
+        version_hash=version.content_hash,
+        subject_kind="site",
+        filled_by=operator,
+        verdict="pass",
+        blocking_failures=0,
+    )
+
+
 def test_the_copied_rows_are_the_rows_the_orm_writes(job, simple_checklists, operator):
     version = simple_checklists["site"]
-    fresh_a = CheckSheet.objects.create(
-        client_uuid="00000000-0000-4000-8000-00000000000a",
-        job=job,
-        version=version,
-        version_hash=version.content_hash,
-        subject_kind="site",
-        filled_by=operator,
-        verdict="pass",
-        blocking_failures=0,
-    )
-    fresh_b = CheckSheet.objects.create(
-        client_uuid="00000000-0000-4000-8000-00000000000b",
-        job=job,
-        version=version,
-        version_hash=version.content_hash,
-        subject_kind="site",
-        filled_by=operator,
-        verdict="pass",
-        blocking_failures=0,
-    )
+    fresh_a = _sheet(job, version, operator, 1)
+    fresh_b = _sheet(job, version, operator, 2)
 
     _insert_entries(_entries(fresh_a))
     ItemEntry.objects.bulk_create(_entries(fresh_b))
