@@ -5,6 +5,7 @@ import difflib
 import json
 import math
 import uuid
+from collections.abc import Sequence
 from typing import Any
 
 from django.core.exceptions import ValidationError
@@ -14,7 +15,7 @@ from django.utils import timezone
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
 from checklists.selectors import UNKNOWN_VERSION
-from checklists.verdicts import EntryError, SheetOutcome, evaluate
+from checklists.verdicts import EntryError, ItemResult, SheetOutcome, evaluate
 from compliance.anchor_log.services import HeldChains, log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
@@ -92,6 +93,11 @@ def _check_storable(outcome: SheetOutcome) -> None:
             return all(finite(v) for v in value)
         return True
 
+    try:  # C's encoder refuses a non-finite number anywhere: one pass for the usual sheet
+        json.dumps([[i.value, i.margin, i.working] for i in outcome.items], allow_nan=False)
+        return
+    except (ValueError, TypeError, RecursionError):
+        pass  # find the entry to name (or, for what JSON cannot write, leave it to the walk)
     for item in outcome.items:
         if not finite([item.value, item.margin, item.working]):
             raise ValidationError(
@@ -335,33 +341,55 @@ def _subject_for(
     return kind
 
 
-def _insert_entries(entries: list[ItemEntry]) -> list[ItemEntry]:
+def _entry(sheet: CheckSheet, result: ItemResult) -> ItemEntry:
+    return ItemEntry(
+        sheet=sheet,
+        item_key=result.key,
+        kind=result.kind,
+        value=result.value,
+        unit=result.unit,
+        verdict=result.verdict,
+        blocking=result.blocking,
+        margin=result.margin,
+        message=result.message,
+        working=result.working,
+    )
+
+
+def _insert_entries(sheet: CheckSheet, results: Sequence[ItemResult]) -> None:
     """A sheet's entries, written in one statement.
 
-    On PostgreSQL one COPY writes the rows the ORM's bulk insert would (every column of the
-    model but its key; a JSON value of None as SQL NULL, as a nullable JSONField stores it),
-    without preparing every field of every row in Python: that was a fifth of a morning
-    sync's batch. Elsewhere, bulk_create. The entries come back without primary keys, which
-    nothing in recording a sheet needs.
+    On PostgreSQL one COPY writes the rows the ORM's bulk insert of ``_entry`` would (every
+    column of the model but its key; a JSON value of None as SQL NULL, as a nullable JSONField
+    stores it, any other as the text ``json.dumps`` gives, which is what psycopg's Jsonb
+    sends), straight from the results: without a model instance per entry or preparing every
+    field of every row in Python, which were a fifth of a morning sync's batch. Elsewhere,
+    bulk_create.
     """
     if connection.vendor != "postgresql":
-        return ItemEntry.objects.bulk_create(entries)
-    from psycopg.types.json import Jsonb  # PostgreSQL only
-
+        ItemEntry.objects.bulk_create([_entry(sheet, r) for r in results])
+        return
     fields = [f for f in ItemEntry._meta.concrete_fields if not f.primary_key]
-    as_json = {f.attname for f in fields if isinstance(f, models.JSONField)}
+    # Each column's value from a result: the sheet's key, the item's key, else its namesake.
+    parts = [
+        (
+            "sheet" if f.attname == "sheet_id" else "key" if f.attname == "item_key" else f.attname,
+            isinstance(f, models.JSONField),
+        )
+        for f in fields
+    ]
     columns = ", ".join(f.column for f in fields)
+    dumps = json.dumps
     with (
         connection.cursor() as cursor,
         cursor.copy(f"COPY {ItemEntry._meta.db_table} ({columns}) FROM STDIN") as copy,
     ):
-        for entry in entries:
+        for result in results:
             row = []
-            for f in fields:
-                value = getattr(entry, f.attname)
-                row.append(Jsonb(value) if f.attname in as_json and value is not None else value)
+            for name, as_json in parts:
+                value = sheet.pk if name == "sheet" else getattr(result, name)
+                row.append(dumps(value) if as_json and value is not None else value)
             copy.write_row(row)
-    return entries
 
 
 def record_sheet(
@@ -443,23 +471,7 @@ def record_sheet(
                 blocking_failures=len(outcome.blocking_failures),
                 remarks=remarks,
             )
-            created = _insert_entries(
-                [
-                    ItemEntry(
-                        sheet=sheet,
-                        item_key=r.key,
-                        kind=r.kind,
-                        value=r.value,
-                        unit=r.unit,
-                        verdict=r.verdict,
-                        blocking=r.blocking,
-                        margin=r.margin,
-                        message=r.message,
-                        working=r.working,
-                    )
-                    for r in outcome.items
-                ]
-            )
+            _insert_entries(sheet, outcome.items)
             apply_sheet_outcome(
                 sheet=sheet,
                 outcome=outcome,
@@ -470,7 +482,8 @@ def record_sheet(
                 open_hold_requirements=open_hold_requirements,
             )
             if subject_kind == "anchor":
-                log_pre_use_check(sheet, entries=created, held=held_chains)
+                entries_written = [_entry(sheet, r) for r in outcome.items]
+                log_pre_use_check(sheet, entries=entries_written, held=held_chains)
     except IntegrityError:
         if not savepoint:  # the caller's savepoint rolls back, and it answers the retry
             raise

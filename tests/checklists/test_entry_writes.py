@@ -5,6 +5,7 @@ from django.db import connection
 
 from checklists.models import CheckSheet, ItemEntry
 from checklists.services import _insert_entries
+from checklists.verdicts import ItemResult
 
 pytestmark = [pytest.mark.postgres, pytest.mark.django_db]
 
@@ -32,21 +33,39 @@ def _rows(sheet):
         return cursor.fetchall()
 
 
-def _entries(sheet):
+def _results():
     return [
-        ItemEntry(
-            sheet=sheet,
-            item_key=f"item_{n}",
+        ItemResult(
+            key=f"item_{n}",
             kind="reading",
+            label=f"Item {n}",
+            blocking=bool(n % 3),
+            verdict="pass" if n % 2 else "fail",
             value=value,
             unit="kN",
-            verdict="pass" if n % 2 else "fail",
-            blocking=bool(n % 3),
             margin=None if n % 4 == 0 else n / 7,
             message=f"message {n} with ümlauts",
             working={"inputs": {"value": value}, "steps": [f"step {n}"]},
         )
         for n, value in enumerate(ODD_VALUES)
+    ]
+
+
+def _entries_by_the_orm(sheet):
+    return [
+        ItemEntry(
+            sheet=sheet,
+            item_key=r.key,
+            kind=r.kind,
+            value=r.value,
+            unit=r.unit,
+            verdict=r.verdict,
+            blocking=r.blocking,
+            margin=r.margin,
+            message=r.message,
+            working=r.working,
+        )
+        for r in _results()
     ]
 
 
@@ -68,11 +87,11 @@ def test_the_copied_rows_are_the_rows_the_orm_writes(job, simple_checklists, ope
     fresh_a = _sheet(job, version, operator, 1)
     fresh_b = _sheet(job, version, operator, 2)
 
-    _insert_entries(_entries(fresh_a))
-    ItemEntry.objects.bulk_create(_entries(fresh_b))
+    _insert_entries(fresh_a, _results())
+    ItemEntry.objects.bulk_create(_entries_by_the_orm(fresh_b))
 
     assert len(_rows(fresh_a)) == len(ODD_VALUES)
     assert _rows(fresh_a) == _rows(fresh_b)
     # What a reader gets back is the same too.
     read = {e.item_key: (e.value, e.working) for e in ItemEntry.objects.filter(sheet=fresh_a)}
-    assert read == {e.item_key: (e.value, e.working) for e in _entries(fresh_b)}
+    assert read == {e.item_key: (e.value, e.working) for e in _entries_by_the_orm(fresh_b)}
