@@ -120,7 +120,9 @@ def run(url: str, crews: list[rig.Crew], spawn_rate: int) -> dict[str, object]:
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__)
     parser.add_argument("--crews", type=int, nargs="+", default=[10, 50])
-    parser.add_argument("--workers", type=int, default=4)
+    parser.add_argument(
+        "--workers", type=int, default=None, help="the deploy's gunicorn.conf.py: one per core"
+    )
     parser.add_argument("--spawn-rate", type=int, default=8, help="crews starting per second")
     args = parser.parse_args()
     migrate()
