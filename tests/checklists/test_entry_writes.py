@@ -4,7 +4,7 @@ import pytest
 from django.db import connection
 
 from checklists.models import CheckSheet, ItemEntry
-from checklists.services import _insert_entries
+from checklists.services import _entry, _insert_entries
 from checklists.verdicts import ItemResult
 
 pytestmark = [pytest.mark.postgres, pytest.mark.django_db]
@@ -52,21 +52,8 @@ def _results():
 
 
 def _entries_by_the_orm(sheet):
-    return [
-        ItemEntry(
-            sheet=sheet,
-            item_key=r.key,
-            kind=r.kind,
-            value=r.value,
-            unit=r.unit,
-            verdict=r.verdict,
-            blocking=r.blocking,
-            margin=r.margin,
-            message=r.message,
-            working=r.working,
-        )
-        for r in _results()
-    ]
+    # The model instances the SQLite path and the log book's copy make, bulk-inserted.
+    return [_entry(sheet, r) for r in _results()]
 
 
 def _sheet(job, version, operator, n):
