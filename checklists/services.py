@@ -6,6 +6,7 @@ import json
 import math
 import uuid
 from collections.abc import Sequence
+from operator import attrgetter
 from typing import Any
 
 from django.core.exceptions import ValidationError
@@ -370,14 +371,11 @@ def _insert_entries(sheet: CheckSheet, results: Sequence[ItemResult]) -> None:
         ItemEntry.objects.bulk_create([_entry(sheet, r) for r in results])
         return
     fields = [f for f in ItemEntry._meta.concrete_fields if not f.primary_key]
-    # Each column's value from a result: the sheet's key, the item's key, else its namesake.
-    parts = [
-        (
-            "sheet" if f.attname == "sheet_id" else "key" if f.attname == "item_key" else f.attname,
-            isinstance(f, models.JSONField),
-        )
-        for f in fields
-    ]
+    # The columns in this order: the sheet's key, then each result's item key or the field's
+    # namesake; JSON ones (never the sheet's) as text.
+    fields.sort(key=lambda f: f.attname != "sheet_id")
+    read = attrgetter(*("key" if f.attname == "item_key" else f.attname for f in fields[1:]))
+    as_json = [i for i, f in enumerate(fields) if isinstance(f, models.JSONField)]
     columns = ", ".join(f.column for f in fields)
     dumps = json.dumps
     with (
@@ -385,10 +383,10 @@ def _insert_entries(sheet: CheckSheet, results: Sequence[ItemResult]) -> None:
         cursor.copy(f"COPY {ItemEntry._meta.db_table} ({columns}) FROM STDIN") as copy,
     ):
         for result in results:
-            row = []
-            for name, as_json in parts:
-                value = sheet.pk if name == "sheet" else getattr(result, name)
-                row.append(dumps(value) if as_json and value is not None else value)
+            row = [sheet.pk, *read(result)]
+            for i in as_json:
+                if row[i] is not None:
+                    row[i] = dumps(row[i])
             copy.write_row(row)
 
 

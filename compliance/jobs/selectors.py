@@ -3,7 +3,7 @@
 from collections.abc import Iterable
 from dataclasses import dataclass
 
-from django.db.models import Exists, OuterRef, Prefetch, QuerySet
+from django.db.models import Exists, OuterRef, Prefetch, QuerySet, prefetch_related_objects
 
 from checklists.selectors import current_versions, latest_sheets
 from compliance.errors import Reason
@@ -83,9 +83,12 @@ def _status_entries() -> QuerySet[AnchorLogEntry]:
 
 
 def drops_of(job: Job) -> list[Drop]:
-    return list(
-        Drop.objects.filter(job=job)
-        .select_related(
+    """The job's drops with their equipment, anchors and sites, and each anchor's
+    certifications and status entries: the certifications of the drops' anchors and safety
+    anchors in one query, their entries in another (prefetching through the two relations
+    took four, and building them a tenth of a morning sync's batch)."""
+    drops = list(
+        Drop.objects.filter(job=job).select_related(
             "robot",
             "tether",
             "safety_line",
@@ -93,13 +96,13 @@ def drops_of(job: Job) -> list[Drop]:
             "anchor__site",
             "safety_anchor__site",
         )
-        .prefetch_related(
-            Prefetch("anchor__certifications", queryset=AnchorCertification.objects.all()),
-            Prefetch("safety_anchor__certifications", queryset=AnchorCertification.objects.all()),
-            Prefetch("anchor__log", queryset=_status_entries()),
-            Prefetch("safety_anchor__log", queryset=_status_entries()),
-        )
     )
+    prefetch_related_objects(
+        [anchor for drop in drops for anchor in (drop.anchor, drop.safety_anchor)],
+        Prefetch("certifications", queryset=AnchorCertification.objects.all()),
+        Prefetch("log", queryset=_status_entries()),
+    )
+    return drops
 
 
 def job_subjects(drops: Iterable[Drop]) -> list[Subject]:
@@ -117,7 +120,7 @@ def job_subjects(drops: Iterable[Drop]) -> list[Subject]:
 def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirement]:
     """Which sheets the job needs, and whether the newest sheet for each passes."""
     drops = drops_of(job) if drops is None else drops
-    versions = current_versions(job.organisation_id)
+    versions = current_versions(job.organisation_id, items=False)
     latest = latest_sheets(job)
     requirements = []
     for subject in job_subjects(drops):

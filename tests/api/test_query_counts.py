@@ -90,7 +90,7 @@ EXPECTED: dict[str, int] = {
     "equipment-detail": 1,
     "equipment-kinds": 0,
     "job-list": 2,
-    "job-detail": 10,
+    "job-detail": 8,
     "job-transitions": 2,
     "checklist-list": 3,
     "checklist-detail": 2,
@@ -109,11 +109,11 @@ EXPECTED: dict[str, int] = {
     # holds and drops once, writes the receipts together and settles readiness once. Each
     # record costs SYNC_PER_RECORD: the sheet's two inserts (the sheet, its entries); a run
     # whose records all apply needs no savepoint per record.
-    "sync-1-record": 18,
-    "sync-20-records": 56,
+    "sync-1-record": 16,
+    "sync-20-records": 54,
 }
 SYNC_PER_RECORD = 2
-SYNC_ANCHOR_SHEETS = {1: 25, 3: 31}
+SYNC_ANCHOR_SHEETS = {1: 23, 3: 29}
 """A batch of passing anchor sheets for one site: each also appends a pre-use entry to the
 site's log book. The first reads the organisation's signing credential, locks the site's chain
 and reads its last entry; the run then knows where its next entry goes and holds the lock, so

@@ -289,7 +289,7 @@ def test_the_job_list_says_which_days_are_signed(signed, supervisor, django_asse
     assert detail.json()["record_signed"] is False
 
 
-SIGN_OFF_QUERIES = 21
+SIGN_OFF_QUERIES = 19
 """After the chain's first record: the job locked, the record and state checks, the profile's
 revision found, the rows of the day (drops with their prefetches, sheets, entries, holds,
 transitions, logs, photos, crew), the chain head locked, the record and the head written."""
