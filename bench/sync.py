@@ -107,8 +107,9 @@ def run_n(url: str, crews: list[rig.Crew], concurrency: int) -> dict[str, object
     }
 
 
-def floor(crews: list[rig.Crew]) -> dict[str, float]:
-    """Write copies of the rows the sync stored with one INSERT and one COPY; then remove them."""
+def floor(crews: list[rig.Crew], tries: int = 3) -> dict[str, float]:
+    """Write copies of the rows the sync stored with one INSERT and one COPY, then remove them;
+    the fastest of ``tries`` (one write alone varied by a third on this machine)."""
     from checklists.models import CheckSheet, ItemEntry
 
     jobs = [c.job_id for c in crews]
@@ -132,24 +133,28 @@ def floor(crews: list[rig.Crew]) -> dict[str, float]:
     placeholders = ",".join(["(" + ",".join(["%s"] * len(SHEET_COLUMNS)) + ")"] * len(sheets))
     connection.ensure_connection()
     raw = connection.connection  # psycopg 3
-    started = time.perf_counter()
-    with raw.transaction(), raw.cursor() as cur:
-        cur.execute(
-            f"INSERT INTO checklists_checksheet ({','.join(SHEET_COLUMNS)}) "
-            f"VALUES {placeholders} RETURNING id",
-            [v for row in sheet_rows for v in row],
-        )
-        ids = [r[0] for r in cur.fetchall()]
-        with cur.copy(
-            f"COPY checklists_itementry (sheet_id,{','.join(ENTRY_COLUMNS)}) FROM STDIN"
-        ) as copy:
-            for sheet_id, rows in zip(ids, entry_rows, strict=True):
-                for row in rows:
-                    copy.write_row([sheet_id, *row])
-    elapsed = time.perf_counter() - started
-    with raw.transaction(), raw.cursor() as cur:
-        cur.execute("DELETE FROM checklists_itementry WHERE sheet_id = ANY(%s)", [ids])
-        cur.execute("DELETE FROM checklists_checksheet WHERE id = ANY(%s)", [ids])
+    times = []
+    for _ in range(tries):
+        started = time.perf_counter()
+        with raw.transaction(), raw.cursor() as cur:
+            cur.execute(
+                f"INSERT INTO checklists_checksheet ({','.join(SHEET_COLUMNS)}) "
+                f"VALUES {placeholders} RETURNING id",
+                [v for row in sheet_rows for v in row],
+            )
+            ids = [r[0] for r in cur.fetchall()]
+            with cur.copy(
+                f"COPY checklists_itementry (sheet_id,{','.join(ENTRY_COLUMNS)}) FROM STDIN"
+            ) as copy:
+                for sheet_id, rows in zip(ids, entry_rows, strict=True):
+                    for row in rows:
+                        copy.write_row([sheet_id, *row])
+        times.append(time.perf_counter() - started)
+        with raw.transaction(), raw.cursor() as cur:
+            cur.execute("DELETE FROM checklists_itementry WHERE sheet_id = ANY(%s)", [ids])
+            cur.execute("DELETE FROM checklists_checksheet WHERE id = ANY(%s)", [ids])
+        sheet_rows = [[str(uuid.uuid4()), *row[1:]] for row in sheet_rows]  # uuids are unique
+    elapsed = min(times)
     return {"floor_s": elapsed, "rows": len(sheets) + len(entries)}
 
 

@@ -480,8 +480,9 @@ def record_sheet(
                 open_hold_requirements=open_hold_requirements,
             )
             if subject_kind == "anchor":
-                entries_written = [_entry(sheet, r) for r in outcome.items]
-                log_pre_use_check(sheet, entries=entries_written, held=held_chains)
+                # The log book names the failed items: instances of those only.
+                failed = [_entry(sheet, r) for r in outcome.items if r.verdict == "fail"]
+                log_pre_use_check(sheet, entries=failed, held=held_chains)
     except IntegrityError:
         if not savepoint:  # the caller's savepoint rolls back, and it answers the retry
             raise

@@ -219,9 +219,9 @@ def log_pre_use_check(
     entries: Sequence[ItemEntry] | None = None,
     held: HeldChains | None = None,
 ) -> AnchorLogEntry:
-    """Copy a contractor's anchor pre-use sheet into the building's log book (``entries`` are
-    the sheet's entries, when the caller has just written them; ``held``, what the caller's
-    transaction already knows of the chains it appends to)."""
+    """Copy a contractor's anchor pre-use sheet into the building's log book (``entries``:
+    the sheet's entries, or at least its failed ones, when the caller has just written them;
+    ``held``, what the caller's transaction already knows of the chains it appends to)."""
     assert sheet.anchor is not None
     written = sheet.entries.all() if entries is None else entries
     failed = [e for e in written if e.verdict == "fail"]

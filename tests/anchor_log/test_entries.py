@@ -304,7 +304,8 @@ def test_a_contractors_pre_use_check_flows_into_the_log(building, simple_checkli
         entries={**PASSING["anchor"], "sound": {"value": "fail"}},
     )
     entry = AnchorLogEntry.objects.get(kind="pre_use_check")
-    assert entry.anchor == anchor and entry.result == "fail" and "sound" in entry.details
+    assert entry.anchor == anchor and entry.result == "fail"
+    assert entry.details == "Failed: sound (Marked failed: sound.)"
     assert entry.performed_by_company == b["contractor"].name
     owner_view = (
         client_for(b["manager"])
