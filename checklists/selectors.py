@@ -60,10 +60,15 @@ def current_versions(
 
 
 def latest_sheets(job: Job) -> dict[str, CheckSheet]:
-    """The newest sheet for each requirement key (checklist key @ subject) of a job."""
+    """The newest sheet for each requirement key (checklist key @ subject) of a job; their
+    versions without items or notes (each sheet's row decoded its version's items again, a
+    twentieth of a sync batch)."""
     latest: dict[str, CheckSheet] = {}
     for sheet in (
-        CheckSheet.objects.filter(job=job).select_related("version__checklist").order_by("id")
+        CheckSheet.objects.filter(job=job)
+        .select_related("version__checklist")
+        .defer("version__items", "version__notes")
+        .order_by("id")
     ):
         latest[sheet.requirement] = sheet
     return latest
