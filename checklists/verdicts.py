@@ -300,6 +300,10 @@ def _caution_below(
     }
 
 
+ENTRY_FIELDS = {"reading": ("value", "unit"), "series": ("value", "unit")}
+"""The fields an entry of each kind may hold; every other kind's entry holds a value only."""
+
+
 def evaluate(
     items: list[Mapping[str, Any]],
     entries: Mapping[str, Mapping[str, Any]],
@@ -322,6 +326,8 @@ def evaluate(
         base = {"key": key, "kind": kind, "label": item["label"], "blocking": blocking}
 
         if kind == "calc":
+            if entry is not None:
+                raise EntryError(path, "A calculated item takes no entry: the server works it out.")
             try:
                 inputs = {
                     name: resolve(src, context, readings, outputs)
@@ -389,6 +395,11 @@ def evaluate(
             raise EntryError(path, "This item needs an entry.")
         if not isinstance(entry, Mapping):
             raise EntryError(path, "An entry is an object with a value.")
+        # A field the item does not read is refused, not dropped: a misspelt "units" read as
+        # no unit at all took a reading in lbf as one in the item's unit.
+        for name in entry:
+            if name not in ENTRY_FIELDS.get(kind, ("value",)):
+                raise EntryError(f"{path}.{str(name)[:80]}", "Unknown field.")
         value = entry.get("value")
 
         if kind == "tick":

@@ -241,3 +241,45 @@ def test_a_note_longer_than_a_record_page_holds_sensibly_is_refused():
     )
     kept = evaluate([note], {"n": {"value": "y" * 8000}}, {})
     assert kept.items[0].value == "y" * 8000
+
+
+CALC = {
+    "key": "hold",
+    "kind": "calc",
+    "label": "Vacuum margin",
+    "blocking": True,
+    "calc": "vacuum-decay",
+    "inputs": {},
+}
+
+
+@pytest.mark.parametrize(
+    ("items", "entries", "field"),
+    [
+        # A misspelt unit key read as "no unit given" took 4500 lbf as 4500 kPa and passed.
+        ([VACUUM], {"vacuum": {"value": 4500, "units": "lbf"}}, "entries.vacuum.units"),
+        (
+            [SERIES],
+            {"decay": {"value": [[0, 62], [30, 61], [60, 60]], "Unit": "bar"}},
+            "entries.decay.Unit",
+        ),
+        ([TICK], {"lips": {"value": "pass", "note": "checked twice"}}, "entries.lips.note"),
+        ([TICK], {"lips": {"value": "pass", "unit": "kPa"}}, "entries.lips.unit"),
+        (
+            [{"key": "n", "kind": "note", "label": "Note", "blocking": False}],
+            {"n": {"vlaue": "base plate cracked"}},
+            "entries.n.vlaue",
+        ),
+    ],
+)
+def test_an_entry_holding_a_field_its_item_does_not_read_is_refused_naming_it(
+    items, entries, field
+):
+    error = refusal(items, entries)
+    assert (error.field, error.message) == (field, "Unknown field.")
+
+
+def test_an_entry_for_a_calculated_item_is_refused_not_ignored():
+    error = refusal([CALC], {"hold": {"value": 12}})
+    assert error.field == "entries.hold"
+    assert error.message == "A calculated item takes no entry: the server works it out."
