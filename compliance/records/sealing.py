@@ -49,7 +49,7 @@ def canonical_bytes(document: Any) -> bytes:
         if kind is int:
             if -_SAFE_INT <= value <= _SAFE_INT:
                 return value
-            raise _Slow
+            value, kind = _double(value), float
         if kind is float:
             if not math.isfinite(value):
                 raise _Slow
@@ -69,12 +69,34 @@ def canonical_bytes(document: Any) -> bytes:
     try:
         swapped = swap(document)
     except (_Slow, RecursionError):
-        return rfc8785.dumps(document)
+        return rfc8785.dumps(_doubles(document))
     text = numbers.write(swapped, [rfc8785.dumps(f).decode() for f in floats])
     try:
         return text.encode("utf-8")
     except UnicodeEncodeError:  # a lone surrogate: rfc8785 refuses it with its own error
         return rfc8785.dumps(document)
+
+
+def _double(value: int) -> float:
+    """A JSON number is an IEEE-754 double (RFC 8785 section 3.2.2.3; I-JSON, RFC 7493 section
+    2.2): an integer past 2**53 stands for the double nearest it. PostgreSQL's jsonb gives a
+    double such as 1e17 back as its digits, which Python reads as an integer; its canonical
+    text is those digits again. One past the largest double has none, and is refused."""
+    try:
+        return float(value)
+    except OverflowError:
+        raise rfc8785.IntegerDomainError(value) from None
+
+
+def _doubles(value: Any) -> Any:
+    """``value`` with every integer past 2**53 taken as its double (see _double)."""
+    if type(value) is int and not -_SAFE_INT <= value <= _SAFE_INT:
+        return _double(value)
+    if isinstance(value, dict):
+        return {key: _doubles(item) for key, item in value.items()}
+    if isinstance(value, list | tuple):
+        return [_doubles(item) for item in value]
+    return value
 
 
 class _Slow(Exception):
@@ -125,11 +147,11 @@ def is_canonical(raw: bytes) -> bool:
         numbers.append(text)
         return tokens.token(len(numbers) - 1)
 
-    def on_int(text: str) -> int:
+    def on_int(text: str) -> int | str:
         value = int(text)
         if -_SAFE_INT <= value <= _SAFE_INT:
             return value
-        raise _Slow
+        return on_float(text)  # a double written as digits (see _double)
 
     def on_constant(text: str) -> Any:
         raise _NotJson
