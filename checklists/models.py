@@ -118,7 +118,8 @@ class CheckSheet(AppendOnlyModel):
     )
     filled_by = models.ForeignKey(User, on_delete=models.PROTECT, related_name="sheets")
     device_time = models.DateTimeField(null=True, blank=True)
-    phone_clock_offset_s = models.IntegerField(
+    # 64 bits: a phone whose clock reset to 1900 is 4 billion seconds off, and keeps its sheet.
+    phone_clock_offset_s = models.BigIntegerField(
         null=True, blank=True, help_text="Phone clock minus server clock when the batch was sent."
     )
     received_at = models.DateTimeField(auto_now_add=True)

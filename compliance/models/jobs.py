@@ -181,5 +181,5 @@ class SyncReceipt(AppendOnlyModel):
     status = models.CharField(max_length=10)  # applied / rejected
     result = models.JSONField()
     device_time = models.DateTimeField(null=True, blank=True)
-    phone_clock_offset_s = models.IntegerField(null=True, blank=True)
+    phone_clock_offset_s = models.BigIntegerField(null=True, blank=True)  # see CheckSheet
     received_at = models.DateTimeField(auto_now_add=True)

@@ -110,3 +110,32 @@ def test_the_receipt_keeps_the_device_time(job, simple_checklists, operator):
     record, *_ = send_site_sheet(job, simple_checklists, operator, phone_now)
     receipt = SyncReceipt.objects.get(client_uuid=record["client_uuid"])
     assert receipt.device_time == phone_now
+
+
+@pytest.mark.parametrize("sent_at", ["1900-01-01T00:00:00+00:00", "2300-06-01T12:00:00+00:00"])
+def test_a_phone_clock_reset_decades_off_keeps_its_sheet_and_states_the_offset(
+    job, simple_checklists, operator, sent_at
+):
+    # More than 68 years off does not fit a 32-bit column: on PostgreSQL the whole batch was
+    # a 500 and lost.
+    record = {
+        "type": "sheet",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {
+            "job": job.pk,
+            "version": simple_checklists["site"].pk,
+            "entries": PASSING["site"],
+            "device_time": sent_at,
+        },
+    }
+    response = client_for(operator).post(
+        reverse("sync"), {"records": [record], "sent_at": sent_at}, format="json"
+    )
+    assert response.status_code == 200
+    assert response.json()["results"][0]["status"] == "applied"
+    offset = (dt.datetime.fromisoformat(sent_at) - timezone.now()).total_seconds()
+    sheet = CheckSheet.objects.get(client_uuid=record["client_uuid"])
+    receipt = SyncReceipt.objects.get(client_uuid=record["client_uuid"])
+    assert abs(offset) > 2**31
+    assert sheet.phone_clock_offset_s == pytest.approx(offset, abs=60)
+    assert receipt.phone_clock_offset_s == sheet.phone_clock_offset_s
