@@ -18,7 +18,10 @@ def token_lifetime() -> dt.timedelta:
 
 @transaction.atomic
 def issue_token(*, user: Any) -> Token:
-    """A fresh token for `user`; any earlier one stops working."""
+    """A fresh token for `user`; any earlier one stops working. Two sign-ins of one person at
+    once take turns on the person's row: unlocked, both deleted the old token and the second
+    insert broke the one-token rule (a 500)."""
+    type(user).objects.select_for_update().filter(pk=user.pk).exists()
     Token.objects.filter(user=user).delete()
     return Token.objects.create(user=user)
 
