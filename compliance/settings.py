@@ -111,6 +111,11 @@ if DATABASES["default"]["ENGINE"] == "django.db.backends.postgresql":
         "CONN_MAX_AGE", env.int("DATABASE_CONN_MAX_AGE", default=0 if DEBUG else 60)
     )
     DATABASES["default"].setdefault("CONN_HEALTH_CHECKS", not DEBUG)
+SQLITE_OPTIONS = {"transaction_mode": "IMMEDIATE", "timeout": 20}
+"""The demo's SQLite begins each transaction holding the write lock and waits up to 20 s for
+it: with deferred ones, two phones syncing at once got "database is locked" (a 500)."""
+if DATABASES["default"]["ENGINE"] == "django.db.backends.sqlite3":
+    DATABASES["default"].setdefault("OPTIONS", {}).update(SQLITE_OPTIONS)
 
 AUTH_USER_MODEL = "compliance.User"
 PASSWORD_HASHERS = [
