@@ -34,9 +34,10 @@ def canonical_bytes(document: Any) -> bytes:
     holding a random nonce and then replaced by rfc8785's own text for it (ECMAScript's number
     form: ``5`` not ``5.0``, ``1e-7`` not ``1e-07``). A value the fast path does not cover goes
     to rfc8785 whole: a key outside the Basic Multilingual Plane (UTF-16, which RFC 8785
-    orders keys by, puts it before U+E000-U+FFFF), an integer past 2**53 (refused), a float
-    that is not finite (refused) or a type that is not JSON's. tests/records/test_canonical.py
-    checks the two agree on generated values."""
+    orders keys by, puts it before U+E000-U+FFFF), a float that is not finite (refused) or a
+    type that is not JSON's. An integer past 2**53, which rfc8785 refuses, is written as the
+    double it stands for (see _double). tests/records/test_canonical.py checks the two agree
+    on generated values."""
     numbers = _Numbers()
     floats: list[float] = []
 
@@ -74,7 +75,7 @@ def canonical_bytes(document: Any) -> bytes:
     try:
         return text.encode("utf-8")
     except UnicodeEncodeError:  # a lone surrogate: rfc8785 refuses it with its own error
-        return rfc8785.dumps(document)
+        return rfc8785.dumps(_doubles(document))
 
 
 def _double(value: int) -> float:
@@ -133,11 +134,11 @@ def is_canonical(raw: bytes) -> bool:
     """Whether ``raw`` is exactly the RFC 8785 form of the JSON value it holds: the answer of
     ``canonical_bytes(json.loads(raw)) == raw``, found without walking the value in Python.
 
-    The parser itself swaps each number with a fraction or exponent for a token (its hooks
-    see the number's text), so Python's C encoder can write the rest and each token is then
-    written as rfc8785 writes that number. Text with a character outside the Basic
-    Multilingual Plane (a four-byte UTF-8 sequence) may order keys differently, and an integer
-    past 2**53 is refused by RFC 8785: those go the long way."""
+    The parser itself swaps each number with a fraction or exponent, and each integer past
+    2**53 (a double written as digits), for a token (its hooks see the number's text), so
+    Python's C encoder can write the rest and each token is then written as rfc8785 writes
+    that double. Text with a character outside the Basic Multilingual Plane (a four-byte UTF-8
+    sequence) may order keys differently: it goes the long way."""
     if re.search(rb"[\xf0-\xf4]", raw):
         return _canonical_the_long_way(raw)
     tokens = _Numbers()

@@ -17,7 +17,7 @@ pytestmark = pytest.mark.django_db
 SKEW = dt.timedelta(hours=5)
 
 
-def send_site_sheet(job, versions, operator, device_time):
+def send_site_sheet(job, versions, operator, device_time, sent_at=None):
     record = {
         "type": "sheet",
         "client_uuid": str(uuid.uuid4()),
@@ -28,8 +28,9 @@ def send_site_sheet(job, versions, operator, device_time):
             "device_time": device_time.isoformat(),
         },
     }
+    body = {"records": [record]} if sent_at is None else {"records": [record], "sent_at": sent_at}
     before = timezone.now()
-    response = client_for(operator).post(reverse("sync"), {"records": [record]}, format="json")
+    response = client_for(operator).post(reverse("sync"), body, format="json")
     after = timezone.now()
     assert response.status_code == 200
     assert response.json()["results"][0]["status"] == "applied", response.json()
@@ -118,22 +119,9 @@ def test_a_phone_clock_reset_decades_off_keeps_its_sheet_and_states_the_offset(
 ):
     # More than 68 years off does not fit a 32-bit column: on PostgreSQL the whole batch was
     # a 500 and lost.
-    record = {
-        "type": "sheet",
-        "client_uuid": str(uuid.uuid4()),
-        "data": {
-            "job": job.pk,
-            "version": simple_checklists["site"].pk,
-            "entries": PASSING["site"],
-            "device_time": sent_at,
-        },
-    }
-    response = client_for(operator).post(
-        reverse("sync"), {"records": [record], "sent_at": sent_at}, format="json"
-    )
-    assert response.status_code == 200
-    assert response.json()["results"][0]["status"] == "applied"
-    offset = (dt.datetime.fromisoformat(sent_at) - timezone.now()).total_seconds()
+    phone_now = dt.datetime.fromisoformat(sent_at)
+    record, *_ = send_site_sheet(job, simple_checklists, operator, phone_now, sent_at=sent_at)
+    offset = (phone_now - timezone.now()).total_seconds()
     sheet = CheckSheet.objects.get(client_uuid=record["client_uuid"])
     receipt = SyncReceipt.objects.get(client_uuid=record["client_uuid"])
     assert abs(offset) > 2**31
