@@ -440,6 +440,12 @@ def record_sheet(
         raise InvalidTransition("This job is closed; its sheets can no longer change.")
     subject_kind = _subject_for(job, version, anchor, equipment)
     drops = drops_of(job) if drops is None else drops
+    if anchor is not None and not any(
+        anchor.pk in (d.anchor_id, d.safety_anchor_id) for d in drops
+    ):
+        # Its pre-use entry goes into the owner's append-only log book: only for an anchor
+        # the job hangs from.
+        raise ValidationError({"anchor": "This anchor is not on any of the job's drops."})
     if not isinstance(entries, dict):
         raise ValidationError({"entries": "Entries are an object keyed by item key."})
     try:

@@ -245,7 +245,9 @@ def log_pre_use_check(
         result=AnchorLogEntry.Result.FAIL
         if sheet.verdict == "fail"
         else AnchorLogEntry.Result.PASS,
-        performed_on=sheet.job.date,
+        # The job's day, but never a later day than the one it is recorded on: a check sent
+        # for a job planned ahead was done now, and the book takes no future dates.
+        performed_on=min(sheet.job.date, timezone.localdate()),
         performed_by=sheet.filled_by.display_name,
         performed_by_company=sheet.filled_by.organisation.name
         if sheet.filled_by.organisation

@@ -5,11 +5,13 @@ import io
 import json
 
 import pytest
+from django.core.exceptions import ValidationError
 from django.db import connection
 from django.urls import reverse
 from django.utils import timezone
 from pypdf import PdfReader
 
+from checklists.models import CheckSheet
 from checklists.services import record_sheet
 from compliance.anchor_log.document import signed_anchor_log
 from compliance.anchor_log.services import record_entry, verify_log_chain
@@ -374,3 +376,48 @@ def test_the_log_book_pdf_without_a_usable_site_is_a_400_naming_it(building, que
     assert list(response.json()) == ["site"]
     if answer is not None:
         assert response.json() == answer
+
+
+def test_a_pre_use_check_of_an_anchor_the_job_does_not_hang_from_is_refused(
+    building, simple_checklists
+):
+    # A contractor could write failed entries into the owner's log book for any anchor of the
+    # building, and the book is append-only.
+    b = building
+    elsewhere = AnchorFactory(site=b["site"], label="R9")
+    CertificationFactory(anchor=elsewhere)
+    with pytest.raises(ValidationError) as refused:
+        record_sheet(
+            job=b["job"],
+            version=simple_checklists["anchor"],
+            by=b["operator"],
+            anchor=elsewhere,
+            entries={**PASSING["anchor"], "sound": {"value": "fail"}},
+        )
+    assert list(refused.value.message_dict) == ["anchor"]
+    assert not AnchorLogEntry.objects.filter(anchor=elsewhere).exists()
+    assert not CheckSheet.objects.filter(anchor=elsewhere).exists()
+
+
+def test_a_pre_use_check_sent_for_a_later_days_job_is_logged_on_the_day_it_was_recorded(
+    building, simple_checklists
+):
+    # The owner may not record work for a future date; a contractor's sheet for a job planned
+    # months ahead wrote a log-book entry dated then.
+    b = building
+    later = JobFactory(
+        site=b["site"],
+        organisation=b["contractor"],
+        supervisor=b["supervisor"],
+        date=TODAY() + dt.timedelta(days=20),
+    )
+    drop = make_drop(later)
+    record_sheet(
+        job=later,
+        version=simple_checklists["anchor"],
+        by=b["operator"],
+        anchor=drop.anchor,
+        entries=PASSING["anchor"],
+    )
+    entry = AnchorLogEntry.objects.get(kind="pre_use_check")
+    assert entry.performed_on == TODAY()
