@@ -220,7 +220,9 @@ def check_signature(report: Report, data: bytes, roots: tuple[str, ...] = ()) ->
             "The PDF was changed after it was signed: the signature does not match the file.",
         )
         return False, False
-    if not _signature_container_exact(data, signatures[0].sig_object["/ByteRange"]):
+    if not _signature_container_exact(
+        data, signatures[0].sig_object["/ByteRange"]
+    ) or not _container_as_signed(signatures[0].signed_data, status.signing_cert):
         report.add("signature_valid", False, "The signature's container was altered after signing.")
         return False, False
     report.add("signature_valid", True, "The signature matches the file's bytes.")
@@ -236,6 +238,33 @@ def check_signature(report: Report, data: bytes, roots: tuple[str, ...] = ()) ->
         fingerprint_sha256=hashlib.sha256(cert.dump()).hexdigest(),
     )
     return True, bool(roots) and bool(status.trusted)
+
+
+def _container_as_signed(signed_data: Any, signing_cert: asn1_x509.Certificate) -> bool:
+    """Whether the parts of the CMS SignedData (RFC 5652) its signature does not cover hold only
+    what Parapet's signer writes (signing.sign_pdf): one signer without unsigned attributes, one
+    digest algorithm (the signer's), no revocation data, and no certificate but the signing one
+    (the signer writes it twice). A copy of the signer's certificate with a byte changed (the
+    validator finds the untouched copy), an unused algorithm or a certificate added is refused;
+    a chain to the trust list's certificate is built from the trust list."""
+    try:
+        signers = signed_data["signer_infos"]
+        if len(signers) != 1 or signers[0]["unsigned_attrs"].native is not None:
+            return False
+        digests = [a.dump() for a in signed_data["digest_algorithms"]]
+        if digests != [signers[0]["digest_algorithm"].dump()]:
+            return False
+        if signed_data["crls"].native is not None:
+            return False
+        encap = signed_data["encap_content_info"]
+        if encap["content_type"].native != "data" or encap["content"].native is not None:
+            return False
+        certs = signed_data["certificates"]
+        return all(
+            c.name == "certificate" and c.chosen.dump() == signing_cert.dump() for c in certs
+        )
+    except Exception:  # not a SignedData this verifier can read: not as signed
+        return False
 
 
 def _der_length(raw: bytes) -> int:
