@@ -114,22 +114,35 @@ def query_text(params: Mapping[str, str], name: str) -> str | None:
     return value
 
 
+DAY = "A date as YYYY-MM-DD."
+
+
+def parse_day(text: str) -> dt.date | None:
+    """The date ``text`` writes as YYYY-MM-DD in ASCII digits, else None. Python's parser alone
+    also reads ISO week dates (2026-W49-1) and the basic form (20261201)."""
+    if len(text) != 10 or not text.isascii() or text[4] != "-" or text[7] != "-":
+        return None
+    try:
+        return dt.date.fromisoformat(text)
+    except ValueError:
+        return None
+
+
+def query_day(params: Mapping[str, str], name: str) -> dt.date | None:
+    """The date parameter ``name`` (None when absent), or a 400 naming it."""
+    value = params.get(name)
+    if not value:
+        return None
+    day = parse_day(value)
+    if day is None:
+        raise serializers.ValidationError({name: [DAY]})
+    return day
+
+
 def query_period(params: Mapping[str, str]) -> tuple[dt.date | None, dt.date | None]:
     """The `start` and `end` dates of a list's period (either may be absent), or a 400 naming
     the parameter that is not a date as YYYY-MM-DD, or `end` when it falls before `start`."""
-    dates: dict[str, dt.date | None] = {}
-    for name in ("start", "end"):
-        value = params.get(name)
-        if not value:
-            dates[name] = None
-            continue
-        try:
-            dates[name] = dt.date.fromisoformat(value) if len(value) == 10 else None
-        except ValueError:
-            dates[name] = None
-        if dates[name] is None:
-            raise serializers.ValidationError({name: ["A date as YYYY-MM-DD."]})
-    start, end = dates["start"], dates["end"]
+    start, end = query_day(params, "start"), query_day(params, "end")
     if start and end and end < start:
         raise serializers.ValidationError({"end": ["Must not be before start."]})
     return start, end

@@ -16,7 +16,7 @@ from rest_framework.permissions import IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
 
-from compliance.api.fields import StrictInput, query_id, query_period
+from compliance.api.fields import DAY, StrictInput, parse_day, query_id, query_period
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.errors import NotPermitted, PdfsPending
@@ -224,10 +224,11 @@ class RecordViewSet(viewsets.ReadOnlyModelViewSet):
             errors["site"] = ["Unknown site."]
         dates: dict[str, dt.date] = {}
         for name in ("start", "end"):
-            try:
-                dates[name] = dt.date.fromisoformat(request.query_params.get(name, ""))
-            except ValueError:
-                errors[name] = ["A date as YYYY-MM-DD."]
+            day = parse_day(request.query_params.get(name, ""))
+            if day is None:
+                errors[name] = [DAY]
+            else:
+                dates[name] = day
         if errors:
             return Response(errors, status=status.HTTP_400_BAD_REQUEST)
         assert scope is not None

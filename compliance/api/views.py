@@ -1,6 +1,5 @@
 """Thin API views: parse, call one service or selector, shape the answer."""
 
-import datetime as dt
 from typing import Any
 
 from django.contrib.auth import authenticate, login, logout
@@ -28,7 +27,14 @@ from checklists.models import Checklist, ChecklistVersion
 from checklists.photos import store_photo
 from checklists.selectors import entry_rows, sheets_for, usable_versions, visible_checklists
 from compliance.api import serializers as s
-from compliance.api.fields import ParsedJSON, StrictInput, query_id, query_period, query_text
+from compliance.api.fields import (
+    ParsedJSON,
+    StrictInput,
+    query_day,
+    query_id,
+    query_period,
+    query_text,
+)
 from compliance.api.pagination import BoundedLimitOffset
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
@@ -397,10 +403,8 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
 
     def get_queryset(self) -> QuerySet[Job]:
         qs = jobs_for(self.request.user)
-        date = self.request.query_params.get("date")
-        if date:
-            qs = qs.filter(date=date) if _is_date(date) else qs.none()
-        return qs
+        day = query_day(self.request.query_params, "date")
+        return qs if day is None else qs.filter(date=day)
 
     @extend_schema(request=s.JobSerializer, responses={201: s.JobDetailSerializer})
     def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
@@ -475,14 +479,6 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
         job = self.get_object()
         rows = job.transitions.select_related("by").order_by("at", "id")
         return Response(s.TransitionSerializer(rows, many=True).data)
-
-
-def _is_date(text: str) -> bool:
-    try:
-        dt.date.fromisoformat(text)
-    except ValueError:
-        return False
-    return True
 
 
 class ChecklistViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewSet):
