@@ -296,3 +296,39 @@ def test_an_answer_to_a_request_sent_before_signing_in_does_not_end_the_new_sess
     page.wait_for_timeout(1500)
     assert "Sign in again" not in page.inner_text("body")
     assert page.query_selector("[data-testid=jobs] a") is not None
+
+
+LATE_PAINT = """
+// A phone under load paints late: the hooks' effects (which run after the next frame, or
+// after 35 ms at the latest) wait 3 s, so what the app reads from storage at start arrives
+// before any screen listens for it.
+const realSetTimeout = window.setTimeout;
+window.requestAnimationFrame = () => 0;
+window.setTimeout = (fn, ms, ...rest) => realSetTimeout(fn, ms === 35 ? 3000 : ms, ...rest);
+"""
+
+
+def test_after_a_reload_without_signal_the_strip_counts_what_waits_though_it_painted_late(
+    live_server, demo, context, page
+):
+    # Seen once in CI under load: "Waiting 0, Last sync never" on the strip while the job's
+    # screen said a record waited to be sent. The strip took its first value at render and
+    # started listening after the counts had been read.
+    job = demo
+    anchor = off_loop(anchor_r1_key, job)
+    base = live_server.url
+    sign_in(page, base)
+    context.set_offline(True)
+    page.wait_for_selector("[data-testid=strip-online]:has-text('Offline')")
+    page.click(f"[data-testid=job-{job.id}]")
+    page.click(req_selector(anchor))
+    page.wait_for_selector("[data-testid=items]")
+    fill_anchor_sheet(page)
+    page.click("[data-testid=save]")
+    wait_waiting(page, 1)
+
+    page.add_init_script(LATE_PAINT)
+    page.reload()
+    page.wait_for_selector(f"{req_selector(anchor)}:has-text('waiting to send')")
+    wait_waiting(page, 1)
+    assert "Last sync never" not in page.inner_text("[data-testid=strip]")

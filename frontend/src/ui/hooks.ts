@@ -1,16 +1,27 @@
 import { useEffect, useState } from "preact/hooks";
 import { dataVersion, getStatus, subscribe, type Status } from "../status";
 
+/** The strip's status, kept current. The effect that subscribes runs after the first paint,
+ * which on a busy phone comes after the stored counts were read: it reads the status again once
+ * listening, or the strip kept "Waiting 0" while records waited. */
 export function useStatus(): Status {
   const [status, setLocal] = useState(getStatus());
-  useEffect(() => subscribe(() => setLocal(getStatus())), []);
+  useEffect(() => {
+    const stop = subscribe(() => setLocal(getStatus()));
+    setLocal(getStatus());
+    return stop;
+  }, []);
   return status;
 }
 
 /** Re-render when stored data changed (after a save or a sync answer). */
 export function useDataVersion(): number {
   const [v, setV] = useState(dataVersion());
-  useEffect(() => subscribe(() => setV(dataVersion())), []);
+  useEffect(() => {
+    const stop = subscribe(() => setV(dataVersion()));
+    setV(dataVersion()); // a change between the first paint and listening (see useStatus)
+    return stop;
+  }, []);
   return v;
 }
 
