@@ -1,17 +1,63 @@
-"""Request parsers: DRF's JSON parser, with JSON nested too deeply answered as a 400."""
+"""Request parsers: DRF's JSON parser, with JSON nested too deeply answered as a 400 and a
+NaN or Infinity token answered as a 400 naming where it is."""
 
+import codecs
+import json
 from typing import Any
 
 from rest_framework import parsers
-from rest_framework.exceptions import ParseError
+from rest_framework.exceptions import ParseError, ValidationError
+from rest_framework.utils.json import strict_constant
+
+NOT_FINITE = "must be a finite number"
+
+
+class _Constant(float):
+    """A NaN or Infinity token, kept only to find where it was."""
+
+
+def _first_constant(value: Any, path: str) -> str | None:
+    if isinstance(value, _Constant):
+        return path
+    if isinstance(value, dict):
+        items: Any = ((f"{path}.{key}" if path else str(key), v) for key, v in value.items())
+    elif isinstance(value, list):
+        items = ((f"{path}[{i}]", v) for i, v in enumerate(value))
+    else:
+        return None
+    for where, inner in items:
+        found = _first_constant(inner, where)
+        if found is not None:
+            return found
+    return None
 
 
 class JSONParser(parsers.JSONParser):
     """Python's json decoder raises RecursionError, not ValueError, past about a thousand
-    levels of nesting; DRF's parser lets it through as a 500."""
+    levels of nesting; DRF's parser lets it through as a 500.
+
+    JSON has no NaN or Infinity (RFC 8259 §6), which Python's decoder reads; DRF refuses them
+    with words that do not say where. The body is read once more, keeping each such token, to
+    name the first (`records[0].data.entries.wind.value`), as a number too large for a float
+    is named by the field that refuses it.
+    """
 
     def parse(self, stream: Any, media_type: str | None = None, parser_context: Any = None) -> Any:
+        encoding = parsers.get_encoding(parser_context or {})
         try:
-            return super().parse(stream, media_type, parser_context)
+            text = codecs.getreader(encoding)(stream).read()
+            return json.loads(text, parse_constant=strict_constant)
         except RecursionError:
             raise ParseError("JSON parse error - nested too deeply.") from None
+        except ValueError as exc:
+            if not str(exc).startswith("Out of range float values"):
+                raise ParseError(f"JSON parse error - {exc}") from None
+        try:
+            kept = json.loads(text, parse_constant=lambda token: _Constant(token))
+        except (ValueError, RecursionError):  # not reached: the same text parsed up to here
+            raise ParseError("JSON parse error - not valid JSON.") from None
+        try:
+            where = _first_constant(kept, "")
+        except RecursionError:  # as deep as the decoder allowed, deeper than the walk may go
+            where = None
+        raise ValidationError({where or "body": [NOT_FINITE]})

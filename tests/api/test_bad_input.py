@@ -87,6 +87,7 @@ def test_nan_reading_is_refused(job, simple_checklists, operator):
     )
     response = client.post(reverse("sheet-list"), body, content_type="application/json")
     assert response.status_code == 400
+    assert response.json() == {"entries.valve_pressure.value": ["must be a finite number"]}
     assert CheckSheet.objects.count() == 0
 
 
@@ -478,3 +479,45 @@ def test_a_calc_input_literal_beyond_a_float_is_refused_naming_it(job, superviso
     assert response.status_code == 400, response.content[:300]
     assert response.json() == {"items[0].inputs.cups": ["A literal value is a finite number."]}
     assert ChecklistVersion.objects.count() == before
+
+
+@pytest.mark.parametrize("literal", ["NaN", "Infinity", "-Infinity"])
+def test_a_non_finite_literal_in_a_batch_is_refused_naming_where_it_is(
+    job, simple_checklists, operator, literal
+):
+    """Python's parser reads NaN and Infinity, JSON has no such tokens (RFC 8259 §6); the
+    batch is refused with the place of the first one, and nothing of it is stored."""
+    good = {
+        "type": "sheet",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {"job": job.pk, "version": simple_checklists["site"].pk, "entries": {}},
+    }
+    body = json.dumps({"records": [good, good]}).replace(
+        '"entries": {}', '"entries": {"wind": {"value": ' + literal + "}}", 1
+    )
+    before = counts()
+    response = client_for(operator).post(reverse("sync"), body, content_type="application/json")
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"records[0].data.entries.wind.value": ["must be a finite number"]}
+    assert counts() == before
+    assert SyncReceipt.objects.count() == 0
+
+
+def test_a_non_finite_literal_in_a_list_or_as_the_whole_body_is_named_too(operator):
+    client = client_for(operator)
+    response = client.post(reverse("sync"), "NaN", content_type="application/json")
+    assert response.status_code == 400
+    assert response.json() == {"body": ["must be a finite number"]}
+    response = client.post(
+        reverse("sync"), '{"records": [1, [2, Infinity]]}', content_type="application/json"
+    )
+    assert response.status_code == 400
+    assert response.json() == {"records[1][1]": ["must be a finite number"]}
+
+
+def test_a_non_finite_literal_at_the_deepest_nesting_the_decoder_takes_is_still_a_400(operator):
+    client = client_for(operator)
+    for depth in (200, 500, 900, 980):
+        body = "[" * depth + "NaN" + "]" * depth
+        response = client.post(reverse("sync"), body, content_type="application/json")
+        assert response.status_code == 400, (depth, response.content[:200])
