@@ -83,6 +83,17 @@ def sign(b, kind="repair", anchor=None, **extra):
     )
 
 
+def later_job(b, days):
+    """The contractor's job at the building `days` after today, with a drop of its own."""
+    job = JobFactory(
+        site=b["site"],
+        organisation=b["contractor"],
+        supervisor=b["supervisor"],
+        date=TODAY() + dt.timedelta(days=days),
+    )
+    return job, make_drop(job)
+
+
 def urls(b):
     site = b["site"]
     return [
@@ -202,13 +213,7 @@ def test_a_job_planning_an_out_of_service_anchor_cannot_start(building, simple_c
     b = building
     sign(b, kind="removed_from_service", details="Corroded.")
     fill_all(b["job"], simple_checklists, b["operator"])
-    other = JobFactory(
-        site=b["site"],
-        organisation=b["contractor"],
-        supervisor=b["supervisor"],
-        date=TODAY() + dt.timedelta(days=1),
-    )
-    drop = make_drop(other)
+    other, drop = later_job(b, days=1)
     drop.anchor = b["drop"].anchor
     drop.save()
     fill_all(other, simple_checklists, b["operator"])
@@ -405,13 +410,7 @@ def test_a_pre_use_check_sent_for_a_later_days_job_is_logged_on_the_day_it_was_r
     # The owner may not record work for a future date; a contractor's sheet for a job planned
     # months ahead wrote a log-book entry dated then.
     b = building
-    later = JobFactory(
-        site=b["site"],
-        organisation=b["contractor"],
-        supervisor=b["supervisor"],
-        date=TODAY() + dt.timedelta(days=20),
-    )
-    drop = make_drop(later)
+    later, drop = later_job(b, days=20)
     record_sheet(
         job=later,
         version=simple_checklists["anchor"],
