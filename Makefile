@@ -19,7 +19,8 @@ frontend:
 	@if [ -f frontend/package.json ]; then cd frontend && npm ci --no-audit --no-fund --silent && npm run --silent build; fi
 
 # Debian packages the tests use: Chromium (browser tests), poppler-utils (pdfsig, pdftoppm),
-# qpdf, and DejaVu fonts for the PDFs. Installed only when missing.
+# qpdf, and DejaVu fonts for the browser's pages (the PDFs draw with the project's own copies in
+# compliance/records/fonts/). Installed only when missing.
 SYSTEM_PACKAGES := chromium:/usr/bin/chromium poppler-utils:/usr/bin/pdfsig qpdf:/usr/bin/qpdf \
 	fonts-dejavu-core:/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf
 system-packages:

@@ -21,7 +21,6 @@ from typing import Any
 from xml.sax.saxutils import escape
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
-import reportlab
 from pypdf import PdfReader
 from reportlab import rl_config
 from reportlab.graphics.barcode import qrencoder
@@ -55,7 +54,12 @@ CAUTION = (
     "Parapet records and computes; it does not replace local regulations, the equipment "
     "maker's manual or a licensed engineer's certification."
 )
-FONT_DIRS = [Path("/usr/share/fonts/truetype/dejavu")]
+FONT_FILES = (
+    Path(__file__).parent / "fonts" / "DejaVuSans.ttf",
+    Path(__file__).parent / "fonts" / "DejaVuSans-Bold.ttf",
+)
+"""The project's own copies (fonts/README.md): the pages, embedded fonts included, must draw
+the same on any machine, whatever fonts it has installed."""
 
 # Streams are Flate-compressed only. reportlab's default adds ASCII85 on top, which makes every
 # page's stream a quarter larger and costs an encoding at each render and a (pure Python)
@@ -85,13 +89,7 @@ PLAIN_SLACK = 1.0
 def _register_fonts() -> tuple[str, str]:
     if "ParapetSans" in pdfmetrics.getRegisteredFontNames():
         return "ParapetSans", "ParapetSans-Bold"
-    for folder in FONT_DIRS:
-        regular, bold = folder / "DejaVuSans.ttf", folder / "DejaVuSans-Bold.ttf"
-        if regular.exists() and bold.exists():
-            break
-    else:
-        folder = Path(reportlab.__file__).parent / "fonts"
-        regular, bold = folder / "Vera.ttf", folder / "VeraBd.ttf"
+    regular, bold = FONT_FILES
     pdfmetrics.registerFont(TTFont("ParapetSans", str(regular)))
     pdfmetrics.registerFont(TTFont("ParapetSans-Bold", str(bold)))
     return "ParapetSans", "ParapetSans-Bold"

@@ -132,3 +132,63 @@ def test_the_plain_layout_s_qr_code_holds_the_seal_as_the_graphics_one_does():
     widget.qr.make()
 
     assert _CanvasQr(seal).modules == [[bool(m) for m in row] for row in widget.qr.modules]
+
+
+FONT_SHA256 = {
+    # DejaVu Sans 2.37 (Debian's fonts-dejavu-core 2.37-6), the files every record so far was
+    # drawn with; the digests are of the files as shipped.
+    "DejaVuSans.ttf": "abdc775b21b1bc470d50c97e790d276f2054b7504e56e5bd3e64f48d68582322",
+    "DejaVuSans-Bold.ttf": "0d977336a6d5fba34eab8e3199eb218327161b5143749f802982c2bc34df0c96",
+}
+
+
+def test_records_are_drawn_with_the_project_s_own_font_files():
+    """The page check compares every embedded font, so a record must draw with the same font
+    file on the auditor's machine as on the server that signed it, whatever fonts the machine
+    has installed (or none)."""
+    from compliance.records.pdf import FONT_FILES
+
+    root = Path(__file__).resolve().parents[2]
+    assert {path.name for path in FONT_FILES} == set(FONT_SHA256)
+    for path in FONT_FILES:
+        assert path.resolve().is_relative_to(root / "compliance"), path
+        assert hashlib.sha256(path.read_bytes()).hexdigest() == FONT_SHA256[path.name]
+
+
+def test_a_machine_without_the_system_fonts_draws_the_same_pages(tmp_path):
+    """As an auditor's laptop with no DejaVu installed: the pinned pages come out the same."""
+    import subprocess
+    import sys
+
+    script = tmp_path / "draw.py"
+    script.write_text(
+        "import hashlib, io, json, pathlib, sys\n"
+        "real_exists = pathlib.Path.exists\n"
+        "pathlib.Path.exists = lambda self, *a, **k: (\n"
+        "    not str(self).startswith('/usr/share/fonts') and real_exists(self, *a, **k))\n"
+        "import builtins\n"
+        "real_open = builtins.open\n"
+        "def guarded(file, *a, **k):\n"
+        "    if str(file).startswith('/usr/share/fonts'):\n"
+        "        raise FileNotFoundError(file)\n"
+        "    return real_open(file, *a, **k)\n"
+        "builtins.open = guarded\n"
+        "from pypdf import PdfReader\n"
+        "from compliance.records.page_check import page_prints\n"
+        "from compliance.records.pdf import render\n"
+        "document, seal = json.loads(sys.stdin.read())\n"
+        "prints = page_prints(PdfReader(io.BytesIO(render(document, seal))))\n"
+        "print(hashlib.sha256(json.dumps(prints, sort_keys=True).encode()).hexdigest())\n"
+    )
+    root = Path(__file__).resolve().parents[2]
+    drawn = subprocess.run(
+        [sys.executable, str(script)],
+        input=json.dumps([DOCUMENTS["record-4"], FIXTURES["seal"]]),
+        capture_output=True,
+        text=True,
+        cwd=root,
+        env={"PYTHONPATH": str(root), "PATH": "/usr/bin:/bin"},
+        timeout=120,
+    )
+    assert drawn.returncode == 0, drawn.stderr[-2000:]
+    assert drawn.stdout.strip() == PINNED["record-4"]
