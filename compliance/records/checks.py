@@ -2,6 +2,7 @@
 against the stored record, its rows, its organisation's chain and registered certificates, on
 top of the bytes-only checks of the verifier."""
 
+import datetime as dt
 import hashlib
 import json
 from typing import Any
@@ -16,6 +17,7 @@ from compliance.models import (
     Organisation,
     PageCheck,
     SigningCredential,
+    Site,
 )
 from compliance.records.services import (
     sealed_column_problems,
@@ -276,11 +278,29 @@ def verify_pdf(
     )
 
 
+def stored_chains(
+    site_id: int, exporter_id: int, start: dt.date, end: dt.date
+) -> dict[int, set[tuple[int, str]]]:
+    """The records of a site-period an exporter may export, as this server holds them: every
+    organisation's at the owner's building, its own for a contractor."""
+    rows = DailyRecord.objects.filter(site_id=site_id, job__date__gte=start, job__date__lte=end)
+    if not Site.objects.filter(pk=site_id, organisation_id=exporter_id).exists():
+        rows = rows.filter(organisation_id=exporter_id)
+    chains: dict[int, set[tuple[int, str]]] = {}
+    for organisation_id, sequence, seal in rows.values_list("organisation_id", "sequence", "seal"):
+        chains.setdefault(organisation_id, set()).add((sequence, seal))
+    return chains
+
+
 def verify_export(
     data: bytes, *, trust: TrustList | None = None, use_database: bool = False
 ) -> Report:
     """Check an export; with the database, each organisation's registered certificates are the
-    trust anchor when none is given."""
+    trust anchor when none is given, and every record of the period this server holds for the
+    exported chains must be in it."""
     return verify_export_bytes(
-        data, trust=trust, trust_for=organisation_trust if use_database else None
+        data,
+        trust=trust,
+        trust_for=organisation_trust if use_database else None,
+        stored=stored_chains if use_database else None,
     )

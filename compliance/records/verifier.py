@@ -493,20 +493,41 @@ TrustFor = Callable[[int], TrustList]
 """The trust anchor of an organisation, by id (the server's registered certificates)."""
 
 
+StoredChains = Callable[[int, int, dt.date, dt.date], dict[int, set[tuple[int, str]]]]
+"""The server's own records of a site-period that an exporter may export: for each
+organisation, the (sequence, seal) of every record dated in the period."""
+
+OFFLINE_EXPORT_CLAIM = (
+    "holds, for each organisation's chain in it, an unbroken run of signed records up to the"
+    " chain's signed head, each PDF the one its signed manifest names; on its own it cannot show"
+    " that the organisation that signed the manifest left none of its own records of the period"
+    " out before the first one listed (the Parapet server that holds the records checks that)"
+)
+
+
 def verify_export(
-    data: bytes, *, trust: TrustList | None = None, trust_for: TrustFor | None = None
+    data: bytes,
+    *,
+    trust: TrustList | None = None,
+    trust_for: TrustFor | None = None,
+    stored: StoredChains | None = None,
 ) -> Report:
     """Verify an export: its signed manifest, the Merkle root of its seals, and for each
     organisation's chain in it that the records follow one another up to the chain's signed
     head, and that every PDF is the one the manifest names, intact, sealed for that organisation
     and site and signed with that organisation's certificate. VERIFIED needs a trust anchor:
     `trust`, or with the database the certificates each organisation registered; without one
-    the answer is integrity only."""
+    the answer is integrity only.
+
+    With `stored` (the server's records), also that every record of the period the exporter may
+    export is in it; without, the claim says that this is not shown."""
     report = Report(
         subject="this export",
         claim=(
             "holds exactly the records that were signed, each PDF the one its signed manifest"
             " names, and their chain is intact"
+            if stored is not None
+            else OFFLINE_EXPORT_CLAIM
         ),
     )
     try:
@@ -565,8 +586,11 @@ def verify_export(
         return report
     report.add("merkle_root", True, "The list of seals matches the manifest's Merkle root.")
     try:
+        _check_members(report, archive, chains)
         for chain in chains:
             _check_export_chain(report, archive, chain, site_id, period, trust, trust_for)
+        if stored is not None:
+            _check_complete(report, chains, stored(site_id, exporter["id"], *period))
     except _Refused:
         return report
     except (KeyError, TypeError, ValueError, AttributeError) as exc:
@@ -608,14 +632,26 @@ def _check_export_chain(
         not left_out,
         f"{name}'s records {left_out} fall in the period but are not in the export.",
     )
+    _need(report, "chain_intact", bool(records), f"{name}'s chain in the export lists no record.")
+    chain_trust = trust
+    if chain_trust is None and trust_for is not None and isinstance(org["id"], int):
+        chain_trust = trust_for(org["id"])
+    signers = {
+        _check_export_file(report, archive, entry, org["id"], site_id, set(certs), chain_trust)
+        for entry in records
+    }
     head = chain["head"]
     statement = json.loads(head["statement"])
     pem = certs.get(str(head["certificate_sha256"]))
-    last = (records + later)[-1] if records or later else {"sequence": 0, "seal": ""}
+    last = (records + later)[-1]
+    # The head must be signed with a certificate that signed this organisation's records here:
+    # a certificate the manifest merely lists beside them (another contractor's, say) is not
+    # the organisation's word on where its chain ends.
     _need(
         report,
         "chain_head",
         pem is not None
+        and str(head["certificate_sha256"]) in signers
         and verify_seal_signature(
             hashlib.sha256(str(head["statement"]).encode("utf-8")).hexdigest(),
             str(head["signature"]),
@@ -636,11 +672,6 @@ def _check_export_chain(
         True,
         f"{name}'s {len(records)} records follow one another up to the chain's signed head.",
     )
-    chain_trust = trust
-    if chain_trust is None and trust_for is not None and isinstance(org["id"], int):
-        chain_trust = trust_for(org["id"])
-    for entry in records:
-        _check_export_file(report, archive, entry, org["id"], site_id, set(certs), chain_trust)
 
 
 def _check_export_file(
@@ -651,7 +682,8 @@ def _check_export_file(
     site_id: int,
     fingerprints: set[str],
     trust: TrustList | None,
-) -> None:
+) -> str:
+    """Check one listed PDF; returns the SHA-256 fingerprint of the certificate that signed it."""
     name = str(entry.get("file"))
     check = f"file:{name}"
     try:
@@ -687,6 +719,82 @@ def _check_export_file(
     if trust is not None and not trust.empty:
         _need(report, check, sub.vouched, sub.verdict())
     report.add(check, True, f"{name} is intact and is the file the manifest names.")
+    assert sub.signer is not None
+    return sub.signer.fingerprint_sha256
+
+
+def _safe_member_name(name: str) -> bool:
+    parts = name.split("/")
+    return (
+        bool(name)
+        and "\\" not in name
+        and ":" not in name
+        and all(part not in ("", ".", "..") for part in parts)
+    )
+
+
+def _check_members(report: Report, archive: zipfile.ZipFile, chains: list[Any]) -> None:
+    """The archive holds the manifest, its signature and the files the manifest lists, each
+    once, under plain relative names, and nothing else: the verdict speaks of what an unzip of
+    it gives, and an unzip writes a second copy of a name over the first."""
+    names = [info.filename for info in archive.infolist()]
+    listed = {MANIFEST, MANIFEST_SIGNATURE}
+    listed |= {str(entry.get("file")) for chain in chains for entry in chain["records"]}
+    twice = sorted({n for n in names if names.count(n) > 1})
+    unsafe = sorted(n for n in set(names) | listed if not _safe_member_name(n))
+    extra = sorted(set(names) - listed)
+    _need(
+        report,
+        "members",
+        not (twice or unsafe or extra),
+        "The export holds files its manifest does not name, or names them unsafely: "
+        + "; ".join(
+            part
+            for part in (
+                f"twice: {', '.join(twice[:3])}" if twice else "",
+                f"outside its folder: {', '.join(unsafe[:3])}" if unsafe else "",
+                f"not listed: {', '.join(extra[:3])}" if extra else "",
+            )
+            if part
+        )
+        + ".",
+    )
+    report.add("members", True, "The export holds the files its manifest names and no other.")
+
+
+def _check_complete(
+    report: Report, chains: list[Any], stored: dict[int, set[tuple[int, str]]]
+) -> None:
+    """Every record of the period this server holds for the exporter's chains is in the export,
+    and the export holds no chain the exporter may not export."""
+    exported = {
+        chain["organisation"]["id"]: {(e["sequence"], e["seal"]) for e in chain["records"]}
+        for chain in chains
+    }
+    names = {chain["organisation"]["id"]: str(chain["organisation"]["name"]) for chain in chains}
+    foreign = sorted(set(exported) - set(stored), key=str)
+    _need(
+        report,
+        "chain_complete",
+        not foreign,
+        f"The export holds a chain ({', '.join(names[o] for o in foreign)}) that has no record"
+        " of the period on this server, or that its exporter may not export.",
+    )
+    for organisation_id, records in sorted(stored.items()):
+        missing = sorted(records - exported.get(organisation_id, set()))
+        _need(
+            report,
+            "chain_complete",
+            not missing,
+            f"{names.get(organisation_id, f'Organisation {organisation_id}')}'s record"
+            f" {', '.join(str(seq) for seq, _ in missing[:5])} of the period is on this server"
+            " but not in the export: it was left out.",
+        )
+    report.add(
+        "chain_complete",
+        True,
+        "Every record of the period this server holds for these chains is in the export.",
+    )
 
 
 def _relative_links(entries: list[dict[str, Any]]) -> str:

@@ -249,3 +249,139 @@ def test_an_export_of_exactly_400_days_is_allowed(signed, supervisor):
     query = {"site": signed.site_id, "start": start.isoformat(), "end": signed.job.date.isoformat()}
     # Accepted: the day's PDF is queued for rendering (202), not refused for its length.
     assert client_for(supervisor).get(reverse("record-export"), query).status_code == 202
+
+
+def _members(data):
+    source = zipfile.ZipFile(io.BytesIO(data))
+    return [(info.filename, source.read(info)) for info in source.infolist()]
+
+
+def _packed(members):
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w") as archive:
+        for name, content in members:
+            archive.writestr(zipfile.ZipInfo(name), content)
+    return out.getvalue()
+
+
+def _resigned(members, manifest, credential):
+    """The members with `manifest` written in and signed with `credential`, as someone who
+    holds that organisation's key would."""
+    raw = rfc8785.dumps(manifest)
+    signature = json.dumps(
+        {
+            "signature": sign_seal(sha256_hex(raw), credential),
+            "certificate_pem": credential.certificate_pem,
+        }
+    ).encode()
+    replaced = {"manifest.json": raw, "manifest.sig.json": signature}
+    return [(name, replaced.get(name, content)) for name, content in members]
+
+
+@pytest.mark.parametrize(
+    "change",
+    ["a file the manifest does not name", "a listed name twice", "a path out of the folder"],
+)
+def test_an_export_holding_anything_its_manifest_does_not_name_does_not_verify(building, change):
+    """The verdict says the export holds exactly the signed records: an unzip of it must give
+    those files and nothing else (an extra PDF, a second copy under a listed name that an
+    unzip may write over the checked one, a name reaching outside the folder)."""
+    manager, first, _ = building
+    members = _members(_export(manager, first))
+    listed = next(name for name, _ in members if name.endswith(".pdf"))
+    other_pdf = next(content for name, content in members if name.endswith(".pdf"))
+    added = {
+        "a file the manifest does not name": ("records/9/00001-record-extra.pdf", other_pdf),
+        "a listed name twice": (listed, b"%PDF-1.7 not the signed one"),
+        "a path out of the folder": ("../../outside.txt", b"hello"),
+    }[change]
+    data = _packed([added, *members])
+
+    report = verify_export(data, use_database=True)
+
+    assert not report.ok
+    assert report.first_failure.name == "members", report.as_dict()
+
+
+def test_a_contractor_cannot_sign_a_shorter_head_for_another_contractor_s_chain(
+    building, simple_checklists, operator, settings
+):
+    """The second contractor holds its own key: it cuts the first contractor's last day off
+    and signs a head for the shorter chain, listing its own certificate beside the first's."""
+    manager, first, second = building
+    later = next_day_job(first.job, simple_checklists, operator, 1)
+    sign_daily_record(job=later, by=first.signer, password=PASSWORD, meaning="reviewed_safe")
+    data = _export(manager, first, first.job.date, later.date)
+    members = _members(data)
+    manifest = json.loads(dict(members)["manifest.json"])
+    rival = second.credential
+    chain = next(c for c in manifest["chains"] if c["organisation"]["id"] == first.organisation_id)
+    cut = chain["records"].pop()
+    chain["after_period"] = []
+    statement = rfc8785.dumps(
+        {
+            "format": json.loads(chain["head"]["statement"])["format"],
+            "organisation": first.organisation_id,
+            "site": first.site_id,
+            "sequence": chain["records"][-1]["sequence"],
+            "seal": chain["records"][-1]["seal"],
+            "signed_at": "2026-12-05T00:00:00Z",
+        }
+    ).decode()
+    chain["head"] = {
+        "statement": statement,
+        "signature": sign_seal(sha256_hex(statement.encode()), rival),
+        "certificate_sha256": rival.fingerprint_sha256,
+    }
+    chain["certificates"] = sorted([*chain["certificates"], rival.certificate_pem])
+    manifest["chains"] = [chain]
+    manifest["exported_by"] = {"id": second.organisation_id, "name": "Second Rope Co"}
+    from compliance.records.sealing import merkle_root
+
+    manifest["merkle_root"] = merkle_root([bytes.fromhex(e["seal"]) for e in chain["records"]])
+    kept = {"manifest.json", "manifest.sig.json", *(e["file"] for e in chain["records"])}
+    forged = _packed([(n, c) for n, c in _resigned(members, manifest, rival) if n in kept])
+    assert cut["file"] not in kept
+    everyone = TrustList(
+        fingerprints=frozenset(
+            {first.credential.fingerprint_sha256, rival.fingerprint_sha256}
+            | {manager.organisation.signing_credentials.get().fingerprint_sha256}
+        )
+    )
+
+    offline = verify_export(forged, trust=everyone)
+    on_server = verify_export(forged, use_database=True)
+
+    assert not offline.ok and offline.first_failure.name == "chain_head", offline.as_dict()
+    assert not on_server.ok and on_server.first_failure.name == "chain_head"
+
+
+def test_on_the_server_an_export_leaving_out_the_first_day_of_the_period_does_not_verify(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    """An organisation re-signs its own export without the period's first day. Offline nothing
+    in the file can show it (the report says so); the server compares with its records."""
+    settings.MEDIA_ROOT = tmp_path
+    later = next_day_job(signed.job, simple_checklists, operator, 1)
+    sign_daily_record(job=later, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    members = _members(_export(supervisor, signed, signed.job.date, later.date))
+    manifest = json.loads(dict(members)["manifest.json"])
+    chain = manifest["chains"][0]
+    dropped = chain["records"].pop(0)
+    from compliance.records.sealing import merkle_root
+
+    manifest["merkle_root"] = merkle_root([bytes.fromhex(e["seal"]) for e in chain["records"]])
+    forged = _packed(
+        [(n, c) for n, c in _resigned(members, manifest, signed.credential) if n != dropped["file"]]
+    )
+    trust = TrustList(fingerprints=frozenset({signed.credential.fingerprint_sha256}))
+
+    on_server = verify_export(forged, use_database=True)
+    offline = verify_export(forged, trust=trust)
+
+    assert not on_server.ok
+    assert on_server.first_failure.name == "chain_complete", on_server.as_dict()
+    assert "record 1" in on_server.first_failure.detail
+    assert "cannot show" in offline.claim or any(
+        "cannot show" in check.detail for check in offline.checks
+    ), offline.as_dict()
