@@ -244,4 +244,11 @@ LOGGING = {
     "disable_existing_loggers": False,
     "handlers": {"console": {"class": "logging.StreamHandler"}},
     "root": {"handlers": ["console"], "level": env.str("PARAPET_LOG_LEVEL", default="WARNING")},
+    # pyHanko warns, with a traceback, about every certificate it cannot vouch for; the
+    # verifier's report already says so in words, once (a self-made certificate is the usual
+    # case for an organisation's own key).
+    "loggers": {
+        name: {"level": env.str("PARAPET_SIGNATURE_LOG_LEVEL", default="ERROR")}
+        for name in ("pyhanko", "pyhanko_certvalidator")
+    },
 }

@@ -549,3 +549,31 @@ def test_an_export_whose_manifest_inflates_past_its_cap_is_refused_unread():
     report = verify_export(out.getvalue())
     assert failed(report) == "manifest"
     assert "would inflate to 62914560 bytes" in report.verdict()
+
+
+def test_the_command_prints_its_verdict_and_no_library_tracebacks(signed_pdf, tmp_path):
+    """An auditor runs the command on a record signed with a self-made certificate: the
+    verdict says what it can vouch for; the signature library's own warnings about the
+    certificate (with their tracebacks) are not the auditor's to read."""
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    path = tmp_path / "record.pdf"
+    path.write_bytes(signed_pdf)
+    root = Path(__file__).resolve().parents[2]
+    run = subprocess.run(
+        [sys.executable, "manage.py", "verify-record", str(path), "--offline"],
+        cwd=root,
+        capture_output=True,
+        text=True,
+        env={
+            "PATH": "/usr/bin:/bin",
+            "DJANGO_DEBUG": "true",
+            "DATABASE_URL": f"sqlite:///{tmp_path / 'unused.sqlite3'}",
+        },
+        timeout=120,
+    )
+    assert run.returncode == 2, run.stderr[-1500:]
+    assert "INTEGRITY INTACT, SIGNER NOT VOUCHED FOR" in run.stdout
+    assert run.stderr == ""
