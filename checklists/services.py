@@ -49,6 +49,54 @@ def _check_calc_names(items: list[dict[str, Any]]) -> None:
         raise ValidationError(errors)
 
 
+def _check_default_floor(version: ChecklistVersion) -> None:
+    """An organisation's own checklist of a default's key replaces the default for every job
+    of the organisation (selectors.current_versions), so it keeps each blocking item of the
+    default's current version: same key, same kind, still blocking, and a calculation with the
+    same calculation and inputs. It may add items, change the words and set its own limits
+    (the competent person's to set); it may not drop a stop-work check."""
+    checklist = version.checklist
+    if checklist.organisation_id is None:
+        return
+    default = (
+        ChecklistVersion.objects.filter(
+            checklist__key=checklist.key,
+            checklist__organisation__isnull=True,
+            status=ChecklistVersion.Status.PUBLISHED,
+        )
+        .order_by("-number")
+        .first()
+    )
+    if default is None:
+        return
+    own = {item["key"]: item for item in version.items}
+    lost = [
+        item["key"]
+        for item in default.items
+        if item.get("blocking")
+        and not (
+            (kept := own.get(item["key"])) is not None
+            and kept.get("blocking") is True
+            and kept.get("kind") == item.get("kind")
+            and (
+                item.get("kind") != "calc"
+                or (kept.get("calc"), kept.get("inputs")) == (item.get("calc"), item.get("inputs"))
+            )
+        )
+    ]
+    if lost:
+        raise ValidationError(
+            {
+                "items": (
+                    f"This checklist replaces Parapet's default {checklist.key!r}, so it keeps"
+                    " each of the default's blocking items, blocking and of the same kind (a"
+                    " calculation with the same inputs). Missing or changed:"
+                    f" {', '.join(lost)}."
+                )
+            }
+        )
+
+
 def _finite(value: Any) -> bool:
     """A number that is a finite float (an integer of any length is allowed in JSON)."""
     try:
@@ -126,6 +174,16 @@ def create_checklist(
 ) -> Checklist:
     """A checklist of the organisation's own, with no version yet (drafts follow)."""
     require_register_keeper(by)
+    default = Checklist.objects.filter(key=key, organisation__isnull=True).first()
+    if default is not None and default.applies_to != applies_to:
+        raise ValidationError(
+            {
+                "applies_to": (
+                    f"Parapet's default checklist {key!r} is for {default.applies_to}; an own"
+                    " checklist of that key replaces it and must be for the same subject."
+                )
+            }
+        )
     checklist = Checklist(
         organisation_id=by.organisation_id,
         key=key,
@@ -189,6 +247,7 @@ def publish_version(*, version: ChecklistVersion, by: User | None) -> ChecklistV
         validate_items(version.items)
         _check_literal_numbers(version.items)
         _check_calc_names(version.items)
+        _check_default_floor(version)
         version.content_hash = content_hash(version.hashed_content())
         version.status = ChecklistVersion.Status.PUBLISHED
         version.published_at = timezone.now()

@@ -24,8 +24,10 @@ OWN_TITLE = "Suspension tether pre-use check, Brightwater rules"
 
 
 def tether_versions() -> tuple[int, int]:
-    """The organisation's own tether check: version 1 published (a lax first edition), version
-    2 a draft that adds a tag check, drops the sheath colour, and tightens four items."""
+    """The organisation's own tether check: version 1 published (a lax first edition: it keeps
+    the default's blocking items, as an own checklist must, and adds two of its own, neither
+    blocking), version 2 a draft that adds a tag check, drops the sheath colour, and tightens
+    four items."""
     from checklists.models import Checklist
     from checklists.services import create_checklist, create_draft, publish_version
     from compliance.models import User
@@ -33,7 +35,16 @@ def tether_versions() -> tuple[int, int]:
     rhea = User.objects.get(username="rhea")
     default = Checklist.objects.get(key="tether-pre-use", organisation=None)
     base = default.versions.filter(status="published").order_by("-number").first().items
-    first = [dict(i, blocking=False) if i["key"] == "edge_protection" else dict(i) for i in base]
+    pads = {
+        "key": "edge_pads_logged",
+        "kind": "tick",
+        "label": "Edge pads logged in the rigging plan",
+        "reason": "A pad missing from the plan is a pad nobody checks at the next drop.",
+        "blocking": False,
+    }
+    first = []
+    for item in base:
+        first += [dict(item), dict(pads)] if item["key"] == "edge_protection" else [dict(item)]
     first.append(
         {
             "key": "sheath_colour",
@@ -46,6 +57,9 @@ def tether_versions() -> tuple[int, int]:
     second = []
     for item in base:
         item = dict(item)
+        if item["key"] == "edge_protection":
+            second += [item, dict(pads, blocking=True)]
+            continue
         if item["key"] == "robot_payload":
             item["limits"] = {"max": {"value": 25}}
         elif item["key"] == "length_needed":
@@ -114,7 +128,7 @@ def test_supervisor_compares_two_versions_in_words_and_publishes_the_draft(live_
     # that is a frame after the text is there, so wait for it rather than read it at once.
     page.wait_for_function("() => document.activeElement.tagName === 'H3'", timeout=5000)
     assert diff.locator("[data-testid=diff-summary]").inner_text() == (
-        "1 added, 1 removed, 4 changed, 5 unchanged."
+        "1 added, 1 removed, 4 changed, 6 unchanged."
     )
     added = diff.locator("[data-testid=added-tag_legible]").inner_text()
     assert "Tether tag legible and matching the register" in added
@@ -125,14 +139,14 @@ def test_supervisor_compares_two_versions_in_words_and_publishes_the_draft(live_
     assert "Not blocking: a fail is recorded, work is not stopped" in removed
     changed = diff.locator("[data-testid=diff-changed] > li")
     assert [changed.nth(i).get_attribute("data-key") for i in range(changed.count())] == [
-        "edge_protection",
+        "edge_pads_logged",
         "length_needed",
         "robot_payload",
         "tether_remarks",
     ]
     assert (
         "Now blocking: a fail puts the job on hold (stop work)."
-        in diff.locator("[data-testid=changed-edge_protection]").inner_text()
+        in diff.locator("[data-testid=changed-edge_pads_logged]").inner_text()
     )
     assert (
         "Lowest accepted value: was none, now the drop's height_m."

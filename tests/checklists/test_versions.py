@@ -182,7 +182,8 @@ def test_newest_own_version_replaces_the_default_with_the_same_key(job, simple_c
     own = Checklist.objects.create(
         key="site-check", title="Our site check", applies_to="site", organisation=job.organisation
     )
-    mine = publish_version(version=create_draft(checklist=own, items=[tick("x")], by=None), by=None)
+    items = [*simple_checklists["site"].items, tick("x")]
+    mine = publish_version(version=create_draft(checklist=own, items=items, by=None), by=None)
     site_versions = current_versions(job.organisation_id)["site"]
     assert site_versions == [mine]
     assert current_versions(None)["site"] == [simple_checklists["site"]]
@@ -252,3 +253,95 @@ def test_versions_of_two_checklists_do_not_compare(own_checklist, supervisor, si
             "content_hash": mine.content_hash,
         }
     )
+
+
+def _own_of_default(supervisor, key="anchor-check", applies_to="anchor"):
+    client = client_for(supervisor)
+    response = client.post(
+        reverse("checklist-list"),
+        {"key": key, "title": "Our own", "applies_to": applies_to},
+        format="json",
+    )
+    return client, response
+
+
+def _publish(client, checklist_id, items):
+    draft = client.post(
+        reverse("checklist-versions", args=[checklist_id]), {"items": items}, format="json"
+    )
+    assert draft.status_code == 201, draft.json()
+    return client.post(reverse("checklist-version-publish", args=[draft.json()["id"]]))
+
+
+@pytest.mark.parametrize(
+    ("items", "says"),
+    [
+        (
+            [tick("looks_fine", blocking=False)],
+            "sound, tag_capacity",
+        ),
+        (
+            [
+                tick("sound", blocking=False),
+                reading("tag_capacity", "kN", {"min": {"profile": "min_anchor_capacity_kn"}}),
+            ],
+            "sound",
+        ),
+        (
+            [tick("sound"), tick("tag_capacity")],
+            "tag_capacity",
+        ),
+    ],
+    ids=["all replaced by one tick", "a blocking item made not blocking", "a reading made a tick"],
+)
+def test_an_own_checklist_replacing_a_default_keeps_every_blocking_item_of_it(
+    job, simple_checklists, supervisor, items, says
+):
+    """A supervisor's own anchor check replaces Parapet's of the same key for the whole
+    organisation: it may add and tighten, but a blocking item of the default stays, blocking and
+    of its kind, or the default's stop-work checks would silently vanish from every job."""
+    client, created = _own_of_default(supervisor)
+    assert created.status_code == 201, created.json()
+
+    response = _publish(client, created.json()["id"], items)
+
+    assert response.status_code == 400, response.json()
+    assert list(response.json()) == ["items"]
+    assert says in response.json()["items"][0]
+    assert not ChecklistVersion.objects.filter(
+        checklist_id=created.json()["id"], status="published"
+    ).exists()
+    from checklists.selectors import current_versions
+
+    assert current_versions(job.organisation_id)["anchor"] == [simple_checklists["anchor"]]
+
+
+def test_an_own_checklist_keeping_the_default_s_blocking_items_replaces_it(
+    job, simple_checklists, supervisor
+):
+    client, created = _own_of_default(supervisor)
+    items = [
+        tick("sound"),
+        reading("tag_capacity", "kN", {"min": {"value": 30}}),
+        tick("tag_legible"),
+    ]
+
+    response = _publish(client, created.json()["id"], items)
+
+    assert response.status_code == 200, response.json()
+    from checklists.selectors import current_versions
+
+    [current] = current_versions(job.organisation_id)["anchor"]
+    assert current.checklist_id == created.json()["id"]
+
+
+def test_an_own_checklist_cannot_take_a_default_s_key_for_another_kind_of_subject(
+    job, simple_checklists, supervisor
+):
+    """Replacement goes by key: a robot checklist keyed as the anchors' default would leave
+    every anchor without its pre-use check."""
+    _, response = _own_of_default(supervisor, key="anchor-check", applies_to="robot")
+
+    assert response.status_code == 400
+    assert list(response.json()) == ["applies_to"]
+    assert not Checklist.objects.filter(key="anchor-check", organisation__isnull=False).exists()
