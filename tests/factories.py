@@ -198,3 +198,18 @@ def reading(key: str, unit: str, limits: dict | None = None, blocking: bool = Tr
     if limits:
         item["limits"] = limits
     return item
+
+
+def drop_body(drop, **overrides):
+    """A request body planning a drop on the same kit and anchors as `drop`."""
+    body = {
+        "label": "D9",
+        "robot": drop.robot_id,
+        "anchor": drop.anchor_id,
+        "safety_anchor": drop.safety_anchor_id,
+        "tether": drop.tether_id,
+        "safety_line": drop.safety_line_id,
+        "hose": drop.hose_id,
+        "length_m": 80.0,
+    }
+    return {**body, **overrides}

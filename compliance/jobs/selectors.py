@@ -17,6 +17,7 @@ from compliance.models import (
     Equipment,
     Hold,
     Job,
+    JobTransition,
     User,
 )
 from compliance.registers.selectors import anchor_status
@@ -417,3 +418,9 @@ def plan_conflicts(
                     )
                 )
     return conflicts
+
+
+def ever_reached(job: Job, *states: str) -> bool:
+    """Whether the job was in one of `states` at any time (its transitions say so): work
+    started (working), or every pre-start check was done and passing (cleared)."""
+    return JobTransition.objects.filter(job=job, to_state__in=states).exists()

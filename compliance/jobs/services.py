@@ -9,7 +9,13 @@ from django.db import transaction
 
 from checklists.models import CheckSheet
 from checklists.verdicts import SheetOutcome
-from compliance.errors import InvalidTransition, JobBlocked, Reason, require_writer
+from compliance.errors import (
+    InvalidTransition,
+    JobBlocked,
+    NotPermitted,
+    Reason,
+    require_writer,
+)
 from compliance.jobs.holds import (
     clear_by_passing_sheet,
     hold_for_failed_items,
@@ -17,7 +23,7 @@ from compliance.jobs.holds import (
     refresh_readiness,
     transition,
 )
-from compliance.jobs.selectors import job_blockers, plan_conflicts
+from compliance.jobs.selectors import ever_reached, job_blockers, plan_conflicts
 from compliance.models import (
     Anchor,
     Drop,
@@ -31,9 +37,17 @@ from compliance.models import (
 )
 from compliance.registers.visibility import can_work_at
 
+PLANNERS_ONLY = "Only a supervisor or an admin plans jobs and their drops."
+
+
+def _require_planner(by: User, words: str = PLANNERS_ONLY) -> None:
+    require_writer(by)
+    if not by.can_supervise:
+        raise NotPermitted(words)
+
 
 def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
-    require_writer(by)
+    _require_planner(by)
     if not can_work_at(by.organisation_id, site, date):
         raise ValidationError(
             {"site": "Your organisation has no access to this site on that date."}
@@ -71,7 +85,7 @@ def add_drop(
     hose: Equipment,
     length_m: float,
 ) -> Drop:
-    require_writer(by)
+    _require_planner(by)
     if job.state not in (JobState.PLANNED, JobState.CLEARED):
         raise InvalidTransition("Drops can be planned only before work starts.")
     chosen = {
@@ -139,11 +153,20 @@ def pause_job(*, job: Job, by: User, reason: str = "") -> Job:
 
 
 def close_job(*, job: Job, by: User, reason: str = "") -> Job:
+    """End the day's work. A job that never started is closed only by a supervisor or an admin,
+    with the reason it ends before any work, and its log says so."""
     require_writer(by)
     with transaction.atomic():
         job = locked(job)
         if job.state == JobState.CLOSED:
             raise InvalidTransition("This job is already closed.")
+        if job.state in (JobState.PLANNED, JobState.CLEARED) and not ever_reached(
+            job, JobState.WORKING
+        ):
+            _require_planner(by, "Only a supervisor or an admin closes a job before any work.")
+            if not reason.strip():
+                raise ValidationError({"reason": "Say why the job ends before any work."})
+            return transition(job, JobState.CLOSED, by, f"Closed before work started: {reason}")
         if job.state == JobState.HELD and not reason.strip():
             raise InvalidTransition("Closing a held job needs a reason.")
         return transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")

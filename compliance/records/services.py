@@ -19,6 +19,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from django.conf import settings
+from django.core.exceptions import ValidationError
 from django.db import transaction
 from django.utils import timezone
 
@@ -417,6 +418,13 @@ def _authenticate(by: User, password: str) -> None:
         raise NotPermitted("Re-enter your password to sign; the one given is not right.")
 
 
+NEVER_READY_NOT_SAFE = (
+    "The pre-start checks of this job were never complete (it was never ready to start), so it"
+    " cannot be signed as checked and safe: sign it as reviewed with exceptions and say why in"
+    " the remarks."
+)
+
+
 def sign_daily_record(
     *, job: Job, by: User, password: str, meaning: str, remarks: str = ""
 ) -> DailyRecord:
@@ -424,6 +432,8 @@ def sign_daily_record(
     _authenticate(by, password)
     if meaning not in MEANINGS:
         raise InvalidTransition(f"The meaning of the signature is one of: {', '.join(MEANINGS)}.")
+    if meaning == "reviewed_exceptions" and not remarks.strip():
+        raise ValidationError({"remarks": "Say what the exceptions were."})
     credential = active_credential(job.organisation_id)
     with transaction.atomic():
         job = (
@@ -433,6 +443,11 @@ def sign_daily_record(
         )
         if DailyRecord.objects.filter(job=job, kind="record").exists():
             raise InvalidTransition("This day's record is already signed; add an addendum instead.")
+        if job.date > timezone.localdate():
+            raise InvalidTransition(
+                f"This job is for {job.date.isoformat()}, a day that has not come yet: a day's"
+                " record is signed on or after its day."
+            )
         if job.state in (JobState.PLANNED, JobState.CLEARED, JobState.WORKING):
             raise InvalidTransition(
                 "Close the job (or leave it held) before signing the day's record."
@@ -444,6 +459,9 @@ def sign_daily_record(
         content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(OPEN_HOLDS_NOT_SAFE)
+        ready = {JobState.CLEARED, JobState.WORKING}
+        if meaning == "reviewed_safe" and not any(t["to"] in ready for t in content["transitions"]):
+            raise InvalidTransition(NEVER_READY_NOT_SAFE)
         head = _locked_head(job.organisation_id, job.site_id)
         sequence, previous = head.sequence + 1, head.seal
         signed_at = timezone.now()

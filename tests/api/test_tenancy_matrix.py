@@ -42,6 +42,8 @@ WRITERS = ("operator", "supervisor", "admin", "property_manager")
 KEEPERS = ("supervisor", "admin", "property_manager")
 """Who may change a register (SupervisorWrites): the anchors, checklists and grants."""
 SIGNERS = ("supervisor", "admin")
+PLANNERS = SIGNERS
+"""Jobs and their drops are planned by a supervisor or an admin."""
 
 
 @pytest.fixture
@@ -147,7 +149,7 @@ JOB_ACTIONS = [
         lambda side, caller: reverse("job-drops", args=[side.job().pk]),
         _kit,
         201,
-        WRITERS,
+        PLANNERS,
     ),
     Action(
         "job-sign",
@@ -444,7 +446,7 @@ NAMINGS = [
         "robot",
         INVALID_PK,
         201,
-        WRITERS,
+        PLANNERS,
         JOB_RELATIONS,
     ),
     Naming(
@@ -458,7 +460,7 @@ NAMINGS = [
         "site",
         INVALID_PK,
         201,
-        WRITERS,
+        PLANNERS,
         SITE_RELATIONS,
     ),
     Naming(

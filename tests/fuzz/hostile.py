@@ -33,6 +33,7 @@ from tests.factories import (
     OrganisationFactory,
     SiteFactory,
     UserFactory,
+    drop_body,
     make_drop,
 )
 
@@ -321,7 +322,11 @@ def build_world(versions: dict) -> World:
         for days in (1, 2)
     }
     record = sign_daily_record(
-        job=older[2], by=supervisor, password=PASSWORD, meaning="reviewed_safe", remarks=""
+        job=older[2],
+        by=supervisor,
+        password=PASSWORD,
+        meaning="reviewed_exceptions",
+        remarks="No work that day.",
     )
     owner = OrganisationFactory(kind="owner")
     manager = UserFactory(organisation=owner, role="property_manager")
@@ -495,16 +500,7 @@ def baseline(w: World, method: str, template: str, role: str, fresh: bool = True
         },
         ("POST", "/jobs/{id}/close/"): lambda: {"reason": "wind"},
         ("POST", "/jobs/{id}/pause/"): lambda: {"reason": "wind"},
-        ("POST", "/jobs/{id}/drops/"): lambda: {
-            "label": unique("D"),
-            "robot": drop.robot_id,
-            "anchor": drop.anchor_id,
-            "safety_anchor": drop.safety_anchor_id,
-            "tether": drop.tether_id,
-            "safety_line": drop.safety_line_id,
-            "hose": drop.hose_id,
-            "length_m": 80.0,
-        },
+        ("POST", "/jobs/{id}/drops/"): lambda: drop_body(drop, label=unique("D")),
         ("POST", "/jobs/{id}/sign/"): lambda: {
             "password": PASSWORD,
             "meaning": "reviewed_safe",

@@ -8,6 +8,19 @@ from tests.factories import PASSWORD, JobFactory, make_drop
 
 
 @pytest.fixture
+def job(db):
+    """The day of the records tests is ten days back, so the days after it that the chain
+    tests sign are days that have come (a day is signed on or after its day)."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    job = JobFactory(date=timezone.localdate() - dt.timedelta(days=10))
+    make_drop(job)
+    return job
+
+
+@pytest.fixture
 def credential(job):
     return create_self_signed(organisation=job.organisation)
 

@@ -278,6 +278,7 @@ def _resigned(members, manifest, credential):
     return [(name, replaced.get(name, content)) for name, content in members]
 
 
+@pytest.mark.filterwarnings("ignore:Duplicate name")
 @pytest.mark.parametrize(
     "change",
     ["a file the manifest does not name", "a listed name twice", "a path out of the folder"],

@@ -328,3 +328,60 @@ def test_sign_off_costs_its_pinned_queries_whatever_the_day_holds(
     for day in (small, grown):
         with django_assert_num_queries(SIGN_OFF_QUERIES):
             sign_daily_record(job=day, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+
+
+def _closed_before_work(job, supervisor, day=None):
+    from compliance.jobs.services import close_job
+
+    job.date = day or job.date
+    job.save()
+    return close_job(job=job, by=supervisor, reason="Rain all day; no work.")
+
+
+def test_a_day_whose_checks_were_never_complete_cannot_be_signed_as_reviewed_safe(
+    job, simple_checklists, supervisor, credential
+):
+    """The meaning sealed says 'the pre-start checks were complete and work was safe to
+    proceed': a job closed before it was ever ready to start cannot say so."""
+    job = _closed_before_work(job, supervisor)
+    client = client_for(supervisor)
+    url = reverse("job-sign", args=[job.pk])
+
+    refused = client.post(url, {"password": PASSWORD, "meaning": "reviewed_safe"}, format="json")
+
+    assert refused.status_code == 409, refused.json()
+    assert "never complete" in refused.json()["detail"]
+    assert not DailyRecord.objects.exists()
+    bare = client.post(url, {"password": PASSWORD, "meaning": "reviewed_exceptions"}, format="json")
+    assert bare.status_code == 400
+    assert bare.json() == {"remarks": ["Say what the exceptions were."]}
+    assert not DailyRecord.objects.exists()
+    said = client.post(
+        url,
+        {"password": PASSWORD, "meaning": "reviewed_exceptions", "remarks": "No work: rain."},
+        format="json",
+    )
+    assert said.status_code == 201, said.json()
+
+
+def test_a_day_that_has_not_come_yet_cannot_be_signed(
+    job, simple_checklists, supervisor, credential
+):
+    import datetime as dt
+
+    from django.utils import timezone
+
+    job = _closed_before_work(job, supervisor, timezone.localdate() + dt.timedelta(days=1))
+
+    response = client_for(supervisor).post(
+        reverse("job-sign", args=[job.pk]),
+        {"password": PASSWORD, "meaning": "reviewed_exceptions", "remarks": "Cancelled."},
+        format="json",
+    )
+
+    assert response.status_code == 409
+    assert response.json()["detail"] == (
+        f"This job is for {job.date.isoformat()}, a day that has not come yet: a day's record"
+        " is signed on or after its day."
+    )
+    assert not DailyRecord.objects.exists()
