@@ -16,13 +16,19 @@ LATEST = dt.date(2100, 12, 31)
 
 
 class IdField(serializers.PrimaryKeyRelatedField):
-    """DRF's id field, with JSON's 1e400 (infinity once parsed) an incorrect type: looked up as
-    it is, it raised OverflowError ("cannot convert float infinity to integer"), a 500."""
+    """DRF's id field, with a number that is not a whole one an incorrect type: JSON's 1e400
+    (infinity once parsed) raised OverflowError when looked up, a 500, and 1.5 was looked up
+    as the id 1."""
 
     def to_internal_value(self, data: Any) -> Any:
         if isinstance(data, float) and not math.isfinite(data):
             self.fail("incorrect_type", data_type="number past binary64")
+        if isinstance(data, float) and not data.is_integer():
+            self.fail("incorrect_type", data_type="float")
         return super().to_internal_value(data)
+
+
+READ_ONLY_FIELD = "This field is read-only."
 
 
 class StrictInput:
@@ -32,7 +38,9 @@ class StrictInput:
     # its path, before anything is looked up or stored: text no database holds (a NUL, an
     # unpaired surrogate; see sync.unstorable) anywhere in the input, JSON fields and names
     # too. ``text_checked_later`` names fields checked elsewhere: a sync batch checks each
-    # record alone, so one bad record is refused without the rest. Ids are IdFields.
+    # record alone, so one bad record is refused without the rest. Ids are IdFields. A field
+    # the client may not set (an id, a job's state, a version's status) is refused by name
+    # like an unknown one: dropped without a word, a job sent as closed was stored as planned.
 
     fields: Any
     text_checked_later: tuple[str, ...] = ()
@@ -45,9 +53,15 @@ class StrictInput:
             if found is not None:
                 where, why = found
                 raise serializers.ValidationError({where or "non_field_errors": [why]})
-            unknown = sorted(printable(str(key)[:80]) for key in data if key not in self.fields)
-            if unknown:
-                raise serializers.ValidationError({key: ["Unknown field."] for key in unknown})
+            refused = {
+                printable(str(key)[:80]): (
+                    [READ_ONLY_FIELD] if key in self.fields else ["Unknown field."]
+                )
+                for key in data
+                if key not in self.fields or self.fields[key].read_only
+            }
+            if refused:
+                raise serializers.ValidationError(dict(sorted(refused.items())))
         return super().to_internal_value(data)  # type: ignore[misc]
 
 

@@ -264,16 +264,12 @@ class DropSerializer(StrictInput, serializers.ModelSerializer):
 class PlanCheckInput(StrictInput, serializers.Serializer):
     """Any of a drop's anchors and equipment, as chosen so far on the planning form."""
 
-    robot = serializers.PrimaryKeyRelatedField(queryset=Equipment.objects.none(), required=False)
-    tether = serializers.PrimaryKeyRelatedField(queryset=Equipment.objects.none(), required=False)
-    safety_line = serializers.PrimaryKeyRelatedField(
-        queryset=Equipment.objects.none(), required=False
-    )
-    hose = serializers.PrimaryKeyRelatedField(queryset=Equipment.objects.none(), required=False)
-    anchor = serializers.PrimaryKeyRelatedField(queryset=Anchor.objects.none(), required=False)
-    safety_anchor = serializers.PrimaryKeyRelatedField(
-        queryset=Anchor.objects.none(), required=False
-    )
+    robot = IdField(queryset=Equipment.objects.none(), required=False)
+    tether = IdField(queryset=Equipment.objects.none(), required=False)
+    safety_line = IdField(queryset=Equipment.objects.none(), required=False)
+    hose = IdField(queryset=Equipment.objects.none(), required=False)
+    anchor = IdField(queryset=Anchor.objects.none(), required=False)
+    safety_anchor = IdField(queryset=Anchor.objects.none(), required=False)
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

@@ -521,3 +521,94 @@ def test_a_non_finite_literal_at_the_deepest_nesting_the_decoder_takes_is_still_
         body = "[" * depth + "NaN" + "]" * depth
         response = client.post(reverse("sync"), body, content_type="application/json")
         assert response.status_code == 400, (depth, response.content[:200])
+
+
+# Fields the client may not set, and ids --------------------------------------------------------
+
+READ_ONLY_FIELD = ["This field is read-only."]
+
+
+def job_body(job, **change):
+    return {
+        "site": job.site_id,
+        "date": job.date.isoformat(),
+        "supervisor": job.supervisor_id,
+        **change,
+    }
+
+
+def test_a_job_sent_with_its_state_is_refused_naming_the_state(job, supervisor):
+    """The state was dropped without a word: a job sent as closed was stored as planned."""
+    before = everything()
+    response = client_for(supervisor).post(
+        reverse("job-list"), job_body(job, state="closed"), format="json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"state": READ_ONLY_FIELD}
+    assert everything() == before
+
+
+def test_read_only_and_unknown_fields_are_named_together(job, supervisor):
+    response = client_for(supervisor).post(
+        reverse("job-list"),
+        job_body(job, id=5, site_name="Elsewhere", colour="red"),
+        format="json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {
+        "colour": ["Unknown field."],
+        "id": READ_ONLY_FIELD,
+        "site_name": READ_ONLY_FIELD,
+    }
+
+
+def test_a_draft_cannot_be_published_by_setting_its_status(job, supervisor):
+    from checklists import services as checklist_services
+
+    checklist = checklist_services.create_checklist(
+        by=supervisor, key="own-hose", title="Own hose", applies_to="hose"
+    )
+    draft = checklist_services.create_draft(
+        checklist=checklist, items=[tick("condition")], by=supervisor
+    )
+    response = client_for(supervisor).patch(
+        reverse("checklist-version-detail", args=[draft.pk]), {"status": "published"}, format="json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"status": READ_ONLY_FIELD}
+    draft.refresh_from_db()
+    assert draft.status == "draft"
+
+
+def test_a_checklist_cannot_be_made_a_default_by_saying_so(job, supervisor):
+    before = Checklist.objects.count()
+    response = client_for(supervisor).post(
+        reverse("checklist-list"),
+        {"key": "own", "title": "Own", "applies_to": "hose", "default": True},
+        format="json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"default": READ_ONLY_FIELD}
+    assert Checklist.objects.count() == before
+
+
+@pytest.mark.parametrize("site", [1.5, -0.5, True])
+def test_an_id_is_a_whole_number(job, supervisor, site):
+    """1.5 was looked up as 1, the site of that id."""
+    kind = "bool" if site is True else "float"
+    before = everything()
+    response = client_for(supervisor).post(
+        reverse("job-list"), job_body(job, site=site), format="json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"site": [f"Incorrect type. Expected pk value, received {kind}."]}
+    assert everything() == before
+
+
+def test_a_fractional_id_in_a_plan_check_is_refused_too(job, supervisor):
+    robot = job.drops.get().robot_id
+    response = client_for(supervisor).post(
+        reverse("job-plan-check", args=[job.pk]), {"robot": robot + 0.5}, format="json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"robot": ["Incorrect type. Expected pk value, received float."]}
