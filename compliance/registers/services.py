@@ -4,7 +4,7 @@ in one transaction with its audit entry; these services are the only writers of 
 import datetime as dt
 from typing import IO, Any
 
-from django.core.exceptions import ValidationError
+from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
 from django.db import IntegrityError, models, transaction
 
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
@@ -138,19 +138,31 @@ def audit_register_change(
     )
 
 
+UNIQUE_CODES = ("unique", "unique_together")
+
+
+def clean_register_row(row: models.Model, *, unique: dict[str, str], **checks: Any) -> None:
+    """full_clean, with a uniqueness the model states named by its field: full_clean names a
+    composite unique constraint under __all__. Only the uniqueness is renamed; a check
+    constraint's error stays where it is, and is not taken for a name in use."""
+    try:
+        row.full_clean(**checks)
+    except ValidationError as exc:
+        ((field, words),) = unique.items()
+        errors = dict(exc.error_dict)
+        shared = errors.pop(NON_FIELD_ERRORS, [])
+        if any(e.code in UNIQUE_CODES for e in shared):
+            errors.setdefault(field, []).append(ValidationError(words, code="unique"))
+        rest = [e for e in shared if e.code not in UNIQUE_CODES]
+        if rest:
+            errors[NON_FIELD_ERRORS] = rest
+        raise ValidationError(errors) from None
+
+
 def save_new_register_row(row: models.Model, *, unique: dict[str, str]) -> None:
     """Validate and insert; a uniqueness the model states is the caller's error, named by
     field, whether full_clean sees it first or the database does (two at once)."""
-    try:
-        row.full_clean()
-    except ValidationError as exc:
-        # full_clean names a composite unique constraint under __all__; name the field.
-        errors = exc.message_dict
-        if "__all__" in errors and unique:
-            ((field, words),) = unique.items()
-            errors.pop("__all__")
-            errors[field] = [words]
-        raise ValidationError(errors) from None
+    clean_register_row(row, unique=unique)
     try:
         with transaction.atomic():
             row.save()
@@ -190,9 +202,7 @@ def create_site(
             profile=profile,
             **fields,
         )
-        save_new_register_row(
-            site, unique={"name": "Your organisation already has a site of this name."}
-        )
+        save_new_register_row(site, unique={"name": DUPLICATE_SITE})
         audit_register_change(subject="site", row=site, action="created", by=by)
     return site
 
@@ -212,9 +222,7 @@ def add_anchor(
         raise NotPermitted("Only the building's owner adds anchors to its roof.")
     with transaction.atomic():
         anchor = Anchor(site=site, label=label, x_m=x_m, y_m=y_m, description=description)
-        save_new_register_row(
-            anchor, unique={"label": "This site already has an anchor of this label."}
-        )
+        save_new_register_row(anchor, unique={"label": DUPLICATE_ANCHOR})
         audit_register_change(subject="anchor", row=anchor, action="created", by=by)
     return anchor
 
@@ -224,9 +232,7 @@ def create_equipment(*, by: User, **fields: Any) -> Equipment:
     require_register_keeper(by)
     with transaction.atomic():
         item = Equipment(organisation_id=by.organisation_id, **fields)
-        save_new_register_row(
-            item, unique={"label": "Your organisation already has equipment of this label."}
-        )
+        save_new_register_row(item, unique={"label": DUPLICATE_EQUIPMENT})
         audit_register_change(subject="equipment", row=item, action="created", by=by)
     return item
 
@@ -259,7 +265,7 @@ def update_equipment(*, item: Equipment, by: User, reason: str = "", **fields: A
             raise ValidationError({"reason": ["Say why the equipment is taken out of service."]})
         for name, value in fields.items():
             setattr(item, name, value)
-        item.full_clean(validate_unique=False)
+        clean_register_row(item, unique={"label": DUPLICATE_EQUIPMENT}, validate_unique=False)
         try:
             with transaction.atomic():
                 item.save(update_fields=sorted(changes))

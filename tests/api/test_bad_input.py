@@ -612,3 +612,28 @@ def test_a_fractional_id_in_a_plan_check_is_refused_too(job, supervisor):
     )
     assert response.status_code == 400, response.content[:300]
     assert response.json() == {"robot": ["Incorrect type. Expected pk value, received float."]}
+
+
+def test_renaming_equipment_to_a_label_in_use_names_the_label(job, supervisor):
+    """The model's unique constraint answered under __all__."""
+    drop = job.drops.get()
+    tether = drop.tether
+    response = client_for(supervisor).patch(
+        reverse("equipment-detail", args=[tether.pk]), {"label": drop.hose.label}, format="json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"label": ["Your organisation already has equipment of this label."]}
+    label = tether.label
+    tether.refresh_from_db()
+    assert tether.label == label
+
+
+def test_a_second_site_of_one_name_is_still_named_by_its_name(job, supervisor):
+    body = {
+        "name": job.site.name,
+        "height_m": 50,
+        "profile": job.site.profile.key,
+    }
+    response = client_for(supervisor).post(reverse("site-list"), body, format="json")
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"name": ["Your organisation already has a site of this name."]}
