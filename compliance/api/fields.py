@@ -5,6 +5,7 @@ import math
 from collections.abc import Mapping
 from typing import Any
 
+from django.db import models
 from drf_spectacular.types import OpenApiTypes
 from drf_spectacular.utils import extend_schema_field
 from rest_framework import serializers
@@ -28,6 +29,18 @@ class IdField(serializers.PrimaryKeyRelatedField):
         return super().to_internal_value(data)
 
 
+class FiniteFloatField(serializers.FloatField):
+    """A finite number, never true or false: DRF's FloatField reads true as 1.0."""
+
+    def to_internal_value(self, data: Any) -> float:
+        if isinstance(data, bool):
+            self.fail("invalid")
+        value = super().to_internal_value(data)
+        if not math.isfinite(value):
+            raise serializers.ValidationError("Must be a finite number.")
+        return value
+
+
 READ_ONLY_FIELD = "This field is read-only."
 
 
@@ -45,6 +58,10 @@ class StrictInput:
     fields: Any
     text_checked_later: tuple[str, ...] = ()
     serializer_related_field = IdField  # for ModelSerializer's own foreign keys
+    serializer_field_mapping = {  # and for its own numbers
+        **serializers.ModelSerializer.serializer_field_mapping,
+        models.FloatField: FiniteFloatField,
+    }
 
     def to_internal_value(self, data: Any) -> Any:
         if isinstance(data, Mapping):
@@ -73,14 +90,6 @@ class ParsedJSON(serializers.Field):
         return data
 
     def to_representation(self, value: Any) -> Any:
-        return value
-
-
-class FiniteFloatField(serializers.FloatField):
-    def to_internal_value(self, data: Any) -> float:
-        value = super().to_internal_value(data)
-        if not math.isfinite(value):
-            raise serializers.ValidationError("Must be a finite number.")
         return value
 
 

@@ -94,6 +94,13 @@ class Drop(models.Model):
                 errors[field] = "This anchor is not on the job's site."
         if self.anchor_id and self.anchor_id == self.safety_anchor_id:
             errors["safety_anchor"] = "The safety line needs an anchor independent of the tether's."
+        if self.length_m is not None and not self.length_m > 0:
+            errors["length_m"] = "Must be greater than zero."
+        elif self.length_m is not None and self.job_id and self.length_m > self.job.site.height_m:
+            errors["length_m"] = (
+                f"At most the site's height, {self.job.site.height_m:g} m: "
+                "a drop cannot be longer than the building is tall."
+            )
         if errors:
             raise ValidationError(errors)
 

@@ -1,0 +1,84 @@
+"""Values no building, anchor or piece of kit can have are a 400 naming the field, and nothing of
+them is stored. The bounds are sanity bounds against typing errors (common practice, no source),
+not engineering limits."""
+
+import pytest
+from django.urls import reverse
+
+from compliance.models import Anchor, AnchorCertification, Drop, Equipment, RegisterChange, Site
+from tests.conftest import client_for
+
+pytestmark = pytest.mark.django_db
+
+
+def stored():
+    return (
+        Site.objects.count(),
+        Anchor.objects.count(),
+        AnchorCertification.objects.count(),
+        Equipment.objects.count(),
+        Drop.objects.count(),
+        RegisterChange.objects.count(),
+    )
+
+
+def drop_body(job, **change):
+    drop = job.drops.get()
+    return {
+        "label": "D2",
+        "robot": drop.robot_id,
+        "anchor": drop.anchor_id,
+        "safety_anchor": drop.safety_anchor_id,
+        "tether": drop.tether_id,
+        "safety_line": drop.safety_line_id,
+        "hose": drop.hose_id,
+        "length_m": 80.0,
+        **change,
+    }
+
+
+def add_drop(job, supervisor, **change):
+    # The drop of the job fixture has its kit booked; a second drop on the same job shares it.
+    return client_for(supervisor).post(
+        reverse("job-drops", args=[job.pk]), drop_body(job, **change), format="json"
+    )
+
+
+TALLER = "At most the site's height, 120 m: a drop cannot be longer than the building is tall."
+
+
+@pytest.mark.parametrize(
+    ("length", "says"),
+    [
+        (1e308, TALLER),
+        (120.5, TALLER),
+        (True, "A valid number is required."),
+        (0, "Must be greater than zero."),
+        (-5, "Must be greater than zero."),
+    ],
+    ids=["1e308", "just taller", "true", "zero", "negative"],
+)
+def test_a_drop_length_is_positive_and_at_most_the_site_height(job, supervisor, length, says):
+    before = stored()
+    response = add_drop(job, supervisor, length_m=length)
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"length_m": [says]}
+    assert stored() == before
+
+
+def test_a_drop_as_long_as_the_building_is_tall_is_planned(job, supervisor):
+    response = add_drop(job, supervisor, length_m=120)
+    assert response.status_code == 201, response.content[:300]
+    assert response.json()["length_m"] == 120.0
+
+
+def post_anchor(supervisor, site, **place):
+    return client_for(supervisor).post(
+        reverse("anchor-list"), {"site": site.pk, "label": "N9", **place}, format="json"
+    )
+
+
+def test_an_anchor_coordinate_is_never_a_boolean(job, supervisor):
+    response = post_anchor(supervisor, job.site, x_m=True, y_m=0)
+    assert response.status_code == 400
+    assert response.json() == {"x_m": ["A valid number is required."]}
