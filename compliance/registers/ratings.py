@@ -20,63 +20,81 @@ class Rating:
     positive: bool = True
     non_negative: bool = False
     text: bool = False
+    maximum: float | None = None
 
 
 OPTIONAL_ZERO: dict[str, bool] = {"required": False, "positive": False, "non_negative": True}
 """A rating that may be absent, or zero (no offset, no brush), but never negative."""
 
+# Each number's maximum is a sanity bound against typing errors (common practice, no source),
+# set well past any robot, line or hose in trade use. It is not an engineering limit, which a
+# checklist draws from the maker's figures or the profile; a value past it is taken for a slip
+# of the keyboard and refused rather than calculated with. One is physics, not a guess: no
+# vacuum exceeds the standard atmosphere, 101.325 kPa.
 EQUIPMENT_RATINGS: dict[str, tuple[Rating, ...]] = {
     "robot": (
-        Rating("mass_kg", "mass without water, kg"),
-        Rating("cup_diameter_m", "suction cup diameter, m"),
-        Rating("cups_engaged", "cups engaged at once"),
-        Rating("friction", "cup friction coefficient on wet glass"),
-        Rating("projected_area_m2", "area facing the wind, m²"),
-        Rating("drag_coefficient", "drag coefficient"),
-        Rating("max_wind_ms", "maker's in-service wind limit, m/s"),
-        Rating("nozzle_min_kpa", "least water pressure at the robot's valve, kPa"),
-        Rating("working_vacuum_kpa", "maker's working vacuum, kPa", required=False),
+        Rating("mass_kg", "mass without water, kg", maximum=1000),
+        Rating("cup_diameter_m", "suction cup diameter, m", maximum=2),
+        Rating("cups_engaged", "cups engaged at once", maximum=100),
+        Rating("friction", "cup friction coefficient on wet glass", maximum=2),
+        Rating("projected_area_m2", "area facing the wind, m²", maximum=20),
+        Rating("drag_coefficient", "drag coefficient", maximum=5),
+        Rating("max_wind_ms", "maker's in-service wind limit, m/s", maximum=60),
+        Rating("nozzle_min_kpa", "least water pressure at the robot's valve, kPa", maximum=10000),
+        Rating(
+            "working_vacuum_kpa", "maker's working vacuum, kPa", required=False, maximum=101.325
+        ),
         Rating(
             "water_on_board_kg",
             "water carried on the robot when full, kg",
             required=False,
             positive=False,
             non_negative=True,
+            maximum=500,
         ),
-        Rating("valve_closure_s", "time the water valve takes to close, s", required=False),
-        Rating("rated_load_kg", "maker's rated suspended load, kg", required=False),
-        Rating("cup_area_ratio", "share of a cup's disc the vacuum acts on", required=False),
-        Rating("cup_rows", "rows of cups, one above the other", required=False),
-        Rating("row_spacing_m", "bottom row of cups to top row, m", **OPTIONAL_ZERO),
-        Rating("com_offset_m", "centre of mass from the glass, m", **OPTIONAL_ZERO),
-        Rating("brush_force_n", "brush drag along the wall, N", **OPTIONAL_ZERO),
-        Rating("brush_push_n", "brush push off the glass, N", **OPTIONAL_ZERO),
-        Rating("side_area_m2", "area facing wind along the wall, m²", **OPTIONAL_ZERO),
+        Rating(
+            "valve_closure_s", "time the water valve takes to close, s", required=False, maximum=600
+        ),
+        Rating("rated_load_kg", "maker's rated suspended load, kg", required=False, maximum=2000),
+        Rating(
+            "cup_area_ratio", "share of a cup's disc the vacuum acts on", required=False, maximum=1
+        ),
+        Rating("cup_rows", "rows of cups, one above the other", required=False, maximum=20),
+        Rating("row_spacing_m", "bottom row of cups to top row, m", **OPTIONAL_ZERO, maximum=10),
+        Rating("com_offset_m", "centre of mass from the glass, m", **OPTIONAL_ZERO, maximum=5),
+        Rating("brush_force_n", "brush drag along the wall, N", **OPTIONAL_ZERO, maximum=10000),
+        Rating("brush_push_n", "brush push off the glass, N", **OPTIONAL_ZERO, maximum=10000),
+        Rating("side_area_m2", "area facing wind along the wall, m²", **OPTIONAL_ZERO, maximum=20),
     ),
     "tether": (
-        Rating("mbs_kn", "minimum breaking strength, kN"),
-        Rating("wll_kn", "working load limit, kN"),
-        Rating("ea_kn", "axial stiffness EA, kN"),
-        Rating("diameter_mm", "diameter, mm", required=False),
-        Rating("kg_per_m", "self-weight, kg/m"),
-        Rating("length_m", "length, m"),
-        Rating("retire_after_years", "retire after, years", required=False),
+        Rating("mbs_kn", "minimum breaking strength, kN", maximum=1000),
+        Rating("wll_kn", "working load limit, kN", maximum=1000),
+        Rating("ea_kn", "axial stiffness EA, kN", maximum=100000),
+        Rating("diameter_mm", "diameter, mm", required=False, maximum=100),
+        Rating("kg_per_m", "self-weight, kg/m", maximum=20),
+        Rating("length_m", "length, m", maximum=2000),
+        Rating("retire_after_years", "retire after, years", required=False, maximum=100),
     ),
     "safety_line": (
-        Rating("mbs_kn", "minimum breaking strength, kN"),
-        Rating("ea_kn", "axial stiffness EA, kN"),
-        Rating("kg_per_m", "self-weight, kg/m"),
-        Rating("length_m", "length, m"),
-        Rating("retire_after_years", "retire after, years", required=False),
+        Rating("mbs_kn", "minimum breaking strength, kN", maximum=1000),
+        Rating("ea_kn", "axial stiffness EA, kN", maximum=100000),
+        Rating("kg_per_m", "self-weight, kg/m", maximum=20),
+        Rating("length_m", "length, m", maximum=2000),
+        Rating("retire_after_years", "retire after, years", required=False, maximum=100),
     ),
     "hose": (
-        Rating("id_mm", "inner diameter, mm"),
-        Rating("rating_kpa", "pressure rating, kPa"),
-        Rating("kg_per_m", "empty self-weight, kg/m"),
-        Rating("length_m", "length, m"),
-        Rating("roughness_mm", "wall roughness, mm"),
-        Rating("wave_speed_ms", "pressure wave speed in the filled hose, m/s", required=False),
-        Rating("od_mm", "outside diameter, mm", required=False),
+        Rating("id_mm", "inner diameter, mm", maximum=200),
+        Rating("rating_kpa", "pressure rating, kPa", maximum=100000),
+        Rating("kg_per_m", "empty self-weight, kg/m", maximum=20),
+        Rating("length_m", "length, m", maximum=2000),
+        Rating("roughness_mm", "wall roughness, mm", maximum=10),
+        Rating(
+            "wave_speed_ms",
+            "pressure wave speed in the filled hose, m/s",
+            required=False,
+            maximum=3000,
+        ),
+        Rating("od_mm", "outside diameter, mm", required=False, maximum=300),
     ),
     "estop": (Rating("location", "where the stop is fitted", positive=False, text=True),),
 }
@@ -91,6 +109,12 @@ KIND_WORDS = {
     "estop": "Emergency stop",
 }
 UNITS = ("kg", "m", "m²", "m/s", "kPa", "s", "kN", "mm", "kg/m", "years", "N")
+
+
+def _unit_of(rating: Rating) -> str:
+    """The unit the label ends with, after a space (" kN"), or nothing."""
+    label, _, tail = rating.label.rpartition(", ")
+    return f" {tail}" if label and tail in UNITS else ""
 
 
 def rating_form(kind: str) -> list[dict[str, Any]]:
@@ -159,6 +183,11 @@ def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:
             errors[field] = "Must be greater than zero."
         elif rating.non_negative and value < 0:
             errors[field] = "Cannot be negative."
+        elif rating.maximum is not None and value > rating.maximum:
+            errors[field] = (
+                f"At most {rating.maximum:g}{_unit_of(rating)}: "
+                "a larger value is taken for a typing error."
+            )
     if errors:
         raise ValidationError(errors)
     return ratings

@@ -72,6 +72,34 @@ def test_a_drop_as_long_as_the_building_is_tall_is_planned(job, supervisor):
     assert response.json()["length_m"] == 120.0
 
 
+def test_an_absurd_equipment_rating_is_refused_naming_it(job, supervisor):
+    tether = job.drops.get().tether
+    before = (stored(), dict(tether.ratings))
+    response = client_for(supervisor).patch(
+        reverse("equipment-detail", args=[tether.pk]),
+        {"ratings": {**tether.ratings, "length_m": 1e308}},
+        format="json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {
+        "ratings.length_m": ["At most 2000 m: a larger value is taken for a typing error."]
+    }
+    tether.refresh_from_db()
+    assert (stored(), tether.ratings) == before
+
+
+def test_every_rating_has_a_sanity_maximum_the_stored_kit_keeps_under():
+    from compliance.registers.ratings import EQUIPMENT_RATINGS
+    from tests.factories import RATINGS
+
+    for kind, ratings in EQUIPMENT_RATINGS.items():
+        for rating in ratings:
+            assert rating.text or rating.maximum is not None, (kind, rating.key)
+            value = RATINGS[kind].get(rating.key)
+            if rating.maximum is not None and value is not None:
+                assert value <= rating.maximum, (kind, rating.key)
+
+
 def post_anchor(supervisor, site, **place):
     return client_for(supervisor).post(
         reverse("anchor-list"), {"site": site.pk, "label": "N9", **place}, format="json"
