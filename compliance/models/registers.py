@@ -2,9 +2,12 @@
 of register changes."""
 
 import datetime as dt
+from typing import Any
 
+from django.core.exceptions import ValidationError
 from django.db import models
 from django.db.models import Q
+from django.utils import timezone
 
 from compliance.append_only import AppendOnlyModel
 from compliance.models.people import Organisation, User
@@ -168,7 +171,15 @@ class Equipment(models.Model):
         return f"{self.label} ({self.kind})"
 
     def clean(self) -> None:
-        validate_ratings(self.kind, self.ratings)
+        errors: dict[str, Any] = {}
+        if self.made_on is not None and self.made_on > timezone.localdate():
+            errors["made_on"] = "A manufacturing date cannot be after today."
+        try:
+            validate_ratings(self.kind, self.ratings)
+        except ValidationError as exc:
+            errors = exc.update_error_dict(errors)
+        if errors:
+            raise ValidationError(errors)
 
 
 class RegisterChange(AppendOnlyModel):

@@ -2,8 +2,11 @@
 them is stored. The bounds are sanity bounds against typing errors (common practice, no source),
 not engineering limits."""
 
+import datetime as dt
+
 import pytest
 from django.urls import reverse
+from django.utils import timezone
 
 from compliance.models import Anchor, AnchorCertification, Drop, Equipment, RegisterChange, Site
 from tests.conftest import client_for
@@ -98,6 +101,32 @@ def test_every_rating_has_a_sanity_maximum_the_stored_kit_keeps_under():
             value = RATINGS[kind].get(rating.key)
             if rating.maximum is not None and value is not None:
                 assert value <= rating.maximum, (kind, rating.key)
+
+
+def test_a_manufacturing_date_after_today_is_refused(job, supervisor):
+    client = client_for(supervisor)
+    tether = job.drops.get().tether
+    before = stored()
+    response = client.patch(
+        reverse("equipment-detail", args=[tether.pk]), {"made_on": "2030-01-01"}, format="json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"made_on": ["A manufacturing date cannot be after today."]}
+    tomorrow = (timezone.localdate() + dt.timedelta(days=1)).isoformat()
+    response = client.post(
+        reverse("equipment-list"),
+        {"kind": "estop", "label": "E-9", "ratings": {"location": "roof"}, "made_on": tomorrow},
+        format="json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"made_on": ["A manufacturing date cannot be after today."]}
+    tether.refresh_from_db()
+    assert (stored(), tether.made_on) == (before, None)
+    today = timezone.localdate().isoformat()
+    response = client.patch(
+        reverse("equipment-detail", args=[tether.pk]), {"made_on": today}, format="json"
+    )
+    assert response.status_code == 200, response.content[:300]
 
 
 def post_anchor(supervisor, site, **place):
