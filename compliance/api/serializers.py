@@ -22,6 +22,7 @@ from compliance.models import (
     Site,
     User,
 )
+from compliance.registers.bounds import MAX_RATED_CAPACITY_KN
 from compliance.registers.ratings import EQUIPMENT_KINDS
 from compliance.registers.selectors import withdrawn_reason
 from compliance.registers.visibility import anchors_visible_to, sites_visible_to
@@ -150,6 +151,10 @@ class CertificationSerializer(StrictInput, serializers.ModelSerializer):
     def validate_rated_capacity_kn(self, value: float) -> float:
         if value <= 0:
             raise serializers.ValidationError("Rated capacity must be greater than zero.")
+        if value > MAX_RATED_CAPACITY_KN:
+            raise serializers.ValidationError(
+                f"At most {MAX_RATED_CAPACITY_KN:g} kN: a larger value is taken for a typing error."
+            )
         return value
 
     def validate(self, attrs: dict[str, Any]) -> dict[str, Any]:

@@ -129,6 +129,42 @@ def test_a_manufacturing_date_after_today_is_refused(job, supervisor):
     assert response.status_code == 200, response.content[:300]
 
 
+def certification(capacity):
+    today = timezone.localdate()
+    return {
+        "certifier": "P",
+        "rated_capacity_kn": capacity,
+        "certified_on": (today - dt.timedelta(days=5)).isoformat(),
+        "valid_until": (today + dt.timedelta(days=360)).isoformat(),
+    }
+
+
+@pytest.mark.parametrize(
+    ("capacity", "says"),
+    [
+        (1e308, "At most 1000 kN: a larger value is taken for a typing error."),
+        (True, "A valid number is required."),
+    ],
+)
+def test_an_absurd_anchor_capacity_is_refused(job, supervisor, capacity, says):
+    anchor = job.drops.get().anchor
+    before = stored()
+    response = client_for(supervisor).post(
+        reverse("anchor-certifications", args=[anchor.pk]), certification(capacity), format="json"
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {"rated_capacity_kn": [says]}
+    assert stored() == before
+
+
+def test_a_capacity_of_the_bound_is_recorded(job, supervisor):
+    anchor = job.drops.get().anchor
+    response = client_for(supervisor).post(
+        reverse("anchor-certifications", args=[anchor.pk]), certification(1000), format="json"
+    )
+    assert response.status_code == 201, response.content[:300]
+
+
 def post_anchor(supervisor, site, **place):
     return client_for(supervisor).post(
         reverse("anchor-list"), {"site": site.pk, "label": "N9", **place}, format="json"
