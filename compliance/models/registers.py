@@ -12,6 +12,7 @@ from django.utils import timezone
 from compliance.append_only import AppendOnlyModel
 from compliance.models.people import Organisation, User
 from compliance.models.profiles import JurisdictionProfile
+from compliance.registers.bounds import ANCHOR_BEYOND_OUTLINE_M, ANCHOR_FROM_ORIGIN_M
 from compliance.registers.ratings import EQUIPMENT_KINDS, validate_ratings
 
 
@@ -99,6 +100,34 @@ class Anchor(models.Model):
 
     def __str__(self) -> str:
         return f"{self.site.name} {self.label}"
+
+    def clean(self) -> None:
+        """On the roof: within the outline's bounding box widened by a parapet's reach, or, on a
+        site without an outline, within a sane distance of the plan's origin."""
+        if not self.site_id:
+            return
+        outline = self.site.roof_outline or []
+        reach = ANCHOR_BEYOND_OUTLINE_M
+        errors: dict[str, str] = {}
+        for axis, field in enumerate(("x_m", "y_m")):
+            value = getattr(self, field)
+            if value is None:
+                continue
+            if outline:
+                low = min(float(corner[axis]) for corner in outline)
+                high = max(float(corner[axis]) for corner in outline)
+                if not low - reach <= value <= high + reach:
+                    errors[field] = (
+                        f"Off the roof: the outline runs from {low:g} to {high:g} m in "
+                        f"{field[0]}; an anchor lies on it or at most {reach:g} m beyond its edge."
+                    )
+            elif not -ANCHOR_FROM_ORIGIN_M <= value <= ANCHOR_FROM_ORIGIN_M:
+                errors[field] = (
+                    "The site has no roof outline: a coordinate is at most "
+                    f"{ANCHOR_FROM_ORIGIN_M:g} m from its origin."
+                )
+        if errors:
+            raise ValidationError(errors)
 
     def current_certification(self) -> "AnchorCertification | None":
         """The newest certification; uses the prefetched list when there is one."""

@@ -10,8 +10,11 @@ from django.utils import timezone
 
 from compliance.models import Anchor, AnchorCertification, Drop, Equipment, RegisterChange, Site
 from tests.conftest import client_for
+from tests.factories import SiteFactory
 
 pytestmark = pytest.mark.django_db
+
+OUTLINE = [[0, 0], [30, 0], [30, 20], [0, 20]]
 
 
 def stored():
@@ -169,6 +172,53 @@ def post_anchor(supervisor, site, **place):
     return client_for(supervisor).post(
         reverse("anchor-list"), {"site": site.pk, "label": "N9", **place}, format="json"
     )
+
+
+OFF_THE_ROOF = (
+    "Off the roof: the outline runs from {lo} to {hi} m in {axis}; an anchor lies on it "
+    "or at most 5 m beyond its edge."
+)
+
+
+@pytest.mark.parametrize(
+    ("place", "field", "lo", "hi"),
+    [
+        ({"x_m": 1e308, "y_m": 0}, "x_m", 0, 30),
+        ({"x_m": 0, "y_m": -1e308}, "y_m", 0, 20),
+        ({"x_m": 35.5, "y_m": 10}, "x_m", 0, 30),
+        ({"x_m": 10, "y_m": -5.5}, "y_m", 0, 20),
+    ],
+)
+def test_an_anchor_off_the_roof_outline_is_refused(job, supervisor, place, field, lo, hi):
+    site = SiteFactory(organisation=job.organisation, roof_outline=OUTLINE)
+    before = stored()
+    response = post_anchor(supervisor, site, **place)
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {field: [OFF_THE_ROOF.format(lo=lo, hi=hi, axis=field[0])]}
+    assert stored() == before
+
+
+def test_an_anchor_on_the_parapet_just_outside_the_outline_is_added(job, supervisor):
+    site = SiteFactory(organisation=job.organisation, roof_outline=OUTLINE)
+    response = post_anchor(supervisor, site, x_m=35, y_m=-5)
+    assert response.status_code == 201, response.content[:300]
+
+
+@pytest.mark.parametrize(
+    ("place", "field"),
+    [({"x_m": -1e308, "y_m": 0}, "x_m"), ({"x_m": 0, "y_m": 1000.5}, "y_m")],
+)
+def test_an_anchor_of_a_site_without_an_outline_is_within_a_kilometre(
+    job, supervisor, place, field
+):
+    before = stored()
+    response = post_anchor(supervisor, job.site, **place)
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {
+        field: ["The site has no roof outline: a coordinate is at most 1000 m from its origin."]
+    }
+    assert stored() == before
+    assert post_anchor(supervisor, job.site, x_m=-1000, y_m=1000).status_code == 201
 
 
 def test_an_anchor_coordinate_is_never_a_boolean(job, supervisor):
