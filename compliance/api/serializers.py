@@ -57,6 +57,12 @@ class SiteSerializer(StrictInput, serializers.ModelSerializer):
     profile = serializers.SlugRelatedField(
         slug_field="key", queryset=JurisdictionProfile.objects.all()
     )
+    # The model's clean bounds the storeys (1 to 300). Taken from the column, the field would
+    # answer first with the database's own range (2**31 - 1 on PostgreSQL, 2**63 - 1 on
+    # SQLite), in other words on each; it keeps the widest range so the schema says int64.
+    storeys = serializers.IntegerField(
+        required=False, allow_null=True, min_value=0, max_value=2**63 - 1
+    )
     owned = serializers.SerializerMethodField()
 
     class Meta:

@@ -12,7 +12,12 @@ from django.utils import timezone
 from compliance.append_only import AppendOnlyModel
 from compliance.models.people import Organisation, User
 from compliance.models.profiles import JurisdictionProfile
-from compliance.registers.bounds import ANCHOR_BEYOND_OUTLINE_M, ANCHOR_FROM_ORIGIN_M
+from compliance.registers.bounds import (
+    ANCHOR_BEYOND_OUTLINE_M,
+    ANCHOR_FROM_ORIGIN_M,
+    MAX_SITE_HEIGHT_M,
+    STOREYS,
+)
 from compliance.registers.ratings import EQUIPMENT_KINDS, validate_ratings
 
 
@@ -47,6 +52,16 @@ class Site(models.Model):
 
     def __str__(self) -> str:
         return self.name
+
+    def clean(self) -> None:
+        errors: dict[str, str] = {}
+        if self.height_m is not None and not 0 < self.height_m <= MAX_SITE_HEIGHT_M:
+            errors["height_m"] = f"A roof height above 0 and at most {MAX_SITE_HEIGHT_M:g} m."
+        fewest, most = STOREYS
+        if self.storeys is not None and not fewest <= self.storeys <= most:
+            errors["storeys"] = f"Between {fewest} and {most} storeys."
+        if errors:
+            raise ValidationError(errors)
 
 
 class SiteGrant(AppendOnlyModel):

@@ -225,3 +225,61 @@ def test_an_anchor_coordinate_is_never_a_boolean(job, supervisor):
     response = post_anchor(supervisor, job.site, x_m=True, y_m=0)
     assert response.status_code == 400
     assert response.json() == {"x_m": ["A valid number is required."]}
+
+
+def site_body(**change):
+    return {
+        "name": "S2",
+        "address": "a",
+        "height_m": 80,
+        "storeys": 20,
+        "terrain": "IV",
+        "profile": "test-profile",
+        "roof_outline": OUTLINE,
+        **change,
+    }
+
+
+@pytest.mark.parametrize(
+    ("change", "errors"),
+    [
+        (
+            {"height_m": 1e308, "storeys": 10**12},
+            {
+                "height_m": ["A roof height above 0 and at most 1000 m."],
+                "storeys": ["Between 1 and 300 storeys."],
+            },
+        ),
+        (
+            {"height_m": -5, "storeys": 0},
+            {
+                "height_m": ["A roof height above 0 and at most 1000 m."],
+                "storeys": ["Between 1 and 300 storeys."],
+            },
+        ),
+        ({"height_m": 0}, {"height_m": ["A roof height above 0 and at most 1000 m."]}),
+        ({"height_m": True}, {"height_m": ["A valid number is required."]}),
+        ({"storeys": 301}, {"storeys": ["Between 1 and 300 storeys."]}),
+    ],
+    ids=["huge", "negative and none", "zero high", "true", "too many storeys"],
+)
+def test_a_site_has_a_plausible_height_and_storeys(job, supervisor, change, errors):
+    """The second case answered that a site of this name existed: a check constraint's error
+    was taken for the name's uniqueness."""
+    before = stored()
+    response = client_for(supervisor).post(reverse("site-list"), site_body(**change), format="json")
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == errors
+    assert stored() == before
+
+
+def test_a_site_at_the_bounds_is_registered(job, supervisor):
+    client = client_for(supervisor)
+    response = client.post(
+        reverse("site-list"), site_body(height_m=1000, storeys=300), format="json"
+    )
+    assert response.status_code == 201, response.content[:300]
+    response = client.post(
+        reverse("site-list"), site_body(name="S3", height_m=3.5, storeys=None), format="json"
+    )
+    assert response.status_code == 201, response.content[:300]
