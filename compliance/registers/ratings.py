@@ -188,6 +188,20 @@ def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:
                 f"At most {rating.maximum:g}{_unit_of(rating)}: "
                 "a larger value is taken for a typing error."
             )
+    strength, limit = ratings.get("mbs_kn"), ratings.get("wll_kn")
+    if (
+        "ratings.mbs_kn" not in errors
+        and "ratings.wll_kn" not in errors
+        and isinstance(strength, int | float)
+        and isinstance(limit, int | float)
+        and limit > strength
+    ):
+        # A working load limit is the breaking strength over a safety factor above one
+        # (common practice, no source).
+        errors["ratings.wll_kn"] = (
+            f"Above the minimum breaking strength ({strength:g} kN): a working load limit is a"
+            " fraction of it."
+        )
     if errors:
         raise ValidationError(errors)
     return ratings

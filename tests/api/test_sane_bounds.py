@@ -94,6 +94,27 @@ def test_an_absurd_equipment_rating_is_refused_naming_it(job, supervisor):
     assert (stored(), tether.ratings) == before
 
 
+
+def test_a_tether_s_working_load_limit_is_never_above_its_breaking_strength(job, supervisor):
+    """A working load limit is the breaking strength divided by a safety factor above one
+    (common practice, no source): a limit above the strength is a slip of the keyboard, and the
+    suspended-load check would be worked against it."""
+    tether = job.drops.get().tether
+    before = (stored(), dict(tether.ratings))
+    response = client_for(supervisor).patch(
+        reverse("equipment-detail", args=[tether.pk]),
+        {"ratings": {**tether.ratings, "mbs_kn": 10, "wll_kn": 50}},
+        format="json",
+    )
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {
+        "ratings.wll_kn": [
+            "Above the minimum breaking strength (10 kN): a working load limit is a fraction of it."
+        ]
+    }
+    tether.refresh_from_db()
+    assert (stored(), tether.ratings) == before
+
 def test_every_rating_has_a_sanity_maximum_the_stored_kit_keeps_under():
     from compliance.registers.ratings import EQUIPMENT_RATINGS
     from tests.factories import RATINGS
