@@ -497,6 +497,14 @@ def record_sheet(
         raise ValidationError({"version": "Sheets can only be filled against a published version."})
     if job.state == JobState.CLOSED:
         raise InvalidTransition("This job is closed; its sheets can no longer change.")
+    if job.date > timezone.localdate():
+        # A check made today says nothing of the rig on a later day.
+        raise ValidationError(
+            {
+                "job": f"This job is for {job.date.isoformat()}: its pre-start checks are made on"
+                " its day."
+            }
+        )
     subject_kind = _subject_for(job, version, anchor, equipment)
     drops = drops_of(job) if drops is None else drops
     if anchor is not None and not any(

@@ -6,6 +6,7 @@ from typing import Any
 
 from django.core.exceptions import ValidationError
 from django.db import transaction
+from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.verdicts import SheetOutcome
@@ -137,6 +138,10 @@ def start_job(*, job: Job, by: User) -> Job:
             return job
         if job.state == JobState.CLOSED:
             raise InvalidTransition("This job is closed.")
+        if job.date > timezone.localdate():
+            raise InvalidTransition(
+                f"This job is for {job.date.isoformat()}: it starts on its day."
+            )
         reasons = job_blockers(job)
         if reasons:
             raise JobBlocked(reasons)

@@ -84,7 +84,8 @@ def sign(b, kind="repair", anchor=None, **extra):
 
 
 def later_job(b, days):
-    """The contractor's job at the building `days` after today, with a drop of its own."""
+    """Another job of the contractor's at the building, `days` after today, with a drop of its
+    own."""
     job = JobFactory(
         site=b["site"],
         organisation=b["contractor"],
@@ -213,7 +214,7 @@ def test_a_job_planning_an_out_of_service_anchor_cannot_start(building, simple_c
     b = building
     sign(b, kind="removed_from_service", details="Corroded.")
     fill_all(b["job"], simple_checklists, b["operator"])
-    other, drop = later_job(b, days=1)
+    other, drop = later_job(b, days=0)
     drop.anchor = b["drop"].anchor
     drop.save()
     fill_all(other, simple_checklists, b["operator"])
@@ -404,19 +405,20 @@ def test_a_pre_use_check_of_an_anchor_the_job_does_not_hang_from_is_refused(
     assert not CheckSheet.objects.filter(anchor=elsewhere).exists()
 
 
-def test_a_pre_use_check_sent_for_a_later_days_job_is_logged_on_the_day_it_was_recorded(
+def test_a_pre_use_check_sent_for_a_later_days_job_writes_nothing_in_the_log_book(
     building, simple_checklists
 ):
     # The owner may not record work for a future date; a contractor's sheet for a job planned
-    # months ahead wrote a log-book entry dated then.
+    # months ahead wrote a log-book entry dated then. A later day's job now takes no sheet.
     b = building
     later, drop = later_job(b, days=20)
-    record_sheet(
-        job=later,
-        version=simple_checklists["anchor"],
-        by=b["operator"],
-        anchor=drop.anchor,
-        entries=PASSING["anchor"],
-    )
-    entry = AnchorLogEntry.objects.get(kind="pre_use_check")
-    assert entry.performed_on == TODAY()
+    with pytest.raises(ValidationError) as refused:
+        record_sheet(
+            job=later,
+            version=simple_checklists["anchor"],
+            by=b["operator"],
+            anchor=drop.anchor,
+            entries=PASSING["anchor"],
+        )
+    assert list(refused.value.message_dict) == ["job"]
+    assert not AnchorLogEntry.objects.filter(kind="pre_use_check").exists()

@@ -94,7 +94,6 @@ def test_an_absurd_equipment_rating_is_refused_naming_it(job, supervisor):
     assert (stored(), tether.ratings) == before
 
 
-
 def test_a_tether_s_working_load_limit_is_never_above_its_breaking_strength(job, supervisor):
     """A working load limit is the breaking strength divided by a safety factor above one
     (common practice, no source): a limit above the strength is a slip of the keyboard, and the
@@ -114,6 +113,7 @@ def test_a_tether_s_working_load_limit_is_never_above_its_breaking_strength(job,
     }
     tether.refresh_from_db()
     assert (stored(), tether.ratings) == before
+
 
 def test_every_rating_has_a_sanity_maximum_the_stored_kit_keeps_under():
     from compliance.registers.ratings import EQUIPMENT_RATINGS

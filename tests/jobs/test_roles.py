@@ -58,3 +58,43 @@ def test_the_crew_still_ends_the_day_it_worked(job, simple_checklists, operator)
 
     assert response.status_code == 200
     assert JobTransition.objects.filter(job=job).latest("id").reason == "Work finished for the day."
+
+
+def test_a_later_day_s_job_takes_no_pre_start_check_and_does_not_start(
+    job, simple_checklists, operator
+):
+    """A check made today says nothing of the rig tomorrow: a sheet sent for tomorrow's job
+    (the phone lists planned days) was applied and counted as done for that day."""
+    import datetime as dt
+    import uuid
+
+    from django.utils import timezone
+
+    from checklists.models import CheckSheet
+    from tests.conftest import PASSING
+
+    job.date = timezone.localdate() + dt.timedelta(days=1)
+    job.save()
+    record = {
+        "type": "sheet",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {
+            "job": job.pk,
+            "version": simple_checklists["site"].pk,
+            "entries": PASSING["site"],
+        },
+    }
+    client = client_for(operator)
+
+    synced = client.post(reverse("sync"), {"records": [record]}, format="json")
+    started = client.post(reverse("job-start", args=[job.pk]))
+
+    result = synced.json()["results"][0]
+    assert result["status"] == "rejected", result
+    words = f"This job is for {job.date.isoformat()}: its pre-start checks are made on its day."
+    assert result["errors"] == {"job": [words]}
+    assert not CheckSheet.objects.filter(job=job).exists()
+    assert started.status_code == 409
+    assert started.json()["detail"] == (
+        f"This job is for {job.date.isoformat()}: it starts on its day."
+    )
