@@ -7,6 +7,7 @@ import { requestSync } from "../sync";
 import { dataChanged } from "../status";
 import type { DailyRecord, JobDetail, Reason, Requirement, User } from "../types";
 import { deviceTime } from "../uuid";
+import { holdClearedBy, holdTitle, OWNER_CLEARS } from "../holds";
 import { BottomBar, CautionLine, errorLines, Header, plainReason } from "./common";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { canSign } from "../signoff";
@@ -75,10 +76,6 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   const rejected = outbox.filter((e) => e.status === "rejected");
   const waitingHere = outbox.filter((e) => e.status === "waiting");
   const signHere = canSign(user) && dayOver && !record;
-  const titleOf = (key: string | null | undefined) => {
-    const r = job.requirements.find((q) => q.key === key);
-    return r ? `${r.title}, ${r.subject}` : "";
-  };
 
 
   async function start() {
@@ -194,10 +191,16 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
           <ul class="plain">
             {openHolds.map((h) => (
               <li key={h.id} class="hold">
-                <p><strong>{titleOf(h.requirement)}</strong></p>
+                <p><strong>{holdTitle(job.requirements, h.requirement)}</strong></p>
                 <p data-testid="hold-reason">{plainReason(h.reason)}</p>
-                <p class="muted small">Since {timeOf(h.opened_at)}. A new passing check after the repair clears it.</p>
-                <a class="btn" href={href({ name: "sheet", id: job.id, requirement: h.requirement })}>Re-check</a>
+                {holdClearedBy(h.requirement) === "owner" ? (
+                  <p class="muted small" data-testid="hold-owner-clears">Since {timeOf(h.opened_at)}. {OWNER_CLEARS}</p>
+                ) : (
+                  <>
+                    <p class="muted small">Since {timeOf(h.opened_at)}. A new passing check after the repair clears it.</p>
+                    <a class="btn" href={href({ name: "sheet", id: job.id, requirement: h.requirement })}>Re-check</a>
+                  </>
+                )}
               </li>
             ))}
           </ul>

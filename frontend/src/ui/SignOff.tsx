@@ -10,6 +10,7 @@ import { cachePut, outboxAll } from "../storage";
 import { dataChanged } from "../status";
 import { pdfWords, watchPdf, type PdfState } from "../record_pdf";
 import { canSign, MEANINGS, sealShort, STATEMENT } from "../signoff";
+import { holdTitle } from "../holds";
 import type { DailyRecord, JobDetail, Meaning, User } from "../types";
 import { BottomBar, CautionLine, errorLines, Header, plainReason } from "./common";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
@@ -125,10 +126,6 @@ export function SignOff({ id, user }: { id: number; user: User }) {
   }
 
   const openHolds = job.holds.filter((h) => !h.cleared_at);
-  const titleOf = (key: string) => {
-    const r = job.requirements.find((q) => q.key === key);
-    return r ? `${r.title}, ${r.subject}` : key;
-  };
   const stateReady = job.state === "closed" || job.state === "held";
 
   let refusal = "";
@@ -203,7 +200,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
           <ul class="plain">
             {openHolds.map((h) => (
               <li key={h.id} class="hold">
-                <p><strong>{titleOf(h.requirement)}</strong></p>
+                <p><strong>{holdTitle(job.requirements, h.requirement)}</strong></p>
                 <p data-testid="hold-reason">{plainReason(h.reason)}</p>
                 <p class="muted small">Open since {dateTimeOf(h.opened_at)}.</p>
               </li>

@@ -1,0 +1,29 @@
+/** What a hold is called and who clears it, in the words the phone shows. */
+import { describe, expect, it } from "vitest";
+import { holdClearedBy, holdTitle } from "../src/holds";
+
+const requirements = [
+  { key: "anchor-pre-use@anchor:3", title: "Roof anchor pre-use check", subject: "anchor R3", anchor: 3 },
+  { key: "weather@site", title: "Weather at working height", subject: "site", anchor: null },
+];
+
+describe("holdTitle", () => {
+  it("names a check's hold by its checklist and subject", () => {
+    expect(holdTitle(requirements, "weather@site")).toBe("Weather at working height, site");
+  });
+
+  it("names an anchor taken out of service by the anchor, never by the internal key", () => {
+    expect(holdTitle(requirements, "anchor-status@anchor:3")).toBe("Anchor R3 out of service");
+    expect(holdTitle(requirements, "anchor-status@anchor:9")).toBe("An anchor out of service");
+  });
+});
+
+describe("holdClearedBy", () => {
+  it("sends the crew to re-check a failed check", () => {
+    expect(holdClearedBy("weather@site")).toBe("recheck");
+  });
+
+  it("leaves an anchor out of service to the building's owner", () => {
+    expect(holdClearedBy("anchor-status@anchor:3")).toBe("owner");
+  });
+});
