@@ -145,8 +145,11 @@ class Anchor(models.Model):
             raise ValidationError(errors)
 
     def current_certification(self) -> "AnchorCertification | None":
-        """The newest certification; uses the prefetched list when there is one."""
-        certs = list(self.certifications.all())
+        """The newest certification whose day has come; uses the prefetched list when there is
+        one. (A certification cannot be dated after the day it is recorded; one recorded so
+        before that was checked must not hide the one in force.)"""
+        today = timezone.localdate()
+        certs = [c for c in self.certifications.all() if c.certified_on <= today]
         return max(certs, key=lambda c: (c.certified_on, c.pk)) if certs else None
 
 
@@ -183,6 +186,12 @@ class AnchorCertification(AppendOnlyModel):
             f"Anchor {self.anchor.label} certified {self.certified_on:%Y-%m-%d}, "
             f"valid until {self.valid_until:%Y-%m-%d}"
         )
+
+    def clean(self) -> None:
+        if self.certified_on is not None and self.certified_on > timezone.localdate():
+            raise ValidationError(
+                {"certified_on": "A certification is recorded on or after the day it was made."}
+            )
 
     def is_valid_on(self, day: dt.date) -> bool:
         return self.certified_on <= day <= self.valid_until

@@ -10,7 +10,7 @@ from django.utils import timezone
 
 from compliance.models import Anchor, AnchorCertification, Drop, Equipment, RegisterChange, Site
 from tests.conftest import client_for
-from tests.factories import SiteFactory
+from tests.factories import SiteFactory, drop_body
 
 pytestmark = pytest.mark.django_db
 
@@ -28,25 +28,12 @@ def stored():
     )
 
 
-def drop_body(job, **change):
-    drop = job.drops.get()
-    return {
-        "label": "D2",
-        "robot": drop.robot_id,
-        "anchor": drop.anchor_id,
-        "safety_anchor": drop.safety_anchor_id,
-        "tether": drop.tether_id,
-        "safety_line": drop.safety_line_id,
-        "hose": drop.hose_id,
-        "length_m": 80.0,
-        **change,
-    }
-
-
 def add_drop(job, supervisor, **change):
     # The drop of the job fixture has its kit booked; a second drop on the same job shares it.
     return client_for(supervisor).post(
-        reverse("job-drops", args=[job.pk]), drop_body(job, **change), format="json"
+        reverse("job-drops", args=[job.pk]),
+        drop_body(job.drops.get(), label="D2", **change),
+        format="json",
     )
 
 
@@ -304,3 +291,45 @@ def test_a_site_at_the_bounds_is_registered(job, supervisor):
         reverse("site-list"), site_body(name="S3", height_m=3.5, storeys=None), format="json"
     )
     assert response.status_code == 201, response.content[:300]
+
+
+def test_a_certification_dated_after_today_is_refused(job, supervisor):
+    """A certificate records an inspection that happened: one dated next June was recorded,
+    became the anchor's current certificate and hid the one in force (its expiry then read
+    as the anchor's)."""
+    anchor = job.drops.get().anchor
+    body = {**certification(25), "certified_on": "2027-06-01", "valid_until": "2028-06-01"}
+    before = stored()
+
+    response = client_for(supervisor).post(
+        reverse("anchor-certifications", args=[anchor.pk]), body, format="json"
+    )
+
+    assert response.status_code == 400, response.content[:300]
+    assert response.json() == {
+        "certified_on": ["A certification is recorded on or after the day it was made."]
+    }
+    assert stored() == before
+
+
+def test_a_certification_dated_after_today_never_hides_the_one_in_force(job):
+    """Rows made before the date was checked: the current certificate is the newest one whose
+    day has come."""
+    anchor = job.drops.get().anchor
+    in_force = anchor.current_certification()
+    assert in_force is not None
+    later = timezone.localdate() + dt.timedelta(days=200)
+    AnchorCertification.objects.bulk_create(
+        [
+            AnchorCertification(
+                anchor=anchor,
+                certifier="typo",
+                rated_capacity_kn=25,
+                certified_on=later,
+                valid_until=later + dt.timedelta(days=365),
+            )
+        ]
+    )
+    anchor = Anchor.objects.get(pk=anchor.pk)
+
+    assert anchor.current_certification() == in_force
