@@ -443,7 +443,8 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
         const value = parseDecimal(text);
         if (value === null) {
           const tooLarge = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(text.trim().replace(",", "."));
-          const message = !text.trim() ? "" : tooLarge ? "Too large a number." : "Not a number.";
+          const notANumber = item.unit ? `Not a number: type the figure alone, in ${item.unit}.` : "Not a number.";
+          const message = !text.trim() ? "" : tooLarge ? "Too large a number." : notANumber;
           views.push({ ...base, verdict: "missing", message });
           break;
         }

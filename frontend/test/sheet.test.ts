@@ -78,6 +78,16 @@ describe("anchor sheet", () => {
     expect(stillNeeded(views)).toEqual([]);
   });
 
+  it("says which unit to type a reading in when its unit was typed with it", () => {
+    // Typed from a tag in pounds-force, "5000 lbf" is no number; the words say the field takes
+    // the figure alone, in kN, so the operator converts rather than drops the unit.
+    const draft = emptyDraft();
+    draft.readings = { tag_capacity: "5000 lbf" };
+    const capacity = evaluateDraft(items, draft, context).find((v) => v.item.key === "tag_capacity")!;
+    expect(capacity.verdict).toBe("missing");
+    expect(capacity.message).toBe("Not a number: type the figure alone, in kN.");
+  });
+
   it("lists what still needs an answer and builds entries in the server's format", () => {
     const draft = emptyDraft();
     draft.ticks = { tag_matches_register: "pass" };

@@ -108,7 +108,7 @@ def test_the_demo_job_filled_end_to_end_at_a_persons_pace_is_cleared(live_server
         ("62,5", "recorded", ""),
         ("-5", "recorded", "cannot be negative"),
         ("1e400", "missing", "Too large a number."),
-        ("62 kPa", "missing", "Not a number."),
+        ("62 kPa", "missing", "Not a number: type the figure alone, in kPa."),
     ],
     ids=["comma-decimal", "negative", "beyond-a-float", "with-its-unit"],
 )
