@@ -281,6 +281,7 @@ class PlanCheckInput(StrictInput, serializers.Serializer):
     hose = IdField(queryset=Equipment.objects.none(), required=False)
     anchor = IdField(queryset=Anchor.objects.none(), required=False)
     safety_anchor = IdField(queryset=Anchor.objects.none(), required=False)
+    length_m = FiniteFloatField(required=False)
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

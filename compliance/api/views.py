@@ -464,7 +464,9 @@ class JobViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelViewS
         job = self.get_object()
         data = s.PlanCheckInput(data=request.data, context=self.get_serializer_context())
         data.is_valid(raise_exception=True)
-        conflicts = plan_conflicts(job=job, chosen=dict(data.validated_data))
+        chosen = dict(data.validated_data)
+        length_m = chosen.pop("length_m", None)
+        conflicts = plan_conflicts(job=job, chosen=chosen, length_m=length_m)
         return Response({"conflicts": [c.as_dict() for c in conflicts]})
 
     @extend_schema(request=SignInput, responses={201: RecordSerializer})

@@ -320,17 +320,39 @@ EQUIPMENT_FIELDS = ("robot", "tether", "safety_line", "hose")
 ANCHOR_FIELDS = ("anchor", "safety_anchor")
 
 
+LINE_FIELDS = ("tether", "safety_line", "hose")
+"""What hangs the length of the drop: each is at least as long as the drop."""
+
+
 def plan_conflicts(
-    *, job: Job, chosen: dict[str, Anchor | Equipment], exclude_drop: int | None = None
+    *,
+    job: Job,
+    chosen: dict[str, Anchor | Equipment],
+    exclude_drop: int | None = None,
+    length_m: float | None = None,
 ) -> list[Conflict]:
-    """What stands against planning these anchors and this equipment on the job's day.
+    """What stands against planning these anchors and this equipment (and a drop this long)
+    on the job's day.
 
     Equipment or an anchor already on another open job that day refuses (one robot, one
     anchor, one place), whoever's job it is: the other contractor is not named. Within one job
-    drops are worked one after another, so reusing a robot or an anchor there is fine.
+    drops are worked one after another, so reusing a robot or an anchor there is fine. One
+    anchor for both lines refuses, as does a drop taller than the building or longer than its
+    tether or safety line; a hose shorter than the drop is a caution (it may be joined).
     """
     conflicts: list[Conflict] = []
     day = job.date
+    height = job.site.height_m
+    if length_m is not None and length_m > height:
+        conflicts.append(
+            Conflict(
+                "length_m",
+                "drop_taller_than_building",
+                f"At most the site's height, {height:g} m: a drop cannot be longer than the"
+                " building is tall.",
+                True,
+            )
+        )
     others = Drop.objects.filter(job__date=day, job__state__in=OPEN_STATES).exclude(job=job)
     if exclude_drop is not None:
         others = others.exclude(pk=exclude_drop)
@@ -348,6 +370,21 @@ def plan_conflicts(
     )
     for field, item in equipment.items():
         what = f"{item.kind.replace('_', ' ').capitalize()} {item.label}"
+        long = (item.ratings or {}).get("length_m") if field in LINE_FIELDS else None
+        if (
+            length_m is not None
+            and length_m <= height  # a drop taller than the building is refused as that alone
+            and isinstance(long, int | float)
+            and long < length_m
+        ):
+            conflicts.append(
+                Conflict(
+                    field,
+                    "line_shorter_than_drop",
+                    f"{what} is {long:g} m long, shorter than the {length_m:g} m drop.",
+                    field != "hose",
+                )
+            )
         if item.pk in busy:
             conflicts.append(
                 Conflict(field, "equipment_booked", f"{what} is on another job on {day}.", True)
@@ -366,6 +403,16 @@ def plan_conflicts(
                     False,
                 )
             )
+    same = chosen.get("anchor")
+    if same is not None and same == chosen.get("safety_anchor"):
+        conflicts.append(
+            Conflict(
+                "safety_anchor",
+                "anchors_not_independent",
+                "The safety line needs an anchor independent of the tether's.",
+                True,
+            )
+        )
     if anchors:
         loaded = {
             a.pk: a

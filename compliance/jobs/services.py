@@ -105,7 +105,7 @@ def add_drop(
         pair = [anchor.pk, safety_anchor.pk]
         list(Anchor.objects.select_for_update().filter(pk__in=pair).order_by("pk"))
         refusals: dict[str, list[str]] = {}
-        for conflict in plan_conflicts(job=job, chosen=chosen):
+        for conflict in plan_conflicts(job=job, chosen=chosen, length_m=length_m):
             if conflict.refuses:
                 refusals.setdefault(conflict.field, []).append(conflict.message)
         if refusals:

@@ -1390,6 +1390,8 @@ export interface components {
             hose?: number;
             anchor?: number;
             safety_anchor?: number;
+            /** Format: double */
+            length_m?: number;
         };
         Profile: {
             key: string;

@@ -223,7 +223,7 @@ def test_supervisor_plans_tomorrow_with_two_drops(live_server, demo, page):
 
     # Drop 1: kit from the lists, the anchor pair on the plan.
     page.type("#f-label", "West 1", delay=TYPE_MS)
-    page.type("#f-length", "120,5", delay=TYPE_MS)
+    page.type("#f-length", "112,5", delay=TYPE_MS)
     choose_kit(page, "RB-1", "T-1", "S-1", "H-1")
     page.click("[data-testid=plan-anchor-R5]")
     page.click("[data-testid=plan-anchor-R6]")
@@ -240,13 +240,13 @@ def test_supervisor_plans_tomorrow_with_two_drops(live_server, demo, page):
     page.click("[data-testid=add-drop-submit]")
     page.wait_for_selector("[data-testid='drop-West 1']")
     assert page.inner_text("[data-testid=drop-added]") == "Drop West 1 added."
-    assert drop_rows(job) == [("West 1", 120.5, "RB-1", "R5", "R6", "T-1", "S-1", "H-1")]
+    assert drop_rows(job) == [("West 1", 112.5, "RB-1", "R5", "R6", "T-1", "S-1", "H-1")]
 
     # Drop 2: the form was cleared; this time the pair comes from the keyboard's list.
     assert page.input_value("#f-robot") == ""
     assert page.get_attribute("[data-testid=plan-anchor-R5]", "data-slot") == ""
     page.type("#f-label", "East 1", delay=TYPE_MS)
-    page.type("#f-length", "146", delay=TYPE_MS)
+    page.type("#f-length", "96", delay=TYPE_MS)
     choose_kit(page, "RB-2", "T-2", "S-2", "H-2")
     page.select_option("#f-anchor", str(Anchor.objects.get(label="R1").pk))
     page.select_option("#f-safety_anchor", str(Anchor.objects.get(label="R2").pk))
@@ -258,8 +258,8 @@ def test_supervisor_plans_tomorrow_with_two_drops(live_server, demo, page):
     page.click("[data-testid=add-drop-submit]")
     page.wait_for_selector("[data-testid='drop-East 1']")
     assert drop_rows(job) == [
-        ("West 1", 120.5, "RB-1", "R5", "R6", "T-1", "S-1", "H-1"),
-        ("East 1", 146.0, "RB-2", "R1", "R2", "T-2", "S-2", "H-2"),
+        ("West 1", 112.5, "RB-1", "R5", "R6", "T-1", "S-1", "H-1"),
+        ("East 1", 96.0, "RB-2", "R1", "R2", "T-2", "S-2", "H-2"),
     ]
     assert page.locator("[data-testid=drops] tbody tr").count() == 2
     axe_clean(page, "planning drops, two added")
@@ -287,7 +287,7 @@ def test_robot_booked_today_is_refused_beside_its_field(live_server, demo, page)
     assert new.state == "planned"
 
     page.type("#f-label", "South 1", delay=TYPE_MS)
-    page.type("#f-length", "140", delay=TYPE_MS)
+    page.type("#f-length", "100", delay=TYPE_MS)
     # RB-1 is on today's demo job: the plan check refuses it, in words with the stop sign.
     choose_kit(page, "RB-1", "T-7", "S-7", "H-7")
     page.click("[data-testid=plan-anchor-R5]")
@@ -320,7 +320,7 @@ def test_robot_booked_today_is_refused_beside_its_field(live_server, demo, page)
     assert page.locator("[data-testid=error-robot]").count() == 0
     page.click("[data-testid=add-drop-submit]")
     page.wait_for_selector("[data-testid='drop-South 1']")
-    assert drop_rows(new) == [("South 1", 140.0, "RB-7", "R5", "R6", "T-7", "S-7", "H-7")]
+    assert drop_rows(new) == [("South 1", 100.0, "RB-7", "R5", "R6", "T-7", "S-7", "H-7")]
 
 
 def robot_ratings() -> dict:

@@ -210,3 +210,67 @@ def test_the_plan_check_of_another_organisation_s_job_is_not_found(job):
         reverse("job-plan-check", args=[job.pk]), {}, format="json"
     )
     assert response.status_code == 404
+
+
+def test_the_plan_check_refuses_what_adding_the_drop_would_refuse(job, tomorrow_job):
+    """The desk's live check said '0 refused' for one anchor holding both lines and for a drop
+    taller than the building; adding the drop was then refused (or, for a line shorter than the
+    drop, accepted). The check now answers what the server decides."""
+    rig = rig_of(job.drops.get())
+    register_services.update_equipment(
+        item=rig["safety_line"],
+        by=job.supervisor,
+        ratings={**rig["safety_line"].ratings, "length_m": 100.0},
+    )
+    rig["safety_line"].refresh_from_db()
+    body = {**ids(rig), "safety_anchor": rig["anchor"].pk, "length_m": 110.0}
+
+    response = client_for(job.supervisor).post(
+        reverse("job-plan-check", args=[tomorrow_job.pk]), body, format="json"
+    )
+
+    assert response.status_code == 200
+    line = rig["safety_line"].label
+    assert response.json() == {
+        "conflicts": [
+            {
+                "field": "safety_line",
+                "code": "line_shorter_than_drop",
+                "message": f"Safety line {line} is 100 m long, shorter than the 110 m drop.",
+                "refuses": True,
+            },
+            {
+                "field": "safety_anchor",
+                "code": "anchors_not_independent",
+                "message": "The safety line needs an anchor independent of the tether's.",
+                "refuses": True,
+            },
+        ]
+    }
+    taller = client_for(job.supervisor).post(
+        reverse("job-plan-check", args=[tomorrow_job.pk]),
+        {"anchor": rig["anchor"].pk, "length_m": 121.0},
+        format="json",
+    )
+    assert taller.json() == {
+        "conflicts": [
+            {
+                "field": "length_m",
+                "code": "drop_taller_than_building",
+                "message": "At most the site's height, 120 m: a drop cannot be longer than the"
+                " building is tall.",
+                "refuses": True,
+            }
+        ]
+    }
+    with pytest.raises(ValidationError) as refused:
+        services.add_drop(
+            job=tomorrow_job,
+            by=job.supervisor,
+            label="D1",
+            length_m=110.0,
+            **{**rig, "safety_anchor": job.drops.get().safety_anchor},
+        )
+    assert refused.value.message_dict == {
+        "safety_line": [f"Safety line {line} is 100 m long, shorter than the 110 m drop."]
+    }

@@ -152,6 +152,9 @@ function Planner({ jobId }: { jobId: number }) {
   useEffect(() => {
     const chosen: PlanChoice = {};
     for (const [field, id] of Object.entries(choice)) if (id !== null) chosen[field as Field] = id;
+    // The length is checked with the lines and the building's height once it reads as a number.
+    const metres = Number(length.trim().replace(",", "."));
+    if (length.trim() && Number.isFinite(metres)) chosen.length_m = metres;
     const n = ++checkSeq.current;
     if (!Object.keys(chosen).length) {
       setConflicts([]);
@@ -167,7 +170,7 @@ function Planner({ jobId }: { jobId: number }) {
       },
       () => n === checkSeq.current && setChecking("failed"),
     );
-  }, [choice, jobId]);
+  }, [choice, length, jobId]);
 
   // A new choice stands on its own: the server's earlier answer about that field no longer applies.
   function choose(field: Field, value: number | null) {
