@@ -199,11 +199,23 @@ def check_signature(report: Report, data: bytes, roots: tuple[str, ...] = ()) ->
         reader = PdfFileReader(io.BytesIO(data), strict=False)
         signatures = reader.embedded_signatures
     except Exception as exc:
-        report.add("pdf_readable", False, f"The file is not a readable PDF ({type(exc).__name__}).")
+        report.add(
+            "pdf_readable",
+            False,
+            f"The file is not a readable PDF ({type(exc).__name__}): what can be checked is a"
+            " record or log-book PDF, or an export ZIP.",
+        )
         return False, False
     report.add("pdf_readable", True, "The file is a readable PDF.")
     if len(signatures) != 1:
-        report.add("signature_present", False, f"Expected one signature, found {len(signatures)}.")
+        report.add(
+            "signature_present",
+            False,
+            "The PDF carries no signature: it is not a signed record."
+            if not signatures
+            else f"The PDF carries {len(signatures)} signatures; a record carries exactly one,"
+            " its signer's.",
+        )
         return False, False
     context = ValidationContext(trust_roots=_certs(list(roots)), allow_fetching=False)
     try:

@@ -60,7 +60,7 @@ function App() {
 
   async function signOut() {
     const waiting = (await outboxWaiting()).length;
-    if (waiting && !confirm(`${waiting} records are not sent yet. They stay on this phone and go after the next sign-in. Sign out?`)) return;
+    if (waiting && !confirm(`${waiting === 1 ? "1 record is" : `${waiting} records are`} not sent yet. They stay on this phone and go after the next sign-in. Sign out?`)) return;
     leaving.current = true;
     try {
       try {

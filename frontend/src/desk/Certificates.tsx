@@ -147,7 +147,7 @@ export function DeskCertificates({ siteId }: { siteId?: number }) {
                   </div>
                   {current ? (
                     <dl class="desk-cert" data-testid="cert-current">
-                      <dt>In force</dt>
+                      <dt>{current.valid_until < today ? "Last certificate (lapsed)" : "In force"}</dt>
                       <dd>{current.rated_capacity_kn} kN, {current.certified_on} to {current.valid_until}</dd>
                       <dt>Certified by</dt>
                       <dd>{current.certifier}{current.certifier_company ? `, ${current.certifier_company}` : ""}</dd>

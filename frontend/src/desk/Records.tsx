@@ -5,7 +5,7 @@
  */
 import { useEffect, useState } from "preact/hooks";
 import type { DailyRecord, Site } from "../types";
-import { timeOf } from "../ui/hooks";
+import { dateTimeOf } from "../ui/hooks";
 import { Badge } from "../ui/signs";
 import { dayFrom as todayFrom } from "./api";
 import { DeskCaution } from "./parts";
@@ -165,7 +165,7 @@ function RecordMonth({ siteId, month, user }: { siteId: number; month: string; u
                     {state.sign ? <Badge kind={state.sign} word={state.word} testid="day-state" /> : <span data-testid="day-state">{state.word}</span>}
                     {day.records.map((r) => (
                       <span key={r.id} data-testid="day-record">
-                        by {r.signer_name} at {timeOf(r.signed_at)}, record {r.sequence}
+                        by {r.signer_name} on {dateTimeOf(r.signed_at)}, record {r.sequence}
                       </span>
                     ))}
                     {day.addenda.length > 0 && (

@@ -8,7 +8,7 @@ import { dataChanged } from "../status";
 import type { DailyRecord, JobDetail, Reason, Requirement, User } from "../types";
 import { deviceTime } from "../uuid";
 import { holdClearedBy, holdTitle, OWNER_CLEARS } from "../holds";
-import { BottomBar, CautionLine, errorLines, Header, plainReason } from "./common";
+import { BottomBar, CautionLine, errorLines, Header, loadWords, plainReason } from "./common";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { canSign } from "../signoff";
 import { Badge, StateBadge, type SignKind } from "./signs";
@@ -46,7 +46,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         setJob(loaded.value);
         setKept(loaded.fromCache ? loaded.savedAt : "");
       } catch (e) {
-        setError(e instanceof OfflineError ? "This job is not kept on this phone yet; connect once to fetch it." : String(e));
+        setError(loadWords(e));
       }
     })();
   }, [id]);

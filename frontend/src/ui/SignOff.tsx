@@ -12,7 +12,7 @@ import { pdfWords, watchPdf, type PdfState } from "../record_pdf";
 import { canSign, MEANINGS, sealShort, STATEMENT } from "../signoff";
 import { holdTitle } from "../holds";
 import type { DailyRecord, JobDetail, Meaning, User } from "../types";
-import { BottomBar, CautionLine, errorLines, Header, plainReason } from "./common";
+import { BottomBar, CautionLine, errorLines, Header, loadWords, plainReason } from "./common";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { Badge, StateBadge } from "./signs";
 
@@ -103,7 +103,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
           setRecordKept("unknown");
         }
       } catch (e) {
-        setLoadError(e instanceof OfflineError ? "This job is not kept on this phone yet; connect once to fetch it." : String(e));
+        setLoadError(loadWords(e));
       }
     })();
   }, [id]);

@@ -1,5 +1,6 @@
 import type { ComponentChildren } from "preact";
 import { useEffect, useState } from "preact/hooks";
+import { ApiError, OfflineError } from "../api";
 import { cacheGet } from "../storage";
 import type { User } from "../types";
 import { href, timeOf, useStatus } from "./hooks";
@@ -106,4 +107,13 @@ export function plainReason(reason: string): string {
   const m = /^(.*): Marked failed: (.*?)\.?$/.exec(reason);
   if (m && m[1] === m[2]) return `${m[1]}: marked failed on the check.`;
   return reason;
+}
+
+/** Why a job could not be shown, in words: never an error's class name or the server's
+ * generic lookup text. */
+export function loadWords(e: unknown): string {
+  if (e instanceof OfflineError) return "This job is not kept on this phone yet; connect once to fetch it.";
+  if (e instanceof ApiError && e.status === 404) return "There is no such job for you: it may belong to another organisation, or the link is wrong.";
+  if (e instanceof ApiError) return e.message;
+  return e instanceof Error ? e.message : String(e);
 }
