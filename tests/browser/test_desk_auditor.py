@@ -161,7 +161,10 @@ def test_auditor_walks_a_month_checks_a_signed_day_and_exports_it(live_server, d
     row = page.locator(f"[data-testid=day-{day(-1)}]")
     assert row.get_attribute("data-state") == "signed"
     assert row.locator("[data-testid=day-state]").inner_text() == "Signed"
-    assert "by Rhea Okafor at" in row.inner_text()
+    # When it was signed, with its date: a time alone read as signed on the day of the row.
+    signed_on = row.locator("[data-testid=day-record]").first.inner_text()
+    assert signed_on.startswith("by Rhea Okafor on "), signed_on
+    assert record.signed_at.strftime("%b") in signed_on and str(record.signed_at.year) in signed_on
     assert f"record {record.sequence}" in row.inner_text()
     assert row.locator("[data-testid=day-addenda]").inner_text() == "1 addendum"
     assert row.locator("[data-testid=day-sheets]").inner_text() == sheets_words(yesterday)

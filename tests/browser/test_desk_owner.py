@@ -216,6 +216,9 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
     page.click("nav.desk-nav a:has-text('Anchors and certificates')")
     page.wait_for_selector("[data-testid=desk-anchors] [data-testid=cert-form]")
     r8 = site.anchors.get(label="R8")
+    # The lapsed certificate is the last one, not the one in force.
+    lapsed = page.inner_text("[data-testid=certs-R8] [data-testid=cert-current]")
+    assert "Last certificate (lapsed)" in lapsed and "In force" not in lapsed
     page.select_option("#cert-anchor", str(r8.pk))
     page.type("#cert-certifier", "Noor Haddad", delay=TYPE_MS)
     page.type("#cert-company", "Roofline Testing (test)", delay=TYPE_MS)
