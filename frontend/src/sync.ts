@@ -173,12 +173,17 @@ async function runOnce(): Promise<void> {
     failures = 0;
     setStatus({ lastError: null, signedOut: false });
     // The server is the authority: show its state for every job the records touched.
-    const jobs = (await loadJobs(today()).catch(() => null))?.value ?? [];
+    const listed = await loadJobs(today()).catch(() => null);
+    const jobs = listed?.value ?? [];
     for (const id of new Set([...touched, ...jobs.map((j) => j.id)])) {
       await loadJob(id).catch(() => undefined);
     }
     await keepForOffline().catch(() => undefined);
-    await metaPut("lastSync", serverTime ?? new Date().toISOString());
+    // "Last sync" is the last time the server answered: a batch it took, or today's jobs read
+    // from it (not from this phone's copy). Nothing sent and nothing read (signed out, say) is
+    // no sync.
+    const answered = serverTime ?? (listed && !listed.fromCache ? new Date().toISOString() : null);
+    if (answered) await metaPut("lastSync", answered);
     await prune();
   } catch (error) {
     if (error instanceof ApiError && error.endsSession) {

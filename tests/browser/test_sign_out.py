@@ -48,3 +48,16 @@ def test_a_request_answered_after_signing_out_does_not_turn_it_into_a_lapsed_ses
     page.click("button[type=submit]")
     page.wait_for_selector("[data-testid=jobs] a")
     assert page.query_selector("[data-testid=session-ended]") is None
+
+
+def test_before_anyone_signs_in_the_strip_claims_no_sync(live_server, demo, page):
+    """A fresh phone at the sign-in screen has sent nothing and read nothing from the server:
+    the strip showed 'Last sync' with the time of an attempt the server refused."""
+    page.goto(live_server.url + "/")
+    page.wait_for_selector("input[name=username]")
+    page.wait_for_selector("[data-testid=strip][data-syncing=no]")
+    page.wait_for_timeout(1500)  # the first attempts have run and been refused
+    assert page.inner_text("[data-testid=strip-last-sync]") == "Last sync never"
+    assert page.get_attribute("[data-testid=strip]", "data-synced") == "no"
+    sign_in_as(page, live_server.url, "tomas")
+    assert page.inner_text("[data-testid=strip-last-sync]") != "Last sync never"
