@@ -96,7 +96,7 @@ function App() {
   else if (route.name === "desk") return <DeskLoader user={user} route={route} />;
   else if (route.name === "job") screen = <JobScreen id={route.id} user={user} />;
   else if (route.name === "sign") screen = <SignOff id={route.id} user={user} />;
-  else if (route.name === "sheet") screen = <SheetScreen key={`${route.id}:${route.requirement}`} id={route.id} requirement={route.requirement} />;
+  else if (route.name === "sheet") screen = <SheetScreen key={`${route.id}:${route.requirement}`} id={route.id} requirement={route.requirement} user={user} />;
   else if (route.name === "cautions") screen = <Cautions id={route.id} />;
   else if (route.name === "outbox") screen = <Outbox />;
   else screen = <Jobs user={user} onSignOut={signOut} />;

@@ -20,6 +20,13 @@ export function canSign(user: User | null | undefined): boolean {
   return user?.role === "supervisor" || user?.role === "admin";
 }
 
+/** An auditor reads; everyone else on the phone records. */
+export function canRecord(user: User | null | undefined): boolean {
+  return !!user && user.role !== "auditor";
+}
+
+export const READ_ONLY_WORDS = "Read only: an auditor sees the job and its checks; the crew records them.";
+
 /** "3f2a9c0177be04d1…" → "3f2a 9c01 77be 04d1": the first 16 hex characters, in fours. */
 export function sealShort(seal: string): string {
   return (seal.slice(0, 16).match(/.{1,4}/g) ?? []).join(" ");

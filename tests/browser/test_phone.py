@@ -332,3 +332,20 @@ def test_after_a_reload_without_signal_the_strip_counts_what_waits_though_it_pai
     page.wait_for_selector(f"{req_selector(anchor)}:has-text('waiting to send')")
     wait_waiting(page, 1)
     assert "Last sync never" not in page.inner_text("[data-testid=strip]")
+
+
+def test_an_auditor_on_the_phone_reads_and_is_offered_nothing_to_record(live_server, demo, page):
+    """An auditor is read-only: the phone offered 'Start work', 'Close work' and 'Save check',
+    and a sheet an auditor saved waited to be sent for ever, refused at every try."""
+    from tests.browser.conftest import sign_in_as
+
+    sign_in_as(page, live_server.url, "ivy")
+    page.goto(live_server.url + f"/#/job/{demo.id}")
+    page.wait_for_selector(".state-card [data-state]")
+    assert page.inner_text("[data-testid=read-only]").startswith("Read only: an auditor")
+    for action in ("start", "pause", "close"):
+        assert page.locator(f"[data-testid={action}]").count() == 0, action
+    page.goto(live_server.url + f"/#/job/{demo.id}/sheet/{anchor_r1_key(demo)}")
+    page.wait_for_selector("[data-testid=items]")
+    assert page.locator("[data-testid=save]").count() == 0
+    assert page.inner_text("[data-testid=read-only]").startswith("Read only: an auditor")

@@ -10,7 +10,7 @@ import { deviceTime } from "../uuid";
 import { holdClearedBy, holdTitle, OWNER_CLEARS } from "../holds";
 import { BottomBar, CautionLine, errorLines, Header, loadWords, plainReason } from "./common";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
-import { canSign } from "../signoff";
+import { canRecord, canSign, READ_ONLY_WORDS } from "../signoff";
 import { Badge, StateBadge, type SignKind } from "./signs";
 
 function requirementStatus(req: Requirement, mine: OutboxEntry | undefined): { kind: SignKind; word: string } {
@@ -285,16 +285,17 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         {signHere && job.state === "closed" && (
           <a class="btn btn-primary" href={href({ name: "sign", id: job.id })} data-testid="sign-action-bar">Sign the day's record</a>
         )}
-        {job.state !== "working" && job.state !== "closed" && (
+        {!canRecord(user) && <span class="bar-note" data-testid="read-only">{READ_ONLY_WORDS}</span>}
+        {canRecord(user) && job.state !== "working" && job.state !== "closed" && (
           <button class="btn btn-primary" type="button" onClick={start} disabled={busy || !status.online}
             data-testid="start" title={status.online ? "" : "Needs a connection"}>
             {status.online ? "Start work" : "Start (needs signal)"}
           </button>
         )}
-        {job.state === "working" && (
+        {canRecord(user) && job.state === "working" && (
           <button class="btn" type="button" onClick={pause} data-testid="pause">Pause work</button>
         )}
-        {job.state !== "closed" && (
+        {canRecord(user) && job.state !== "closed" && (
           <button class="btn" type="button" onClick={() => setClosing(true)} data-testid="close">Close work</button>
         )}
       </BottomBar>

@@ -18,7 +18,8 @@ import {
 } from "../sheet";
 import { quantityLines } from "../quantities";
 import { draftDelete, draftGet, draftKey, draftPut, type PhotoEntry } from "../storage";
-import type { ChecklistVersion, Draft, JobDetail, Reference, TickValue } from "../types";
+import { canRecord, READ_ONLY_WORDS } from "../signoff";
+import type { ChecklistVersion, Draft, JobDetail, Reference, TickValue, User } from "../types";
 import { deviceTime, newUuid } from "../uuid";
 import { BottomBar, CautionLine, Header } from "./common";
 import { go, href, timeOf } from "./hooks";
@@ -34,7 +35,7 @@ function PhotoThumb({ blob }: { blob: Blob }) {
   return <img src={url} alt="Photo taken for this item" class="thumb" />;
 }
 
-export function SheetScreen({ id, requirement }: { id: number; requirement: string }) {
+export function SheetScreen({ id, requirement, user }: { id: number; requirement: string; user: User }) {
   const [job, setJob] = useState<JobDetail | null>(null);
   const [versions, setVersions] = useState<ChecklistVersion[] | null>(null);
   const [reference, setReference] = useState<Reference | null>(null);
@@ -437,7 +438,11 @@ export function SheetScreen({ id, requirement }: { id: number; requirement: stri
         <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
           {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
         </span>
-        <button type="button" class="btn btn-primary" onClick={save} data-testid="save">Save check</button>
+        {canRecord(user) ? (
+          <button type="button" class="btn btn-primary" onClick={save} data-testid="save">Save check</button>
+        ) : (
+          <span class="bar-note" data-testid="read-only">{READ_ONLY_WORDS}</span>
+        )}
       </BottomBar>
     </main>
   );
