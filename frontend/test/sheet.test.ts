@@ -60,7 +60,11 @@ describe("anchor sheet", () => {
 
   it("describes a profile limit with its number when known, else by its source", () => {
     const capacity = items.find((i) => i.key === "tag_capacity")!;
-    expect(describeLimits(capacity, context)).toEqual(["Limit: at least 12 kN (from the site's profile)"]);
+    expect(describeLimits(capacity, context)).toEqual([
+      "Limit: at least 12 kN (from the site's profile)",
+      // A tag read in lbf, kgf or daN and typed as kN is caught by this bound.
+      "Limit: at most 1000 kN (from a fixed value)",
+    ]);
     expect(describeLimits(capacity, {})[0]).toMatch(/at least the value in the site's profile/);
   });
 

@@ -193,3 +193,24 @@ def test_a_calc_far_from_its_limit_and_a_failing_one_have_no_caution():
         result = _one(items, entries, context)["forecast_at_height"]
         assert result.verdict == verdict
         assert "caution_below" not in result.working
+
+
+@pytest.mark.parametrize(
+    ("typed", "unit"),
+    [(5620, "lbf"), (2549, "kgf"), (2500, "daN")],
+)
+def test_an_anchor_tag_read_in_another_unit_fails_rather_than_passing(typed, unit):
+    """A 25 kN anchor's tag in pounds-force, kilograms-force or decanewtons, typed as kN, passed
+    with a margin in the hundreds of percent. 25 kN = 5620 lbf = 2549 kgf = 2500 daN (SI
+    brochure conversion factors: 1 lbf = 4.448 N, 1 kgf = 9.807 N, 1 daN = 10 N)."""
+    items = _items("anchor-pre-use")
+    entries = {
+        i["key"]: {"value": "pass"} if i["kind"] == "tick" else {"value": typed, "unit": "kN"}
+        for i in items
+        if i["kind"] in ("tick", "reading")
+    }
+
+    capacity = _one(items, entries)["tag_capacity"]
+
+    assert capacity.verdict == "fail", unit
+    assert capacity.message == f"{typed:g} kN is above the maximum of 1000 kN."
