@@ -458,3 +458,16 @@ def test_property_manager_reaches_the_desk_but_plans_no_day(live_server, demo, p
     page.wait_for_selector("[data-testid=desk-plan]")
     assert "planned by the contractor's supervisor or admin" in page.inner_text("main")
     assert page.locator("[data-testid=create-job]").count() == 0
+
+
+def test_a_contractor_s_supervisor_is_not_handed_the_owner_s_forms(live_server, demo, page):
+    """The log book and the anchors' certificates are the owner's to sign: the contractor's
+    supervisor filled the whole log-book form, password included, before being refused."""
+    open_desk(page, live_server.url)
+    page.click("nav.desk-nav a:has-text('Anchor log book')")
+    page.wait_for_selector("[data-testid=log-owner-only]")
+    assert page.locator("[data-testid=log-form]").count() == 0
+    assert "Only the building's owner signs" in page.inner_text("[data-testid=log-owner-only]")
+    page.click("nav.desk-nav a:has-text('Anchors and certificates')")
+    page.wait_for_selector("[data-testid=cert-owner-only]")
+    assert page.locator("[data-testid=cert-form]").count() == 0

@@ -175,7 +175,11 @@ export function DeskCertificates({ siteId }: { siteId?: number }) {
         </section>
         <section aria-labelledby="cert-add-head" class="desk-side">
           <h2 id="cert-add-head">Record a certificate</h2>
-          <CertificationForm data={data} onRecorded={onRecorded} />
+          {data.site.owned ? (
+            <CertificationForm data={data} onRecorded={onRecorded} />
+          ) : (
+            <p class="muted" data-testid="cert-owner-only">Only the building's owner records its anchors' certificates.</p>
+          )}
         </section>
       </div>
       <DeskCaution />

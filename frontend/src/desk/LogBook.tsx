@@ -196,7 +196,13 @@ export function DeskLogBook({ siteId }: { siteId?: number }) {
         </section>
         <section aria-labelledby="sign-head" class="desk-side">
           <h2 id="sign-head">Sign an entry</h2>
-          <EntryForm data={data} onSigned={reload} />
+          {data.site.owned ? (
+            <EntryForm data={data} onSigned={reload} />
+          ) : (
+            <p class="muted" data-testid="log-owner-only">
+              Only the building's owner signs entries in its anchor log book. Your crews' pre-use checks reach it from their check sheets.
+            </p>
+          )}
         </section>
       </div>
       <DeskCaution />
