@@ -471,3 +471,15 @@ def test_a_contractor_s_supervisor_is_not_handed_the_owner_s_forms(live_server, 
     page.click("nav.desk-nav a:has-text('Anchors and certificates')")
     page.wait_for_selector("[data-testid=cert-owner-only]")
     assert page.locator("[data-testid=cert-form]").count() == 0
+
+
+def test_today_s_job_once_closed_leads_to_its_sign_off(live_server, demo, page):
+    """A day is signed on or after its day: today's closed job had no way to its sign-off on
+    the desk, only past days did."""
+    from compliance.jobs.services import close_job
+
+    off_loop(lambda: close_job(job=demo, by=demo.supervisor, reason="Rain all day."))
+    open_desk(page, live_server.url)
+    row = page.locator(f"[data-testid=jobs-today] [data-testid=desk-job-{demo.id}]")
+    row.wait_for()
+    assert row.locator("[data-testid=sign-link]").get_attribute("href") == (f"#/job/{demo.id}/sign")

@@ -1,6 +1,6 @@
 /**
- * Jobs of any day, grouped into today, upcoming and past. A past day that was closed or held
- * and has no signed record links to the sign-off screen, where the supervisor signs it.
+ * Jobs of any day, grouped into today, upcoming and past. A day that has come, was closed or
+ * held and has no signed record links to the sign-off screen, where the supervisor signs it.
  */
 import { useEffect, useState } from "preact/hooks";
 import type { JobSummary } from "../types";
@@ -47,7 +47,7 @@ function JobTable({ jobs, signed, today, testid, plans }: TableProps) {
               <td>
                 <div class="desk-actions">
                 {isSigned && <Badge kind="safe" word="Record signed" testid="record-signed" />}
-                {!isSigned && finished && job.date < today && (
+                {!isSigned && finished && job.date <= today && (
                   <a class="btn" href={href({ name: "sign", id: job.id })} data-testid="sign-link">
                     Sign the day's record
                   </a>
