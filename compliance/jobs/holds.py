@@ -63,18 +63,30 @@ def locked(job: Job) -> Job:
 def hold_for_failed_items(
     *, job: Job, sheet: CheckSheet, failures: Iterable[ItemResult], by: User
 ) -> Job:
-    """Open a hold for each failed blocking item of the sheet and put the job on hold."""
+    """Open a hold for each failed blocking item of the sheet and put the job on hold. An item
+    already holding the job on this requirement keeps its one hold: the new failing sheet is
+    recorded with its entries, and one passing sheet clears the hold either way."""
     if job.state == JobState.CLOSED:
         return job
     failures = list(failures)
-    for item in failures:
-        Hold.objects.create(
-            job=job,
-            requirement=sheet.requirement,
-            item_key=item.key,
-            sheet=sheet,
-            reason=f"{item.label}: {item.message or 'failed'}",
-        )
+    holding = set(
+        Hold.objects.filter(
+            job=job, requirement=sheet.requirement, clearance__isnull=True
+        ).values_list("item_key", flat=True)
+    )
+    Hold.objects.bulk_create(
+        [
+            Hold(
+                job=job,
+                requirement=sheet.requirement,
+                item_key=item.key,
+                sheet=sheet,
+                reason=hold_reason(item.label, item.message),
+            )
+            for item in failures
+            if item.key not in holding
+        ]
+    )
     if job.state != JobState.HELD:
         names = ", ".join(i.label for i in failures)
         transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
@@ -150,3 +162,11 @@ def clear_for_returned_anchor(
         HoldClearance.objects.create(hold=hold, log_entry=entry, by=by)
     for job in jobs:
         refresh_readiness(job=job, by=by)
+
+
+def hold_reason(label: str, message: str) -> str:
+    """Why an item holds the job, saying the item once: a tick marked failed reads
+    "Zone closed: marked failed on the check." (its verdict's words repeat the label)."""
+    if not message or message == f"Marked failed: {label}.":
+        return f"{label}: marked failed on the check."
+    return f"{label}: {message}"

@@ -401,3 +401,27 @@ def test_a_uuid_a_sheet_was_made_with_another_way_is_answered_with_that_sheet(
     assert CheckSheet.objects.filter(client_uuid=second["client_uuid"]).count() == 1
     assert CheckSheet.objects.filter(client_uuid=first["client_uuid"]).count() == 1
     assert SyncReceipt.objects.count() == 2
+
+
+def test_the_same_item_failing_again_keeps_one_hold_and_says_why_once(
+    job, simple_checklists, operator
+):
+    """A check failed twice for the same reason opened two identical holds ('3 stop-work holds'
+    for 2 problems), and the start refusal read 'Stop work: X: Marked failed: X.'"""
+    from compliance.models import Hold
+
+    client = client_for(operator)
+    failed = {**PASSING["site"], "zone_closed": {"value": "fail"}}
+    sync(client, [site_record(job, simple_checklists, failed)])
+    sync(client, [site_record(job, simple_checklists, failed)])
+
+    open_holds = Hold.objects.filter(job=job, clearance__isnull=True)
+    assert open_holds.count() == 1
+    label = simple_checklists["site"].items[0]["label"]
+    assert open_holds.get().reason == f"{label}: marked failed on the check."
+    refused = client.post(reverse("job-start", args=[job.pk]))
+    reasons = [r["message"] for r in refused.json()["reasons"] if r["code"] == "open_hold"]
+    assert reasons == [f"Stop work: {label}: marked failed on the check."]
+    assert CheckSheet.objects.filter(job=job, verdict="fail").count() == 2
+    sync(client, [site_record(job, simple_checklists)])
+    assert not Hold.objects.filter(job=job, clearance__isnull=True).exists()
