@@ -94,6 +94,10 @@ def test_hold_then_offline_recheck_clears_the_job(live_server, demo, context, pa
     page.wait_for_selector("[data-testid=strip-online]:has-text('Offline')")
     page.click("[data-testid=holds] a:has-text('Re-check')")
     page.wait_for_selector("[data-testid=items]")
+    # The sheet says a check of this was saved before and that this one is new (a tap on a
+    # done check opened an empty form with no word of the one saved).
+    done = page.inner_text("[data-testid=sheet-done]")
+    assert "Saved before, with the verdict fail." in done and "a new check" in done
     fill_anchor_sheet(page)
     page.set_input_files(
         "[data-testid=photo-anchor_photo]",

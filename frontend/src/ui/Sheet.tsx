@@ -417,6 +417,12 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
         </div>
       )}
       {draftState.other && <p class="note">{draftState.other}</p>}
+      {req.latest_sheet !== null && (
+        <p class="note" data-testid="sheet-done" data-verdict={req.latest_verdict ?? ""}>
+          {req.satisfied ? "Done: this check was saved and passed." : `Saved before, with the verdict ${req.latest_verdict ?? "unknown"}.`}{" "}
+          What you fill in here is a new check: once saved, it is the one that counts.
+        </p>
+      )}
       {failed.length > 0 && (
         <section class="alert-block" data-testid="failed-top">
           <h2><Badge kind="held" word="Stop work: blocking item failed" /></h2>
