@@ -49,6 +49,11 @@ def test_supervisor_signs_a_closed_day_and_sees_the_seal(live_server, demo, cont
     page.click("[data-testid=sign-action]")
     page.wait_for_selector("[data-testid=meanings]")
     assert page.query_selector("[data-testid=sign-no-holds]") is not None
+    # What is signed is said, with the way to the day's checks (the page asked to confirm a
+    # review with nothing of the day on it).
+    summary = page.inner_text("[data-testid=sign-day]")
+    assert "17 of 17 pre-start checks done and passing" in summary, summary
+    assert page.get_attribute("[data-testid=sign-read-day]", "href") == f"#/job/{job.id}"
     password = page.locator("[data-testid=sign-password]")
     assert password.get_attribute("autocomplete") == "current-password"
     assert password.get_attribute("type") == "password"

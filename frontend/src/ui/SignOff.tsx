@@ -193,6 +193,17 @@ export function SignOff({ id, user }: { id: number; user: User }) {
         {recordKept === "unknown" && <p class="muted small">Could not ask the server whether this day is already signed; it refuses a second signature.</p>}
       </section>
 
+      <section class="card" data-testid="sign-day">
+        <h2>What you sign</h2>
+        <p>
+          {job.drops.length} {job.drops.length === 1 ? "drop" : "drops"} planned;{" "}
+          {job.requirements.filter((r) => r.satisfied).length} of {job.requirements.length} pre-start checks done and passing
+          {job.requirements.some((r) => r.latest_verdict === "fail") &&
+            `; ${job.requirements.filter((r) => r.latest_verdict === "fail").length} with a failed item as the latest`}.
+        </p>
+        <a class="inline-link" href={href({ name: "job", id: job.id })} data-testid="sign-read-day">Read the day's checks and holds first</a>
+      </section>
+
       {openHolds.length > 0 ? (
         <section class="card alert" data-testid="sign-holds">
           <h2><Badge kind="held" word={`Stop work: ${openHolds.length} open ${openHolds.length === 1 ? "hold" : "holds"}`} /></h2>
