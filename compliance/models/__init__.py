@@ -17,6 +17,7 @@ from compliance.models.people import Organisation, Role, User
 from compliance.models.profiles import JurisdictionProfile, ProfileRevision
 from compliance.models.records import (
     DailyRecord,
+    ExportMade,
     PageCheck,
     RecordChainHead,
     RecordPdf,
@@ -42,6 +43,7 @@ __all__ = [
     "Drop",
     "DropLog",
     "Equipment",
+    "ExportMade",
     "Hold",
     "HoldClearance",
     "Job",

@@ -153,3 +153,21 @@ class PageCheck(models.Model):
 
     def __str__(self) -> str:
         return f"pages of {self.pdf_sha256[:12]} match record {self.seal[:12]}"
+
+
+class ExportMade(AppendOnlyModel):
+    """An export this server made: the SHA-256 of its signed manifest, when, by whom.
+
+    Verifying an export on the server compares it with the stored records; a record of the
+    period signed after the export was made is not one it left out. Only the server's own word
+    says when that was (an export's own claims are its signer's), so the moment is taken from
+    here, and only for a row whose HMAC (under a key derived from the server's secret key)
+    holds: an export this server did not make is held to every record stored now.
+    """
+
+    manifest_sha256 = models.CharField(max_length=64, unique=True)
+    organisation = models.ForeignKey(Organisation, on_delete=models.PROTECT, related_name="+")
+    site = models.ForeignKey(Site, on_delete=models.PROTECT, related_name="+")
+    made_by = models.ForeignKey(User, on_delete=models.PROTECT, related_name="+")
+    made_at = models.DateTimeField()
+    mac = models.CharField(max_length=64)

@@ -19,6 +19,7 @@ from compliance.models import (
     SigningCredential,
     Site,
 )
+from compliance.records.exports import made_at
 from compliance.records.services import (
     sealed_column_problems,
     verify_against_database,
@@ -279,11 +280,16 @@ def verify_pdf(
 
 
 def stored_chains(
-    site_id: int, exporter_id: int, start: dt.date, end: dt.date
+    site_id: int, exporter_id: int, start: dt.date, end: dt.date, manifest_sha256: str
 ) -> dict[int, set[tuple[int, str]]]:
     """The records of a site-period an exporter may export, as this server holds them: every
-    organisation's at the owner's building, its own for a contractor."""
+    organisation's at the owner's building, its own for a contractor. For an export this server
+    made (its kept row's HMAC holds), only those signed by the time it was made: a day signed
+    later was not left out. Any other export is held to every record stored now."""
     rows = DailyRecord.objects.filter(site_id=site_id, job__date__gte=start, job__date__lte=end)
+    made = made_at(manifest_sha256)
+    if made is not None:
+        rows = rows.filter(signed_at__lte=made)
     if not Site.objects.filter(pk=site_id, organisation_id=exporter_id).exists():
         rows = rows.filter(organisation_id=exporter_id)
     chains: dict[int, set[tuple[int, str]]] = {}

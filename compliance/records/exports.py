@@ -18,10 +18,13 @@ from typing import Any
 
 from django.core.exceptions import ValidationError
 from django.db.models import Max, Min, Q
+from django.utils import timezone
+from django.utils.crypto import constant_time_compare, salted_hmac
 
 from compliance.errors import NotPermitted, PdfsPending
 from compliance.models import (
     DailyRecord,
+    ExportMade,
     Organisation,
     RecordChainHead,
     SigningCredential,
@@ -35,6 +38,7 @@ from compliance.records.sealing import (
     EXPORT_MANIFEST_SIGNATURE,
     canonical_bytes,
     merkle_root,
+    utc,
 )
 from compliance.records.signing import active_credential, sha256_hex, sign_seal
 
@@ -185,6 +189,7 @@ def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) 
     if (end - start).days > MAX_DAYS:
         raise ValidationError({"end": [f"An export covers at most {MAX_DAYS} days."]})
     site = scope.site
+    made = timezone.now()
     exporter = Organisation.objects.get(pk=by.organisation_id)
     organisations = list(Organisation.objects.filter(pk__in=scope.organisation_ids).order_by("pk"))
     by_org = _slices([o.pk for o in organisations], site, start, end)
@@ -210,6 +215,7 @@ def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) 
             "exported_by": {"id": exporter.pk, "name": exporter.name},
             "site": {"id": site.pk, "name": site.name},
             "period": {"start": start.isoformat(), "end": end.isoformat()},
+            "exported_at": utc(made),
             "chains": chains,
             "merkle_root": merkle_root(seals),
             "how_to_verify": (
@@ -218,6 +224,7 @@ def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) 
             ),
         }
         raw = canonical_bytes(manifest)
+        _keep(raw, exporter=exporter, site=site, by=by, made=made)
         credential = active_credential(exporter.pk)
         archive.writestr(MANIFEST, raw)
         archive.writestr(
@@ -232,3 +239,33 @@ def build_export(*, scope: ExportScope, by: User, start: dt.date, end: dt.date) 
             ),
         )
     return buffer.getvalue()
+
+
+def _export_mac(manifest_sha256: str, made: dt.datetime) -> str:
+    return salted_hmac(
+        "parapet.export-made", f"{manifest_sha256}:{utc(made)}", algorithm="sha256"
+    ).hexdigest()
+
+
+def _keep(
+    raw: bytes, *, exporter: Organisation, site: Site, by: User, made: dt.datetime
+) -> ExportMade:
+    """The server's own note of an export it made (see ExportMade)."""
+    digest = sha256_hex(raw)
+    return ExportMade.objects.create(
+        manifest_sha256=digest,
+        organisation=exporter,
+        site=site,
+        made_by=by,
+        made_at=made,
+        mac=_export_mac(digest, made),
+    )
+
+
+def made_at(manifest_sha256: str) -> dt.datetime | None:
+    """When this server made the export whose manifest hashes so, if it did and its note's
+    HMAC holds (a row written by someone without the server's key is not its word)."""
+    row = ExportMade.objects.filter(manifest_sha256=manifest_sha256).first()
+    if row is None or not constant_time_compare(row.mac, _export_mac(manifest_sha256, row.made_at)):
+        return None
+    return row.made_at

@@ -505,9 +505,10 @@ TrustFor = Callable[[int], TrustList]
 """The trust anchor of an organisation, by id (the server's registered certificates)."""
 
 
-StoredChains = Callable[[int, int, dt.date, dt.date], dict[int, set[tuple[int, str]]]]
+StoredChains = Callable[[int, int, dt.date, dt.date, str], dict[int, set[tuple[int, str]]]]
 """The server's own records of a site-period that an exporter may export: for each
-organisation, the (sequence, seal) of every record dated in the period."""
+organisation, the (sequence, seal) of every record dated in the period; for an export the
+server made (known by its manifest's SHA-256), only those signed by the time it was made."""
 
 OFFLINE_EXPORT_CLAIM = (
     "holds, for each organisation's chain in it, an unbroken run of signed records up to the"
@@ -602,7 +603,8 @@ def verify_export(
         for chain in chains:
             _check_export_chain(report, archive, chain, site_id, period, trust, trust_for)
         if stored is not None:
-            _check_complete(report, chains, stored(site_id, exporter["id"], *period))
+            found = stored(site_id, exporter["id"], *period, hashlib.sha256(raw).hexdigest())
+            _check_complete(report, chains, found)
     except _Refused:
         return report
     except (KeyError, TypeError, ValueError, AttributeError) as exc:
@@ -783,6 +785,7 @@ def _check_complete(
         chain["organisation"]["id"]: {(e["sequence"], e["seal"]) for e in chain["records"]}
         for chain in chains
     }
+
     names = {chain["organisation"]["id"]: str(chain["organisation"]["name"]) for chain in chains}
     foreign = sorted(set(exported) - set(stored), key=str)
     _need(

@@ -386,3 +386,51 @@ def test_on_the_server_an_export_leaving_out_the_first_day_of_the_period_does_no
     assert "cannot show" in offline.claim or any(
         "cannot show" in check.detail for check in offline.checks
     ), offline.as_dict()
+
+
+def test_an_export_stays_verified_on_the_server_after_a_day_of_its_period_is_signed_later(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    """Days are often signed late: a record of the period signed after the export was made is
+    not one the export left out, and the export, complete when made, still verifies."""
+    import datetime as dt
+
+    settings.MEDIA_ROOT = tmp_path
+    earlier = next_day_job(signed.job, simple_checklists, operator, -1)
+    data = _export(supervisor, signed, earlier.date, signed.job.date)
+    assert verify_export(data, use_database=True).ok
+
+    sign_daily_record(
+        job=earlier,
+        by=supervisor,
+        password=PASSWORD,
+        meaning="reviewed_exceptions",
+        remarks="Signed late.",
+    )
+    report = verify_export(data, use_database=True)
+
+    assert report.ok, report.as_dict()
+    assert dt.date.fromisoformat(_manifest(data)["period"]["start"]) == earlier.date
+
+
+def test_only_the_server_s_own_note_of_an_export_excuses_a_day_signed_after_it(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    """The moment an export was made comes from the server's HMAC'd note, never from the
+    export itself: a note rewritten in the database (an insider moving the moment back) is not
+    the server's word, and the export is then held to every record stored now."""
+    from compliance.models import ExportMade
+
+    settings.MEDIA_ROOT = tmp_path
+    earlier = next_day_job(signed.job, simple_checklists, operator, -1)
+    data = _export(supervisor, signed, earlier.date, signed.job.date)
+    sign_daily_record(
+        job=earlier, by=supervisor, password=PASSWORD, meaning="reviewed_exceptions", remarks="."
+    )
+    with connection.cursor() as cursor:
+        cursor.execute("UPDATE compliance_exportmade SET mac = %s", ["0" * 64])
+    assert ExportMade.objects.count() == 1
+
+    report = verify_export(data, use_database=True)
+
+    assert not report.ok and report.first_failure.name == "chain_complete"
