@@ -37,6 +37,7 @@ from compliance.models import (
     User,
 )
 from compliance.registers.visibility import can_work_at
+from compliance.text import has_words
 
 PLANNERS_ONLY = "Only a supervisor or an admin plans jobs and their drops."
 
@@ -165,14 +166,12 @@ def close_job(*, job: Job, by: User, reason: str = "") -> Job:
         job = locked(job)
         if job.state == JobState.CLOSED:
             raise InvalidTransition("This job is already closed.")
-        if job.state in (JobState.PLANNED, JobState.CLEARED) and not ever_reached(
-            job, JobState.WORKING
-        ):
+        if not ever_reached(job, JobState.WORKING):
             _require_planner(by, "Only a supervisor or an admin closes a job before any work.")
-            if not reason.strip():
+            if not has_words(reason):
                 raise ValidationError({"reason": "Say why the job ends before any work."})
             return transition(job, JobState.CLOSED, by, f"Closed before work started: {reason}")
-        if job.state == JobState.HELD and not reason.strip():
+        if job.state == JobState.HELD and not has_words(reason):
             raise InvalidTransition("Closing a held job needs a reason.")
         return transition(job, JobState.CLOSED, by, reason or "Work finished for the day.")
 

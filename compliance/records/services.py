@@ -53,6 +53,7 @@ from compliance.records.signing import (
     sign_chain_head,
     sign_seal,
 )
+from compliance.text import has_words
 
 FORMAT = "parapet.daily-record/4"
 """/3 added each entry's label (the checklist's words) and the time zone the pages print times
@@ -432,7 +433,7 @@ def sign_daily_record(
     _authenticate(by, password)
     if meaning not in MEANINGS:
         raise InvalidTransition(f"The meaning of the signature is one of: {', '.join(MEANINGS)}.")
-    if meaning == "reviewed_exceptions" and not remarks.strip():
+    if meaning == "reviewed_exceptions" and not has_words(remarks):
         raise ValidationError({"remarks": "Say what the exceptions were."})
     credential = active_credential(job.organisation_id)
     with transaction.atomic():
@@ -570,7 +571,7 @@ def add_addendum(
     addendum the first one made instead of adding a second.
     """
     _authenticate(by, password)
-    if not text.strip():
+    if not has_words(text):
         raise InvalidTransition("An addendum needs its text.")
     if by.organisation_id != record.organisation_id:
         raise NotPermitted("Unknown record.")

@@ -103,7 +103,8 @@ EXPECTED: dict[str, int] = {
     "record-detail": 1,
     "record-pdf": 2,
     "record-verify": 2,  # the record, its PDF: the stand-in PDF stops the verifier at once
-    "record-export": 9,  # organisations, ranges, heads, records, certificates, and the rest
+    # organisations, ranges, heads, records, certificates, the note of the export, the rest
+    "record-export": 10,
     # One batch of passing site sheets for one job, applied in one transaction with the job
     # locked: the batch reads its versions once; the job's run reads its lock, receipts, open
     # holds and drops once, writes the receipts together and settles readiness once. Each

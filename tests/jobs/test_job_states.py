@@ -206,8 +206,13 @@ def test_pause_and_close(job, simple_checklists, operator):
 
 
 def test_closing_a_held_job_needs_a_reason(job, simple_checklists, operator):
+    # Held while working: the crew ends the day with the reason (a job held before any work
+    # is closed by a supervisor, tests/jobs/test_roles.py).
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
     _fail_hose(job, simple_checklists, operator)
     job.refresh_from_db()
+    assert job.state == JobState.HELD
     with pytest.raises(InvalidTransition):
         close_job(job=job, by=operator)
     close_job(job=job, by=operator, reason="Hose burst; replacement tomorrow.")

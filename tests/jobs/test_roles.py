@@ -98,3 +98,36 @@ def test_a_later_day_s_job_takes_no_pre_start_check_and_does_not_start(
     assert started.json()["detail"] == (
         f"This job is for {job.date.isoformat()}: it starts on its day."
     )
+
+
+def test_a_held_job_that_never_started_is_closed_by_a_supervisor_only(
+    job, simple_checklists, operator, supervisor
+):
+    """A failed check before any work holds the job; an operator then closed it for good."""
+    from checklists.services import record_sheet
+    from tests.conftest import PASSING
+
+    record_sheet(
+        job=job,
+        version=simple_checklists["site"],
+        by=operator,
+        entries={**PASSING["site"], "zone_closed": {"value": "fail"}},
+    )
+    job.refresh_from_db()
+    assert job.state == "held"
+    url = reverse("job-close", args=[job.pk])
+
+    by_operator = client_for(operator).post(url, {"reason": "Going home."}, format="json")
+    by_supervisor = client_for(supervisor).post(url, {"reason": "Zone not closed."}, format="json")
+
+    assert by_operator.status_code == 403
+    assert by_supervisor.status_code == 200
+
+
+@pytest.mark.parametrize("blank", ["\u200b", "\u2060 \u200b", "\ufeff"])
+def test_a_reason_of_invisible_characters_is_no_reason(job, supervisor, blank):
+    response = client_for(supervisor).post(
+        reverse("job-close", args=[job.pk]), {"reason": blank}, format="json"
+    )
+    assert response.status_code == 400
+    assert response.json() == {"reason": ["Say why the job ends before any work."]}

@@ -385,3 +385,17 @@ def test_a_day_that_has_not_come_yet_cannot_be_signed(
         " is signed on or after its day."
     )
     assert not DailyRecord.objects.exists()
+
+
+def test_remarks_of_invisible_characters_are_no_remarks(
+    job, simple_checklists, supervisor, credential
+):
+    job = _closed_before_work(job, supervisor)
+    response = client_for(supervisor).post(
+        reverse("job-sign", args=[job.pk]),
+        {"password": PASSWORD, "meaning": "reviewed_exceptions", "remarks": "\u200b\u2060"},
+        format="json",
+    )
+    assert response.status_code == 400
+    assert response.json() == {"remarks": ["Say what the exceptions were."]}
+    assert not DailyRecord.objects.exists()
