@@ -22,7 +22,7 @@ from compliance.models import (
     Site,
     User,
 )
-from compliance.registers.bounds import MAX_RATED_CAPACITY_KN
+from compliance.registers.bounds import MAX_RATED_CAPACITY_KN, MAX_SITE_HEIGHT_M, STOREYS
 from compliance.registers.ratings import EQUIPMENT_KINDS
 from compliance.registers.selectors import withdrawn_reason
 from compliance.registers.visibility import anchors_visible_to, sites_visible_to
@@ -78,6 +78,23 @@ class SiteSerializer(StrictInput, serializers.ModelSerializer):
             "roof_outline",
             "owned",
         ]
+
+    def validate_height_m(self, value: float) -> float:
+        """As the model's clean says it, beside the storeys (both are answered at once)."""
+        if not 0 < value <= MAX_SITE_HEIGHT_M:
+            raise serializers.ValidationError(
+                f"A roof height above 0 and at most {MAX_SITE_HEIGHT_M:g} m."
+            )
+        return value
+
+    def validate_storeys(self, value: int | None) -> int | None:
+        """Bounded here as the model's clean bounds it, so that a number past the database's
+        integer range is answered in the same words on PostgreSQL (whose column range the
+        model would name first) as on SQLite."""
+        fewest, most = STOREYS
+        if value is not None and not fewest <= value <= most:
+            raise serializers.ValidationError(f"Between {fewest} and {most} storeys.")
+        return value
 
     def get_owned(self, site: Site) -> bool:
         """Whether the asker's organisation owns the building (and so keeps its anchors, their
