@@ -16,6 +16,7 @@ from compliance.models import (
     DailyRecord,
     Organisation,
     PageCheck,
+    RecordChainHead,
     SigningCredential,
     Site,
 )
@@ -26,7 +27,7 @@ from compliance.records.services import (
     verify_chain,
 )
 from compliance.records.signatures import verify_seal_signature
-from compliance.records.verifier import LOG_BOOK_FORMAT, Report, TrustList
+from compliance.records.verifier import LOG_BOOK_FORMAT, Report, Stored, TrustList
 from compliance.records.verifier import verify_export as verify_export_bytes
 from compliance.records.verifier import verify_pdf as verify_pdf_bytes
 
@@ -281,7 +282,7 @@ def verify_pdf(
 
 def stored_chains(
     site_id: int, exporter_id: int, start: dt.date, end: dt.date, manifest_sha256: str
-) -> dict[int, set[tuple[int, str]]]:
+) -> Stored:
     """The records of a site-period an exporter may export, as this server holds them: every
     organisation's at the owner's building, its own for a contractor. For an export this server
     made (its kept row's HMAC holds), only those signed by the time it was made: a day signed
@@ -295,7 +296,15 @@ def stored_chains(
     chains: dict[int, set[tuple[int, str]]] = {}
     for organisation_id, sequence, seal in rows.values_list("organisation_id", "sequence", "seal"):
         chains.setdefault(organisation_id, set()).add((sequence, seal))
-    return chains
+    heads = None
+    if made is None:
+        heads = {
+            organisation_id: (sequence, seal)
+            for organisation_id, sequence, seal in RecordChainHead.objects.filter(
+                site_id=site_id
+            ).values_list("organisation_id", "sequence", "seal")
+        }
+    return Stored(records=chains, heads=heads)
 
 
 def verify_export(

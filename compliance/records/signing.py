@@ -50,6 +50,14 @@ def store_credential(
     key = serialization.load_pem_private_key(key_pem, password=key_passphrase)
     if cert.public_key().public_numbers() != key.public_key().public_numbers():  # type: ignore[union-attr]
         raise ValueError("The private key does not belong to the certificate.")
+    named = [a.value for a in cert.subject.get_attributes_for_oid(NameOID.ORGANIZATION_NAME)]
+    if named != [organisation.name]:
+        # The verifier ties a record to its organisation through this name (verifier.py,
+        # check_signer_organisation).
+        raise ValueError(
+            f"The certificate names the organisation {', '.join(map(repr, named)) or 'none'};"
+            f" it must name {organisation.name!r}, whose records it will sign."
+        )
     encrypted = key.private_bytes(
         serialization.Encoding.PEM,
         serialization.PrivateFormat.PKCS8,

@@ -66,6 +66,8 @@ class Report:
     trust_source: str = ""
     document: dict[str, Any] | None = field(default=None, repr=False, compare=False)
     """The sealed document attached to the PDF, once its seal checked out."""
+    certificate_organisation: str | None = field(default=None, repr=False, compare=False)
+    """The organisation name (O=) in the signing certificate's subject."""
     claim: str = "is exactly the record that was signed, and its place in the chain is intact"
     """What VERIFIED says of the subject (an export says it of every record it holds)."""
 
@@ -249,7 +251,41 @@ def check_signature(report: Report, data: bytes, roots: tuple[str, ...] = ()) ->
         subject=cert.subject.human_friendly,
         fingerprint_sha256=hashlib.sha256(cert.dump()).hexdigest(),
     )
+    report.certificate_organisation = certificate_organisation(cert)
     return True, bool(roots) and bool(status.trusted)
+
+
+def certificate_organisation(cert: asn1_x509.Certificate) -> str | None:
+    """The organisation name (O=) in a certificate's subject, if it has exactly one."""
+    names = [
+        attribute["value"].native
+        for rdn in cert.subject.chosen
+        for attribute in rdn
+        if attribute["type"].native == "organization_name"
+    ]
+    return names[0] if len(names) == 1 and isinstance(names[0], str) else None
+
+
+def check_signer_organisation(report: Report, document: dict[str, Any]) -> bool:
+    """The certificate that signed the file names the organisation whose record it is.
+
+    A trust list vouches for certificates, not for which organisation each belongs to: without
+    this, one contractor holding its own key (vouched for at the same building) could sign a
+    record sealed as another's. Parapet's certificates name their organisation (O=), and an
+    imported one must name its own (signing.store_credential)."""
+    organisation = document.get("organisation")
+    sealed = organisation.get("name") if isinstance(organisation, dict) else None
+    if not isinstance(sealed, str):  # a log book: its owner is checked with its entries
+        return True
+    named = report.certificate_organisation
+    return report.add(
+        "signer_is_organisation",
+        named == sealed,
+        f"The PDF is signed with a certificate of {sealed}, whose record it is."
+        if named == sealed
+        else f"The PDF is sealed as {sealed}'s record but signed with a certificate of"
+        f" {named or 'no named organisation'}.",
+    )
 
 
 def _container_as_signed(signed_data: Any, signing_cert: asn1_x509.Certificate) -> bool:
@@ -459,6 +495,8 @@ def verify_pdf(
     if document is None:
         return report
     report.document = document
+    if not check_signer_organisation(report, document):
+        return report
     if not check_pages(report, data, document, memory):
         return report
     if database is not None:
@@ -505,16 +543,28 @@ TrustFor = Callable[[int], TrustList]
 """The trust anchor of an organisation, by id (the server's registered certificates)."""
 
 
-StoredChains = Callable[[int, int, dt.date, dt.date, str], dict[int, set[tuple[int, str]]]]
-"""The server's own records of a site-period that an exporter may export: for each
-organisation, the (sequence, seal) of every record dated in the period; for an export the
-server made (known by its manifest's SHA-256), only those signed by the time it was made."""
+@dataclass(frozen=True)
+class Stored:
+    """What the server holds of a site-period an exporter may export."""
+
+    records: dict[int, set[tuple[int, str]]]
+    """For each organisation, the (sequence, seal) of every record dated in the period (for
+    an export the server made, only those signed by the time it was made)."""
+    heads: dict[int, tuple[int, str]] | None
+    """For an export the server did not make, each organisation's chain head now, which the
+    export's must be; None for one it made (its heads were the heads then)."""
+
+
+StoredChains = Callable[[int, int, dt.date, dt.date, str], Stored]
+"""The server's own records of a site-period that an exporter may export, found by the site,
+the exporter, the period and the manifest's SHA-256."""
 
 OFFLINE_EXPORT_CLAIM = (
     "holds, for each organisation's chain in it, an unbroken run of signed records up to the"
     " chain's signed head, each PDF the one its signed manifest names; on its own it cannot show"
-    " that the organisation that signed the manifest left none of its own records of the period"
-    " out before the first one listed (the Parapet server that holds the records checks that)"
+    " that no record of the period was left out before the first one listed in a chain, nor that"
+    " no organisation's chain at the site was left out altogether (the Parapet server that holds"
+    " the records checks both)"
 )
 
 
@@ -577,6 +627,23 @@ def verify_export(
             "manifest",
             False,
             "The manifest's signature does not verify: it was changed after it was signed.",
+        )
+        return report
+    if (
+        stored is not None
+        and trust_for is not None
+        and (
+            not isinstance(exporter.get("id"), int)
+            or fingerprint not in trust_for(exporter["id"]).fingerprints
+        )
+    ):
+        # Checked before anything stored is compared: a manifest anyone signed must not make
+        # the server describe an organisation's records.
+        report.add(
+            "manifest",
+            False,
+            "The manifest is not signed with a certificate the organisation it names as its"
+            " exporter registered here.",
         )
         return report
     report.signer = Signer(
@@ -656,16 +723,22 @@ def _check_export_chain(
     }
     head = chain["head"]
     statement = json.loads(head["statement"])
-    pem = certs.get(str(head["certificate_sha256"]))
+    head_print = str(head["certificate_sha256"])
+    pem = certs.get(head_print)
     last = (records + later)[-1]
-    # The head must be signed with a certificate that signed this organisation's records here:
-    # a certificate the manifest merely lists beside them (another contractor's, say) is not
-    # the organisation's word on where its chain ends.
+    # The head must be the organisation's word on where its chain ends: signed with a
+    # certificate naming that organisation (O=), and one that signed its records here or that
+    # the trust anchor vouches for (a key replaced since signs the heads anew). A certificate
+    # the manifest merely lists beside them (another contractor's, say) is neither.
+    vouched_head = head_print in signers or (
+        chain_trust is not None and head_print in chain_trust.fingerprints
+    )
     _need(
         report,
         "chain_head",
         pem is not None
-        and str(head["certificate_sha256"]) in signers
+        and vouched_head
+        and certificate_organisation(_certs([pem])[0]) == name
         and verify_seal_signature(
             hashlib.sha256(str(head["statement"]).encode("utf-8")).hexdigest(),
             str(head["signature"]),
@@ -776,11 +849,23 @@ def _check_members(report: Report, archive: zipfile.ZipFile, chains: list[Any]) 
     report.add("members", True, "The export holds the files its manifest names and no other.")
 
 
-def _check_complete(
-    report: Report, chains: list[Any], stored: dict[int, set[tuple[int, str]]]
-) -> None:
+def _check_complete(report: Report, chains: list[Any], found: Stored) -> None:
     """Every record of the period this server holds for the exporter's chains is in the export,
-    and the export holds no chain the exporter may not export."""
+    the export holds no chain the exporter may not export, and, for an export this server did
+    not make, each chain's head is the head it holds now."""
+    stored = found.records
+    for chain in chains if found.heads is not None else []:
+        said = json.loads(chain["head"]["statement"])
+        now = found.heads.get(chain["organisation"]["id"])
+        _need(
+            report,
+            "chain_head",
+            now == (said["sequence"], said["seal"]),
+            f"{chain['organisation']['name']}'s chain here ends at record"
+            f" {now[0] if now else 0}, but the export's signed head names record"
+            f" {said['sequence']}: this server did not make this export, and records were cut"
+            " from its end.",
+        )
     exported = {
         chain["organisation"]["id"]: {(e["sequence"], e["seal"]) for e in chain["records"]}
         for chain in chains

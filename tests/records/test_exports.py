@@ -433,4 +433,91 @@ def test_only_the_server_s_own_note_of_an_export_excuses_a_day_signed_after_it(
 
     report = verify_export(data, use_database=True)
 
-    assert not report.ok and report.first_failure.name == "chain_complete"
+    # Held to the records as they are now: its head is no longer the chain's, and the day
+    # signed since is missing.
+    assert not report.ok and report.first_failure.name in ("chain_head", "chain_complete")
+
+
+def test_an_export_made_after_the_key_is_replaced_verifies(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    """A new key signs the chain's head anew; the records of the period were signed with the
+    old one. A genuine export of them was refused as 'head not signed by' its organisation."""
+    settings.MEDIA_ROOT = tmp_path
+    new = create_self_signed(organisation=signed.organisation)
+
+    data = _export(supervisor, signed)
+    trust = TrustList(
+        fingerprints=frozenset({signed.credential.fingerprint_sha256, new.fingerprint_sha256})
+    )
+
+    on_server = verify_export(data, use_database=True)
+    assert on_server.ok, on_server.as_dict()
+    offline = verify_export(data, trust=trust)
+    assert offline.ok, offline.as_dict()
+
+
+def test_on_the_server_an_export_cut_short_with_a_replaced_key_does_not_verify(
+    signed, simple_checklists, operator, supervisor, settings, tmp_path
+):
+    """Someone who copied the old key before it was replaced cuts the chain's last day off an
+    export and signs a shorter head and the manifest with it."""
+    settings.MEDIA_ROOT = tmp_path
+    later = next_day_job(signed.job, simple_checklists, operator, 1)
+    sign_daily_record(job=later, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+    members = _members(_export(supervisor, signed))
+    old = signed.credential
+    create_self_signed(organisation=signed.organisation)
+    manifest = json.loads(dict(members)["manifest.json"])
+    chain = manifest["chains"][0]
+    chain["after_period"] = []
+    last = chain["records"][-1]
+    statement = rfc8785.dumps(
+        {
+            "format": json.loads(chain["head"]["statement"])["format"],
+            "organisation": signed.organisation_id,
+            "site": signed.site_id,
+            "sequence": last["sequence"],
+            "seal": last["seal"],
+            "signed_at": "2026-12-05T00:00:00Z",
+        }
+    ).decode()
+    chain["head"] = {
+        "statement": statement,
+        "signature": sign_seal(sha256_hex(statement.encode()), old),
+        "certificate_sha256": old.fingerprint_sha256,
+    }
+    forged = _packed(_resigned(members, manifest, old))
+
+    report = verify_export(forged, use_database=True)
+
+    assert not report.ok
+    assert report.first_failure.name == "chain_head", report.as_dict()
+    assert "records were cut from its end" in report.first_failure.detail
+
+
+def test_a_manifest_not_signed_by_its_exporter_tells_nothing_of_the_stored_records(
+    building, settings
+):
+    """Anyone signed in can upload a file: a manifest naming another organisation as its
+    exporter, signed with the uploader's own key, drew the server into comparing it with that
+    organisation's records and saying which were missing."""
+    from compliance.records.sealing import merkle_root
+
+    manager, first, second = building
+    manifest = {
+        "format": "parapet.export/3",
+        "exported_by": {"id": manager.organisation_id, "name": "?"},
+        "site": {"id": first.site_id, "name": "?"},
+        "period": {"start": first.job.date.isoformat(), "end": first.job.date.isoformat()},
+        "chains": [],
+        "merkle_root": merkle_root([]),
+    }
+    members = [("manifest.json", b""), ("manifest.sig.json", b"")]
+    forged = _packed(_resigned(members, manifest, second.credential))
+
+    report = verify_export(forged, use_database=True)
+
+    assert not report.ok
+    assert [c.name for c in report.checks] == ["manifest"]
+    assert "record" not in report.first_failure.detail

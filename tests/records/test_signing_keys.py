@@ -87,3 +87,50 @@ def test_a_batch_with_two_anchor_checks_decrypts_the_key_at_most_once(
     )
     assert signed.count() == 2
     assert load.call_count == 1
+
+
+def _certificate_naming(organisation_name: str):
+    import datetime as dt
+
+    from cryptography import x509
+    from cryptography.hazmat.primitives import hashes
+    from cryptography.hazmat.primitives.asymmetric import rsa
+    from cryptography.x509.oid import NameOID
+
+    key = rsa.generate_private_key(public_exponent=65537, key_size=2048)
+    name = x509.Name(
+        [
+            x509.NameAttribute(NameOID.COMMON_NAME, "daily records"),
+            x509.NameAttribute(NameOID.ORGANIZATION_NAME, organisation_name),
+        ]
+    )
+    now = dt.datetime.now(dt.UTC)
+    cert = (
+        x509.CertificateBuilder()
+        .subject_name(name)
+        .issuer_name(name)
+        .public_key(key.public_key())
+        .serial_number(x509.random_serial_number())
+        .not_valid_before(now)
+        .not_valid_after(now + dt.timedelta(days=30))
+        .sign(key, hashes.SHA256())
+    )
+    pem = cert.public_bytes(serialization.Encoding.PEM)
+    key_pem = key.private_bytes(
+        serialization.Encoding.PEM, serialization.PrivateFormat.PKCS8, serialization.NoEncryption()
+    )
+    return pem, key_pem
+
+
+def test_an_imported_certificate_names_its_own_organisation(job):
+    """The verifier ties a record to its organisation through the certificate's O=: a
+    contractor importing a certificate that names another organisation could sign as it."""
+    from compliance.records.signing import store_credential
+
+    pem, key_pem = _certificate_naming("Somebody Else Ltd")
+    with pytest.raises(ValueError, match="names the organisation 'Somebody Else Ltd'"):
+        store_credential(organisation=job.organisation, certificate_pem=pem, key_pem=key_pem)
+    assert not SigningCredential.objects.filter(organisation=job.organisation).exists()
+    pem, key_pem = _certificate_naming(job.organisation.name)
+    kept = store_credential(organisation=job.organisation, certificate_pem=pem, key_pem=key_pem)
+    assert kept.active
