@@ -74,27 +74,30 @@ def _check_default_floor(version: ChecklistVersion) -> None:
         item["key"]
         for item in default.items
         if item.get("blocking")
-        and not (
-            (kept := own.get(item["key"])) is not None
-            and kept.get("blocking") is True
-            and kept.get("kind") == item.get("kind")
-            and (
-                item.get("kind") != "calc"
-                or (kept.get("calc"), kept.get("inputs")) == (item.get("calc"), item.get("inputs"))
-            )
-        )
+        and not ((kept := own.get(item["key"])) is not None and _rule(kept) == _rule(item))
     ]
     if lost:
         raise ValidationError(
             {
                 "items": (
                     f"This checklist replaces Parapet's default {checklist.key!r}, so it keeps"
-                    " each of the default's blocking items, blocking and of the same kind (a"
+                    " each of the default's blocking items as it is, but for its words and"
+                    " limits (still blocking, of the same kind and unit, never skippable, a"
                     " calculation with the same inputs). Missing or changed:"
                     f" {', '.join(lost)}."
                 )
             }
         )
+
+
+REWORDABLE = ("label", "reason", "limits", "caution_below")
+"""What an own checklist may change in a default's blocking item: its words and its limits."""
+
+
+def _rule(item: dict[str, Any]) -> dict[str, Any]:
+    """An item without its words and limits: its kind, that it blocks, whether it may be
+    answered 'not applicable' or left out, its unit, schedule, calculation and inputs."""
+    return {key: value for key, value in item.items() if key not in REWORDABLE}
 
 
 def _finite(value: Any) -> bool:

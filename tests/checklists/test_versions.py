@@ -345,3 +345,21 @@ def test_an_own_checklist_cannot_take_a_default_s_key_for_another_kind_of_subjec
     assert response.status_code == 400
     assert list(response.json()) == ["applies_to"]
     assert not Checklist.objects.filter(key="anchor-check", organisation__isnull=False).exists()
+
+
+def test_an_own_checklist_cannot_let_a_kept_blocking_item_be_skipped(
+    job, simple_checklists, supervisor
+):
+    """Kept by key, kind and blocking, a stop-work tick could still be made skippable with
+    allow_na: every anchor check then passed on 'not applicable'. Only the words and the
+    limits of a kept item may change."""
+    client, created = _own_of_default(supervisor)
+    items = [
+        {**tick("sound"), "allow_na": True},
+        reading("tag_capacity", "kN", {"min": {"profile": "min_anchor_capacity_kn"}}),
+    ]
+
+    response = _publish(client, created.json()["id"], items)
+
+    assert response.status_code == 400, response.json()
+    assert "sound" in response.json()["items"][0]
