@@ -169,6 +169,18 @@ def job_blockers(
         )
     seen: set[int] = set()
     for drop in drops:
+        # The plan check refused these; the register may have changed since.
+        for line in (drop.tether, drop.safety_line):
+            long = (line.ratings or {}).get("length_m")
+            if isinstance(long, int | float) and long < drop.length_m:
+                reasons.append(
+                    Reason(
+                        "line_shorter_than_drop",
+                        f"Drop {drop.label}: {line.kind.replace('_', ' ')} {line.label} is"
+                        f" {long:g} m long, shorter than the {drop.length_m:g} m drop.",
+                        f"equipment:{line.pk}",
+                    )
+                )
         for anchor in (drop.anchor, drop.safety_anchor):
             if anchor.pk in seen:
                 continue

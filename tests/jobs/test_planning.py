@@ -274,3 +274,26 @@ def test_the_plan_check_refuses_what_adding_the_drop_would_refuse(job, tomorrow_
     assert refused.value.message_dict == {
         "safety_line": [f"Safety line {line} is 100 m long, shorter than the 110 m drop."]
     }
+
+
+def test_a_line_shortened_in_the_register_after_planning_keeps_the_job_from_starting(
+    job, simple_checklists, operator
+):
+    """The plan check refuses a tether shorter than the drop, but the register could be edited
+    afterwards (a re-cut line, a typing slip): the job then started with it."""
+    from compliance.errors import JobBlocked
+    from tests.conftest import fill_all
+
+    drop = job.drops.get()
+    register_services.update_equipment(
+        item=drop.tether, by=job.supervisor, ratings={**drop.tether.ratings, "length_m": 20.0}
+    )
+    fill_all(job, simple_checklists, operator)
+
+    with pytest.raises(JobBlocked) as blocked:
+        services.start_job(job=job, by=operator)
+
+    assert [r.message for r in blocked.value.reasons if r.code == "line_shorter_than_drop"] == [
+        f"Drop {drop.label}: tether {drop.tether.label} is 20 m long, shorter than the"
+        f" {drop.length_m:g} m drop."
+    ]
