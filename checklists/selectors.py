@@ -2,7 +2,7 @@
 
 from typing import Any
 
-from django.db.models import Q, QuerySet
+from django.db.models import Exists, OuterRef, Q, QuerySet
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from compliance.models import Job
@@ -24,6 +24,20 @@ def usable_versions(organisation_id: int | None) -> QuerySet[ChecklistVersion]:
     return ChecklistVersion.objects.filter(
         checklist__in=visible_checklists(organisation_id)
     ).select_related("checklist")
+
+
+def fillable_versions(organisation_id: int | None) -> QuerySet[ChecklistVersion]:
+    """The versions a sheet may be filled against: those the organisation may name, less the
+    defaults its own published checklist of the same key replaces (a sheet against one would
+    count for the requirement without the organisation's own items)."""
+    replaced = Checklist.objects.filter(
+        organisation_id=organisation_id,
+        key=OuterRef("checklist__key"),
+        versions__status=ChecklistVersion.Status.PUBLISHED,
+    )
+    return usable_versions(organisation_id).exclude(
+        Q(checklist__organisation__isnull=True) & Exists(replaced)
+    )
 
 
 def current_versions(

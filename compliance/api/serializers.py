@@ -7,7 +7,7 @@ from django.urls import reverse
 from rest_framework import serializers
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry, Verdict
-from checklists.selectors import UNKNOWN_VERSION, usable_versions
+from checklists.selectors import UNKNOWN_VERSION, fillable_versions
 from compliance.api.fields import FiniteFloatField, IdField, PlausibleDateField, StrictInput
 from compliance.models import (
     Anchor,
@@ -548,7 +548,7 @@ class SheetInputSerializer(StrictInput, serializers.Serializer):
         self.fields["job"].queryset = Job.objects.filter(organisation_id=org).select_related(
             "site__profile"
         )
-        self.fields["version"].queryset = usable_versions(org)
+        self.fields["version"].queryset = fillable_versions(org)
         self.fields["anchor"].queryset = anchors_visible_to(org)
         self.fields["equipment"].queryset = Equipment.objects.filter(organisation_id=org)
 

@@ -24,7 +24,7 @@ from django.utils import timezone
 from django.utils.dateparse import parse_datetime
 
 from checklists.models import ChecklistVersion
-from checklists.selectors import usable_versions
+from checklists.selectors import fillable_versions
 from checklists.services import record_sheet
 from compliance.anchor_log.services import HeldChains
 from compliance.errors import DomainError, rejection_for
@@ -89,7 +89,7 @@ class Batch:
                 if _is_id(data.get(name)):
                     ids.add(data[name])
         sources = {
-            "version": usable_versions(org),
+            "version": fillable_versions(org),
             "anchor": anchors_visible_to(org),
             "equipment": Equipment.objects.filter(organisation_id=org),
         }
@@ -259,7 +259,7 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
     if job is None:
         raise RecordRejected({"job": ["Required."]})
     version = batch.lookup(
-        ChecklistVersion, lambda: usable_versions(org), data.get("version"), "version"
+        ChecklistVersion, lambda: fillable_versions(org), data.get("version"), "version"
     )
     if version is None:
         raise RecordRejected({"version": ["Required."]})

@@ -363,3 +363,33 @@ def test_an_own_checklist_cannot_let_a_kept_blocking_item_be_skipped(
 
     assert response.status_code == 400, response.json()
     assert "sound" in response.json()["items"][0]
+
+
+def test_a_default_replaced_by_an_own_checklist_takes_no_more_sheets(
+    job, simple_checklists, supervisor, operator
+):
+    """Readiness goes by checklist key: a sheet against Parapet's default, once the
+    organisation's own checklist replaced it, satisfied the requirement and cleared its hold,
+    skipping the organisation's extra blocking items."""
+    from compliance.jobs.selectors import job_requirements
+
+    client, created = _own_of_default(supervisor)
+    items = [*simple_checklists["anchor"].items, tick("sling_tagged")]
+    assert _publish(client, created.json()["id"], items).status_code == 200
+    anchor = job.drops.get().anchor
+
+    response = client_for(operator).post(
+        reverse("sheet-list"),
+        {
+            "job": job.pk,
+            "version": simple_checklists["anchor"].pk,
+            "anchor": anchor.pk,
+            "entries": PASSING["anchor"],
+        },
+        format="json",
+    )
+
+    assert response.status_code == 400, response.json()
+    assert list(response.json()) == ["version"]
+    requirement = next(r for r in job_requirements(job) if r.subject.anchor == anchor)
+    assert not requirement.satisfied
