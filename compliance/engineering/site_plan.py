@@ -47,3 +47,24 @@ def facade_position(
         facade_length_m=length,
         building_depth_m=depth,
     )
+
+
+def distance_outside(outline: Sequence[Sequence[float]], point: Sequence[float]) -> float | None:
+    """How far `point` lies outside the outline, in metres (0 on or inside it); None for an
+    outline of under three corners. Inside by the even-odd rule, so a point in the notch of an
+    L-shaped roof is outside it."""
+    corners = [(float(p[0]), float(p[1])) for p in outline]
+    if len(corners) < 3:
+        return None
+    px, py = float(point[0]), float(point[1])
+    inside = False
+    nearest = math.inf
+    for i, (ax, ay) in enumerate(corners):
+        bx, by = corners[(i + 1) % len(corners)]
+        if (ay > py) != (by > py) and px < ax + (py - ay) * (bx - ax) / (by - ay):
+            inside = not inside
+        dx, dy = bx - ax, by - ay
+        span = dx * dx + dy * dy
+        t = 0.0 if span == 0.0 else min(max(((px - ax) * dx + (py - ay) * dy) / span, 0.0), 1.0)
+        nearest = min(nearest, math.hypot(px - (ax + t * dx), py - (ay + t * dy)))
+    return 0.0 if inside or nearest == 0.0 else nearest

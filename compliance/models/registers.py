@@ -10,6 +10,7 @@ from django.db.models import Q
 from django.utils import timezone
 
 from compliance.append_only import AppendOnlyModel
+from compliance.engineering.site_plan import distance_outside
 from compliance.models.people import Organisation, User
 from compliance.models.profiles import JurisdictionProfile
 from compliance.registers.bounds import (
@@ -141,6 +142,15 @@ class Anchor(models.Model):
                     "The site has no roof outline: a coordinate is at most "
                     f"{ANCHOR_FROM_ORIGIN_M:g} m from its origin."
                 )
+        if outline and not errors and self.x_m is not None and self.y_m is not None:
+            off = distance_outside(outline, (self.x_m, self.y_m))
+            if off is not None and off > reach:
+                words = (
+                    f"Off the roof: {f'{off:.1f}'.rstrip('0').rstrip('.')} m outside the roof"
+                    " outline; an anchor lies on the"
+                    f" roof or at most {reach:g} m beyond its edge."
+                )
+                errors = {"x_m": words, "y_m": words}
         if errors:
             raise ValidationError(errors)
 

@@ -208,7 +208,7 @@ def test_an_anchor_off_the_roof_outline_is_refused(job, supervisor, place, field
 
 def test_an_anchor_on_the_parapet_just_outside_the_outline_is_added(job, supervisor):
     site = SiteFactory(organisation=job.organisation, roof_outline=OUTLINE)
-    response = post_anchor(supervisor, site, x_m=35, y_m=-5)
+    response = post_anchor(supervisor, site, x_m=35, y_m=10)
     assert response.status_code == 201, response.content[:300]
 
 
@@ -333,3 +333,32 @@ def test_a_certification_dated_after_today_never_hides_the_one_in_force(job):
     anchor = Anchor.objects.get(pk=anchor.pk)
 
     assert anchor.current_certification() == in_force
+
+
+@pytest.mark.parametrize(
+    ("outline", "place", "off"),
+    [
+        (OUTLINE, {"x_m": 35, "y_m": -5}, "7.1"),  # within 5 m of each edge's line, 7.1 m out
+        (
+            [[0, 0], [40, 0], [40, 10], [10, 10], [10, 40], [0, 40]],
+            {"x_m": 30, "y_m": 30},
+            "20",
+        ),  # in the notch of an L-shaped roof
+    ],
+    ids=["beyond a corner", "in the notch"],
+)
+def test_an_anchor_more_than_5_m_off_the_roof_is_refused_whatever_its_box(
+    job, supervisor, outline, place, off
+):
+    """Checked per axis against the outline's bounding box, a point 7 m off a corner, or in
+    the notch of an L-shaped roof, was on the roof."""
+    site = SiteFactory(organisation=job.organisation, roof_outline=outline)
+    before = stored()
+    response = post_anchor(supervisor, site, **place)
+    assert response.status_code == 400, response.content[:300]
+    words = (
+        f"Off the roof: {off} m outside the roof outline; an anchor lies on the roof or at most"
+        " 5 m beyond its edge."
+    )
+    assert response.json() == {"x_m": [words], "y_m": [words]}
+    assert stored() == before
