@@ -113,8 +113,14 @@ def fill() -> None:
     from django.conf import settings
 
     settings.CELERY_TASK_ALWAYS_EAGER = False  # the sample needs no PDF
+    # Only the robot's checks are filled, so the day was never ready to start: it is signed
+    # as reviewed with exceptions, which costs the same to seal and sign.
     sample_record = sign_daily_record(
-        job=sample, by=boss, password=rig.PASSWORD, meaning="reviewed_safe"
+        job=sample,
+        by=boss,
+        password=rig.PASSWORD,
+        meaning="reviewed_exceptions",
+        remarks="Bench sample: only the robot's checks were filled.",
     )
     with connection.cursor() as cur:
         cur.execute(
