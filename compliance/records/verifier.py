@@ -604,6 +604,8 @@ def verify_export(
             raise ValueError("format")
         chains = list(manifest["chains"])
         exporter = manifest["exported_by"]
+        if not isinstance(exporter, dict) or not isinstance(exporter.get("id"), int):
+            raise ValueError("exported_by")
         site_id = manifest["site"]["id"]
         period = (
             dt.date.fromisoformat(manifest["period"]["start"]),
@@ -632,10 +634,7 @@ def verify_export(
     if (
         stored is not None
         and trust_for is not None
-        and (
-            not isinstance(exporter.get("id"), int)
-            or fingerprint not in trust_for(exporter["id"]).fingerprints
-        )
+        and fingerprint not in trust_for(exporter["id"]).fingerprints
     ):
         # Checked before anything stored is compared: a manifest anyone signed must not make
         # the server describe an organisation's records.
@@ -649,7 +648,7 @@ def verify_export(
     report.signer = Signer(
         subject=signer_cert.subject.human_friendly,
         fingerprint_sha256=fingerprint,
-        organisation=str(exporter.get("name", "")) if isinstance(exporter, dict) else "",
+        organisation=str(exporter.get("name", "")),
     )
     report.add(
         "manifest",
@@ -677,7 +676,7 @@ def verify_export(
     except (KeyError, TypeError, ValueError, AttributeError) as exc:
         report.add("chain_intact", False, f"A manifest entry is malformed ({type(exc).__name__}).")
         return report
-    if trust is None and trust_for is not None and isinstance(exporter.get("id"), int):
+    if trust is None and trust_for is not None:
         trust = trust_for(exporter["id"])
     check_trust(report, trust, False)
     return report

@@ -521,3 +521,25 @@ def test_a_manifest_not_signed_by_its_exporter_tells_nothing_of_the_stored_recor
     assert not report.ok
     assert [c.name for c in report.checks] == ["manifest"]
     assert "record" not in report.first_failure.detail
+
+
+@pytest.mark.parametrize("exported_by", ["Somebody", 7, None, ["x"]])
+def test_a_manifest_whose_exporter_is_no_object_is_refused_not_an_error(
+    building, settings, exported_by
+):
+    from compliance.records.sealing import merkle_root
+
+    _, first, second = building
+    manifest = {
+        "format": "parapet.export/3",
+        "exported_by": exported_by,
+        "site": {"id": first.site_id, "name": "?"},
+        "period": {"start": first.job.date.isoformat(), "end": first.job.date.isoformat()},
+        "chains": [],
+        "merkle_root": merkle_root([]),
+    }
+    members = [("manifest.json", b""), ("manifest.sig.json", b"")]
+    forged = _packed(_resigned(members, manifest, second.credential))
+
+    for report in (verify_export(forged, use_database=True), verify_export(forged)):
+        assert not report.ok
