@@ -43,16 +43,17 @@ def add_addendum_to(job) -> None:
 
 
 def row_counts() -> dict[str, int]:
-    """Rows in every table of the project's own apps, but the kept page checks: a verification
-    keeps its passed page comparison (a cache, compliance.models.PageCheck), which is not a
-    record and changes nothing an auditor reads."""
+    """Rows in every table of the project's own apps, but the kept page checks and the notes of
+    exports made: a verification keeps its passed page comparison (a cache,
+    compliance.models.PageCheck), and an export the server's note of it (ExportMade, counted on
+    its own below); neither is a record or changes anything an auditor reads."""
     from django.apps import apps
 
     return {
         model._meta.label: model.objects.count()
         for name in ("compliance", "checklists")
         for model in apps.get_app_config(name).get_models()
-        if model._meta.label != "compliance.PageCheck"
+        if model._meta.label not in ("compliance.PageCheck", "compliance.ExportMade")
     }
 
 
@@ -82,7 +83,7 @@ def api_paths(urls: list[str]) -> list[str]:
 
 
 def test_auditor_walks_a_month_checks_a_signed_day_and_exports_it(live_server, demo, page):
-    from compliance.models import DailyRecord, Job, Organisation, Site
+    from compliance.models import DailyRecord, ExportMade, Job, Organisation, Site
     from compliance.records.checks import verify_export, verify_pdf
 
     org = demo.organisation
@@ -315,8 +316,9 @@ def test_auditor_walks_a_month_checks_a_signed_day_and_exports_it(live_server, d
     axe_clean(page, "the auditor's export")
     desk_shot(page, "desk-auditor-export.png", top="[data-testid=export]")
 
-    # Reading, checking and exporting added nothing anywhere.
+    # Reading, checking and exporting added nothing anywhere, but the note of the one export.
     assert row_counts() == before_rows
+    assert ExportMade.objects.count() == 1
     assert Organisation.objects.get(pk=org.pk).name == org.name
     assert Site.objects.get(pk=site.pk).name == site.name
 
