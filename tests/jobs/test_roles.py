@@ -5,6 +5,7 @@ import pytest
 from django.urls import reverse
 
 from compliance.models import Job, JobTransition
+from tests.api.test_sync import site_record
 from tests.conftest import client_for
 from tests.factories import drop_body
 
@@ -66,24 +67,14 @@ def test_a_later_day_s_job_takes_no_pre_start_check_and_does_not_start(
     """A check made today says nothing of the rig tomorrow: a sheet sent for tomorrow's job
     (the phone lists planned days) was applied and counted as done for that day."""
     import datetime as dt
-    import uuid
 
     from django.utils import timezone
 
     from checklists.models import CheckSheet
-    from tests.conftest import PASSING
 
     job.date = timezone.localdate() + dt.timedelta(days=1)
     job.save()
-    record = {
-        "type": "sheet",
-        "client_uuid": str(uuid.uuid4()),
-        "data": {
-            "job": job.pk,
-            "version": simple_checklists["site"].pk,
-            "entries": PASSING["site"],
-        },
-    }
+    record = site_record(job, simple_checklists)
     client = client_for(operator)
 
     synced = client.post(reverse("sync"), {"records": [record]}, format="json")
