@@ -10,7 +10,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Final
 
-from . import arrest, decay, mass, suction, water, water_use, wind
+from . import arrest, decay, mass, suction, tag, water, water_use, wind
 from .calculation import Calculation, UnknownCalculation
 from .inputs import CalcInputError, Field
 from .result import CalcResult
@@ -25,6 +25,7 @@ CALCULATIONS: Final[dict[str, Calculation]] = {
         water.CALCULATION,
         mass.CALCULATION,
         water_use.CALCULATION,
+        tag.CALCULATION,
     )
 }
 

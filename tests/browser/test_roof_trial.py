@@ -164,12 +164,16 @@ def test_a_failed_anchor_check_holds_the_job_and_says_why_in_plain_words(live_se
     page.click("[data-testid=save]")
     page.wait_for_selector("[data-testid=requirements]")
     page.wait_for_selector("[data-testid=strip-waiting][data-count='0']")
-    assert Hold.objects.filter(job=job, clearance__isnull=True).count() == 1
+    # Two true things, one hold each: below the profile's minimum, and below the certificate
+    # (25 kN in the demo) every margin of the day relies on.
+    held = Hold.objects.filter(job=job, clearance__isnull=True)
+    assert sorted(h.item_key for h in held) == ["tag_agrees", "tag_capacity"]
     page.reload()
     page.wait_for_selector("[data-testid=hold-reason]")
     assert page.get_attribute("[data-state]", "data-state") == "held"
     reason = readable(page, "[data-testid=holds]")
     assert "20 kN is below the minimum of 22.2 kN." in reason
+    assert "The tag reads 20 kN but the anchor's certificate in the register rates it 25 kN" in reason
 
 
 def test_a_grip_shorter_than_the_rescue_holds_the_job_in_plain_figures(live_server, demo, page):

@@ -94,6 +94,12 @@ WATER_USE: dict[str, Any] = {
     "supply_l": 1000.0,
 }
 
+ANCHOR_TAG: dict[str, Any] = {
+    "tag_kn": 22.0,
+    "certified_kn": 22.2,
+    "rounding": 0.05,
+}
+
 BY_NAME: dict[str, dict[str, Any]] = {
     "suction-hold": SUCTION,
     "vacuum-decay": DECAY,
@@ -102,6 +108,7 @@ BY_NAME: dict[str, dict[str, Any]] = {
     "water-line": WATER,
     "suspended-mass": MASS,
     "water-use": WATER_USE,
+    "anchor-tag": ANCHOR_TAG,
 }
 
 

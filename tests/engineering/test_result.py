@@ -139,6 +139,7 @@ def test_calculation_names() -> None:
         "water-line",
         "suspended-mass",
         "water-use",
+        "anchor-tag",
     }
     for name, calc in CALCULATIONS.items():
         assert calc.name == name

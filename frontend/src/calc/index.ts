@@ -5,6 +5,7 @@ import { CalcInputError, UnknownCalculation } from "./errors";
 import { SUSPENDED_MASS } from "./mass";
 import type { CalcResult, Calculation } from "./result";
 import { SUCTION_HOLD } from "./suction";
+import { ANCHOR_TAG } from "./tag";
 import { WATER_LINE } from "./water";
 import { WATER_USE } from "./water_use";
 import { WIND_AT_HEIGHT } from "./wind";
@@ -13,7 +14,7 @@ export { CalcInputError, UnknownCalculation };
 export type { CalcResult };
 
 const CALCULATIONS: Record<string, Calculation> = Object.fromEntries(
-  [SUCTION_HOLD, VACUUM_DECAY, ARREST_LOAD, WIND_AT_HEIGHT, WATER_LINE, SUSPENDED_MASS, WATER_USE].map((c) => [c.name, c]),
+  [SUCTION_HOLD, VACUUM_DECAY, ARREST_LOAD, WIND_AT_HEIGHT, WATER_LINE, SUSPENDED_MASS, WATER_USE, ANCHOR_TAG].map((c) => [c.name, c]),
 );
 
 /** Run the calculation called `name`; throws UnknownCalculation or CalcInputError. */
