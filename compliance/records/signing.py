@@ -100,7 +100,9 @@ def create_self_signed(*, organisation: Organisation, days: int = 3650) -> Signi
         .serial_number(x509.random_serial_number())
         .not_valid_before(now - dt.timedelta(days=1))
         .not_valid_after(now + dt.timedelta(days=days))
-        .add_extension(x509.BasicConstraints(ca=True, path_length=None), critical=True)
+        # A signing certificate, never a CA: one that could sign certificates would vouch, in
+        # any trust list holding it, for a certificate its holder made naming someone else.
+        .add_extension(x509.BasicConstraints(ca=False, path_length=None), critical=True)
         .add_extension(
             x509.KeyUsage(
                 digital_signature=True,
@@ -108,7 +110,7 @@ def create_self_signed(*, organisation: Organisation, days: int = 3650) -> Signi
                 key_encipherment=False,
                 data_encipherment=False,
                 key_agreement=False,
-                key_cert_sign=True,
+                key_cert_sign=False,
                 crl_sign=False,
                 encipher_only=False,
                 decipher_only=False,

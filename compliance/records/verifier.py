@@ -135,11 +135,17 @@ class TrustList:
 
     @classmethod
     def from_pems(cls, pems: list[str], source: str) -> "TrustList":
-        """Certificates given as trusted: each is trusted itself and as a CA."""
+        """Certificates given as trusted: each is trusted itself, and a certificate authority's
+        also vouches for the certificates it issued. A document signer's certificate (one that
+        commits to content, as every organisation's signing certificate does) vouches only for
+        itself, even where it is marked a CA: Parapet's own were until December 2026, and another
+        contractor's, trusted beside the record's organisation's, would otherwise vouch for a
+        certificate its holder made naming that organisation."""
         certs = [c for pem in pems for c in _split_pems(pem)]
+        parsed = _certs(certs)
         return cls(
-            fingerprints=frozenset(hashlib.sha256(c.dump()).hexdigest() for c in _certs(certs)),
-            roots=tuple(certs),
+            fingerprints=frozenset(hashlib.sha256(c.dump()).hexdigest() for c in parsed),
+            roots=tuple(pem for pem, c in zip(certs, parsed, strict=True) if _issues_for_others(c)),
             source=source,
         )
 
@@ -158,6 +164,13 @@ class TrustList:
                 raise ValueError(f"not a SHA-256 fingerprint: {line.strip()!r}")
             prints.add(value)
         return cls(fingerprints=frozenset(prints), source=source)
+
+
+def _issues_for_others(cert: asn1_x509.Certificate) -> bool:
+    """Whether a trusted certificate is a certificate authority's: marked a CA, allowed to sign
+    certificates, and not committing to documents itself."""
+    usages = cert.key_usage_value.native if cert.key_usage_value else set()
+    return bool(cert.ca) and "key_cert_sign" in usages and "non_repudiation" not in usages
 
 
 def _split_pems(text: str) -> list[str]:

@@ -587,3 +587,142 @@ def test_the_command_prints_its_verdict_and_no_library_tracebacks(signed_pdf, tm
     assert run.returncode == 2, run.stderr[-1500:]
     assert "INTEGRITY INTACT, SIGNER NOT VOUCHED FOR" in run.stdout
     assert run.stderr == ""
+
+
+def _certificate(subject_org, *, issuer=None, ca, document_signer):
+    """A certificate and its key made here: `issuer` is (certificate, key) or None for a
+    self-signed one; `document_signer` asks the key usages Parapet's signing certificates carry
+    (content commitment, e-mail protection), `ca` the CA flag and certificate signing."""
+    import datetime as dt
+
+    from cryptography import x509
+    from cryptography.hazmat.primitives import hashes
+    from cryptography.hazmat.primitives.asymmetric import rsa
+    from cryptography.x509.oid import ExtendedKeyUsageOID, NameOID
+
+    key = rsa.generate_private_key(public_exponent=65537, key_size=2048)
+    name = x509.Name(
+        [
+            x509.NameAttribute(NameOID.COMMON_NAME, f"{subject_org} daily records"),
+            x509.NameAttribute(NameOID.ORGANIZATION_NAME, subject_org),
+        ]
+    )
+    issuer_cert, issuer_key = issuer if issuer else (None, key)
+    now = dt.datetime.now(dt.UTC)
+    builder = (
+        x509.CertificateBuilder()
+        .subject_name(name)
+        .issuer_name(issuer_cert.subject if issuer_cert else name)
+        .public_key(key.public_key())
+        .serial_number(x509.random_serial_number())
+        .not_valid_before(now - dt.timedelta(days=2))
+        .not_valid_after(now + dt.timedelta(days=365))
+        .add_extension(x509.BasicConstraints(ca=ca, path_length=None), critical=True)
+        .add_extension(
+            x509.KeyUsage(
+                digital_signature=document_signer,
+                content_commitment=document_signer,
+                key_encipherment=False,
+                data_encipherment=False,
+                key_agreement=False,
+                key_cert_sign=ca,
+                crl_sign=ca and not document_signer,
+                encipher_only=False,
+                decipher_only=False,
+            ),
+            critical=True,
+        )
+    )
+    if document_signer:
+        builder = builder.add_extension(
+            x509.ExtendedKeyUsage([ExtendedKeyUsageOID.EMAIL_PROTECTION]), critical=False
+        )
+    return builder.sign(issuer_key, hashes.SHA256()), key
+
+
+def _pem(cert):
+    from cryptography.hazmat.primitives import serialization
+
+    return cert.public_bytes(serialization.Encoding.PEM).decode()
+
+
+def _signed_with(pdf, cert, key):
+    """Signed as Parapet's signer does: the container holds the signing certificate alone (a
+    chain is built from the trust list)."""
+    from asn1crypto import keys as asn1_keys
+    from asn1crypto import x509 as asn1_x509
+    from cryptography.hazmat.primitives import serialization
+    from pyhanko.pdf_utils.incremental_writer import IncrementalPdfFileWriter
+    from pyhanko.sign import fields, signers
+    from pyhanko_certvalidator.registry import SimpleCertificateStore
+
+    def der(c):
+        return asn1_x509.Certificate.load(c.public_bytes(serialization.Encoding.DER))
+
+    signer = signers.SimpleSigner(
+        signing_cert=der(cert),
+        signing_key=asn1_keys.PrivateKeyInfo.load(
+            key.private_bytes(
+                serialization.Encoding.DER,
+                serialization.PrivateFormat.PKCS8,
+                serialization.NoEncryption(),
+            )
+        ),
+        cert_registry=SimpleCertificateStore.from_certs([der(cert)]),
+    )
+    meta = signers.PdfSignatureMetadata(
+        field_name="DailyRecordSignature",
+        name="x",
+        reason="x",
+        location="x",
+        subfilter=fields.SigSeedSubFilter.PADES,
+        md_algorithm="sha256",
+    )
+    writer = IncrementalPdfFileWriter(io.BytesIO(pdf))
+    return signers.PdfSigner(meta, signer=signer).sign_pdf(writer).getvalue()
+
+
+def test_another_organisations_trusted_certificate_cannot_vouch_for_a_certificate_it_made(signed):
+    """A second contractor at the building, whose own signing certificate the auditor trusts
+    (as PEM, beside the record's organisation's), makes a certificate naming the record's
+    organisation with its own key and signs an altered record with it. Parapet's signing
+    certificates were made as CAs until December 2026, so the second contractor's certificate
+    vouched for the one it made: VERIFIED offline."""
+    document = json.loads(signed.canonical_json)
+    document["remarks"] = "Re-written by another contractor."
+    seal = hashlib.sha256(rfc8785.dumps(document)).hexdigest()
+    organisation = signed.organisation.name
+    second = _certificate("Second Crew Ltd", ca=True, document_signer=True)
+    made, made_key = _certificate(organisation, issuer=second, ca=False, document_signer=True)
+    pdf = _signed_with(render(document, seal), made, made_key)
+    trusted = [signed.credential.certificate_pem, _pem(second[0])]
+
+    report = verify_pdf(pdf, trusted_pems=trusted, use_database=False)
+
+    assert not report.ok
+    assert failed(report) == "signer_vouched"
+    assert report.verdict().startswith("NOT VERIFIED")
+
+
+def test_a_certificate_authority_in_the_trust_list_still_vouches_for_what_it_issued(signed):
+    """A CA bundle (a CA that signs certificates and no documents) keeps its role: a record
+    signed with a certificate it issued to the record's organisation verifies offline."""
+    document = json.loads(signed.canonical_json)
+    authority = _certificate("Some Certification Authority", ca=True, document_signer=False)
+    issued, issued_key = _certificate(
+        signed.organisation.name, issuer=authority, ca=False, document_signer=True
+    )
+    pdf = _signed_with(render(document, signed.seal), issued, issued_key)
+
+    report = verify_pdf(pdf, trusted_pems=[_pem(authority[0])], use_database=False)
+
+    assert report.ok, report.verdict()
+
+
+def test_parapets_signing_certificates_are_not_certificate_authorities(job):
+    from cryptography import x509
+
+    credential = create_self_signed(organisation=job.organisation)
+    cert = x509.load_pem_x509_certificate(credential.certificate_pem.encode())
+    assert cert.extensions.get_extension_for_class(x509.BasicConstraints).value.ca is False
+    assert cert.extensions.get_extension_for_class(x509.KeyUsage).value.key_cert_sign is False
