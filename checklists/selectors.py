@@ -40,6 +40,15 @@ def fillable_versions(organisation_id: int | None) -> QuerySet[ChecklistVersion]
     )
 
 
+def superseded(version: ChecklistVersion) -> bool:
+    """Whether a newer version of the checklist is published."""
+    return ChecklistVersion.objects.filter(
+        checklist_id=version.checklist_id,
+        status=ChecklistVersion.Status.PUBLISHED,
+        number__gt=version.number,
+    ).exists()
+
+
 def current_versions(
     organisation_id: int | None, *, items: bool = True
 ) -> dict[str, list[ChecklistVersion]]:

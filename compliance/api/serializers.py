@@ -409,6 +409,9 @@ class RequirementSerializer(serializers.Serializer):
     satisfied = serializers.BooleanField()
     latest_sheet = serializers.IntegerField(allow_null=True)
     latest_verdict = serializers.CharField(allow_null=True)
+    latest_version = serializers.IntegerField(
+        allow_null=True, help_text="The version the newest sheet was filled against."
+    )
 
 
 class ReasonSerializer(serializers.Serializer):

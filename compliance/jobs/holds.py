@@ -21,6 +21,7 @@ from django.db.models import Q
 from django.utils import timezone
 
 from checklists.models import CheckSheet
+from checklists.selectors import superseded
 from checklists.verdicts import ItemResult
 from compliance.jobs.selectors import job_blockers, open_holds
 from compliance.models import (
@@ -94,10 +95,17 @@ def hold_for_failed_items(
 
 
 def clear_by_passing_sheet(*, job: Job, sheet: CheckSheet, by: User) -> None:
-    """A passing sheet clears the holds sheets opened on its requirement, and only those."""
-    for hold in Hold.objects.filter(
-        job=job, requirement=sheet.requirement, clearance__isnull=True, sheet__isnull=False
-    ):
+    """A passing sheet clears the holds sheets opened on its requirement, and only those, when
+    it was filled against the checklist's current version: an older one may lack the very item
+    that failed."""
+    holds = list(
+        Hold.objects.filter(
+            job=job, requirement=sheet.requirement, clearance__isnull=True, sheet__isnull=False
+        )
+    )
+    if not holds or superseded(sheet.version):
+        return
+    for hold in holds:
         HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
 
 

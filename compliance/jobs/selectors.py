@@ -56,6 +56,12 @@ class Requirement:
     satisfied: bool
     latest_sheet_id: int | None
     latest_verdict: str | None
+    latest_version_id: int | None = None
+    """The version the newest sheet was filled against: only the current one counts."""
+
+    @property
+    def outdated(self) -> bool:
+        return self.latest_version_id is not None and self.latest_version_id != self.version_id
 
     @property
     def key(self) -> str:
@@ -74,6 +80,7 @@ class Requirement:
             "satisfied": self.satisfied,
             "latest_sheet": self.latest_sheet_id,
             "latest_verdict": self.latest_verdict,
+            "latest_version": self.latest_version_id,
         }
 
 
@@ -134,9 +141,12 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     checklist_title=version.checklist.title,
                     version_id=version.pk,
                     subject=subject,
-                    satisfied=sheet is not None and sheet.blocking_failures == 0,
+                    satisfied=sheet is not None
+                    and sheet.version_id == version.pk
+                    and sheet.blocking_failures == 0,
                     latest_sheet_id=sheet.pk if sheet else None,
                     latest_verdict=sheet.verdict if sheet else None,
+                    latest_version_id=sheet.version_id if sheet else None,
                 )
             )
     return requirements
@@ -259,6 +269,15 @@ def job_blockers(
                 Reason(
                     "sheet_missing",
                     f"{req.checklist_title} for {req.subject.label} has not been done.",
+                    req.key,
+                )
+            )
+        elif req.outdated:
+            reasons.append(
+                Reason(
+                    "sheet_old_version",
+                    f"{req.checklist_title} for {req.subject.label} was filled against an older"
+                    " version of the checklist: fill it again against the current version.",
                     req.key,
                 )
             )

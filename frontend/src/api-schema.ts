@@ -1450,6 +1450,7 @@ export interface components {
             satisfied: boolean;
             latest_sheet: number | null;
             latest_verdict: string | null;
+            latest_version: number | null;
         };
         /** @enum {string} */
         ResultEnum: "pass" | "fail" | "none";

@@ -393,3 +393,51 @@ def test_a_default_replaced_by_an_own_checklist_takes_no_more_sheets(
     assert list(response.json()) == ["version"]
     requirement = next(r for r in job_requirements(job) if r.subject.anchor == anchor)
     assert not requirement.satisfied
+
+
+def test_a_sheet_against_an_older_version_neither_satisfies_nor_clears_a_hold(
+    job, simple_checklists, supervisor, operator
+):
+    """Version 2 of an own checklist adds a blocking item and its failure holds the job; a
+    passing sheet against version 1, which lacks the item, satisfied the requirement and
+    cleared the hold, and the job started."""
+    from compliance.jobs.selectors import job_blockers, job_requirements
+    from compliance.models import Hold
+
+    client, created = _own_of_default(supervisor)
+    first = [*simple_checklists["anchor"].items]
+    assert _publish(client, created.json()["id"], first).status_code == 200
+    second = _publish(client, created.json()["id"], [*first, tick("sling_tagged")])
+    assert second.status_code == 200, second.json()
+    v1, v2 = ChecklistVersion.objects.filter(checklist_id=created.json()["id"]).order_by("number")
+    anchor = job.drops.get().anchor
+
+    def sheet(version, entries):
+        return client_for(operator).post(
+            reverse("sheet-list"),
+            {"job": job.pk, "version": version.pk, "anchor": anchor.pk, "entries": entries},
+            format="json",
+        )
+
+    failed = sheet(v2, {**PASSING["anchor"], "sling_tagged": {"value": "fail"}})
+    assert failed.status_code == 201, failed.json()
+    assert failed.json()["verdict"] == "fail", failed.json()
+    assert Hold.objects.filter(job=job, clearance__isnull=True).count() == 1
+
+    older = sheet(v1, PASSING["anchor"])
+
+    assert older.status_code == 201, older.json()
+    assert older.json()["verdict"] == "pass"
+    assert Hold.objects.filter(job=job, clearance__isnull=True).count() == 1
+    requirement = next(r for r in job_requirements(job) if r.subject.anchor == anchor)
+    assert not requirement.satisfied
+    assert any(
+        r.code == "sheet_old_version" and "an older version" in r.message for r in job_blockers(job)
+    )
+
+    current = sheet(v2, {**PASSING["anchor"], "sling_tagged": {"value": "pass"}})
+
+    assert current.status_code == 201, current.json()
+    assert not Hold.objects.filter(job=job, clearance__isnull=True).exists()
+    requirement = next(r for r in job_requirements(job) if r.subject.anchor == anchor)
+    assert requirement.satisfied

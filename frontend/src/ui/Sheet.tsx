@@ -419,7 +419,11 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
       {draftState.other && <p class="note">{draftState.other}</p>}
       {req.latest_sheet !== null && (
         <p class="note" data-testid="sheet-done" data-verdict={req.latest_verdict ?? ""}>
-          {req.satisfied ? "Done: this check was saved and passed." : `Saved before, with the verdict ${req.latest_verdict ?? "unknown"}.`}{" "}
+          {req.satisfied
+            ? "Done: this check was saved and passed."
+            : req.latest_version !== null && req.latest_version !== req.version
+              ? "Saved before against an older version of this checklist: it does not count until filled again against this one."
+              : `Saved before, with the verdict ${req.latest_verdict ?? "unknown"}.`}{" "}
           What you fill in here is a new check: once saved, it is the one that counts.
         </p>
       )}
