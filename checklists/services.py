@@ -6,6 +6,7 @@ import json
 import math
 import uuid
 from collections.abc import Sequence
+from dataclasses import replace
 from operator import attrgetter
 from typing import Any
 
@@ -17,6 +18,7 @@ from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
 from checklists.selectors import UNKNOWN_VERSION
 from checklists.verdicts import EntryError, ItemResult, SheetOutcome, evaluate
+from compliance import clock
 from compliance.anchor_log.services import HeldChains, log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
@@ -338,31 +340,42 @@ def drop_place(site: Any, anchor: Anchor) -> dict[str, float]:
     }
 
 
+def served_drops(drops: list[Any], anchor: Anchor | None, equipment: Equipment | None) -> list[Any]:
+    """The drops a sheet's subject is part of: an anchor's or a piece of kit's, or every drop
+    for a site check (and the first drop when the subject is on none)."""
+    served = [
+        d
+        for d in drops
+        if (anchor is not None and anchor.pk in (d.anchor_id, d.safety_anchor_id))
+        or (
+            equipment is not None
+            and equipment.pk in (d.robot_id, d.tether_id, d.safety_line_id, d.hose_id)
+        )
+    ]
+    if served:
+        return served
+    if anchor is None and equipment is None:
+        return list(drops)
+    return drops[:1]
+
+
 def sheet_context(
     job: Job,
     subject_kind: str,
     anchor: Anchor | None,
     equipment: Equipment | None,
     drops: list[Any] | None = None,
+    drop: Any = None,
 ) -> dict[str, dict[str, Any]]:
-    """The numbers a sheet's limits and calculations may draw on."""
+    """The numbers a sheet's limits and calculations may draw on, for one drop (`drop`, else
+    the first its subject serves)."""
     profile = job.site.profile
     context: dict[str, dict[str, Any]] = {"profile": dict(profile.thresholds)}
     if equipment is not None:
         context["equipment"] = dict(equipment.ratings)
-    drops = drops_of(job) if drops is None else drops
-    drop = next(
-        (
-            d
-            for d in drops
-            if (anchor is not None and anchor.pk in (d.anchor_id, d.safety_anchor_id))
-            or (
-                equipment is not None
-                and equipment.pk in (d.robot_id, d.tether_id, d.safety_line_id, d.hose_id)
-            )
-        ),
-        drops[0] if drops else None,
-    )
+    if drop is None:
+        drops = drops_of(job) if drops is None else drops
+        drop = next(iter(served_drops(drops, anchor, equipment)), None)
     if drop is not None:
         for kind in ("robot", "tether", "safety_line", "hose"):
             context[kind] = dict(getattr(drop, kind).ratings)
@@ -378,6 +391,53 @@ def sheet_context(
     else:
         context["drop"] = {"height_m": job.site.height_m, "terrain": job.site.terrain}
     return context
+
+
+def evaluate_for_drops(
+    items: list[dict[str, Any]],
+    entries: dict[str, Any],
+    job: Job,
+    subject_kind: str,
+    anchor: Anchor | None,
+    equipment: Equipment | None,
+    drops: list[Any],
+) -> SheetOutcome:
+    """The sheet's verdicts against every drop its subject serves, the worse governing each
+    item: a safety line worked on a 10 m drop and a 114 m one is checked at both. An item whose
+    result depends on the drop names the drop that governed."""
+    served = served_drops(drops, anchor, equipment)
+    if len(served) < 2:
+        return evaluate(items, entries, sheet_context(job, subject_kind, anchor, equipment, drops))
+    outcomes = [
+        (
+            d.label,
+            evaluate(items, entries, sheet_context(job, subject_kind, anchor, equipment, drops, d)),
+        )
+        for d in served
+    ]
+    governing: list[ItemResult] = []
+    for index in range(len(outcomes[0][1].items)):
+        results = [(label, outcome.items[index]) for label, outcome in outcomes]
+        label, worst = min(results, key=lambda pair: _severity(pair[1]))
+        if all(r == worst for _, r in results):
+            governing.append(worst)
+            continue
+        working = {**worst.working, "drop": label}
+        if isinstance(working.get("steps"), list):
+            working["steps"] = [
+                f"drop {label} governs, the worse of the {len(served)} drops this serves",
+                *working["steps"],
+            ]
+        message = f"Drop {label}: {worst.message}" if worst.message else worst.message
+        governing.append(replace(worst, working=working, message=message))
+    return SheetOutcome(items=tuple(governing))
+
+
+def _severity(result: ItemResult) -> tuple[int, float]:
+    """Orders results worst first: a failure before a pass, then the smaller margin."""
+    failed = 0 if result.verdict == "fail" else 1
+    margin = result.margin if result.margin is not None else math.inf
+    return failed, margin
 
 
 def _subject_for(
@@ -452,6 +512,23 @@ def _insert_entries(sheet: CheckSheet, results: Sequence[ItemResult]) -> None:
             copy.write_row(row)
 
 
+def _made_on(
+    job: Job, device_time: dt.datetime | None, phone_clock_offset_s: int | None
+) -> dt.date:
+    """The day a sheet counts as made. Received on the job's day, that day (the phone's clock
+    may be wrong, and the record states it). Received on a later day, the phone's time of
+    filling, set right by how far its clock was off when it sent the batch: a sheet filled
+    offline on the roof and sent the next morning is the job's day's; one without a time of
+    filling, or filled on a later day, is not."""
+    today = clock.today()
+    if today <= job.date or device_time is None:
+        return today
+    try:
+        return timezone.localdate(device_time - dt.timedelta(seconds=phone_clock_offset_s or 0))
+    except OverflowError:
+        return timezone.localdate(device_time)
+
+
 def record_sheet(
     *,
     job: Job,
@@ -500,12 +577,14 @@ def record_sheet(
         raise ValidationError({"version": "Sheets can only be filled against a published version."})
     if job.state == JobState.CLOSED:
         raise InvalidTransition("This job is closed; its sheets can no longer change.")
-    if job.date > timezone.localdate():
-        # A check made today says nothing of the rig on a later day.
+    made_on = _made_on(job, device_time, phone_clock_offset_s)
+    if made_on != job.date:
+        # A check says nothing of the rig on another day: not a later day's (made today), nor
+        # a past day's (made days after the work it was to clear).
         raise ValidationError(
             {
                 "job": f"This job is for {job.date.isoformat()}: its pre-start checks are made on"
-                " its day."
+                f" its day, and this one was made on {made_on.isoformat()}."
             }
         )
     subject_kind = _subject_for(job, version, anchor, equipment)
@@ -519,8 +598,8 @@ def record_sheet(
     if not isinstance(entries, dict):
         raise ValidationError({"entries": "Entries are an object keyed by item key."})
     try:
-        outcome: SheetOutcome = evaluate(
-            version.items, entries, sheet_context(job, subject_kind, anchor, equipment, drops)
+        outcome = evaluate_for_drops(
+            version.items, entries, job, subject_kind, anchor, equipment, drops
         )
     except EntryError as exc:
         raise ValidationError({exc.field: exc.message}) from None

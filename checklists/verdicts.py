@@ -225,6 +225,21 @@ def _schedule_problems(
     return f"The test did not keep its schedule: {'; '.join(problems)}. Start it again."
 
 
+NEVER_BELOW_ZERO = frozenset({"m/s", "kPa", "kN", "kg", "s", "L/min", "L", "mm"})
+"""Units whose readings are never negative here: speeds, the gauge's vacuum and pressures,
+forces, masses, times, flows. A value below zero is a slipped sign (a gust of -20 m/s passed a
+maximum of 14), refused by name rather than judged. Lengths in m (a height may be below the
+supply) and temperatures are not in it."""
+
+
+def _never_below_zero(unit: str, value: float, given: str, field_path: str) -> None:
+    if unit in NEVER_BELOW_ZERO and value < 0:
+        raise EntryError(
+            field_path,
+            f"A reading in {unit} is never below zero: {value:g} {given} has a slipped sign.",
+        )
+
+
 def _check_limits(
     item: Mapping[str, Any],
     value: float,
@@ -421,6 +436,7 @@ def evaluate(
                 raise EntryError(f"{path}.value", str(exc)) from None
             except UnitMismatch as exc:
                 raise EntryError(f"{path}.unit", str(exc)) from None
+            _never_below_zero(item["unit"], number, given, f"{path}.value")
             readings[key] = number_si
             verdict, margin, message, used = _check_limits(
                 item, number_si, context, readings, outputs
@@ -458,6 +474,8 @@ def evaluate(
                 except UnitMismatch as exc:
                     raise EntryError(f"{path}.unit", str(exc)) from None
                 series_working["as_entered"] = {"value": value, "unit": given}
+            for index, (_, sample) in enumerate(samples):
+                _never_below_zero(item["unit"], sample, item["unit"], f"{path}.value[{index}]")
             readings[key] = samples
             problems = _schedule_problems(item, samples, context, readings, outputs)
             results.append(

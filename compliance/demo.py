@@ -11,6 +11,7 @@ from django.utils import timezone
 
 from checklists.selectors import current_versions
 from checklists.services import record_sheet
+from compliance import clock
 from compliance.anchor_log.services import record_entry
 from compliance.jobs import services
 from compliance.jobs.selectors import job_requirements
@@ -182,65 +183,71 @@ def load_demo(path: Path | None = None) -> Organisation:
     supervisor, operator = people["rhea"], people["tomas"]
     for day in data["days"]:
         date = today + dt.timedelta(days=day["offset"])
-        job = services.create_job(
-            site=site, date=date, supervisor=supervisor, by=supervisor, notes=day.get("remarks", "")
-        )
-        job.crew.set([operator, people["ana"]])
-        for label in day["drops"]:
-            d = drops[label]
-            services.add_drop(
+        # A past day goes through the same services and rules as a phone's, as on its day.
+        with clock.replaying(min(date, today)):
+            job = services.create_job(
+                site=site,
+                date=date,
+                supervisor=supervisor,
+                by=supervisor,
+                notes=day.get("remarks", ""),
+            )
+            job.crew.set([operator, people["ana"]])
+            for label in day["drops"]:
+                d = drops[label]
+                services.add_drop(
+                    job=job,
+                    by=supervisor,
+                    label=label,
+                    robot=kit[d["robot"]],
+                    anchor=anchors[d["anchor"]],
+                    safety_anchor=anchors[d["safety_anchor"]],
+                    tether=kit[d["tether"]],
+                    safety_line=kit[d["safety_line"]],
+                    hose=kit[d["hose"]],
+                    length_m=d["length_m"],
+                )
+            if not day.get("fill", True):
+                continue
+            _fill(job, operator, data["readings"])
+            services.start_job(job=job, by=operator)
+            failure = day.get("failure")
+            if failure:
+                robot = kit[failure["robot"]]
+                _fill(
+                    job,
+                    operator,
+                    data["readings"],
+                    only=failure["checklist"],
+                    equipment=robot,
+                    extra=failure["readings"],
+                    remarks=failure["remarks"],
+                )
+                _fill(
+                    job,
+                    operator,
+                    data["readings"],
+                    only=failure["checklist"],
+                    equipment=robot,
+                    remarks=day["repair"]["remarks"],
+                )
+                services.start_job(job=job, by=operator)
+            for label in day["done"]:
+                services.log_drop(
+                    drop=Drop.objects.get(job=job, label=label),
+                    by=operator,
+                    note="Drop cleaned top to bottom.",
+                )
+            services.close_job(job=job, by=supervisor)
+            if not day.get("sign", True):
+                continue  # left for the supervisor to sign at the desk
+            sign_daily_record(
                 job=job,
                 by=supervisor,
-                label=label,
-                robot=kit[d["robot"]],
-                anchor=anchors[d["anchor"]],
-                safety_anchor=anchors[d["safety_anchor"]],
-                tether=kit[d["tether"]],
-                safety_line=kit[d["safety_line"]],
-                hose=kit[d["hose"]],
-                length_m=d["length_m"],
+                password=data["password"],
+                meaning="reviewed_safe",
+                remarks=day.get("remarks", ""),
             )
-        if not day.get("fill", True):
-            continue
-        _fill(job, operator, data["readings"])
-        services.start_job(job=job, by=operator)
-        failure = day.get("failure")
-        if failure:
-            robot = kit[failure["robot"]]
-            _fill(
-                job,
-                operator,
-                data["readings"],
-                only=failure["checklist"],
-                equipment=robot,
-                extra=failure["readings"],
-                remarks=failure["remarks"],
-            )
-            _fill(
-                job,
-                operator,
-                data["readings"],
-                only=failure["checklist"],
-                equipment=robot,
-                remarks=day["repair"]["remarks"],
-            )
-            services.start_job(job=job, by=operator)
-        for label in day["done"]:
-            services.log_drop(
-                drop=Drop.objects.get(job=job, label=label),
-                by=operator,
-                note="Drop cleaned top to bottom.",
-            )
-        services.close_job(job=job, by=supervisor)
-        if not day.get("sign", True):
-            continue  # left for the supervisor to sign at the desk
-        sign_daily_record(
-            job=job,
-            by=supervisor,
-            password=data["password"],
-            meaning="reviewed_safe",
-            remarks=day.get("remarks", ""),
-        )
     return org
 
 

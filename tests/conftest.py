@@ -88,10 +88,19 @@ PASSING = {
 
 
 def fill_all(job: Job, versions: dict[str, ChecklistVersion], by, overrides: dict | None = None):
-    """Record a passing sheet for every requirement of the job (overrides per subject kind)."""
+    """Record a passing sheet for every requirement of the job (overrides per subject kind),
+    on the job's day when it has passed (a past day's checks are made on that day)."""
+    from django.utils import timezone
+
     from checklists.services import record_sheet
+    from compliance import clock
     from compliance.jobs.selectors import job_requirements
 
+    with clock.replaying(min(job.date, timezone.localdate())):
+        return _fill_all(job, versions, by, overrides, record_sheet, job_requirements)
+
+
+def _fill_all(job, versions, by, overrides, record_sheet, job_requirements):
     sheets = []
     for req in job_requirements(job):
         entries = dict(PASSING[req.subject.kind])

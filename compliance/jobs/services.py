@@ -6,10 +6,10 @@ from typing import Any
 
 from django.core.exceptions import ValidationError
 from django.db import transaction
-from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.verdicts import SheetOutcome
+from compliance import clock
 from compliance.errors import (
     InvalidTransition,
     JobBlocked,
@@ -50,6 +50,10 @@ def _require_planner(by: User, words: str = PLANNERS_ONLY) -> None:
 
 def create_job(*, site: Site, date: dt.date, supervisor: User, by: User, notes: str = "") -> Job:
     _require_planner(by)
+    if date < clock.today():
+        raise ValidationError(
+            {"date": f"{date.isoformat()} has passed: a job is planned for today or a later day."}
+        )
     if not can_work_at(by.organisation_id, site, date):
         raise ValidationError(
             {"site": "Your organisation has no access to this site on that date."}
@@ -139,9 +143,10 @@ def start_job(*, job: Job, by: User) -> Job:
             return job
         if job.state == JobState.CLOSED:
             raise InvalidTransition("This job is closed.")
-        if job.date > timezone.localdate():
+        if job.date != clock.today():
             raise InvalidTransition(
-                f"This job is for {job.date.isoformat()}: it starts on its day."
+                f"This job is for {job.date.isoformat()}: work starts on its day, not before"
+                " or after."
             )
         reasons = job_blockers(job)
         if reasons:

@@ -57,8 +57,29 @@ export function isEmptyDraft(draft: Draft): boolean {
   );
 }
 
+type PlannedDrop = JobDetail["drops"][number];
+
+/** The drops a sheet's subject is part of; mirrors checklists.services.served_drops. */
+function servedDrops(job: JobDetail, req: Requirement): PlannedDrop[] {
+  const served = job.drops.filter(
+    (d) =>
+      (req.anchor !== null && (d.anchor === req.anchor || d.safety_anchor === req.anchor)) ||
+      (req.equipment !== null && [d.robot, d.tether, d.safety_line, d.hose].includes(req.equipment)),
+  );
+  if (served.length) return served;
+  if (req.anchor === null && req.equipment === null) return [...job.drops];
+  return job.drops.slice(0, 1);
+}
+
+/** A context for each drop the subject serves, by the drop's label. */
+export function buildContexts(job: JobDetail, req: Requirement, ref: Reference | null): { label: string; context: Context }[] {
+  const served = servedDrops(job, req);
+  if (served.length < 2) return [{ label: served[0]?.label ?? "", context: buildContext(job, req, ref) }];
+  return served.map((d) => ({ label: d.label, context: buildContext(job, req, ref, d) }));
+}
+
 /** The numbers limits and calculations draw on; mirrors checklists.services.sheet_context. */
-export function buildContext(job: JobDetail, req: Requirement, ref: Reference | null): Context {
+function buildContext(job: JobDetail, req: Requirement, ref: Reference | null, only?: PlannedDrop): Context {
   const site = ref?.sites.find((s) => s.id === job.site);
   const profile = ref?.profiles.find((p) => p.key === site?.profile);
   const context: Context = {};
@@ -66,13 +87,7 @@ export function buildContext(job: JobDetail, req: Requirement, ref: Reference | 
   const kit = (id: number | null) => ref?.equipment.find((e) => e.id === id);
   const equipment = kit(req.equipment);
   if (equipment) context.equipment = { ...equipment.ratings };
-  const drop =
-    job.drops.find(
-      (d) =>
-        (req.anchor !== null && (d.anchor === req.anchor || d.safety_anchor === req.anchor)) ||
-        (req.equipment !== null &&
-          [d.robot, d.tether, d.safety_line, d.hose].includes(req.equipment)),
-    ) ?? job.drops[0];
+  const drop = only ?? servedDrops(job, req)[0];
   const terrain = site?.terrain;
   if (drop) {
     for (const kind of ["robot", "tether", "safety_line", "hose"] as const) {
@@ -413,6 +428,29 @@ export function committedDraft(draft: Draft, steady: Record<string, Steady>): Dr
   return { ...draft, readings };
 }
 
+const NEVER_BELOW_ZERO = new Set(["m/s", "kPa", "kN", "kg", "s", "L/min", "L", "mm"]);
+
+const SEVERITY: Partial<Record<LocalVerdict, number>> = { fail: 0, unknown: 1, missing: 1 };
+
+/** The draft judged against every drop its subject serves, the worse governing each item
+ * (mirrors checklists.services.evaluate_for_drops): a line on a 10 m and a 114 m drop is
+ * checked at both, and a result that differs by drop names the drop that governed. */
+export function evaluateForDrops(items: ChecklistItem[], draft: Draft, contexts: { label: string; context: Context }[]): ItemView[] {
+  const all = contexts.map(({ label, context }) => ({ label, views: evaluateDraft(items, draft, context) }));
+  if (all.length < 2) return all[0]?.views ?? [];
+  return all[0]!.views.map((_, index) => {
+    const options = all.map(({ label, views }) => ({ label, view: views[index]! }));
+    const rank = (v: ItemView) => [SEVERITY[v.verdict] ?? 2, v.margin ?? Infinity] as const;
+    const worst = options.reduce((a, b) => {
+      const [ra, rb] = [rank(a.view), rank(b.view)];
+      return rb[0] < ra[0] || (rb[0] === ra[0] && rb[1] < ra[1]) ? b : a;
+    });
+    const same = options.every((o) => o.view.verdict === worst.view.verdict && o.view.margin === worst.view.margin && o.view.message === worst.view.message);
+    if (same) return worst.view;
+    return { ...worst.view, message: worst.view.message ? `Drop ${worst.label}: ${worst.view.message}` : "" };
+  });
+}
+
 /** Every item in order with what the phone can say about it now. */
 export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Context): ItemView[] {
   const labels = Object.fromEntries(items.map((i) => [i.key, i.label]));
@@ -446,6 +484,11 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
           const notANumber = item.unit ? `Not a number: type the figure alone, in ${item.unit}.` : "Not a number.";
           const message = !text.trim() ? "" : tooLarge ? "Too large a number." : notANumber;
           views.push({ ...base, verdict: "missing", message });
+          break;
+        }
+        if (value < 0 && item.unit && NEVER_BELOW_ZERO.has(item.unit)) {
+          // A slipped sign: the server refuses it by name (checklists.verdicts.NEVER_BELOW_ZERO).
+          views.push({ ...base, verdict: "missing", message: `A reading in ${item.unit} is never below zero: check the sign.` });
           break;
         }
         readings[item.key] = value;

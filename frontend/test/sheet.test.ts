@@ -8,6 +8,7 @@ import {
   dropPlace,
   emptyDraft,
   evaluateDraft,
+  evaluateForDrops,
   ordered,
   parseDecimal,
   readingLate,
@@ -58,6 +59,25 @@ describe("parseDecimal", () => {
 describe("anchor sheet", () => {
   const items = checklist("anchor-pre-use");
 
+  it("judges a subject on two drops against the worse and names that drop", () => {
+    // The same reading against two contexts that differ only in what the drop brings: the
+    // worse result governs and says which drop it came from; an item alike on both says none.
+    const draft = emptyDraft();
+    draft.ticks = { tag_matches_register: "pass", visual_condition: "pass", fixings_tight: "pass", membrane_sound: "pass" };
+    draft.readings = { tag_capacity: "22" };
+    const on = (kn: number): Context => ({ ...context, anchor: { rated_capacity_kn: kn } });
+    const views = evaluateForDrops(items, draft, [
+      { label: "East 1", context: on(22) },
+      { label: "East 2", context: on(30) },
+    ]);
+    const agrees = views.find((v) => v.item.key === "tag_agrees")!;
+    expect(agrees.verdict).toBe("fail");
+    expect(agrees.message).toMatch(/^Drop East 2: The tag reads 22 kN but the anchor's certificate in the register rates it 30 kN/);
+    const capacity = views.find((v) => v.item.key === "tag_capacity")!;
+    expect(capacity.verdict).toBe("pass");
+    expect(capacity.message).toBe("");
+  });
+
   it("describes a profile limit with its number when known, else by its source", () => {
     const capacity = items.find((i) => i.key === "tag_capacity")!;
     expect(describeLimits(capacity, context)).toEqual([
@@ -80,6 +100,19 @@ describe("anchor sheet", () => {
     expect(failed.map((v) => v.item.key)).toEqual(["tag_capacity", "visual_condition"]);
     expect(rest[0]!.item.key).toBe("tag_matches_register");
     expect(stillNeeded(views)).toEqual([]);
+  });
+
+  it("asks again for a reading below zero where none can be", () => {
+    // A gust of -20 m/s passed a maximum; the phone asks for the sign to be checked and the
+    // server refuses it by name.
+    const weather = checklist("weather");
+    const draft = emptyDraft();
+    draft.readings = { roof_gust: "-20", roof_wind: "8" };
+    const views = evaluateDraft(weather, draft, { ...context, profile: { ...context.profile, max_gust_ms: { value: 18 }, max_wind_ms: { value: 14 } } });
+    const gust = views.find((v) => v.item.key === "roof_gust")!;
+    expect(gust.verdict).toBe("missing");
+    expect(gust.message).toBe("A reading in m/s is never below zero: check the sign.");
+    expect(views.find((v) => v.item.key === "roof_wind")!.verdict).toBe("pass");
   });
 
   it("says which unit to type a reading in when its unit was typed with it", () => {

@@ -31,6 +31,7 @@ from rest_framework.test import APIClient
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet
 from checklists.services import create_draft, record_sheet
+from compliance import clock
 from compliance.anchor_log.services import record_entry, verify_log_chain
 from compliance.jobs.services import close_job, pause_job, start_job
 from compliance.models import (
@@ -177,9 +178,10 @@ def finished_day(
     )
     make_drop(day, label=f"D{n}")
     make_drop(day, label=f"E{n}")
-    fill_all(day, versions, operator)
-    start_job(job=day, by=operator)
-    close_job(job=day, by=operator)
+    with clock.replaying(day.date):
+        fill_all(day, versions, operator)
+        start_job(job=day, by=operator)
+        close_job(job=day, by=operator)
     return day
 
 

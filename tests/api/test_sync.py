@@ -23,7 +23,8 @@ def sheet_record(job, version, entries, subject=None, key=None):
         "job": job.pk,
         "version": version.pk,
         "entries": entries,
-        "device_time": "2026-12-02T07:05:00+01:00",
+        # Filled in the morning of the job's day, on a phone an hour ahead of UTC.
+        "device_time": f"{job.date.isoformat()}T07:05:00+01:00",
     }
     if subject is not None and subject.anchor is not None:
         data["anchor"] = subject.anchor.pk
@@ -54,7 +55,7 @@ def test_a_batch_applies_and_reports_per_record(job, simple_checklists, operator
     assert {"id": job.pk, "state": "planned", "date": job.date.isoformat()} in body["jobs"]
     assert body["server_time"]
     sheet = CheckSheet.objects.get(client_uuid=good["client_uuid"])
-    assert sheet.device_time.isoformat() == "2026-12-02T06:05:00+00:00"
+    assert sheet.device_time.isoformat() == f"{job.date.isoformat()}T06:05:00+00:00"
 
 
 def test_a_retried_batch_changes_nothing(job, simple_checklists, operator):

@@ -127,3 +127,67 @@ def test_demo_command_loads_and_prints_logins(capsys, tmp_path, settings):
     call_command("demo", "--no-serve")
     out = capsys.readouterr().out
     assert "tomas" in out and "parapet-demo-2026" in out and "does not replace" in out
+
+
+def _two_drop_job(demo, first_length, second_length):
+    """Today's second job at the demo's tower: one robot with its tether, safety line and hose
+    worked on two drops, the first `first_length` and the second `second_length` long."""
+    from compliance.jobs import services
+    from compliance.models import Anchor, Equipment, Site
+
+    site = Site.objects.get(name="Larkfield Tower")
+    rhea = User.objects.get(username="rhea")
+    kit = {e.label: e for e in Equipment.objects.filter(organisation=demo)}
+    anchors = {a.label: a for a in Anchor.objects.filter(site=site)}
+    job = services.create_job(site=site, date=timezone.localdate(), supervisor=rhea, by=rhea)
+    for label, (anchor, safety), length in (
+        ("South 1", ("R5", "R6"), first_length),
+        ("South 2", ("R7", "R8"), second_length),
+    ):
+        services.add_drop(
+            job=job,
+            by=rhea,
+            label=label,
+            robot=kit["RB-3"],
+            anchor=anchors[anchor],
+            safety_anchor=anchors[safety],
+            tether=kit["T-3"],
+            safety_line=kit["S-3"],
+            hose=kit["H-3"],
+            length_m=length,
+        )
+    return job, kit
+
+
+def test_kit_on_two_drops_is_checked_against_the_worse_one(demo):
+    """The arrest check of a safety line worked on a 10 m drop and then a 114 m one was made at
+    10 m only (the first drop it was found on): a clearance that stops a fall on the short line
+    and not on the long one passed, and the job cleared."""
+    import json
+
+    from checklists.selectors import current_versions
+    from checklists.services import record_sheet
+    from compliance.demo import _entries, scenario_path
+
+    job, kit = _two_drop_job(demo, 10.0, 114.0)
+    readings = json.loads(scenario_path().read_text())["readings"]["safety-line-pre-use"]
+    version = next(
+        v
+        for vs in current_versions(demo.pk).values()
+        for v in vs
+        if v.checklist.key == "safety-line-pre-use"
+    )
+    sheet, _ = record_sheet(
+        job=job,
+        version=version,
+        by=User.objects.get(username="tomas"),
+        entries=_entries(version.items, {**readings, "clearance_below": 0.8}),
+        equipment=kit["S-3"],
+    )
+
+    arrest = sheet.entries.get(item_key="arrest")
+    assert arrest.verdict == "fail"
+    assert arrest.working["drop"] == "South 2"
+    assert arrest.working["inputs"]["line_length_m"] == 114.0
+    assert arrest.message.startswith("Drop South 2: ")
+    assert Hold.objects.filter(job=job, item_key="arrest", clearance__isnull=True).exists()

@@ -15,6 +15,14 @@ VACUUM = {
     "unit": "kPa",
     "limits": {"min": {"profile": "min_vacuum_kpa"}},
 }
+GUST = {
+    "key": "gust",
+    "kind": "reading",
+    "label": "Gust on the roof",
+    "blocking": True,
+    "unit": "m/s",
+    "limits": {"max": {"value": 14}},
+}
 SERIES = {
     "key": "decay",
     "kind": "series",
@@ -75,6 +83,33 @@ def refusal(items, entries, context=PROFILE) -> EntryError:
             {"vacuum": {"value": 1e307, "unit": "bar"}},
             "entries.vacuum.value",
             "beyond the largest",
+        ),
+        # A slipped minus sign: a gust of -20 m/s passed the profile's maximum, and a hose
+        # pressure of -500 kPa its rating. Speeds, pressures, forces, masses and times are never
+        # below zero.
+        (
+            [GUST],
+            {"gust": {"value": -20, "unit": "m/s"}},
+            "entries.gust.value",
+            "A reading in m/s is never below zero: -20 m/s has a slipped sign.",
+        ),
+        (
+            [GUST],
+            {"gust": {"value": -36, "unit": "km/h"}},
+            "entries.gust.value",
+            "-36 km/h has a slipped sign",
+        ),
+        (
+            [VACUUM],
+            {"vacuum": {"value": -62}},
+            "entries.vacuum.value",
+            "A reading in kPa is never below zero",
+        ),
+        (
+            [SERIES],
+            {"decay": {"value": [[0, 62], [30, -61], [60, 60]]}},
+            "entries.decay.value[1]",
+            "A reading in kPa is never below zero",
         ),
         (
             [SERIES],

@@ -75,6 +75,7 @@ def test_a_later_day_s_job_takes_no_pre_start_check_and_does_not_start(
     job.date = timezone.localdate() + dt.timedelta(days=1)
     job.save()
     record = site_record(job, simple_checklists)
+    record["data"]["device_time"] = timezone.now().isoformat()
     client = client_for(operator)
 
     synced = client.post(reverse("sync"), {"records": [record]}, format="json")
@@ -82,13 +83,99 @@ def test_a_later_day_s_job_takes_no_pre_start_check_and_does_not_start(
 
     result = synced.json()["results"][0]
     assert result["status"] == "rejected", result
-    words = f"This job is for {job.date.isoformat()}: its pre-start checks are made on its day."
+    words = (
+        f"This job is for {job.date.isoformat()}: its pre-start checks are made on its day, and"
+        f" this one was made on {timezone.localdate().isoformat()}."
+    )
     assert result["errors"] == {"job": [words]}
     assert not CheckSheet.objects.filter(job=job).exists()
     assert started.status_code == 409
     assert started.json()["detail"] == (
-        f"This job is for {job.date.isoformat()}: it starts on its day."
+        f"This job is for {job.date.isoformat()}: work starts on its day, not before or after."
     )
+
+
+def test_a_past_day_is_not_planned(job, supervisor):
+    """A job planned days after its date could then be checked, started and signed 'checked
+    and safe' as if the work had been cleared on its day."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    past = timezone.localdate() - dt.timedelta(days=4)
+    before = Job.objects.count()
+
+    response = client_for(supervisor).post(
+        reverse("job-list"),
+        {"site": job.site_id, "date": past.isoformat(), "supervisor": supervisor.pk},
+        format="json",
+    )
+
+    assert response.status_code == 400, response.json()
+    assert response.json() == {
+        "date": [f"{past.isoformat()} has passed: a job is planned for today or a later day."]
+    }
+    assert Job.objects.count() == before
+
+
+def test_a_past_day_s_job_takes_no_check_made_today_and_does_not_start(
+    job, simple_checklists, operator
+):
+    """A job of four days ago (planned then, never started) took today's checks, started and
+    was signed as safe; the owner's log book dated today's anchor checks four days back."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from checklists.models import CheckSheet
+    from compliance.models import AnchorLogEntry
+
+    job.date = timezone.localdate() - dt.timedelta(days=4)
+    job.save()
+    client = client_for(operator)
+    record = site_record(job, simple_checklists)
+    record["data"]["device_time"] = timezone.now().isoformat()
+
+    synced = client.post(reverse("sync"), {"records": [record]}, format="json")
+    started = client.post(reverse("job-start", args=[job.pk]))
+
+    result = synced.json()["results"][0]
+    assert result["status"] == "rejected", result
+    assert result["errors"] == {
+        "job": [
+            f"This job is for {job.date.isoformat()}: its pre-start checks are made on its day,"
+            f" and this one was made on {timezone.localdate().isoformat()}."
+        ]
+    }
+    assert not CheckSheet.objects.filter(job=job).exists()
+    assert not AnchorLogEntry.objects.filter(performed_on=job.date).exists()
+    assert started.status_code == 409
+    assert started.json()["detail"] == (
+        f"This job is for {job.date.isoformat()}: work starts on its day, not before or after."
+    )
+
+
+def test_a_check_filled_offline_on_the_job_s_day_is_taken_the_day_after(
+    job, simple_checklists, operator
+):
+    """No signal on the roof all day: yesterday's sheet reaches the server this morning with
+    the phone's time of filling, and counts for yesterday's job."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from checklists.models import CheckSheet
+
+    job.date = timezone.localdate() - dt.timedelta(days=1)
+    job.save()
+    record = site_record(job, simple_checklists)
+    filled = timezone.now() - dt.timedelta(days=1)
+    record["data"]["device_time"] = filled.isoformat()
+
+    synced = client_for(operator).post(reverse("sync"), {"records": [record]}, format="json")
+
+    assert synced.json()["results"][0]["status"] == "applied", synced.json()
+    assert CheckSheet.objects.filter(job=job).count() == 1
 
 
 def test_a_held_job_that_never_started_is_closed_by_a_supervisor_only(

@@ -1,5 +1,6 @@
 import pytest
 
+from compliance import clock
 from compliance.jobs.services import close_job, start_job
 from compliance.records.services import sign_daily_record
 from compliance.records.signing import create_self_signed
@@ -25,13 +26,20 @@ def credential(job):
     return create_self_signed(organisation=job.organisation)
 
 
-@pytest.fixture
-def closed_job(job, simple_checklists, operator, credential):
-    fill_all(job, simple_checklists, operator)
-    start_job(job=job, by=operator)
-    close_job(job=job, by=operator)
+def work_the_day(job, versions, operator):
+    """The day's checks, start and close, as on the job's day (checks are made and work starts
+    on a job's day)."""
+    with clock.replaying(job.date):
+        fill_all(job, versions, operator)
+        start_job(job=job, by=operator)
+        close_job(job=job, by=operator)
     job.refresh_from_db()
     return job
+
+
+@pytest.fixture
+def closed_job(job, simple_checklists, operator, credential):
+    return work_the_day(job, simple_checklists, operator)
 
 
 def next_day_job(job, simple_checklists, operator, days=1):
@@ -41,11 +49,7 @@ def next_day_job(job, simple_checklists, operator, days=1):
         site=job.site, supervisor=job.supervisor, date=job.date + dt.timedelta(days=days)
     )
     make_drop(other)
-    fill_all(other, simple_checklists, operator)
-    start_job(job=other, by=operator)
-    close_job(job=other, by=operator)
-    other.refresh_from_db()
-    return other
+    return work_the_day(other, simple_checklists, operator)
 
 
 @pytest.fixture

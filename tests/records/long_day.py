@@ -3,6 +3,7 @@
 import math
 
 from checklists.services import record_sheet
+from compliance import clock
 from compliance.jobs.services import close_job, start_job
 from compliance.models import Job
 from tests.conftest import PASSING, fill_all
@@ -73,8 +74,11 @@ def long_day(job: Job, versions: dict, by, *, note: str | None = None, samples=N
         "crew_note": {"value": long_note() if note is None else note},
     }
     fill_all(job, versions, by)
-    record_sheet(job=job, version=robot, by=by, entries=entries, equipment=job.drops.first().robot)
-    start_job(job=job, by=by)
-    close_job(job=job, by=by)
+    with clock.replaying(job.date):
+        record_sheet(
+            job=job, version=robot, by=by, entries=entries, equipment=job.drops.first().robot
+        )
+        start_job(job=job, by=by)
+        close_job(job=job, by=by)
     job.refresh_from_db()
     return job

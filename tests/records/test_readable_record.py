@@ -11,6 +11,7 @@ import pytest
 from django.conf import settings as django_settings
 from pypdf import PdfReader
 
+from compliance import clock
 from compliance.models import Hold
 from compliance.records import pdf as record_pdf
 from compliance.records import services as daily_records
@@ -87,8 +88,9 @@ def signed_in_format(fmt, job, checklists, operator, supervisor, monkeypatch):
     from compliance.jobs.services import close_job, start_job
 
     fill_all(job, checklists, operator)
-    start_job(job=job, by=operator)
-    close_job(job=job, by=operator)
+    with clock.replaying(job.date):
+        start_job(job=job, by=operator)
+        close_job(job=job, by=operator)
     with monkeypatch.context() as patched:
         patched.setattr(daily_records, "FORMAT", fmt)
         record = sign_daily_record(

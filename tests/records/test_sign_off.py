@@ -9,6 +9,7 @@ from django.test import RequestFactory
 from django.urls import reverse
 
 from checklists.services import record_sheet
+from compliance import clock
 from compliance.append_only import AppendOnlyViolation
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import DailyRecord
@@ -88,12 +89,13 @@ def test_a_working_job_cannot_be_signed(job, simple_checklists, operator, superv
 def test_a_held_job_is_signed_only_with_its_hold_shown(
     job, simple_checklists, operator, supervisor, credential
 ):
-    record_sheet(
-        job=job,
-        version=simple_checklists["site"],
-        by=operator,
-        entries={**PASSING["site"], "zone_closed": {"value": "fail"}},
-    )
+    with clock.replaying(job.date):
+        record_sheet(
+            job=job,
+            version=simple_checklists["site"],
+            by=operator,
+            entries={**PASSING["site"], "zone_closed": {"value": "fail"}},
+        )
     job.refresh_from_db()
     assert job.state == "held"
     with pytest.raises(InvalidTransition, match="open holds"):
@@ -220,20 +222,21 @@ def test_a_wrong_phone_clock_is_stated_in_the_record(
     sheets = []
     from compliance.jobs.selectors import job_requirements
 
-    for req in job_requirements(job):
-        entries = PASSING[req.subject.kind]
-        sheet, _ = record_sheet(
-            job=job,
-            version=simple_checklists[req.subject.kind],
-            by=operator,
-            entries=entries,
-            anchor=req.subject.anchor,
-            equipment=req.subject.equipment,
-            device_time=ahead if req.subject.kind == "site" else None,
-        )
-        sheets.append(sheet)
-    start_job(job=job, by=operator)
-    close_job(job=job, by=operator)
+    with clock.replaying(job.date):
+        for req in job_requirements(job):
+            entries = PASSING[req.subject.kind]
+            sheet, _ = record_sheet(
+                job=job,
+                version=simple_checklists[req.subject.kind],
+                by=operator,
+                entries=entries,
+                anchor=req.subject.anchor,
+                equipment=req.subject.equipment,
+                device_time=ahead if req.subject.kind == "site" else None,
+            )
+            sheets.append(sheet)
+        start_job(job=job, by=operator)
+        close_job(job=job, by=operator)
     record = sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
     content = json.loads(record.canonical_json)["record"]
     site_sheet = next(s for s in content["sheets"] if s["subject_kind"] == "site")
@@ -308,9 +311,10 @@ def _day(job, simple_checklists, operator, days: int, drops: int):
     )
     for n in range(drops):
         make_drop(day, label=f"D{n + 1}")
-    fill_all(day, simple_checklists, operator)
-    start_job(job=day, by=operator)
-    close_job(job=day, by=operator)
+    with clock.replaying(day.date):
+        fill_all(day, simple_checklists, operator)
+        start_job(job=day, by=operator)
+        close_job(job=day, by=operator)
     day.refresh_from_db()
     return day
 

@@ -72,6 +72,8 @@ def test_a_batch_with_two_anchor_checks_decrypts_the_key_at_most_once(
                 "version": simple_checklists["anchor"].pk,
                 "anchor": req.subject.anchor.pk,
                 "entries": PASSING["anchor"],
+                # Filled offline on the job's day, sent now.
+                "device_time": f"{job.date.isoformat()}T09:00:00+00:00",
             },
         }
         for req in job_requirements(job)

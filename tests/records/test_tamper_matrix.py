@@ -14,6 +14,7 @@ import subprocess
 import pytest
 from django.db import connection
 
+from compliance import clock
 from compliance.models import DailyRecord, Equipment, RecordChainHead, SiteGrant
 from compliance.records.checks import verify_pdf
 from compliance.records.files import render_signed_pdf
@@ -318,8 +319,9 @@ def test_two_contractors_at_one_building_keep_separate_chains(
     fill_all(theirs, simple_checklists, crew)
     from compliance.jobs.services import close_job, start_job
 
-    start_job(job=theirs, by=crew)
-    close_job(job=theirs, by=crew)
+    with clock.replaying(theirs.date):
+        start_job(job=theirs, by=crew)
+        close_job(job=theirs, by=crew)
     record = sign_daily_record(job=theirs, by=boss, password=PASSWORD, meaning="reviewed_safe")
     assert (record.sequence, record.previous_seal) == (1, "")
     assert (signed.sequence, signed.previous_seal) == (1, "")

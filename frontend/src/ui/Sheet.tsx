@@ -2,10 +2,10 @@ import { useEffect, useMemo, useRef, useState } from "preact/hooks";
 import { loadJob, loadReference, loadVersions } from "../repo";
 import { enqueue } from "../outbox";
 import {
-  buildContext,
+  buildContexts,
   committedDraft,
   emptyDraft,
-  evaluateDraft,
+  evaluateForDrops,
   isEmptyDraft,
   localVerdict,
   nearLimit,
@@ -79,10 +79,11 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const version =
     versions?.find((v) => v.id === req?.version) ??
     versions?.filter((v) => v.checklist === req?.checklist).sort((a, b) => b.number - a.number)[0];
-  const context = useMemo(() => (job && req ? buildContext(job, req, reference) : {}), [job, req, reference]);
+  const contexts = useMemo(() => (job && req ? buildContexts(job, req, reference) : []), [job, req, reference]);
+  const context = contexts[0]?.context ?? {};
   const views = useMemo(
-    () => (version ? evaluateDraft(version.items, committedDraft(draft, steady), context) : []),
-    [version, draft, steady, context],
+    () => (version ? evaluateForDrops(version.items, committedDraft(draft, steady), contexts) : []),
+    [version, draft, steady, contexts],
   );
 
   useEffect(() => {
@@ -238,7 +239,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     if (!job || !req || !version) return;
     setTried(true);
     // Judged on everything typed, a field still being typed in included.
-    const live = evaluateDraft(version.items, draft, context);
+    const live = evaluateForDrops(version.items, draft, contexts);
     const missing = stillNeeded(live);
     if (missing.length) {
       document.getElementById(`item-${missing[0]!.item.key}`)?.scrollIntoView({ block: "center" });
