@@ -106,6 +106,9 @@ const LABELS: Record<string, string> = {
   shear_demand_n: "Load along the wall",
   outward_limit_n: "Outward pull the grip can take",
   min_vacuum_kpa: "Least vacuum that holds",
+  stop_work_pressure_pa: "Wind pressure at the stop-work gust",
+  pressure_used_pa: "Wind pressure the hold is checked at",
+  wind_governing: "Wind the hold is checked at",
 };
 
 /** The unit a key's suffix names, and the key without it. */

@@ -132,6 +132,17 @@ describe("vacuum hold sheet", () => {
     expect(short.find((v) => v.item.key === "decay_test")!.verdict).toBe("missing");
   });
 
+  it("checks the hold at the robot's stop-work gust, however calm the reading typed", () => {
+    // 15 m/s at working height: qp = ½ × 1.225 × 15² = 137.8 Pa (EN 1991-1-4 4.5's ½ρv², hand).
+    // At 22 kPa the robot holds in still air (least about 20.1 kPa) but not at that gust (23.2 kPa).
+    const calm = { ...draft, readings: { ...draft.readings, working_vacuum: "22", roof_wind: "0" } };
+    const hold = evaluateDraft(items, calm, context).find((v) => v.item.key === "hold_margin")!;
+    expect(hold.verdict).toBe("fail");
+    expect(hold.calc!.outputs.wind_governing).toBe("stop-work gust");
+    expect(hold.calc!.outputs.pressure_used_pa).toBeCloseTo(0.5 * 1.225 * 15 ** 2, 10);
+    expect(hold.calc!.steps[0]).toMatch(/the stop-work gust governs, since work goes on until it$/);
+  });
+
   it("leaves a calculation to the server when a rating is unknown on the phone", () => {
     const views = evaluateDraft(items, draft, { ...context, drop: { height_m: 150 } });
     expect(views.find((v) => v.item.key === "wind_load")!.verdict).toBe("unknown");

@@ -237,3 +237,23 @@ def test_a_rescue_of_no_time_is_refused(today):
         "Cannot compute: the reading \u201cTime for the rescue plan to reach this robot at the"
         " worst point of its drop\u201d must be greater than zero."
     )
+
+
+def test_a_typed_calm_does_not_lift_the_hold(today):
+    """roof_wind 0 lifted the hold to the still-air figure; work goes on until the robot's
+    stop-work gust (the demo robot's 15 m/s at working height, qp = ½ × 1.225 × 15² = 137.8 Pa,
+    EN 1991-1-4 4.5's ½ρv², hand), so the grip is checked there. At 22 kPa the demo robot holds
+    in still air (least vacuum about 20.1 kPa) but not at 15 m/s (about 23.2 kPa)."""
+    hold = _record(today, roof_wind=0.0, working_vacuum=22.0)[0]["hold_margin"]
+    assert hold.verdict == "fail"
+    assert hold.value["wind_governing"] == "stop-work gust"
+    assert hold.value["pressure_used_pa"] == pytest.approx(0.5 * 1.225 * 15.0**2, rel=1e-12)
+    assert "the stop-work gust governs" in " ".join(hold.working["steps"])
+
+
+def test_a_reading_above_the_stop_work_gust_governs_the_hold(today):
+    """A mean of 13 m/s at 150 m in terrain IV gusts to about 20 m/s (EN 1991-1-4 4.4, 4.5),
+    above the robot's 15 m/s: the reading governs and 25 kPa does not hold."""
+    hold = _record(today, roof_wind=13.0, working_vacuum=25.0)[0]["hold_margin"]
+    assert hold.verdict == "fail"
+    assert hold.value["wind_governing"] == "wind reading"
