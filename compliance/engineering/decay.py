@@ -1,8 +1,10 @@
 """vacuum-decay: with the pump isolated, how long does the grip last on its own?
 
-The test runs to a schedule: a reading every `interval_s` (± `interval_tolerance_s`) for at
-least `min_duration_s`. Times are taken relative to the first reading. A rushed or gappy
-series fails before anything is predicted.
+The test is of the rig as it works: its first reading must lie within `start_tolerance_kpa` of
+the working vacuum read with the pump running, else nothing is predicted (a test started at
+95 kPa says nothing of a robot that works at 40 kPa). The test runs to a schedule: a reading
+every `interval_s` (± `interval_tolerance_s`) for at least `min_duration_s`. Times are taken
+relative to the first reading. A rushed or gappy series fails before anything is predicted.
 
 Three predictions of the time left from the last reading to the hold limit: least-squares fits
 of a straight line v = a + b·t and of an exponential v = v0·exp(-t/tau) (a straight line through
@@ -22,7 +24,7 @@ from dataclasses import dataclass
 
 from .calculation import Calculation, build_result
 from .constants import ATMOSPHERE_KPA, MBAR_PER_KPA, S_PER_MIN
-from .inputs import AtMostFractionOf, Inputs, number, series
+from .inputs import AtMostFractionOf, Inputs, Together, number, series
 from .result import CalcResult, Check, OutputValue
 from .working import num
 
@@ -31,6 +33,10 @@ NAME = "vacuum-decay"
 SLACK_S = 1e-6
 """Rounding allowance on a gap: times kept to 0.1 s differ by float error (22.1 - 10.1 is
 12.000000000000002), which must not fail a reading taken exactly at the edge."""
+
+SLACK_KPA = 1e-9
+"""Rounding allowance on a difference of two readings kept to 0.1 kPa (61.5 - 59.5 and the like
+differ from their decimal value by float error), which must not fail a reading at the edge."""
 
 RECENT_INTERVALS = 2
 """How many of the last intervals are projected on their own (our choice: the last two)."""
@@ -97,6 +103,24 @@ FIELDS = (
         optional=True,
     ),
     number(
+        "working_vacuum_kpa",
+        "kPa",
+        "working vacuum read on the gauge with the pump running, where the test must start",
+        greater_than=0.0,
+        at_most=ATMOSPHERE_KPA,
+        limit_reason="a gauge vacuum cannot be deeper than the standard atmosphere",
+        optional=True,
+    ),
+    number(
+        "start_tolerance_kpa",
+        "kPa",
+        "how far the first reading may be from the working vacuum",
+        at_least=0.0,
+        at_most=ATMOSPHERE_KPA,
+        limit_reason="a gauge vacuum cannot be deeper than the standard atmosphere",
+        optional=True,
+    ),
+    number(
         "rescue_time_s",
         "s",
         "time the rescue plan needs to reach the robot at the worst point of its drop",
@@ -112,6 +136,7 @@ RULES = (
         0.5,
         "a tolerance over half the interval blurs one reading into the next",
     ),
+    Together(("working_vacuum_kpa", "start_tolerance_kpa")),
 )
 
 
@@ -209,6 +234,8 @@ def compute(values: Inputs) -> CalcResult:
     min_r2 = values.number("min_r2")
     volume_l = values.optional_number("system_volume_l")
     rescue_s = values.optional_number("rescue_time_s")
+    working_kpa = values.optional_number("working_vacuum_kpa")
+    start_tolerance_kpa = values.optional_number("start_tolerance_kpa")
 
     t0 = raw[0][0]
     times = [t - t0 for t, _ in raw]
@@ -236,6 +263,7 @@ def compute(values: Inputs) -> CalcResult:
         "exponential_v0_kpa": None,
         "exponential_tau_s": None,
         "lowest_sample_kpa": lowest_kpa,
+        "start_offset_kpa": None,
         "test_duration_s": duration_s,
         "readings": len(times),
     }
@@ -258,9 +286,40 @@ def compute(values: Inputs) -> CalcResult:
         )
     )
 
+    off_start = False
+    if working_kpa is not None and start_tolerance_kpa is not None:
+        offset_kpa = vacua[0] - working_kpa
+        outputs["start_offset_kpa"] = offset_kpa
+        off_start = abs(offset_kpa) > start_tolerance_kpa + SLACK_KPA
+        where = (
+            f"first reading {num(vacua[0])} kPa against the working vacuum of {num(working_kpa)}"
+            f" kPa: {num(abs(offset_kpa))} kPa apart (at most {num(start_tolerance_kpa)} kPa)"
+        )
+        if off_start:
+            steps.append(f"{where}: not a test of the rig as it works; nothing is predicted")
+            checks.append(
+                Check(
+                    "start",
+                    None,
+                    gate=True,
+                    inconclusive=True,
+                    reason=(
+                        f"The test started at {num(vacua[0])} kPa but the robot works at"
+                        f" {num(working_kpa)} kPa: repeat it from the working vacuum (its first"
+                        f" reading within {num(start_tolerance_kpa)} kPa of it)."
+                    ),
+                )
+            )
+        else:
+            steps.append(where)
+
     problems = schedule_problems(
         times, interval_s=interval_s, tolerance_s=tolerance_s, min_duration_s=min_duration_s
     )
+    if off_start and not problems:
+        return build_result(
+            name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
+        )
     if problems:
         steps.append("schedule not kept: " + "; ".join(problems) + "; nothing is predicted")
         checks.append(

@@ -37,6 +37,7 @@ const context: Context = {
     decay_min_duration_s: { value: 180 },
     decay_max_extrapolation: { value: 2 },
     decay_min_r2: { value: 0.8 },
+    decay_start_tolerance_kpa: { value: 2, unit: "kPa" },
     gust_factor: { value: 1.5 },
   },
   robot: { mass_kg: 58, cup_diameter_m: 0.2, cups_engaged: 4, friction: 0.6, projected_area_m2: 0.45, drag_coefficient: 1.2, max_wind_ms: 15, water_on_board_kg: 3.5, cup_area_ratio: 0.85, cup_rows: 2, row_spacing_m: 0.5, com_offset_m: 0.15, brush_force_n: 30, brush_push_n: 20, side_area_m2: 0.2 },
@@ -141,6 +142,20 @@ describe("vacuum hold sheet", () => {
     expect(hold.calc!.outputs.wind_governing).toBe("stop-work gust");
     expect(hold.calc!.outputs.pressure_used_pa).toBeCloseTo(0.5 * 1.225 * 15 ** 2, 10);
     expect(hold.calc!.steps[0]).toMatch(/the stop-work gust governs, since work goes on until it$/);
+  });
+
+  it("refuses a decay test that did not start at the working vacuum", () => {
+    const off = {
+      ...draft,
+      readings: { ...draft.readings, working_vacuum: "40", low_vacuum_alarm: "30" },
+      series: { decay_series: [0, 30, 60, 90, 120, 150, 180].map((t) => [t, 95 - 0.083 * t] as [number, number]) },
+    };
+    const decay = evaluateDraft(items, off, context).find((v) => v.item.key === "decay_test")!;
+    expect(decay.verdict).toBe("fail");
+    expect(decay.calc!.governing).toBe("start");
+    expect(decay.message).toBe(
+      "The test started at 95 kPa but the robot works at 40 kPa: repeat it from the working vacuum (its first reading within 2 kPa of it).",
+    );
   });
 
   it("leaves a calculation to the server when a rating is unknown on the phone", () => {

@@ -173,7 +173,9 @@ def test_a_failed_anchor_check_holds_the_job_and_says_why_in_plain_words(live_se
     assert page.get_attribute("[data-state]", "data-state") == "held"
     reason = readable(page, "[data-testid=holds]")
     assert "20 kN is below the minimum of 22.2 kN." in reason
-    assert "The tag reads 20 kN but the anchor's certificate in the register rates it 25 kN" in reason
+    assert (
+        "The tag reads 20 kN but the anchor's certificate in the register rates it 25 kN" in reason
+    )
 
 
 def test_a_grip_shorter_than_the_rescue_holds_the_job_in_plain_figures(live_server, demo, page):

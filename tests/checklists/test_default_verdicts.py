@@ -87,8 +87,13 @@ def test_alarm_set_below_the_least_holding_vacuum_fails(today):
 
 
 def test_hold_reason_gives_plain_figures(today):
-    """A leak of 2.5 kPa every 30 s from 50 kPa toward a limit of about 21 kPa."""
-    entries, _ = _record(today, decay_series=[[t, 50.0 - t / 12.0] for t in range(0, 181, 30)])
+    """A leak of 2.5 kPa every 30 s from a working vacuum of 50 kPa toward a limit of about
+    23 kPa."""
+    entries, _ = _record(
+        today,
+        working_vacuum=50.0,
+        decay_series=[[t, 50.0 - t / 12.0] for t in range(0, 181, 30)],
+    )
     decay = entries["decay_test"]
     assert decay.verdict == "fail"
     assert decay.message.startswith("With the pump off the grip lasts about ")
@@ -257,3 +262,29 @@ def test_a_reading_above_the_stop_work_gust_governs_the_hold(today):
     hold = _record(today, roof_wind=13.0, working_vacuum=25.0)[0]["hold_margin"]
     assert hold.verdict == "fail"
     assert hold.value["wind_governing"] == "wind reading"
+
+
+def test_a_decay_test_started_above_the_working_vacuum_fails_in_words(today):
+    """95 kPa falling 0.083 kPa/s passed against a robot working at 40 kPa; the same leak from
+    40 kPa does not last 300 s. The test must be of the rig as it works."""
+    series = [[t, 95.0 - 0.083 * t] for t in range(0, 181, 30)]
+    entries, sheet = _record(today, working_vacuum=40.0, low_vacuum_alarm=30.0, decay_series=series)
+    decay = entries["decay_test"]
+    assert decay.verdict == "fail"
+    assert decay.working["governing"] == "start"
+    assert decay.message == (
+        "The test started at 95 kPa but the robot works at 40 kPa: repeat it from the working"
+        " vacuum (its first reading within 2 kPa of it)."
+    )
+    assert Hold.objects.filter(
+        job=sheet.job, item_key="decay_test", clearance__isnull=True
+    ).exists()
+
+
+def test_a_decay_test_from_the_working_vacuum_is_judged_as_before(today):
+    series = [[t, 40.0 - 0.083 * t] for t in range(0, 181, 30)]
+    decay = _record(today, working_vacuum=40.0, low_vacuum_alarm=30.0, decay_series=series)[0][
+        "decay_test"
+    ]
+    assert decay.verdict == "fail"
+    assert decay.working["governing"] == "hold_time"

@@ -264,3 +264,68 @@ def test_a_reading_exactly_at_the_edge_of_its_tolerance_keeps_the_schedule() -> 
         schedule_problems([0.0, 10.1, 22.1], interval_s=10.0, tolerance_s=2.0, min_duration_s=20.0)
         == []
     )
+
+
+def _leak(start_kpa: float) -> list[list[float]]:
+    """0.083 kPa/s from `start_kpa`, a reading every 30 s for 180 s (hand-worked series)."""
+    return [[t, start_kpa - 0.083 * t] for t in range(0, 181, 30)]
+
+
+WORKING = {
+    "min_vacuum_kpa": 20.8,
+    "required_hold_s": 300.0,
+    "interval_s": 30.0,
+    "interval_tolerance_s": 10.0,
+    "min_duration_s": 180.0,
+    "max_extrapolation": 2.0,
+    "min_r2": 0.8,
+    "working_vacuum_kpa": 40.0,
+    "start_tolerance_kpa": 2.0,
+}
+
+
+def test_a_test_started_far_above_the_working_vacuum_predicts_nothing() -> None:
+    """From 95 kPa the leak would pass (capped at 360 s); the robot works at 40 kPa, where the
+    same leak reaches 20.8 kPa in (25.06 - 20.8) / 0.083 = 51 s (hand)."""
+    result = run("vacuum-decay", {**WORKING, "samples": _leak(95.0)})
+    assert (result.verdict, result.governing, result.margin) == ("fail", "start", None)
+    assert result.reason == (
+        "The test started at 95 kPa but the robot works at 40 kPa: repeat it from the working"
+        " vacuum (its first reading within 2 kPa of it)."
+    )
+    assert result.outputs["start_offset_kpa"] == pytest.approx(55.0, rel=1e-12)
+    assert result.outputs["time_to_limit_s"] is None
+    from_working = run("vacuum-decay", {**WORKING, "samples": _leak(40.0)})
+    assert from_working.governing == "hold_time"
+    assert from_working.outputs["time_to_limit_s"] == pytest.approx(
+        (40.0 - 0.083 * 180 - 20.8) / 0.083, rel=1e-9
+    )
+
+
+def test_a_test_within_the_start_tolerance_is_judged_as_before() -> None:
+    inside = run("vacuum-decay", {**WORKING, "samples": _leak(41.5)})
+    without = {
+        k: v for k, v in WORKING.items() if k not in ("working_vacuum_kpa", "start_tolerance_kpa")
+    }
+    assert inside.governing == "hold_time"
+    assert inside.margin == run("vacuum-decay", {**without, "samples": _leak(41.5)}).margin
+    assert inside.outputs["start_offset_kpa"] == pytest.approx(1.5, rel=1e-12)
+
+
+def test_a_test_started_below_the_working_vacuum_is_refused_too() -> None:
+    result = run("vacuum-decay", {**WORKING, "samples": _leak(37.0)})
+    assert result.governing == "start"
+    assert result.reason.startswith("The test started at 37 kPa but the robot works at 40 kPa")
+
+
+def test_a_reading_below_the_limit_still_governs_a_test_off_its_start() -> None:
+    result = run("vacuum-decay", {**WORKING, "samples": _leak(30.0)})
+    assert result.governing == "sample_below_limit"
+
+
+def test_the_working_vacuum_needs_its_tolerance() -> None:
+    from compliance.engineering import CalcInputError
+
+    with pytest.raises(CalcInputError) as caught:
+        run("vacuum-decay", {**WORKING, "samples": _leak(40.0), "start_tolerance_kpa": None})
+    assert caught.value.field == "start_tolerance_kpa"
