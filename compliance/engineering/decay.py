@@ -11,7 +11,11 @@ of a straight line v = a + b·t and of an exponential v = v0·exp(-t/tau) (a str
 ln v), and the steepest of the last two intervals projected from the last reading, so a leak
 that speeds up is not averaged away. The shortest governs, and no prediction reaches further
 beyond the last reading than `max_extrapolation` times the test's own duration. A series that
-rises, or that neither fit explains to `min_r2`, is inconclusive: repeat the test.
+rises, or that neither fit explains to `min_r2`, is inconclusive: repeat the test. But a series
+whose readings all lie within the gauge's resolution (`gauge_resolution_kpa`) shows no
+measurable leak, and neither its R² nor its rise means anything: the fastest leak the readings
+allow, (spread + resolution) / duration, is projected from the lowest reading less the
+resolution instead, and is relied on no further than the same cap.
 Margin: time relied on / required hold - 1; a reading already below the limit fails outright.
 """
 
@@ -118,6 +122,15 @@ FIELDS = (
         at_least=0.0,
         at_most=ATMOSPHERE_KPA,
         limit_reason="a gauge vacuum cannot be deeper than the standard atmosphere",
+        optional=True,
+    ),
+    number(
+        "gauge_resolution_kpa",
+        "kPa",
+        "smallest change the gauge shows: a series within it shows no measurable leak",
+        greater_than=0.0,
+        at_most=10.0,
+        limit_reason="a gauge that cannot show 10 kPa does not time a leak",
         optional=True,
     ),
     number(
@@ -236,6 +249,7 @@ def compute(values: Inputs) -> CalcResult:
     rescue_s = values.optional_number("rescue_time_s")
     working_kpa = values.optional_number("working_vacuum_kpa")
     start_tolerance_kpa = values.optional_number("start_tolerance_kpa")
+    resolution_kpa = values.optional_number("gauge_resolution_kpa")
 
     t0 = raw[0][0]
     times = [t - t0 for t, _ in raw]
@@ -263,6 +277,7 @@ def compute(values: Inputs) -> CalcResult:
         "exponential_v0_kpa": None,
         "exponential_tau_s": None,
         "lowest_sample_kpa": lowest_kpa,
+        "spread_kpa": max(vacua) - lowest_kpa,
         "start_offset_kpa": None,
         "test_duration_s": duration_s,
         "readings": len(times),
@@ -389,7 +404,26 @@ def compute(values: Inputs) -> CalcResult:
             f" ({num(vacua[-1])} kPa): {num(recent.time_s)} s to the limit"
         )
 
-    governing = min(predictions, key=lambda p: p.time_s)
+    spread_kpa = max(vacua) - lowest_kpa
+    within_resolution = resolution_kpa is not None and spread_kpa <= resolution_kpa + SLACK_KPA
+    if resolution_kpa is not None and within_resolution:
+        fastest_kpa_per_s = (spread_kpa + resolution_kpa) / duration_s
+        from_kpa = lowest_kpa - resolution_kpa
+        bound_s = max((from_kpa - limit_kpa) / fastest_kpa_per_s, 0.0)
+        steps.append(
+            f"the readings all lie within the gauge's resolution ({num(spread_kpa)} kPa apart at"
+            f" most, resolution {num(resolution_kpa)} kPa): no leak shows, and the fits above fit"
+            " only the gauge's steps, so their R² means nothing"
+        )
+        steps.append(
+            f"fastest leak the readings allow = ({num(spread_kpa)} + {num(resolution_kpa)}) kPa"
+            f" / {num(duration_s)} s = {num(fastest_kpa_per_s)} kPa/s; from the lowest reading"
+            f" less the resolution, {num(from_kpa)} kPa, to the limit of {num(limit_kpa)} kPa:"
+            f" {num(bound_s)} s"
+        )
+        governing = Prediction("gauge resolution", bound_s)
+    else:
+        governing = min(predictions, key=lambda p: p.time_s)
     predicted_s = governing.time_s
     cap_s = max_extrapolation * duration_s
     relied_s = min(predicted_s, cap_s)
@@ -435,7 +469,9 @@ def compute(values: Inputs) -> CalcResult:
         }
     )
 
-    if linear.slope > 0.0:
+    if within_resolution:
+        steps.append("no measurable leak: neither a rise nor the scatter of the readings counts")
+    elif linear.slope > 0.0:
         steps.append("the vacuum rose over the test: inconclusive")
         checks.append(
             Check(

@@ -98,6 +98,8 @@ const LABELS: Record<string, string> = {
   exponential_v0_kpa: "Exponential fit at the start",
   exponential_tau_s: "Exponential fit time constant",
   lowest_sample_kpa: "Lowest reading",
+  spread_kpa: "Spread of the readings",
+  start_offset_kpa: "First reading less the working vacuum",
   readings: "Readings taken",
   // suction-hold
   effective_area_m2: "Sealed area of the cups",

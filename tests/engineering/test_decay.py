@@ -329,3 +329,67 @@ def test_the_working_vacuum_needs_its_tolerance() -> None:
     with pytest.raises(CalcInputError) as caught:
         run("vacuum-decay", {**WORKING, "samples": _leak(40.0), "start_tolerance_kpa": None})
     assert caught.value.field == "start_tolerance_kpa"
+
+
+QUIET = {
+    "min_vacuum_kpa": 23.25,
+    "required_hold_s": 300.0,
+    "interval_s": 30.0,
+    "interval_tolerance_s": 10.0,
+    "min_duration_s": 180.0,
+    "max_extrapolation": 2.0,
+    "min_r2": 0.8,
+    "gauge_resolution_kpa": 0.5,
+}
+
+
+def _every_30_s(*vacua: float) -> list[list[float]]:
+    return [[30.0 * i, v] for i, v in enumerate(vacua)]
+
+
+@pytest.mark.parametrize(
+    "vacua",
+    [(62, 62, 62, 62, 62, 62, 61.5), (62, 62, 61.5, 62, 61.5, 61.5, 61.5)],
+)
+def test_a_series_within_the_gauge_resolution_shows_no_measurable_leak(vacua) -> None:
+    """R² 0.37 and 0.52 here: they measure the gauge's 0.5 kPa steps, not a leak. The fastest
+    leak the readings allow is (0.5 + 0.5) kPa / 180 s; from 61.5 - 0.5 = 61 kPa the limit of
+    23.25 kPa is (61 - 23.25) × 180 s = 6795 s away, capped at 2 × 180 s = 360 s (hand)."""
+    without = {k: v for k, v in QUIET.items() if k != "gauge_resolution_kpa"}
+    before = run("vacuum-decay", {**without, "samples": _every_30_s(*vacua)})
+    assert before.governing == "fit_quality"
+    result = run("vacuum-decay", {**QUIET, "samples": _every_30_s(*vacua)})
+    assert result.verdict == "pass"
+    assert result.outputs["fit"] == "gauge resolution"
+    assert result.outputs["predicted_time_to_limit_s"] == pytest.approx(
+        (61.0 - 23.25) * 180.0, rel=1e-12
+    )
+    assert result.outputs["time_to_limit_s"] == pytest.approx(360.0, rel=1e-12)
+    assert result.margin == pytest.approx(360.0 / 300.0 - 1.0, rel=1e-12)
+
+
+def test_within_the_resolution_near_the_limit_still_fails() -> None:
+    """From 61.5 - 0.5 = 61 kPa to 60.5 kPa at 1 kPa per 180 s: 90 s (hand)."""
+    result = run(
+        "vacuum-decay",
+        {
+            **QUIET,
+            "min_vacuum_kpa": 60.5,
+            "samples": _every_30_s(62, 62, 61.5, 62, 61.5, 61.5, 61.5),
+        },
+    )
+    assert result.verdict == "fail"
+    assert result.outputs["time_to_limit_s"] == pytest.approx(90.0, rel=1e-12)
+
+
+def test_a_step_up_within_the_resolution_is_not_a_rise() -> None:
+    result = run("vacuum-decay", {**QUIET, "samples": _every_30_s(61.5, 61.5, 62, 62, 62, 62, 62)})
+    assert result.verdict == "pass"
+    assert result.governing == "hold_time"
+
+
+def test_a_fall_beyond_the_resolution_is_judged_by_its_fits() -> None:
+    scattered = _every_30_s(60, 57, 59.5, 56, 59, 57.5, 57)
+    result = run("vacuum-decay", {**QUIET, "samples": scattered})
+    assert result.governing == "fit_quality"
+    assert result.outputs["spread_kpa"] == pytest.approx(4.0, rel=1e-12)

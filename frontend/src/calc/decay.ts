@@ -45,6 +45,9 @@ const FIELDS = [
     atLeast: 0, atMost: ATMOSPHERE_KPA, optional: true,
     limitReason: "a gauge vacuum cannot be deeper than the standard atmosphere",
   }),
+  number("gauge_resolution_kpa", "kPa", "smallest change the gauge shows: a series within it shows no measurable leak", {
+    greaterThan: 0, atMost: 10, optional: true, limitReason: "a gauge that cannot show 10 kPa does not time a leak",
+  }),
   number("rescue_time_s", "s", "time the rescue plan needs to reach the robot at the worst point of its drop", {
     greaterThan: 0, optional: true,
   }),
@@ -126,6 +129,7 @@ function compute(values: Inputs): CalcResult {
   const rescueS = values.optionalNumber("rescue_time_s");
   const workingKpa = values.optionalNumber("working_vacuum_kpa");
   const startToleranceKpa = values.optionalNumber("start_tolerance_kpa");
+  const resolutionKpa = values.optionalNumber("gauge_resolution_kpa");
 
   const t0 = raw[0]![0];
   const times = raw.map(([t]) => t - t0);
@@ -152,6 +156,7 @@ function compute(values: Inputs): CalcResult {
     exponential_v0_kpa: null,
     exponential_tau_s: null,
     lowest_sample_kpa: lowestKpa,
+    spread_kpa: Math.max(...vacua) - lowestKpa,
     start_offset_kpa: null,
     test_duration_s: durationS,
     readings: times.length,
@@ -259,7 +264,28 @@ function compute(values: Inputs): CalcResult {
     );
   }
 
-  const governing = predictions.reduce((a, b) => (b.timeS < a.timeS ? b : a));
+  // Readings all within the gauge's resolution show no measurable leak: their R² and rise mean
+  // nothing; the fastest leak they allow is projected from the lowest reading less the resolution.
+  const spreadKpa = Math.max(...vacua) - lowestKpa;
+  const withinResolution = resolutionKpa !== null && spreadKpa <= resolutionKpa + SLACK_KPA;
+  let governing: Prediction;
+  if (resolutionKpa !== null && withinResolution) {
+    const fastestKpaPerS = (spreadKpa + resolutionKpa) / durationS;
+    const fromKpa = lowestKpa - resolutionKpa;
+    const boundS = Math.max((fromKpa - limitKpa) / fastestKpaPerS, 0);
+    steps.push(
+      `the readings all lie within the gauge's resolution (${num(spreadKpa)} kPa apart at most, resolution` +
+        ` ${num(resolutionKpa)} kPa): no leak shows, and the fits above fit only the gauge's steps, so their R² means nothing`,
+    );
+    steps.push(
+      `fastest leak the readings allow = (${num(spreadKpa)} + ${num(resolutionKpa)}) kPa / ${num(durationS)} s` +
+        ` = ${num(fastestKpaPerS)} kPa/s; from the lowest reading less the resolution, ${num(fromKpa)} kPa,` +
+        ` to the limit of ${num(limitKpa)} kPa: ${num(boundS)} s`,
+    );
+    governing = { method: "gauge resolution", timeS: boundS };
+  } else {
+    governing = predictions.reduce((a, b) => (b.timeS < a.timeS ? b : a));
+  }
   const predictedS = governing.timeS;
   const capS = maxExtrapolation * durationS;
   const reliedS = Math.min(predictedS, capS);
@@ -302,7 +328,9 @@ function compute(values: Inputs): CalcResult {
     linear_slope_kpa_per_s: linear.slope,
   });
 
-  if (linear.slope > 0) {
+  if (withinResolution) {
+    steps.push("no measurable leak: neither a rise nor the scatter of the readings counts");
+  } else if (linear.slope > 0) {
     steps.push("the vacuum rose over the test: inconclusive");
     checks.push(
       check("rising", null, true, {
