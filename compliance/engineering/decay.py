@@ -1,15 +1,21 @@
 """vacuum-decay: with the pump isolated, how long does the grip last on its own?
 
-The test runs to a schedule: a reading every `interval_s` (± `interval_tolerance_s`) for at
-least `min_duration_s`. Times are taken relative to the first reading. A rushed or gappy
-series fails before anything is predicted.
+The test is of the rig as it works: its first reading must lie within `start_tolerance_kpa` of
+the working vacuum read with the pump running, else nothing is predicted (a test started at
+95 kPa says nothing of a robot that works at 40 kPa). The test runs to a schedule: a reading
+every `interval_s` (± `interval_tolerance_s`) for at least `min_duration_s`. Times are taken
+relative to the first reading. A rushed or gappy series fails before anything is predicted.
 
 Three predictions of the time left from the last reading to the hold limit: least-squares fits
 of a straight line v = a + b·t and of an exponential v = v0·exp(-t/tau) (a straight line through
 ln v), and the steepest of the last two intervals projected from the last reading, so a leak
 that speeds up is not averaged away. The shortest governs, and no prediction reaches further
 beyond the last reading than `max_extrapolation` times the test's own duration. A series that
-rises, or that neither fit explains to `min_r2`, is inconclusive: repeat the test.
+rises, or that neither fit explains to `min_r2`, is inconclusive: repeat the test. But a series
+whose readings all lie within the gauge's resolution (`gauge_resolution_kpa`) shows no
+measurable leak, and neither its R² nor its rise means anything: the fastest leak the readings
+allow, (spread + resolution) / duration, is projected from the lowest reading less the
+resolution instead, and is relied on no further than the same cap.
 Margin: time relied on / required hold - 1; a reading already below the limit fails outright.
 """
 
@@ -22,7 +28,7 @@ from dataclasses import dataclass
 
 from .calculation import Calculation, build_result
 from .constants import ATMOSPHERE_KPA, MBAR_PER_KPA, S_PER_MIN
-from .inputs import AtMostFractionOf, Inputs, number, series
+from .inputs import AtMostFractionOf, Inputs, Together, number, series
 from .result import CalcResult, Check, OutputValue
 from .working import num
 
@@ -31,6 +37,10 @@ NAME = "vacuum-decay"
 SLACK_S = 1e-6
 """Rounding allowance on a gap: times kept to 0.1 s differ by float error (22.1 - 10.1 is
 12.000000000000002), which must not fail a reading taken exactly at the edge."""
+
+SLACK_KPA = 1e-9
+"""Rounding allowance on a difference of two readings kept to 0.1 kPa (61.5 - 59.5 and the like
+differ from their decimal value by float error), which must not fail a reading at the edge."""
 
 RECENT_INTERVALS = 2
 """How many of the last intervals are projected on their own (our choice: the last two)."""
@@ -97,6 +107,33 @@ FIELDS = (
         optional=True,
     ),
     number(
+        "working_vacuum_kpa",
+        "kPa",
+        "working vacuum read on the gauge with the pump running, where the test must start",
+        greater_than=0.0,
+        at_most=ATMOSPHERE_KPA,
+        limit_reason="a gauge vacuum cannot be deeper than the standard atmosphere",
+        optional=True,
+    ),
+    number(
+        "start_tolerance_kpa",
+        "kPa",
+        "how far the first reading may be from the working vacuum",
+        at_least=0.0,
+        at_most=ATMOSPHERE_KPA,
+        limit_reason="a gauge vacuum cannot be deeper than the standard atmosphere",
+        optional=True,
+    ),
+    number(
+        "gauge_resolution_kpa",
+        "kPa",
+        "smallest change the gauge shows: a series within it shows no measurable leak",
+        greater_than=0.0,
+        at_most=10.0,
+        limit_reason="a gauge that cannot show 10 kPa does not time a leak",
+        optional=True,
+    ),
+    number(
         "rescue_time_s",
         "s",
         "time the rescue plan needs to reach the robot at the worst point of its drop",
@@ -112,6 +149,7 @@ RULES = (
         0.5,
         "a tolerance over half the interval blurs one reading into the next",
     ),
+    Together(("working_vacuum_kpa", "start_tolerance_kpa")),
 )
 
 
@@ -209,6 +247,9 @@ def compute(values: Inputs) -> CalcResult:
     min_r2 = values.number("min_r2")
     volume_l = values.optional_number("system_volume_l")
     rescue_s = values.optional_number("rescue_time_s")
+    working_kpa = values.optional_number("working_vacuum_kpa")
+    start_tolerance_kpa = values.optional_number("start_tolerance_kpa")
+    resolution_kpa = values.optional_number("gauge_resolution_kpa")
 
     t0 = raw[0][0]
     times = [t - t0 for t, _ in raw]
@@ -236,6 +277,8 @@ def compute(values: Inputs) -> CalcResult:
         "exponential_v0_kpa": None,
         "exponential_tau_s": None,
         "lowest_sample_kpa": lowest_kpa,
+        "spread_kpa": max(vacua) - lowest_kpa,
+        "start_offset_kpa": None,
         "test_duration_s": duration_s,
         "readings": len(times),
     }
@@ -258,9 +301,40 @@ def compute(values: Inputs) -> CalcResult:
         )
     )
 
+    off_start = False
+    if working_kpa is not None and start_tolerance_kpa is not None:
+        offset_kpa = vacua[0] - working_kpa
+        outputs["start_offset_kpa"] = offset_kpa
+        off_start = abs(offset_kpa) > start_tolerance_kpa + SLACK_KPA
+        where = (
+            f"first reading {num(vacua[0])} kPa against the working vacuum of {num(working_kpa)}"
+            f" kPa: {num(abs(offset_kpa))} kPa apart (at most {num(start_tolerance_kpa)} kPa)"
+        )
+        if off_start:
+            steps.append(f"{where}: not a test of the rig as it works; nothing is predicted")
+            checks.append(
+                Check(
+                    "start",
+                    None,
+                    gate=True,
+                    inconclusive=True,
+                    reason=(
+                        f"The test started at {num(vacua[0])} kPa but the robot works at"
+                        f" {num(working_kpa)} kPa: repeat it from the working vacuum (its first"
+                        f" reading within {num(start_tolerance_kpa)} kPa of it)."
+                    ),
+                )
+            )
+        else:
+            steps.append(where)
+
     problems = schedule_problems(
         times, interval_s=interval_s, tolerance_s=tolerance_s, min_duration_s=min_duration_s
     )
+    if off_start and not problems:
+        return build_result(
+            name=NAME, inputs=values.as_dict(), outputs=outputs, checks=checks, steps=steps
+        )
     if problems:
         steps.append("schedule not kept: " + "; ".join(problems) + "; nothing is predicted")
         checks.append(
@@ -330,7 +404,26 @@ def compute(values: Inputs) -> CalcResult:
             f" ({num(vacua[-1])} kPa): {num(recent.time_s)} s to the limit"
         )
 
-    governing = min(predictions, key=lambda p: p.time_s)
+    spread_kpa = max(vacua) - lowest_kpa
+    within_resolution = resolution_kpa is not None and spread_kpa <= resolution_kpa + SLACK_KPA
+    if resolution_kpa is not None and within_resolution:
+        fastest_kpa_per_s = (spread_kpa + resolution_kpa) / duration_s
+        from_kpa = lowest_kpa - resolution_kpa
+        bound_s = max((from_kpa - limit_kpa) / fastest_kpa_per_s, 0.0)
+        steps.append(
+            f"the readings all lie within the gauge's resolution ({num(spread_kpa)} kPa apart at"
+            f" most, resolution {num(resolution_kpa)} kPa): no leak shows, and the fits above fit"
+            " only the gauge's steps, so their R² means nothing"
+        )
+        steps.append(
+            f"fastest leak the readings allow = ({num(spread_kpa)} + {num(resolution_kpa)}) kPa"
+            f" / {num(duration_s)} s = {num(fastest_kpa_per_s)} kPa/s; from the lowest reading"
+            f" less the resolution, {num(from_kpa)} kPa, to the limit of {num(limit_kpa)} kPa:"
+            f" {num(bound_s)} s"
+        )
+        governing = Prediction("gauge resolution", bound_s)
+    else:
+        governing = min(predictions, key=lambda p: p.time_s)
     predicted_s = governing.time_s
     cap_s = max_extrapolation * duration_s
     relied_s = min(predicted_s, cap_s)
@@ -376,7 +469,9 @@ def compute(values: Inputs) -> CalcResult:
         }
     )
 
-    if linear.slope > 0.0:
+    if within_resolution:
+        steps.append("no measurable leak: neither a rise nor the scatter of the readings counts")
+    elif linear.slope > 0.0:
         steps.append("the vacuum rose over the test: inconclusive")
         checks.append(
             Check(

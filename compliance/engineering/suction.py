@@ -11,6 +11,10 @@ Loads on the robot:
 - the peel moment of the weight acting at the centre of mass's offset from the glass, which
   loads the top row of cups by m·g·e / (row spacing).
 
+The wind is taken at the higher of the reading's peak pressure and the pressure of the robot's
+stop-work gust, ½·ρ·v² (EN 1991-1-4 4.5 with the gust's speed): work goes on until that gust,
+so the grip must hold in it, and no reading of calm can lift the hold above it.
+
 Every action is under the safety factor: the cups' clamp force must carry SF times the outward
 pull plus SF times the in-plane load divided by the wet-glass friction; the top row alone must
 carry SF times its share of the outward pull plus the peel. Margins: achieved / required
@@ -27,6 +31,7 @@ from .calculation import Calculation, OutOfRange, build_result
 from .constants import ATMOSPHERE_KPA, PA_PER_KPA, G
 from .inputs import CalcInputError, Inputs, integer, number
 from .result import CalcResult, Check, OutputValue
+from .wind import AIR_DENSITY
 from .working import num
 
 NAME = "suction-hold"
@@ -118,6 +123,16 @@ FIELDS = (
         "peak velocity pressure of the wind at working height",
         at_least=0.0,
     ),
+    number(
+        "stop_work_gust_ms",
+        "m/s",
+        "gust at working height at which work stops: the hold must still hold in it",
+        greater_than=0.0,
+        at_most=120.0,
+        limit_reason="plausibility bound, above any recorded surface gust",
+        optional=True,
+    ),
+    AIR_DENSITY,
     number("face_area_m2", "m²", "robot area facing out from the wall", greater_than=0.0),
     number("side_area_m2", "m²", "robot area facing wind along the wall", at_least=0.0),
     number(
@@ -174,7 +189,9 @@ def compute(values: Inputs) -> CalcResult:
     offset_m = values.number("com_offset_m")
     process_n = values.number("process_force_n")
     push_n = values.number("brush_push_n")
-    qp_pa = values.number("peak_pressure_pa")
+    reading_qp_pa = values.number("peak_pressure_pa")
+    stop_work_ms = values.optional_number("stop_work_gust_ms")
+    rho = values.number("air_density_kgm3")
     face_m2 = values.number("face_area_m2")
     side_m2 = values.number("side_area_m2")
     cd = values.number("drag_coefficient")
@@ -194,6 +211,33 @@ def compute(values: Inputs) -> CalcResult:
     area_m2 = area_ratio * math.pi * diameter_m**2 / 4.0
     if area_m2 == 0.0:
         raise OutOfRange("effective_area_m2", area_m2)
+    stop_work_qp_pa: float | None = None
+    if stop_work_ms is None:
+        qp_pa, wind = reading_qp_pa, "wind reading"
+        wind_step = (
+            f"wind: the reading's peak pressure qp = {num(qp_pa)} Pa (no stop-work gust given)"
+        )
+        wind_words = ""
+    else:
+        stop_work_qp_pa = 0.5 * rho * stop_work_ms**2
+        stop_text = (
+            f"qp at the stop-work gust of {num(stop_work_ms)} m/s = ½ × {num(rho)} kg/m³ ×"
+            f" ({num(stop_work_ms)} m/s)² = {num(stop_work_qp_pa)} Pa"
+        )
+        if stop_work_qp_pa >= reading_qp_pa:
+            qp_pa, wind = stop_work_qp_pa, "stop-work gust"
+            wind_step = (
+                f"wind: {stop_text}, at least the reading's {num(reading_qp_pa)} Pa: the stop-work"
+                " gust governs, since work goes on until it"
+            )
+            wind_words = f" at the stop-work gust of {num(stop_work_ms, 3)} m/s"
+        else:
+            qp_pa, wind = reading_qp_pa, "wind reading"
+            wind_step = (
+                f"wind: the reading's qp = {num(reading_qp_pa)} Pa is above {stop_text}:"
+                " the reading governs"
+            )
+            wind_words = ""
     zone, e_m = facade_zone(
         corner_distance_m=corner_m, building_depth_m=depth_m, building_height_m=height_m
     )
@@ -223,6 +267,7 @@ def compute(values: Inputs) -> CalcResult:
         f" {num(corner_m)} m from the nearer corner is zone {zone}"
     )
     steps = [
+        wind_step,
         f"effective area per cup = {num(area_ratio)} × π × ({num(diameter_m)} m)² / 4"
         f" = {num(area_m2)} m²; clamp force = {num(vacuum_kpa)} kPa × {num(area_m2)} m² ×"
         f" {cups} = {num(clamp_n)} N",
@@ -270,6 +315,9 @@ def compute(values: Inputs) -> CalcResult:
         "top_row_load_n": row_load_n,
         "top_row_clamp_n": row_clamp_n,
         "min_vacuum_kpa": min_vacuum_kpa,
+        "stop_work_pressure_pa": stop_work_qp_pa,
+        "pressure_used_pa": qp_pa,
+        "wind_governing": wind,
     }
     checks = [
         Check(
@@ -277,7 +325,7 @@ def compute(values: Inputs) -> CalcResult:
             achieved / required - 1.0,
             reason=(
                 f"The cups clamp with about {num(clamp_n, 3)} N; the robot's weight, the brush"
-                f" and the wind need {num(needed_n, 3)} N on wet glass, a factor of"
+                f" and the wind{wind_words} need {num(needed_n, 3)} N on wet glass, a factor of"
                 f" {num(achieved, 2)} where {num(required, 2)} is required."
             ),
         ),

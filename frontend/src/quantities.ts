@@ -98,6 +98,8 @@ const LABELS: Record<string, string> = {
   exponential_v0_kpa: "Exponential fit at the start",
   exponential_tau_s: "Exponential fit time constant",
   lowest_sample_kpa: "Lowest reading",
+  spread_kpa: "Spread of the readings",
+  start_offset_kpa: "First reading less the working vacuum",
   readings: "Readings taken",
   // suction-hold
   effective_area_m2: "Sealed area of the cups",
@@ -106,6 +108,9 @@ const LABELS: Record<string, string> = {
   shear_demand_n: "Load along the wall",
   outward_limit_n: "Outward pull the grip can take",
   min_vacuum_kpa: "Least vacuum that holds",
+  stop_work_pressure_pa: "Wind pressure at the stop-work gust",
+  pressure_used_pa: "Wind pressure the hold is checked at",
+  wind_governing: "Wind the hold is checked at",
 };
 
 /** The unit a key's suffix names, and the key without it. */

@@ -264,3 +264,132 @@ def test_a_reading_exactly_at_the_edge_of_its_tolerance_keeps_the_schedule() -> 
         schedule_problems([0.0, 10.1, 22.1], interval_s=10.0, tolerance_s=2.0, min_duration_s=20.0)
         == []
     )
+
+
+def _leak(start_kpa: float) -> list[list[float]]:
+    """0.083 kPa/s from `start_kpa`, a reading every 30 s for 180 s (hand-worked series)."""
+    return [[t, start_kpa - 0.083 * t] for t in range(0, 181, 30)]
+
+
+WORKING = {
+    "min_vacuum_kpa": 20.8,
+    "required_hold_s": 300.0,
+    "interval_s": 30.0,
+    "interval_tolerance_s": 10.0,
+    "min_duration_s": 180.0,
+    "max_extrapolation": 2.0,
+    "min_r2": 0.8,
+    "working_vacuum_kpa": 40.0,
+    "start_tolerance_kpa": 2.0,
+}
+
+
+def test_a_test_started_far_above_the_working_vacuum_predicts_nothing() -> None:
+    """From 95 kPa the leak would pass (capped at 360 s); the robot works at 40 kPa, where the
+    same leak reaches 20.8 kPa in (25.06 - 20.8) / 0.083 = 51 s (hand)."""
+    result = run("vacuum-decay", {**WORKING, "samples": _leak(95.0)})
+    assert (result.verdict, result.governing, result.margin) == ("fail", "start", None)
+    assert result.reason == (
+        "The test started at 95 kPa but the robot works at 40 kPa: repeat it from the working"
+        " vacuum (its first reading within 2 kPa of it)."
+    )
+    assert result.outputs["start_offset_kpa"] == pytest.approx(55.0, rel=1e-12)
+    assert result.outputs["time_to_limit_s"] is None
+    from_working = run("vacuum-decay", {**WORKING, "samples": _leak(40.0)})
+    assert from_working.governing == "hold_time"
+    assert from_working.outputs["time_to_limit_s"] == pytest.approx(
+        (40.0 - 0.083 * 180 - 20.8) / 0.083, rel=1e-9
+    )
+
+
+def test_a_test_within_the_start_tolerance_is_judged_as_before() -> None:
+    inside = run("vacuum-decay", {**WORKING, "samples": _leak(41.5)})
+    without = {
+        k: v for k, v in WORKING.items() if k not in ("working_vacuum_kpa", "start_tolerance_kpa")
+    }
+    assert inside.governing == "hold_time"
+    assert inside.margin == run("vacuum-decay", {**without, "samples": _leak(41.5)}).margin
+    assert inside.outputs["start_offset_kpa"] == pytest.approx(1.5, rel=1e-12)
+
+
+def test_a_test_started_below_the_working_vacuum_is_refused_too() -> None:
+    result = run("vacuum-decay", {**WORKING, "samples": _leak(37.0)})
+    assert result.governing == "start"
+    assert result.reason.startswith("The test started at 37 kPa but the robot works at 40 kPa")
+
+
+def test_a_reading_below_the_limit_still_governs_a_test_off_its_start() -> None:
+    result = run("vacuum-decay", {**WORKING, "samples": _leak(30.0)})
+    assert result.governing == "sample_below_limit"
+
+
+def test_the_working_vacuum_needs_its_tolerance() -> None:
+    from compliance.engineering import CalcInputError
+
+    with pytest.raises(CalcInputError) as caught:
+        run("vacuum-decay", {**WORKING, "samples": _leak(40.0), "start_tolerance_kpa": None})
+    assert caught.value.field == "start_tolerance_kpa"
+
+
+QUIET = {
+    "min_vacuum_kpa": 23.25,
+    "required_hold_s": 300.0,
+    "interval_s": 30.0,
+    "interval_tolerance_s": 10.0,
+    "min_duration_s": 180.0,
+    "max_extrapolation": 2.0,
+    "min_r2": 0.8,
+    "gauge_resolution_kpa": 0.5,
+}
+
+
+def _every_30_s(*vacua: float) -> list[list[float]]:
+    return [[30.0 * i, v] for i, v in enumerate(vacua)]
+
+
+@pytest.mark.parametrize(
+    "vacua",
+    [(62, 62, 62, 62, 62, 62, 61.5), (62, 62, 61.5, 62, 61.5, 61.5, 61.5)],
+)
+def test_a_series_within_the_gauge_resolution_shows_no_measurable_leak(vacua) -> None:
+    """R² 0.37 and 0.52 here: they measure the gauge's 0.5 kPa steps, not a leak. The fastest
+    leak the readings allow is (0.5 + 0.5) kPa / 180 s; from 61.5 - 0.5 = 61 kPa the limit of
+    23.25 kPa is (61 - 23.25) × 180 s = 6795 s away, capped at 2 × 180 s = 360 s (hand)."""
+    without = {k: v for k, v in QUIET.items() if k != "gauge_resolution_kpa"}
+    before = run("vacuum-decay", {**without, "samples": _every_30_s(*vacua)})
+    assert before.governing == "fit_quality"
+    result = run("vacuum-decay", {**QUIET, "samples": _every_30_s(*vacua)})
+    assert result.verdict == "pass"
+    assert result.outputs["fit"] == "gauge resolution"
+    assert result.outputs["predicted_time_to_limit_s"] == pytest.approx(
+        (61.0 - 23.25) * 180.0, rel=1e-12
+    )
+    assert result.outputs["time_to_limit_s"] == pytest.approx(360.0, rel=1e-12)
+    assert result.margin == pytest.approx(360.0 / 300.0 - 1.0, rel=1e-12)
+
+
+def test_within_the_resolution_near_the_limit_still_fails() -> None:
+    """From 61.5 - 0.5 = 61 kPa to 60.5 kPa at 1 kPa per 180 s: 90 s (hand)."""
+    result = run(
+        "vacuum-decay",
+        {
+            **QUIET,
+            "min_vacuum_kpa": 60.5,
+            "samples": _every_30_s(62, 62, 61.5, 62, 61.5, 61.5, 61.5),
+        },
+    )
+    assert result.verdict == "fail"
+    assert result.outputs["time_to_limit_s"] == pytest.approx(90.0, rel=1e-12)
+
+
+def test_a_step_up_within_the_resolution_is_not_a_rise() -> None:
+    result = run("vacuum-decay", {**QUIET, "samples": _every_30_s(61.5, 61.5, 62, 62, 62, 62, 62)})
+    assert result.verdict == "pass"
+    assert result.governing == "hold_time"
+
+
+def test_a_fall_beyond_the_resolution_is_judged_by_its_fits() -> None:
+    scattered = _every_30_s(60, 57, 59.5, 56, 59, 57.5, 57)
+    result = run("vacuum-decay", {**QUIET, "samples": scattered})
+    assert result.governing == "fit_quality"
+    assert result.outputs["spread_kpa"] == pytest.approx(4.0, rel=1e-12)

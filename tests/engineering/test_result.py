@@ -38,6 +38,7 @@ UNIT_SUFFIXES = (
 )
 DIMENSIONLESS = {
     "facade_zone",
+    "wind_governing",
     "cpe",
     "turbulence_intensity",
     "gust_factor",

@@ -156,3 +156,33 @@ def test_min_vacuum_reproduces_the_required_factor(qp: float, sf: float, rows: i
         assert back.margin == pytest.approx(0.0, abs=1e-9)
     else:
         assert back.verdict == "fail"
+
+
+def test_a_typed_calm_cannot_lift_the_hold_above_the_stop_work_gust() -> None:
+    """Work goes on until the stop-work gust, so the hold is checked at qp = ½·ρ·v² of that gust
+    (EN 1991-1-4 4.5 with the gust's speed; ρ 1.225 kg/m³, ISA sea level, from memory): a
+    reading of calm gives the same margin as a reading at the gust itself."""
+    calm = suction(peak_pressure_pa=0.0, stop_work_gust_ms=14.0)
+    at_gust = suction(peak_pressure_pa=0.5 * 1.225 * 14.0**2, stop_work_gust_ms=14.0)
+    assert calm["wind_governing"] == "stop-work gust"
+    assert calm["pressure_used_pa"] == pytest.approx(0.5 * 1.225 * 14.0**2, rel=1e-12)
+    assert calm["margin"] == pytest.approx(at_gust["margin"], rel=1e-12)
+    assert calm["margin"] < suction(peak_pressure_pa=0.0)["margin"]
+
+
+def test_a_reading_above_the_stop_work_gust_governs() -> None:
+    """The higher pressure governs (hand: ½ × 1.225 × 10² = 61.25 Pa < 300 Pa)."""
+    out = suction(peak_pressure_pa=300.0, stop_work_gust_ms=10.0)
+    assert out["wind_governing"] == "wind reading"
+    assert out["pressure_used_pa"] == 300.0
+    assert out["stop_work_pressure_pa"] == pytest.approx(61.25, rel=1e-12)
+
+
+def test_the_working_says_which_wind_governed() -> None:
+    result = run("suction-hold", vary(SUCTION, peak_pressure_pa=0.0, stop_work_gust_ms=14.0))
+    assert result.steps[0].startswith("wind: qp at the stop-work gust of 14 m/s")
+    assert result.steps[0].endswith("the stop-work gust governs, since work goes on until it")
+    weak = run(
+        "suction-hold", vary(SUCTION, vacuum_kpa=5.0, peak_pressure_pa=0.0, stop_work_gust_ms=14.0)
+    )
+    assert "and the wind at the stop-work gust of 14 m/s need" in weak.reason

@@ -14,7 +14,9 @@ from compliance.records.pdf import render
 
 pytestmark = pytest.mark.django_db
 
-REASON = "With the pump off the grip lasts about 33 s; 300 s are needed."
+# 24 s: the demo's split cup, to the least vacuum at the robot's 15 m/s stop-work gust (33 s
+# when the hold took the 5.5 m/s reading's wind).
+REASON = "With the pump off the grip lasts about 24 s; 300 s are needed."
 
 
 def _text(pdf: bytes) -> str:

@@ -9,6 +9,9 @@ const NAME = "vacuum-decay";
 /** Rounding allowance on a gap (22.1 - 10.1 is 12.000000000000002 in floats). */
 export const SLACK_S = 1e-6;
 
+/** Rounding allowance on a difference of two readings kept to 0.1 kPa. */
+const SLACK_KPA = 1e-9;
+
 /** How many of the last intervals are projected on their own. */
 const RECENT_INTERVALS = 2;
 
@@ -34,6 +37,17 @@ const FIELDS = [
     atLeast: 0, atMost: 1, limitReason: "R² is at most 1",
   }),
   number("system_volume_l", "L", "volume under vacuum, for a leak rate in mbar·L/s", { greaterThan: 0, optional: true }),
+  number("working_vacuum_kpa", "kPa", "working vacuum read on the gauge with the pump running, where the test must start", {
+    greaterThan: 0, atMost: ATMOSPHERE_KPA, optional: true,
+    limitReason: "a gauge vacuum cannot be deeper than the standard atmosphere",
+  }),
+  number("start_tolerance_kpa", "kPa", "how far the first reading may be from the working vacuum", {
+    atLeast: 0, atMost: ATMOSPHERE_KPA, optional: true,
+    limitReason: "a gauge vacuum cannot be deeper than the standard atmosphere",
+  }),
+  number("gauge_resolution_kpa", "kPa", "smallest change the gauge shows: a series within it shows no measurable leak", {
+    greaterThan: 0, atMost: 10, optional: true, limitReason: "a gauge that cannot show 10 kPa does not time a leak",
+  }),
   number("rescue_time_s", "s", "time the rescue plan needs to reach the robot at the worst point of its drop", {
     greaterThan: 0, optional: true,
   }),
@@ -42,6 +56,7 @@ const FIELDS = [
 const RULES: Rule[] = [
   { rule: "atMostFractionOf", name: "interval_tolerance_s", other: "interval_s", fraction: 0.5,
     reason: "a tolerance over half the interval blurs one reading into the next" },
+  { rule: "together", names: ["working_vacuum_kpa", "start_tolerance_kpa"] },
 ];
 
 /** What a timed series falls short of, in words; mirrors decay.schedule_problems. */
@@ -112,6 +127,9 @@ function compute(values: Inputs): CalcResult {
   const minR2 = values.number("min_r2");
   const volumeL = values.optionalNumber("system_volume_l");
   const rescueS = values.optionalNumber("rescue_time_s");
+  const workingKpa = values.optionalNumber("working_vacuum_kpa");
+  const startToleranceKpa = values.optionalNumber("start_tolerance_kpa");
+  const resolutionKpa = values.optionalNumber("gauge_resolution_kpa");
 
   const t0 = raw[0]![0];
   const times = raw.map(([t]) => t - t0);
@@ -138,6 +156,8 @@ function compute(values: Inputs): CalcResult {
     exponential_v0_kpa: null,
     exponential_tau_s: null,
     lowest_sample_kpa: lowestKpa,
+    spread_kpa: Math.max(...vacua) - lowestKpa,
+    start_offset_kpa: null,
     test_duration_s: durationS,
     readings: times.length,
   };
@@ -152,7 +172,34 @@ function compute(values: Inputs): CalcResult {
     }),
   );
 
+  // The test must be of the rig as it works: it starts at the working vacuum.
+  let offStart = false;
+  if (workingKpa !== null && startToleranceKpa !== null) {
+    const offsetKpa = vacua[0]! - workingKpa;
+    outputs.start_offset_kpa = offsetKpa;
+    offStart = Math.abs(offsetKpa) > startToleranceKpa + SLACK_KPA;
+    const where =
+      `first reading ${num(vacua[0]!)} kPa against the working vacuum of ${num(workingKpa)} kPa:` +
+      ` ${num(Math.abs(offsetKpa))} kPa apart (at most ${num(startToleranceKpa)} kPa)`;
+    if (offStart) {
+      steps.push(`${where}: not a test of the rig as it works; nothing is predicted`);
+      checks.push(
+        check("start", null, true, {
+          inconclusive: true,
+          reason:
+            `The test started at ${num(vacua[0]!)} kPa but the robot works at ${num(workingKpa)} kPa:` +
+            ` repeat it from the working vacuum (its first reading within ${num(startToleranceKpa)} kPa of it).`,
+        }),
+      );
+    } else {
+      steps.push(where);
+    }
+  }
+
   const problems = scheduleProblems(times, { intervalS, toleranceS, minDurationS });
+  if (offStart && !problems.length) {
+    return buildResult({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
+  }
   if (problems.length) {
     steps.push(`schedule not kept: ${problems.join("; ")}; nothing is predicted`);
     checks.push(
@@ -217,7 +264,28 @@ function compute(values: Inputs): CalcResult {
     );
   }
 
-  const governing = predictions.reduce((a, b) => (b.timeS < a.timeS ? b : a));
+  // Readings all within the gauge's resolution show no measurable leak: their R² and rise mean
+  // nothing; the fastest leak they allow is projected from the lowest reading less the resolution.
+  const spreadKpa = Math.max(...vacua) - lowestKpa;
+  const withinResolution = resolutionKpa !== null && spreadKpa <= resolutionKpa + SLACK_KPA;
+  let governing: Prediction;
+  if (resolutionKpa !== null && withinResolution) {
+    const fastestKpaPerS = (spreadKpa + resolutionKpa) / durationS;
+    const fromKpa = lowestKpa - resolutionKpa;
+    const boundS = Math.max((fromKpa - limitKpa) / fastestKpaPerS, 0);
+    steps.push(
+      `the readings all lie within the gauge's resolution (${num(spreadKpa)} kPa apart at most, resolution` +
+        ` ${num(resolutionKpa)} kPa): no leak shows, and the fits above fit only the gauge's steps, so their R² means nothing`,
+    );
+    steps.push(
+      `fastest leak the readings allow = (${num(spreadKpa)} + ${num(resolutionKpa)}) kPa / ${num(durationS)} s` +
+        ` = ${num(fastestKpaPerS)} kPa/s; from the lowest reading less the resolution, ${num(fromKpa)} kPa,` +
+        ` to the limit of ${num(limitKpa)} kPa: ${num(boundS)} s`,
+    );
+    governing = { method: "gauge resolution", timeS: boundS };
+  } else {
+    governing = predictions.reduce((a, b) => (b.timeS < a.timeS ? b : a));
+  }
   const predictedS = governing.timeS;
   const capS = maxExtrapolation * durationS;
   const reliedS = Math.min(predictedS, capS);
@@ -260,7 +328,9 @@ function compute(values: Inputs): CalcResult {
     linear_slope_kpa_per_s: linear.slope,
   });
 
-  if (linear.slope > 0) {
+  if (withinResolution) {
+    steps.push("no measurable leak: neither a rise nor the scatter of the readings counts");
+  } else if (linear.slope > 0) {
     steps.push("the vacuum rose over the test: inconclusive");
     checks.push(
       check("rising", null, true, {

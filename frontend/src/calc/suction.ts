@@ -3,6 +3,7 @@ import { ATMOSPHERE_KPA, G, PA_PER_KPA } from "./constants";
 import { CalcInputError, OutOfRange } from "./errors";
 import { buildResult, calculation, integer, number, type Inputs } from "./inputs";
 import { check, type CalcResult } from "./result";
+import { AIR_DENSITY } from "./wind";
 import { num } from "./working";
 
 const NAME = "suction-hold";
@@ -47,6 +48,10 @@ const FIELDS = [
   number("process_force_n", "N", "brush drag along the wall", { atLeast: 0, default: 0 }),
   number("brush_push_n", "N", "brush pushing the robot off the glass", { atLeast: 0, default: 0 }),
   number("peak_pressure_pa", "Pa", "peak velocity pressure of the wind at working height", { atLeast: 0 }),
+  number("stop_work_gust_ms", "m/s", "gust at working height at which work stops: the hold must still hold in it", {
+    greaterThan: 0, atMost: 120, limitReason: "plausibility bound, above any recorded surface gust", optional: true,
+  }),
+  AIR_DENSITY,
   number("face_area_m2", "m²", "robot area facing out from the wall", { greaterThan: 0 }),
   number("side_area_m2", "m²", "robot area facing wind along the wall", { atLeast: 0 }),
   number("drag_coefficient", "", "drag coefficient of the robot's side", { greaterThan: 0, atMost: 3, limitReason: PLAUSIBLE }),
@@ -72,7 +77,9 @@ function compute(values: Inputs): CalcResult {
   const offsetM = values.number("com_offset_m");
   const processN = values.number("process_force_n");
   const pushN = values.number("brush_push_n");
-  const qpPa = values.number("peak_pressure_pa");
+  const readingQpPa = values.number("peak_pressure_pa");
+  const stopWorkMs = values.optionalNumber("stop_work_gust_ms");
+  const rho = values.number("air_density_kgm3");
   const faceM2 = values.number("face_area_m2");
   const sideM2 = values.number("side_area_m2");
   const cd = values.number("drag_coefficient");
@@ -89,6 +96,26 @@ function compute(values: Inputs): CalcResult {
   }
   const areaM2 = (areaRatio * Math.PI * diameterM ** 2) / 4;
   if (areaM2 === 0) throw new OutOfRange("effective_area_m2", num(areaM2));
+  // The wind at the higher of the reading and the stop-work gust: work goes on until that gust.
+  let stopWorkQpPa: number | null = null;
+  let qpPa = readingQpPa;
+  let wind = "wind reading";
+  let windStep = `wind: the reading's peak pressure qp = ${num(qpPa)} Pa (no stop-work gust given)`;
+  let windWords = "";
+  if (stopWorkMs !== null) {
+    stopWorkQpPa = 0.5 * rho * stopWorkMs ** 2;
+    const stopText =
+      `qp at the stop-work gust of ${num(stopWorkMs)} m/s = ½ × ${num(rho)} kg/m³ ×` +
+      ` (${num(stopWorkMs)} m/s)² = ${num(stopWorkQpPa)} Pa`;
+    if (stopWorkQpPa >= readingQpPa) {
+      qpPa = stopWorkQpPa;
+      wind = "stop-work gust";
+      windStep = `wind: ${stopText}, at least the reading's ${num(readingQpPa)} Pa: the stop-work gust governs, since work goes on until it`;
+      windWords = ` at the stop-work gust of ${num(stopWorkMs, 3)} m/s`;
+    } else {
+      windStep = `wind: the reading's qp = ${num(readingQpPa)} Pa is above ${stopText}: the reading governs`;
+    }
+  }
   const [zone, eM] = facadeZone(cornerM, depthM, heightM);
   const cpe = CPE_1[zone]!;
   const weightN = massKg * G;
@@ -115,6 +142,7 @@ function compute(values: Inputs): CalcResult {
       : `e = min(b, 2h) = min(${num(depthM ?? 0)}, 2 × ${num(heightM)}) = ${num(eM)} m;` +
         ` ${num(cornerM)} m from the nearer corner is zone ${zone}`;
   const steps = [
+    windStep,
     `effective area per cup = ${num(areaRatio)} × π × (${num(diameterM)} m)² / 4 = ${num(areaM2)} m²;` +
       ` clamp force = ${num(vacuumKpa)} kPa × ${num(areaM2)} m² × ${cups} = ${num(clampN)} N`,
     `facade zone (EN 1991-1-4 7.2.2): ${place}; cpe,1 = ${num(cpe)}`,
@@ -157,11 +185,14 @@ function compute(values: Inputs): CalcResult {
       top_row_load_n: rowLoadN,
       top_row_clamp_n: rowClampN,
       min_vacuum_kpa: minVacuumKpa,
+      stop_work_pressure_pa: stopWorkQpPa,
+      pressure_used_pa: qpPa,
+      wind_governing: wind,
     },
     checks: [
       check("safety_factor", achieved / required - 1, false, {
         reason:
-          `The cups clamp with about ${num(clampN, 3)} N; the robot's weight, the brush and the wind need` +
+          `The cups clamp with about ${num(clampN, 3)} N; the robot's weight, the brush and the wind${windWords} need` +
           ` ${num(neededN, 3)} N on wet glass, a factor of ${num(achieved, 2)} where ${num(required, 2)} is required.`,
       }),
       check("top_row", rowAchieved === null ? null : rowAchieved / required - 1, false, {
