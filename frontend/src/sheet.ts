@@ -225,7 +225,20 @@ export function fmt(value: number): string {
 }
 
 /** Parse what was typed into a decimal field; a comma counts as the decimal mark. */
+/** "2,600": a thousands separator or a decimal comma? Read the wrong way it is a figure a
+ * thousand times off (2,600 kPa taken as 2.6 passed an "at most 2500" limit), so it is asked
+ * again, in words that give both readings. A point stays a decimal point (a decimal keypad
+ * gives the phone's own mark; three decimals typed with a point are meant). Null when the text
+ * is not of that shape. */
+export function ambiguousGrouping(text: string): string | null {
+  const m = /^([-+]?)([1-9]\d{0,2}),(\d{3})$/.exec(text.trim());
+  if (!m) return null;
+  const [, sign, whole, part] = m;
+  return `${text.trim()}: ${sign}${whole}${part} or ${sign}${whole}.${part.replace(/0+$/, "") || "0"}? Type the figure without a thousands separator (${sign}${whole}${part}) or with fewer decimals.`;
+}
+
 export function parseDecimal(text: string): number | null {
+  if (ambiguousGrouping(text) !== null) return null;
   const cleaned = text.trim().replace(",", ".");
   if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(cleaned)) return null;
   const value = Number(cleaned);
@@ -479,6 +492,11 @@ export function evaluateDraft(items: ChecklistItem[], draft: Draft, context: Con
       case "reading": {
         const text = draft.readings[item.key] ?? "";
         const value = parseDecimal(text);
+        const ambiguous = ambiguousGrouping(text);
+        if (ambiguous !== null) {
+          views.push({ ...base, verdict: "missing", message: ambiguous });
+          break;
+        }
         if (value === null) {
           const tooLarge = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(text.trim().replace(",", "."));
           const notANumber = item.unit ? `Not a number: type the figure alone, in ${item.unit}.` : "Not a number.";

@@ -11,6 +11,7 @@ import {
   evaluateForDrops,
   ordered,
   parseDecimal,
+  ambiguousGrouping,
   readingLate,
   sampleTime,
   scheduleProblems,
@@ -53,6 +54,20 @@ describe("parseDecimal", () => {
     expect(parseDecimal(" 62 ")).toBe(62);
     expect(parseDecimal("-0.5")).toBe(-0.5);
   });
+  it("asks again for a figure whose separator may be a thousands separator", () => {
+    // 2,600 kPa was read as 2.6 and passed a hose rating of at most 2500 kPa.
+    for (const text of ["2,600", "1,320", "-12,500"]) expect(parseDecimal(text)).toBeNull();
+    expect(ambiguousGrouping("2,600")).toBe("2,600: 2600 or 2.6? Type the figure without a thousands separator (2600) or with fewer decimals.");
+    expect(ambiguousGrouping("1,000")).toContain("1000 or 1.0?");
+    expect(parseDecimal("2.600")).toBe(2.6);
+    // A leading zero, fewer or more than three decimals, or no separator: no doubt.
+    expect(parseDecimal("0,125")).toBe(0.125);
+    expect(parseDecimal("2,60")).toBe(2.6);
+    expect(parseDecimal("2,6000")).toBe(2.6);
+    expect(parseDecimal("2600")).toBe(2600);
+    expect(ambiguousGrouping("25,0")).toBeNull();
+  });
+
   it("refuses what is not a number", () => {
     for (const text of ["", "abc", "1.2.3", "12kN", "Infinity"]) expect(parseDecimal(text)).toBeNull();
   });

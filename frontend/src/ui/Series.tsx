@@ -17,7 +17,7 @@
  * longer be trusted, and Add stays off until it is started again.
  */
 import { useEffect, useRef, useState } from "preact/hooks";
-import { describeSchedule, fmt, parseDecimal, readingLate, sampleTime, type ScheduleResult } from "../sheet";
+import { ambiguousGrouping, describeSchedule, fmt, parseDecimal, readingLate, sampleTime, type ScheduleResult } from "../sheet";
 import type { ChecklistItem } from "../types";
 import { Sign } from "./signs";
 
@@ -112,7 +112,7 @@ export function SeriesCapture({ item, timing, samples, onChange, startedAt, onTi
     if (startedAt === null || !schedule) return;
     const value = parseDecimal(text);
     if (value === null) {
-      setProblem("Type the gauge reading as a number.");
+      setProblem(ambiguousGrouping(text) ?? "Type the gauge reading as a number.");
       return;
     }
     const t = sampleTime(monotonicNow() - startedAt);
