@@ -233,7 +233,7 @@ export function fmt(value: number): string {
 export function ambiguousGrouping(text: string): string | null {
   const m = /^([-+]?)([1-9]\d{0,2}),(\d{3})$/.exec(text.trim());
   if (!m) return null;
-  const [, sign, whole, part] = m;
+  const [, sign = "", whole = "", part = ""] = m;
   return `${text.trim()}: ${sign}${whole}${part} or ${sign}${whole}.${part.replace(/0+$/, "") || "0"}? Type the figure without a thousands separator (${sign}${whole}${part}) or with fewer decimals.`;
 }
 
