@@ -426,6 +426,12 @@ NEVER_READY_NOT_SAFE = (
 )
 
 
+NO_HOLD_NOT_STOPPED = (
+    "No hold stopped work on this day: it cannot be signed as 'work was stopped'. Choose"
+    " 'checked and safe', or 'with exceptions' and say what they were in the remarks."
+)
+
+
 def sign_daily_record(
     *, job: Job, by: User, password: str, meaning: str, remarks: str = ""
 ) -> DailyRecord:
@@ -460,6 +466,8 @@ def sign_daily_record(
         content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(OPEN_HOLDS_NOT_SAFE)
+        if meaning == "reviewed_stopped" and not content["holds"]:
+            raise InvalidTransition(NO_HOLD_NOT_STOPPED)
         ready = {JobState.CLEARED, JobState.WORKING}
         if meaning == "reviewed_safe" and not any(t["to"] in ready for t in content["transitions"]):
             raise InvalidTransition(NEVER_READY_NOT_SAFE)

@@ -403,3 +403,19 @@ def test_remarks_of_invisible_characters_are_no_remarks(
     assert response.status_code == 400
     assert response.json() == {"remarks": ["Say what the exceptions were."]}
     assert not DailyRecord.objects.exists()
+
+
+def test_a_day_without_a_hold_is_not_signed_as_work_stopped(closed_job, supervisor):
+    """The sealed meaning said "work was stopped; the open holds are shown in this record" for a
+    day whose record showed no hold at all, and the auditor's check read VERIFIED."""
+    from compliance.models import DailyRecord
+
+    response = client_for(supervisor).post(
+        reverse("job-sign", args=[closed_job.pk]),
+        {"password": PASSWORD, "meaning": "reviewed_stopped"},
+        format="json",
+    )
+
+    assert response.status_code == 409, response.json()
+    assert response.json()["detail"].startswith("No hold stopped work on this day")
+    assert not DailyRecord.objects.filter(job=closed_job).exists()
