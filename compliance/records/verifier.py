@@ -294,7 +294,8 @@ def check_signer_organisation(report: Report, document: dict[str, Any]) -> bool:
     return report.add(
         "signer_is_organisation",
         named == sealed,
-        f"The PDF is signed with a certificate of {sealed}, whose record it is."
+        f"The signing certificate names {sealed}, whose record it is; whether it is"
+        f" {sealed}'s own is for the trust check."
         if named == sealed
         else f"The PDF is sealed as {sealed}'s record but signed with a certificate of"
         f" {named or 'no named organisation'}.",
@@ -842,14 +843,16 @@ def _check_members(report: Report, archive: zipfile.ZipFile, chains: list[Any]) 
     twice = sorted({n for n in names if names.count(n) > 1})
     unsafe = sorted(n for n in set(names) | listed if not _safe_member_name(n))
     extra = sorted(set(names) - listed)
+    missing = sorted(listed - set(names))
     _need(
         report,
         "members",
-        not (twice or unsafe or extra),
-        "The export holds files its manifest does not name, or names them unsafely: "
+        not (twice or unsafe or extra or missing),
+        "The export does not hold exactly the files its manifest names: "
         + "; ".join(
             part
             for part in (
+                f"missing: {', '.join(missing[:3])}" if missing else "",
                 f"twice: {', '.join(twice[:3])}" if twice else "",
                 f"outside its folder: {', '.join(unsafe[:3])}" if unsafe else "",
                 f"not listed: {', '.join(extra[:3])}" if extra else "",

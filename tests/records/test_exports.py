@@ -306,6 +306,22 @@ def test_an_export_holding_anything_its_manifest_does_not_name_does_not_verify(b
     assert report.first_failure.name == "members", report.as_dict()
 
 
+def test_an_export_with_a_listed_file_removed_never_reads_ok_on_its_files(building):
+    """One PDF deleted from the archive: the verdict said "OK The export holds the files its
+    manifest names and no other." and then "FAILED ... is listed but missing"."""
+    manager, first, _ = building
+    members = _members(_export(manager, first))
+    removed = next(name for name, _ in members if name.endswith(".pdf"))
+    data = _packed([(name, content) for name, content in members if name != removed])
+
+    report = verify_export(data, use_database=False)
+
+    assert not report.ok
+    assert report.first_failure.name == "members", report.as_dict()
+    assert f"missing: {removed}" in report.first_failure.detail
+    assert not any(c.name == "members" and c.ok for c in report.checks)
+
+
 def test_a_contractor_cannot_sign_a_shorter_head_for_another_contractor_s_chain(
     building, simple_checklists, operator, settings
 ):

@@ -701,6 +701,12 @@ def test_another_organisations_trusted_certificate_cannot_vouch_for_a_certificat
 
     assert not report.ok
     assert failed(report) == "signer_vouched"
+    # The name in a certificate is anyone's to write: the check of it says no more than that.
+    named = next(c for c in report.checks if c.name == "signer_is_organisation")
+    assert named.detail == (
+        f"The signing certificate names {organisation}, whose record it is; whether it is"
+        f" {organisation}'s own is for the trust check."
+    )
     assert report.verdict().startswith("NOT VERIFIED")
 
 
