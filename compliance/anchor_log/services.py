@@ -225,12 +225,15 @@ def log_pre_use_check(
     assert sheet.anchor is not None
     written = sheet.entries.all() if entries is None else entries
     failed = [e for e in written if e.verdict == "fail"]
-    details = (
-        "All items passed."
-        if not failed
-        else "Failed: "
-        + "; ".join(f"{e.item_key}{' (' + e.message + ')' if e.message else ''}" for e in failed)
-    )
+    labels = {item["key"]: item.get("label") or item["key"] for item in sheet.version.items}
+
+    def said(entry: ItemEntry) -> str:
+        label = labels.get(entry.item_key, entry.item_key)
+        if not entry.message or entry.message.startswith("Marked failed"):
+            return label
+        return f"{label}: {entry.message.removesuffix('.')}"
+
+    details = "All items passed." if not failed else f"Failed: {'; '.join(map(said, failed))}."
     org = sheet.filled_by.organisation_id
     if held is not None and org in held.credentials:
         credential = held.credentials[org]

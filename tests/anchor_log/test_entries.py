@@ -309,11 +309,16 @@ def test_a_contractors_pre_use_check_flows_into_the_log(building, simple_checkli
         version=simple_checklists["anchor"],
         by=b["operator"],
         anchor=anchor,
-        entries={**PASSING["anchor"], "sound": {"value": "fail"}},
+        entries={
+            **PASSING["anchor"],
+            "sound": {"value": "fail"},
+            "tag_capacity": {"value": 5, "unit": "kN"},
+        },
     )
     entry = AnchorLogEntry.objects.get(kind="pre_use_check")
     assert entry.anchor == anchor and entry.result == "fail"
-    assert entry.details == "Failed: sound (Marked failed: sound.)"
+    # The checklist's words for the owner, not its keys ("Failed: tag_capacity (...)").
+    assert entry.details == ("Failed: sound; tag capacity: 5 kN is below the minimum of 12 kN.")
     assert entry.performed_by_company == b["contractor"].name
     owner_view = (
         client_for(b["manager"])
