@@ -68,8 +68,9 @@ class Report:
     """The sealed document attached to the PDF, once its seal checked out."""
     certificate_organisation: str | None = field(default=None, repr=False, compare=False)
     """The organisation name (O=) in the signing certificate's subject."""
-    claim: str = "is exactly the record that was signed, and its place in the chain is intact"
-    """What VERIFIED says of the subject (an export says it of every record it holds)."""
+    claim: str = "is exactly the record that was signed"
+    """What VERIFIED says of the subject (an export says it of every record it holds); a record
+    whose chain was checked (on the server) adds that its place in the chain is intact."""
 
     @property
     def intact(self) -> bool:
@@ -520,6 +521,8 @@ def verify_pdf(
             trust = trust if trust is not None else stored_trust
             if report.signer is not None:
                 report.signer = replace(report.signer, organisation=organisation)
+        if any(c.name == "chain_intact" for c in report.checks):
+            report.claim += ", and its place in its organisation's chain is intact"
     check_trust(report, trust, chained)
     return report
 

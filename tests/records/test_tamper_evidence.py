@@ -190,6 +190,19 @@ def test_a_record_signed_with_another_organisations_registered_key_is_refused(si
     assert not report.ok
 
 
+def test_offline_the_verdict_claims_nothing_of_the_chain_it_did_not_check(signed, signed_pdf):
+    """Offline, with a trust list, VERIFIED said "its place in the chain is intact" of a single
+    PDF: no chain is read offline. On the server, where the chain is checked, it says so."""
+    trusted = [signed.credential.certificate_pem]
+
+    offline = verify_pdf(signed_pdf, trusted_pems=trusted, use_database=False)
+    online = verify_pdf(signed_pdf)
+
+    assert offline.ok and online.ok
+    assert "chain" not in offline.verdict()
+    assert "its place in its organisation's chain is intact" in online.verdict()
+
+
 def test_without_a_trust_anchor_the_answer_is_integrity_only(signed, signed_pdf):
     report = verify_pdf(signed_pdf, use_database=False)
     assert report.intact and not report.ok and not report.vouched
