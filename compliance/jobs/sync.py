@@ -331,6 +331,7 @@ def _apply_drop_log(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) 
     return {"drop_log": log.pk, "job": drop.job_id}
 
 
+REASON_MAX = 2000
 ACTIONS = {"start": services.start_job, "pause": services.pause_job, "close": services.close_job}
 
 
@@ -353,7 +354,13 @@ def _apply_job_action(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID
     action = data.get("action")
     if not isinstance(action, str) or action not in ACTIONS:
         raise RecordRejected({"action": [f"One of {', '.join(ACTIONS)}."]})
-    extra = {} if action == "start" else {"reason": str(data.get("reason", ""))[:2000]}
+    reason = data.get("reason", "")
+    if not isinstance(reason, str):
+        # An object was stored as its Python repr ("{'why': ...}") in the job's log.
+        raise RecordRejected({"reason": ["A reason is a text."]})
+    if len(reason) > REASON_MAX:
+        raise RecordRejected({"reason": [f"At most {REASON_MAX} characters."]})
+    extra = {} if action == "start" else {"reason": reason}
     job = ACTIONS[action](job=job, by=user, **extra)
     if run is not None and run.job is not None and job.pk == run.job_id:
         run.job = job  # the action's locked row, with the state it moved the job to

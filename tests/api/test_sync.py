@@ -426,3 +426,32 @@ def test_the_same_item_failing_again_keeps_one_hold_and_says_why_once(
     assert CheckSheet.objects.filter(job=job, verdict="fail").count() == 2
     sync(client, [site_record(job, simple_checklists)])
     assert not Hold.objects.filter(job=job, clearance__isnull=True).exists()
+
+
+@pytest.mark.parametrize(
+    ("reason", "words"),
+    [
+        ({"why": "rain"}, "A reason is a text."),
+        (["rain"], "A reason is a text."),
+        ("r" * 2001, "At most 2000 characters."),
+    ],
+)
+def test_a_job_action_s_reason_is_a_text_or_refused(
+    job, simple_checklists, operator, reason, words
+):
+    """An object was written into the job's log as its Python repr, and a long reason was cut
+    short without a word."""
+    from compliance.models import JobTransition
+
+    before = JobTransition.objects.filter(job=job).count()
+    record = {
+        "type": "job_action",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {"job": job.pk, "action": "pause", "reason": reason},
+    }
+
+    result = sync(client_for(operator), [record])["results"][0]
+
+    assert result["status"] == "rejected", result
+    assert result["errors"] == {"reason": [words]}
+    assert JobTransition.objects.filter(job=job).count() == before
