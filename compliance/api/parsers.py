@@ -32,6 +32,22 @@ def _first_constant(value: Any, path: str) -> str | None:
     return None
 
 
+class _DuplicateKey(ValueError):
+    pass
+
+
+def _unique_keys(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
+    """An object whose keys are each given once. RFC 8259 §4 leaves repeated names to the
+    reader; Python's decoder keeps the last, so `{"value": "fail", "value": "pass"}` read as a
+    pass where another reader (or a person) sees a fail."""
+    out: dict[str, Any] = {}
+    for key, value in pairs:
+        if key in out:
+            raise _DuplicateKey(f"the name {key!r} appears twice in one object")
+        out[key] = value
+    return out
+
+
 class JSONParser(parsers.JSONParser):
     """Python's json decoder raises RecursionError, not ValueError, past about a thousand
     levels of nesting; DRF's parser lets it through as a 500.
@@ -46,14 +62,20 @@ class JSONParser(parsers.JSONParser):
         encoding = parsers.get_encoding(parser_context or {})
         try:
             text = codecs.getreader(encoding)(stream).read()
-            return json.loads(text, parse_constant=strict_constant)
+            return json.loads(
+                text, parse_constant=strict_constant, object_pairs_hook=_unique_keys
+            )
         except RecursionError:
             raise ParseError("JSON parse error - nested too deeply.") from None
+        except _DuplicateKey as exc:
+            raise ParseError(f"JSON parse error - {exc}.") from None
         except ValueError as exc:
             if not str(exc).startswith("Out of range float values"):
                 raise ParseError(f"JSON parse error - {exc}") from None
         try:
-            kept = json.loads(text, parse_constant=lambda token: _Constant(token))
+            kept = json.loads(
+                text, parse_constant=lambda token: _Constant(token), object_pairs_hook=_unique_keys
+            )
         except (ValueError, RecursionError):  # not reached: the same text parsed up to here
             raise ParseError("JSON parse error - not valid JSON.") from None
         try:

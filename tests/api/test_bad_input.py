@@ -91,6 +91,22 @@ def test_nan_reading_is_refused(job, simple_checklists, operator):
     assert CheckSheet.objects.count() == 0
 
 
+def test_a_name_given_twice_in_one_object_is_refused(job, simple_checklists, operator):
+    """JSON leaves a repeated name to the reader (RFC 8259 §4): Python's kept the last, so
+    {"value": "fail", "value": "pass"} was stored as a pass that another reader sees as a fail."""
+    client = client_for(operator)
+    body = (
+        f'{{"job": {job.pk}, "version": {simple_checklists["site"].pk}, "entries": '
+        '{"zone_closed": {"value": "fail", "value": "pass"}}}'
+    )
+    response = client.post(reverse("sheet-list"), body, content_type="application/json")
+    assert response.status_code == 400
+    assert response.json() == {
+        "detail": "JSON parse error - the name 'value' appears twice in one object."
+    }
+    assert CheckSheet.objects.count() == 0
+
+
 def test_a_reading_in_another_accepted_unit_is_converted_and_kept_as_entered(
     job, simple_checklists, operator
 ):
