@@ -62,9 +62,7 @@ class JSONParser(parsers.JSONParser):
         encoding = parsers.get_encoding(parser_context or {})
         try:
             text = codecs.getreader(encoding)(stream).read()
-            return json.loads(
-                text, parse_constant=strict_constant, object_pairs_hook=_unique_keys
-            )
+            return json.loads(text, parse_constant=strict_constant, object_pairs_hook=_unique_keys)
         except RecursionError:
             raise ParseError("JSON parse error - nested too deeply.") from None
         except _DuplicateKey as exc:
