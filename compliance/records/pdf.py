@@ -483,6 +483,8 @@ FIRST_LAYOUT = "parapet.daily-record/2"
 as stored), so that the verifier, which draws a record again to compare its pages, still
 finds them equal. Later formats get the readable layout."""
 READABLE_LAYOUT = "parapet.daily-record/3"
+WITHOUT_NOTES = (FIRST_LAYOUT, READABLE_LAYOUT, "parapet.daily-record/4")
+"""The formats whose pages leave the job's notes out (they are drawn as they were signed)."""
 """Records sealed in this format keep the readable layout with every table cell set as a
 paragraph and the plots drawn as reportlab graphics. Later formats draw the same pages with
 plain cells and plots drawn on the canvas, which is what makes them quick to draw and check."""
@@ -497,6 +499,9 @@ class _Look:
     plain: bool = False
     """From /4: a table cell that fits on one line is drawn as plain text (one text operation,
     no paragraph to parse and break into lines), and a plot straight on the canvas."""
+    notes: bool = False
+    """From /5: the job's notes (sealed since /2, written when the day was planned) print on
+    the first page with the remarks; until then a person reading the pages never saw them."""
 
     @classmethod
     def of(cls, document: dict[str, Any]) -> "_Look":
@@ -507,7 +512,12 @@ class _Look:
             zone = ZoneInfo(str(record.get("time_zone") or "UTC"))
         except (ZoneInfoNotFoundError, ValueError):
             zone = ZoneInfo("UTC")
-        return cls(readable=True, zone=zone, plain=document.get("format") != READABLE_LAYOUT)
+        return cls(
+            readable=True,
+            zone=zone,
+            plain=document.get("format") != READABLE_LAYOUT,
+            notes=document.get("format") not in WITHOUT_NOTES,
+        )
 
     def cell(self, text: Any, style: ParagraphStyle) -> Any:
         """A table cell of `text`: plain (`_table(..., plain=True)` decides whether it fits on
@@ -672,6 +682,12 @@ def _cover(
     ]
     if document.get("remarks"):
         story += [_p("Remarks", s["h3"]), *_paras(document["remarks"], s["body"])]
+    job_notes = (record.get("job") or {}).get("notes")
+    if look.notes and isinstance(job_notes, str) and job_notes.strip():
+        story += [
+            _p("Job notes (written when the day was planned)", s["h3"]),
+            *_paras(job_notes, s["body"]),
+        ]
     story += [
         Spacer(1, 3 * mm),
         _p("Cautions", s["h3"]),

@@ -29,11 +29,20 @@ from compliance.records.pdf import _fits, _styles, document_of, read_attachment,
 from compliance.records.sealing import canonical_bytes
 
 FIXTURES = json.loads((Path(__file__).parent / "layouts" / "documents.json").read_text())
+NOTED = {
+    **FIXTURES["record"]["record"],
+    "job": {
+        **FIXTURES["record"]["record"]["job"],
+        "notes": "Scaffold on the east side until 14:00.",
+    },
+}
 DOCUMENTS = {
     **{
         f"record-{n}": {**FIXTURES["record"], "format": f"parapet.daily-record/{n}"}
         for n in (2, 3, 4)
     },
+    # /5 prints the job's notes: the fixed document with notes written.
+    "record-5": {**FIXTURES["record"], "record": NOTED, "format": "parapet.daily-record/5"},
     "addendum": FIXTURES["addendum"],
 }
 
@@ -41,6 +50,7 @@ PINNED = {
     "record-2": "1af3565704aac78ca024d232ceb61faf09995cb56e74a9b603999b088e764c69",
     "record-3": "1bf403c39c6803fef925baf34c1bf626e8056d675464caa8066fc1c8d1672ced",
     "record-4": "332a19adf82a43818d73067040eac864800488143d65d5a3f8cade8ca160876f",
+    "record-5": "38933f2fa38e8cef9320424e4e9ea1ea3a127ac866877112f248b8913d054c64",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
 }
 

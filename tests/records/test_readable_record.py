@@ -12,6 +12,7 @@ from django.conf import settings as django_settings
 from pypdf import PdfReader
 
 from compliance import clock
+from compliance.jobs.services import close_job, start_job
 from compliance.models import Hold
 from compliance.records import pdf as record_pdf
 from compliance.records import services as daily_records
@@ -136,6 +137,48 @@ def test_a_record_sealed_in_the_third_format_keeps_its_pages_and_verifies(
     assert page_prints(PdfReader(io.BytesIO(drawn_as_four))) != page_prints(
         PdfReader(io.BytesIO(pdf))
     )
+
+
+NOTES = "Rain from noon: both drops stopped at the 20th floor."
+
+
+def test_the_job_s_notes_sealed_in_the_record_are_printed_on_its_pages(
+    job, simple_checklists, operator, supervisor, credential, settings, tmp_path
+):
+    """The notes the day was planned with are sealed in every format, and no page printed
+    them: an auditor reading the signed PDF never saw what the record held."""
+    settings.MEDIA_ROOT = tmp_path
+    job.notes = NOTES
+    job.save()
+    fill_all(job, simple_checklists, operator)
+    with clock.replaying(job.date):
+        start_job(job=job, by=operator)
+        close_job(job=job, by=operator)
+    record = sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+
+    pdf = render_signed_pdf(record)
+
+    document = daily_records.json.loads(record.canonical_json)
+    assert document["record"]["job"]["notes"] == NOTES
+    assert NOTES in " ".join(text_of(pdf).split())
+    assert verify_pdf(pdf).ok
+
+
+def test_a_record_sealed_in_the_fourth_format_keeps_its_pages_and_verifies(
+    job, simple_checklists, operator, supervisor, credential, settings, tmp_path, monkeypatch
+):
+    """/4 holds the same document as /5 and leaves the job's notes off its pages; a /4 record
+    is drawn again the /4 way, so it still verifies."""
+    settings.MEDIA_ROOT = tmp_path
+    job.notes = NOTES
+    job.save()
+    record, _ = signed_in_format(
+        "parapet.daily-record/4", job, simple_checklists, operator, supervisor, monkeypatch
+    )
+    pdf = render_signed_pdf(record)
+    assert NOTES not in " ".join(text_of(pdf).split())
+    report = verify_pdf(pdf)
+    assert report.ok, report.lines()
 
 
 def test_the_demo_s_record_is_drawn_to_images_a_person_can_look_at(db, settings, tmp_path):
