@@ -36,7 +36,11 @@ def rewritten(pdf: bytes, change) -> bytes:
 def one_byte_in_the_first_certificate_copy(info, raw):
     signed = info["content"]
     assert len(signed["certificates"]) == 2  # the signer's certificate, twice
-    at = raw.find(signed["certificates"][0].chosen.dump()) + 89  # inside its issuer's name
+    # Inside its issuer's name, found by its bytes: a fixed offset moved with the length of the
+    # certificate's random serial number and, now and then, fell outside the name.
+    certificate = signed["certificates"][0].chosen
+    issuer = certificate["tbs_certificate"]["issuer"].dump()
+    at = raw.find(issuer, raw.find(certificate.dump())) + len(issuer) - 3
     changed = bytearray(raw)
     changed[at] ^= 0x01
     return bytes(changed).rstrip(b"\x00")

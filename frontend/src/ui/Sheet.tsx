@@ -169,7 +169,9 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
 
   // A focused element removed from the page may leave without a focusout: let such items go.
   useEffect(() => {
-    for (const key of Object.keys(steady)) if (!hasFocus(key) && !pointer.current.down) letGo(key);
+    // A calculation held with the reading it reads has no field: it goes when the reading goes.
+    const held = new Set(Object.keys(steady).flatMap((key) => readers(key)));
+    for (const key of Object.keys(steady)) if (!held.has(key) && !hasFocus(key) && !pointer.current.down) letGo(key);
   });
 
   function startAfresh() {
@@ -201,11 +203,24 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     return document.getElementById(`item-${key}`)?.contains(document.activeElement) ?? false;
   }
 
+  /** The calculations that read this reading: they keep their place while it is typed too,
+   * or a figure half typed moves a calculation above the field under the person's finger. */
+  function readers(key: string): string[] {
+    return (version?.items ?? [])
+      .filter((i) => i.kind === "calc" && Object.values(i.inputs ?? {}).some((source) => (source as Record<string, unknown>).reading === key))
+      .map((i) => i.key);
+  }
+
   /** The item's field took the focus: keep it where it is, and a reading at its current verdict. */
   function holdSteady(key: string, reading: boolean) {
-    const inStopWork = failed.some((v) => v.item.key === key);
+    const inStopWork = (k: string) => failed.some((v) => v.item.key === k);
     const text = draft.readings[key] ?? "";
-    setSteady((s) => (s[key] ? s : { ...s, [key]: reading ? { failed: inStopWork, text } : { failed: inStopWork } }));
+    setSteady((s) => {
+      if (s[key]) return s;
+      const held: Record<string, Steady> = { ...s, [key]: reading ? { failed: inStopWork(key), text } : { failed: inStopWork(key) } };
+      for (const other of reading ? readers(key) : []) if (!held[other]) held[other] = { failed: inStopWork(other) };
+      return held;
+    });
   }
 
   /** Commit what has been typed: the reading is judged, in place while its field has focus. */
@@ -227,7 +242,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
       if (hasFocus(key)) return; // back in the field before the tap was done
       setSteady((s) => {
         if (!(key in s)) return s;
-        const { [key]: _left, ...others } = s;
+        const others = { ...s };
+        for (const gone of [key, ...readers(key)]) delete others[gone];
         return others;
       });
     };
