@@ -1,6 +1,7 @@
 /** The daily records laid out by month and day (desk/recordMonth.ts): dates, grouping, words. */
 import { describe, expect, it } from "vitest";
 import {
+  byJob,
   asDay,
   asMonth,
   dayFrom,
@@ -115,5 +116,19 @@ describe("words", () => {
     expect(sheetsWords([sheet(1, 1, "pass", null), sheet(2, 1, "fail", null), sheet(3, 1, "na", null)])).toBe(
       "3 sheets: 1 pass, 1 fail, 1 not applicable",
     );
+  });
+});
+
+describe("a day of two jobs", () => {
+  it("keeps each job's record and sheets apart, in job order", () => {
+    // Two records on one day (a job signed safe and one stopped) read as one list of 19 sheets,
+    // with no word of which sheet was whose.
+    const sheet = (id: number, job: number) => ({ id, job }) as unknown as Sheet;
+    const groups = byJob([{ job: 9, id: 5 }, { job: 4, id: 4 }], [sheet(1, 4), sheet(2, 9), sheet(3, 4)]);
+    expect(groups.map((g) => [g.job, g.records.map((r) => r.id), g.sheets.map((s) => s.id)])).toEqual([
+      [4, [4], [1, 3]],
+      [9, [5], [2]],
+    ]);
+    expect(byJob([], [sheet(1, 4)])).toEqual([{ job: 4, records: [], sheets: [sheet(1, 4)] }]);
   });
 });

@@ -10,7 +10,7 @@ import { Badge } from "../ui/signs";
 import { dayFrom as todayFrom, desk, type SiteAnchor } from "./api";
 import { DeskCaution } from "./parts";
 import { ExportPanel, PdfLink, VerifyPanel } from "./recordChecks";
-import { dayFrom, dayState, dayWords, plural, sheetsWords, verdictWord, type Sheet } from "./recordMonth";
+import { byJob, dayFrom, dayState, dayWords, plural, sheetsWords, verdictWord, type Sheet } from "./recordMonth";
 import { errorWords, recordsHref, Trail, useRecordSite, Waiting } from "./recordPage";
 import { records } from "./recordsApi";
 
@@ -225,6 +225,7 @@ export function RecordDay({ siteId, day, user }: { siteId: number; day: string; 
   const state = dayState({ date: day, records: signed, addenda, sheets: data.sheets }, today);
   // An addendum whose record is not among the day's (not expected): shown on its own.
   const loose = addenda.filter((a) => !signed.some((r) => r.id === a.amends));
+  const jobs = byJob(signed, data.sheets);
 
   return (
     <>
@@ -243,16 +244,31 @@ export function RecordDay({ siteId, day, user }: { siteId: number; day: string; 
       {signed.length === 0 && (
         <p data-testid="day-no-record">No daily record of this day is signed{data.sheets.length ? " although sheets were filled" : ""}.</p>
       )}
-      {signed.map((r) => (
-        <RecordCard key={r.id} record={r} addenda={addenda.filter((a) => a.amends === r.id)} />
-      ))}
+      {jobs.length > 1 ? (
+        jobs.map((group) => (
+          <section key={group.job} class="desk-day-job" aria-labelledby={`job-${group.job}-head`} data-testid={`day-job-${group.job}`}>
+            <h2 id={`job-${group.job}-head`}>Job {group.job}: {group.records.length ? "signed" : "not signed"}, {sheetsWords(group.sheets).toLowerCase()}</h2>
+            {group.records.map((r) => (
+              <RecordCard key={r.id} record={r} addenda={addenda.filter((a) => a.amends === r.id)} />
+            ))}
+            <h3>Sheets filled for job {group.job}</h3>
+            <SheetTable sheets={group.sheets} names={names} />
+          </section>
+        ))
+      ) : (
+        <>
+          {signed.map((r) => (
+            <RecordCard key={r.id} record={r} addenda={addenda.filter((a) => a.amends === r.id)} />
+          ))}
+          <section aria-labelledby="sheets-head">
+            <h2 id="sheets-head">Sheets filled for this day</h2>
+            <SheetTable sheets={data.sheets} names={names} />
+          </section>
+        </>
+      )}
       {loose.map((a) => (
         <AddendumCard key={a.id} addendum={a} />
       ))}
-      <section aria-labelledby="sheets-head">
-        <h2 id="sheets-head">Sheets filled for this day</h2>
-        <SheetTable sheets={data.sheets} names={names} />
-      </section>
       <ExportPanel siteId={site.id} start={day} end={day} />
       <DeskCaution />
     </>

@@ -165,6 +165,18 @@ export function sheetsWords(sheets: Sheet[]): string {
   return `${plural(sheets.length, "sheet", "sheets")}: ${counts.join(", ")}`;
 }
 
+/** A day's records and sheets by the job they belong to, in job order: two jobs of one day (two
+ * crews, or a second job planned later) each keep their own record, sheets and verdicts, rather
+ * than one list in which no sheet says whose it is. */
+export function byJob<R extends { job: number }>(records: R[], sheets: Sheet[]): { job: number; records: R[]; sheets: Sheet[] }[] {
+  const jobs = [...new Set([...records.map((r) => r.job), ...sheets.map((s) => s.job)])].sort((a, b) => a - b);
+  return jobs.map((job) => ({
+    job,
+    records: records.filter((r) => r.job === job),
+    sheets: sheets.filter((s) => s.job === job),
+  }));
+}
+
 export function verdictWord(verdict: Sheet["verdict"]): string {
   const word = VERDICT_WORDS[verdict] ?? verdict;
   return word.charAt(0).toUpperCase() + word.slice(1);
