@@ -10,6 +10,9 @@ export const REPEAT_TAP_MS = 4000;
 export const WHOLE_DROP = "Whole drop done.";
 const PART = "Part of the drop: ";
 
+/** The most a part-drop note's typed words may be: the server's limit less the choice's words. */
+export const PART_NOTE_MAX = DROP_NOTE_MAX - PART.length;
+
 export type DropChoice = "whole" | "part";
 
 /** The note to send: the words of the button chosen, with what was typed for part of a drop. */
@@ -19,7 +22,7 @@ export function dropNote(choice: DropChoice, typed: string): { note: string } | 
   if (!words) return { problem: "Say which part of the drop was done." };
   const note = `${PART}${words}`;
   if (note.length > DROP_NOTE_MAX) {
-    return { problem: `Keep it under ${DROP_NOTE_MAX - PART.length} characters; the server takes no more.` };
+    return { problem: `Keep it to ${PART_NOTE_MAX} characters; the server takes no more.` };
   }
   return { note };
 }

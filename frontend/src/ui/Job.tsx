@@ -11,7 +11,7 @@ import { holdClearedBy, holdTitle, OWNER_CLEARS } from "../holds";
 import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
 import { activeRefusals, errorLines } from "../refusals";
 import { mayClose, opensOn, registerBlockers } from "../job_rules";
-import { DROP_NOTE_MAX, dropNote, tapGuard, type DropChoice } from "../drops";
+import { dropNote, PART_NOTE_MAX, tapGuard, type DropChoice } from "../drops";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { canRecord, canSign, READ_ONLY_WORDS } from "../signoff";
 import { Badge, StateBadge, type SignKind } from "./signs";
@@ -318,7 +318,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
                     <>
                       <label class="field">
                         <span>Which part was done?</span>
-                        <textarea rows={2} maxLength={DROP_NOTE_MAX - 18} value={dropOpen.note} data-testid="drop-part-note"
+                        <textarea rows={2} maxLength={PART_NOTE_MAX} value={dropOpen.note} data-testid="drop-part-note"
                           onInput={(e) => setDropOpen({ ...dropOpen, note: (e.target as HTMLTextAreaElement).value, problem: "" })} />
                       </label>
                       <button class="btn btn-primary" type="button" onClick={() => void logDrop(d.id, d.label, "part", dropOpen.note)}
