@@ -1,9 +1,11 @@
 """Input parsing and output shapes for the API; no serializer saves domain state itself."""
 
+import datetime as dt
 import math
 from typing import Any
 
 from django.urls import reverse
+from django.utils import timezone
 from rest_framework import serializers
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry, Verdict
@@ -24,7 +26,7 @@ from compliance.models import (
 )
 from compliance.registers.bounds import MAX_RATED_CAPACITY_KN, MAX_SITE_HEIGHT_M, STOREYS
 from compliance.registers.ratings import EQUIPMENT_KINDS
-from compliance.registers.selectors import withdrawn_reason
+from compliance.registers.selectors import withdrawal
 from compliance.registers.visibility import anchors_visible_to, sites_visible_to
 
 
@@ -205,6 +207,7 @@ class EquipmentSerializer(StrictInput, serializers.ModelSerializer):
     made_on = PlausibleDateField(required=False, allow_null=True)
     next_inspection_due = PlausibleDateField(required=False, allow_null=True)
     out_of_service_reason = serializers.SerializerMethodField()
+    out_of_service_since = serializers.SerializerMethodField()
 
     class Meta:
         model = Equipment
@@ -218,15 +221,27 @@ class EquipmentSerializer(StrictInput, serializers.ModelSerializer):
             "next_inspection_due",
             "in_service",
             "out_of_service_reason",
+            "out_of_service_since",
         ]
+
+    def _withdrawal(self, item: Equipment) -> tuple[dt.datetime | None, str]:
+        if hasattr(item, "withdrawn_reason"):
+            return getattr(item, "withdrawn_at", None), item.withdrawn_reason or ""
+        found = withdrawal(item)
+        return found.at, found.reason
 
     def get_out_of_service_reason(self, item: Equipment) -> str | None:
         """Why it is out of service, as said when it was taken out (None while in service)."""
         if item.in_service or item.pk is None:
             return None
-        if hasattr(item, "withdrawn_reason"):
-            return item.withdrawn_reason or ""
-        return withdrawn_reason(item)
+        return self._withdrawal(item)[1]
+
+    def get_out_of_service_since(self, item: Equipment) -> dt.date | None:
+        """The day (local) it was taken out of service (None while in service or unrecorded)."""
+        if item.in_service or item.pk is None:
+            return None
+        at = self._withdrawal(item)[0]
+        return timezone.localdate(at) if at else None
 
 
 class RatingFieldSerializer(serializers.Serializer):
@@ -432,11 +447,15 @@ class JobDetailSerializer(JobSerializer):
     blockers = ReasonSerializer(many=True, read_only=True)
     holds = HoldSerializer(many=True, read_only=True)
     cautions = serializers.CharField(read_only=True)
+    work_started = serializers.BooleanField(
+        read_only=True,
+        help_text="Whether work ever started (only a supervisor or an admin closes it before).",
+    )
 
     class Meta(JobSerializer.Meta):
         fields = [
             *JobSerializer.Meta.fields,
-            *("drops", "requirements", "blockers", "holds", "cautions"),
+            *("drops", "requirements", "blockers", "holds", "cautions", "work_started"),
         ]
 
 

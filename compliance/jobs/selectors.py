@@ -4,6 +4,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 
 from django.db.models import Exists, OuterRef, Prefetch, QuerySet, prefetch_related_objects
+from django.utils import timezone
 
 from checklists.selectors import current_versions, latest_sheets
 from compliance.errors import Reason
@@ -20,7 +21,7 @@ from compliance.models import (
     JobTransition,
     User,
 )
-from compliance.registers.selectors import anchor_status
+from compliance.registers.selectors import anchor_status, withdrawal
 from compliance.registers.visibility import can_work_at
 
 
@@ -177,7 +178,8 @@ def job_blockers(
         reasons.append(
             Reason("no_grant_for_day", "The building owner's access grant does not cover this day.")
         )
-    seen: set[int] = set()
+    # Anchors and equipment apart: an anchor and a robot may share a primary key.
+    seen: set[tuple[str, int]] = set()
     for drop in drops:
         # The plan check refused these; the register may have changed since.
         for line in (drop.tether, drop.safety_line):
@@ -192,9 +194,9 @@ def job_blockers(
                     )
                 )
         for anchor in (drop.anchor, drop.safety_anchor):
-            if anchor.pk in seen:
+            if ("anchor", anchor.pk) in seen:
                 continue
-            seen.add(anchor.pk)
+            seen.add(("anchor", anchor.pk))
             cert = anchor.current_certification()
             ref = f"anchor:{anchor.pk}"
             if cert is None:
@@ -243,14 +245,18 @@ def job_blockers(
                     )
                 )
         for item in (drop.robot, drop.tether, drop.safety_line, drop.hose):
-            if item.pk in seen:
+            if ("equipment", item.pk) in seen:
                 continue
-            seen.add(item.pk)
+            seen.add(("equipment", item.pk))
             if not item.in_service:
+                # Read only for what is out of service: the register's reason and day.
+                gone = withdrawal(item)
+                since = f" since {timezone.localdate(gone.at):%Y-%m-%d}" if gone.at else ""
+                why = f": {gone.reason}" if gone.reason.strip() else "."
                 reasons.append(
                     Reason(
                         "equipment_out_of_service",
-                        f"{item.label} is out of service.",
+                        f"{item.label} is out of service{since}{why}",
                         f"equipment:{item.pk}",
                     )
                 )

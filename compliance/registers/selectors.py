@@ -53,26 +53,37 @@ WITHDRAWN = "taken out of service"
 
 
 def equipment_of(organisation_id: int | None) -> QuerySet[Equipment]:
-    """The organisation's equipment, each with the reason given when it was last taken out of
-    service (from its audit entries, in the same query)."""
-    reason = (
-        RegisterChange.objects.filter(
-            subject="equipment", object_id=OuterRef("pk"), action=WITHDRAWN
-        )
-        .order_by("-at", "-pk")
-        .values("changes__reason")[:1]
-    )
+    """The organisation's equipment, each with the reason given and the time when it was last
+    taken out of service (from its audit entries, in the same query)."""
+    last = RegisterChange.objects.filter(
+        subject="equipment", object_id=OuterRef("pk"), action=WITHDRAWN
+    ).order_by("-at", "-pk")
     return Equipment.objects.filter(organisation_id=organisation_id).annotate(
-        withdrawn_reason=Subquery(reason)
+        withdrawn_reason=Subquery(last.values("changes__reason")[:1]),
+        withdrawn_at=Subquery(last.values("at")[:1]),
     )
+
+
+@dataclass(frozen=True)
+class Withdrawal:
+    """When a piece of equipment was last taken out of service, and why."""
+
+    at: dt.datetime | None
+    reason: str
+
+
+def withdrawal(item: Equipment) -> Withdrawal:
+    """The last time this equipment was taken out of service and the reason then given (an
+    empty reason and no time if its audit entries hold none)."""
+    found = (
+        RegisterChange.objects.filter(subject="equipment", object_id=item.pk, action=WITHDRAWN)
+        .order_by("-at", "-pk")
+        .values_list("at", "changes__reason")
+        .first()
+    )
+    return Withdrawal(found[0], found[1] or "") if found else Withdrawal(None, "")
 
 
 def withdrawn_reason(item: Equipment) -> str:
     """The reason given when this equipment was last taken out of service ("" if none)."""
-    found = (
-        RegisterChange.objects.filter(subject="equipment", object_id=item.pk, action=WITHDRAWN)
-        .order_by("-at", "-pk")
-        .values_list("changes__reason", flat=True)
-        .first()
-    )
-    return found or ""
+    return withdrawal(item).reason

@@ -1009,6 +1009,8 @@ export interface components {
             next_inspection_due?: string | null;
             in_service?: boolean;
             readonly out_of_service_reason: string | null;
+            /** Format: date */
+            readonly out_of_service_since: string | null;
         };
         EquipmentKind: {
             kind: string;
@@ -1111,6 +1113,7 @@ export interface components {
             readonly blockers: components["schemas"]["Reason"][];
             readonly holds: components["schemas"]["Hold"][];
             readonly cautions: string;
+            readonly work_started: boolean;
         };
         JobRequest: {
             site: number;

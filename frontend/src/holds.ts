@@ -31,3 +31,30 @@ export function holdClearedBy(key: string): "owner" | "recheck" {
 
 export const OWNER_CLEARS =
   "Only the building's owner clears this, by returning the anchor to service in its log book after the repair. No check on this phone clears it.";
+
+interface HoldTimes {
+  opened_at: string;
+  cleared_at: string | null;
+}
+
+/** The day's stop-work holds in words, cleared ones included: how many, and when each was
+ * opened and cleared. `time` formats a timestamp for the reader. */
+export function holdsOfDay(
+  holds: readonly HoldTimes[],
+  time: (iso: string) => string,
+): { stopped: boolean; headline: string; lines: string[] } {
+  if (holds.length === 0) return { stopped: false, headline: "No stop-work hold this day", lines: [] };
+  const sorted = [...holds].sort((a, b) => a.opened_at.localeCompare(b.opened_at));
+  const open = sorted.filter((h) => !h.cleared_at).length;
+  const times = sorted.length === 1 ? "1 time" : `${sorted.length} times`;
+  const tail = open === 0 ? "cleared" : open === sorted.length && open === 1 ? "still open" : `${open} still open`;
+  return {
+    stopped: true,
+    headline: `Stop work ${times} this day; ${tail}`,
+    lines: sorted.map((h) =>
+      h.cleared_at
+        ? `Stop work opened ${time(h.opened_at)}, cleared ${time(h.cleared_at)}.`
+        : `Stop work opened ${time(h.opened_at)}, still open.`,
+    ),
+  };
+}

@@ -23,6 +23,8 @@ export interface OutboxEntry {
   reasons?: Reason[];
   server?: { sheet?: number; verdict?: string; state?: string; duplicate?: boolean };
   answered_at?: string;
+  /** A refusal the person dismissed (a later action made it moot): no longer shown as one. */
+  dismissed_at?: string;
 }
 
 export interface PhotoEntry {
@@ -136,6 +138,13 @@ export async function outboxWaiting(): Promise<OutboxEntry[]> {
 
 export async function outboxPut(entry: OutboxEntry): Promise<void> {
   await (await db()).put("outbox", entry);
+}
+
+/** Mark a refused record as dismissed: kept for the outbox's list, no longer a banner. */
+export async function outboxDismiss(uuid: string): Promise<void> {
+  const database = await db();
+  const entry = await database.get("outbox", uuid);
+  if (entry?.status === "rejected") await database.put("outbox", { ...entry, dismissed_at: new Date().toISOString() });
 }
 
 export async function outboxDelete(uuid: string): Promise<void> {

@@ -17,6 +17,7 @@ import {
   type OutboxEntry,
 } from "./storage";
 import type { SyncResultLine } from "./types";
+import { activeRefusals } from "./refusals";
 
 const BATCH = 200;
 const KEEP_ANSWERED_MS = 3 * 24 * 3600 * 1000;
@@ -35,7 +36,7 @@ export async function refreshCounts(): Promise<void> {
   ]);
   setStatus({
     waiting: records.filter((r) => r.status === "waiting").length,
-    rejected: records.filter((r) => r.status === "rejected").length,
+    rejected: activeRefusals(records).length,
     photosWaiting: photos.filter((p) => !p.uploaded && !p.error).length,
     lastSync,
   });
@@ -139,7 +140,8 @@ async function sendPhotos(touched: Set<number>): Promise<void> {
 async function prune(): Promise<void> {
   const cutoff = Date.now() - KEEP_ANSWERED_MS;
   for (const entry of await outboxAll()) {
-    if (entry.status === "applied" && entry.answered_at && Date.parse(entry.answered_at) < cutoff) {
+    const done = entry.status === "applied" ? entry.answered_at : entry.status === "rejected" ? entry.dismissed_at : undefined;
+    if (done && Date.parse(done) < cutoff) {
       await outboxDelete(entry.client_uuid);
     }
   }

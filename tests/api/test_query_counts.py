@@ -91,7 +91,7 @@ EXPECTED: dict[str, int] = {
     "equipment-detail": 1,
     "equipment-kinds": 0,
     "job-list": 2,
-    "job-detail": 8,
+    "job-detail": 9,  # with whether work ever started (one EXISTS on its transitions)
     "job-transitions": 2,
     "checklist-list": 3,
     "checklist-detail": 2,

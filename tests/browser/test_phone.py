@@ -206,6 +206,7 @@ def test_start_log_drops_and_a_rejected_record_stays_visible(live_server, demo, 
     wait_state(page, "working")
     assert Job.objects.get(pk=job.pk).state == "working"
     page.click(".drop:has-text('North 1') button:has-text('Log drop done')")
+    page.click(".drop:has-text('North 1') [data-testid=drop-whole]")
     page.wait_for_selector(".drop:has-text('North 1') :text('Logged done')")
     wait_waiting(page, 0)
     assert DropLog.objects.filter(drop__job=job, drop__label="North 1").count() == 1
@@ -213,6 +214,7 @@ def test_start_log_drops_and_a_rejected_record_stays_visible(live_server, demo, 
     # Logged offline while the supervisor paused the job on the server: the server refuses it.
     context.set_offline(True)
     page.click(".drop:has-text('North 2') button:has-text('Log drop done')")
+    page.click(".drop:has-text('North 2') [data-testid=drop-whole]")
     wait_waiting(page, 1)
     off_loop(lambda: services.pause_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
     context.set_offline(False)

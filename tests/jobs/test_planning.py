@@ -297,3 +297,23 @@ def test_a_line_shortened_in_the_register_after_planning_keeps_the_job_from_star
         f"Drop {drop.label}: tether {drop.tether.label} is 20 m long, shorter than the"
         f" {drop.length_m:g} m drop."
     ]
+
+
+def test_equipment_taken_out_after_planning_is_named_with_its_day_and_reason(job, operator):
+    """The job's blockers say why the robot is out and since when (the phone and the desk show
+    them before anyone reaches the roof), and the job's detail says whether work ever started,
+    so the phone offers Close to an operator only once it has."""
+    from compliance.jobs.selectors import job_blockers
+
+    drop = job.drops.get()
+    register_services.update_equipment(
+        item=drop.robot, by=job.supervisor, reason="Vacuum pump fault.", in_service=False
+    )
+    messages = [r.message for r in job_blockers(job) if r.code == "equipment_out_of_service"]
+    assert messages == [
+        f"{drop.robot.label} is out of service since {timezone.localdate():%Y-%m-%d}:"
+        " Vacuum pump fault."
+    ]
+    detail = client_for(operator).get(reverse("job-detail", args=[job.pk])).json()
+    assert detail["work_started"] is False
+    assert messages[0] in [b["message"] for b in detail["blockers"]]

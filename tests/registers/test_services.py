@@ -11,6 +11,7 @@ from django.contrib.admin.sites import site as admin_site
 from django.core.exceptions import ValidationError
 from django.test import RequestFactory
 from django.urls import reverse
+from django.utils import timezone
 
 from checklists.models import Checklist
 from checklists.services import create_checklist
@@ -333,14 +334,18 @@ def test_equipment_out_of_service_says_why(keeper, django_assert_num_queries):
     url = reverse("equipment-detail", args=[hose.pk])
     answer = client.patch(url, {"in_service": False, "reason": "Kinked at 40 m."}, format="json")
     assert answer.json()["out_of_service_reason"] == "Kinked at 40 m."
+    today = timezone.localdate().isoformat()
+    assert answer.json()["out_of_service_since"] == today
     with django_assert_num_queries(2):  # the count, the page with each reason (token auth)
         listed = client.get(reverse("equipment-list")).json()["results"]
-    assert {i["label"]: i["out_of_service_reason"] for i in listed} == {
-        "H7": "Kinked at 40 m.",
-        "H8": None,
+    shown = {i["label"]: (i["out_of_service_reason"], i["out_of_service_since"]) for i in listed}
+    assert shown == {
+        "H7": ("Kinked at 40 m.", today),
+        "H8": (None, None),
     }
     client.patch(url, {"in_service": True}, format="json")
     assert client.get(url).json()["out_of_service_reason"] is None
+    assert client.get(url).json()["out_of_service_since"] is None
 
 
 def test_an_anchor_s_certificates_are_listed_newest_first(keeper):

@@ -16,6 +16,13 @@ const MINIMUM_WORDS: Record<string, string> = {
   zero_or_more: "zero or more",
 };
 
+/** Why and since when an item is out of service, as the register recorded it. */
+function outOfServiceWords(item: Equipment): string {
+  const since = item.out_of_service_since ? `Out of service since ${item.out_of_service_since}` : "Out of service";
+  const why = item.out_of_service_reason?.trim();
+  return why ? `${since}: ${why}` : `${since}; no reason was recorded.`;
+}
+
 function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equipment) => void }) {
   const [open, setOpen] = useState(false);
   const [due, setDue] = useState(item.next_inspection_due ?? "");
@@ -57,6 +64,11 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
       <span class="muted">
         {item.serial ? `Serial ${item.serial} · ` : ""}Next inspection {item.next_inspection_due ?? "not recorded"}
       </span>
+      {!inService && (
+        <p class="small" data-testid="item-out-why">
+          {outOfServiceWords(item)}
+        </p>
+      )}
       {done && <p class="note" role="status" data-testid="item-done">{done}</p>}
       <button class="btn btn-small" type="button" aria-expanded={open} onClick={() => setOpen(!open)} data-testid="item-change">
         {open ? "Close" : `Change ${item.label}`}

@@ -3,7 +3,8 @@
  * held and has no signed record links to the sign-off screen, where the supervisor signs it.
  */
 import { useEffect, useState } from "preact/hooks";
-import type { JobSummary } from "../types";
+import type { JobSummary, Reason } from "../types";
+import { registerBlockers } from "../job_rules";
 import { href } from "../ui/hooks";
 import { Badge, StateBadge } from "../ui/signs";
 import { dayFrom, desk, fieldErrors } from "./api";
@@ -11,17 +12,20 @@ import { dayFrom, desk, fieldErrors } from "./api";
 interface Loaded {
   jobs: JobSummary[];
   signed: Set<number>;
+  /** Of the days still to work: what the server holds against the start, by job. */
+  blockers: Map<number, Reason[]>;
 }
 
 interface TableProps {
   jobs: JobSummary[];
   signed: Set<number>;
+  blockers: Map<number, Reason[]>;
   today: string;
   testid: string;
   plans: boolean;
 }
 
-function JobTable({ jobs, signed, today, testid, plans }: TableProps) {
+function JobTable({ jobs, signed, blockers, today, testid, plans }: TableProps) {
   if (!jobs.length) return <p class="muted" data-testid={`${testid}-none`}>No jobs.</p>;
   return (
     <table class="desk-table desk-jobs" data-testid={testid}>
@@ -42,7 +46,14 @@ function JobTable({ jobs, signed, today, testid, plans }: TableProps) {
             <tr key={job.id} data-testid={`desk-job-${job.id}`} data-date={job.date} data-state={job.state}>
               <td>{job.date}</td>
               <th scope="row">{job.site_name}</th>
-              <td><StateBadge state={job.state} /></td>
+              <td>
+                <StateBadge state={job.state} />
+                {(blockers.get(job.id) ?? []).length > 0 && (
+                  <ul class="small" data-testid="job-blockers" aria-label="The server will refuse to start it">
+                    {blockers.get(job.id)!.map((r, n) => <li key={n}>{r.message}</li>)}
+                  </ul>
+                )}
+              </td>
               <td>{job.supervisor_name}</td>
               <td>
                 <div class="desk-actions">
@@ -81,7 +92,14 @@ export function DeskJobs({ plans }: { plans: boolean }) {
         const past = jobs.filter((j) => j.date <= today).map((j) => j.date).sort();
         const records = past.length ? await desk.records(past[0]!) : [];
         const signed = new Set(records.filter((r) => r.kind === "record").map((r) => r.job));
-        setLoaded({ jobs, signed });
+        // Days still to work: their blockers come with each job's detail (a few jobs at most).
+        const ahead = jobs.filter((j) => j.date >= today && j.state !== "closed");
+        const details = await Promise.allSettled(ahead.map((j) => desk.job(j.id)));
+        const blockers = new Map<number, Reason[]>();
+        for (const d of details) {
+          if (d.status === "fulfilled") blockers.set(d.value.id, registerBlockers(d.value.blockers));
+        }
+        setLoaded({ jobs, signed, blockers });
       } catch (e) {
         setError(Object.values(fieldErrors(e)).flat().join(" "));
       }
@@ -94,6 +112,7 @@ export function DeskJobs({ plans }: { plans: boolean }) {
   const upcoming = jobs.filter((j) => j.date > today).sort(byDate);
   const past = jobs.filter((j) => j.date < today).sort((a, b) => byDate(b, a));
   const signed = loaded?.signed ?? new Set<number>();
+  const blockers = loaded?.blockers ?? new Map<number, Reason[]>();
 
   return (
     <>
@@ -107,15 +126,15 @@ export function DeskJobs({ plans }: { plans: boolean }) {
         <>
           <section aria-labelledby="jobs-today">
             <h2 id="jobs-today">Today, {today}</h2>
-            <JobTable jobs={todays} signed={signed} today={today} testid="jobs-today" plans={plans} />
+            <JobTable jobs={todays} signed={signed} blockers={blockers} today={today} testid="jobs-today" plans={plans} />
           </section>
           <section aria-labelledby="jobs-upcoming">
             <h2 id="jobs-upcoming">Upcoming</h2>
-            <JobTable jobs={upcoming} signed={signed} today={today} testid="jobs-upcoming" plans={plans} />
+            <JobTable jobs={upcoming} signed={signed} blockers={blockers} today={today} testid="jobs-upcoming" plans={plans} />
           </section>
           <section aria-labelledby="jobs-past">
             <h2 id="jobs-past">Past</h2>
-            <JobTable jobs={past} signed={signed} today={today} testid="jobs-past" plans={plans} />
+            <JobTable jobs={past} signed={signed} blockers={blockers} today={today} testid="jobs-past" plans={plans} />
           </section>
         </>
       )}

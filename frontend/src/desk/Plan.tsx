@@ -6,7 +6,8 @@
 import { useEffect, useRef, useState } from "preact/hooks";
 import type { Anchor, Equipment, JobDetail, Site, User } from "../types";
 import { go, href } from "../ui/hooks";
-import { StateBadge } from "../ui/signs";
+import { Badge, StateBadge } from "../ui/signs";
+import { registerBlockers } from "../job_rules";
 import { dayFrom, desk, fieldErrors, type Conflict, type DropInput, type PlanChoice } from "./api";
 import { ConflictLines, DeskCaution, describedBy, FieldErrors } from "./parts";
 import { RoofPlan, SLOT_WORDS, type AnchorSlot } from "./RoofPlan";
@@ -229,6 +230,12 @@ function Planner({ jobId }: { jobId: number }) {
         <StateBadge state={job.state} testid="plan-job-state" />
       </div>
       <p class="muted">Supervisor {job.supervisor_name} · <a class="inline-link" href={href({ name: "desk", page: "jobs" })}>All days and jobs</a></p>
+      {job.state !== "closed" && registerBlockers(job.blockers).length > 0 && (
+        <section class="card alert" data-testid="job-blockers" aria-label="Why the server will refuse to start this job">
+          <Badge kind="held" word="The server will refuse to start this job" />
+          <ul>{registerBlockers(job.blockers).map((r, n) => <li key={n}>{r.message}</li>)}</ul>
+        </section>
+      )}
 
       <section aria-labelledby="drops-head">
         <h2 id="drops-head">Drops planned ({job.drops.length})</h2>

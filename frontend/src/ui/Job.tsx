@@ -1,19 +1,26 @@
 import { useEffect, useState } from "preact/hooks";
 import { api, ApiError, OfflineError } from "../api";
-import { keptJob, loadJob, loadRecordOf } from "../repo";
+import { keptJob, loadJob, loadRecordOf, today } from "../repo";
 import { enqueue } from "../outbox";
-import { cachePut, outboxAll, type OutboxEntry } from "../storage";
-import { requestSync } from "../sync";
+import { cachePut, outboxAll, outboxDismiss, type OutboxEntry } from "../storage";
+import { refreshCounts, requestSync } from "../sync";
 import { dataChanged } from "../status";
 import type { DailyRecord, JobDetail, Reason, Requirement, User } from "../types";
 import { deviceTime } from "../uuid";
 import { holdClearedBy, holdTitle, OWNER_CLEARS } from "../holds";
-import { BottomBar, CautionLine, errorLines, Header, loadWords, plainReason } from "./common";
+import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
+import { activeRefusals, errorLines } from "../refusals";
+import { mayClose, opensOn, registerBlockers } from "../job_rules";
+import { dropNote, PART_NOTE_MAX, tapGuard, type DropChoice } from "../drops";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { canRecord, canSign, READ_ONLY_WORDS } from "../signoff";
 import { Badge, StateBadge, type SignKind } from "./signs";
 
-function requirementStatus(req: Requirement, mine: OutboxEntry | undefined): { kind: SignKind; word: string } {
+/** Taps on a drop's buttons: one log per tap, whatever the screen re-renders in between. */
+const dropTaps = tapGuard();
+
+function requirementStatus(req: Requirement, mine: OutboxEntry | undefined, opens: string | null): { kind: SignKind; word: string } {
+  if (opens) return { kind: "mustdo", word: `Opens on ${opens}` };
   if (mine?.status === "waiting") {
     return mine.local_verdict === "fail"
       ? { kind: "held", word: "Failed on this phone, waiting to send" }
@@ -38,6 +45,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   const [closeReason, setCloseReason] = useState("");
   const [busy, setBusy] = useState(false);
   const [record, setRecord] = useState<DailyRecord | null>(null);
+  const [dropOpen, setDropOpen] = useState<{ drop: number; choice: DropChoice | null; note: string; problem: string } | null>(null);
 
   useEffect(() => {
     (async () => {
@@ -73,7 +81,9 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
     [...outbox].reverse().find((e) => e.requirement === key && e.record.type === "sheet");
   const openHolds = job.holds.filter((h) => !h.cleared_at);
   const localFails = outbox.filter((e) => e.status === "waiting" && e.local_verdict === "fail");
-  const rejected = outbox.filter((e) => e.status === "rejected");
+  const rejected = activeRefusals(outbox);
+  const opens = opensOn(job.date, today());
+  const heldBack = registerBlockers(job.blockers);
   const waitingHere = outbox.filter((e) => e.status === "waiting");
   const signHere = canSign(user) && dayOver && !record;
 
@@ -128,13 +138,32 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
     setMessage("Close queued; the server's answer shows here once sent.");
   }
 
-  async function logDrop(dropId: number, label: string) {
+  /** Log the drop with the note the operator chose or typed; a repeated tap does nothing. */
+  async function logDrop(dropId: number, label: string, choice: DropChoice, typed: string) {
     if (!job) return;
-    await enqueue(
-      { type: "drop_log", data: { drop: dropId, device_time: deviceTime(), note: "Drop cleaned top to bottom." } },
-      { label: `Drop done: ${label}`, job: job.id },
-    );
-    setMessage(`Drop ${label} logged.`);
+    const made = dropNote(choice, typed);
+    if ("problem" in made) {
+      setDropOpen({ drop: dropId, choice, note: typed, problem: made.problem });
+      return;
+    }
+    const tap = `drop:${dropId}`;
+    if (!dropTaps.begin(tap, Date.now())) return;
+    try {
+      await enqueue(
+        { type: "drop_log", data: { drop: dropId, device_time: deviceTime(), note: made.note } },
+        { label: `Drop done: ${label} (${made.note})`, job: job.id },
+      );
+      setDropOpen(null);
+      setMessage(`Drop ${label} logged: ${made.note}`);
+    } finally {
+      dropTaps.end(tap);
+    }
+  }
+
+  async function dismiss(uuid: string) {
+    await outboxDismiss(uuid);
+    await refreshCounts();
+    dataChanged();
   }
 
   const dropsDone = (dropId: number) =>
@@ -222,10 +251,28 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
               <li key={e.client_uuid}>
                 <strong>{e.label}</strong>
                 {errorLines(e.errors).map((line) => <p class="small">{line}</p>)}
+                <button class="btn btn-small" type="button" onClick={() => void dismiss(e.client_uuid)}
+                  data-testid="dismiss-refusal">Dismiss</button>
               </li>
             ))}
           </ul>
         </section>
+      )}
+
+      {heldBack.length > 0 && job.state !== "closed" && (
+        <section class="card alert" data-testid="blockers">
+          <h2><Badge kind="held" word="The server will refuse to start this job" /></h2>
+          <ul class="plain">
+            {heldBack.map((b, n) => <li key={n}><p>{b.message}</p></li>)}
+          </ul>
+          <p class="muted small">No check on this phone puts these right: the supervisor changes the plan or the register first.</p>
+        </section>
+      )}
+
+      {opens && (
+        <p class="note" data-testid="job-opens">
+          This job is for {opens}. Its pre-start checks open on {opens}: they can be read now, and filled on the day.
+        </p>
       )}
 
       <section>
@@ -233,7 +280,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         <ul class="list" data-testid="requirements">
           {job.requirements.map((req) => {
             const mine = latestFor(req.key);
-            const s = requirementStatus(req, mine);
+            const s = requirementStatus(req, mine, opens);
             return (
               <li key={req.key}>
                 <a class="card card-link req" href={href({ name: "sheet", id: job.id, requirement: req.key })}
@@ -256,10 +303,31 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
               <span class="card-title">{d.label}</span>
               <span class="muted">{d.length_m} m</span>
               {dropsDone(d.id) > 0 && <Badge kind="safe" word={`Logged done ×${dropsDone(d.id)}`} />}
-              {job.state === "working" ? (
-                <button class="btn" type="button" onClick={() => logDrop(d.id, d.label)}>Log drop done</button>
-              ) : (
+              {job.state !== "working" ? (
                 <span class="muted small">Drops are logged while work is under way.</span>
+              ) : !canRecord(user) ? null : dropOpen?.drop !== d.id ? (
+                <button class="btn" type="button" onClick={() => setDropOpen({ drop: d.id, choice: null, note: "", problem: "" })}
+                  data-testid="drop-log">Log drop done</button>
+              ) : (
+                <div class="drop-choice" role="group" aria-label={`What was done on drop ${d.label}`}>
+                  <button class="btn btn-primary" type="button" onClick={() => void logDrop(d.id, d.label, "whole", "")}
+                    data-testid="drop-whole">Whole drop done</button>
+                  <button class="btn" type="button" aria-pressed={dropOpen.choice === "part"}
+                    onClick={() => setDropOpen({ ...dropOpen, choice: "part", problem: "" })} data-testid="drop-part">Part of the drop</button>
+                  {dropOpen.choice === "part" && (
+                    <>
+                      <label class="field">
+                        <span>Which part was done?</span>
+                        <textarea rows={2} maxLength={PART_NOTE_MAX} value={dropOpen.note} data-testid="drop-part-note"
+                          onInput={(e) => setDropOpen({ ...dropOpen, note: (e.target as HTMLTextAreaElement).value, problem: "" })} />
+                      </label>
+                      <button class="btn btn-primary" type="button" onClick={() => void logDrop(d.id, d.label, "part", dropOpen.note)}
+                        data-testid="drop-part-send">Log part done</button>
+                    </>
+                  )}
+                  {dropOpen.problem && <p class="error small" role="alert">{dropOpen.problem}</p>}
+                  <button class="btn" type="button" onClick={() => setDropOpen(null)} data-testid="drop-cancel">Cancel</button>
+                </div>
               )}
             </li>
           ))}
@@ -286,7 +354,10 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
           <a class="btn btn-primary" href={href({ name: "sign", id: job.id })} data-testid="sign-action-bar">Sign the day's record</a>
         )}
         {!canRecord(user) && <span class="bar-note" data-testid="read-only">{READ_ONLY_WORDS}</span>}
-        {canRecord(user) && job.state !== "working" && job.state !== "closed" && (
+        {canRecord(user) && opens && job.state !== "closed" && (
+          <span class="bar-note" data-testid="opens-on">Opens on {opens}</span>
+        )}
+        {canRecord(user) && !opens && job.state !== "working" && job.state !== "closed" && (
           <button class="btn btn-primary" type="button" onClick={start} disabled={busy || !status.online}
             data-testid="start" title={status.online ? "" : "Needs a connection"}>
             {status.online ? "Start work" : "Start (needs signal)"}
@@ -295,7 +366,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         {canRecord(user) && job.state === "working" && (
           <button class="btn" type="button" onClick={pause} data-testid="pause">Pause work</button>
         )}
-        {canRecord(user) && job.state !== "closed" && (
+        {mayClose(user, job) && (
           <button class="btn" type="button" onClick={() => setClosing(true)} data-testid="close">Close work</button>
         )}
       </BottomBar>

@@ -1,7 +1,9 @@
 import { useEffect, useState } from "preact/hooks";
-import { outboxAll, photosAll, type OutboxEntry, type PhotoEntry } from "../storage";
-import { requestSync } from "../sync";
-import { BottomBar, errorLines, Header } from "./common";
+import { outboxAll, outboxDismiss, photosAll, type OutboxEntry, type PhotoEntry } from "../storage";
+import { dataChanged } from "../status";
+import { refreshCounts, requestSync } from "../sync";
+import { errorLines } from "../refusals";
+import { BottomBar, Header } from "./common";
 import { href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { Badge } from "./signs";
 
@@ -33,6 +35,14 @@ export function Outbox() {
             <span class="muted small">Made {timeOf(e.created_at)}{e.answered_at ? ` · answered ${timeOf(e.answered_at)}` : ""}</span>
             {e.server?.verdict && <span class="small">Server verdict: {e.server.verdict}</span>}
             {errorLines(e.errors).map((line) => <span class="small">{line}</span>)}
+            {e.status === "rejected" && (e.dismissed_at ? (
+              <span class="muted small" data-testid="refusal-dismissed">Dismissed {timeOf(e.dismissed_at)}</span>
+            ) : (
+              <button class="btn btn-small" type="button" data-testid="dismiss-refusal"
+                onClick={async () => { await outboxDismiss(e.client_uuid); await refreshCounts(); dataChanged(); }}>
+                Dismiss
+              </button>
+            ))}
           </li>
         ))}
       </ul>

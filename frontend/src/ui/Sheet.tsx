@@ -1,5 +1,5 @@
 import { useEffect, useMemo, useRef, useState } from "preact/hooks";
-import { loadJob, loadReference, loadVersions } from "../repo";
+import { loadJob, loadReference, loadVersions, today } from "../repo";
 import { enqueue } from "../outbox";
 import {
   buildContexts,
@@ -17,7 +17,8 @@ import {
   type Steady,
 } from "../sheet";
 import { quantityLines } from "../quantities";
-import { draftDelete, draftGet, draftKey, draftPut, type PhotoEntry } from "../storage";
+import { draftDelete, draftGet, draftKey, draftPut, outboxAll, type OutboxEntry, type PhotoEntry } from "../storage";
+import { opensOn, waitingSheet } from "../job_rules";
 import { canRecord, READ_ONLY_WORDS } from "../signoff";
 import type { ChecklistVersion, Draft, JobDetail, Reference, TickValue, User } from "../types";
 import { deviceTime, newUuid } from "../uuid";
@@ -46,6 +47,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const [openWorking, setOpenWorking] = useState<Record<string, boolean>>({});
   const [sheetUuid, setSheetUuid] = useState(() => newUuid());
   const [timers, setTimers] = useState<Record<string, number>>({});
+  // A check of this requirement saved on this phone and not sent yet: the server does not know it.
+  const [waiting, setWaiting] = useState<OutboxEntry | null>(null);
   // Drafts: restored once the checklist version is known, then kept as the operator goes.
   const key = draftKey(id, requirement);
   const [draftState, setDraftState] = useState<{ ready: boolean; restoredAt: string; keptAt: string; other: string }>(
@@ -67,6 +70,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
       } catch {
         setError("This check is not kept on this phone yet; connect once to fetch it.");
       }
+      setWaiting(waitingSheet(await outboxAll().catch(() => []), id, requirement));
       try {
         setReference((await loadReference()).value);
       } catch {
@@ -195,6 +199,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   if (!job || !req || !version) return <main class="screen"><Header title="Check" back={href({ name: "job", id })} /><p>Loading…</p></main>;
 
   const { failed, rest } = ordered(views, steady);
+  const opens = opensOn(job.date, today());
+  const records = canRecord(user) && !opens;
   const needed = stillNeeded(views);
   const set = <K extends keyof Draft>(part: K, key: string, value: Draft[K][string]) =>
     setDraft((d) => ({ ...d, [part]: { ...d[part], [key]: value } }));
@@ -434,6 +440,17 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
         </div>
       )}
       {draftState.other && <p class="note">{draftState.other}</p>}
+      {opens && (
+        <p class="note" data-testid="sheet-opens">
+          Opens on {opens}: this job's pre-start checks are made on its day. Read it now; fill it in on {opens}.
+        </p>
+      )}
+      {waiting && (
+        <p class="note" data-testid="sheet-waiting">
+          Saved on this phone at {timeOf(waiting.created_at)}, waiting to send; what you fill in here is a new check.
+          {waiting.local_verdict === "fail" ? " The one saved failed a blocking item on this phone." : ""}
+        </p>
+      )}
       {req.latest_sheet !== null && (
         <p class="note" data-testid="sheet-done" data-verdict={req.latest_verdict ?? ""}>
           {req.satisfied
@@ -444,6 +461,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
           What you fill in here is a new check: once saved, it is the one that counts.
         </p>
       )}
+      <fieldset class="bare" disabled={!!opens}>
       {failed.length > 0 && (
         <section class="alert-block" data-testid="failed-top">
           <h2><Badge kind="held" word="Stop work: blocking item failed" /></h2>
@@ -455,6 +473,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
         <span>Remarks for the daily record (optional)</span>
         <textarea rows={3} value={remarks} onInput={(e) => setRemarks((e.target as HTMLTextAreaElement).value)} data-testid="remarks" />
       </label>
+      </fieldset>
       <p class="muted small" data-testid="draft-note">
         {draftState.keptAt
           ? `Answers kept on this phone as you go (last at ${timeOf(draftState.keptAt)}); they stay until the check is saved.`
@@ -465,8 +484,10 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
         <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
           {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
         </span>
-        {canRecord(user) ? (
+        {records ? (
           <button type="button" class="btn btn-primary" onClick={save} data-testid="save">Save check</button>
+        ) : opens ? (
+          <span class="bar-note" data-testid="opens-on">Opens on {opens}</span>
         ) : (
           <span class="bar-note" data-testid="read-only">{READ_ONLY_WORDS}</span>
         )}

@@ -10,9 +10,10 @@ import { cachePut, outboxAll } from "../storage";
 import { dataChanged } from "../status";
 import { pdfWords, watchPdf, type PdfState } from "../record_pdf";
 import { canSign, MEANINGS, sealShort, STATEMENT } from "../signoff";
-import { holdTitle } from "../holds";
+import { holdsOfDay, holdTitle } from "../holds";
 import type { DailyRecord, JobDetail, Meaning, User } from "../types";
-import { BottomBar, CautionLine, errorLines, Header, loadWords, plainReason } from "./common";
+import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
+import { errorLines } from "../refusals";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { Badge, StateBadge } from "./signs";
 
@@ -126,6 +127,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
   }
 
   const openHolds = job.holds.filter((h) => !h.cleared_at);
+  const dayHolds = holdsOfDay(job.holds, timeOf);
   const stateReady = job.state === "closed" || job.state === "held";
 
   let refusal = "";
@@ -204,6 +206,16 @@ export function SignOff({ id, user }: { id: number; user: User }) {
         <a class="inline-link" href={href({ name: "job", id: job.id })} data-testid="sign-read-day">Read the day's checks and holds first</a>
       </section>
 
+      {dayHolds.stopped && (
+        <section class="card" data-testid="sign-holds-day">
+          <h2><Badge kind={openHolds.length ? "held" : "caution"} word={dayHolds.headline} /></h2>
+          <ul class="plain">
+            {dayHolds.lines.map((line, n) => <li key={n}>{line}</li>)}
+          </ul>
+          <p class="muted small">Every stop-work hold of the day is in the record, cleared ones included.</p>
+        </section>
+      )}
+
       {openHolds.length > 0 ? (
         <section class="card alert" data-testid="sign-holds">
           <h2><Badge kind="held" word={`Stop work: ${openHolds.length} open ${openHolds.length === 1 ? "hold" : "holds"}`} /></h2>
@@ -219,7 +231,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
           </ul>
         </section>
       ) : (
-        <p class="card" data-testid="sign-no-holds"><Badge kind="safe" word="No open holds" /></p>
+        !dayHolds.stopped && <p class="card" data-testid="sign-no-holds"><Badge kind="safe" word={dayHolds.headline} /></p>
       )}
 
       <form id="sign-form" onSubmit={sign} class="sign-form">

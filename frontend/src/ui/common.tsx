@@ -89,19 +89,6 @@ export function BottomBar({ children }: { children: ComponentChildren }) {
   return <nav class="bottom-bar">{children}</nav>;
 }
 
-/** Server errors like {"entries.tag_capacity.value": ["Must be a number."]} as plain lines. */
-export function errorLines(errors: unknown, prefix = ""): string[] {
-  if (errors === null || errors === undefined) return [];
-  if (typeof errors === "string") return [prefix ? `${prefix}: ${errors}` : errors];
-  if (Array.isArray(errors)) return errors.flatMap((e) => errorLines(e, prefix));
-  if (typeof errors === "object") {
-    return Object.entries(errors as Record<string, unknown>).flatMap(([k, v]) =>
-      errorLines(v, k === "record" || k === "non_field_errors" ? prefix : prefix ? `${prefix}.${k}` : k),
-    );
-  }
-  return [String(errors)];
-}
-
 /** "X: Marked failed: X." reads better as "X: marked failed on the check." */
 export function plainReason(reason: string): string {
   const m = /^(.*): Marked failed: (.*?)\.?$/.exec(reason);

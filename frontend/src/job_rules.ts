@@ -1,0 +1,46 @@
+/** What the phone offers on a job before the server is asked: never an action it knows the
+ * server refuses (compliance/jobs/services.py, sync.py), so the refusal never comes after the
+ * work of filling a form. */
+
+/** The day a later job's checks open: the server takes a job's checks on its own day only. */
+export function opensOn(jobDate: string, today: string): string | null {
+  return jobDate > today ? jobDate : null;
+}
+
+/** Close is offered to whoever records, except that only a supervisor or an admin closes a
+ * job before any work (close_job). */
+export function mayClose(
+  user: { role?: string } | null | undefined,
+  job: { state: string; work_started: boolean },
+): boolean {
+  if (!user || user.role === "auditor" || job.state === "closed") return false;
+  // A copy kept from before the server said whether work started: a working job has.
+  const started = job.work_started || job.state === "working";
+  return started || user.role === "supervisor" || user.role === "admin";
+}
+
+interface Kept {
+  client_uuid: string;
+  job: number;
+  requirement?: string;
+  status: "waiting" | "applied" | "rejected";
+  created_at: string;
+  record: { type: string };
+}
+
+/** The newest sheet for this check saved on the phone and not yet sent, if any. */
+export function waitingSheet<T extends Kept>(entries: readonly T[], job: number, requirement: string): T | null {
+  const mine = entries.filter(
+    (e) => e.job === job && e.requirement === requirement && e.record.type === "sheet" && e.status === "waiting",
+  );
+  return mine.sort((a, b) => a.created_at.localeCompare(b.created_at)).at(-1) ?? null;
+}
+
+/** The job's blockers shown on their own: the ones about checks and holds are shown beside the
+ * checks and holds, the rest (equipment or an anchor out of service, a lapsed certificate, no
+ * grant for the day, no drops) only the register or the plan can put right. */
+const SHOWN_APART = new Set(["sheet_missing", "sheet_old_version", "sheet_failed", "open_hold"]);
+
+export function registerBlockers<T extends { code: string }>(blockers: readonly T[]): T[] {
+  return blockers.filter((b) => !SHOWN_APART.has(b.code));
+}
