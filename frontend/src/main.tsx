@@ -14,7 +14,6 @@ import { Jobs } from "./ui/Jobs";
 import { Outbox } from "./ui/Outbox";
 import { SheetScreen } from "./ui/Sheet";
 import { SignIn } from "./ui/SignIn";
-import { SignOff } from "./ui/SignOff";
 import "./styles.css";
 
 type DeskModule = typeof import("./desk/Desk");
@@ -28,6 +27,20 @@ function DeskLoader({ user, route }: { user: User; route: Extract<Route, { name:
   }, []);
   if (!desk) return <main class="screen"><p class="muted">{failed ? "No connection: the desk did not open." : "Opening…"}</p></main>;
   return <desk.Desk user={user} route={route} />;
+}
+
+type SignOffModule = typeof import("./ui/SignOff");
+
+/** The sign page is the supervisor's alone, and needs the server (a password is re-entered):
+ * it lives in its own chunk, kept offline by the service worker like the rest. */
+function SignOffLoader({ id, user }: { id: number; user: User }) {
+  const [module, setModule] = useState<SignOffModule | null>(null);
+  const [failed, setFailed] = useState(false);
+  useEffect(() => {
+    import("./ui/SignOff").then(setModule, () => setFailed(true));
+  }, []);
+  if (!module) return <main class="screen"><p class="muted">{failed ? "No connection: the sign page did not open." : "Opening…"}</p></main>;
+  return <module.SignOff id={id} user={user} />;
 }
 
 function App() {
@@ -95,7 +108,7 @@ function App() {
     );
   else if (route.name === "desk") return <DeskLoader user={user} route={route} />;
   else if (route.name === "job") screen = <JobScreen id={route.id} user={user} />;
-  else if (route.name === "sign") screen = <SignOff id={route.id} user={user} />;
+  else if (route.name === "sign") screen = <SignOffLoader id={route.id} user={user} />;
   else if (route.name === "sheet") screen = <SheetScreen key={`${route.id}:${route.requirement}`} id={route.id} requirement={route.requirement} user={user} />;
   else if (route.name === "cautions") screen = <Cautions id={route.id} />;
   else if (route.name === "outbox") screen = <Outbox />;
