@@ -157,6 +157,11 @@ def open_holds(job: Job) -> list[Hold]:
     return list(Hold.objects.filter(job=job, clearance__isnull=True).select_related("sheet"))
 
 
+def _the(subject: Subject) -> str:
+    """A subject in a sentence: "the site", "anchor R1", "robot RB-1"."""
+    return "the site" if subject.kind == "site" else subject.label
+
+
 def job_blockers(
     job: Job,
     drops: list[Drop] | None = None,
@@ -274,7 +279,7 @@ def job_blockers(
             reasons.append(
                 Reason(
                     "sheet_missing",
-                    f"{req.checklist_title} for {req.subject.label} has not been done.",
+                    f"{req.checklist_title} for {_the(req.subject)} has not been done.",
                     req.key,
                 )
             )
@@ -282,7 +287,7 @@ def job_blockers(
             reasons.append(
                 Reason(
                     "sheet_old_version",
-                    f"{req.checklist_title} for {req.subject.label} was filled against an older"
+                    f"{req.checklist_title} for {_the(req.subject)} was filled against an older"
                     " version of the checklist: fill it again against the current version.",
                     req.key,
                 )
@@ -291,7 +296,7 @@ def job_blockers(
             reasons.append(
                 Reason(
                     "sheet_failed",
-                    f"{req.checklist_title} for {req.subject.label} failed a blocking item.",
+                    f"{req.checklist_title} for {_the(req.subject)} failed a blocking item.",
                     req.key,
                 )
             )

@@ -52,7 +52,7 @@ describe("waitingSheet", () => {
 describe("registerBlockers", () => {
   it("keeps what the register or the plan holds against the start, not the checks or holds shown apart", () => {
     const blockers = [
-      { code: "sheet_missing", message: "Weather for site has not been done.", requirement: "weather@site" },
+      { code: "sheet_missing", message: "Weather for the site has not been done.", requirement: "weather@site" },
       { code: "open_hold", message: "Stop work: cracks.", requirement: "anchor@anchor:1" },
       { code: "equipment_out_of_service", message: "RB-3 is out of service.", requirement: "equipment:3" },
       { code: "no_grant_for_day", message: "The building owner's access grant does not cover this day." },

@@ -54,6 +54,8 @@ def test_job_with_no_sheets_cannot_start(job, simple_checklists, operator):
     codes = [r.code for r in caught.value.reasons]
     # one requirement per anchor (2), robot, tether, safety line, hose, site: all missing
     assert codes.count("sheet_missing") == 7
+    # "Weather for site has not been done." read as a slip; a subject is named as in a sentence.
+    assert any(r.message.endswith(" for the site has not been done.") for r in caught.value.reasons)
     job.refresh_from_db()
     assert job.state == JobState.PLANNED
 
