@@ -18,6 +18,13 @@ const WHAT: Record<DueItem["kind"], string> = {
   unsigned_day: "Daily record of the day not signed",
 };
 
+/** What falls due, in the tense of its date: a certificate that ran out 55 days ago does not
+ * "run out". */
+export function whatIsDue(item: Pick<DueItem, "kind" | "days_left">): string {
+  if (item.kind === "anchor_certificate" && item.days_left < 0) return "Anchor certificate ran out";
+  return WHAT[item.kind];
+}
+
 function errorText(e: unknown): string {
   return Object.values(fieldErrors(e)).flat().join(" ");
 }
@@ -210,7 +217,7 @@ export function DeskDue({ contractor }: { contractor: boolean }) {
                 <tr key={item.uid} data-testid={`due-${item.uid}`} data-kind={item.kind} data-sign={sign.kind} data-date={item.due_on}>
                   <td><Badge kind={sign.kind} word={sign.word} testid="due-state" /></td>
                   <td>{item.due_on}</td>
-                  <td>{WHAT[item.kind]}</td>
+                  <td>{whatIsDue(item)}</td>
                   <th scope="row">{item.subject}</th>
                   <td><NextStep item={item} contractor={contractor} /></td>
                 </tr>
