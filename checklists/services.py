@@ -515,18 +515,23 @@ def _insert_entries(sheet: CheckSheet, results: Sequence[ItemResult]) -> None:
 def _made_on(
     job: Job, device_time: dt.datetime | None, phone_clock_offset_s: int | None
 ) -> dt.date:
-    """The day a sheet counts as made. Received on the job's day, that day (the phone's clock
-    may be wrong, and the record states it). Received on a later day, the phone's time of
-    filling, set right by how far its clock was off when it sent the batch: a sheet filled
-    offline on the roof and sent the next morning is the job's day's; one without a time of
-    filling, or filled on a later day, is not."""
+    """The day a sheet counts as made: the phone's time of filling, set right by how far its
+    clock was off when it sent the batch (a sheet filled offline on the roof and sent the next
+    morning is the job's day's; one filled the evening before is not). Without a time of
+    filling, the day it is received. With a time but no batch to tell how far the phone's
+    clock was off, the day it is received when that is the job's day (a phone whose clock
+    reset keeps its checks, and the record states both times), else the time given."""
     today = clock.today()
-    if today <= job.date or device_time is None:
+    if device_time is None:
         return today
-    try:
-        return timezone.localdate(device_time - dt.timedelta(seconds=phone_clock_offset_s or 0))
-    except OverflowError:
-        return timezone.localdate(device_time)
+    if phone_clock_offset_s is not None:
+        try:
+            return timezone.localdate(device_time - dt.timedelta(seconds=phone_clock_offset_s))
+        except OverflowError:
+            return timezone.localdate(device_time)
+    if today <= job.date:
+        return today
+    return timezone.localdate(device_time)
 
 
 def record_sheet(

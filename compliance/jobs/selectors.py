@@ -59,6 +59,9 @@ class Requirement:
     latest_verdict: str | None
     latest_version_id: int | None = None
     """The version the newest sheet was filled against: only the current one counts."""
+    before_drop: str = ""
+    """The label of a drop the subject serves that was planned after the newest sheet: the
+    sheet was judged without it (a line checked at 10 m before a 114 m drop was added)."""
 
     @property
     def outdated(self) -> bool:
@@ -126,6 +129,19 @@ def job_subjects(drops: Iterable[Drop]) -> list[Subject]:
     return list(subjects.values())
 
 
+def _serves(drop: Drop, subject: Subject) -> bool:
+    if subject.anchor is not None:
+        return subject.anchor.pk in (drop.anchor_id, drop.safety_anchor_id)
+    if subject.equipment is not None:
+        return subject.equipment.pk in (
+            drop.robot_id,
+            drop.tether_id,
+            drop.safety_line_id,
+            drop.hose_id,
+        )
+    return True
+
+
 def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirement]:
     """Which sheets the job needs, and whether the newest sheet for each passes."""
     drops = drops_of(job) if drops is None else drops
@@ -133,9 +149,15 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
     latest = latest_sheets(job)
     requirements = []
     for subject in job_subjects(drops):
+        served = [d for d in drops if _serves(d, subject)]
         for version in versions.get(subject.kind, []):
             key = f"{version.checklist.key}@{subject.ref}"
             sheet = latest.get(key)
+            later = [
+                d.label
+                for d in served
+                if sheet is not None and d.added_at is not None and d.added_at > sheet.received_at
+            ]
             requirements.append(
                 Requirement(
                     checklist_key=version.checklist.key,
@@ -144,10 +166,12 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     subject=subject,
                     satisfied=sheet is not None
                     and sheet.version_id == version.pk
-                    and sheet.blocking_failures == 0,
+                    and sheet.blocking_failures == 0
+                    and not later,
                     latest_sheet_id=sheet.pk if sheet else None,
                     latest_verdict=sheet.verdict if sheet else None,
                     latest_version_id=sheet.version_id if sheet else None,
+                    before_drop=later[0] if later else "",
                 )
             )
     return requirements
@@ -280,6 +304,15 @@ def job_blockers(
                 Reason(
                     "sheet_missing",
                     f"{req.checklist_title} for {_the(req.subject)} has not been done.",
+                    req.key,
+                )
+            )
+        elif req.before_drop:
+            reasons.append(
+                Reason(
+                    "sheet_before_drop",
+                    f"{req.checklist_title} for {_the(req.subject)} was done before drop"
+                    f" {req.before_drop} was planned, and judged without it: check it again.",
                     req.key,
                 )
             )

@@ -55,6 +55,12 @@ class Drop(models.Model):
     safety_line = models.ForeignKey(Equipment, on_delete=models.PROTECT, related_name="+")
     hose = models.ForeignKey(Equipment, on_delete=models.PROTECT, related_name="+")
     length_m = models.FloatField(help_text="Height of the strip worked, m.")
+    added_at = models.DateTimeField(
+        auto_now_add=True,
+        null=True,
+        help_text="When the drop was planned: a sheet of a subject it serves made before then"
+        " was judged without it (empty for drops planned before this was kept).",
+    )
 
     class Meta:
         constraints = [

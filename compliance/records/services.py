@@ -433,8 +433,9 @@ NEVER_READY_NOT_SAFE = (
 
 
 NO_HOLD_NOT_STOPPED = (
-    "No hold stopped work on this day: it cannot be signed as 'work was stopped'. Choose"
-    " 'checked and safe', or 'with exceptions' and say what they were in the remarks."
+    "No hold is open on this day: it cannot be signed as 'work was stopped; the open holds are"
+    " shown'. Choose 'checked and safe', or 'with exceptions' and say in the remarks what"
+    " stopped work and how it was cleared."
 )
 
 
@@ -472,7 +473,7 @@ def sign_daily_record(
         content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(OPEN_HOLDS_NOT_SAFE)
-        if meaning == "reviewed_stopped" and not content["holds"]:
+        if meaning == "reviewed_stopped" and not open_holds_of(content):
             raise InvalidTransition(NO_HOLD_NOT_STOPPED)
         ready = {JobState.CLEARED, JobState.WORKING}
         if meaning == "reviewed_safe" and not any(t["to"] in ready for t in content["transitions"]):

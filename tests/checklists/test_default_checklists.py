@@ -191,3 +191,54 @@ def test_kit_on_two_drops_is_checked_against_the_worse_one(demo):
     assert arrest.working["inputs"]["line_length_m"] == 114.0
     assert arrest.message.startswith("Drop South 2: ")
     assert Hold.objects.filter(job=job, item_key="arrest", clearance__isnull=True).exists()
+
+
+def test_a_drop_planned_after_a_check_makes_that_check_count_no_more(demo):
+    """A safety line checked with a 0.8 m clearance on a 10 m drop passed; a 114 m drop was then
+    added with the same line, the old sheet went on satisfying the requirement, and the job
+    started though the line fails at 114 m."""
+    import json
+
+    from checklists.selectors import current_versions
+    from checklists.services import record_sheet
+    from compliance.demo import _entries, scenario_path
+    from compliance.jobs import services
+    from compliance.jobs.selectors import job_blockers, job_requirements
+    from compliance.models import Anchor
+
+    job, kit = _two_drop_job(demo, 10.0, 10.0)
+    readings = json.loads(scenario_path().read_text())["readings"]["safety-line-pre-use"]
+    version = next(
+        v
+        for vs in current_versions(demo.pk).values()
+        for v in vs
+        if v.checklist.key == "safety-line-pre-use"
+    )
+    record_sheet(
+        job=job,
+        version=version,
+        by=User.objects.get(username="tomas"),
+        entries=_entries(version.items, {**readings, "clearance_below": 0.8}),
+        equipment=kit["S-3"],
+    )
+    line = f"safety-line-pre-use@equipment:{kit['S-3'].pk}"
+    assert next(r for r in job_requirements(job) if r.key == line).satisfied
+
+    anchors = {a.label: a for a in Anchor.objects.filter(site=job.site)}
+    services.add_drop(
+        job=job,
+        by=User.objects.get(username="rhea"),
+        label="South 3",
+        robot=kit["RB-3"],
+        anchor=anchors["R6"],
+        safety_anchor=anchors["R7"],
+        tether=kit["T-3"],
+        safety_line=kit["S-3"],
+        hose=kit["H-3"],
+        length_m=114.0,
+    )
+
+    assert not next(r for r in job_requirements(job) if r.key == line).satisfied
+    reasons = [r for r in job_blockers(job) if r.requirement == line]
+    assert [r.code for r in reasons] == ["sheet_before_drop"]
+    assert "before drop South 3 was planned" in reasons[0].message

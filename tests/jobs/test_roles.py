@@ -209,3 +209,25 @@ def test_a_reason_of_invisible_characters_is_no_reason(job, supervisor, blank):
     )
     assert response.status_code == 400
     assert response.json() == {"reason": ["Say why the job ends before any work."]}
+
+
+def test_a_check_filled_the_evening_before_is_not_today_s(job, simple_checklists, operator):
+    """Sent this morning with the phone's clock right (its batch says so), a sheet whose time of
+    filling was last night counted for today's job."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from checklists.models import CheckSheet
+
+    record = site_record(job, simple_checklists)
+    evening = timezone.localtime().replace(hour=21, minute=30) - dt.timedelta(days=1)
+    record["data"]["device_time"] = evening.isoformat()
+    body = {"records": [record], "sent_at": timezone.now().isoformat()}
+
+    synced = client_for(operator).post(reverse("sync"), body, format="json")
+
+    result = synced.json()["results"][0]
+    assert result["status"] == "rejected", result
+    assert "this one was made on" in result["errors"]["job"][0]
+    assert not CheckSheet.objects.filter(job=job).exists()

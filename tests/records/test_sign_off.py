@@ -15,7 +15,7 @@ from compliance.errors import InvalidTransition, NotPermitted
 from compliance.models import DailyRecord
 from compliance.records.sealing import seal_of
 from compliance.records.services import MEANINGS, add_addendum, sign_daily_record
-from tests.conftest import PASSING, client_for
+from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import PASSWORD, UserFactory
 
 pytestmark = pytest.mark.django_db
@@ -417,5 +417,34 @@ def test_a_day_without_a_hold_is_not_signed_as_work_stopped(closed_job, supervis
     )
 
     assert response.status_code == 409, response.json()
-    assert response.json()["detail"].startswith("No hold stopped work on this day")
+    assert response.json()["detail"].startswith("No hold is open on this day")
     assert not DailyRecord.objects.filter(job=closed_job).exists()
+
+
+def test_a_day_whose_holds_were_all_cleared_is_not_signed_as_work_stopped(
+    job, simple_checklists, operator, supervisor, credential
+):
+    """A hold opened and cleared before work, then a day worked and closed: the sealed meaning
+    said "work was stopped; the open holds are shown" over "0 still open"."""
+    from compliance.jobs.services import close_job, start_job
+    from compliance.models import DailyRecord
+
+    with clock.replaying(job.date):
+        record_sheet(
+            job=job,
+            version=simple_checklists["site"],
+            by=operator,
+            entries={**PASSING["site"], "zone_closed": {"value": "fail"}},
+        )
+        fill_all(job, simple_checklists, operator)
+        start_job(job=job, by=operator)
+        close_job(job=job, by=operator)
+
+    response = client_for(supervisor).post(
+        reverse("job-sign", args=[job.pk]),
+        {"password": PASSWORD, "meaning": "reviewed_stopped"},
+        format="json",
+    )
+
+    assert response.status_code == 409, response.json()
+    assert not DailyRecord.objects.filter(job=job).exists()
