@@ -512,28 +512,6 @@ def _insert_entries(sheet: CheckSheet, results: Sequence[ItemResult]) -> None:
             copy.write_row(row)
 
 
-def _made_on(
-    job: Job, device_time: dt.datetime | None, phone_clock_offset_s: int | None
-) -> dt.date:
-    """The day a sheet counts as made: the phone's time of filling, set right by how far its
-    clock was off when it sent the batch (a sheet filled offline on the roof and sent the next
-    morning is the job's day's; one filled the evening before is not). Without a time of
-    filling, the day it is received. With a time but no batch to tell how far the phone's
-    clock was off, the day it is received when that is the job's day (a phone whose clock
-    reset keeps its checks, and the record states both times), else the time given."""
-    today = clock.today()
-    if device_time is None:
-        return today
-    if phone_clock_offset_s is not None:
-        try:
-            return timezone.localdate(device_time - dt.timedelta(seconds=phone_clock_offset_s))
-        except OverflowError:
-            return timezone.localdate(device_time)
-    if today <= job.date:
-        return today
-    return timezone.localdate(device_time)
-
-
 def record_sheet(
     *,
     job: Job,
@@ -582,7 +560,7 @@ def record_sheet(
         raise ValidationError({"version": "Sheets can only be filled against a published version."})
     if job.state == JobState.CLOSED:
         raise InvalidTransition("This job is closed; its sheets can no longer change.")
-    made_on = _made_on(job, device_time, phone_clock_offset_s)
+    made_on = clock.day_made(job.date, device_time, phone_clock_offset_s)
     if made_on != job.date:
         # A check says nothing of the rig on another day: not a later day's (made today), nor
         # a past day's (made days after the work it was to clear).

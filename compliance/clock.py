@@ -31,3 +31,25 @@ def replaying(day: dt.date) -> Iterator[None]:
         yield
     finally:
         _replayed.reset(token)
+
+
+def day_made(
+    job_date: dt.date, device_time: dt.datetime | None, phone_clock_offset_s: int | None
+) -> dt.date:
+    """The day a record from a phone (a sheet, a drop done) counts as made: the phone's time,
+    set right by how far its clock was off when it sent the batch (filled offline on the roof
+    and sent the next morning, it is the job's day's; filled the evening before, it is not).
+    Without a time, the day it is received. With a time but no batch to tell how far the
+    phone's clock was off, the day it is received when that is the job's day (a phone whose
+    clock reset keeps its records, and the record states both times), else the time given."""
+    received = today()
+    if device_time is None:
+        return received
+    if phone_clock_offset_s is not None:
+        try:
+            return timezone.localdate(device_time - dt.timedelta(seconds=phone_clock_offset_s))
+        except OverflowError:
+            return timezone.localdate(device_time)
+    if received <= job_date:
+        return received
+    return timezone.localdate(device_time)

@@ -220,9 +220,17 @@ DROP_NOTE_MAX = 500
 
 
 def log_drop(
-    *, drop: Drop, by: User, note: str = "", device_time: Any = None, client_uuid: Any = None
+    *,
+    drop: Drop,
+    by: User,
+    note: str = "",
+    device_time: Any = None,
+    client_uuid: Any = None,
+    phone_clock_offset_s: int | None = None,
 ) -> DropLog:
-    """A drop done while its job is working (the log row is its own audit entry)."""
+    """A drop done while its job is working, on the job's day (the log row is its own audit
+    entry): a job left working overnight does not take the next day's work under the checks
+    of the day before."""
     require_writer(by)
     if len(note) > DROP_NOTE_MAX:
         raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
@@ -231,6 +239,16 @@ def log_drop(
         if job.state != JobState.WORKING:
             raise InvalidTransition(
                 f"Drops are logged while the job is working; it is {job.state}."
+            )
+        done_on = clock.day_made(job.date, device_time, phone_clock_offset_s)
+        if done_on != job.date:
+            raise ValidationError(
+                {
+                    "drop": [
+                        f"This job is for {job.date.isoformat()}: its drops are logged on its"
+                        f" day, and this one was done on {done_on.isoformat()}."
+                    ]
+                }
             )
         extra = {"client_uuid": client_uuid} if client_uuid is not None else {}
         return DropLog.objects.create(drop=drop, by=by, device_time=device_time, note=note, **extra)

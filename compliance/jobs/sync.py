@@ -326,7 +326,12 @@ def _apply_drop_log(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) 
     if not isinstance(note, str) or len(note) > services.DROP_NOTE_MAX:
         raise RecordRejected({"note": [f"A text of at most {services.DROP_NOTE_MAX} characters."]})
     log = services.log_drop(
-        drop=drop, by=user, note=note, device_time=_device_time(data), client_uuid=client_uuid
+        drop=drop,
+        by=user,
+        note=note,
+        device_time=_device_time(data),
+        client_uuid=client_uuid,
+        phone_clock_offset_s=batch.phone_clock_offset_s,
     )
     return {"drop_log": log.pk, "job": drop.job_id}
 

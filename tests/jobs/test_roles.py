@@ -1,6 +1,8 @@
 """Who plans, starts and ends a day's work: planning and closing a job before work are the
 supervisor's; the crew starts, pauses and ends the work it does."""
 
+import uuid
+
 import pytest
 from django.urls import reverse
 
@@ -231,3 +233,40 @@ def test_a_check_filled_the_evening_before_is_not_today_s(job, simple_checklists
     assert result["status"] == "rejected", result
     assert "this one was made on" in result["errors"]["job"][0]
     assert not CheckSheet.objects.filter(job=job).exists()
+
+
+def test_a_drop_done_on_another_day_is_not_logged_to_the_job(job, simple_checklists, operator):
+    """A job started on its day and left working: the next day's drops were logged to it, as
+    if yesterday's checks covered them."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from compliance import clock
+    from compliance.jobs.services import start_job
+    from compliance.models import DropLog
+    from tests.conftest import fill_all
+
+    job.date = timezone.localdate() - dt.timedelta(days=1)
+    job.save()
+    with clock.replaying(job.date):
+        fill_all(job, simple_checklists, operator)
+        start_job(job=job, by=operator)
+    drop = job.drops.get()
+
+    def log(device_time):
+        data = {"drop": drop.pk, "note": "Whole drop done."}
+        if device_time is not None:
+            data["device_time"] = device_time.isoformat()
+        record = {"type": "drop_log", "client_uuid": str(uuid.uuid4()), "data": data}
+        body = {"records": [record], "sent_at": timezone.now().isoformat()}
+        return client_for(operator).post(reverse("sync"), body, format="json").json()
+
+    today = log(timezone.now())["results"][0]
+    unstated = log(None)["results"][0]
+    yesterday = log(timezone.now() - dt.timedelta(days=1))["results"][0]
+
+    assert today["status"] == unstated["status"] == "rejected", (today, unstated)
+    assert today["errors"]["drop"][0].startswith(f"This job is for {job.date.isoformat()}")
+    assert yesterday["status"] == "applied", yesterday
+    assert DropLog.objects.filter(drop=drop).count() == 1
