@@ -58,6 +58,17 @@ def store_credential(
             f"The certificate names the organisation {', '.join(map(repr, named)) or 'none'};"
             f" it must name {organisation.name!r}, whose records it will sign."
         )
+    try:
+        constraints = cert.extensions.get_extension_for_class(x509.BasicConstraints).value
+    except x509.ExtensionNotFound:
+        constraints = None
+    if constraints is not None and constraints.ca:
+        # A CA in an auditor's trust list vouches for the certificates it issues: a signing
+        # key that could issue certificates would vouch for ones its holder made naming others.
+        raise ValueError(
+            "The certificate is a certificate authority's (CA:TRUE): import a signing"
+            " certificate the CA issued, not the CA's own."
+        )
     encrypted = key.private_bytes(
         serialization.Encoding.PEM,
         serialization.PrivateFormat.PKCS8,

@@ -91,7 +91,7 @@ def test_a_batch_with_two_anchor_checks_decrypts_the_key_at_most_once(
     assert load.call_count == 1
 
 
-def _certificate_naming(organisation_name: str):
+def _certificate_naming(organisation_name: str, ca: bool = False):
     import datetime as dt
 
     from cryptography import x509
@@ -115,8 +115,10 @@ def _certificate_naming(organisation_name: str):
         .serial_number(x509.random_serial_number())
         .not_valid_before(now)
         .not_valid_after(now + dt.timedelta(days=30))
-        .sign(key, hashes.SHA256())
     )
+    if ca:
+        cert = cert.add_extension(x509.BasicConstraints(ca=True, path_length=None), critical=True)
+    cert = cert.sign(key, hashes.SHA256())
     pem = cert.public_bytes(serialization.Encoding.PEM)
     key_pem = key.private_bytes(
         serialization.Encoding.PEM, serialization.PrivateFormat.PKCS8, serialization.NoEncryption()
@@ -136,3 +138,14 @@ def test_an_imported_certificate_names_its_own_organisation(job):
     pem, key_pem = _certificate_naming(job.organisation.name)
     kept = store_credential(organisation=job.organisation, certificate_pem=pem, key_pem=key_pem)
     assert kept.active
+
+
+def test_a_certificate_authority_s_own_certificate_is_not_imported_as_a_signer(job):
+    """An imported certificate marked CA (without content commitment) stayed a CA in every
+    trust list holding it, vouching for any certificate its holder issued."""
+    from compliance.records.signing import store_credential
+
+    pem, key_pem = _certificate_naming(job.organisation.name, ca=True)
+    with pytest.raises(ValueError, match="certificate authority's"):
+        store_credential(organisation=job.organisation, certificate_pem=pem, key_pem=key_pem)
+    assert not SigningCredential.objects.filter(organisation=job.organisation).exists()
