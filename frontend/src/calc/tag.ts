@@ -4,6 +4,8 @@ import { check, type CalcResult, type OutputValue } from "./result";
 import { num } from "./working";
 
 const NAME = "anchor-tag";
+/** A relative difference below this is binary rounding, not a tag below its certificate. */
+const EXACTLY = 1e-9;
 
 const FIELDS = [
   number("tag_kn", "kN", "rated capacity read from the anchor's tag", {
@@ -32,12 +34,15 @@ function compute(values: Inputs): CalcResult {
   if (tagKn > certifiedKn) {
     steps.push(`the tag rates the anchor above its certificate: the certificate's ${num(certifiedKn)} kN governs every margin`);
   }
+  let margin = reliedKn / lowestKn - 1;
+  // A tag exactly at the lowest agreeing figure came out a hair below it in binary arithmetic.
+  if (Math.abs(margin) < EXACTLY) margin = 0;
   const reason =
-    tagKn < lowestKn
+    margin < 0
       ? `The tag reads ${num(tagKn)} kN but the anchor's certificate in the register rates it ${num(certifiedKn)} kN, and every margin of the day uses the certificate. Check that this is the anchor the register names; until the tag and the certificate agree, the competent person must not let a line be tied to it.`
       : "";
   const outputs: Record<string, OutputValue> = { lowest_agreeing_kn: lowestKn, relied_on_kn: reliedKn };
-  const checks = [check("tag_against_certificate", reliedKn / lowestKn - 1, false, { reason })];
+  const checks = [check("tag_against_certificate", margin, false, { reason })];
   return buildResult({ name: NAME, inputs: values.asDict(), outputs, checks, steps });
 }
 
