@@ -23,7 +23,7 @@ from compliance.anchor_log.services import HeldChains, log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
-from compliance.jobs.selectors import drops_of
+from compliance.jobs.selectors import drop_serves, drops_of
 from compliance.jobs.services import apply_sheet_outcome
 from compliance.models import (
     Anchor,
@@ -343,20 +343,8 @@ def drop_place(site: Any, anchor: Anchor) -> dict[str, float]:
 def served_drops(drops: list[Any], anchor: Anchor | None, equipment: Equipment | None) -> list[Any]:
     """The drops a sheet's subject is part of: an anchor's or a piece of kit's, or every drop
     for a site check (and the first drop when the subject is on none)."""
-    served = [
-        d
-        for d in drops
-        if (anchor is not None and anchor.pk in (d.anchor_id, d.safety_anchor_id))
-        or (
-            equipment is not None
-            and equipment.pk in (d.robot_id, d.tether_id, d.safety_line_id, d.hose_id)
-        )
-    ]
-    if served:
-        return served
-    if anchor is None and equipment is None:
-        return list(drops)
-    return drops[:1]
+    served = [d for d in drops if drop_serves(d, anchor, equipment)]
+    return served or drops[:1]
 
 
 def sheet_context(

@@ -129,17 +129,18 @@ def job_subjects(drops: Iterable[Drop]) -> list[Subject]:
     return list(subjects.values())
 
 
-def _serves(drop: Drop, subject: Subject) -> bool:
-    if subject.anchor is not None:
-        return subject.anchor.pk in (drop.anchor_id, drop.safety_anchor_id)
-    if subject.equipment is not None:
-        return subject.equipment.pk in (
-            drop.robot_id,
-            drop.tether_id,
-            drop.safety_line_id,
-            drop.hose_id,
-        )
+def drop_serves(drop: Drop, anchor: Anchor | None, equipment: Equipment | None) -> bool:
+    """Whether the drop hangs from the anchor or uses the piece of kit (a site check serves
+    every drop)."""
+    if anchor is not None:
+        return anchor.pk in (drop.anchor_id, drop.safety_anchor_id)
+    if equipment is not None:
+        return equipment.pk in (drop.robot_id, drop.tether_id, drop.safety_line_id, drop.hose_id)
     return True
+
+
+def _serves(drop: Drop, subject: Subject) -> bool:
+    return drop_serves(drop, subject.anchor, subject.equipment)
 
 
 def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirement]:
