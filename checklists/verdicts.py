@@ -225,11 +225,12 @@ def _schedule_problems(
     return f"The test did not keep its schedule: {'; '.join(problems)}. Start it again."
 
 
-NEVER_BELOW_ZERO = frozenset({"m/s", "kPa", "kN", "kg", "s", "L/min", "L", "mm"})
+NEVER_BELOW_ZERO = frozenset({"m/s", "kPa", "kN", "kg", "s", "L/min", "L", "mm", "m"})
 """Units whose readings are never negative here: speeds, the gauge's vacuum and pressures,
-forces, masses, times, flows. A value below zero is a slipped sign (a gust of -20 m/s passed a
-maximum of 14), refused by name rather than judged. Lengths in m (a height may be below the
-supply) and temperatures are not in it."""
+forces, masses, times, flows, lengths and heights (a line's length, slack, the clearance below,
+the supply's height above the valve). A value below zero is a slipped sign (a gust of -20 m/s
+passed a maximum of 14, a line length of -250 m a maximum of 200), refused by name rather than
+judged. Temperatures are not in it."""
 
 
 def _never_below_zero(unit: str, value: float, given: str, field_path: str) -> None:

@@ -441,7 +441,7 @@ export function committedDraft(draft: Draft, steady: Record<string, Steady>): Dr
   return { ...draft, readings };
 }
 
-const NEVER_BELOW_ZERO = new Set(["m/s", "kPa", "kN", "kg", "s", "L/min", "L", "mm"]);
+const NEVER_BELOW_ZERO = new Set(["m/s", "kPa", "kN", "kg", "s", "L/min", "L", "mm", "m"]);
 
 const SEVERITY: Partial<Record<LocalVerdict, number>> = { fail: 0, unknown: 1, missing: 1 };
 

@@ -15,6 +15,14 @@ VACUUM = {
     "unit": "kPa",
     "limits": {"min": {"profile": "min_vacuum_kpa"}},
 }
+LENGTH = {
+    "key": "length",
+    "kind": "reading",
+    "label": "Length needed for the drop",
+    "blocking": True,
+    "unit": "m",
+    "limits": {"max": {"value": 200}},
+}
 GUST = {
     "key": "gust",
     "kind": "reading",
@@ -104,6 +112,13 @@ def refusal(items, entries, context=PROFILE) -> EntryError:
             {"vacuum": {"value": -62}},
             "entries.vacuum.value",
             "A reading in kPa is never below zero",
+        ),
+        # A line length of -250 m passed the line's 200 m maximum.
+        (
+            [LENGTH],
+            {"length": {"value": -250, "unit": "m"}},
+            "entries.length.value",
+            "A reading in m is never below zero: -250 m has a slipped sign.",
         ),
         (
             [SERIES],
