@@ -11,12 +11,12 @@ from django.http import FileResponse, HttpResponse
 from drf_spectacular.utils import OpenApiParameter, extend_schema, inline_serializer
 from rest_framework import serializers, status, viewsets
 from rest_framework.decorators import action, api_view, parser_classes, permission_classes
-from rest_framework.parsers import MultiPartParser
 from rest_framework.permissions import IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
 
 from compliance.api.fields import DAY, StrictInput, parse_day, query_id, query_period
+from compliance.api.parsers import MultiPartParser
 from compliance.api.permissions import OrganisationMember
 from compliance.api.throttles import PasswordReentryThrottle
 from compliance.errors import NotPermitted, PdfsPending

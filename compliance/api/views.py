@@ -17,7 +17,6 @@ from rest_framework.decorators import (
     permission_classes,
     throttle_classes,
 )
-from rest_framework.parsers import MultiPartParser
 from rest_framework.permissions import AllowAny, IsAuthenticated
 from rest_framework.request import Request
 from rest_framework.response import Response
@@ -36,6 +35,7 @@ from compliance.api.fields import (
     query_text,
 )
 from compliance.api.pagination import BoundedLimitOffset
+from compliance.api.parsers import JSONParser, MultiPartParser
 from compliance.api.permissions import OrganisationMember, SupervisorWrites
 from compliance.api.records import RecordSerializer, SignInput, sign_job
 from compliance.api.throttles import LOGIN_THROTTLES, PasswordReentryThrottle
@@ -289,7 +289,12 @@ class AnchorViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVi
         request=s.CertificationSerializer,
         responses={201: s.CertificationSerializer},
     )
-    @action(detail=True, methods=["get", "post"], pagination_class=None)
+    @action(
+        detail=True,
+        methods=["get", "post"],
+        pagination_class=None,
+        parser_classes=[JSONParser, MultiPartParser],
+    )
     def certifications(self, request: Request, pk: str | None = None) -> Response:
         """Every certification of the anchor, newest first (GET), or add one (POST: append
         only; an old one is never edited)."""

@@ -1664,8 +1664,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["LogEntryInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["LogEntryInputRequest"];
-                "multipart/form-data": components["schemas"]["LogEntryInputRequest"];
             };
         };
         responses: {
@@ -1754,8 +1752,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["AnchorRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["AnchorRequest"];
-                "multipart/form-data": components["schemas"]["AnchorRequest"];
             };
         };
         responses: {
@@ -1823,7 +1819,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["CertificationRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["CertificationRequest"];
                 "multipart/form-data": components["schemas"]["CertificationRequest"];
             };
         };
@@ -1870,8 +1865,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["LoginInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["LoginInputRequest"];
-                "multipart/form-data": components["schemas"]["LoginInputRequest"];
             };
         };
         responses: {
@@ -1912,8 +1905,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["LoginInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["LoginInputRequest"];
-                "multipart/form-data": components["schemas"]["LoginInputRequest"];
             };
         };
         responses: {
@@ -1939,8 +1930,6 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": components["schemas"]["CalcInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["CalcInputRequest"];
-                "multipart/form-data": components["schemas"]["CalcInputRequest"];
             };
         };
         responses: {
@@ -2009,8 +1998,6 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": components["schemas"]["PatchedChecklistVersionRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["PatchedChecklistVersionRequest"];
-                "multipart/form-data": components["schemas"]["PatchedChecklistVersionRequest"];
             };
         };
         responses: {
@@ -2100,8 +2087,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["ChecklistRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["ChecklistRequest"];
-                "multipart/form-data": components["schemas"]["ChecklistRequest"];
             };
         };
         responses: {
@@ -2148,8 +2133,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["ChecklistVersionRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["ChecklistVersionRequest"];
-                "multipart/form-data": components["schemas"]["ChecklistVersionRequest"];
             };
         };
         responses: {
@@ -2216,8 +2199,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["EquipmentRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["EquipmentRequest"];
-                "multipart/form-data": components["schemas"]["EquipmentRequest"];
             };
         };
         responses: {
@@ -2264,8 +2245,6 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": components["schemas"]["PatchedEquipmentChangeInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["PatchedEquipmentChangeInputRequest"];
-                "multipart/form-data": components["schemas"]["PatchedEquipmentChangeInputRequest"];
             };
         };
         responses: {
@@ -2330,8 +2309,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["JobRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["JobRequest"];
-                "multipart/form-data": components["schemas"]["JobRequest"];
             };
         };
         responses: {
@@ -2378,8 +2355,6 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": components["schemas"]["ReasonInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["ReasonInputRequest"];
-                "multipart/form-data": components["schemas"]["ReasonInputRequest"];
             };
         };
         responses: {
@@ -2405,8 +2380,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["DropRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["DropRequest"];
-                "multipart/form-data": components["schemas"]["DropRequest"];
             };
         };
         responses: {
@@ -2432,8 +2405,6 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": components["schemas"]["ReasonInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["ReasonInputRequest"];
-                "multipart/form-data": components["schemas"]["ReasonInputRequest"];
             };
         };
         responses: {
@@ -2459,8 +2430,6 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": components["schemas"]["PlanCheckInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["PlanCheckInputRequest"];
-                "multipart/form-data": components["schemas"]["PlanCheckInputRequest"];
             };
         };
         responses: {
@@ -2486,8 +2455,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["SignInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["SignInputRequest"];
-                "multipart/form-data": components["schemas"]["SignInputRequest"];
             };
         };
         responses: {
@@ -2808,8 +2775,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["AddendumInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["AddendumInputRequest"];
-                "multipart/form-data": components["schemas"]["AddendumInputRequest"];
             };
         };
         responses: {
@@ -2936,8 +2901,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["SheetInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["SheetInputRequest"];
-                "multipart/form-data": components["schemas"]["SheetInputRequest"];
             };
         };
         responses: {
@@ -3012,8 +2975,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["SiteRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["SiteRequest"];
-                "multipart/form-data": components["schemas"]["SiteRequest"];
             };
         };
         responses: {
@@ -3081,8 +3042,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["GrantRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["GrantRequest"];
-                "multipart/form-data": components["schemas"]["GrantRequest"];
             };
         };
         responses: {
@@ -3109,8 +3068,6 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": components["schemas"]["EndGrantInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["EndGrantInputRequest"];
-                "multipart/form-data": components["schemas"]["EndGrantInputRequest"];
             };
         };
         responses: {
@@ -3134,8 +3091,6 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["SyncInputRequest"];
-                "application/x-www-form-urlencoded": components["schemas"]["SyncInputRequest"];
-                "multipart/form-data": components["schemas"]["SyncInputRequest"];
             };
         };
         responses: {

@@ -107,6 +107,44 @@ def test_a_name_given_twice_in_one_object_is_refused(job, simple_checklists, ope
     assert CheckSheet.objects.count() == 0
 
 
+def test_a_form_is_refused_where_json_is_read(job, supervisor):
+    """A form keeps the last of a repeated name and reads a JSON-valued field past the JSON
+    parser's checks: ratings={"mbs_kn": 30, "mbs_kn": 3} came in as a form field. Only the
+    endpoints that take a file read a form."""
+    client = client_for(supervisor)
+    before = counts()
+    body = {
+        "kind": "safety_line",
+        "label": "L-form",
+        "ratings": '{"mbs_kn": 3, "ea_kn": 600, "kg_per_m": 0.07, "length_m": 200, "mbs_kn": 30}',
+    }
+    response = client.post(reverse("equipment-list"), body, format="multipart")
+    assert response.status_code == 415
+    response = client.post(reverse("equipment-list"), body, format="json")
+    assert response.status_code == 400 and "ratings" in response.json()
+    assert counts() == before
+
+
+def test_a_name_given_twice_in_a_form_is_refused_by_name(job, supervisor):
+    """The certificate form takes a file, so it reads a form: certifier=A&certifier=B stored B
+    where the request (and a person reading it) also says A."""
+    anchor = job.drops.first().anchor
+    client = client_for(supervisor)
+    before = counts()
+    body = {
+        "certifier": ["A. Honest", "B. Other"],
+        "rated_capacity_kn": 20,
+        "certified_on": "2026-01-01",
+        "valid_until": "2027-01-01",
+    }
+    response = client.post(
+        reverse("anchor-certifications", args=[anchor.pk]), body, format="multipart"
+    )
+    assert response.status_code == 400
+    assert response.json() == {"certifier": ["The name 'certifier' appears twice in the form."]}
+    assert counts() == before
+
+
 def test_a_reading_in_another_accepted_unit_is_converted_and_kept_as_entered(
     job, simple_checklists, operator
 ):
