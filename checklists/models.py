@@ -126,6 +126,10 @@ class CheckSheet(AppendOnlyModel):
     verdict = models.CharField(max_length=10, choices=Verdict.choices)
     blocking_failures = models.PositiveIntegerField(default=0)
     remarks = models.TextField(blank=True)
+    judged_on = models.JSONField(default=dict, blank=True)
+    """What the items read from the register, the profile and the plan when the sheet was
+    judged, by drop id ("" with no drop): {"12": {"safety_line.mbs_kn": 30.0, ...}}. A figure
+    that reads otherwise since leaves the sheet's verdict behind (see changed_since)."""
 
     class Meta:
         constraints = [

@@ -1,11 +1,13 @@
 """Reads over checklists and sheets that own their joins."""
 
+from collections.abc import Iterator, Mapping
 from typing import Any
 
 from django.db.models import Exists, OuterRef, Q, QuerySet
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
-from compliance.models import Job
+from compliance.engineering.site_plan import facade_position
+from compliance.models import Anchor, Drop, Equipment, Job
 
 
 def visible_checklists(organisation_id: int | None) -> QuerySet[Checklist]:
@@ -116,3 +118,117 @@ def entry_rows(sheet_ids: list[int], fields: list[str]) -> dict[int, list[dict[s
     ):
         found[row.pop("sheet_id")].append(row)
     return found
+
+
+def drop_place(site: Any, anchor: Anchor) -> dict[str, float]:
+    """Where the drop hangs on its facade, from the roof plan and its anchor's position.
+
+    With no usable roof outline the drop is taken to stand at a corner (distance 0), the worst
+    place for wind suction; the depth then does not change the zone, and twice the height is
+    given so that e = min(b, 2h) stays defined.
+    """
+    try:
+        place = facade_position(site.roof_outline or [], (anchor.x_m, anchor.y_m))
+    except (TypeError, ValueError, IndexError):  # an outline that is not a list of [x, y]
+        place = None
+    if place is None or not place.building_depth_m > 0.0:
+        # An outline whose corners lie on one line (stored before the API refused it) has no
+        # depth to measure from: no plan, as above.
+        return {"corner_distance_m": 0.0, "building_depth_m": 2.0 * site.height_m}
+    return {
+        "corner_distance_m": place.corner_distance_m,
+        "building_depth_m": place.building_depth_m,
+    }
+
+
+def drop_context(
+    job: Job, anchor: Anchor | None, equipment: Equipment | None, drop: Drop | None
+) -> dict[str, dict[str, Any]]:
+    """The numbers a sheet's limits and calculations may draw on, for one drop (None: a site
+    check on a job with no drops)."""
+    profile = job.site.profile
+    context: dict[str, dict[str, Any]] = {"profile": dict(profile.thresholds)}
+    if equipment is not None:
+        context["equipment"] = dict(equipment.ratings)
+    if drop is not None:
+        for kind in ("robot", "tether", "safety_line", "hose"):
+            context[kind] = dict(getattr(drop, kind).ratings)
+        tied = anchor if anchor is not None else drop.safety_anchor
+        cert = tied.current_certification()
+        context["anchor"] = {"rated_capacity_kn": cert.rated_capacity_kn if cert else None}
+        context["drop"] = {
+            "length_m": drop.length_m,
+            "height_m": job.site.height_m,
+            "terrain": job.site.terrain,
+            **drop_place(job.site, drop.anchor),
+        }
+    else:
+        context["drop"] = {"height_m": job.site.height_m, "terrain": job.site.terrain}
+    return context
+
+
+CONTEXT_KINDS = frozenset(
+    ("profile", "equipment", "robot", "tether", "safety_line", "hose", "anchor", "drop")
+)
+"""The sources an item may name that come from the register, the profile or the plan (not
+from the sheet's own readings)."""
+
+
+def _sources(value: Any) -> Iterator[tuple[str, str]]:
+    if isinstance(value, Mapping):
+        if len(value) == 1:
+            ((kind, ref),) = value.items()
+            if kind in CONTEXT_KINDS and isinstance(ref, str):
+                yield kind, ref
+                return
+        for inner in value.values():
+            yield from _sources(inner)
+    elif isinstance(value, list):
+        for inner in value:
+            yield from _sources(inner)
+
+
+def context_reads(items: list[dict[str, Any]]) -> list[str]:
+    """Every register, profile or plan figure a version's items name, as "kind.ref"."""
+    return sorted({f"{kind}.{ref}" for item in items for kind, ref in _sources(item)})
+
+
+def read_value(context: Mapping[str, Mapping[str, Any]], name: str) -> Any:
+    """The figure "kind.ref" in a sheet's context, as its limits and calculations read it
+    (None when there is none)."""
+    kind, _, ref = name.partition(".")
+    value = (context.get(kind) or {}).get(ref)
+    if kind == "profile" and isinstance(value, Mapping):
+        return value.get("value")
+    return value
+
+
+def read_values(reads: list[str], context: Mapping[str, Mapping[str, Any]]) -> dict[str, Any]:
+    return {name: read_value(context, name) for name in reads}
+
+
+def drop_key(drop: Drop | None) -> str:
+    """A drop's key in a sheet's ``judged_on`` ("" for a site check with no drop)."""
+    return "" if drop is None else str(drop.pk)
+
+
+def changed_since(
+    judged: Mapping[str, Mapping[str, Any]],
+    job: Job,
+    anchor: Anchor | None,
+    equipment: Equipment | None,
+    served: list[Drop],
+) -> tuple[str, Any, Any] | None:
+    """The first figure a sheet was judged on that now reads otherwise, as (name, was, now);
+    None when all still agree. Only the drops the subject still serves are read again (a drop
+    planned since is the caller's other check)."""
+    for drop in served or [None]:
+        was = judged.get(drop_key(drop))
+        if not was:
+            continue
+        now = drop_context(job, anchor, equipment, drop)
+        for name, value in was.items():
+            current = read_value(now, name)
+            if current != value:
+                return name, value, current
+    return None

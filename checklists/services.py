@@ -16,12 +16,17 @@ from django.utils import timezone
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from checklists.schema import content_hash, validate_items
-from checklists.selectors import UNKNOWN_VERSION
+from checklists.selectors import (
+    UNKNOWN_VERSION,
+    context_reads,
+    drop_context,
+    drop_key,
+    read_values,
+)
 from checklists.verdicts import EntryError, ItemResult, SheetOutcome, evaluate
 from compliance import clock
 from compliance.anchor_log.services import HeldChains, log_pre_use_check
 from compliance.engineering import CALCULATIONS
-from compliance.engineering.site_plan import facade_position
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
 from compliance.jobs.selectors import drop_serves, drops_of
 from compliance.jobs.services import apply_sheet_outcome
@@ -319,27 +324,6 @@ def diff_versions(a: ChecklistVersion, b: ChecklistVersion) -> dict[str, Any]:
     }
 
 
-def drop_place(site: Any, anchor: Anchor) -> dict[str, float]:
-    """Where the drop hangs on its facade, from the roof plan and its anchor's position.
-
-    With no usable roof outline the drop is taken to stand at a corner (distance 0), the worst
-    place for wind suction; the depth then does not change the zone, and twice the height is
-    given so that e = min(b, 2h) stays defined.
-    """
-    try:
-        place = facade_position(site.roof_outline or [], (anchor.x_m, anchor.y_m))
-    except (TypeError, ValueError, IndexError):  # an outline that is not a list of [x, y]
-        place = None
-    if place is None or not place.building_depth_m > 0.0:
-        # An outline whose corners lie on one line (stored before the API refused it) has no
-        # depth to measure from: no plan, as above.
-        return {"corner_distance_m": 0.0, "building_depth_m": 2.0 * site.height_m}
-    return {
-        "corner_distance_m": place.corner_distance_m,
-        "building_depth_m": place.building_depth_m,
-    }
-
-
 def served_drops(drops: list[Any], anchor: Anchor | None, equipment: Equipment | None) -> list[Any]:
     """The drops a sheet's subject is part of: an anchor's or a piece of kit's, or every drop
     for a site check (and the first drop when the subject is on none)."""
@@ -357,28 +341,27 @@ def sheet_context(
 ) -> dict[str, dict[str, Any]]:
     """The numbers a sheet's limits and calculations may draw on, for one drop (`drop`, else
     the first its subject serves)."""
-    profile = job.site.profile
-    context: dict[str, dict[str, Any]] = {"profile": dict(profile.thresholds)}
-    if equipment is not None:
-        context["equipment"] = dict(equipment.ratings)
     if drop is None:
         drops = drops_of(job) if drops is None else drops
         drop = next(iter(served_drops(drops, anchor, equipment)), None)
-    if drop is not None:
-        for kind in ("robot", "tether", "safety_line", "hose"):
-            context[kind] = dict(getattr(drop, kind).ratings)
-        tied = anchor if anchor is not None else drop.safety_anchor
-        cert = tied.current_certification()
-        context["anchor"] = {"rated_capacity_kn": cert.rated_capacity_kn if cert else None}
-        context["drop"] = {
-            "length_m": drop.length_m,
-            "height_m": job.site.height_m,
-            "terrain": job.site.terrain,
-            **drop_place(job.site, drop.anchor),
-        }
-    else:
-        context["drop"] = {"height_m": job.site.height_m, "terrain": job.site.terrain}
-    return context
+    return drop_context(job, anchor, equipment, drop)
+
+
+def judged_on(
+    items: list[dict[str, Any]],
+    job: Job,
+    anchor: Anchor | None,
+    equipment: Equipment | None,
+    drops: list[Any],
+) -> dict[str, dict[str, Any]]:
+    """What the sheet's items read from the register, the profile and the plan, for each drop
+    its subject serves: kept with the sheet, so that a rating changed since (a safety line
+    re-rated from 30 kN to 10 kN) is seen to leave the sheet's verdict behind."""
+    reads = context_reads(items)
+    served = served_drops(drops, anchor, equipment) or [None]
+    return {
+        drop_key(d): read_values(reads, drop_context(job, anchor, equipment, d)) for d in served
+    }
 
 
 def evaluate_for_drops(
@@ -575,6 +558,7 @@ def record_sheet(
     except EntryError as exc:
         raise ValidationError({exc.field: exc.message}) from None
     _check_storable(outcome)
+    judged = judged_on(version.items, job, anchor, equipment, drops)
     # A sync batch's run gives each record a savepoint of its own and has looked for the uuid
     # under the job's lock: a second savepoint here would only cost two statements.
     savepoint = not (job_locked and uuid_unused)
@@ -594,6 +578,7 @@ def record_sheet(
                 verdict=outcome.verdict,
                 blocking_failures=len(outcome.blocking_failures),
                 remarks=remarks,
+                judged_on=judged,
             )
             _insert_entries(sheet, outcome.items)
             apply_sheet_outcome(

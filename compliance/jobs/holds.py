@@ -23,12 +23,14 @@ from django.utils import timezone
 from checklists.models import CheckSheet
 from checklists.selectors import superseded
 from checklists.verdicts import ItemResult
+from compliance import clock
 from compliance.jobs.selectors import job_blockers, open_holds
 from compliance.models import (
     OPEN_STATES,
     Anchor,
     AnchorLogEntry,
     Drop,
+    Equipment,
     Hold,
     HoldClearance,
     Job,
@@ -141,6 +143,30 @@ def jobs_using(anchor: Anchor) -> list[Job]:
     )
     # PostgreSQL refuses FOR UPDATE with DISTINCT: find the jobs, then lock them by id.
     return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
+
+
+def jobs_with_kit(equipment: Equipment) -> list[Job]:
+    """Open jobs of today or later with a drop using the piece of kit; locked."""
+    ids = (
+        Job.objects.filter(
+            Q(drops__robot=equipment)
+            | Q(drops__tether=equipment)
+            | Q(drops__safety_line=equipment)
+            | Q(drops__hose=equipment),
+            state__in=OPEN_STATES,
+            date__gte=clock.today(),
+        )
+        .values_list("pk", flat=True)
+        .distinct()
+    )
+    return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
+
+
+def reread_readiness(*, jobs: Iterable[Job], by: User) -> None:
+    """A register change (a rating, a date, in or out of service) may leave a cleared job's
+    checks behind, or put right what held a planned one: each job's state is read again."""
+    for job in jobs:
+        refresh_readiness(job=job, by=by)
 
 
 def hold_for_removed_anchor(

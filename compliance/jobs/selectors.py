@@ -6,7 +6,8 @@ from dataclasses import dataclass
 from django.db.models import Exists, OuterRef, Prefetch, QuerySet, prefetch_related_objects
 from django.utils import timezone
 
-from checklists.selectors import current_versions, latest_sheets
+from checklists.selectors import changed_since, current_versions, latest_sheets
+from checklists.verdicts import REGISTER_WORDS
 from compliance.errors import Reason
 from compliance.models import (
     OPEN_STATES,
@@ -62,6 +63,9 @@ class Requirement:
     before_drop: str = ""
     """The label of a drop the subject serves that was planned after the newest sheet: the
     sheet was judged without it (a line checked at 10 m before a 114 m drop was added)."""
+    changed: tuple[str, object, object] | None = None
+    """A figure the newest sheet was judged on that reads otherwise since, as (name, then,
+    now): a safety line re-rated from 30 kN to 10 kN after its check passed."""
 
     @property
     def outdated(self) -> bool:
@@ -159,6 +163,11 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                 for d in served
                 if sheet is not None and d.added_at is not None and d.added_at > sheet.received_at
             ]
+            changed = (
+                changed_since(sheet.judged_on, job, subject.anchor, subject.equipment, served)
+                if sheet is not None and sheet.judged_on and not later
+                else None
+            )
             requirements.append(
                 Requirement(
                     checklist_key=version.checklist.key,
@@ -168,11 +177,13 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     satisfied=sheet is not None
                     and sheet.version_id == version.pk
                     and sheet.blocking_failures == 0
-                    and not later,
+                    and not later
+                    and changed is None,
                     latest_sheet_id=sheet.pk if sheet else None,
                     latest_verdict=sheet.verdict if sheet else None,
                     latest_version_id=sheet.version_id if sheet else None,
                     before_drop=later[0] if later else "",
+                    changed=changed,
                 )
             )
     return requirements
@@ -180,6 +191,14 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
 
 def open_holds(job: Job) -> list[Hold]:
     return list(Hold.objects.filter(job=job, clearance__isnull=True).select_related("sheet"))
+
+
+def _figure(value: object) -> str:
+    if value is None:
+        return "nothing"
+    if isinstance(value, float | int) and not isinstance(value, bool):
+        return f"{value:g}"
+    return str(value)
 
 
 def _the(subject: Subject) -> str:
@@ -314,6 +333,19 @@ def job_blockers(
                     "sheet_before_drop",
                     f"{req.checklist_title} for {_the(req.subject)} was done before drop"
                     f" {req.before_drop} was planned, and judged without it: check it again.",
+                    req.key,
+                )
+            )
+        elif req.changed is not None:
+            name, then, now = req.changed
+            kind, _, ref = name.partition(".")
+            whose = "its" if kind == "equipment" else REGISTER_WORDS.get(kind, f"the {kind}'s")
+            reasons.append(
+                Reason(
+                    "sheet_judged_on_changed",
+                    f"{req.checklist_title} for {_the(req.subject)} was judged with"
+                    f" {whose} {ref} at {_figure(then)}; it now reads"
+                    f" {_figure(now)}: check it again.",
                     req.key,
                 )
             )

@@ -8,6 +8,7 @@ from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
 from django.db import IntegrityError, models, transaction
 
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
+from compliance.jobs.holds import jobs_with_kit, reread_readiness
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -240,6 +241,10 @@ def create_equipment(*, by: User, **fields: Any) -> Equipment:
 EQUIPMENT_CHANGEABLE = ("label", "serial", "ratings", "made_on", "next_inspection_due")
 
 
+READINESS_FIELDS = {"ratings", "in_service", "next_inspection_due", "made_on"}
+"""The register fields a job's readiness reads: changing one reads each open job's again."""
+
+
 def update_equipment(*, item: Equipment, by: User, reason: str = "", **fields: Any) -> Equipment:
     """Change a register entry: its label, serial, ratings, dates, or whether it is in service.
 
@@ -278,4 +283,6 @@ def update_equipment(*, item: Equipment, by: User, reason: str = "", **fields: A
         if reason.strip():
             changes["reason"] = reason.strip()
         audit_register_change(subject="equipment", row=item, action=action, by=by, changes=changes)
+        if changes.keys() & READINESS_FIELDS:
+            reread_readiness(jobs=jobs_with_kit(item), by=by)
     return item

@@ -1,0 +1,100 @@
+"""A check is judged on the register, the profile and the plan as they were: a figure it read
+that reads otherwise since leaves its verdict behind, and the job is not ready until it is
+checked again."""
+
+import pytest
+from django.urls import reverse
+
+from compliance.jobs.selectors import job_blockers, job_requirements
+from compliance.models import JobState
+from tests.conftest import client_for, fill_all
+
+pytestmark = pytest.mark.django_db
+
+
+def _hose(job):
+    return job.drops.get().hose
+
+
+def _patch(client, item, body):
+    return client.patch(reverse("equipment-detail", args=[item.pk]), body, format="json")
+
+
+def test_a_rating_lowered_after_the_check_leaves_the_check_behind(
+    job, simple_checklists, operator, supervisor
+):
+    """A hose's rating lowered after its check passed at 900 kPa kept the job cleared, and it
+    started: the check was judged against the old rating."""
+    fill_all(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    hose = _hose(job)
+    was = hose.ratings["rating_kpa"]
+
+    response = _patch(
+        client_for(supervisor), hose, {"ratings": {**hose.ratings, "rating_kpa": 800.0}}
+    )
+
+    assert response.status_code == 200, response.json()
+    job.refresh_from_db()
+    assert job.state == JobState.PLANNED
+    key = f"hose-check@equipment:{hose.pk}"
+    assert not next(r for r in job_requirements(job) if r.key == key).satisfied
+    assert [(r.code, r.message) for r in job_blockers(job) if r.requirement == key] == [
+        (
+            "sheet_judged_on_changed",
+            f"Hose Check for hose {hose.label} was judged with its rating_kpa at"
+            f" {was:g}; it now reads 800: check it again.",
+        )
+    ]
+    response = client_for(operator).post(reverse("job-start", args=[job.pk]))
+    assert response.status_code == 409
+
+
+def test_a_change_the_check_did_not_read_leaves_it_standing(
+    job, simple_checklists, operator, supervisor
+):
+    fill_all(job, simple_checklists, operator)
+    hose = _hose(job)
+    client = client_for(supervisor)
+
+    assert _patch(client, hose, {"serial": "H-NEW-SERIAL"}).status_code == 200
+    assert (
+        _patch(client, _hose(job), {"ratings": {**hose.ratings, "length_m": 190.0}}).status_code
+        == 200
+    )
+
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    assert all(r.satisfied for r in job_requirements(job))
+
+
+def test_the_rating_put_back_lets_the_check_stand_again(
+    job, simple_checklists, operator, supervisor
+):
+    fill_all(job, simple_checklists, operator)
+    hose = _hose(job)
+    client = client_for(supervisor)
+    _patch(client, hose, {"ratings": {**hose.ratings, "rating_kpa": 800.0}})
+
+    assert _patch(client, _hose(job), {"ratings": hose.ratings}).status_code == 200
+
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+
+
+def test_a_profile_figure_changed_since_leaves_the_check_behind(job, simple_checklists, operator):
+    """The site check read the profile's highest wind; a profile loaded since with a lower one
+    judges 6.5 m/s otherwise."""
+    fill_all(job, simple_checklists, operator)
+    profile = job.site.profile
+    profile.thresholds = {
+        **profile.thresholds,
+        "max_wind_ms": {**profile.thresholds["max_wind_ms"], "value": 6.0},
+    }
+    profile.save(update_fields=["thresholds"])
+
+    reasons = [r for r in job_blockers(job) if r.code == "sheet_judged_on_changed"]
+    assert [r.requirement for r in reasons] == ["site-check@site"]
+    assert "the site's profile's max_wind_ms at" in reasons[0].message
+    assert reasons[0].message.endswith("it now reads 6: check it again.")
