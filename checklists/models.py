@@ -1,5 +1,6 @@
 """Checklists with immutable published versions, and the check sheets filled against them."""
 
+import datetime as dt
 import uuid
 from typing import Any
 
@@ -158,6 +159,25 @@ class CheckSheet(AppendOnlyModel):
     @property
     def requirement(self) -> str:
         return f"{self.version.checklist.key}@{self.subject_ref}"
+
+    @property
+    def made_at(self) -> dt.datetime:
+        """When the sheet was filled, as near as the server can tell: the phone's time set
+        right by how far its clock was off when it sent the batch, and never after it was
+        received; without both, when it was received. A sheet filled at 05:02 on a phone that
+        was offline is older than one filled at 07:02 and sent at once."""
+        if self.device_time is None or self.phone_clock_offset_s is None:
+            return self.received_at
+        try:
+            made = self.device_time - dt.timedelta(seconds=self.phone_clock_offset_s)
+        except OverflowError:
+            return self.received_at
+        return min(made, self.received_at)
+
+    @property
+    def order_made(self) -> tuple[dt.datetime, int]:
+        """Sorts sheets by when they were made, then as received."""
+        return (self.made_at, self.pk)
 
 
 class ItemEntry(AppendOnlyModel):

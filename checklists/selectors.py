@@ -85,16 +85,17 @@ def current_versions(
 
 
 def latest_sheets(job: Job) -> dict[str, CheckSheet]:
-    """The newest sheet for each requirement key (checklist key @ subject) of a job; their
+    """The newest sheet for each requirement key (checklist key @ subject) of a job, by when it
+    was made (an older check arriving late from an offline phone is not the newest); their
     versions without items or notes (each sheet's row decoded its version's items again, a
     twentieth of a sync batch)."""
     latest: dict[str, CheckSheet] = {}
-    for sheet in (
+    sheets = (
         CheckSheet.objects.filter(job=job)
         .select_related("version__checklist")
         .defer("version__items", "version__notes")
-        .order_by("id")
-    ):
+    )
+    for sheet in sorted(sheets, key=lambda s: s.order_made):
         latest[sheet.requirement] = sheet
     return latest
 

@@ -96,19 +96,26 @@ def hold_for_failed_items(
     return job
 
 
-def clear_by_passing_sheet(*, job: Job, sheet: CheckSheet, by: User) -> None:
+def clear_by_passing_sheet(*, job: Job, sheet: CheckSheet, by: User) -> bool:
     """A passing sheet clears the holds sheets opened on its requirement, and only those, when
-    it was filled against the checklist's current version: an older one may lack the very item
-    that failed."""
+    it was filled against the checklist's current version (an older one may lack the very item
+    that failed) and made after the sheet that opened the hold (a pass filled at 05:02 on a
+    phone that was offline says nothing of the grip that failed at 07:02). Returns whether any
+    such hold stays open."""
     holds = list(
         Hold.objects.filter(
             job=job, requirement=sheet.requirement, clearance__isnull=True, sheet__isnull=False
-        )
+        ).select_related("sheet")
     )
-    if not holds or superseded(sheet.version):
-        return
-    for hold in holds:
+    if not holds:
+        return False
+    if superseded(sheet.version):
+        return True
+    made = sheet.order_made
+    cleared = [hold for hold in holds if hold.sheet.order_made < made]
+    for hold in cleared:
         HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
+    return len(cleared) < len(holds)
 
 
 def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = None) -> Job:

@@ -208,8 +208,8 @@ def apply_sheet_outcome(
             job=job, sheet=sheet, failures=outcome.blocking_failures, by=by
         )
     if open_hold_requirements is None or sheet.requirement in open_hold_requirements:
-        clear_by_passing_sheet(job=job, sheet=sheet, by=by)
-        if open_hold_requirements is not None:
+        still_held = clear_by_passing_sheet(job=job, sheet=sheet, by=by)
+        if open_hold_requirements is not None and not still_held:
             open_hold_requirements.discard(sheet.requirement)
     if defer_readiness:
         return job

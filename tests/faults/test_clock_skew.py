@@ -127,3 +127,50 @@ def test_a_phone_clock_reset_decades_off_keeps_its_sheet_and_states_the_offset(
     assert abs(offset) > 2**31
     assert sheet.phone_clock_offset_s == pytest.approx(offset, abs=60)
     assert receipt.phone_clock_offset_s == sheet.phone_clock_offset_s
+
+
+def test_in_one_batch_an_older_pass_leaves_a_newer_failure_holding(
+    job, simple_checklists, operator
+):
+    """A phone five hours fast sends, in one batch, a failed site check and a pass it filled
+    two hours before it: the pass was applied after the failure and cleared its hold. Set right
+    by the batch's clock, the pass is the older: the job stays held until a check made after
+    the failure passes."""
+    from compliance import clock
+    from compliance.models import Hold, JobState
+
+    def site(entries, made):
+        return {
+            "type": "sheet",
+            "client_uuid": str(uuid.uuid4()),
+            "data": {
+                "job": job.pk,
+                "version": simple_checklists["site"].pk,
+                "entries": entries,
+                "device_time": made.isoformat(),
+            },
+        }
+
+    now = timezone.now()
+    day = timezone.localdate(now - dt.timedelta(hours=2))
+    type(job).objects.filter(pk=job.pk).update(date=day)
+    job.refresh_from_db()
+    failed = {**PASSING["site"], "zone_closed": {"value": "fail"}}
+    phone = now + SKEW
+    client = client_for(operator)
+    with clock.replaying(day):
+        body = {
+            "records": [site(failed, phone), site(PASSING["site"], phone - dt.timedelta(hours=2))],
+            "sent_at": phone.isoformat(),
+        }
+        response = client.post(reverse("sync"), body, format="json")
+        assert [r["status"] for r in response.json()["results"]] == ["applied", "applied"]
+        job.refresh_from_db()
+        assert job.state == JobState.HELD
+        assert Hold.objects.filter(job=job, clearance__isnull=True).count() == 1
+
+        later = timezone.now() + SKEW
+        body = {"records": [site(PASSING["site"], later)], "sent_at": later.isoformat()}
+        response = client.post(reverse("sync"), body, format="json")
+        assert response.json()["results"][0]["status"] == "applied"
+    assert Hold.objects.filter(job=job, clearance__isnull=True).count() == 0

@@ -247,3 +247,55 @@ def test_an_overdue_equipment_inspection_names_the_equipment(job, simple_checkli
     assert reason.code == "equipment_inspection_overdue"
     assert reason.requirement == f"equipment:{hose.pk}"
     assert reason.message.endswith(f"{hose.next_inspection_due:%Y-%m-%d}.")
+
+
+def _hose_sheet_made(job, versions, by, entries, minutes_ago):
+    """A hose check filled ``minutes_ago`` on a phone whose clock was right when it sent it."""
+    req = _hose_requirement(job)
+    made = timezone.now() - dt.timedelta(minutes=minutes_ago)
+    sheet, _ = record_sheet(
+        job=job,
+        version=versions["hose"],
+        by=by,
+        entries=entries,
+        equipment=req.subject.equipment,
+        device_time=made,
+        phone_clock_offset_s=0,
+    )
+    return sheet
+
+
+@pytest.fixture
+def job_of_the_last_hours(job):
+    """The job's day is the day two hours ago (the same as today but just after midnight)."""
+    from compliance import clock
+
+    day = timezone.localdate(timezone.now() - dt.timedelta(hours=2))
+    type(job).objects.filter(pk=job.pk).update(date=day)
+    job.refresh_from_db()
+    with clock.replaying(day):
+        yield job
+
+
+def test_a_pass_made_before_the_failure_it_arrives_after_clears_nothing(
+    job_of_the_last_hours, simple_checklists, operator
+):
+    """A second phone, offline since 05:02, sent its passing hose check after the 07:02 one
+    failed: it cleared the hold and the job was cleared, the older check standing for the
+    newer."""
+    job = job_of_the_last_hours
+    fill_all(job, simple_checklists, operator)
+    failing = {**PASSING["hose"], "valve_pressure": {"value": 3000, "unit": "kPa"}}
+    _hose_sheet_made(job, simple_checklists, operator, failing, minutes_ago=0)
+    _hose_sheet_made(job, simple_checklists, operator, PASSING["hose"], minutes_ago=120)
+
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    assert Hold.objects.filter(job=job, clearance__isnull=True).count() == 1
+    assert not _hose_requirement(job).satisfied
+
+    newer = _hose_sheet_made(job, simple_checklists, operator, PASSING["hose"], minutes_ago=0)
+
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    assert Hold.objects.get(job=job).clearance.sheet == newer
