@@ -342,9 +342,8 @@ def drop_place(site: Any, anchor: Anchor) -> dict[str, float]:
 
 def served_drops(drops: list[Any], anchor: Anchor | None, equipment: Equipment | None) -> list[Any]:
     """The drops a sheet's subject is part of: an anchor's or a piece of kit's, or every drop
-    for a site check (and the first drop when the subject is on none)."""
-    served = [d for d in drops if drop_serves(d, anchor, equipment)]
-    return served or drops[:1]
+    for a site check. record_sheet refuses an anchor or kit on none of them."""
+    return [d for d in drops if drop_serves(d, anchor, equipment)]
 
 
 def sheet_context(
