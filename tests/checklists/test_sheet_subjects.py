@@ -11,7 +11,7 @@ from checklists.models import CheckSheet
 from compliance.models import Hold, JobState
 from tests.api.test_sync import sheet_record, site_record, sync
 from tests.conftest import PASSING, client_for
-from tests.factories import JobFactory, make_drop
+from tests.factories import JobFactory, UserFactory, make_drop
 
 pytestmark = pytest.mark.django_db
 
@@ -81,3 +81,14 @@ def test_kit_the_job_uses_and_the_site_are_still_checked(job, simple_checklists,
         response = client.post(reverse("sheet-list"), body, format="json")
         assert response.status_code == 201, response.json()
         assert response.json()["verdict"] == "pass"
+
+
+def test_a_site_check_on_a_job_with_no_drops_yet_is_judged(simple_checklists):
+    """No drop to serve: its limits read the profile and the site alone."""
+    job = JobFactory()
+    operator = UserFactory(organisation=job.organisation, role="operator")
+    version = simple_checklists["site"]
+    body = {"job": job.pk, "version": version.pk, "entries": PASSING["site"]}
+    response = client_for(operator).post(reverse("sheet-list"), body, format="json")
+    assert response.status_code == 201, response.json()
+    assert response.json()["verdict"] == "pass"
