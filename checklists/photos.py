@@ -10,8 +10,10 @@ from django.core.files.uploadedfile import UploadedFile
 from django.db import IntegrityError, transaction
 from PIL import Image, UnidentifiedImageError
 
-from checklists.models import Photo
-from compliance.models import Job, User
+from checklists.models import CheckSheet, Photo
+from compliance import clock
+from compliance.jobs.holds import locked
+from compliance.models import DailyRecord, Job, User
 
 MAX_BYTES = 12 * 1024 * 1024
 MAX_SIDE_PX = 2048
@@ -19,6 +21,41 @@ MAX_PIXELS = 50_000_000
 """A phone camera's largest photos are about 48 megapixels; a small file declaring more is a
 decompression bomb (an 88-megapixel PNG of 30 KB took 370 MB to decode)."""
 ACCEPTED = {"JPEG", "PNG", "WEBP"}
+
+
+def _check_place(*, job: Job, sheet_uuid: uuid.UUID | None, item_key: str) -> None:
+    """A photo joins a day whose record is not sealed yet (sealed, a later row would read as
+    tampering), on the job's day, for a sheet of that job and an item of its checklist.
+
+    A photo carries no time of its own: one taken for a sheet counts as made when its sheet
+    does (the phone sends its sheets before their photos, so one sent the next morning keeps
+    its sheet's day); one for no sheet, on the day it is received."""
+    if DailyRecord.objects.filter(job=job, kind=DailyRecord.Kind.RECORD).exists():
+        raise ValidationError(
+            {"job": "This day's record is signed: a photo can no longer be added to it."}
+        )
+    sheet = None
+    if sheet_uuid is not None:
+        sheet = (
+            CheckSheet.objects.filter(job=job, client_uuid=sheet_uuid)
+            .select_related("version")
+            .first()
+        )
+        if sheet is None:
+            raise ValidationError({"sheet_uuid": "This job has no sheet with this id."})
+    if sheet is not None:
+        made_on = clock.day_made(job.date, sheet.device_time, sheet.phone_clock_offset_s)
+    else:
+        made_on = clock.day_made(job.date, None, None)
+    if made_on != job.date:
+        raise ValidationError(
+            {
+                "job": f"This job is for {job.date.isoformat()}: its photos are taken on its"
+                f" day, and this one was made on {made_on.isoformat()}."
+            }
+        )
+    if sheet is not None and item_key and item_key not in {i["key"] for i in sheet.version.items}:
+        raise ValidationError({"item_key": "This sheet's checklist has no item with this key."})
 
 
 def store_photo(
@@ -30,7 +67,9 @@ def store_photo(
     sheet_uuid: uuid.UUID | None = None,
     item_key: str = "",
 ) -> tuple[Photo, bool]:
-    """Store a photo once per client uuid; return (photo, created)."""
+    """Store a photo once per client uuid; return (photo, created). A photo already stored is
+    answered as it is; a new one is checked against its job, sheet and item (_check_place) and
+    nothing is stored when it is refused."""
     if not by.can_write:
         raise ValidationError({"job": "Auditors have read-only access."})
     existing = Photo.objects.filter(client_uuid=client_uuid).first()
@@ -38,6 +77,10 @@ def store_photo(
         if existing.organisation_id != by.organisation_id:
             raise ValidationError({"client_uuid": "Already used."})
         return existing, False
+    if job.organisation_id != by.organisation_id:
+        raise ValidationError({"job": "Unknown job."})
+    # Refused early without reading the image; checked again under the job's lock below.
+    _check_place(job=job, sheet_uuid=sheet_uuid, item_key=item_key)
     if image.size is None or image.size > MAX_BYTES:
         raise ValidationError({"image": f"A photo is at most {MAX_BYTES // (1024 * 1024)} MB."})
     try:
@@ -59,6 +102,9 @@ def store_photo(
     data = out.getvalue()
     try:
         with transaction.atomic():
+            # Signing locks the job's row too: a photo lands before the seal, or is refused.
+            job = locked(job)
+            _check_place(job=job, sheet_uuid=sheet_uuid, item_key=item_key)
             photo = Photo(
                 client_uuid=client_uuid,
                 organisation_id=by.organisation_id,

@@ -326,9 +326,8 @@ def diff_versions(a: ChecklistVersion, b: ChecklistVersion) -> dict[str, Any]:
 
 def served_drops(drops: list[Any], anchor: Anchor | None, equipment: Equipment | None) -> list[Any]:
     """The drops a sheet's subject is part of: an anchor's or a piece of kit's, or every drop
-    for a site check (and the first drop when the subject is on none)."""
-    served = [d for d in drops if drop_serves(d, anchor, equipment)]
-    return served or drops[:1]
+    for a site check. record_sheet refuses an anchor or kit on none of them."""
+    return [d for d in drops if drop_serves(d, anchor, equipment)]
 
 
 def sheet_context(
@@ -543,12 +542,13 @@ def record_sheet(
         )
     subject_kind = _subject_for(job, version, anchor, equipment)
     drops = drops_of(job) if drops is None else drops
-    if anchor is not None and not any(
-        anchor.pk in (d.anchor_id, d.safety_anchor_id) for d in drops
-    ):
-        # Its pre-use entry goes into the owner's append-only log book: only for an anchor
-        # the job hangs from.
-        raise ValidationError({"anchor": "This anchor is not on any of the job's drops."})
+    if subject_kind != "site" and not any(drop_serves(d, anchor, equipment) for d in drops):
+        # A check of an anchor or kit the job does not use says nothing of its rig, and would
+        # be judged against a drop it is not part of (and could hold the job). An anchor's
+        # pre-use entry also goes into the owner's append-only log book.
+        if anchor is not None:
+            raise ValidationError({"anchor": "This anchor is not on any of the job's drops."})
+        raise ValidationError({"equipment": "This equipment is not on any of the job's drops."})
     if not isinstance(entries, dict):
         raise ValidationError({"entries": "Entries are an object keyed by item key."})
     try:

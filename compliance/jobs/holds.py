@@ -18,7 +18,6 @@ Every function here runs inside its caller's transaction, with the job's row loc
 from collections.abc import Iterable
 
 from django.db.models import Q
-from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.selectors import superseded
@@ -143,7 +142,7 @@ def jobs_using(anchor: Anchor) -> list[Job]:
         Job.objects.filter(
             Q(drops__anchor=anchor) | Q(drops__safety_anchor=anchor),
             state__in=OPEN_STATES,
-            date__gte=timezone.localdate(),
+            date__gte=clock.today(),
         )
         .values_list("pk", flat=True)
         .distinct()

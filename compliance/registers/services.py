@@ -8,7 +8,7 @@ from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
 from django.db import IntegrityError, models, transaction
 
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
-from compliance.jobs.holds import jobs_with_kit, reread_readiness
+from compliance.jobs.holds import jobs_using, jobs_with_kit, reread_readiness
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -29,7 +29,9 @@ def record_certification(
 ) -> AnchorCertification:
     """Add a certification; only the building's own organisation certifies its anchors. The
     certificate's file, if given, is checked (a PDF, PNG or JPEG by its bytes) and kept under
-    its SHA-256; a row refused after the file was stored takes the file with it."""
+    its SHA-256; a row refused after the file was stored takes the file with it. The open jobs
+    hung from the anchor have their readiness read again (a rating below the profile's minimum
+    takes a cleared job back to planned; a valid one may clear it)."""
     require_writer(by)
     if not by.can_keep_anchor_log:
         raise NotPermitted(
@@ -44,18 +46,20 @@ def record_certification(
     with transaction.atomic():
         cert = AnchorCertification(anchor=anchor, recorded_by=by, **fields)
         cert.full_clean()
+        jobs = jobs_using(anchor)  # locked before the row, as the log book's changes lock them
         if checked is None:
             cert.save()
-            return cert
-        cert.document.save(checked.name, checked.content, save=False)
-        cert.document_sha256 = checked.sha256
-        saved = False
-        try:
-            cert.save()
-            saved = True
-        finally:
-            if not saved:  # whatever stopped the row, the file does not stay without it
-                cert.document.storage.delete(cert.document.name)
+        else:
+            cert.document.save(checked.name, checked.content, save=False)
+            cert.document_sha256 = checked.sha256
+            saved = False
+            try:
+                cert.save()
+                saved = True
+            finally:
+                if not saved:  # whatever stopped the row, the file does not stay without it
+                    cert.document.storage.delete(cert.document.name)
+        reread_readiness(jobs=jobs, by=by)
     return cert
 
 

@@ -115,8 +115,15 @@ async function sendRecords(): Promise<{ touched: Set<number>; serverTime: string
 }
 
 async function sendPhotos(touched: Set<number>): Promise<void> {
-  for (const photo of await photosAll()) {
-    if (photo.uploaded || photo.error) continue;
+  // The server takes a photo only for a sheet it holds: one whose sheet is still waiting (saved
+  // while this run sent the outbox) goes on the next pass. Photos are read first, so every
+  // sheet of theirs is already in the outbox read after them.
+  const photos = await photosAll();
+  const unsent = new Set(
+    (await outboxAll()).filter((e) => e.status === "waiting").map((e) => e.client_uuid),
+  );
+  for (const photo of photos) {
+    if (photo.uploaded || photo.error || unsent.has(photo.sheet_uuid)) continue;
     const form = new FormData();
     form.append("client_uuid", photo.client_uuid);
     form.append("job", String(photo.job));

@@ -3,6 +3,7 @@
 import datetime as dt
 
 import pytest
+from django.urls import reverse
 from django.utils import timezone
 
 from checklists.services import record_sheet
@@ -11,7 +12,7 @@ from compliance.errors import InvalidTransition, JobBlocked
 from compliance.jobs.selectors import job_requirements
 from compliance.jobs.services import close_job, pause_job, start_job
 from compliance.models import Hold, JobState, JobTransition
-from tests.conftest import PASSING, fill_all
+from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import (
     AnchorFactory,
     CertificationFactory,
@@ -299,3 +300,40 @@ def test_a_pass_made_before_the_failure_it_arrives_after_clears_nothing(
     job.refresh_from_db()
     assert job.state == JobState.CLEARED
     assert Hold.objects.get(job=job).clearance.sheet == newer
+
+
+def test_a_recertification_below_the_minimum_takes_a_cleared_job_back_to_planned(
+    job, simple_checklists, operator, supervisor
+):
+    """The job said "cleared" beside the blocker its anchor's new rating raised (its start was
+    refused); the new certificate reads its readiness again, as the log book's changes do."""
+    fill_all(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    anchor = job.drops.get().anchor
+    certificate = {
+        "certifier": "Pat Engineer",
+        "rated_capacity_kn": 8.0,
+        "certified_on": job.date.isoformat(),
+        "valid_until": (job.date + dt.timedelta(days=365)).isoformat(),
+    }
+    client = client_for(supervisor)
+    url = reverse("anchor-certifications", args=[anchor.pk])
+    assert client.post(url, certificate, format="json").status_code == 201
+    detail = client.get(reverse("job-detail", args=[job.pk])).json()
+    assert detail["state"] == "planned"
+    assert detail["blockers"] == [
+        {
+            "code": "anchor_capacity_low",
+            "message": f"Anchor {anchor.label} is rated 8 kN, below the profile's minimum of"
+            " 12 kN.",
+            "requirement": f"anchor:{anchor.pk}",
+        }
+    ]
+    transition = JobTransition.objects.filter(job=job).latest("id")
+    assert (transition.from_state, transition.to_state, transition.by_id) == (
+        "cleared",
+        "planned",
+        supervisor.pk,
+    )
+    assert transition.reason == "A required check is no longer satisfied."

@@ -12,6 +12,7 @@ from pypdf import PdfReader
 
 from checklists.models import Photo
 from checklists.photos import store_photo
+from compliance import clock
 from compliance.records.checks import verify_pdf
 from compliance.records.files import _photo_bytes, render_signed_pdf
 from compliance.records.pdf import render
@@ -34,14 +35,15 @@ def photographed(closed_job, operator, supervisor, settings, tmp_path):
     settings.MEDIA_ROOT = tmp_path
     sheet = closed_job.sheets.order_by("id").first()
     for size, colour in (((60, 120), "red"), ((200, 50), "blue")):
-        store_photo(
-            by=operator,
-            job=closed_job,
-            image=_jpeg(*size, colour),
-            client_uuid=uuid.uuid4(),
-            sheet_uuid=sheet.client_uuid,
-            item_key="sound",
-        )
+        with clock.replaying(closed_job.date):  # sent on the day, as its sheet was
+            store_photo(
+                by=operator,
+                job=closed_job,
+                image=_jpeg(*size, colour),
+                client_uuid=uuid.uuid4(),
+                sheet_uuid=sheet.client_uuid,
+                item_key="sound",
+            )
     return sign_daily_record(
         job=closed_job, by=supervisor, password=PASSWORD, meaning="reviewed_safe"
     )
@@ -80,14 +82,15 @@ def test_photos_render_from_a_storage_with_no_local_path(
 ):
     use_object_storage(settings)
     sheet = closed_job.sheets.order_by("id").first()
-    store_photo(
-        by=operator,
-        job=closed_job,
-        image=_jpeg(80, 60, "green"),
-        client_uuid=uuid.uuid4(),
-        sheet_uuid=sheet.client_uuid,
-        item_key="sound",
-    )
+    with clock.replaying(closed_job.date):
+        store_photo(
+            by=operator,
+            job=closed_job,
+            image=_jpeg(80, 60, "green"),
+            client_uuid=uuid.uuid4(),
+            sheet_uuid=sheet.client_uuid,
+            item_key="sound",
+        )
     photo = Photo.objects.get()
     with pytest.raises(NotImplementedError):
         photo.image.path  # noqa: B018 - object storage has no local file

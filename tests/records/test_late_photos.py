@@ -1,0 +1,149 @@
+"""A photo joins its day's record only while the record is open: before it is sealed, on the
+job's day, for one of the job's sheets and an item of that sheet's checklist."""
+
+import datetime as dt
+import io
+import uuid
+
+import pytest
+from django.urls import reverse
+from django.utils import timezone
+from PIL import Image
+
+from checklists.models import Photo
+from checklists.services import record_sheet
+from compliance import clock
+from compliance.records.services import sign_daily_record, verify_against_database
+from tests.conftest import PASSING, client_for
+from tests.factories import PASSWORD, JobFactory, make_drop
+
+pytestmark = pytest.mark.django_db
+
+
+@pytest.fixture(autouse=True)
+def _media(settings, tmp_path):
+    settings.MEDIA_ROOT = tmp_path
+
+
+def _png() -> io.BytesIO:
+    data = io.BytesIO()
+    Image.new("RGB", (64, 48), (200, 30, 30)).save(data, format="PNG")
+    data.seek(0)
+    data.name = "defect.png"
+    return data
+
+
+def _post(user, job, **fields):
+    body = {"client_uuid": str(uuid.uuid4()), "job": job.pk, "image": _png(), **fields}
+    return client_for(user).post(reverse("photos"), body, format="multipart")
+
+
+def _nothing_stored(tmp_path) -> bool:
+    return not Photo.objects.exists() and not [p for p in tmp_path.rglob("*") if p.is_file()]
+
+
+def test_a_photo_for_a_signed_day_is_refused_and_the_record_still_verifies(
+    signed, closed_job, operator, tmp_path
+):
+    """It was stored, and the server's check of the genuine signed record then said its rows
+    were changed after sealing (record.photos): any operator could make it read as tampered."""
+    sheet = closed_job.sheets.get(subject_kind="anchor", anchor=closed_job.drops.get().anchor)
+    with clock.replaying(closed_job.date):  # on the day: the seal alone refuses it
+        response = _post(operator, closed_job, sheet_uuid=str(sheet.client_uuid), item_key="sound")
+    assert response.status_code == 400
+    assert response.json() == {
+        "job": ["This day's record is signed: a photo can no longer be added to it."]
+    }
+    assert _nothing_stored(tmp_path)
+    assert verify_against_database(signed) == []
+
+
+def test_a_photo_stored_before_the_seal_is_answered_again_after_it(
+    closed_job, operator, supervisor
+):
+    """The phone resends a photo whose answer it lost: the stored copy, as before."""
+    sheet = closed_job.sheets.get(subject_kind="anchor", anchor=closed_job.drops.get().anchor)
+    body = {"sheet_uuid": str(sheet.client_uuid), "item_key": "sound"}
+    key = str(uuid.uuid4())
+    with clock.replaying(closed_job.date):
+        first = _post(operator, closed_job, client_uuid=key, **body)
+    assert first.status_code == 201, first.json()
+    record = sign_daily_record(
+        job=closed_job, by=supervisor, password=PASSWORD, meaning="reviewed_safe"
+    )
+    again = _post(operator, closed_job, client_uuid=key, **body)
+    assert again.status_code == 200
+    assert again.json() == first.json()
+    assert verify_against_database(record) == []
+
+
+def test_a_photo_is_refused_on_any_day_but_the_jobs(closed_job, operator, tmp_path):
+    """A loose photo counts as made the day it is received; the job's day has passed (and a
+    later job's has not come)."""
+    today = timezone.localdate()
+    response = _post(operator, closed_job)
+    assert response.status_code == 400
+    assert response.json() == {
+        "job": [
+            f"This job is for {closed_job.date.isoformat()}: its photos are taken on its day,"
+            f" and this one was made on {today.isoformat()}."
+        ]
+    }
+    tomorrow = JobFactory(
+        site=closed_job.site,
+        supervisor=closed_job.supervisor,
+        date=today + dt.timedelta(days=1),
+    )
+    assert _post(operator, tomorrow).json() == {
+        "job": [
+            f"This job is for {tomorrow.date.isoformat()}: its photos are taken on its day,"
+            f" and this one was made on {today.isoformat()}."
+        ]
+    }
+    assert _nothing_stored(tmp_path)
+
+
+def test_a_photo_sent_the_morning_after_keeps_its_sheets_day(simple_checklists, operator):
+    """Filled offline on the roof and sent the next morning, the sheet was made on its day, and
+    so was the photo taken for it (the phone sends sheets first, then their photos)."""
+    yesterday = JobFactory(date=timezone.localdate() - dt.timedelta(days=1))
+    make_drop(yesterday)
+    fill_time = timezone.make_aware(dt.datetime.combine(yesterday.date, dt.time(7, 5)))
+    with clock.replaying(yesterday.date):
+        sheet, _ = record_sheet(
+            job=yesterday,
+            version=simple_checklists["site"],
+            by=yesterday.supervisor,
+            entries=PASSING["site"],
+            device_time=fill_time,
+            phone_clock_offset_s=0,
+        )
+    response = _post(
+        yesterday.supervisor,
+        yesterday,
+        sheet_uuid=str(sheet.client_uuid),
+        item_key="zone_closed",
+    )
+    assert response.status_code == 201, response.json()
+
+
+def test_a_photo_names_a_sheet_of_its_job_and_an_item_of_that_sheet(
+    closed_job, simple_checklists, operator, tmp_path
+):
+    sheet = closed_job.sheets.get(subject_kind="anchor", anchor=closed_job.drops.get().anchor)
+    other = JobFactory(site=closed_job.site, supervisor=closed_job.supervisor)
+    make_drop(other)
+    others, _ = record_sheet(
+        job=other, version=simple_checklists["site"], by=operator, entries=PASSING["site"]
+    )
+    with clock.replaying(closed_job.date):
+        for named in (others.client_uuid, uuid.uuid4()):
+            response = _post(operator, closed_job, sheet_uuid=str(named), item_key="sound")
+            assert response.status_code == 400
+            assert response.json() == {"sheet_uuid": ["This job has no sheet with this id."]}
+        response = _post(
+            operator, closed_job, sheet_uuid=str(sheet.client_uuid), item_key="roof_wind"
+        )
+    assert response.status_code == 400
+    assert response.json() == {"item_key": ["This sheet's checklist has no item with this key."]}
+    assert _nothing_stored(tmp_path)
