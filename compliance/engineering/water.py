@@ -281,6 +281,11 @@ def compute(values: Inputs) -> CalcResult:
             reason=(
                 f"At the top of the drop the nozzles would get about {num(flowing_top_kpa, 3)}"
                 f" kPa while flowing; they need {num(nozzle_kpa, 3)} kPa."
+                if flowing_top_kpa >= 0.0
+                # A pressure below zero is no pressure a nozzle gets: the flow does not arrive.
+                else "No water would reach the nozzles at the top of the drop: the supply cannot"
+                f" drive {num(flow_lpm, 3)} L/min through the hose's losses; they need"
+                f" {num(nozzle_kpa, 3)} kPa."
             ),
         ),
     ]

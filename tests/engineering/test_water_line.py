@@ -207,6 +207,16 @@ def test_the_nozzles_are_checked_at_the_top_of_the_drop() -> None:
     assert result.reason.startswith("At the top of the drop the nozzles would get about")
 
 
+def test_a_flow_the_supply_cannot_drive_is_not_given_as_a_pressure_below_zero() -> None:
+    """With no head and no pump at the top, every friction loss leaves the top below zero:
+    "the nozzles would get about -47.7 kPa" read as a figure. It says no water arrives."""
+    result = run("water-line", vary(WATER, top_head_m=0.0, supply_kpa=0.0))
+    assert result.outputs["flowing_top_kpa"] < 0.0  # type: ignore[operator]
+    assert result.governing == "nozzle_pressure" and result.verdict == "fail"
+    assert result.reason.startswith("No water would reach the nozzles at the top of the drop:")
+    assert "-" not in result.reason
+
+
 def test_the_surge_of_a_fast_valve_counts_at_the_foot() -> None:
     """Joukowsky Δp = ρ·a·v (from memory, pressure surge in pipes) for a valve that shuts
     within the wave's round trip 2L/a; slower closure gives Δp·(2L/a)/t_c."""

@@ -191,7 +191,11 @@ function compute(values: Inputs): CalcResult {
           ` (${num(staticFootKpa, 3)} kPa standing and ${num(surge, 3)} kPa of surge); it is rated ${num(ratingKpa, 3)} kPa.`,
       }),
       check("nozzle_pressure", flowingTopKpa / nozzleKpa - 1, false, {
-        reason: `At the top of the drop the nozzles would get about ${num(flowingTopKpa, 3)} kPa while flowing; they need ${num(nozzleKpa, 3)} kPa.`,
+        // A pressure below zero is no pressure a nozzle gets: the flow does not arrive.
+        reason:
+          flowingTopKpa >= 0
+            ? `At the top of the drop the nozzles would get about ${num(flowingTopKpa, 3)} kPa while flowing; they need ${num(nozzleKpa, 3)} kPa.`
+            : `No water would reach the nozzles at the top of the drop: the supply cannot drive ${num(flowLpm, 3)} L/min through the hose's losses; they need ${num(nozzleKpa, 3)} kPa.`,
       }),
     ],
     steps,
