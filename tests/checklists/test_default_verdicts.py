@@ -178,7 +178,8 @@ def test_a_roof_tank_without_a_pump_cannot_feed_the_nozzles_at_the_top(today):
     line = _fill(today, "water-line", supply_pressure=0.0, top_head=3.0)[0]["line_pressure"]
     assert line.verdict == "fail"
     assert line.working["governing"] == "nozzle_pressure"
-    assert line.message.startswith("At the top of the drop the nozzles would get about")
+    # The losses over the demo's hose exceed a 3 m head: no water arrives at all.
+    assert line.message.startswith("No water would reach the nozzles at the top of the drop:")
 
 
 def test_demo_tether_carries_the_dynamic_load_and_the_wind(today):
