@@ -118,6 +118,7 @@ if DATABASES["default"]["ENGINE"] == "django.db.backends.sqlite3":
     DATABASES["default"].setdefault("OPTIONS", {}).update(SQLITE_OPTIONS)
 
 AUTH_USER_MODEL = "compliance.User"
+AUTHENTICATION_BACKENDS = ["compliance.auth.AnyCaseUsernameBackend"]
 PASSWORD_HASHERS = [
     "django.contrib.auth.hashers.Argon2PasswordHasher",
     "django.contrib.auth.hashers.PBKDF2PasswordHasher",

@@ -203,3 +203,38 @@ def test_the_html_sign_in_page_is_limited_too(client):
             reverse("login-page"), {"username": user.username, "password": PASSWORD}
         ).content.decode()
     )
+
+
+@pytest.mark.parametrize("typed", ["Tomas", "TOMAS", " tomas ", "tomas\t"])
+def test_a_username_signs_in_as_a_phone_keyboard_types_it(typed):
+    """A phone capitalises the first letter and may add a space: "Tomas" with the right
+    password read "Wrong username or password."."""
+    user = UserFactory(username="tomas")
+    response = APIClient().post(
+        reverse("login"), {"username": typed, "password": PASSWORD}, format="json"
+    )
+    assert response.status_code == 200, response.json()
+    assert response.json()["username"] == user.username
+
+
+def test_two_accounts_differing_only_in_case_sign_in_only_by_their_exact_names():
+    UserFactory(username="ana")
+    UserFactory(username="Ana")
+    client = APIClient()
+    for typed, expected in [("ana", 200), ("Ana", 200), ("ANA", 400)]:
+        response = client.post(
+            reverse("login"), {"username": typed, "password": PASSWORD}, format="json"
+        )
+        assert response.status_code == expected, typed
+        if expected == 200:
+            assert response.json()["username"] == typed
+            client.post(reverse("logout"))
+
+
+def test_a_wrong_password_still_fails_whatever_the_case():
+    UserFactory(username="tomas")
+    response = APIClient().post(
+        reverse("login"), {"username": "Tomas", "password": "wrong"}, format="json"
+    )
+    assert response.status_code == 400
+    assert response.json() == {"detail": "Wrong username or password."}

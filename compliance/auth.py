@@ -1,0 +1,37 @@
+"""Signing in with a username as a phone's keyboard types it."""
+
+from typing import Any
+
+from django.contrib.auth import get_user_model
+from django.contrib.auth.backends import ModelBackend
+from django.http import HttpRequest
+
+
+class AnyCaseUsernameBackend(ModelBackend):
+    """Django's own backend, with the username matched whatever its case and without the
+    spaces around it: a phone's keyboard writes "Tomas " for tomas, and the person read
+    "Wrong username or password." with both right. Where two accounts differ only in case,
+    only the exact name signs in (neither is taken for the other)."""
+
+    def authenticate(
+        self,
+        request: HttpRequest | None,
+        username: str | None = None,
+        password: str | None = None,
+        **kwargs: Any,
+    ) -> Any:
+        if username is None or password is None:
+            return None
+        typed = username.strip()
+        model = get_user_model()
+        found = list(model._default_manager.filter(username__iexact=typed))
+        if len(found) > 1:
+            found = [user for user in found if user.username == typed]
+        if len(found) != 1:
+            # As Django's backend does: hash anyway, so a missing account takes as long.
+            model().set_password(password)
+            return None
+        user = found[0]
+        if user.check_password(password) and self.user_can_authenticate(user):
+            return user
+        return None
