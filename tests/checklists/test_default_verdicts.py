@@ -307,3 +307,31 @@ def test_a_leak_tight_robot_within_the_gauge_resolution_passes(today, series):
     assert decay.verdict == "pass", decay.message
     assert decay.value["fit"] == "gauge resolution"
     assert decay.value["time_to_limit_s"] == pytest.approx(360.0, rel=1e-12)
+
+
+def test_a_rescue_time_typed_in_minutes_fails_instead_of_passing_any_decay_test(today):
+    """8 typed for a rescue that takes 8 min made a grip of about 360 s pass; the floor of
+    60 s (common practice, no source: no rope rescue reaches a robot on a facade within a
+    minute) catches it, and the reason says to give seconds."""
+    entries, _ = _fill(today, "vacuum-hold", rescue_reach=8.0)
+    rescue = entries["rescue_reach"]
+    assert rescue.verdict == "fail"
+    assert rescue.working["limits"]["min"]["value"] == 60
+    item = next(
+        i
+        for v in current_versions(today.organisation_id)["robot"]
+        if v.checklist.key == "vacuum-hold"
+        for i in v.items
+        if i["key"] == "rescue_reach"
+    )
+    assert "a time in minutes, to give in seconds" in item["reason"]
+
+
+def test_a_valve_pressure_read_in_bar_fails_instead_of_passing_under_the_rating(today):
+    """30 typed from a bar gauge (3000 kPa, over a 2500 kPa hose) passed as 30 kPa; the valve
+    must reach the robot's nozzle minimum (common practice, no source: the robot cleans with
+    nothing less)."""
+    entries, _ = _fill(today, "water-line", valve_pressure=30.0)
+    valve = entries["valve_pressure"]
+    assert valve.verdict == "fail"
+    assert valve.working["limits"]["min"]["source"] == {"robot": "nozzle_min_kpa"}
