@@ -51,6 +51,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const [waiting, setWaiting] = useState<OutboxEntry | null>(null);
   // Drafts: restored once the checklist version is known, then kept as the operator goes.
   const key = draftKey(id, requirement);
+  // A read-only person (an auditor) reads the sheet: nothing is typed, so nothing is kept.
+  const writer = canRecord(user);
   const [draftState, setDraftState] = useState<{ ready: boolean; restoredAt: string; keptAt: string; other: string }>(
     { ready: false, restoredAt: "", keptAt: "", other: "" });
   const pending = useRef<ReturnType<typeof setTimeout> | null>(null);
@@ -91,7 +93,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   );
 
   useEffect(() => {
-    if (!version || draftState.ready) return;
+    if (!version || draftState.ready || !writer) return;
     (async () => {
       const kept = await draftGet(key).catch(() => null);
       if (kept && kept.version === version.id) {
@@ -109,7 +111,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
 
   // What to write now; refreshed every render so the debounced call sees the latest answers.
   latest.current = async () => {
-    if (!version || saved.current) return;
+    if (!version || saved.current || !writer) return;
     if (isEmptyDraft(draft) && !remarks.trim() && Object.keys(timers).length === 0) {
       await draftDelete(key);
       setDraftState((d) => ({ ...d, keptAt: "" }));
@@ -200,7 +202,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
 
   const { failed, rest } = ordered(views, steady);
   const opens = opensOn(job.date, today());
-  const records = canRecord(user) && !opens;
+  const records = writer && !opens;
   const needed = stillNeeded(views);
   const set = <K extends keyof Draft>(part: K, key: string, value: Draft[K][string]) =>
     setDraft((d) => ({ ...d, [part]: { ...d[part], [key]: value } }));
@@ -440,7 +442,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
         </div>
       )}
       {draftState.other && <p class="note">{draftState.other}</p>}
-      {opens && (
+      {!writer && <p class="note" data-testid="sheet-read-only">{READ_ONLY_WORDS} This sheet cannot be filled in here.</p>}
+      {writer && opens && (
         <p class="note" data-testid="sheet-opens">
           Opens on {opens}: this job's pre-start checks are made on its day. Read it now; fill it in on {opens}.
         </p>
@@ -461,7 +464,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
           What you fill in here is a new check: once saved, it is the one that counts.
         </p>
       )}
-      <fieldset class="bare" disabled={!!opens}>
+      <fieldset class="bare" disabled={!records}>
       {failed.length > 0 && (
         <section class="alert-block" data-testid="failed-top">
           <h2><Badge kind="held" word="Stop work: blocking item failed" /></h2>
@@ -474,16 +477,20 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
         <textarea rows={3} value={remarks} onInput={(e) => setRemarks((e.target as HTMLTextAreaElement).value)} data-testid="remarks" />
       </label>
       </fieldset>
-      <p class="muted small" data-testid="draft-note">
-        {draftState.keptAt
-          ? `Answers kept on this phone as you go (last at ${timeOf(draftState.keptAt)}); they stay until the check is saved.`
-          : "Answers are kept on this phone as you go."}
-      </p>
+      {writer && (
+        <p class="muted small" data-testid="draft-note">
+          {draftState.keptAt
+            ? `Answers kept on this phone as you go (last at ${timeOf(draftState.keptAt)}); they stay until the check is saved.`
+            : "Answers are kept on this phone as you go."}
+        </p>
+      )}
       <CautionLine job={job.id} />
       <BottomBar>
-        <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
-          {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
-        </span>
+        {writer && (
+          <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
+            {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
+          </span>
+        )}
         {records ? (
           <button type="button" class="btn btn-primary" onClick={save} data-testid="save">Save check</button>
         ) : opens ? (
