@@ -62,6 +62,10 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const [steady, setSteady] = useState<Record<string, Steady>>({});
   const pauses = useRef<Record<string, ReturnType<typeof setTimeout>>>({});
   const pointer = useRef<{ down: boolean; after: (() => void)[] }>({ down: false, after: [] });
+  // The tick item being answered keeps its place (a phone may not focus a tapped button) until
+  // the person goes on to another part of the sheet: `goOn` lets it go then.
+  const working = useRef<string | null>(null);
+  const goOn = useRef<(to: EventTarget | null) => void>(() => undefined);
 
   useEffect(() => {
     (async () => {
@@ -160,11 +164,16 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
       pointer.current.down = true;
     };
     const up = () => setTimeout(runAfter, 0); // in case no click follows the release
+    const moved = (e: Event) => goOn.current(e.target);
     document.addEventListener("pointerdown", down, true);
     document.addEventListener("pointerup", up, true);
     document.addEventListener("pointercancel", runAfter, true);
     document.addEventListener("click", runAfter); // bubbling: after the target's own handler
+    document.addEventListener("click", moved);
+    document.addEventListener("focusin", moved);
     return () => {
+      document.removeEventListener("click", moved);
+      document.removeEventListener("focusin", moved);
       document.removeEventListener("pointerdown", down, true);
       document.removeEventListener("pointerup", up, true);
       document.removeEventListener("pointercancel", runAfter, true);
@@ -177,7 +186,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   useEffect(() => {
     // A calculation held with the reading it reads has no field: it goes when the reading goes.
     const held = new Set(Object.keys(steady).flatMap((key) => readers(key)));
-    for (const key of Object.keys(steady)) if (!held.has(key) && !hasFocus(key) && !pointer.current.down) letGo(key);
+    for (const key of Object.keys(steady))
+      if (!held.has(key) && key !== working.current && !hasFocus(key) && !pointer.current.down) letGo(key);
   });
 
   function startAfresh() {
@@ -186,6 +196,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     setRemarks("");
     setTimers({});
     setSteady({});
+    working.current = null;
     setTried(false);
     setDraftState((d) => ({ ...d, restoredAt: "" }));
   }
@@ -259,6 +270,21 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     else go();
   }
 
+  goOn.current = (to) => {
+    const key = working.current;
+    if (!key || (to instanceof Node && document.getElementById(`item-${key}`)?.contains(to))) return;
+    working.current = null;
+    letGo(key);
+  };
+
+  /** A tick answered: the item stays where it is, in the part it was in, until the person goes on. */
+  function tick(key: string, value: TickValue) {
+    if (working.current !== key) goOn.current(null);
+    holdSteady(key, false);
+    working.current = key;
+    set("ticks", key, value);
+  }
+
   async function save() {
     if (!job || !req || !version) return;
     setTried(true);
@@ -316,7 +342,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     go({ name: "job", id: job.id });
   }
 
-  function renderItem(view: ItemView) {
+  function renderItem(view: ItemView, inPlace: boolean) {
     const { item } = view;
     const key = item.key;
     const showMissing = tried && view.verdict === "missing" && item.kind !== "calc";
@@ -339,7 +365,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
           <div class="ticks" role="group" aria-label={item.label}>
             {(["pass", "fail", ...(item.allow_na ? ["na"] : [])] as TickValue[]).map((value) => (
               <button type="button" class={`btn tick tick-${value}`} aria-pressed={draft.ticks[key] === value}
-                onClick={() => set("ticks", key, value)} data-testid={`tick-${key}-${value}`}>
+                onClick={() => tick(key, value)} data-testid={`tick-${key}-${value}`}>
                 {value === "pass" ? "Pass" : value === "fail" ? "Fail" : "N/A"}
               </button>
             ))}
@@ -426,6 +452,9 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
             )}
           </>
         )}
+        {inPlace && item.blocking && view.verdict === "fail" && (
+          <p class="error" role="alert" data-testid={`stop-${key}`}>Stop work: this blocking item failed.</p>
+        )}
         {showMissing && <p class="error small">This needs an answer before saving.</p>}
       </li>
     );
@@ -468,10 +497,10 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
       {failed.length > 0 && (
         <section class="alert-block" data-testid="failed-top">
           <h2><Badge kind="held" word="Stop work: blocking item failed" /></h2>
-          <ul class="list">{failed.map(renderItem)}</ul>
+          <ul class="list">{failed.map((v) => renderItem(v, false))}</ul>
         </section>
       )}
-      <ul class="list" data-testid="items">{rest.map(renderItem)}</ul>
+      <ul class="list" data-testid="items">{rest.map((v) => renderItem(v, true))}</ul>
       <label class="field card">
         <span>Remarks for the daily record (optional)</span>
         <textarea rows={3} value={remarks} onInput={(e) => setRemarks((e.target as HTMLTextAreaElement).value)} data-testid="remarks" />
