@@ -388,3 +388,27 @@ def test_an_auditors_check_sheet_is_read_only_and_keeps_no_draft(live_server, de
     assert page.locator("[data-testid=still-needed]").count() == 0
     assert "kept on this phone" not in page.inner_text("main")
     assert page.evaluate(DRAFT_KEYS) == []
+
+
+def test_save_with_items_unanswered_takes_the_focus_to_the_first_and_says_how_many(
+    live_server, demo, page
+):
+    """Save with nothing answered scrolled to the first item but left the focus on Save and
+    announced nothing: a screen reader user heard no answer."""
+    from tests.browser.conftest import sign_in_as
+
+    sign_in_as(page, live_server.url, "tomas")
+    page.goto(live_server.url + f"/#/job/{demo.id}/sheet/{anchor_r1_key(demo)}")
+    page.wait_for_selector("[data-testid=items]")
+    page.click("[data-testid=tick-visual_condition-pass]")
+    page.focus("[data-testid=save]")
+    page.keyboard.press("Enter")
+    page.wait_for_function(
+        "() => document.activeElement?.dataset.testid === 'tick-tag_matches_register-pass'",
+        timeout=3000,
+    )
+    said = page.inner_text("[role=alert][data-testid=save-short]")
+    assert said == (
+        "Not saved: 4 still to answer. The first is: Anchor tag matches the register and the"
+        " certificate is in date."
+    ), said

@@ -246,7 +246,9 @@ def test_a_refused_start_is_shown_beside_the_button_and_announced(live_server, d
     refused = page.wait_for_selector("[role=alert][data-testid=bar-refused]")
     assert "cannot start" in refused.inner_text()
     assert len(refused.query_selector_all("[data-testid=start-reasons] li")) > 1
-    page.wait_for_function("document.activeElement?.dataset.testid === 'bar-refused'", timeout=3000)
+    page.wait_for_function(
+        "() => document.activeElement?.dataset.testid === 'bar-refused'", timeout=3000
+    )
     # Its heading is in view, above the bar with the button.
     top, bar = page.evaluate(
         """() => [document.querySelector('[data-testid=bar-refused]').getBoundingClientRect().top,

@@ -44,6 +44,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const [draft, setDraft] = useState<Draft>(emptyDraft());
   const [remarks, setRemarks] = useState("");
   const [tried, setTried] = useState(false);
+  // Save refused for want of answers: said once per tap, and the focus taken to the first.
+  const [short, setShort] = useState<{ count: number; first: string; tap: number } | null>(null);
   const [openWorking, setOpenWorking] = useState<Record<string, boolean>>({});
   const [sheetUuid, setSheetUuid] = useState(() => newUuid());
   const [timers, setTimers] = useState<Record<string, number>>({});
@@ -292,9 +294,13 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     const live = evaluateForDrops(version.items, draft, contexts);
     const missing = stillNeeded(live);
     if (missing.length) {
-      document.getElementById(`item-${missing[0]!.item.key}`)?.scrollIntoView({ block: "center" });
+      const first = document.getElementById(`item-${missing[0]!.item.key}`);
+      first?.scrollIntoView({ block: "center" });
+      first?.querySelector<HTMLElement>("button, input, textarea")?.focus({ preventScroll: true });
+      setShort((s) => ({ count: missing.length, first: missing[0]!.item.label, tap: (s?.tap ?? 0) + 1 }));
       return;
     }
+    setShort(null);
     const failures = live.filter((v) => v.item.blocking && v.verdict === "fail");
     const photos: PhotoEntry[] = Object.entries(draft.photos).flatMap(([itemKey, list]) =>
       list.map((p) => ({
@@ -511,6 +517,11 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
           {draftState.keptAt
             ? `Answers kept on this phone as you go (last at ${timeOf(draftState.keptAt)}); they stay until the check is saved.`
             : "Answers are kept on this phone as you go."}
+        </p>
+      )}
+      {short && (
+        <p key={short.tap} class="sr-only" role="alert" data-testid="save-short">
+          Not saved: {short.count} still to answer. The first is: {short.first}.
         </p>
       )}
       <CautionLine job={job.id} />
