@@ -432,10 +432,11 @@ NEVER_READY_NOT_SAFE = (
 )
 
 
+# Named as the sign page shows the choices: the refusal quotes each in full.
 NO_HOLD_NOT_STOPPED = (
-    "No hold is open on this day: it cannot be signed as 'work was stopped; the open holds are"
-    " shown'. Choose 'checked and safe', or 'with exceptions' and say in the remarks what"
-    " stopped work and how it was cleared."
+    f"No hold is open on this day, so it cannot be signed as “{MEANINGS['reviewed_stopped']}”"
+    f" Choose “{MEANINGS['reviewed_safe']}”, or “{MEANINGS['reviewed_exceptions']}” and say in"
+    " the remarks what stopped work and how it was cleared."
 )
 
 

@@ -8,6 +8,17 @@ export const MEANINGS: { code: Meaning; text: string }[] = [
   { code: "reviewed_exceptions", text: "Reviewed with exceptions: see the remarks in this record." },
 ];
 
+/** Why a meaning cannot be given to this day, in the page's words, or "" when it can: the server
+ * refuses "safe to proceed" while a hold is open, and "work was stopped" with none open. */
+export function meaningUnavailable(code: Meaning, holds: readonly { cleared_at: string | null }[]): string {
+  const open = holds.some((h) => !h.cleared_at);
+  if (code === "reviewed_safe" && open) return "Not available: the record has open holds.";
+  if (code !== "reviewed_stopped" || open) return "";
+  return holds.length
+    ? "Not available: the day's holds were cleared. Choose “Reviewed with exceptions” and say in the remarks what stopped work."
+    : "Not available: no stop-work hold this day.";
+}
+
 export const STATEMENT =
   "By signing you state, as the competent person for this site, that you have reviewed this day's " +
   "record and that the meaning you chose is true. Your printed name, your role, the date and time " +

@@ -3,7 +3,7 @@ import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { ApiError } from "../src/api";
 import { emptyDraft, isEmptyDraft } from "../src/sheet";
-import { canSign, MEANINGS, sealShort } from "../src/signoff";
+import { canSign, MEANINGS, meaningUnavailable, sealShort } from "../src/signoff";
 import type { User } from "../src/types";
 
 describe("meanings of the signature", () => {
@@ -13,6 +13,28 @@ describe("meanings of the signature", () => {
       readFileSync(new URL("../../fixtures/signature_meanings.json", import.meta.url), "utf8"),
     ) as { meanings: Record<string, string> };
     expect(Object.fromEntries(MEANINGS.map((m) => [m.code, m.text]))).toEqual(shared.meanings);
+  });
+});
+
+describe("meaningUnavailable", () => {
+  const open = { cleared_at: null };
+  const cleared = { cleared_at: "2026-12-02T10:00:00Z" };
+  const offered = (holds: { cleared_at: string | null }[]) =>
+    MEANINGS.filter((m) => !meaningUnavailable(m.code, holds)).map((m) => m.code);
+
+  it("offers only what the server takes: 'work was stopped' needs an open hold, 'safe' none", () => {
+    // A day with no hold was offered "work was stopped", refused only after the password was typed.
+    expect(offered([])).toEqual(["reviewed_safe", "reviewed_exceptions"]);
+    expect(offered([cleared])).toEqual(["reviewed_safe", "reviewed_exceptions"]);
+    expect(offered([open, cleared])).toEqual(["reviewed_stopped", "reviewed_exceptions"]);
+  });
+
+  it("says why in the page's own words", () => {
+    expect(meaningUnavailable("reviewed_stopped", [])).toBe("Not available: no stop-work hold this day.");
+    expect(meaningUnavailable("reviewed_stopped", [cleared])).toBe(
+      "Not available: the day's holds were cleared. Choose “Reviewed with exceptions” and say in the remarks what stopped work.",
+    );
+    expect(meaningUnavailable("reviewed_safe", [open])).toBe("Not available: the record has open holds.");
   });
 });
 

@@ -355,3 +355,60 @@ def test_an_auditor_on_the_phone_reads_and_is_offered_nothing_to_record(live_ser
     page.wait_for_selector("[data-testid=items]")
     assert page.locator("[data-testid=save]").count() == 0
     assert page.inner_text("[data-testid=read-only]").startswith("Read only: an auditor")
+
+
+DRAFT_KEYS = """() => new Promise((resolve, reject) => {
+  const open = indexedDB.open("parapet");
+  open.onerror = () => reject(open.error);
+  open.onsuccess = () => {
+    const keys = open.result.transaction("drafts").objectStore("drafts").getAllKeys();
+    keys.onsuccess = () => { open.result.close(); resolve(keys.result); };
+  };
+})"""
+
+
+def test_an_auditors_check_sheet_is_read_only_and_keeps_no_draft(live_server, demo, page):
+    """The sheet took an auditor's taps: a Fail showed the stop-work block, the bar counted the
+    items 'still to answer' beside 'Read only', and the answers were kept on the phone as a
+    draft. An auditor reads the sheet; the crew fills it in."""
+    from tests.browser.conftest import sign_in_as
+
+    sign_in_as(page, live_server.url, "ivy")
+    page.goto(live_server.url + f"/#/job/{demo.id}/sheet/{anchor_r1_key(demo)}")
+    page.wait_for_selector("[data-testid=items]")
+    assert page.inner_text("[data-testid=sheet-read-only]").startswith("Read only:")
+    fail = page.locator("[data-testid=tick-visual_condition-fail]")
+    assert fail.is_disabled()
+    assert page.locator("[data-testid=reading-tag_capacity]").is_disabled()
+    assert page.locator("[data-testid=remarks]").is_disabled()
+    fail.click(force=True)  # a tap on a disabled button does nothing
+    page.wait_for_timeout(800)  # twice the draft's 400 ms
+    assert page.locator("[data-testid=failed-top]").count() == 0
+    assert fail.get_attribute("aria-pressed") == "false"
+    assert page.locator("[data-testid=still-needed]").count() == 0
+    assert "kept on this phone" not in page.inner_text("main")
+    assert page.evaluate(DRAFT_KEYS) == []
+
+
+def test_save_with_items_unanswered_takes_the_focus_to_the_first_and_says_how_many(
+    live_server, demo, page
+):
+    """Save with nothing answered scrolled to the first item but left the focus on Save and
+    announced nothing: a screen reader user heard no answer."""
+    from tests.browser.conftest import sign_in_as
+
+    sign_in_as(page, live_server.url, "tomas")
+    page.goto(live_server.url + f"/#/job/{demo.id}/sheet/{anchor_r1_key(demo)}")
+    page.wait_for_selector("[data-testid=items]")
+    page.click("[data-testid=tick-visual_condition-pass]")
+    page.focus("[data-testid=save]")
+    page.keyboard.press("Enter")
+    page.wait_for_function(
+        "() => document.activeElement?.dataset.testid === 'tick-tag_matches_register-pass'",
+        timeout=3000,
+    )
+    said = page.inner_text("[role=alert][data-testid=save-short]")
+    assert said == (
+        "Not saved: 4 still to answer. The first is: Anchor tag matches the register and the"
+        " certificate is in date."
+    ), said

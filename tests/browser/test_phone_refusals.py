@@ -232,3 +232,26 @@ def test_the_sign_page_counts_the_days_stop_work_holds(live_server, demo, page):
     day = page.inner_text("[data-testid=sign-holds-day]")
     assert "Stop work 1 time this day" in day
     assert "opened" in day and "cleared" in day
+
+
+def test_a_refused_start_is_shown_beside_the_button_and_announced(live_server, demo, page):
+    """Start work tapped at the foot of the job screen was refused with its reasons some 3000 px
+    above, out of view and not announced: nothing seemed to happen."""
+    base = live_server.url
+    sign_in_as(page, base, "tomas")
+    page.goto(base + f"/#/job/{demo.id}")
+    wait_state(page, "planned")
+    page.evaluate("window.scrollTo(0, document.body.scrollHeight)")
+    page.click("[data-testid=start]")
+    refused = page.wait_for_selector("[role=alert][data-testid=bar-refused]")
+    assert "cannot start" in refused.inner_text()
+    assert len(refused.query_selector_all("[data-testid=start-reasons] li")) > 1
+    page.wait_for_function(
+        "() => document.activeElement?.dataset.testid === 'bar-refused'", timeout=3000
+    )
+    # Its heading is in view, above the bar with the button.
+    top, bar = page.evaluate(
+        """() => [document.querySelector('[data-testid=bar-refused]').getBoundingClientRect().top,
+                  document.querySelector('.bottom-bar').getBoundingClientRect().top]"""
+    )
+    assert 0 <= top < bar - 40, (top, bar)

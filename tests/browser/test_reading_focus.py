@@ -171,3 +171,51 @@ def test_a_reading_below_its_limit_moves_to_stop_work_once_committed(live_server
     assert page.get_attribute("[data-testid=tick-visual_condition-pass]", "aria-pressed") == "true"
     page.wait_for_selector(f"[data-testid=failed-top] {item}[data-verdict=fail]")
     assert field.input_value() == "12"
+
+
+def test_a_failed_tick_stays_under_the_finger_keeps_the_focus_and_is_announced(
+    live_server, demo, page
+):
+    """Fail on a tick item lifted it into the stop-work block some 900 px above: the next card
+    took its place under the finger, the keyboard focus fell to the page and nothing was
+    announced. It now stays while it is being answered, says 'Stop work' beside its buttons
+    (an alert), and takes its place in the stop-work block once the person goes on."""
+    from compliance.models import Anchor
+
+    job = demo
+    base = live_server.url
+    anchor_r1 = f"anchor-pre-use@anchor:{Anchor.objects.get(site=job.site, label='R1').pk}"
+    sign_in_as(page, base, "tomas")
+    page.goto(base + f"/#/job/{job.id}/sheet/{anchor_r1}")
+    page.wait_for_selector("[data-testid=items]")
+
+    # A tap.
+    fixings = "[data-testid=item-fixings_tight]"
+    fail = page.locator("[data-testid=tick-fixings_tight-fail]")
+    fail.evaluate("e => e.scrollIntoView({ block: 'center' })")
+    before = fail.bounding_box()
+    fail.click()
+    alert = page.wait_for_selector(f"[data-testid=items] {fixings} [role=alert]", timeout=3000)
+    assert alert.inner_text().startswith("Stop work")
+    after = fail.bounding_box()
+    assert abs(after["y"] - before["y"]) < 1, (before, after)  # not a card's height: a pixel's part
+    assert fail.get_attribute("aria-pressed") == "true"
+    assert page.query_selector("[data-testid=failed-top]") is None
+
+    # The keyboard: Space on Fail keeps the focus on Fail.
+    page.focus("[data-testid=tick-membrane_sound-pass]")
+    page.keyboard.press("Tab")
+    assert focused_testid(page) == "tick-membrane_sound-fail"
+    page.keyboard.press("Space")
+    page.wait_for_selector("[data-testid=items] [data-testid=item-membrane_sound] [role=alert]")
+    assert focused_testid(page) == "tick-membrane_sound-fail"
+
+    # Going on to another item: the failed ones take their place in the stop-work block, and
+    # the button tapped is the one pressed.
+    page.click("[data-testid=tick-tag_matches_register-pass]")
+    page.wait_for_selector(f"[data-testid=failed-top] {fixings}")
+    page.wait_for_selector("[data-testid=failed-top] [data-testid=item-membrane_sound]")
+    assert (
+        page.get_attribute("[data-testid=tick-tag_matches_register-pass]", "aria-pressed") == "true"
+    )
+    assert focused_testid(page) == "tick-tag_matches_register-pass"

@@ -209,3 +209,34 @@ def test_start_again_asks_before_clearing_a_finished_test(live_server, demo, pag
     assert samples(page) == []
     page.clock.run_for(500)
     assert kept_series(page, f"{job.id}:{req_key}", {"decay_series": []}) == {"decay_series": []}
+
+
+LIVE_TEXT = """sel => [...document.querySelector(sel).querySelectorAll(
+  "[role=status], [role=alert], [aria-live]:not([aria-live=off])")].map((e) => e.textContent)
+  .join(" | ")"""
+
+
+def test_only_a_reading_falling_due_is_announced_not_the_countdown(live_server, demo, page):
+    """The countdown was a polite live region that changed every second ("Next reading in 28 s",
+    "27 s", ...): a screen reader queued one announcement a second for the whole test, and
+    "Read the gauge now" was lost among them."""
+    job = demo
+    req_key = publish_short_schedule(job)
+    open_paused(page, live_server.url, job, req_key)
+    page.click("[data-testid=series-start]")
+    page.wait_for_selector(ADD_ENABLED)
+    add_reading(page, "62", 1)
+    page.wait_for_selector(ADD_DISABLED)
+
+    heard = {page.evaluate(LIVE_TEXT, SERIES)}
+    for left in range(9, 1, -1):
+        page.clock.run_for(1000)
+        page.wait_for_selector(f"{SERIES} .prompt:has-text('Next reading in {left} s')")
+        heard.add(page.evaluate(LIVE_TEXT, SERIES))
+    assert heard == {""}, heard
+
+    page.clock.run_for(2000)
+    page.wait_for_selector(ADD_ENABLED)
+    assert page.evaluate(LIVE_TEXT, SERIES) == "Read the gauge now: reading 2 is due."
+    page.clock.run_for(1500)  # the seconds go on on the screen, not in what is announced
+    assert page.evaluate(LIVE_TEXT, SERIES) == "Read the gauge now: reading 2 is due."

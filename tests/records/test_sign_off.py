@@ -421,6 +421,22 @@ def test_a_day_without_a_hold_is_not_signed_as_work_stopped(closed_job, supervis
     assert not DailyRecord.objects.filter(job=closed_job).exists()
 
 
+def test_the_refusal_to_sign_as_work_stopped_names_the_choices_as_the_page_shows_them(
+    closed_job, supervisor
+):
+    """The refusal told the supervisor to choose 'checked and safe' or 'with exceptions', words
+    the sign page never shows: it lists each meaning in full."""
+    with pytest.raises(InvalidTransition) as refused:
+        sign_daily_record(
+            job=closed_job, by=supervisor, password=PASSWORD, meaning="reviewed_stopped"
+        )
+
+    detail = str(refused.value)
+    for text in MEANINGS.values():
+        assert f"“{text}”" in detail
+    assert "checked and safe" not in detail
+
+
 def test_a_day_whose_holds_were_all_cleared_is_not_signed_as_work_stopped(
     job, simple_checklists, operator, supervisor, credential
 ):

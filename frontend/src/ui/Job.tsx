@@ -1,4 +1,4 @@
-import { useEffect, useState } from "preact/hooks";
+import { useEffect, useRef, useState } from "preact/hooks";
 import { api, ApiError, OfflineError } from "../api";
 import { keptJob, loadJob, loadRecordOf, today } from "../repo";
 import { enqueue } from "../outbox";
@@ -40,7 +40,10 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   const [outbox, setOutbox] = useState<OutboxEntry[]>([]);
   const [error, setError] = useState("");
   const [message, setMessage] = useState("");
-  const [reasons, setReasons] = useState<Reason[]>([]);
+  // The answer to the bar's buttons (start, pause, close), shown beside the bar: a refusal is
+  // announced and takes the focus, or it would be given far above the button tapped.
+  const [answer, setAnswer] = useState<{ text: string; reasons?: Reason[]; refused?: boolean } | null>(null);
+  const answerAt = useRef<HTMLElement>(null);
   const [closing, setClosing] = useState(false);
   const [closeReason, setCloseReason] = useState("");
   const [busy, setBusy] = useState(false);
@@ -58,6 +61,13 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       }
     })();
   }, [id]);
+
+  useEffect(() => {
+    const el = answerAt.current;
+    if (!el || !answer) return;
+    el.scrollIntoView({ block: answer.refused ? "start" : "nearest" });
+    if (answer.refused) el.focus({ preventScroll: true });
+  }, [answer]);
 
   useEffect(() => {
     (async () => {
@@ -91,23 +101,21 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   async function start() {
     if (!job) return;
     setBusy(true);
-    setReasons([]);
-    setMessage("");
+    setAnswer(null);
     try {
       await requestSync();
       const updated = await api.start(job.id);
       await cachePut(`job:${job.id}`, updated);
       setJob(updated);
       dataChanged();
-      setMessage("Work started. The server confirmed every pre-start check.");
+      setAnswer({ text: "Work started. The server confirmed every pre-start check." });
     } catch (e) {
       if (e instanceof ApiError && e.status === 409) {
-        setReasons((e.body.reasons as Reason[] | undefined) ?? []);
-        setMessage(e.message || "Work cannot start yet.");
+        setAnswer({ text: e.message || "Work cannot start yet.", reasons: (e.body.reasons as Reason[] | undefined) ?? [], refused: true });
       } else if (e instanceof OfflineError) {
-        setMessage("Starting work needs a connection: the server confirms every check first.");
+        setAnswer({ text: "Starting work needs a connection: the server confirms every check first.", refused: true });
       } else {
-        setMessage(e instanceof Error ? e.message : String(e));
+        setAnswer({ text: e instanceof Error ? e.message : String(e), refused: true });
       }
     } finally {
       setBusy(false);
@@ -120,14 +128,14 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       { type: "job_action", data: { job: job.id, action: "pause", reason: "Paused on the roof." } },
       { label: "Pause work", job: job.id },
     );
-    setMessage("Pause queued; the server's answer shows here once sent.");
+    setAnswer({ text: "Pause queued; the server's answer shows on this screen once sent." });
   }
 
   async function close(event: Event) {
     event.preventDefault();
     if (!job) return;
     if (job.state === "held" && !closeReason.trim()) {
-      setMessage("Closing a held job needs a reason.");
+      setAnswer({ text: "Closing a held job needs a reason.", refused: true });
       return;
     }
     await enqueue(
@@ -135,7 +143,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       { label: "Close work for the day", job: job.id },
     );
     setClosing(false);
-    setMessage("Close queued; the server's answer shows here once sent.");
+    setAnswer({ text: "Close queued; the server's answer shows on this screen once sent." });
   }
 
   /** Log the drop with the note the operator chose or typed; a repeated tap does nothing. */
@@ -237,11 +245,6 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       )}
 
       {message && <p class="note" role="status" data-testid="job-message">{message}</p>}
-      {reasons.length > 0 && (
-        <ul class="card plain" data-testid="start-reasons">
-          {reasons.map((r, n) => <li key={n}><Badge kind="mustdo" word={r.message} /></li>)}
-        </ul>
-      )}
 
       {rejected.length > 0 && (
         <section class="card" data-testid="rejected">
@@ -348,6 +351,18 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       )}
 
       <CautionLine job={job.id} />
+
+      {answer && (
+        <section key={answer.refused ? "refused" : "answer"} ref={answerAt} tabIndex={-1} class={answer.refused ? "card alert bar-answer" : "note bar-answer"}
+          role={answer.refused ? "alert" : "status"} data-testid={answer.refused ? "bar-refused" : "bar-answer"}>
+          <p>{answer.text}</p>
+          {answer.reasons && answer.reasons.length > 0 && (
+            <ul class="plain" data-testid="start-reasons">
+              {answer.reasons.map((r, n) => <li key={n}><Badge kind="mustdo" word={r.message} /></li>)}
+            </ul>
+          )}
+        </section>
+      )}
 
       <BottomBar>
         {signHere && job.state === "closed" && (

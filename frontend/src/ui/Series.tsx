@@ -147,7 +147,12 @@ export function SeriesCapture({ item, timing, samples, onChange, startedAt, onTi
         </button>
       ) : (
         <form class="series-form" onSubmit={add}>
-          <p class={due ? "prompt prompt-due" : "prompt"} role="status" aria-live="polite">
+          {/* Only a change of state is announced (a reading due, the timer stopped), never the
+              seconds: a live countdown buries "Read the gauge now" under one message a second. */}
+          <p role="status" class="sr-only" data-testid="series-announce">
+            {backwards ? "Stopped: the phone's clock went back since Start." : due ? `Read the gauge now: reading ${samples.length + 1} is due.` : ""}
+          </p>
+          <p class={due ? "prompt prompt-due" : "prompt"}>
             {backwards
               ? "Stopped: the phone's clock went back since Start."
               : due

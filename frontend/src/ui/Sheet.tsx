@@ -44,6 +44,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const [draft, setDraft] = useState<Draft>(emptyDraft());
   const [remarks, setRemarks] = useState("");
   const [tried, setTried] = useState(false);
+  // Save refused for want of answers: said once per tap, and the focus taken to the first.
+  const [short, setShort] = useState<{ count: number; first: string; tap: number } | null>(null);
   const [openWorking, setOpenWorking] = useState<Record<string, boolean>>({});
   const [sheetUuid, setSheetUuid] = useState(() => newUuid());
   const [timers, setTimers] = useState<Record<string, number>>({});
@@ -51,6 +53,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const [waiting, setWaiting] = useState<OutboxEntry | null>(null);
   // Drafts: restored once the checklist version is known, then kept as the operator goes.
   const key = draftKey(id, requirement);
+  // A read-only person (an auditor) reads the sheet: nothing is typed, so nothing is kept.
+  const writer = canRecord(user);
   const [draftState, setDraftState] = useState<{ ready: boolean; restoredAt: string; keptAt: string; other: string }>(
     { ready: false, restoredAt: "", keptAt: "", other: "" });
   const pending = useRef<ReturnType<typeof setTimeout> | null>(null);
@@ -60,6 +64,10 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   const [steady, setSteady] = useState<Record<string, Steady>>({});
   const pauses = useRef<Record<string, ReturnType<typeof setTimeout>>>({});
   const pointer = useRef<{ down: boolean; after: (() => void)[] }>({ down: false, after: [] });
+  // The tick item being answered keeps its place (a phone may not focus a tapped button) until
+  // the person goes on to another part of the sheet: `goOn` lets it go then.
+  const working = useRef<string | null>(null);
+  const goOn = useRef<(to: EventTarget | null) => void>(() => undefined);
 
   useEffect(() => {
     (async () => {
@@ -91,7 +99,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   );
 
   useEffect(() => {
-    if (!version || draftState.ready) return;
+    if (!version || draftState.ready || !writer) return;
     (async () => {
       const kept = await draftGet(key).catch(() => null);
       if (kept && kept.version === version.id) {
@@ -109,7 +117,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
 
   // What to write now; refreshed every render so the debounced call sees the latest answers.
   latest.current = async () => {
-    if (!version || saved.current) return;
+    if (!version || saved.current || !writer) return;
     if (isEmptyDraft(draft) && !remarks.trim() && Object.keys(timers).length === 0) {
       await draftDelete(key);
       setDraftState((d) => ({ ...d, keptAt: "" }));
@@ -158,11 +166,16 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
       pointer.current.down = true;
     };
     const up = () => setTimeout(runAfter, 0); // in case no click follows the release
+    const moved = (e: Event) => goOn.current(e.target);
     document.addEventListener("pointerdown", down, true);
     document.addEventListener("pointerup", up, true);
     document.addEventListener("pointercancel", runAfter, true);
     document.addEventListener("click", runAfter); // bubbling: after the target's own handler
+    document.addEventListener("click", moved);
+    document.addEventListener("focusin", moved);
     return () => {
+      document.removeEventListener("click", moved);
+      document.removeEventListener("focusin", moved);
       document.removeEventListener("pointerdown", down, true);
       document.removeEventListener("pointerup", up, true);
       document.removeEventListener("pointercancel", runAfter, true);
@@ -175,7 +188,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   useEffect(() => {
     // A calculation held with the reading it reads has no field: it goes when the reading goes.
     const held = new Set(Object.keys(steady).flatMap((key) => readers(key)));
-    for (const key of Object.keys(steady)) if (!held.has(key) && !hasFocus(key) && !pointer.current.down) letGo(key);
+    for (const key of Object.keys(steady))
+      if (!held.has(key) && key !== working.current && !hasFocus(key) && !pointer.current.down) letGo(key);
   });
 
   function startAfresh() {
@@ -184,6 +198,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     setRemarks("");
     setTimers({});
     setSteady({});
+    working.current = null;
     setTried(false);
     setDraftState((d) => ({ ...d, restoredAt: "" }));
   }
@@ -200,7 +215,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
 
   const { failed, rest } = ordered(views, steady);
   const opens = opensOn(job.date, today());
-  const records = canRecord(user) && !opens;
+  const records = writer && !opens;
   const needed = stillNeeded(views);
   const set = <K extends keyof Draft>(part: K, key: string, value: Draft[K][string]) =>
     setDraft((d) => ({ ...d, [part]: { ...d[part], [key]: value } }));
@@ -257,6 +272,21 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     else go();
   }
 
+  goOn.current = (to) => {
+    const key = working.current;
+    if (!key || (to instanceof Node && document.getElementById(`item-${key}`)?.contains(to))) return;
+    working.current = null;
+    letGo(key);
+  };
+
+  /** A tick answered: the item stays where it is, in the part it was in, until the person goes on. */
+  function tick(key: string, value: TickValue) {
+    if (working.current !== key) goOn.current(null);
+    holdSteady(key, false);
+    working.current = key;
+    set("ticks", key, value);
+  }
+
   async function save() {
     if (!job || !req || !version) return;
     setTried(true);
@@ -264,9 +294,13 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     const live = evaluateForDrops(version.items, draft, contexts);
     const missing = stillNeeded(live);
     if (missing.length) {
-      document.getElementById(`item-${missing[0]!.item.key}`)?.scrollIntoView({ block: "center" });
+      const first = document.getElementById(`item-${missing[0]!.item.key}`);
+      first?.scrollIntoView({ block: "center" });
+      first?.querySelector<HTMLElement>("button, input, textarea")?.focus({ preventScroll: true });
+      setShort((s) => ({ count: missing.length, first: missing[0]!.item.label, tap: (s?.tap ?? 0) + 1 }));
       return;
     }
+    setShort(null);
     const failures = live.filter((v) => v.item.blocking && v.verdict === "fail");
     const photos: PhotoEntry[] = Object.entries(draft.photos).flatMap(([itemKey, list]) =>
       list.map((p) => ({
@@ -314,7 +348,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
     go({ name: "job", id: job.id });
   }
 
-  function renderItem(view: ItemView) {
+  function renderItem(view: ItemView, inPlace: boolean) {
     const { item } = view;
     const key = item.key;
     const showMissing = tried && view.verdict === "missing" && item.kind !== "calc";
@@ -337,7 +371,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
           <div class="ticks" role="group" aria-label={item.label}>
             {(["pass", "fail", ...(item.allow_na ? ["na"] : [])] as TickValue[]).map((value) => (
               <button type="button" class={`btn tick tick-${value}`} aria-pressed={draft.ticks[key] === value}
-                onClick={() => set("ticks", key, value)} data-testid={`tick-${key}-${value}`}>
+                onClick={() => tick(key, value)} data-testid={`tick-${key}-${value}`}>
                 {value === "pass" ? "Pass" : value === "fail" ? "Fail" : "N/A"}
               </button>
             ))}
@@ -424,6 +458,9 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
             )}
           </>
         )}
+        {inPlace && item.blocking && view.verdict === "fail" && (
+          <p class="error" role="alert" data-testid={`stop-${key}`}>Stop work: this blocking item failed.</p>
+        )}
         {showMissing && <p class="error small">This needs an answer before saving.</p>}
       </li>
     );
@@ -440,7 +477,8 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
         </div>
       )}
       {draftState.other && <p class="note">{draftState.other}</p>}
-      {opens && (
+      {!writer && <p class="note" data-testid="sheet-read-only">{READ_ONLY_WORDS} This sheet cannot be filled in here.</p>}
+      {writer && opens && (
         <p class="note" data-testid="sheet-opens">
           Opens on {opens}: this job's pre-start checks are made on its day. Read it now; fill it in on {opens}.
         </p>
@@ -461,29 +499,38 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
           What you fill in here is a new check: once saved, it is the one that counts.
         </p>
       )}
-      <fieldset class="bare" disabled={!!opens}>
+      <fieldset class="bare" disabled={!records}>
       {failed.length > 0 && (
         <section class="alert-block" data-testid="failed-top">
           <h2><Badge kind="held" word="Stop work: blocking item failed" /></h2>
-          <ul class="list">{failed.map(renderItem)}</ul>
+          <ul class="list">{failed.map((v) => renderItem(v, false))}</ul>
         </section>
       )}
-      <ul class="list" data-testid="items">{rest.map(renderItem)}</ul>
+      <ul class="list" data-testid="items">{rest.map((v) => renderItem(v, true))}</ul>
       <label class="field card">
         <span>Remarks for the daily record (optional)</span>
         <textarea rows={3} value={remarks} onInput={(e) => setRemarks((e.target as HTMLTextAreaElement).value)} data-testid="remarks" />
       </label>
       </fieldset>
-      <p class="muted small" data-testid="draft-note">
-        {draftState.keptAt
-          ? `Answers kept on this phone as you go (last at ${timeOf(draftState.keptAt)}); they stay until the check is saved.`
-          : "Answers are kept on this phone as you go."}
-      </p>
+      {writer && (
+        <p class="muted small" data-testid="draft-note">
+          {draftState.keptAt
+            ? `Answers kept on this phone as you go (last at ${timeOf(draftState.keptAt)}); they stay until the check is saved.`
+            : "Answers are kept on this phone as you go."}
+        </p>
+      )}
+      {short && (
+        <p key={short.tap} class="sr-only" role="alert" data-testid="save-short">
+          Not saved: {short.count} still to answer. The first is: {short.first}.
+        </p>
+      )}
       <CautionLine job={job.id} />
       <BottomBar>
-        <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
-          {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
-        </span>
+        {writer && (
+          <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
+            {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
+          </span>
+        )}
         {records ? (
           <button type="button" class="btn btn-primary" onClick={save} data-testid="save">Save check</button>
         ) : opens ? (

@@ -9,7 +9,7 @@ import { keepRecord, loadJob, loadRecordOf } from "../repo";
 import { cachePut, outboxAll } from "../storage";
 import { dataChanged } from "../status";
 import { pdfWords, watchPdf, type PdfState } from "../record_pdf";
-import { canSign, MEANINGS, sealShort, STATEMENT } from "../signoff";
+import { canSign, MEANINGS, meaningUnavailable, sealShort, STATEMENT } from "../signoff";
 import { holdsOfDay, holdTitle } from "../holds";
 import type { DailyRecord, JobDetail, Meaning, User } from "../types";
 import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
@@ -152,6 +152,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
     if (!job || busy) return;
     const found: string[] = [];
     if (!meaning) found.push("Choose what your signature means.");
+    else if (meaningUnavailable(meaning, job.holds)) found.push(meaningUnavailable(meaning, job.holds));
     if (meaning === "reviewed_exceptions" && !remarks.trim()) found.push("Write the exceptions in the remarks: the meaning points to them.");
     if (!password) found.push("Re-enter your password to sign.");
     if (found.length) {
@@ -238,16 +239,16 @@ export function SignOff({ id, user }: { id: number; user: User }) {
         <fieldset class="choices" data-testid="meanings">
           <legend>What your signature means</legend>
           {MEANINGS.map((m) => {
-            const blocked = m.code === "reviewed_safe" && openHolds.length > 0;
+            const blocked = meaningUnavailable(m.code, job.holds);
             const chosen = meaning === m.code;
             return (
               <label key={m.code} class={`choice${chosen ? " choice-on" : ""}${blocked ? " choice-off" : ""}`} data-testid={`meaning-${m.code}`}>
-                <input type="radio" name="meaning" value={m.code} checked={chosen} disabled={blocked}
+                <input type="radio" name="meaning" value={m.code} checked={chosen} disabled={!!blocked}
                   onChange={() => setMeaning(m.code)} />
                 <span class="choice-text">
                   {m.text}
                   {chosen && <strong class="choice-word"> Chosen.</strong>}
-                  {blocked && <span class="choice-word small"> Not available: the record has open holds.</span>}
+                  {blocked && <span class="choice-word small" data-testid="meaning-off"> {blocked}</span>}
                 </span>
               </label>
             );
