@@ -1,7 +1,9 @@
 """Loading the invented demo scenario (fixtures/demo/scenario.json) through the real services."""
 
 import datetime as dt
+import itertools
 import json
+from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
@@ -53,7 +55,12 @@ def _fill(
     equipment: Equipment | None = None,
     extra: dict[str, Any] | None = None,
     remarks: str = "",
+    at: dt.time | None = None,
 ) -> None:
+    """Fill the job's checks with the scenario's readings; on a past day, as filled on the roof
+    from ``at`` on, two minutes apart (a sheet with no time of its own reads as filled when
+    the demo was loaded, days after its day)."""
+    made = _on_the_roof(job, at)
     versions = {
         v.checklist.key: v for vs in current_versions(job.organisation_id).values() for v in vs
     }
@@ -70,7 +77,18 @@ def _fill(
             anchor=req.subject.anchor,
             equipment=req.subject.equipment,
             remarks=remarks,
+            device_time=next(made, None),
+            phone_clock_offset_s=0,
         )
+
+
+def _on_the_roof(job: Job, at: dt.time | None) -> Iterator[dt.datetime]:
+    """Times on the job's day from ``at``, two minutes apart; none for today's job (it is
+    filled as the demo loads) or with no time given."""
+    if at is None or job.date >= timezone.localdate():
+        return iter(())
+    start = timezone.make_aware(dt.datetime.combine(job.date, at))
+    return (start + dt.timedelta(minutes=2 * n) for n in itertools.count())
 
 
 @transaction.atomic
@@ -209,7 +227,7 @@ def load_demo(path: Path | None = None) -> Organisation:
                 )
             if not day.get("fill", True):
                 continue
-            _fill(job, operator, data["readings"])
+            _fill(job, operator, data["readings"], at=dt.time(7, 0))
             services.start_job(job=job, by=operator)
             failure = day.get("failure")
             if failure:
@@ -222,6 +240,7 @@ def load_demo(path: Path | None = None) -> Organisation:
                     equipment=robot,
                     extra=failure["readings"],
                     remarks=failure["remarks"],
+                    at=dt.time(10, 30),
                 )
                 _fill(
                     job,
@@ -230,6 +249,7 @@ def load_demo(path: Path | None = None) -> Organisation:
                     only=failure["checklist"],
                     equipment=robot,
                     remarks=day["repair"]["remarks"],
+                    at=dt.time(11, 15),
                 )
                 services.start_job(job=job, by=operator)
             for label in day["done"]:
