@@ -41,7 +41,6 @@ from compliance.registers.selectors import status_requirement
 
 SIGNED_HELD = "Signed off at day's end with the hold open."
 """The reason written when a held day is closed by signing its record."""
-OPEN_HOLDS_NOT_SAFE = "This record has open holds; sign it as stopped or with exceptions."
 
 
 def transition(job: Job, to_state: str, by: User | None, reason: str) -> Job:

@@ -26,7 +26,7 @@ from django.utils import timezone
 from checklists.models import CheckSheet, ItemEntry, Photo
 from compliance.celery import app as celery_app
 from compliance.errors import InvalidTransition, NotPermitted
-from compliance.jobs.holds import OPEN_HOLDS_NOT_SAFE, SIGNED_HELD
+from compliance.jobs.holds import SIGNED_HELD
 from compliance.jobs.selectors import drops_of
 from compliance.jobs.services import close_job
 from compliance.models import (
@@ -425,14 +425,17 @@ def _authenticate(by: User, password: str) -> None:
         raise NotPermitted("Re-enter your password to sign; the one given is not right.")
 
 
+# Named as the sign page shows the choices: each refusal quotes them in full.
 NEVER_READY_NOT_SAFE = (
     "The pre-start checks of this job were never complete (it was never ready to start), so it"
-    " cannot be signed as checked and safe: sign it as reviewed with exceptions and say why in"
+    f" cannot be signed as “{MEANINGS['reviewed_safe']}” Choose"
+    f" “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
+)
+OPEN_HOLDS_NOT_SAFE = (
+    f"This day has open holds, so it cannot be signed as “{MEANINGS['reviewed_safe']}” Choose"
+    f" “{MEANINGS['reviewed_stopped']}”, or “{MEANINGS['reviewed_exceptions']}” and say why in"
     " the remarks."
 )
-
-
-# Named as the sign page shows the choices: the refusal quotes each in full.
 NO_HOLD_NOT_STOPPED = (
     f"No hold is open on this day, so it cannot be signed as “{MEANINGS['reviewed_stopped']}”"
     f" Choose “{MEANINGS['reviewed_safe']}”, or “{MEANINGS['reviewed_exceptions']}” and say in"
