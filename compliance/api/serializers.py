@@ -451,11 +451,17 @@ class JobDetailSerializer(JobSerializer):
         read_only=True,
         help_text="Whether work ever started (only a supervisor or an admin closes it before).",
     )
+    was_ready = serializers.BooleanField(
+        read_only=True,
+        help_text="Whether every pre-start check was ever done and passing (cleared or working):"
+        " a day that never was is not signed as safe.",
+    )
 
     class Meta(JobSerializer.Meta):
         fields = [
             *JobSerializer.Meta.fields,
             *("drops", "requirements", "blockers", "holds", "cautions", "work_started"),
+            "was_ready",
         ]
 
 

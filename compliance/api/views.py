@@ -42,7 +42,7 @@ from compliance.api.throttles import LOGIN_THROTTLES, PasswordReentryThrottle
 from compliance.api.tokens import issue_token, revoke_tokens, token_lifetime
 from compliance.engineering import CALCULATIONS, CalcInputError, run
 from compliance.jobs import services
-from compliance.jobs.selectors import ever_reached, job_readiness, jobs_for, plan_conflicts
+from compliance.jobs.selectors import job_readiness, jobs_for, plan_conflicts, reached
 from compliance.jobs.sync import MAX_BATCH, apply_batch, printable
 from compliance.models import (
     Anchor,
@@ -386,6 +386,7 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
 
 def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
     readiness = job_readiness(job)
+    states = reached(job, JobState.CLEARED, JobState.WORKING)
     return {
         **s.JobSerializer(job, context=context).data,
         "drops": s.DropSerializer(readiness.drops, many=True, context=context).data,
@@ -395,7 +396,8 @@ def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
         "blockers": s.ReasonSerializer([r.as_dict() for r in readiness.blockers], many=True).data,
         "holds": s.HoldSerializer(readiness.holds, many=True).data,
         "cautions": job.site.profile.cautions,
-        "work_started": ever_reached(job, JobState.WORKING),
+        "work_started": JobState.WORKING in states,
+        "was_ready": bool(states),
     }
 
 

@@ -575,6 +575,15 @@ def plan_conflicts(
     return conflicts
 
 
+def reached(job: Job, *states: str) -> set[str]:
+    """Which of `states` the job was in at any time, in one query."""
+    return set(
+        JobTransition.objects.filter(job=job, to_state__in=states)
+        .values_list("to_state", flat=True)
+        .distinct()
+    )
+
+
 def ever_reached(job: Job, *states: str) -> bool:
     """Whether the job was in one of `states` at any time (its transitions say so): work
     started (working), or every pre-start check was done and passing (cleared)."""

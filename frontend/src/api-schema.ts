@@ -1114,6 +1114,7 @@ export interface components {
             readonly holds: components["schemas"]["Hold"][];
             readonly cautions: string;
             readonly work_started: boolean;
+            readonly was_ready: boolean;
         };
         JobRequest: {
             site: number;

@@ -10,9 +10,15 @@ export const MEANINGS: { code: Meaning; text: string }[] = [
 
 /** Why a meaning cannot be given to this day, in the page's words, or "" when it can: the server
  * refuses "safe to proceed" while a hold is open, and "work was stopped" with none open. */
-export function meaningUnavailable(code: Meaning, holds: readonly { cleared_at: string | null }[]): string {
+export function meaningUnavailable(
+  code: Meaning,
+  holds: readonly { cleared_at: string | null }[],
+  wasReady = true,
+): string {
   const open = holds.some((h) => !h.cleared_at);
   if (code === "reviewed_safe" && open) return "Not available: the record has open holds.";
+  if (code === "reviewed_safe" && !wasReady)
+    return "Not available: the pre-start checks were never complete (the job was never ready to start). Choose “Reviewed with exceptions” and say why in the remarks.";
   if (code !== "reviewed_stopped" || open) return "";
   return holds.length
     ? "Not available: the day's holds were cleared. Choose “Reviewed with exceptions” and say in the remarks what stopped work."

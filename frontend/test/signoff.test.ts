@@ -29,6 +29,13 @@ describe("meaningUnavailable", () => {
     expect(offered([open, cleared])).toEqual(["reviewed_stopped", "reviewed_exceptions"]);
   });
 
+  it("does not offer 'safe' for a day whose checks were never complete", () => {
+    // The server refused it (never ready to start) only after the password was typed.
+    const never = MEANINGS.filter((m) => !meaningUnavailable(m.code, [], false)).map((m) => m.code);
+    expect(never).toEqual(["reviewed_exceptions"]);
+    expect(meaningUnavailable("reviewed_safe", [], false)).toMatch(/^Not available: the pre-start checks were never complete/);
+  });
+
   it("says why in the page's own words", () => {
     expect(meaningUnavailable("reviewed_stopped", [])).toBe("Not available: no stop-work hold this day.");
     expect(meaningUnavailable("reviewed_stopped", [cleared])).toBe(
