@@ -23,7 +23,7 @@ from checklists.models import CheckSheet
 from checklists.selectors import superseded
 from checklists.verdicts import ItemResult
 from compliance import clock
-from compliance.jobs.selectors import job_blockers, open_holds
+from compliance.jobs.selectors import job_blockers, job_requirements, open_holds
 from compliance.models import (
     OPEN_STATES,
     Anchor,
@@ -167,11 +167,56 @@ def jobs_with_kit(equipment: Equipment) -> list[Job]:
     return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
 
 
+JUDGED_ON_CHANGED = "judged_on"
+"""The item key of a hold opened because a figure a check read has changed since."""
+
+
 def reread_readiness(*, jobs: Iterable[Job], by: User) -> None:
     """A register change (a rating, a date, in or out of service) may leave a cleared job's
-    checks behind, or put right what held a planned one: each job's state is read again."""
+    checks behind, or put right what held a planned one: each job's state is read again. A job
+    at work whose checks were judged on a figure that now reads otherwise stops: its check is
+    made again (a safety line re-rated from 30 kN to 10 kN while the robot is on the facade)."""
     for job in jobs:
-        refresh_readiness(job=job, by=by)
+        if job.state == JobState.WORKING:
+            hold_for_changed_figures(job=job, by=by)
+        else:
+            refresh_readiness(job=job, by=by)
+
+
+def hold_for_changed_figures(*, job: Job, by: User) -> Job:
+    """Open a hold on each requirement whose newest check was judged on a figure that reads
+    otherwise now; a passing check made since clears it like any sheet's hold."""
+    holding = set(
+        Hold.objects.filter(job=job, clearance__isnull=True).values_list("requirement", flat=True)
+    )
+    requirements = job_requirements(job)
+    changed = {r.key: r for r in requirements if r.changed is not None}
+    if not changed:
+        return job
+    reasons = [
+        reason
+        for reason in job_blockers(job, requirements=requirements)
+        if reason.code == "sheet_judged_on_changed"
+        and reason.requirement in changed
+        and reason.requirement not in holding
+    ]
+    if not reasons:
+        return job
+    Hold.objects.bulk_create(
+        [
+            Hold(
+                job=job,
+                requirement=reason.requirement,
+                item_key=JUDGED_ON_CHANGED,
+                sheet_id=changed[reason.requirement].latest_sheet_id,
+                reason=reason.message,
+            )
+            for reason in reasons
+        ]
+    )
+    return transition(
+        job, JobState.HELD, by, "Stop work: a figure a check was judged on has changed since."
+    )
 
 
 def hold_for_removed_anchor(

@@ -7,7 +7,7 @@ from django.urls import reverse
 
 from compliance.jobs.selectors import job_blockers, job_requirements
 from compliance.models import JobState
-from tests.conftest import client_for, fill_all
+from tests.conftest import PASSING, client_for, fill_all
 
 pytestmark = pytest.mark.django_db
 
@@ -98,3 +98,43 @@ def test_a_profile_figure_changed_since_leaves_the_check_behind(job, simple_chec
     assert [r.requirement for r in reasons] == ["site-check@site"]
     assert "the site's profile's max_wind_ms at" in reasons[0].message
     assert reasons[0].message.endswith("it now reads 6: check it again.")
+
+
+def test_a_rating_lowered_while_the_robot_works_stops_work_until_checked_again(
+    job, simple_checklists, operator, supervisor
+):
+    """Re-rated while the job was working, the hose's check stood on the old rating and work
+    went on; now the job is held until a check made since passes."""
+    from checklists.services import record_sheet
+    from compliance.jobs.services import start_job
+    from compliance.models import Hold
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    hose = _hose(job)
+
+    response = _patch(
+        client_for(supervisor), hose, {"ratings": {**hose.ratings, "rating_kpa": 800.0}}
+    )
+
+    assert response.status_code == 200, response.json()
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    hold = Hold.objects.get(job=job)
+    assert (hold.requirement, hold.item_key) == (f"hose-check@equipment:{hose.pk}", "judged_on")
+    assert hold.reason.endswith("it now reads 800: check it again.")
+    assert job.transitions.last().reason == (
+        "Stop work: a figure a check was judged on has changed since."
+    )
+
+    record_sheet(
+        job=job,
+        version=simple_checklists["hose"],
+        by=operator,
+        entries={**PASSING["hose"], "valve_pressure": {"value": 700, "unit": "kPa"}},
+        equipment=_hose(job),
+    )
+
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    assert Hold.objects.get(job=job).clearance is not None
