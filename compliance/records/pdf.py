@@ -485,6 +485,8 @@ finds them equal. Later formats get the readable layout."""
 READABLE_LAYOUT = "parapet.daily-record/3"
 WITHOUT_NOTES = (FIRST_LAYOUT, READABLE_LAYOUT, "parapet.daily-record/4")
 """The formats whose pages leave the job's notes out (they are drawn as they were signed)."""
+WITHOUT_FOUND = (*WITHOUT_NOTES, "parapet.daily-record/5")
+"""The formats whose holds print only when the server opened them (drawn as signed)."""
 """Records sealed in this format keep the readable layout with every table cell set as a
 paragraph and the plots drawn as reportlab graphics. Later formats draw the same pages with
 plain cells and plots drawn on the canvas, which is what makes them quick to draw and check."""
@@ -503,6 +505,11 @@ class _Look:
     """From /5: the job's notes (sealed since /2, written when the day was planned) print on
     the first page with the remarks; until then a person reading the pages never saw them."""
 
+    found: bool = False
+    """From /6: a hold opened by a check that reached the server well after it was made (a
+    phone offline on the roof) also prints when the check was made: "opened 10:31" alone read
+    as if the failure was found hours after it was."""
+
     @classmethod
     def of(cls, document: dict[str, Any]) -> "_Look":
         record = document.get("record") or {}
@@ -517,6 +524,7 @@ class _Look:
             zone=zone,
             plain=document.get("format") != READABLE_LAYOUT,
             notes=document.get("format") not in WITHOUT_NOTES,
+            found=document.get("format") not in WITHOUT_FOUND,
         )
 
     def cell(self, text: Any, style: ParagraphStyle) -> Any:
@@ -711,6 +719,48 @@ def _concerns(hold: dict[str, Any], subjects: dict[str, str]) -> str:
     return subjects.get(ref, "the site" if ref == "site" else ref or "the job")
 
 
+LATE = dt.timedelta(minutes=1)
+"""How much later than its check a hold may be opened and still print only its opening."""
+
+
+def _checks_made(record: dict[str, Any]) -> dict[Any, dt.datetime]:
+    """When each sheet was made, by id: its phone's time set right by how far the phone's clock
+    was off when it sent its batch (as the server orders checks), never after it was received;
+    sheets with no time of the phone's own are left out."""
+    made: dict[Any, dt.datetime] = {}
+    for sheet in record.get("sheets") or []:
+        try:
+            phone = _moment(sheet.get("device_time"))
+            received = _moment(sheet.get("received_at"))
+            offset = sheet.get("phone_clock_offset_s")
+            if phone is None or received is None or not isinstance(offset, int):
+                continue
+            made[sheet.get("id")] = min(phone - dt.timedelta(seconds=offset), received)
+        except (OverflowError, TypeError):
+            continue
+    return made
+
+
+def _moment(stamp: Any) -> dt.datetime | None:
+    if not isinstance(stamp, str):
+        return None
+    try:
+        moment = dt.datetime.fromisoformat(stamp.replace("Z", "+00:00"))
+    except ValueError:
+        return None
+    return moment if moment.tzinfo is not None else moment.replace(tzinfo=dt.UTC)
+
+
+def _opened(hold: dict[str, Any], made: dict[Any, dt.datetime], look: _Look) -> str:
+    """When the hold opened, and, where its check was made well before, when that was."""
+    opened = look.when(hold["opened_at"])
+    found = made.get(hold.get("sheet"))
+    at = _moment(hold.get("opened_at"))
+    if found is None or at is None or at - found < LATE:
+        return opened
+    return f"{opened}; its check was made {look.when(found.isoformat())}"
+
+
 def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> list[Any]:
     heading = _p("Holds and failed items", s["h2"])
     story: list[Any] = [PageBreak()]
@@ -718,11 +768,12 @@ def _failures(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look)
     highlight = [i + 1 for i, h in enumerate(holds) if h["cleared_at"] is None]
     if holds and look.readable:
         subjects = _subjects(record)
+        made = _checks_made(record) if look.found else {}
         rows = [
             [look.zone_heading("Opened"), "Concerns", "Reason", "Cleared", "By sheet"],
             *[
                 [
-                    look.cell(look.when(h["opened_at"]), s["small"]),
+                    look.cell(_opened(h, made, look), s["small"]),
                     look.cell(_concerns(h, subjects), s["small"]),
                     look.cell(h["reason"], s["small"]),
                     look.cell(

@@ -55,16 +55,18 @@ from compliance.records.signing import (
 )
 from compliance.text import has_words
 
-FORMAT = "parapet.daily-record/5"
+FORMAT = "parapet.daily-record/6"
 """/3 added each entry's label (the checklist's words) and the time zone the pages print times
 in; /4 holds the same document and is drawn with plain table cells and plots drawn on the
 canvas (quicker to draw, and so to check); /5 holds the same document and also prints the job's
-notes, which every format sealed and none printed. Records sealed in an older format keep their
-format, their pages and their checks."""
+notes, which every format sealed and none printed; /6 holds the same document and prints, beside
+a hold opened well after its check was made (a phone offline on the roof), when the check was
+made. Records sealed in an older format keep their format, their pages and their checks."""
 RECORD_FORMATS = (
     "parapet.daily-record/2",
     "parapet.daily-record/3",
     "parapet.daily-record/4",
+    "parapet.daily-record/5",
     FORMAT,
 )
 ADDENDUM_MEANING = (

@@ -36,6 +36,19 @@ NOTED = {
         "notes": "Scaffold on the east side until 14:00.",
     },
 }
+
+
+def _found_late(record):
+    """The noted document with its open hold opened by sheet 1, made on a phone offline since
+    05:01 and received at 08:01: /6 prints when the check was made beside the opening."""
+    record = json.loads(json.dumps(record))
+    record["holds"][0]["sheet"] = 1
+    record["sheets"][0]["device_time"] = "2026-03-04T05:01:00Z"
+    record["sheets"][0]["phone_clock_offset_s"] = 0
+    return record
+
+
+FOUND_LATE = _found_late(NOTED)
 DOCUMENTS = {
     **{
         f"record-{n}": {**FIXTURES["record"], "format": f"parapet.daily-record/{n}"}
@@ -43,6 +56,8 @@ DOCUMENTS = {
     },
     # /5 prints the job's notes: the fixed document with notes written.
     "record-5": {**FIXTURES["record"], "record": NOTED, "format": "parapet.daily-record/5"},
+    # /6 prints when a hold's check was made, where it reached the server well after.
+    "record-6": {**FIXTURES["record"], "record": FOUND_LATE, "format": "parapet.daily-record/6"},
     "addendum": FIXTURES["addendum"],
 }
 
@@ -51,6 +66,7 @@ PINNED = {
     "record-3": "1bf403c39c6803fef925baf34c1bf626e8056d675464caa8066fc1c8d1672ced",
     "record-4": "332a19adf82a43818d73067040eac864800488143d65d5a3f8cade8ca160876f",
     "record-5": "38933f2fa38e8cef9320424e4e9ea1ea3a127ac866877112f248b8913d054c64",
+    "record-6": "7850817f8884c7f9dfbdbe148b1d49f8704d0cffc6e4d7ffa3f7082bb3969ab1",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
 }
 
@@ -202,3 +218,16 @@ def test_a_machine_without_the_system_fonts_draws_the_same_pages(tmp_path):
     )
     assert drawn.returncode == 0, drawn.stderr[-2000:]
     assert drawn.stdout.strip() == PINNED["record-4"]
+
+
+def test_from_6_a_hold_says_when_its_check_was_made_and_before_it_did_not():
+    """A failure found offline at 05:01 read "opened 08:01" alone, as if found three hours
+    later; the time zone of the fixture is Europe/Lisbon (UTC+0 in March)."""
+
+    def text(document):
+        pdf = render(document, FIXTURES["seal"])
+        return " ".join(p.extract_text() for p in PdfReader(io.BytesIO(pdf)).pages)
+
+    assert "check was made 2026-03-04 05:01:00" in " ".join(text(DOCUMENTS["record-6"]).split())
+    as_five = {**DOCUMENTS["record-6"], "format": "parapet.daily-record/5"}
+    assert "check was made" not in " ".join(text(as_five).split())

@@ -205,3 +205,42 @@ def test_the_demo_s_record_is_drawn_to_images_a_person_can_look_at(db, settings,
     for n, page in enumerate(pages, start=1):
         assert page.stat().st_size > 5000  # drawn, not blank
         (SCREENSHOTS / f"record-page-{n}.png").write_bytes(page.read_bytes())
+
+
+def test_a_hold_found_offline_prints_when_its_check_was_made(
+    job, simple_checklists, operator, supervisor, credential, settings, tmp_path
+):
+    """A failure found on a phone offline on the roof opened its hold when the check reached
+    the server: the page read "opened" at that later time alone, as if found then."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from checklists.services import record_sheet
+    from compliance.jobs.selectors import job_requirements
+
+    settings.MEDIA_ROOT = tmp_path
+    fill_all(job, simple_checklists, operator)
+    made = timezone.make_aware(dt.datetime.combine(job.date, dt.time(7, 5)))
+    with clock.replaying(job.date):
+        site = next(r for r in job_requirements(job) if r.subject.kind == "site")
+        record_sheet(
+            job=job,
+            version=simple_checklists["site"],
+            by=operator,
+            entries={"zone_closed": {"value": "fail"}, "roof_wind": {"value": 3, "unit": "m/s"}},
+            device_time=made,
+            phone_clock_offset_s=0,
+        )
+        assert site.key == Hold.objects.get(job=job).requirement
+        close_job(job=job, by=supervisor, reason="Zone not closed.")
+    record = sign_daily_record(
+        job=job, by=supervisor, password=PASSWORD, meaning="reviewed_stopped"
+    )
+
+    pdf = render_signed_pdf(record)
+
+    zone = record_pdf._Look.of(daily_records.json.loads(record.canonical_json)).zone
+    words = " ".join(text_of(pdf).split())
+    assert f"its check was made {made.astimezone(zone):%Y-%m-%d %H:%M:%S}" in words
+    assert verify_pdf(pdf).ok
