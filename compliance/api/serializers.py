@@ -6,6 +6,7 @@ from typing import Any
 
 from django.urls import reverse
 from django.utils import timezone
+from drf_spectacular.utils import extend_schema_field
 from rest_framework import serializers
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry, Verdict
@@ -350,6 +351,11 @@ class HoldSerializer(serializers.ModelSerializer):
     cleared_by_sheet = serializers.IntegerField(
         source="clearance.sheet_id", read_only=True, allow_null=True
     )
+    found_at = serializers.SerializerMethodField(
+        help_text="When the check that opened the hold was made, as the server orders checks"
+        " (a phone offline on the roof sends it later than the hold's opening says); null for"
+        " a hold the owner's log book opened."
+    )
 
     class Meta:
         model = Hold
@@ -360,9 +366,16 @@ class HoldSerializer(serializers.ModelSerializer):
             "reason",
             "sheet",
             "opened_at",
+            "found_at",
             "cleared_at",
             "cleared_by_sheet",
         ]
+
+    @extend_schema_field(serializers.DateTimeField(allow_null=True))
+    def get_found_at(self, hold: Hold) -> str | None:
+        if hold.sheet_id is None:
+            return None
+        return serializers.DateTimeField().to_representation(hold.sheet.made_at)
 
     def to_representation(self, instance: Hold) -> dict[str, Any]:
         if not hasattr(instance, "clearance"):

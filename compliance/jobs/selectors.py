@@ -397,7 +397,7 @@ def job_readiness(job: Job) -> Readiness:
         drops=drops,
         requirements=requirements,
         blockers=job_blockers(job, drops, requirements),
-        holds=list(Hold.objects.filter(job=job).select_related("clearance")),
+        holds=list(Hold.objects.filter(job=job).select_related("clearance", "sheet")),
     )
 
 

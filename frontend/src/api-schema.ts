@@ -1060,6 +1060,8 @@ export interface components {
             /** Format: date-time */
             readonly opened_at: string;
             /** Format: date-time */
+            readonly found_at: string | null;
+            /** Format: date-time */
             readonly cleared_at: string | null;
             readonly cleared_by_sheet: number | null;
         };

@@ -34,7 +34,16 @@ export const OWNER_CLEARS =
 
 interface HoldTimes {
   opened_at: string;
+  found_at?: string | null;
   cleared_at: string | null;
+}
+
+/** " (its check was made 07:05)" where the check that opened the hold was made more than a
+ * minute before the hold opened (a phone offline on the roof sends it later), else "". */
+export function madeNote(hold: HoldTimes, time: (iso: string) => string): string {
+  if (!hold.found_at) return "";
+  const late = Date.parse(hold.opened_at) - Date.parse(hold.found_at);
+  return late > 60_000 ? ` (its check was made ${time(hold.found_at)})` : "";
 }
 
 /** The day's stop-work holds in words, cleared ones included: how many, and when each was
@@ -53,8 +62,8 @@ export function holdsOfDay(
     headline: `Stop work ${times} this day; ${tail}`,
     lines: sorted.map((h) =>
       h.cleared_at
-        ? `Stop work opened ${time(h.opened_at)}, cleared ${time(h.cleared_at)}.`
-        : `Stop work opened ${time(h.opened_at)}, still open.`,
+        ? `Stop work opened ${time(h.opened_at)}${madeNote(h, time)}, cleared ${time(h.cleared_at)}.`
+        : `Stop work opened ${time(h.opened_at)}${madeNote(h, time)}, still open.`,
     ),
   };
 }

@@ -22,6 +22,21 @@ describe("holdsOfDay", () => {
     expect(day.stopped).toBe(true);
   });
 
+  it("says when a hold's check was made where it reached the server well after", () => {
+    // A failure found at 07:05 on a phone offline on the roof read "opened 10:31" alone.
+    const day = holdsOfDay(
+      [
+        { opened_at: "2026-12-05T10:31:00Z", found_at: "2026-12-05T07:05:00Z", cleared_at: null },
+        { opened_at: "2026-12-05T11:00:30Z", found_at: "2026-12-05T11:00:00Z", cleared_at: null },
+      ],
+      time,
+    );
+    expect(day.lines).toEqual([
+      "Stop work opened 10:31 (its check was made 07:05), still open.",
+      "Stop work opened 11:00, still open.",
+    ]);
+  });
+
   it("says plainly when work was never stopped", () => {
     expect(holdsOfDay([], time)).toEqual({ stopped: false, headline: "No stop-work hold this day", lines: [] });
   });

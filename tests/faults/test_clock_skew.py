@@ -174,3 +174,31 @@ def test_in_one_batch_an_older_pass_leaves_a_newer_failure_holding(
         response = client.post(reverse("sync"), body, format="json")
         assert response.json()["results"][0]["status"] == "applied"
     assert Hold.objects.filter(job=job, clearance__isnull=True).count() == 0
+
+
+def test_a_hold_says_when_its_check_was_made_by_the_server_s_clock(
+    job, simple_checklists, operator
+):
+    """A hold's opening is when its check reached the server; `found_at` is when the check was
+    made, the phone's time set right by its batch's clock (five hours fast here)."""
+    failed = {**PASSING["site"], "zone_closed": {"value": "fail"}}
+    record = {
+        "type": "sheet",
+        "client_uuid": str(uuid.uuid4()),
+        "data": {
+            "job": job.pk,
+            "version": simple_checklists["site"].pk,
+            "entries": failed,
+            "device_time": (timezone.now() + SKEW - dt.timedelta(minutes=30)).isoformat(),
+        },
+    }
+    phone_now = timezone.now() + SKEW
+    client = client_for(operator)
+    body = {"records": [record], "sent_at": phone_now.isoformat()}
+    assert client.post(reverse("sync"), body, format="json").status_code == 200
+
+    (hold,) = client.get(reverse("job-detail", args=[job.pk])).json()["holds"]
+
+    found = dt.datetime.fromisoformat(hold["found_at"])
+    opened = dt.datetime.fromisoformat(hold["opened_at"])
+    assert abs((opened - found) - dt.timedelta(minutes=30)) < dt.timedelta(seconds=5)

@@ -10,7 +10,7 @@ import { cachePut, outboxAll } from "../storage";
 import { dataChanged } from "../status";
 import { pdfWords, watchPdf, type PdfState } from "../record_pdf";
 import { canSign, MEANINGS, meaningUnavailable, sealShort, STATEMENT } from "../signoff";
-import { holdsOfDay, holdTitle } from "../holds";
+import { holdsOfDay, holdTitle, madeNote } from "../holds";
 import type { DailyRecord, JobDetail, Meaning, User } from "../types";
 import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
 import { errorLines } from "../refusals";
@@ -226,7 +226,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
               <li key={h.id} class="hold">
                 <p><strong>{holdTitle(job.requirements, h.requirement)}</strong></p>
                 <p data-testid="hold-reason">{plainReason(h.reason)}</p>
-                <p class="muted small">Open since {dateTimeOf(h.opened_at)}.</p>
+                <p class="muted small">Open since {dateTimeOf(h.opened_at)}{madeNote(h, dateTimeOf)}.</p>
               </li>
             ))}
           </ul>
