@@ -7,10 +7,19 @@ import { useState } from "preact/hooks";
 import { Badge } from "../ui/signs";
 import { dayFrom, desk, fieldErrors, type Certification } from "./api";
 import { anchorState } from "./anchorState";
-import { DeskCaution, describedBy, FieldErrors } from "./parts";
+import { DeskCaution, ErrorSummary, FieldErrors, invalidProps, useFormErrors, type ErrorField, type Errors } from "./parts";
 import { SiteTitle, SiteWaiting, useSite, type SiteData } from "./site";
 
-type Errors = Record<string, string[]>;
+/** The form's fields in its order, as the summary names them. */
+const FIELDS: Record<string, ErrorField> = {
+  anchor: { label: "Anchor", id: "cert-anchor" },
+  certifier: { label: "Certified by (the competent person)", id: "cert-certifier" },
+  certifier_company: { label: "Their company", id: "cert-company" },
+  rated_capacity_kn: { label: "Rated capacity", id: "cert-capacity" },
+  certified_on: { label: "Certified on", id: "cert-on" },
+  valid_until: { label: "Valid until", id: "cert-until" },
+  document: { label: "The certificate's file", id: "cert-file" },
+};
 
 function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (anchor: number, cert: Certification) => Promise<void> }) {
   const [anchor, setAnchor] = useState("");
@@ -21,7 +30,7 @@ function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (
   const [until, setUntil] = useState("");
   const [file, setFile] = useState<File | null>(null);
   const [fileKey, setFileKey] = useState(0);
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
   const [done, setDone] = useState("");
 
@@ -31,9 +40,10 @@ function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (
     const local: Errors = {};
     const kn = Number(capacity.trim().replace(",", "."));
     if (!anchor) local.anchor = ["Choose the anchor."];
+    if (!certifier.trim()) local.certifier = ["Name the competent person who certified the anchor."];
     if (!capacity.trim() || !Number.isFinite(kn)) local.rated_capacity_kn = ["Enter the rated capacity in kN, a number."];
     if (!until) local.valid_until = ["Enter the date the certificate runs to."];
-    if (Object.keys(local).length) return setErrors(local);
+    if (Object.keys(local).length) return show(local);
     setBusy(true);
     setErrors({});
     try {
@@ -53,20 +63,20 @@ function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (
       await onRecorded(id, cert);
       setDone(`Certificate recorded for anchor ${label}: ${cert.rated_capacity_kn} kN, valid until ${cert.valid_until}.`);
     } catch (e) {
-      setErrors(fieldErrors(e));
+      show(fieldErrors(e));
     } finally {
       setBusy(false);
     }
   }
 
-  const err = (field: string) => errors[field] && `err-cert-${field}`;
+  const err = (field: string) => invalidProps(errors[field] && `err-cert-${field}`);
   return (
-    <form class="desk-form" onSubmit={submit} data-testid="cert-form" noValidate>
+    <form class="desk-form" onSubmit={submit} data-testid="cert-form" noValidate ref={form}>
       {done && <p class="note" role="status" data-testid="cert-done">{done}</p>}
-      <FieldErrors id="err-cert-form" messages={errors[""]} />
+      <ErrorSummary errors={errors} fields={FIELDS} head="No certificate was recorded. Put these right:" formId="err-cert-form" shown={shown} />
       <div class="field">
         <label for="cert-anchor">Anchor</label>
-        <select id="cert-anchor" value={anchor} onChange={(e) => setAnchor(e.currentTarget.value)} aria-describedby={describedBy(err("anchor"))}>
+        <select id="cert-anchor" value={anchor} onChange={(e) => setAnchor(e.currentTarget.value)} {...err("anchor")}>
           <option value="">Choose the anchor</option>
           {data.anchors.map((a) => <option key={a.id} value={String(a.id)}>{a.label}</option>)}
         </select>
@@ -74,35 +84,35 @@ function CertificationForm({ data, onRecorded }: { data: SiteData; onRecorded: (
       </div>
       <div class="field">
         <label for="cert-certifier">Certified by (the competent person)</label>
-        <input id="cert-certifier" type="text" autocomplete="off" value={certifier} onInput={(e) => setCertifier(e.currentTarget.value)} aria-describedby={describedBy(err("certifier"))} />
+        <input id="cert-certifier" type="text" autocomplete="off" value={certifier} onInput={(e) => setCertifier(e.currentTarget.value)} {...err("certifier")} />
         <FieldErrors id="err-cert-certifier" messages={errors.certifier} />
       </div>
       <div class="field">
         <label for="cert-company">Their company <span class="muted">(optional)</span></label>
-        <input id="cert-company" type="text" autocomplete="off" value={company} onInput={(e) => setCompany(e.currentTarget.value)} aria-describedby={describedBy(err("certifier_company"))} />
+        <input id="cert-company" type="text" autocomplete="off" value={company} onInput={(e) => setCompany(e.currentTarget.value)} {...err("certifier_company")} />
         <FieldErrors id="err-cert-certifier_company" messages={errors.certifier_company} />
       </div>
       <div class="field">
         <label for="cert-capacity">Rated capacity</label>
         <span class="input-unit">
-          <input id="cert-capacity" type="text" inputMode="decimal" autocomplete="off" value={capacity} onInput={(e) => setCapacity(e.currentTarget.value)} aria-describedby={describedBy(err("rated_capacity_kn"))} />
+          <input id="cert-capacity" type="text" inputMode="decimal" autocomplete="off" value={capacity} onInput={(e) => setCapacity(e.currentTarget.value)} {...err("rated_capacity_kn")} />
           <span class="unit">kN</span>
         </span>
         <FieldErrors id="err-cert-rated_capacity_kn" messages={errors.rated_capacity_kn} />
       </div>
       <div class="field">
         <label for="cert-on">Certified on</label>
-        <input id="cert-on" type="date" value={on} onInput={(e) => setOn(e.currentTarget.value)} aria-describedby={describedBy(err("certified_on"))} />
+        <input id="cert-on" type="date" value={on} onInput={(e) => setOn(e.currentTarget.value)} {...err("certified_on")} />
         <FieldErrors id="err-cert-certified_on" messages={errors.certified_on} />
       </div>
       <div class="field">
         <label for="cert-until">Valid until</label>
-        <input id="cert-until" type="date" value={until} onInput={(e) => setUntil(e.currentTarget.value)} aria-describedby={describedBy(err("valid_until"))} />
+        <input id="cert-until" type="date" value={until} onInput={(e) => setUntil(e.currentTarget.value)} {...err("valid_until")} />
         <FieldErrors id="err-cert-valid_until" messages={errors.valid_until} />
       </div>
       <div class="field">
         <label for="cert-file">The certificate's file <span class="muted">(PDF, PNG or JPEG, at most 10 MB)</span></label>
-        <input key={fileKey} id="cert-file" type="file" accept="application/pdf,image/png,image/jpeg" onChange={(e) => setFile(e.currentTarget.files?.[0] ?? null)} aria-describedby={describedBy(err("document"))} />
+        <input key={fileKey} id="cert-file" type="file" accept="application/pdf,image/png,image/jpeg" onChange={(e) => setFile(e.currentTarget.files?.[0] ?? null)} {...err("document")} />
         <FieldErrors id="err-cert-document" messages={errors.document} />
       </div>
       <p class="muted small">

@@ -7,9 +7,7 @@ import { useEffect, useState } from "preact/hooks";
 import type { Equipment } from "../types";
 import { Badge } from "../ui/signs";
 import { desk, fieldErrors, type EquipmentInput, type EquipmentKind, type RatingField } from "./api";
-import { DeskCaution, describedBy, FieldErrors } from "./parts";
-
-type Errors = Record<string, string[]>;
+import { DeskCaution, ErrorSummary, FieldErrors, invalidProps, useFormErrors, type ErrorField } from "./parts";
 
 const MINIMUM_WORDS: Record<string, string> = {
   above_zero: "greater than zero",
@@ -27,7 +25,7 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
   const [open, setOpen] = useState(false);
   const [due, setDue] = useState(item.next_inspection_due ?? "");
   const [reason, setReason] = useState("");
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors<HTMLDivElement>();
   const [busy, setBusy] = useState(false);
   const [done, setDone] = useState("");
   const slug = `${item.id}`;
@@ -43,7 +41,7 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
       setDone(words);
       onChanged(changed);
     } catch (e) {
-      setErrors(fieldErrors(e));
+      show(fieldErrors(e));
     } finally {
       setBusy(false);
     }
@@ -51,7 +49,7 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
 
   function takeOut(event: Event) {
     event.preventDefault();
-    if (!reason.trim()) return setErrors({ reason: ["Say why it comes out of service."] });
+    if (!reason.trim()) return show({ reason: ["Say why it comes out of service."] });
     void change({ in_service: false, reason: reason.trim() }, `${item.label} taken out of service.`);
   }
 
@@ -74,13 +72,14 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
         {open ? "Close" : `Change ${item.label}`}
       </button>
       {open && (
-        <div class="desk-item-forms">
-          <FieldErrors id={`err-${slug}-form`} messages={[...(errors[""] ?? []), ...(errors.in_service ?? [])]} />
+        <div class="desk-item-forms" ref={form}>
+          <ErrorSummary errors={errors} shown={shown} formId={`err-${slug}-form`} head={`${item.label} was not changed. Put these right:`}
+            fields={{ next_inspection_due: { label: "Next inspection due", id: `due-${slug}` }, reason: { label: "Reason for taking it out of service", id: `reason-${slug}` } }} />
           <form class="desk-inline" onSubmit={(e) => { e.preventDefault(); void change({ next_inspection_due: due || null }, `Next inspection of ${item.label} set.`); }}>
             <div class="field">
               <label for={`due-${slug}`}>Next inspection due</label>
               <input id={`due-${slug}`} type="date" value={due} onInput={(e) => setDue(e.currentTarget.value)}
-                aria-describedby={describedBy(errors.next_inspection_due && `err-${slug}-due`)} />
+                {...invalidProps(errors.next_inspection_due && `err-${slug}-due`)} />
               <FieldErrors id={`err-${slug}-due`} messages={errors.next_inspection_due} />
             </div>
             <button class="btn" type="submit" disabled={busy} data-testid="item-save-due">Save the date</button>
@@ -90,7 +89,7 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
               <div class="field">
                 <label for={`reason-${slug}`}>Reason for taking it out of service</label>
                 <input id={`reason-${slug}`} type="text" value={reason} onInput={(e) => setReason(e.currentTarget.value)}
-                  aria-describedby={describedBy(errors.reason && `err-${slug}-reason`)} autocomplete="off" />
+                  {...invalidProps(errors.reason && `err-${slug}-reason`)} autocomplete="off" />
                 <FieldErrors id={`err-${slug}-reason`} messages={errors.reason} />
               </div>
               <button class="btn" type="submit" disabled={busy} data-testid="item-take-out">Take out of service</button>
@@ -116,13 +115,13 @@ function RatingInput({ field, value, error, onInput }: { field: RatingField; val
       <label for={id}>{field.label.charAt(0).toUpperCase() + field.label.slice(1)} <span class="muted">({hint})</span></label>
       <span class="input-unit">
         {field.text && field.choices.length ? (
-          <select id={id} value={value} onChange={(e) => onInput(e.currentTarget.value)} aria-describedby={describedBy(error && errId)}>
+          <select id={id} value={value} onChange={(e) => onInput(e.currentTarget.value)} {...invalidProps(error && errId)}>
             <option value="">Choose…</option>
             {field.choices.map((c) => <option key={c} value={c}>{c}</option>)}
           </select>
         ) : (
           <input id={id} type="text" inputMode={field.text ? "text" : "decimal"} value={value} required={field.required}
-            onInput={(e) => onInput(e.currentTarget.value)} aria-describedby={describedBy(error && errId)} autocomplete="off" />
+            onInput={(e) => onInput(e.currentTarget.value)} {...invalidProps(error && errId)} autocomplete="off" />
         )}
         {field.unit && <span class="unit">{field.unit}</span>}
       </span>
@@ -137,7 +136,7 @@ function AddForm({ kinds, onAdded }: { kinds: EquipmentKind[]; onAdded: (item: E
   const [serial, setSerial] = useState("");
   const [due, setDue] = useState("");
   const [ratings, setRatings] = useState<Record<string, string>>({});
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
   const [done, setDone] = useState("");
   const spec = kinds.find((k) => k.kind === kind);
@@ -167,20 +166,31 @@ function AddForm({ kinds, onAdded }: { kinds: EquipmentKind[]; onAdded: (item: E
       setRatings({});
       onAdded(item);
     } catch (e) {
-      setErrors(fieldErrors(e));
+      show(fieldErrors(e));
     } finally {
       setBusy(false);
     }
   }
 
+  const fields: Record<string, ErrorField> = {
+    kind: { label: "Kind", id: "add-kind" },
+    label: { label: "Label (as marked on the item)", id: "add-label" },
+    serial: { label: "Maker's serial number", id: "add-serial" },
+    next_inspection_due: { label: "Next inspection due", id: "add-due" },
+  };
+  // A refusal of the ratings as a whole (none given) is shown atop them and leads to the first.
+  if (spec?.ratings[0]) fields.ratings = { label: `Ratings of the ${spec.label.toLowerCase()}`, id: `rating-${spec.ratings[0].key}` };
+  for (const f of spec?.ratings ?? []) {
+    fields[`ratings.${f.key}`] = { label: f.label.charAt(0).toUpperCase() + f.label.slice(1), id: `rating-${f.key}` };
+  }
   return (
-    <form class="desk-form" onSubmit={submit} data-testid="add-equipment" noValidate>
+    <form class="desk-form" onSubmit={submit} data-testid="add-equipment" noValidate ref={form}>
       {done && <p class="note" role="status" data-testid="equipment-added">{done}</p>}
-      <FieldErrors id="err-add-form" messages={[...(errors[""] ?? []), ...(errors.ratings ?? [])]} />
+      <ErrorSummary errors={errors} fields={fields} shown={shown} formId="err-add-form" head="Nothing was added to the register. Put these right:" />
       <div class="field">
         <label for="add-kind">Kind</label>
         <select id="add-kind" value={kind} onChange={(e) => { setKind(e.currentTarget.value); setRatings({}); setErrors({}); }}
-          aria-describedby={describedBy(errors.kind && "err-add-kind")}>
+          {...invalidProps(errors.kind && "err-add-kind")}>
           {kinds.map((k) => <option key={k.kind} value={k.kind}>{k.label}</option>)}
         </select>
         <FieldErrors id="err-add-kind" messages={errors.kind} />
@@ -188,24 +198,25 @@ function AddForm({ kinds, onAdded }: { kinds: EquipmentKind[]; onAdded: (item: E
       <div class="field">
         <label for="add-label">Label (as marked on the item)</label>
         <input id="add-label" type="text" value={label} onInput={(e) => setLabel(e.currentTarget.value)} required
-          aria-describedby={describedBy(errors.label && "err-add-label")} autocomplete="off" />
+          {...invalidProps(errors.label && "err-add-label")} autocomplete="off" />
         <FieldErrors id="err-add-label" messages={errors.label} />
       </div>
       <div class="field">
         <label for="add-serial">Maker's serial number <span class="muted">(optional)</span></label>
         <input id="add-serial" type="text" value={serial} onInput={(e) => setSerial(e.currentTarget.value)}
-          aria-describedby={describedBy(errors.serial && "err-add-serial")} autocomplete="off" />
+          {...invalidProps(errors.serial && "err-add-serial")} autocomplete="off" />
         <FieldErrors id="err-add-serial" messages={errors.serial} />
       </div>
       <div class="field">
         <label for="add-due">Next inspection due <span class="muted">(optional)</span></label>
         <input id="add-due" type="date" value={due} onInput={(e) => setDue(e.currentTarget.value)}
-          aria-describedby={describedBy(errors.next_inspection_due && "err-add-due")} />
+          {...invalidProps(errors.next_inspection_due && "err-add-due")} />
         <FieldErrors id="err-add-due" messages={errors.next_inspection_due} />
       </div>
       {spec && (
-        <fieldset class="desk-ratings" data-testid="ratings">
+        <fieldset class="desk-ratings" data-testid="ratings" aria-describedby={errors.ratings ? "err-add-ratings" : undefined}>
           <legend>Ratings of the {spec.label.toLowerCase()}, from the maker's data</legend>
+          <FieldErrors id="err-add-ratings" messages={errors.ratings} />
           {spec.ratings.map((f) => (
             <RatingInput key={`${spec.kind}:${f.key}`} field={f} value={ratings[f.key] ?? ""} error={errors[`ratings.${f.key}`]}
               onInput={(v) => setRatings((r) => ({ ...r, [f.key]: v }))} />

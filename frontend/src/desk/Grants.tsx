@@ -6,10 +6,8 @@
 import { useEffect, useState } from "preact/hooks";
 import { Badge, type SignKind } from "../ui/signs";
 import { dayFrom, desk, fieldErrors, type Grant } from "./api";
-import { DeskCaution, describedBy, FieldErrors } from "./parts";
+import { DeskCaution, ErrorSummary, FieldErrors, invalidProps, useFormErrors } from "./parts";
 import { SiteTitle, SiteWaiting, useSite } from "./site";
-
-type Errors = Record<string, string[]>;
 
 function grantState(g: Grant, today: string): { sign: SignKind; word: string } {
   if (g.ended_at) return { sign: "closed", word: "Ended" };
@@ -20,31 +18,32 @@ function grantState(g: Grant, today: string): { sign: SignKind; word: string } {
 
 function EndGrant({ site, grant, onEnded }: { site: number; grant: Grant; onEnded: () => Promise<void> }) {
   const [reason, setReason] = useState("");
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
   const id = `end-${grant.id}`;
 
   async function submit(event: Event) {
     event.preventDefault();
-    if (!reason.trim()) return setErrors({ reason: ["Say why the grant ends."] });
+    if (!reason.trim()) return show({ reason: ["Say why the grant ends."] });
     setBusy(true);
     setErrors({});
     try {
       await desk.endGrant(site, grant.id, reason.trim());
       await onEnded();
     } catch (e) {
-      setErrors(fieldErrors(e));
+      show(fieldErrors(e));
       setBusy(false);
     }
   }
 
   return (
-    <form class="desk-inline" onSubmit={submit} data-testid={`end-grant-${grant.id}`} noValidate>
-      <FieldErrors id={`err-${id}-form`} messages={errors[""]} />
+    <form class="desk-inline" onSubmit={submit} data-testid={`end-grant-${grant.id}`} noValidate ref={form}>
+      <ErrorSummary errors={errors} shown={shown} formId={`err-${id}-form`} head={`Access was not ended for ${grant.contractor_name}. Put this right:`}
+        fields={{ reason: { label: "Reason for ending access", id: `${id}-reason` } }} />
       <div class="field">
         <label for={`${id}-reason`}>Reason for ending access to {grant.contractor_name}</label>
         <input id={`${id}-reason`} type="text" autocomplete="off" value={reason} onInput={(e) => setReason(e.currentTarget.value)}
-          aria-describedby={describedBy(errors.reason && `err-${id}-reason`)} />
+          {...invalidProps(errors.reason && `err-${id}-reason`)} />
         <FieldErrors id={`err-${id}-reason`} messages={errors.reason} />
       </div>
       <button class="btn" type="submit" disabled={busy} data-testid="end-grant-submit">End access now</button>
@@ -57,7 +56,7 @@ function GiveGrant({ site, known, onGiven }: { site: number; known: { id: number
   const [number, setNumber] = useState("");
   const [from, setFrom] = useState(dayFrom(0));
   const [to, setTo] = useState(dayFrom(365));
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
   const [done, setDone] = useState("");
 
@@ -65,7 +64,12 @@ function GiveGrant({ site, known, onGiven }: { site: number; known: { id: number
     event.preventDefault();
     setDone("");
     const text = choice === "other" ? number.trim() : choice;
-    if (!/^\d+$/.test(text)) return setErrors({ contractor: ["Enter the contractor's organisation number (a whole number)."] });
+    const local: Record<string, string[]> = {};
+    if (!/^\d+$/.test(text)) local.contractor = ["Enter the contractor's organisation number (a whole number)."];
+    if (!from) local.starts_on = ["Enter the first day of access."];
+    if (!to) local.ends_on = ["Enter the last day of access."];
+    else if (from && to < from) local.ends_on = ["The last day comes before the first: enter a later day."];
+    if (Object.keys(local).length) return show(local);
     setBusy(true);
     setErrors({});
     try {
@@ -74,20 +78,25 @@ function GiveGrant({ site, known, onGiven }: { site: number; known: { id: number
       await onGiven();
       setDone(`Access given to ${g.contractor_name} from ${g.starts_on} to ${g.ends_on}.`);
     } catch (e) {
-      setErrors(fieldErrors(e));
+      show(fieldErrors(e));
     } finally {
       setBusy(false);
     }
   }
 
   return (
-    <form class="desk-form" onSubmit={submit} data-testid="grant-form" noValidate>
+    <form class="desk-form" onSubmit={submit} data-testid="grant-form" noValidate ref={form}>
       {done && <p class="note" role="status" data-testid="grant-done">{done}</p>}
-      <FieldErrors id="err-grant-form" messages={errors[""]} />
+      <ErrorSummary errors={errors} shown={shown} formId="err-grant-form" head="No access was given. Put these right:"
+        fields={{
+          contractor: choice === "other" ? { label: "Contractor's organisation number", id: "grant-number" } : { label: "Contractor", id: "grant-contractor" },
+          starts_on: { label: "From", id: "grant-from" },
+          ends_on: { label: "To (last day)", id: "grant-to" },
+        }} />
       <div class="field">
         <label for="grant-contractor">Contractor</label>
         <select id="grant-contractor" value={choice} onChange={(e) => setChoice(e.currentTarget.value)}
-          aria-describedby={describedBy(errors.contractor && choice !== "other" && "err-grant-contractor")}>
+          {...invalidProps(errors.contractor && choice !== "other" && "err-grant-contractor")}>
           {known.map((c) => <option key={c.id} value={String(c.id)}>{c.name}</option>)}
           <option value="other">Another contractor, by its organisation number</option>
         </select>
@@ -96,18 +105,18 @@ function GiveGrant({ site, known, onGiven }: { site: number; known: { id: number
         <div class="field">
           <label for="grant-number">Contractor's organisation number <span class="muted">(from the platform's staff: Parapet lists no other organisations)</span></label>
           <input id="grant-number" type="text" inputMode="numeric" autocomplete="off" value={number} onInput={(e) => setNumber(e.currentTarget.value)}
-            aria-describedby={describedBy(errors.contractor && "err-grant-contractor")} />
+            {...invalidProps(errors.contractor && "err-grant-contractor")} />
         </div>
       )}
       <FieldErrors id="err-grant-contractor" messages={errors.contractor} />
       <div class="field">
         <label for="grant-from">From</label>
-        <input id="grant-from" type="date" value={from} onInput={(e) => setFrom(e.currentTarget.value)} aria-describedby={describedBy(errors.starts_on && "err-grant-starts_on")} />
+        <input id="grant-from" type="date" value={from} onInput={(e) => setFrom(e.currentTarget.value)} {...invalidProps(errors.starts_on && "err-grant-starts_on")} />
         <FieldErrors id="err-grant-starts_on" messages={errors.starts_on} />
       </div>
       <div class="field">
         <label for="grant-to">To (last day)</label>
-        <input id="grant-to" type="date" value={to} onInput={(e) => setTo(e.currentTarget.value)} aria-describedby={describedBy(errors.ends_on && "err-grant-ends_on")} />
+        <input id="grant-to" type="date" value={to} onInput={(e) => setTo(e.currentTarget.value)} {...invalidProps(errors.ends_on && "err-grant-ends_on")} />
         <FieldErrors id="err-grant-ends_on" messages={errors.ends_on} />
       </div>
       <button class="btn btn-primary" type="submit" disabled={busy} data-testid="grant-submit">{busy ? "Giving…" : "Give access"}</button>

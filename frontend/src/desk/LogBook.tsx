@@ -8,10 +8,9 @@ import { useState } from "preact/hooks";
 import { ApiError } from "../api";
 import { Badge } from "../ui/signs";
 import { dayFrom, desk, fieldErrors, type LogEntryInput } from "./api";
-import { DeskCaution, describedBy, FieldErrors } from "./parts";
+import { DeskCaution, ErrorSummary, FieldErrors, invalidProps, useFormErrors, type ErrorField, type Errors } from "./parts";
 import { KIND_WORDS, RESULT_WORDS, SiteTitle, SiteWaiting, useSite, type SiteData } from "./site";
 
-type Errors = Record<string, string[]>;
 type Kind = LogEntryInput["kind"];
 
 const KINDS: Kind[] = ["periodic_inspection", "load_test", "repair", "modification", "removed_from_service", "returned_to_service"];
@@ -39,7 +38,7 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
   const [company, setCompany] = useState("");
   const [details, setDetails] = useState("");
   const [password, setPassword] = useState("");
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
   const [done, setDone] = useState("");
 
@@ -50,7 +49,7 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
     if (!anchor) local.anchor = ["Choose the anchor."];
     if (!details.trim()) local.details = ["Say what was done and found."];
     if (!password) local.password = ["Re-enter your password to sign."];
-    if (Object.keys(local).length) return setErrors(local);
+    if (Object.keys(local).length) return show(local);
     const body: LogEntryInput = {
       anchor: Number(anchor),
       kind,
@@ -74,21 +73,32 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
       await onSigned();
       setDone(`Signed into the log book: ${KIND_WORDS[entry.kind].toLowerCase()} of anchor ${entry.anchor_label}, entry ${entry.sequence}.`);
     } catch (e) {
-      setErrors(sortErrors(e));
+      show(sortErrors(e));
     } finally {
       setPassword("");
       setBusy(false);
     }
   }
 
-  const err = (field: string) => errors[field] && `err-log-${field}`;
+  const err = (field: string) => invalidProps(errors[field] && `err-log-${field}`);
+  const fields: Record<string, ErrorField> = {
+    anchor: { label: "Anchor", id: "log-anchor" },
+    kind: { label: "What was done", id: "log-kind" },
+    result: { label: "Result", id: `log-result-${result}` },
+    performed_on: { label: "Done on", id: "log-on" },
+    performed_by: { label: "Done by (the competent person)", id: "log-by" },
+    performed_by_company: { label: "Their company", id: "log-company" },
+    details: { label: DETAILS_LABEL[kind] ?? "What was done and found", id: "log-details" },
+    password: { label: "Your password", id: "log-password" },
+  };
+  if (!WITH_RESULT.has(kind)) delete fields.result;
   return (
-    <form class="desk-form" onSubmit={submit} data-testid="log-form" noValidate>
+    <form class="desk-form" onSubmit={submit} data-testid="log-form" noValidate ref={form}>
       {done && <p class="note" role="status" data-testid="log-done">{done}</p>}
-      <FieldErrors id="err-log-form" messages={errors[""]} />
+      <ErrorSummary errors={errors} fields={fields} head="Nothing was signed into the log book. Put these right:" formId="err-log-form" shown={shown} />
       <div class="field">
         <label for="log-anchor">Anchor</label>
-        <select id="log-anchor" value={anchor} onChange={(e) => setAnchor(e.currentTarget.value)} aria-describedby={describedBy(err("anchor"))}>
+        <select id="log-anchor" value={anchor} onChange={(e) => setAnchor(e.currentTarget.value)} {...err("anchor")}>
           <option value="">Choose the anchor</option>
           {data.anchors.map((a) => <option key={a.id} value={String(a.id)}>{a.label}</option>)}
         </select>
@@ -96,7 +106,7 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
       </div>
       <div class="field">
         <label for="log-kind">What was done</label>
-        <select id="log-kind" value={kind} onChange={(e) => setKind(e.currentTarget.value as Kind)} aria-describedby={describedBy(err("kind"))}>
+        <select id="log-kind" value={kind} onChange={(e) => setKind(e.currentTarget.value as Kind)} {...err("kind")}>
           {KINDS.map((k) => <option key={k} value={k}>{KIND_WORDS[k]}</option>)}
         </select>
         <FieldErrors id="err-log-kind" messages={errors.kind} />
@@ -113,7 +123,8 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
           <div class="desk-pick">
             {(["pass", "fail"] as const).map((r) => (
               <label key={r} class={`desk-radio${result === r ? " desk-radio-on" : ""}`}>
-                <input type="radio" name="log-result" value={r} checked={result === r} onChange={() => setResult(r)} />
+                <input type="radio" id={`log-result-${r}`} name="log-result" value={r} checked={result === r} onChange={() => setResult(r)}
+                  {...(result === r ? err("result") : {})} />
                 {RESULT_WORDS[r]}
               </label>
             ))}
@@ -123,28 +134,28 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
       )}
       <div class="field">
         <label for="log-on">Done on</label>
-        <input id="log-on" type="date" value={on} max={dayFrom(0)} onInput={(e) => setOn(e.currentTarget.value)} aria-describedby={describedBy(err("performed_on"))} />
+        <input id="log-on" type="date" value={on} max={dayFrom(0)} onInput={(e) => setOn(e.currentTarget.value)} {...err("performed_on")} />
         <FieldErrors id="err-log-performed_on" messages={errors.performed_on} />
       </div>
       <div class="field">
         <label for="log-by">Done by <span class="muted">(the competent person; blank for you)</span></label>
-        <input id="log-by" type="text" value={by} autocomplete="off" onInput={(e) => setBy(e.currentTarget.value)} aria-describedby={describedBy(err("performed_by"))} />
+        <input id="log-by" type="text" value={by} autocomplete="off" onInput={(e) => setBy(e.currentTarget.value)} {...err("performed_by")} />
         <FieldErrors id="err-log-performed_by" messages={errors.performed_by} />
       </div>
       <div class="field">
         <label for="log-company">Their company <span class="muted">(optional)</span></label>
-        <input id="log-company" type="text" value={company} autocomplete="off" onInput={(e) => setCompany(e.currentTarget.value)} aria-describedby={describedBy(err("performed_by_company"))} />
+        <input id="log-company" type="text" value={company} autocomplete="off" onInput={(e) => setCompany(e.currentTarget.value)} {...err("performed_by_company")} />
         <FieldErrors id="err-log-performed_by_company" messages={errors.performed_by_company} />
       </div>
       <div class="field">
         <label for="log-details">{DETAILS_LABEL[kind] ?? "What was done and found"}</label>
-        <textarea id="log-details" rows={3} value={details} onInput={(e) => setDetails(e.currentTarget.value)} aria-describedby={describedBy(err("details"))} />
+        <textarea id="log-details" rows={3} value={details} onInput={(e) => setDetails(e.currentTarget.value)} {...err("details")} />
         <FieldErrors id="err-log-details" messages={errors.details} />
       </div>
       <div class="field">
         <label for="log-password">Your password, to sign the entry</label>
         <input id="log-password" type="password" autocomplete="current-password" value={password} onInput={(e) => setPassword(e.currentTarget.value)}
-          aria-describedby={describedBy(err("password"))} />
+          {...err("password")} />
         <FieldErrors id="err-log-password" messages={errors.password} />
       </div>
       <p class="muted small">Signing means: I made or witnessed the work recorded here and its result is as stated.</p>

@@ -9,16 +9,14 @@ import { go, href } from "../ui/hooks";
 import { Badge, StateBadge } from "../ui/signs";
 import { registerBlockers } from "../job_rules";
 import { dayFrom, desk, fieldErrors, type Conflict, type DropInput, type PlanChoice } from "./api";
-import { ConflictLines, DeskCaution, describedBy, FieldErrors } from "./parts";
+import { ConflictLines, DeskCaution, ErrorSummary, FieldErrors, invalidProps, useFormErrors, type ErrorField, type Errors } from "./parts";
 import { RoofPlan, SLOT_WORDS, type AnchorSlot } from "./RoofPlan";
-
-type Errors = Record<string, string[]>;
 
 function CreateJob({ user }: { user: User }) {
   const [sites, setSites] = useState<Site[] | null>(null);
   const [site, setSite] = useState("");
   const [date, setDate] = useState(dayFrom(1));
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
 
   useEffect(() => {
@@ -27,20 +25,23 @@ function CreateJob({ user }: { user: User }) {
         setSites(list);
         if (list.length === 1) setSite(String(list[0]!.id));
       },
-      (e) => setErrors(fieldErrors(e)),
+      (e) => show(fieldErrors(e)),
     );
   }, []);
 
   async function submit(event: Event) {
     event.preventDefault();
-    if (!site) return setErrors({ site: ["Choose a site."] });
+    const local: Errors = {};
+    if (!site) local.site = ["Choose a site."];
+    if (!date) local.date = ["Enter the day of work."];
+    if (Object.keys(local).length) return show(local);
     setBusy(true);
     setErrors({});
     try {
       const job = await desk.createJob({ site: Number(site), date, supervisor: user.id });
       go({ name: "desk", page: "plan", id: job.id });
     } catch (e) {
-      setErrors(fieldErrors(e));
+      show(fieldErrors(e));
     } finally {
       setBusy(false);
     }
@@ -52,11 +53,12 @@ function CreateJob({ user }: { user: User }) {
         <h1>Plan a day</h1>
       </div>
       <p>First the job: one site, one day, with you as its supervisor. Its drops come next.</p>
-      <form class="desk-form desk-narrow" onSubmit={submit} data-testid="create-job">
-        <FieldErrors id="err-form" messages={[...(errors[""] ?? []), ...(errors.supervisor ?? [])]} />
+      <form class="desk-form desk-narrow" onSubmit={submit} data-testid="create-job" noValidate ref={form}>
+        <ErrorSummary errors={errors} shown={shown} formId="err-form" head="The job was not created. Put these right:"
+          fields={{ site: { label: "Site", id: "f-site" }, date: { label: "Day of work", id: "f-date" } }} />
         <div class="field">
           <label for="f-site">Site</label>
-          <select id="f-site" value={site} onChange={(e) => setSite(e.currentTarget.value)} aria-describedby={describedBy(errors.site && "err-site")}>
+          <select id="f-site" value={site} onChange={(e) => setSite(e.currentTarget.value)} {...invalidProps(errors.site && "err-site")}>
             <option value="">{sites ? "Choose a site" : "Loading the sites…"}</option>
             {(sites ?? []).map((s) => (
               <option key={s.id} value={String(s.id)}>{s.name}{s.address ? `, ${s.address}` : ""}</option>
@@ -67,7 +69,7 @@ function CreateJob({ user }: { user: User }) {
         <div class="field">
           <label for="f-date">Day of work</label>
           <input id="f-date" type="date" value={date} required onInput={(e) => setDate(e.currentTarget.value)}
-            aria-describedby={describedBy(errors.date && "err-date")} />
+            {...invalidProps(errors.date && "err-date")} />
           <FieldErrors id="err-date" messages={errors.date} />
         </div>
         <button class="btn btn-primary" type="submit" disabled={busy} data-testid="create-job-submit">
@@ -95,6 +97,14 @@ const ANCHOR_SLOTS: { slot: AnchorSlot; label: string }[] = [
   { slot: "anchor", label: "Main anchor (tether)" },
   { slot: "safety_anchor", label: "Safety anchor (safety line)" },
 ];
+
+/** The add-drop form's fields in its order, as its summary names them. */
+const DROP_FIELDS: Record<string, ErrorField> = {
+  label: { label: "Drop name", id: "f-label" },
+  length_m: { label: "Length of the drop", id: "f-length" },
+  ...Object.fromEntries(KIT.map((k) => [k.field, { label: k.label, id: `f-${k.field}` }])),
+  ...Object.fromEntries(ANCHOR_SLOTS.map((a) => [a.slot, { label: a.label, id: `f-${a.slot}` }])),
+};
 
 function equipmentWords(item: Equipment): string {
   const parts = [item.label];
@@ -125,7 +135,7 @@ function Planner({ jobId }: { jobId: number }) {
   const [pickFor, setPickFor] = useState<AnchorSlot>("anchor");
   const [conflicts, setConflicts] = useState<Conflict[]>([]);
   const [checking, setChecking] = useState<"idle" | "checking" | "done" | "failed">("idle");
-  const [errors, setErrors] = useState<Errors>({});
+  const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
   const [added, setAdded] = useState("");
   const checkSeq = useRef(0);
@@ -192,8 +202,12 @@ function Planner({ jobId }: { jobId: number }) {
     setAdded("");
     const local: Errors = {};
     const metres = Number(length.trim().replace(",", "."));
-    if (length.trim() && !(Number.isFinite(metres))) local.length_m = ["Enter the drop's length in metres, a number."];
-    if (Object.keys(local).length) return setErrors(local);
+    if (!label.trim()) local.label = ["Name the drop."];
+    if (!length.trim()) local.length_m = ["Enter the drop's length in metres."];
+    else if (!Number.isFinite(metres)) local.length_m = ["Enter the drop's length in metres, a number."];
+    for (const k of KIT) if (choice[k.field] === null) local[k.field] = [`Choose the ${k.label.toLowerCase()}.`];
+    for (const a of ANCHOR_SLOTS) if (choice[a.slot] === null) local[a.slot] = [`Choose the ${a.label.toLowerCase()}.`];
+    if (Object.keys(local).length) return show(local);
     const data: Partial<DropInput> = { label: label.trim() };
     if (length.trim()) data.length_m = metres;
     for (const [field, id] of Object.entries(choice)) if (id !== null) data[field as Field] = id;
@@ -208,7 +222,7 @@ function Planner({ jobId }: { jobId: number }) {
       setPickFor("anchor");
       setJob(await desk.job(jobId));
     } catch (e) {
-      setErrors(fieldErrors(e));
+      show(fieldErrors(e));
     } finally {
       setBusy(false);
     }
@@ -276,20 +290,20 @@ function Planner({ jobId }: { jobId: number }) {
       <section aria-labelledby="add-head">
         <h2 id="add-head">Add a drop</h2>
         {added && <p class="note" role="status" data-testid="drop-added">{added}</p>}
-        <form class="desk-form desk-plan" onSubmit={submit} data-testid="add-drop" noValidate>
+        <form class="desk-form desk-plan" onSubmit={submit} data-testid="add-drop" noValidate ref={form}>
           <div class="desk-plan-fields">
-            <FieldErrors id="err-form" messages={errors[""]} />
+            <ErrorSummary errors={errors} shown={shown} formId="err-form" fields={DROP_FIELDS} head="The drop was not added. Put these right:" />
             <div class="field">
               <label for="f-label">Drop name</label>
               <input id="f-label" type="text" value={label} onInput={(e) => setLabel(e.currentTarget.value)}
-                aria-describedby={describedBy(errors.label && "err-label")} autocomplete="off" />
+                {...invalidProps(errors.label && "err-label")} autocomplete="off" />
               <FieldErrors id="err-label" messages={errors.label} />
             </div>
             <div class="field">
               <label for="f-length">Length of the drop</label>
               <span class="input-unit">
                 <input id="f-length" type="text" inputMode="decimal" value={length} onInput={(e) => setLength(e.currentTarget.value)}
-                  aria-describedby={describedBy(errors.length_m && "err-length_m")} autocomplete="off" />
+                  {...invalidProps(errors.length_m && "err-length_m")} autocomplete="off" />
                 <span class="unit">m</span>
               </span>
               <FieldErrors id="err-length_m" messages={errors.length_m} />
@@ -299,7 +313,7 @@ function Planner({ jobId }: { jobId: number }) {
                 <label for={`f-${k.field}`}>{k.label}</label>
                 <select id={`f-${k.field}`} value={choice[k.field] === null ? "" : String(choice[k.field])}
                   onChange={(e) => choose(k.field, e.currentTarget.value ? Number(e.currentTarget.value) : null)}
-                  aria-describedby={describedBy(errors[k.field] && `err-${k.field}`)}>
+                  {...invalidProps(errors[k.field] && `err-${k.field}`)}>
                   <option value="">Choose…</option>
                   {(ref.kit[k.field] ?? []).map((item) => (
                     <option key={item.id} value={String(item.id)}>{equipmentWords(item)}</option>
@@ -326,7 +340,7 @@ function Planner({ jobId }: { jobId: number }) {
                 <label for={`f-${a.slot}`}>{a.label} <span class="muted">(marked “{SLOT_WORDS[a.slot]}” on the plan)</span></label>
                 <select id={`f-${a.slot}`} value={choice[a.slot] === null ? "" : String(choice[a.slot])}
                   onChange={(e) => choose(a.slot, e.currentTarget.value ? Number(e.currentTarget.value) : null)}
-                  aria-describedby={describedBy(errors[a.slot] && `err-${a.slot}`)}>
+                  {...invalidProps(errors[a.slot] && `err-${a.slot}`)}>
                   <option value="">Choose…</option>
                   {ref.anchors.map((anchor) => (
                     <option key={anchor.id} value={String(anchor.id)}>{anchorWords(anchor, dayFrom(0))}</option>
