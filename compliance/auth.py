@@ -24,7 +24,14 @@ class AnyCaseUsernameBackend(ModelBackend):
             return None
         typed = username.strip()
         model = get_user_model()
-        found = list(model._default_manager.filter(username__iexact=typed))
+        # The database's own case-insensitive match may go further than Python's folding
+        # (PostgreSQL's UPPER() makes a dotless ı an I): only a name that folds to the same
+        # text signs in, the text the sign-in limit counts by.
+        found = [
+            user
+            for user in model._default_manager.filter(username__iexact=typed)
+            if user.username.casefold() == typed.casefold()
+        ]
         if len(found) > 1:
             found = [user for user in found if user.username == typed]
         if len(found) != 1:

@@ -238,3 +238,50 @@ def test_a_wrong_password_still_fails_whatever_the_case():
     )
     assert response.status_code == 400
     assert response.json() == {"detail": "Wrong username or password."}
+
+
+def test_spaces_and_case_around_a_username_do_not_reset_the_account_limit():
+    """Sign-in matched " ana" and "ANA\\t" to ana while the limit counted each spelling apart:
+    every spelling was a fresh allowance of guesses at ana's password."""
+    cache.clear()
+    UserFactory(username="ana")
+    client = APIClient()
+    spellings = ["ana", " ana", "ANA", "ana\t", "  Ana ", "aNa"]
+    codes = [
+        client.post(
+            reverse("token"),
+            {"username": spellings[n % len(spellings)], "password": "wrong"},
+            format="json",
+        ).status_code
+        for n in range(21)
+    ]
+    assert codes[:20] == [400] * 20 and codes[20] == 429
+    right = client.post(
+        reverse("token"), {"username": " ANA ", "password": PASSWORD}, format="json"
+    )
+    assert right.status_code == 429
+
+
+def test_a_name_the_database_alone_takes_for_another_does_not_sign_in(monkeypatch):
+    """PostgreSQL's case-insensitive match upper-cases a dotless ı to I: "ıvy" matched ivy
+    there while the limit counted it apart. Only a name that folds to the same text signs in."""
+    from compliance.auth import AnyCaseUsernameBackend
+
+    ivy = UserFactory(username="ivy")
+
+    class Lookalike:
+        def filter(self, **kwargs):
+            return [ivy]
+
+    class Users:
+        """The user model as PostgreSQL answers the case-insensitive match for "ıvy"."""
+
+        _default_manager = Lookalike()
+
+        def set_password(self, password):
+            pass
+
+    monkeypatch.setattr("compliance.auth.get_user_model", lambda: Users)
+    backend = AnyCaseUsernameBackend()
+    assert backend.authenticate(None, username="ıvy", password=PASSWORD) is None
+    assert backend.authenticate(None, username="IVY", password=PASSWORD) == ivy

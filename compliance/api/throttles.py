@@ -44,7 +44,7 @@ class LoginAccountThrottle(_Throttle):
     scope = "login_account"
 
     def get_cache_key(self, request: Request, view: Any) -> str | None:
-        return self.key(username_of(request).lower())
+        return self.key(account_key(username_of(request)))
 
 
 class LoginAddressThrottle(_Throttle):
@@ -68,6 +68,12 @@ class PasswordReentryThrottle(_Throttle):
 
 
 LOGIN_THROTTLES = [LoginAccountThrottle, LoginAddressThrottle]
+
+
+def account_key(username: str) -> str:
+    """The account a username names as sign-in matches it (compliance.auth): without the
+    spaces around it, case folded. " ana", "ANA" and "ana\t" count against one account."""
+    return username.strip().casefold()
 
 
 def username_of(request: Any) -> str:
