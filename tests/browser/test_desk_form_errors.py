@@ -21,7 +21,8 @@ def description(page, field: str) -> str:
     """The text the field's aria-describedby points at (every id it names must exist)."""
     return page.evaluate(
         """(sel) => {
-            const ids = (document.querySelector(sel).getAttribute('aria-describedby') || '').split(' ');
+            const named = document.querySelector(sel).getAttribute('aria-describedby');
+            const ids = (named || '').split(' ');
             return ids.filter(Boolean).map((id) => {
                 const el = document.getElementById(id);
                 if (!el) throw new Error('aria-describedby names a missing id: ' + id);
