@@ -44,9 +44,7 @@ def assert_invalid(page, field: str, words: str) -> None:
 
 
 @pytest.mark.django_db(transaction=True)
-def test_owner_s_log_book_and_certificate_forms_name_every_field_in_error(
-    page, live_server, demo
-):
+def test_owner_s_log_book_and_certificate_forms_name_every_field_in_error(page, live_server, demo):
     site = demo.site
     before = log_rows(site)
     open_owner_desk(page, live_server.url)
