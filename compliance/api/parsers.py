@@ -6,7 +6,7 @@ import json
 from typing import Any
 
 from rest_framework import parsers
-from rest_framework.exceptions import ParseError, ValidationError
+from rest_framework.exceptions import ParseError, UnsupportedMediaType, ValidationError
 from rest_framework.utils.json import strict_constant
 
 NOT_FINITE = "must be a finite number"
@@ -60,6 +60,10 @@ class JSONParser(parsers.JSONParser):
 
     def parse(self, stream: Any, media_type: str | None = None, parser_context: Any = None) -> Any:
         encoding = parsers.get_encoding(parser_context or {})
+        if codecs.lookup(encoding).name != "utf-8":
+            # JSON is UTF-8 (RFC 8259 §8.1). Another charset reads other text than the bytes
+            # show: in UTF-7, "grip +AGYAYQBpAGw- ok" is "grip fail ok".
+            raise UnsupportedMediaType(f"application/json; charset={encoding}")
         try:
             text = codecs.getreader(encoding)(stream).read()
             return json.loads(text, parse_constant=strict_constant, object_pairs_hook=_unique_keys)
@@ -94,8 +98,13 @@ class MultiPartParser(parsers.MultiPartParser):
 
     def parse(self, stream: Any, media_type: str | None = None, parser_context: Any = None) -> Any:
         parsed = super().parse(stream, media_type, parser_context)
+        names = [name for part in (parsed.data, parsed.files) for name, _ in part.lists()]
+        counts = {name: 0 for name in names}
         for part in (parsed.data, parsed.files):
             for name, values in part.lists():
-                if len(values) > 1:
-                    raise ValidationError({name: [f"The name {name!r} appears twice in the form."]})
+                counts[name] += len(values)
+        for name in names:
+            if counts[name] > 1:
+                # A text part and a file part of one name count too: image=text and image=@file.
+                raise ValidationError({name: [f"The name {name!r} appears twice in the form."]})
         return parsed

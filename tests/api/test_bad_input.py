@@ -145,6 +145,52 @@ def test_a_name_given_twice_in_a_form_is_refused_by_name(job, supervisor):
     assert counts() == before
 
 
+@pytest.mark.parametrize("charset", ["utf-7", "utf-16", "unicode_escape", "latin-1"])
+def test_json_in_another_charset_than_utf_8_is_refused(job, simple_checklists, operator, charset):
+    """In UTF-7 the remark "grip +AGYAYQBpAGw- ok" was stored as "grip fail ok": the text
+    read was not the text the bytes show. JSON is UTF-8 (RFC 8259 §8.1)."""
+    body = json.dumps(
+        {
+            "job": job.pk,
+            "version": simple_checklists["site"].pk,
+            "entries": PASSING["site"],
+            "remarks": "grip +AGYAYQBpAGw- ok",
+        }
+    ).encode("utf-8")
+    response = client_for(operator).post(
+        reverse("sheet-list"), body, content_type=f"application/json; charset={charset}"
+    )
+    assert response.status_code == 415
+    assert CheckSheet.objects.count() == 0
+
+
+def test_json_declared_utf_8_in_any_spelling_is_read(job, simple_checklists, operator):
+    body = json.dumps(
+        {"job": job.pk, "version": simple_checklists["site"].pk, "entries": PASSING["site"]}
+    ).encode("utf-8")
+    response = client_for(operator).post(
+        reverse("sheet-list"), body, content_type="application/json; charset=UTF8"
+    )
+    assert response.status_code == 201, response.json()
+
+
+def test_a_text_part_and_a_file_part_of_one_name_are_refused(job, operator):
+    """image=text and image=@photo.png came through: the text and file parts were each
+    checked for repeats apart."""
+    import io
+
+    from PIL import Image
+
+    png = io.BytesIO()
+    Image.new("RGB", (8, 8), "white").save(png, format="PNG")
+    png.seek(0)
+    png.name = "p.png"
+    body = {"client_uuid": str(uuid.uuid4()), "job": job.pk, "image": ["text", png]}
+    response = client_for(operator).post(reverse("photos"), body, format="multipart")
+    assert response.status_code == 400
+    assert response.json() == {"image": ["The name 'image' appears twice in the form."]}
+
+
 def test_a_reading_in_another_accepted_unit_is_converted_and_kept_as_entered(
     job, simple_checklists, operator
 ):
