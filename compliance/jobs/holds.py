@@ -170,53 +170,80 @@ def jobs_with_kit(equipment: Equipment) -> list[Job]:
 JUDGED_ON_CHANGED = "judged_on"
 """The item key of a hold opened because a figure a check read has changed since."""
 
+STOPS_WORK = {
+    "sheet_judged_on_changed": JUDGED_ON_CHANGED,
+    "equipment_out_of_service": "equipment_out_of_service",
+    "equipment_inspection_overdue": "equipment_inspection_overdue",
+    "anchor_uncertified": "anchor_uncertified",
+    "anchor_certification_expired": "anchor_certification_expired",
+    "anchor_capacity_low": "anchor_capacity_low",
+    "line_shorter_than_drop": "line_shorter_than_drop",
+}
+"""What a register change can leave that stops a job at work, by blocker code, and the item key
+of the hold it opens. An anchor removed from service is the owner's log book's own hold."""
+
 
 def reread_readiness(*, jobs: Iterable[Job], by: User) -> None:
-    """A register change (a rating, a date, in or out of service) may leave a cleared job's
-    checks behind, or put right what held a planned one: each job's state is read again. A job
-    at work whose checks were judged on a figure that now reads otherwise stops: its check is
-    made again (a safety line re-rated from 30 kN to 10 kN while the robot is on the facade)."""
+    """A register change (a rating, a date, in or out of service, a certification) may leave a
+    cleared job's checks behind, or put right what held or kept back another: each job's state
+    is read again. A job at work that it leaves short stops (a safety line re-rated below its
+    arrest load, or taken out of service, while the robot is on the facade); the hold clears
+    when the register is put right, or, for a check judged on a figure since changed, with a
+    check made since."""
     for job in jobs:
         if job.state == JobState.WORKING:
-            hold_for_changed_figures(job=job, by=by)
+            hold_for_register_change(job=job, by=by)
         else:
+            clear_register_holds(job=job, by=by)
             refresh_readiness(job=job, by=by)
 
 
-def hold_for_changed_figures(*, job: Job, by: User) -> Job:
-    """Open a hold on each requirement whose newest check was judged on a figure that reads
-    otherwise now; a passing check made since clears it like any sheet's hold."""
-    holding = set(
-        Hold.objects.filter(job=job, clearance__isnull=True).values_list("requirement", flat=True)
-    )
+def hold_for_register_change(*, job: Job, by: User) -> Job:
+    """Open a hold for each thing the register now says stops the job (see STOPS_WORK) that no
+    open hold already stands for."""
     requirements = job_requirements(job)
-    changed = {r.key: r for r in requirements if r.changed is not None}
-    if not changed:
-        return job
-    reasons = [
-        reason
-        for reason in job_blockers(job, requirements=requirements)
-        if reason.code == "sheet_judged_on_changed"
-        and reason.requirement in changed
-        and reason.requirement not in holding
-    ]
-    if not reasons:
-        return job
-    Hold.objects.bulk_create(
-        [
+    latest = {r.key: r.latest_sheet_id for r in requirements}
+    holding = set(
+        Hold.objects.filter(job=job, clearance__isnull=True).values_list("requirement", "item_key")
+    )
+    opened = []
+    for reason in job_blockers(job, requirements=requirements):
+        item_key = STOPS_WORK.get(reason.code)
+        if item_key is None or (reason.requirement, item_key) in holding:
+            continue
+        holding.add((reason.requirement, item_key))
+        opened.append(
             Hold(
                 job=job,
                 requirement=reason.requirement,
-                item_key=JUDGED_ON_CHANGED,
-                sheet_id=changed[reason.requirement].latest_sheet_id,
+                item_key=item_key,
+                # A check judged on a changed figure is cleared by a check made since.
+                sheet_id=latest.get(reason.requirement) if item_key == JUDGED_ON_CHANGED else None,
                 reason=reason.message,
             )
-            for reason in reasons
-        ]
-    )
-    return transition(
-        job, JobState.HELD, by, "Stop work: a figure a check was judged on has changed since."
-    )
+        )
+    if not opened:
+        return job
+    Hold.objects.bulk_create(opened)
+    return transition(job, JobState.HELD, by, "Stop work: the register changed under the job.")
+
+
+def clear_register_holds(*, job: Job, by: User) -> None:
+    """Clear the holds a register change opened once the register no longer says so (the line
+    back in service, its inspection recorded, the anchor certified again)."""
+    held = [
+        hold
+        for hold in Hold.objects.filter(
+            job=job, clearance__isnull=True, sheet__isnull=True, log_entry__isnull=True
+        )
+        if hold.item_key in STOPS_WORK.values()
+    ]
+    if not held:
+        return
+    standing = {(reason.requirement, STOPS_WORK.get(reason.code)) for reason in job_blockers(job)}
+    for hold in held:
+        if (hold.requirement, hold.item_key) not in standing:
+            HoldClearance.objects.create(hold=hold, by=by)
 
 
 def hold_for_removed_anchor(

@@ -123,9 +123,7 @@ def test_a_rating_lowered_while_the_robot_works_stops_work_until_checked_again(
     hold = Hold.objects.get(job=job)
     assert (hold.requirement, hold.item_key) == (f"hose-check@equipment:{hose.pk}", "judged_on")
     assert hold.reason.endswith("it now reads 800: check it again.")
-    assert job.transitions.last().reason == (
-        "Stop work: a figure a check was judged on has changed since."
-    )
+    assert job.transitions.last().reason == ("Stop work: the register changed under the job.")
 
     record_sheet(
         job=job,
@@ -138,3 +136,57 @@ def test_a_rating_lowered_while_the_robot_works_stops_work_until_checked_again(
     job.refresh_from_db()
     assert job.state == JobState.CLEARED
     assert Hold.objects.get(job=job).clearance is not None
+
+
+def test_kit_taken_out_of_service_while_the_robot_works_stops_work_until_it_returns(
+    job, simple_checklists, operator, supervisor
+):
+    """A safety line taken out of service ("sheath cut at 40 m") while the job was working left
+    work going with no hold, and the day could be signed safe."""
+    from compliance.jobs.services import start_job
+    from compliance.models import Hold
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    line = job.drops.get().safety_line
+    client = client_for(supervisor)
+
+    response = _patch(client, line, {"in_service": False, "reason": "Sheath cut at 40 m."})
+
+    assert response.status_code == 200, response.json()
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    hold = Hold.objects.get(job=job, clearance__isnull=True)
+    assert (hold.requirement, hold.item_key) == (
+        f"equipment:{line.pk}",
+        "equipment_out_of_service",
+    )
+
+    assert _patch(client, line, {"in_service": True}).status_code == 200
+
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+    assert not Hold.objects.filter(job=job, clearance__isnull=True).exists()
+
+
+def test_an_inspection_date_moved_past_while_the_robot_works_stops_work(
+    job, simple_checklists, operator, supervisor
+):
+    import datetime as dt
+
+    from compliance.jobs.services import start_job
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    robot = job.drops.get().robot
+
+    response = _patch(
+        client_for(supervisor),
+        robot,
+        {"next_inspection_due": (job.date - dt.timedelta(days=1)).isoformat()},
+    )
+
+    assert response.status_code == 200, response.json()
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    assert [h.item_key for h in job.holds.all()] == ["equipment_inspection_overdue"]
