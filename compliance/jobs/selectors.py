@@ -22,6 +22,7 @@ from compliance.models import (
     JobTransition,
     User,
 )
+from compliance.registers.ratings import rating_labels
 from compliance.registers.selectors import anchor_status, withdrawal
 from compliance.registers.visibility import can_work_at
 
@@ -193,12 +194,42 @@ def open_holds(job: Job) -> list[Hold]:
     return list(Hold.objects.filter(job=job, clearance__isnull=True).select_related("sheet"))
 
 
-def _figure(value: object) -> str:
+def _figure(value: object, unit: str = "") -> str:
     if value is None:
         return "nothing"
     if isinstance(value, float | int) and not isinstance(value, bool):
-        return f"{value:g}"
+        return f"{value:g} {unit}" if unit else f"{value:g}"
     return str(value)
+
+
+PLAN_WORDS = {
+    "anchor.rated_capacity_kn": ("certified capacity", "kN"),
+    "drop.length_m": ("length", "m"),
+    "drop.height_m": ("building height", "m"),
+    "drop.terrain": ("terrain", ""),
+    "drop.corner_distance_m": ("distance from the facade's corner", "m"),
+    "drop.building_depth_m": ("building depth", "m"),
+}
+"""A figure of the plan or the anchor's certificate in words, with its unit."""
+
+
+def _figure_words(job: Job, subject: Subject, kind: str, ref: str) -> tuple[str, str]:
+    """A figure a check read, in the register's words and with its unit: "minimum breaking
+    strength", "kN" for a line's mbs_kn (a reason read "its mbs_kn at 30")."""
+    if f"{kind}.{ref}" in PLAN_WORDS:
+        return PLAN_WORDS[f"{kind}.{ref}"]
+    if kind == "profile":
+        threshold = job.site.profile.thresholds.get(ref)
+        unit = str(threshold.get("unit") or "") if isinstance(threshold, dict) else ""
+        words = ref.replace("_", " ")
+        suffix = f" {unit.lower().replace('/', '').replace(' ', '')}"
+        return (words.removesuffix(suffix) if unit else words), unit
+    equipment_kind = subject.equipment.kind if kind == "equipment" and subject.equipment else kind
+    rating = rating_labels(equipment_kind).get(ref)
+    if rating is None:
+        return ref.replace("_", " "), ""
+    words, _, unit = rating.rpartition(", ")
+    return (words, unit) if words else (rating, "")
 
 
 def _the(subject: Subject) -> str:
@@ -340,12 +371,13 @@ def job_blockers(
             name, then, now = req.changed
             kind, _, ref = name.partition(".")
             whose = "its" if kind == "equipment" else REGISTER_WORDS.get(kind, f"the {kind}'s")
+            words, unit = _figure_words(job, req.subject, kind, ref)
             reasons.append(
                 Reason(
                     "sheet_judged_on_changed",
                     f"{req.checklist_title} for {_the(req.subject)} was judged with"
-                    f" {whose} {ref} at {_figure(then)}; it now reads"
-                    f" {_figure(now)}: check it again.",
+                    f" {whose} {words} at {_figure(then, unit)}; it now reads"
+                    f" {_figure(now, unit)}: check it again.",
                     req.key,
                 )
             )

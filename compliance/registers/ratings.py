@@ -205,3 +205,9 @@ def validate_ratings(kind: str, ratings: Any) -> dict[str, Any]:
     if errors:
         raise ValidationError(errors)
     return ratings
+
+
+def rating_labels(kind: str) -> dict[str, str]:
+    """Each rating of a kind of equipment by key, in its words ("minimum breaking strength,
+    kN")."""
+    return {rating.key: rating.label for rating in EQUIPMENT_RATINGS.get(kind, ())}

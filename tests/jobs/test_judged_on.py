@@ -43,8 +43,8 @@ def test_a_rating_lowered_after_the_check_leaves_the_check_behind(
     assert [(r.code, r.message) for r in job_blockers(job) if r.requirement == key] == [
         (
             "sheet_judged_on_changed",
-            f"Hose Check for hose {hose.label} was judged with its rating_kpa at"
-            f" {was:g}; it now reads 800: check it again.",
+            f"Hose Check for hose {hose.label} was judged with its pressure rating at"
+            f" {was:g} kPa; it now reads 800 kPa: check it again.",
         )
     ]
     response = client_for(operator).post(reverse("job-start", args=[job.pk]))
@@ -96,8 +96,8 @@ def test_a_profile_figure_changed_since_leaves_the_check_behind(job, simple_chec
 
     reasons = [r for r in job_blockers(job) if r.code == "sheet_judged_on_changed"]
     assert [r.requirement for r in reasons] == ["site-check@site"]
-    assert "the site's profile's max_wind_ms at" in reasons[0].message
-    assert reasons[0].message.endswith("it now reads 6: check it again.")
+    assert "the site's profile's max wind at" in reasons[0].message
+    assert reasons[0].message.endswith("it now reads 6 m/s: check it again.")
 
 
 def test_a_rating_lowered_while_the_robot_works_stops_work_until_checked_again(
@@ -122,7 +122,7 @@ def test_a_rating_lowered_while_the_robot_works_stops_work_until_checked_again(
     assert job.state == JobState.HELD
     hold = Hold.objects.get(job=job)
     assert (hold.requirement, hold.item_key) == (f"hose-check@equipment:{hose.pk}", "judged_on")
-    assert hold.reason.endswith("it now reads 800: check it again.")
+    assert hold.reason.endswith("it now reads 800 kPa: check it again.")
     assert job.transitions.last().reason == ("Stop work: the register changed under the job.")
 
     record_sheet(
