@@ -441,7 +441,12 @@ OPEN_HOLDS_NOT_SAFE = (
 NO_HOLD_NOT_STOPPED = (
     f"No hold is open on this day, so it cannot be signed as “{MEANINGS['reviewed_stopped']}”"
     f" Choose “{MEANINGS['reviewed_safe']}”, or “{MEANINGS['reviewed_exceptions']}” and say in"
-    " the remarks what stopped work and how it was cleared."
+    " the remarks what happened."
+)
+NO_HOLD_NEVER_READY = (
+    f"No hold is open on this day, so it cannot be signed as “{MEANINGS['reviewed_stopped']}”"
+    " and its pre-start checks were never complete (it was never ready to start): choose"
+    f" “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
 )
 
 
@@ -479,10 +484,12 @@ def sign_daily_record(
         content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(OPEN_HOLDS_NOT_SAFE)
-        if meaning == "reviewed_stopped" and not open_holds_of(content):
-            raise InvalidTransition(NO_HOLD_NOT_STOPPED)
         ready = {JobState.CLEARED, JobState.WORKING}
-        if meaning == "reviewed_safe" and not any(t["to"] in ready for t in content["transitions"]):
+        was_ready = any(t["to"] in ready for t in content["transitions"])
+        if meaning == "reviewed_stopped" and not open_holds_of(content):
+            # Never ready, "safe" is refused too: the refusal does not send the signer there.
+            raise InvalidTransition(NO_HOLD_NOT_STOPPED if was_ready else NO_HOLD_NEVER_READY)
+        if meaning == "reviewed_safe" and not was_ready:
             raise InvalidTransition(NEVER_READY_NOT_SAFE)
         head = _locked_head(job.organisation_id, job.site_id)
         sequence, previous = head.sequence + 1, head.seal

@@ -437,6 +437,24 @@ def test_the_refusal_to_sign_as_work_stopped_names_the_choices_as_the_page_shows
     assert "checked and safe" not in detail
 
 
+def test_a_day_never_ready_refused_as_work_stopped_is_not_sent_to_safe(
+    job, simple_checklists, operator, supervisor, credential
+):
+    """The refusal of "work was stopped" on a day never ready and never held told the signer to
+    choose "safe", which is refused in turn as never ready."""
+    from compliance.jobs.services import close_job
+
+    with clock.replaying(job.date):
+        close_job(job=job, by=supervisor, reason="Rain all day: no checks made.")
+
+    with pytest.raises(InvalidTransition) as refused:
+        sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_stopped")
+
+    detail = str(refused.value)
+    assert f"“{MEANINGS['reviewed_safe']}”" not in detail
+    assert f"“{MEANINGS['reviewed_exceptions']}”" in detail
+
+
 def test_a_day_whose_holds_were_all_cleared_is_not_signed_as_work_stopped(
     job, simple_checklists, operator, supervisor, credential
 ):
