@@ -75,7 +75,7 @@ def hold_for_failed_items(
             job=job, requirement=sheet.requirement, clearance__isnull=True
         ).values_list("item_key", flat=True)
     )
-    opened = Hold.objects.bulk_create(
+    Hold.objects.bulk_create(
         [
             Hold(
                 job=job,
@@ -88,41 +88,10 @@ def hold_for_failed_items(
             if item.key not in holding
         ]
     )
-    newer = passed_since(sheet)
-    if newer is not None:
-        # An older failure arriving late (a phone that was offline): a check made after it
-        # passed already. Its holds are opened and cleared by that check, as they would have
-        # been had the two arrived in the order they were made; work does not stop again.
-        for hold in opened:
-            HoldClearance.objects.create(hold=hold, sheet=newer, by=by)
-        return job
     if job.state != JobState.HELD:
         names = ", ".join(i.label for i in failures)
         transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
     return job
-
-
-def passed_since(sheet: CheckSheet) -> CheckSheet | None:
-    """A passing sheet for the same requirement, against the checklist's current version, made
-    after `sheet`; None when there is none."""
-    made = sheet.order_made
-    later = [
-        other
-        for other in CheckSheet.objects.filter(
-            job_id=sheet.job_id,
-            version__checklist_id=sheet.version.checklist_id,
-            subject_kind=sheet.subject_kind,
-            anchor_id=sheet.anchor_id,
-            equipment_id=sheet.equipment_id,
-            blocking_failures=0,
-        )
-        .exclude(pk=sheet.pk)
-        .select_related("version")
-        if other.order_made > made
-    ]
-    return next(
-        (o for o in sorted(later, key=lambda o: o.order_made) if not superseded(o.version)), None
-    )
 
 
 def clear_by_passing_sheet(*, job: Job, sheet: CheckSheet, by: User) -> bool:
