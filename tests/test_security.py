@@ -285,3 +285,18 @@ def test_a_name_the_database_alone_takes_for_another_does_not_sign_in(monkeypatc
     backend = AnyCaseUsernameBackend()
     assert backend.authenticate(None, username="ıvy", password=PASSWORD) is None
     assert backend.authenticate(None, username="IVY", password=PASSWORD) == ivy
+
+
+def test_spaces_past_the_length_a_name_is_cut_to_do_not_reset_the_account_limit():
+    """The limit cut a username to 150 characters before taking its spaces off, sign-in after:
+    150 spaces then "ana" counted as "" (a fresh allowance) and signed in as ana."""
+    cache.clear()
+    UserFactory(username="ana")
+    client = APIClient()
+    for _ in range(20):
+        client.post(reverse("token"), {"username": "ana", "password": "wrong"}, format="json")
+    padded = " " * 150 + "ana"
+    response = client.post(
+        reverse("token"), {"username": padded, "password": PASSWORD}, format="json"
+    )
+    assert response.status_code == 429

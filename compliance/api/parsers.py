@@ -97,6 +97,11 @@ class MultiPartParser(parsers.MultiPartParser):
     """
 
     def parse(self, stream: Any, media_type: str | None = None, parser_context: Any = None) -> Any:
+        encoding = parsers.get_encoding(parser_context or {})
+        if codecs.lookup(encoding).name != "utf-8":
+            # A form's text parts are read in the charset it names: in UTF-7 a certifier
+            # "+AEEAQwBNAEU-" was stored as "ACME". Forms are read as UTF-8 alone, as JSON is.
+            raise UnsupportedMediaType(f"multipart/form-data; charset={encoding}")
         parsed = super().parse(stream, media_type, parser_context)
         names = [name for part in (parsed.data, parsed.files) for name, _ in part.lists()]
         counts = {name: 0 for name in names}

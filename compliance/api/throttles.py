@@ -73,7 +73,7 @@ LOGIN_THROTTLES = [LoginAccountThrottle, LoginAddressThrottle]
 def account_key(username: str) -> str:
     """The account a username names as sign-in matches it (compliance.auth): without the
     spaces around it, case folded. " ana", "ANA" and "ana\t" count against one account."""
-    return username.strip().casefold()
+    return username.strip().casefold()[:150]
 
 
 def username_of(request: Any) -> str:
@@ -81,7 +81,9 @@ def username_of(request: Any) -> str:
     if data is None:
         data = request.POST
     try:
-        return str(data.get("username", ""))[:150]
+        # Cut by account_key after the spaces go, as sign-in reads it: cut first, 150 spaces
+        # and "ana" counted as "" (a fresh allowance) and signed in as ana.
+        return str(data.get("username", ""))[:4096]
     except AttributeError:
         return ""
 

@@ -174,6 +174,30 @@ def test_json_declared_utf_8_in_any_spelling_is_read(job, simple_checklists, ope
     assert response.status_code == 201, response.json()
 
 
+def test_a_form_in_another_charset_than_utf_8_is_refused(job, supervisor):
+    """In UTF-7 a certifier "+AEEAQwBNAEU- Rope Access" was stored as "ACME Rope Access"."""
+    from django.test.client import BOUNDARY, encode_multipart
+
+    anchor = job.drops.first().anchor
+    before = counts()
+    body = encode_multipart(
+        BOUNDARY,
+        {
+            "certifier": "+AEEAQwBNAEU- Rope Access",
+            "rated_capacity_kn": "30",
+            "certified_on": "2026-01-01",
+            "valid_until": "2027-01-01",
+        },
+    )
+    response = client_for(supervisor).post(
+        reverse("anchor-certifications", args=[anchor.pk]),
+        body,
+        content_type=f"multipart/form-data; boundary={BOUNDARY}; charset=utf-7",
+    )
+    assert response.status_code == 415
+    assert counts() == before
+
+
 def test_a_text_part_and_a_file_part_of_one_name_are_refused(job, operator):
     """image=text and image=@photo.png came through: the text and file parts were each
     checked for repeats apart."""
