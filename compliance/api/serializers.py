@@ -352,9 +352,9 @@ class HoldSerializer(serializers.ModelSerializer):
         source="clearance.sheet_id", read_only=True, allow_null=True
     )
     found_at = serializers.SerializerMethodField(
-        help_text="When the check that opened the hold was made, as the server orders checks"
-        " (a phone offline on the roof sends it later than the hold's opening says); null for"
-        " a hold the owner's log book opened."
+        help_text="When the failed check that opened the hold was made, as the server orders"
+        " checks (a phone offline on the roof sends it later than the hold's opening says);"
+        " null for a hold the owner's log book or a register change opened."
     )
 
     class Meta:
@@ -373,7 +373,8 @@ class HoldSerializer(serializers.ModelSerializer):
 
     @extend_schema_field(serializers.DateTimeField(allow_null=True))
     def get_found_at(self, hold: Hold) -> str | None:
-        if hold.sheet_id is None:
+        if hold.sheet_id is None or not hold.sheet.blocking_failures:
+            # A register change's hold, or one naming the passing check it leaves behind.
             return None
         return serializers.DateTimeField().to_representation(hold.sheet.made_at)
 

@@ -126,7 +126,7 @@ def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = N
     ready = not job_blockers(job, drops, holds=holds)
     if job.state == JobState.HELD:
         target = JobState.CLEARED if ready else JobState.PLANNED
-        return transition(job, target, by, "Every hold cleared by a passing re-check.")
+        return transition(job, target, by, "Every hold cleared.")
     if job.state == JobState.PLANNED and ready:
         return transition(job, JobState.CLEARED, by, "Every required pre-start check passed.")
     if job.state == JobState.CLEARED and not ready:

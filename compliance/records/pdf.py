@@ -715,7 +715,11 @@ def _subjects(record: dict[str, Any]) -> dict[str, str]:
 
 
 def _concerns(hold: dict[str, Any], subjects: dict[str, str]) -> str:
-    _, _, ref = str(hold.get("requirement") or "").partition("@")
+    # A check's hold names "checklist@anchor:12"; a register change's names "anchor:12" itself
+    # (which printed "the job" for "S-1 is out of service").
+    requirement = str(hold.get("requirement") or "")
+    _, at, ref = requirement.partition("@")
+    ref = ref if at else requirement
     return subjects.get(ref, "the site" if ref == "site" else ref or "the job")
 
 
@@ -724,9 +728,9 @@ LATE = dt.timedelta(minutes=1)
 
 
 def _checks_made(record: dict[str, Any]) -> dict[Any, dt.datetime]:
-    """When each sheet was made, by id: its phone's time set right by how far the phone's clock
-    was off when it sent its batch (as the server orders checks), never after it was received;
-    sheets with no time of the phone's own are left out."""
+    """When each failing sheet was made, by id: its phone's time set right by how far the
+    phone's clock was off when it sent its batch (as the server orders checks), never after it
+    was received; sheets with no time of the phone's own are left out."""
     made: dict[Any, dt.datetime] = {}
     for sheet in record.get("sheets") or []:
         try:
@@ -734,6 +738,10 @@ def _checks_made(record: dict[str, Any]) -> dict[Any, dt.datetime]:
             received = _moment(sheet.get("received_at"))
             offset = sheet.get("phone_clock_offset_s")
             if phone is None or received is None or not isinstance(offset, int):
+                continue
+            if not sheet.get("blocking_failures"):
+                # A passing check is not when a failure was found (a hold for a figure changed
+                # since names the check it leaves behind).
                 continue
             made[sheet.get("id")] = min(phone - dt.timedelta(seconds=offset), received)
         except (OverflowError, TypeError):

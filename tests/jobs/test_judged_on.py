@@ -123,6 +123,9 @@ def test_a_rating_lowered_while_the_robot_works_stops_work_until_checked_again(
     hold = Hold.objects.get(job=job)
     assert (hold.requirement, hold.item_key) == (f"hose-check@equipment:{hose.pk}", "judged_on")
     assert hold.reason.endswith("it now reads 800 kPa: check it again.")
+    # Its sheet is the passing check it leaves behind: no failure was found then.
+    (shown,) = client_for(operator).get(reverse("job-detail", args=[job.pk])).json()["holds"]
+    assert shown["found_at"] is None
     assert job.transitions.last().reason == ("Stop work: the register changed under the job.")
 
     record_sheet(

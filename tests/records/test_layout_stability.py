@@ -231,3 +231,14 @@ def test_from_6_a_hold_says_when_its_check_was_made_and_before_it_did_not():
     assert "check was made 2026-03-04 05:01:00" in " ".join(text(DOCUMENTS["record-6"]).split())
     as_five = {**DOCUMENTS["record-6"], "format": "parapet.daily-record/5"}
     assert "check was made" not in " ".join(text(as_five).split())
+
+
+def test_a_register_change_s_hold_names_the_kit_it_concerns():
+    """A hold a register change opens names the kit or anchor itself ("equipment:5"): its page
+    said it concerned "the job"."""
+    from compliance.records.pdf import _concerns
+
+    subjects = {"equipment:5": "safety line S-1", "anchor:2": "anchor R2"}
+    assert _concerns({"requirement": "equipment:5"}, subjects) == "safety line S-1"
+    assert _concerns({"requirement": "anchor-pre-use@anchor:2"}, subjects) == "anchor R2"
+    assert _concerns({"requirement": "weather@site"}, subjects) == "the site"
