@@ -8,9 +8,16 @@ interface RequirementWords {
   title: string;
   subject: string;
   anchor?: number | null;
+  equipment?: number | null;
 }
 
 const ANCHOR_STATUS = /^anchor-status@anchor:(\d+)$/;
+/** A hold a register change opened names the kit or anchor itself: "equipment:5". */
+const REGISTER = /^(anchor|equipment):(\d+)$/;
+
+function capital(words: string): string {
+  return words.charAt(0).toUpperCase() + words.slice(1);
+}
 
 export function holdTitle(requirements: readonly RequirementWords[], key: string): string {
   const found = requirements.find((r) => r.key === key);
@@ -19,15 +26,24 @@ export function holdTitle(requirements: readonly RequirementWords[], key: string
   if (status) {
     const anchor = requirements.find((r) => r.anchor === Number(status[1]));
     if (!anchor) return "An anchor out of service";
-    const name = anchor.subject.charAt(0).toUpperCase() + anchor.subject.slice(1);
-    return `${name} out of service`;
+    return `${capital(anchor.subject)} out of service`;
+  }
+  const register = REGISTER.exec(key);
+  if (register) {
+    const id = Number(register[2]);
+    const found = requirements.find((r) => (register[1] === "anchor" ? r.anchor : r.equipment) === id);
+    return found ? `${capital(found.subject)}: the register` : "The register";
   }
   return "A stop-work hold";
 }
 
-export function holdClearedBy(key: string): "owner" | "recheck" {
-  return ANCHOR_STATUS.test(key) ? "owner" : "recheck";
+export function holdClearedBy(key: string): "owner" | "register" | "recheck" {
+  if (ANCHOR_STATUS.test(key)) return "owner";
+  return REGISTER.test(key) ? "register" : "recheck";
 }
+
+export const REGISTER_CLEARS =
+  "The register stopped this work. Putting the register right clears it: the supervisor returns the kit to service or records its inspection, and for an anchor the building's owner records its certificate. No check on this phone clears it.";
 
 export const OWNER_CLEARS =
   "Only the building's owner clears this, by returning the anchor to service in its log book after the repair. No check on this phone clears it.";

@@ -5,6 +5,7 @@ import { holdClearedBy, holdTitle } from "../src/holds";
 const requirements = [
   { key: "anchor-pre-use@anchor:3", title: "Roof anchor pre-use check", subject: "anchor R3", anchor: 3 },
   { key: "weather@site", title: "Weather at working height", subject: "site", anchor: null },
+  { key: "line-check@equipment:5", title: "Safety line check", subject: "safety line S-1", equipment: 5 },
 ];
 
 describe("holdTitle", () => {
@@ -25,5 +26,14 @@ describe("holdClearedBy", () => {
 
   it("leaves an anchor out of service to the building's owner", () => {
     expect(holdClearedBy("anchor-status@anchor:3")).toBe("owner");
+  });
+
+  it("leaves a hold the register opened to the register, with no re-check offered", () => {
+    // A line taken out of service while the robot worked read "A stop-work hold" and offered a
+    // Re-check for a requirement "equipment:5" that no check can satisfy.
+    expect(holdClearedBy("equipment:5")).toBe("register");
+    expect(holdClearedBy("anchor:3")).toBe("register");
+    expect(holdTitle(requirements, "equipment:5")).toBe("Safety line S-1: the register");
+    expect(holdTitle(requirements, "anchor:3")).toBe("Anchor R3: the register");
   });
 });

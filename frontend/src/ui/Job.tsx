@@ -7,7 +7,7 @@ import { refreshCounts, requestSync } from "../sync";
 import { dataChanged } from "../status";
 import type { DailyRecord, JobDetail, Reason, Requirement, User } from "../types";
 import { deviceTime } from "../uuid";
-import { holdClearedBy, holdTitle, madeNote, OWNER_CLEARS } from "../holds";
+import { holdClearedBy, holdTitle, madeNote, OWNER_CLEARS, REGISTER_CLEARS } from "../holds";
 import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
 import { activeRefusals, errorLines } from "../refusals";
 import { mayClose, opensOn, registerBlockers } from "../job_rules";
@@ -232,6 +232,8 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
                 <p data-testid="hold-reason">{plainReason(h.reason)}</p>
                 {holdClearedBy(h.requirement) === "owner" ? (
                   <p class="muted small" data-testid="hold-owner-clears">Since {timeOf(h.opened_at)}. {OWNER_CLEARS}</p>
+                ) : holdClearedBy(h.requirement) === "register" ? (
+                  <p class="muted small" data-testid="hold-register-clears">Since {timeOf(h.opened_at)}. {REGISTER_CLEARS}</p>
                 ) : (
                   <>
                     <p class="muted small">Since {timeOf(h.opened_at)}{madeNote(h, timeOf)}. A new passing check after the repair clears it.</p>
