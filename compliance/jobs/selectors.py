@@ -619,4 +619,4 @@ def reached(job: Job, *states: str) -> set[str]:
 def ever_reached(job: Job, *states: str) -> bool:
     """Whether the job was in one of `states` at any time (its transitions say so): work
     started (working), or every pre-start check was done and passing (cleared)."""
-    return JobTransition.objects.filter(job=job, to_state__in=states).exists()
+    return bool(reached(job, *states))

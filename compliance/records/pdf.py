@@ -542,12 +542,9 @@ class _Look:
         """A stored UTC time in the site's zone to the second (the first layout: as stored)."""
         if not self.readable or not isinstance(stamp, str):
             return str(stamp) if stamp is not None else ""
-        try:
-            moment = dt.datetime.fromisoformat(stamp.replace("Z", "+00:00"))
-        except ValueError:
+        moment = _moment(stamp)
+        if moment is None:
             return stamp
-        if moment.tzinfo is None:
-            moment = moment.replace(tzinfo=dt.UTC)
         return moment.astimezone(self.zone).strftime("%Y-%m-%d %H:%M:%S")
 
     def zone_heading(self, word: str) -> str:
