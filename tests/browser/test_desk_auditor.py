@@ -369,8 +369,13 @@ def test_the_next_person_on_the_same_screen_sees_only_their_own_sites(live_serve
     page.click(".desk-head a:has-text('Phone screens')")
     page.click("[data-testid=sign-out]")
     page.wait_for_selector("input[name=username]")
+    # Requests the first person's screens had under way end (refused) before the next types:
+    # under load, one ended mid-typing and the sign-in was refused (CI, once).
+    page.wait_for_load_state("networkidle")
     page.type("input[name=username]", "moss", delay=TYPE_MS)
     page.type("input[name=password]", PASSWORD, delay=TYPE_MS)
+    assert page.input_value("input[name=username]") == "moss"
+    assert page.input_value("input[name=password]") == PASSWORD
     page.click("button[type=submit]")
     page.click("[data-testid=desk-link]")
     page.wait_for_selector("[data-testid=desk-records] [data-testid=no-sites]")
