@@ -17,17 +17,22 @@ pytestmark = pytest.mark.django_db
 SKEW = dt.timedelta(hours=5)
 
 
-def send_site_sheet(job, versions, operator, device_time, sent_at=None):
-    record = {
+def site_record(job, versions, device_time, entries=None):
+    """A site check in a sync batch, filled at the phone's `device_time`."""
+    return {
         "type": "sheet",
         "client_uuid": str(uuid.uuid4()),
         "data": {
             "job": job.pk,
             "version": versions["site"].pk,
-            "entries": PASSING["site"],
+            "entries": entries or PASSING["site"],
             "device_time": device_time.isoformat(),
         },
     }
+
+
+def send_site_sheet(job, versions, operator, device_time, sent_at=None):
+    record = site_record(job, versions, device_time)
     body = {"records": [record]} if sent_at is None else {"records": [record], "sent_at": sent_at}
     before = timezone.now()
     response = client_for(operator).post(reverse("sync"), body, format="json")
@@ -140,16 +145,7 @@ def test_in_one_batch_an_older_pass_leaves_a_newer_failure_holding(
     from compliance.models import Hold, JobState
 
     def site(entries, made):
-        return {
-            "type": "sheet",
-            "client_uuid": str(uuid.uuid4()),
-            "data": {
-                "job": job.pk,
-                "version": simple_checklists["site"].pk,
-                "entries": entries,
-                "device_time": made.isoformat(),
-            },
-        }
+        return site_record(job, simple_checklists, made, entries)
 
     now = timezone.now()
     day = timezone.localdate(now - dt.timedelta(hours=2))
@@ -182,16 +178,8 @@ def test_a_hold_says_when_its_check_was_made_by_the_server_s_clock(
     """A hold's opening is when its check reached the server; `found_at` is when the check was
     made, the phone's time set right by its batch's clock (five hours fast here)."""
     failed = {**PASSING["site"], "zone_closed": {"value": "fail"}}
-    record = {
-        "type": "sheet",
-        "client_uuid": str(uuid.uuid4()),
-        "data": {
-            "job": job.pk,
-            "version": simple_checklists["site"].pk,
-            "entries": failed,
-            "device_time": (timezone.now() + SKEW - dt.timedelta(minutes=30)).isoformat(),
-        },
-    }
+    made = timezone.now() + SKEW - dt.timedelta(minutes=30)
+    record = site_record(job, simple_checklists, made, failed)
     phone_now = timezone.now() + SKEW
     client = client_for(operator)
     body = {"records": [record], "sent_at": phone_now.isoformat()}
