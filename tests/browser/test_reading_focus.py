@@ -125,15 +125,18 @@ def test_every_default_reading_typed_at_a_persons_pace_is_recorded_whole(live_se
     assert not Hold.objects.filter(job=job).exists()
 
 
-def test_a_reading_below_its_limit_moves_to_stop_work_once_committed(live_server, demo, page):
+def open_anchor_sheet(page, base, job):
+    """The operator's pre-use check of anchor R1, open on the phone."""
     from compliance.models import Anchor
 
-    job = demo
-    base = live_server.url
     anchor_r1 = f"anchor-pre-use@anchor:{Anchor.objects.get(site=job.site, label='R1').pk}"
     sign_in_as(page, base, "tomas")
     page.goto(base + f"/#/job/{job.id}/sheet/{anchor_r1}")
     page.wait_for_selector("[data-testid=items]")
+
+
+def test_a_reading_below_its_limit_moves_to_stop_work_once_committed(live_server, demo, page):
+    open_anchor_sheet(page, live_server.url, demo)
     item = "[data-testid=item-tag_capacity]"
     field = page.locator("[data-testid=reading-tag_capacity]")
 
@@ -180,14 +183,7 @@ def test_a_failed_tick_stays_under_the_finger_keeps_the_focus_and_is_announced(
     took its place under the finger, the keyboard focus fell to the page and nothing was
     announced. It now stays while it is being answered, says 'Stop work' beside its buttons
     (an alert), and takes its place in the stop-work block once the person goes on."""
-    from compliance.models import Anchor
-
-    job = demo
-    base = live_server.url
-    anchor_r1 = f"anchor-pre-use@anchor:{Anchor.objects.get(site=job.site, label='R1').pk}"
-    sign_in_as(page, base, "tomas")
-    page.goto(base + f"/#/job/{job.id}/sheet/{anchor_r1}")
-    page.wait_for_selector("[data-testid=items]")
+    open_anchor_sheet(page, live_server.url, demo)
 
     # A tap.
     fixings = "[data-testid=item-fixings_tight]"
