@@ -181,6 +181,14 @@ def sign_in_as(page, base: str, username: str) -> None:
     page.click("button[type=submit]")
     page.wait_for_selector("[data-testid=jobs] a")
     page.wait_for_selector("[data-testid=strip][data-synced=yes][data-syncing=no]")
+    wait_offline_ready(page)
+
+
+def wait_offline_ready(page) -> None:
+    """Wait until the service worker controls the page: it takes control only once its install
+    has kept the app's files, so a reload without signal is served from the phone from then on.
+    Under CI load a test went offline and reloaded before that, and the reload found no page."""
+    page.wait_for_function("() => navigator.serviceWorker.controller !== null")
 
 
 def fail_anchor_check(job, label: str = "R1") -> None:

@@ -5,7 +5,14 @@ import json
 
 import pytest
 
-from tests.browser.conftest import PASSWORD, fill_passing_except, off_loop, png_bytes, shot
+from tests.browser.conftest import (
+    PASSWORD,
+    fill_passing_except,
+    off_loop,
+    png_bytes,
+    shot,
+    wait_offline_ready,
+)
 
 pytestmark = pytest.mark.browser
 
@@ -32,6 +39,7 @@ def sign_in(page, base: str, screenshot: bool = False) -> None:
     page.wait_for_selector("[data-testid=jobs] a")
     # The first sync after sign-in keeps the day's checklists and ratings on the phone.
     page.wait_for_selector("[data-testid=strip][data-synced=yes][data-syncing=no]")
+    wait_offline_ready(page)
 
 
 def wait_waiting(page, count: int) -> None:
