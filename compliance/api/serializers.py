@@ -470,12 +470,18 @@ class JobDetailSerializer(JobSerializer):
         help_text="Whether every pre-start check was ever done and passing (cleared or working):"
         " a day that never was is not signed as safe.",
     )
+    ready_when_closed = serializers.BooleanField(
+        read_only=True,
+        help_text="Whether every pre-start check was done and passing in the last state the job"
+        " held before it closed (or holds now while open): a day left behind by a changed figure"
+        " and closed without work is not signed as safe.",
+    )
 
     class Meta(JobSerializer.Meta):
         fields = [
             *JobSerializer.Meta.fields,
             *("drops", "requirements", "blockers", "holds", "cautions", "work_started"),
-            "was_ready",
+            *("was_ready", "ready_when_closed"),
         ]
 
 

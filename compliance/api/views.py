@@ -42,7 +42,14 @@ from compliance.api.throttles import LOGIN_THROTTLES, PasswordReentryThrottle
 from compliance.api.tokens import issue_token, revoke_tokens, token_lifetime
 from compliance.engineering import CALCULATIONS, CalcInputError, run
 from compliance.jobs import services
-from compliance.jobs.selectors import job_readiness, jobs_for, plan_conflicts, reached
+from compliance.jobs.selectors import (
+    READY_STATES,
+    job_readiness,
+    jobs_for,
+    plan_conflicts,
+    ready_when_closed,
+    states_in_order,
+)
 from compliance.jobs.sync import MAX_BATCH, apply_batch, printable
 from compliance.models import (
     Anchor,
@@ -386,7 +393,7 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
 
 def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
     readiness = job_readiness(job)
-    states = reached(job, JobState.CLEARED, JobState.WORKING)
+    states = states_in_order(job)
     return {
         **s.JobSerializer(job, context=context).data,
         "drops": s.DropSerializer(readiness.drops, many=True, context=context).data,
@@ -397,7 +404,8 @@ def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
         "holds": s.HoldSerializer(readiness.holds, many=True).data,
         "cautions": job.site.profile.cautions,
         "work_started": JobState.WORKING in states,
-        "was_ready": bool(states),
+        "was_ready": any(state in READY_STATES for state in states),
+        "ready_when_closed": ready_when_closed(states),
     }
 
 

@@ -1,6 +1,6 @@
 """Reads that are more than a one-liner: what a job needs, what blocks it, list querysets."""
 
-from collections.abc import Iterable
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 from django.db.models import Exists, OuterRef, Prefetch, QuerySet, prefetch_related_objects
@@ -19,6 +19,7 @@ from compliance.models import (
     Equipment,
     Hold,
     Job,
+    JobState,
     JobTransition,
     User,
 )
@@ -614,6 +615,23 @@ def reached(job: Job, *states: str) -> set[str]:
         .values_list("to_state", flat=True)
         .distinct()
     )
+
+
+READY_STATES = (JobState.CLEARED, JobState.WORKING)
+
+
+def states_in_order(job: Job) -> list[str]:
+    """Every state the job moved into, in order, in one query (a job starts planned)."""
+    return list(JobTransition.objects.filter(job=job).values_list("to_state", flat=True))
+
+
+def ready_when_closed(states: Sequence[str]) -> bool:
+    """Whether every pre-start check was done and passing (cleared or working) in the last
+    state the job held before it closed, or holds now while it is open. A job ready in the
+    morning, then left behind by a changed figure and closed without work, was ready once but
+    not when it closed."""
+    held = [state for state in states if state != JobState.CLOSED]
+    return bool(held) and held[-1] in READY_STATES
 
 
 def ever_reached(job: Job, *states: str) -> bool:

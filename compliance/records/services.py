@@ -27,7 +27,7 @@ from checklists.models import CheckSheet, ItemEntry, Photo
 from compliance.celery import app as celery_app
 from compliance.errors import InvalidTransition, NotPermitted
 from compliance.jobs.holds import SIGNED_HELD
-from compliance.jobs.selectors import drops_of
+from compliance.jobs.selectors import READY_STATES, drops_of, ready_when_closed
 from compliance.jobs.services import close_job
 from compliance.models import (
     AnchorCertification,
@@ -433,6 +433,11 @@ NEVER_READY_NOT_SAFE = (
     f" cannot be signed as “{MEANINGS['reviewed_safe']}” Choose"
     f" “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
 )
+NOT_READY_AT_CLOSE_NOT_SAFE = (
+    "The pre-start checks of this job were no longer complete when it closed (it had gone back"
+    f" from ready to start), so it cannot be signed as “{MEANINGS['reviewed_safe']}” Choose"
+    f" “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
+)
 OPEN_HOLDS_NOT_SAFE = (
     f"This day has open holds, so it cannot be signed as “{MEANINGS['reviewed_safe']}” Choose"
     f" “{MEANINGS['reviewed_stopped']}”, or “{MEANINGS['reviewed_exceptions']}” and say why in"
@@ -447,6 +452,11 @@ NO_HOLD_NEVER_READY = (
     f"No hold is open on this day, so it cannot be signed as “{MEANINGS['reviewed_stopped']}”"
     " and its pre-start checks were never complete (it was never ready to start): choose"
     f" “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
+)
+NO_HOLD_NOT_READY_AT_CLOSE = (
+    f"No hold is open on this day, so it cannot be signed as “{MEANINGS['reviewed_stopped']}”"
+    " and its pre-start checks were no longer complete when it closed (it had gone back from"
+    f" ready to start): choose “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
 )
 
 
@@ -484,13 +494,23 @@ def sign_daily_record(
         content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(OPEN_HOLDS_NOT_SAFE)
-        ready = {JobState.CLEARED, JobState.WORKING}
-        was_ready = any(t["to"] in ready for t in content["transitions"])
+        states = [t["to"] for t in content["transitions"]]
+        was_ready = any(state in READY_STATES for state in states)
+        ready_at_close = ready_when_closed(states)
         if meaning == "reviewed_stopped" and not open_holds_of(content):
-            # Never ready, "safe" is refused too: the refusal does not send the signer there.
-            raise InvalidTransition(NO_HOLD_NOT_STOPPED if was_ready else NO_HOLD_NEVER_READY)
-        if meaning == "reviewed_safe" and not was_ready:
-            raise InvalidTransition(NEVER_READY_NOT_SAFE)
+            # Not ready when it closed, "safe" is refused too: the refusal does not send the
+            # signer there.
+            raise InvalidTransition(
+                NO_HOLD_NOT_STOPPED
+                if ready_at_close
+                else NO_HOLD_NOT_READY_AT_CLOSE
+                if was_ready
+                else NO_HOLD_NEVER_READY
+            )
+        if meaning == "reviewed_safe" and not ready_at_close:
+            raise InvalidTransition(
+                NOT_READY_AT_CLOSE_NOT_SAFE if was_ready else NEVER_READY_NOT_SAFE
+            )
         head = _locked_head(job.organisation_id, job.site_id)
         sequence, previous = head.sequence + 1, head.seal
         signed_at = timezone.now()

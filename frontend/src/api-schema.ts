@@ -1117,6 +1117,7 @@ export interface components {
             readonly cautions: string;
             readonly work_started: boolean;
             readonly was_ready: boolean;
+            readonly ready_when_closed: boolean;
         };
         JobRequest: {
             site: number;

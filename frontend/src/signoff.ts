@@ -8,21 +8,34 @@ export const MEANINGS: { code: Meaning; text: string }[] = [
   { code: "reviewed_exceptions", text: "Reviewed with exceptions: see the remarks in this record." },
 ];
 
+/** Whether the day's checks were complete when the job closed ("ready"), complete once and then
+ * left behind ("lost"), or never complete ("never"): only a ready day is signed as safe. */
+export type Readiness = "ready" | "lost" | "never";
+
+export function readinessOf(job: { was_ready: boolean; ready_when_closed?: boolean }): Readiness {
+  // A copy kept on the phone from before the server said so reads as it was: the server refuses.
+  return (job.ready_when_closed ?? job.was_ready) ? "ready" : job.was_ready ? "lost" : "never";
+}
+
 /** Why a meaning cannot be given to this day, in the page's words, or "" when it can: the server
  * refuses "safe to proceed" while a hold is open, and "work was stopped" with none open. */
 export function meaningUnavailable(
   code: Meaning,
   holds: readonly { cleared_at: string | null }[],
-  wasReady = true,
+  ready: Readiness = "ready",
 ): string {
   const open = holds.some((h) => !h.cleared_at);
   if (code === "reviewed_safe" && open) return "Not available: the record has open holds.";
-  if (code === "reviewed_safe" && !wasReady)
+  if (code === "reviewed_safe" && ready === "never")
     return "Not available: the pre-start checks were never complete (the job was never ready to start). Choose “Reviewed with exceptions” and say why in the remarks.";
+  if (code === "reviewed_safe" && ready === "lost")
+    return "Not available: the pre-start checks were no longer complete when the job closed (it had gone back from ready to start). Choose “Reviewed with exceptions” and say why in the remarks.";
   if (code !== "reviewed_stopped" || open) return "";
   return holds.length
     ? "Not available: the day's holds were cleared. Choose “Reviewed with exceptions” and say in the remarks what stopped work."
-    : "Not available: no stop-work hold this day.";
+    : ready === "ready"
+      ? "Not available: no stop-work hold this day."
+      : "Not available: no stop-work hold this day. Choose “Reviewed with exceptions” and say why in the remarks.";
 }
 
 export const STATEMENT =

@@ -3,7 +3,7 @@ import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { ApiError } from "../src/api";
 import { emptyDraft, isEmptyDraft } from "../src/sheet";
-import { canSign, MEANINGS, meaningUnavailable, sealShort } from "../src/signoff";
+import { canSign, MEANINGS, meaningUnavailable, readinessOf, sealShort } from "../src/signoff";
 import type { User } from "../src/types";
 
 describe("meanings of the signature", () => {
@@ -31,9 +31,22 @@ describe("meaningUnavailable", () => {
 
   it("does not offer 'safe' for a day whose checks were never complete", () => {
     // The server refused it (never ready to start) only after the password was typed.
-    const never = MEANINGS.filter((m) => !meaningUnavailable(m.code, [], false)).map((m) => m.code);
+    const never = MEANINGS.filter((m) => !meaningUnavailable(m.code, [], "never")).map((m) => m.code);
     expect(never).toEqual(["reviewed_exceptions"]);
-    expect(meaningUnavailable("reviewed_safe", [], false)).toMatch(/^Not available: the pre-start checks were never complete/);
+    expect(meaningUnavailable("reviewed_safe", [], "never")).toMatch(/^Not available: the pre-start checks were never complete/);
+  });
+
+  it("does not offer 'safe' for a day ready once and left behind before it closed", () => {
+    // Cleared in the morning, a hose re-rated below what its check read, closed without work:
+    // the page offered "safe" because the day had been ready once.
+    const lost = MEANINGS.filter((m) => !meaningUnavailable(m.code, [], "lost")).map((m) => m.code);
+    expect(lost).toEqual(["reviewed_exceptions"]);
+    expect(meaningUnavailable("reviewed_safe", [], "lost")).toMatch(
+      /^Not available: the pre-start checks were no longer complete when the job closed/,
+    );
+    expect(readinessOf({ was_ready: true, ready_when_closed: false })).toBe("lost");
+    expect(readinessOf({ was_ready: false, ready_when_closed: false })).toBe("never");
+    expect(readinessOf({ was_ready: true, ready_when_closed: true })).toBe("ready");
   });
 
   it("says why in the page's own words", () => {

@@ -482,3 +482,93 @@ def test_a_day_whose_holds_were_all_cleared_is_not_signed_as_work_stopped(
 
     assert response.status_code == 409, response.json()
     assert not DailyRecord.objects.filter(job=job).exists()
+
+
+def _ready_then_left_behind(job, versions, operator, supervisor):
+    """Every check passed (cleared), then the hose was re-rated below what its check read, and
+    the job was closed without work: it was ready once, but not when it closed."""
+    from compliance.jobs.services import close_job
+    from compliance.models import JobState
+
+    fill_all(job, versions, operator)
+    hose = job.drops.get().hose
+    with clock.replaying(job.date):
+        response = client_for(supervisor).patch(
+            reverse("equipment-detail", args=[hose.pk]),
+            {"ratings": {**hose.ratings, "rating_kpa": 800.0}},
+            format="json",
+        )
+        assert response.status_code == 200, response.json()
+        job.refresh_from_db()
+        assert job.state == JobState.PLANNED
+        close_job(job=job, by=supervisor, reason="Hose re-rated; no time to check it again.")
+    job.refresh_from_db()
+    return job
+
+
+def test_a_day_ready_then_left_behind_before_it_closed_is_not_signed_safe(
+    job, simple_checklists, operator, supervisor, credential
+):
+    """A job cleared in the morning, then left behind by a re-rated hose and closed without
+    work, was signed "the pre-start checks were complete and work was safe to proceed": it had
+    been ready once, and that was all the sign-off asked."""
+    job = _ready_then_left_behind(job, simple_checklists, operator, supervisor)
+    client = client_for(supervisor)
+
+    detail = client.get(reverse("job-detail", args=[job.pk])).json()
+    assert (detail["was_ready"], detail["ready_when_closed"]) == (True, False)
+    response = client.post(
+        reverse("job-sign", args=[job.pk]),
+        {"password": PASSWORD, "meaning": "reviewed_safe"},
+        format="json",
+    )
+
+    assert response.status_code == 409, response.json()
+    assert response.json()["detail"] == (
+        "The pre-start checks of this job were no longer complete when it closed (it had gone"
+        " back from ready to start), so it cannot be signed as"
+        f" “{MEANINGS['reviewed_safe']}” Choose “{MEANINGS['reviewed_exceptions']}” and say why"
+        " in the remarks."
+    )
+    assert not DailyRecord.objects.filter(job=job).exists()
+
+
+def test_a_day_ready_then_left_behind_refused_as_stopped_is_sent_to_exceptions_only(
+    job, simple_checklists, operator, supervisor, credential
+):
+    job = _ready_then_left_behind(job, simple_checklists, operator, supervisor)
+
+    with pytest.raises(InvalidTransition) as refused:
+        sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_stopped")
+
+    detail = str(refused.value)
+    assert detail.startswith("No hold is open on this day")
+    assert "no longer complete when it closed" in detail
+    assert f"“{MEANINGS['reviewed_safe']}”" not in detail
+    assert f"“{MEANINGS['reviewed_exceptions']}”" in detail
+    record = sign_daily_record(
+        job=job,
+        by=supervisor,
+        password=PASSWORD,
+        meaning="reviewed_exceptions",
+        remarks="Hose re-rated at 09:10; the day ended before it was checked again.",
+    )
+    assert record.pk
+
+
+def test_a_day_cleared_and_closed_without_work_is_still_signed_safe(
+    job, simple_checklists, operator, supervisor, credential
+):
+    """Ready to start, then rain: the checks were complete, so "safe" is true of the day."""
+    from compliance.jobs.services import close_job
+
+    fill_all(job, simple_checklists, operator)
+    job.refresh_from_db()
+    with clock.replaying(job.date):
+        close_job(job=job, by=supervisor, reason="Rain from nine; no drop made.")
+    detail = client_for(supervisor).get(reverse("job-detail", args=[job.pk])).json()
+    assert (detail["was_ready"], detail["ready_when_closed"]) == (True, True)
+
+    record = sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_safe")
+
+    assert record.pk
