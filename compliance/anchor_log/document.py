@@ -3,6 +3,7 @@
 import json
 from typing import Any
 
+from django.conf import settings
 from django.utils import timezone
 
 from compliance.anchor_log.pdf import CAUTION, FORMAT, render
@@ -62,6 +63,7 @@ def build_document(site: Site, by: User, anchor: Anchor | None = None) -> dict[s
         "anchors": plan,
         "entries": [{"seal": e.seal, "entry": json.loads(e.canonical_json)} for e in entries],
         "generated_at": utc(timezone.now()),
+        "time_zone": settings.TIME_ZONE,
         "generated_by": {
             "name": by.display_name,
             "role": by.get_role_display(),

@@ -2,7 +2,9 @@
 verifier can draw it again and compare the pages with a signed copy."""
 
 import io
+from collections.abc import Callable
 from typing import Any
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from pypdf import PdfReader, PdfWriter
 from reportlab.graphics.shapes import Circle, Drawing, Polygon, Rect, String
@@ -11,10 +13,23 @@ from reportlab.lib.pagesizes import A4
 from reportlab.lib.units import mm
 from reportlab.platypus import SimpleDocTemplate, Spacer
 
-from compliance.records.pdf import ATTACHMENT_NAME, SEAL_LABEL, _NumberedCanvas, _p, _styles, _table
+from compliance.records.pdf import (
+    ATTACHMENT_NAME,
+    SEAL_LABEL,
+    _moment,
+    _NumberedCanvas,
+    _p,
+    _styles,
+    _table,
+)
 from compliance.records.sealing import canonical_bytes
 
-FORMAT = "parapet.anchor-log-book/1"
+FIRST_FORMAT = "parapet.anchor-log-book/1"
+"""Log books signed in this format print their times as stored (UTC, to the microsecond): they
+are drawn so still, as the verifier draws a log book again to compare its pages."""
+FORMAT = "parapet.anchor-log-book/2"
+"""Prints each time in the document's `time_zone` to the minute, with the zone's name."""
+FORMATS = (FIRST_FORMAT, FORMAT)
 CAUTION = (
     "This log book records inspections, tests, repairs and checks of the roof anchors. "
     "Certification of anchors is the work of a licensed professional engineer under the local "
@@ -95,13 +110,33 @@ def roof_plan(
     return drawing
 
 
+def _clock(document: dict[str, Any]) -> Callable[[Any], str]:
+    """How the document's stored UTC times print: as stored in the first format, else in its
+    zone to the minute ("2026-12-05 23:29 (Pacific/Auckland)")."""
+    if document.get("format") == FIRST_FORMAT:
+        return str
+    try:
+        zone = ZoneInfo(str(document.get("time_zone") or "UTC"))
+    except (ZoneInfoNotFoundError, ValueError):
+        zone = ZoneInfo("UTC")
+
+    def when(stamp: Any) -> str:
+        moment = _moment(stamp) if isinstance(stamp, str) else None
+        if moment is None:
+            return str(stamp)
+        return f"{moment.astimezone(zone):%Y-%m-%d %H:%M} ({zone})"
+
+    return when
+
+
 def render(document: dict[str, Any], seal: str) -> bytes:
     s = _styles()
+    when = _clock(document)
     story: list[Any] = [
         _p(f"Anchor log book — {document['site']['name']}", s["title"]),
         _p(
             f"{document['site']['address']} — {document['scope']} — "
-            f"generated {document['generated_at']} by {document['generated_by']['name']} "
+            f"generated {when(document['generated_at'])} by {document['generated_by']['name']} "
             f"({document['generated_by']['role']})",
             s["body"],
         ),
@@ -134,7 +169,8 @@ def render(document: dict[str, Any], seal: str) -> bytes:
                 ),
                 _p(e["details"], s["small"]),
                 _p(
-                    f"{sig['name']} ({sig['role']}), {sig['signed_at']}; seal {item['seal'][:16]}…",
+                    f"{sig['name']} ({sig['role']}), {when(sig['signed_at'])};"
+                    f" seal {item['seal'][:16]}…",
                     s["small"],
                 ),
             ]

@@ -10,6 +10,7 @@ from typing import Any
 from django.db import IntegrityError, transaction
 from django.utils.crypto import constant_time_compare, salted_hmac
 
+from compliance.anchor_log import pdf as log_book_pdf
 from compliance.anchor_log.services import verify_log_chain
 from compliance.models import (
     AnchorLogEntry,
@@ -27,7 +28,7 @@ from compliance.records.services import (
     verify_chain,
 )
 from compliance.records.signatures import verify_seal_signature
-from compliance.records.verifier import LOG_BOOK_FORMAT, Report, Stored, TrustList
+from compliance.records.verifier import Report, Stored, TrustList
 from compliance.records.verifier import verify_export as verify_export_bytes
 from compliance.records.verifier import verify_pdf as verify_pdf_bytes
 
@@ -249,7 +250,7 @@ def check_log_book(report: Report, document: dict[str, Any]) -> None:
 
 
 def _database_checks(report: Report, document: dict[str, Any]) -> tuple[TrustList, str] | None:
-    if document.get("format") == LOG_BOOK_FORMAT:
+    if document.get("format") in log_book_pdf.FORMATS:
         check_log_book(report, document)
         organisation_id = _registered_organisation(report)
     else:

@@ -405,12 +405,11 @@ def _renderer(document: dict[str, Any]) -> Renderer | None:
     if fmt in RECORD_FORMATS:
         # Drawn only to compare pages with: the attachment is the signed file's own.
         return lambda doc, seal, photos: record_pdf.render(doc, seal, photos, attach=False)
-    if fmt == LOG_BOOK_FORMAT:
+    if fmt in log_book_pdf.FORMATS:
         return lambda doc, seal, photos: log_book_pdf.render(doc, seal)
     return None
 
 
-LOG_BOOK_FORMAT = "parapet.anchor-log-book/1"
 RECORD_FORMATS = {
     "parapet.daily-record/2",
     "parapet.daily-record/3",

@@ -361,6 +361,35 @@ def test_the_log_book_pdf_carries_every_entry_and_verifies(building, simple_chec
     assert verify_pdf(pdf).first_failure.name == "entries_stored"
 
 
+def test_the_log_book_prints_its_times_in_the_sites_zone_not_as_stored(building, settings):
+    """The owner's log book printed "generated 2026-12-05T10:29:49.729967Z" and each signature
+    at such a time: the stored form, in UTC, to the microsecond. The pages now print the time
+    in the deployment's zone to the minute, and name the zone; the sealed document keeps the
+    stored time and the zone it printed in."""
+    import datetime as dt
+    from zoneinfo import ZoneInfo
+
+    settings.TIME_ZONE = "Pacific/Auckland"
+    b = building
+    sign(b)
+    pdf, _ = signed_anchor_log(b["site"], b["manager"])
+    reader = PdfReader(io.BytesIO(pdf))
+    text = " ".join(" ".join(page.extract_text() for page in reader.pages).split())
+    document = json.loads(reader.attachments["daily-record.json"][0])
+
+    assert document["format"] == "parapet.anchor-log-book/2"
+    assert document["time_zone"] == "Pacific/Auckland"
+    zone = ZoneInfo("Pacific/Auckland")
+    for stamp in (
+        document["generated_at"],
+        document["entries"][0]["entry"]["signature"]["signed_at"],
+    ):
+        moment = dt.datetime.fromisoformat(stamp).astimezone(zone)
+        assert f"{moment:%Y-%m-%d %H:%M} (Pacific/Auckland)" in text
+        assert stamp not in text
+    assert verify_pdf(pdf).ok
+
+
 def test_one_anchors_log_book(building):
     b = building
     sign(b)

@@ -8,7 +8,8 @@ fail its verification. These tests pin the page prints of a fixed document of ea
 change that breaks them must instead become a new record format, drawn by a new layout, with
 the old formats drawn exactly as before.
 
-`layouts/documents.json` holds the fixed documents: a day's record with a failed item, an open
+`layouts/documents.json` holds the fixed documents (and a site's anchor log book, whose pages
+the verifier checks in the same way): a day's record with a failed item, an open
 and a cleared hold, a clock note, a photo (drawn as its empty box), series, calculations and
 a drop plan, a series of 300 readings whose table runs over pages and a remark split over
 rows, drawn in each record format (the formats differ only in how they are drawn); and an
@@ -74,6 +75,30 @@ PINNED = {
 def prints_digest(pdf: bytes) -> str:
     prints = page_prints(PdfReader(io.BytesIO(pdf)))
     return hashlib.sha256(json.dumps(prints, sort_keys=True).encode()).hexdigest()
+
+
+LOG_BOOKS = {
+    "log-book-1": FIXTURES["log_book"],
+    # /2 prints its times in the document's zone.
+    "log-book-2": {
+        **FIXTURES["log_book"],
+        "format": "parapet.anchor-log-book/2",
+        "time_zone": "Europe/Lisbon",
+    },
+}
+LOG_BOOK_PINNED = {
+    "log-book-1": "187c9e0b742fe7a0b2d67c832ceeef46d94d35cc1da46bf1f4c06baf12cedf90",
+    "log-book-2": "953917ed71b1cdc53a33df30b82be5c13e48e66148de3d8d3e30d757fb1c5313",
+}
+
+
+@pytest.mark.parametrize("name", sorted(LOG_BOOK_PINNED))
+def test_the_pages_of_each_log_book_format_are_drawn_as_they_were_signed(name):
+    from compliance.anchor_log.pdf import render as render_log_book
+
+    pdf = render_log_book(LOG_BOOKS[name], FIXTURES["seal"])
+
+    assert prints_digest(pdf) == LOG_BOOK_PINNED[name]
 
 
 @pytest.mark.parametrize("name", sorted(PINNED))
