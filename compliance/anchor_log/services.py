@@ -31,6 +31,7 @@ from compliance.models import (
 )
 from compliance.records.sealing import canonical_bytes, check_links, seal_of, utc
 from compliance.records.signing import active_credential, sign_seal
+from compliance.registers.selectors import INSPECTION_KINDS
 from compliance.registers.visibility import can_work_at, owns_site
 
 FORMAT = "parapet.anchor-log-entry/1"
@@ -192,7 +193,10 @@ def record_entry(
         raise InvalidTransition("Work cannot be recorded for a future date.")
     credential = active_credential(by.organisation_id)
     with transaction.atomic():
-        moves_jobs = kind in (AnchorLogEntry.Kind.REMOVED, AnchorLogEntry.Kind.RETURNED)
+        stops = kind == AnchorLogEntry.Kind.REMOVED or (
+            kind in INSPECTION_KINDS and result == AnchorLogEntry.Result.FAIL
+        )
+        moves_jobs = stops or kind == AnchorLogEntry.Kind.RETURNED
         jobs = jobs_using(anchor) if moves_jobs else []  # locked before the chain: lock order
         entry = _create(
             anchor=anchor,
@@ -207,7 +211,7 @@ def record_entry(
             meaning=MEANING,
             method="user id and password re-entered at the moment of signing",
         )
-        if kind == AnchorLogEntry.Kind.REMOVED:
+        if stops:
             hold_for_removed_anchor(jobs=jobs, anchor=anchor, entry=entry, by=by)
         elif kind == AnchorLogEntry.Kind.RETURNED:
             clear_for_returned_anchor(jobs=jobs, anchor=anchor, entry=entry, by=by)

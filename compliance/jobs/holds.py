@@ -249,27 +249,35 @@ def clear_register_holds(*, job: Job, by: User) -> None:
 def hold_for_removed_anchor(
     *, jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User
 ) -> None:
-    """The owner's stop work: each job using the anchor is held until the anchor returns."""
+    """The owner's stop work: each job using the anchor is held until the anchor returns. A
+    failed periodic inspection or load test takes the anchor out of service as a removal does
+    (compliance.registers.selectors.anchor_status)."""
+    if entry.kind == AnchorLogEntry.Kind.REMOVED:
+        what, done = "was removed from service on", "removed from service"
+    else:
+        what = f"failed its {entry.get_kind_display().lower()} on"
+        done = f"failed its {entry.get_kind_display().lower()}"
     for job in jobs:
         Hold.objects.create(
             job=job,
             requirement=status_requirement(anchor),
             item_key="in_service",
             log_entry=entry,
-            reason=f"Anchor {anchor.label} was removed from service on "
-            f"{entry.performed_on:%Y-%m-%d}: {entry.details}",
+            reason=f"Anchor {anchor.label} {what} {entry.performed_on:%Y-%m-%d}: {entry.details}",
         )
         if job.state != JobState.HELD:
-            transition(
-                job, JobState.HELD, by, f"Stop work: anchor {anchor.label} removed from service."
-            )
+            transition(job, JobState.HELD, by, f"Stop work: anchor {anchor.label} {done}.")
 
 
 def clear_for_returned_anchor(
     *, jobs: list[Job], anchor: Anchor, entry: AnchorLogEntry, by: User
 ) -> None:
-    """The anchor's return clears the holds its removal opened; readiness is read again."""
-    for hold in Hold.objects.filter(requirement=status_requirement(anchor), clearance__isnull=True):
+    """The anchor's return clears the holds its removal opened on the open jobs (`jobs`);
+    readiness is read again. A closed day keeps its hold as it was: a signed record showed it
+    open, and its rows must still read as they were sealed."""
+    for hold in Hold.objects.filter(
+        job__in=jobs, requirement=status_requirement(anchor), clearance__isnull=True
+    ):
         HoldClearance.objects.create(hold=hold, log_entry=entry, by=by)
     for job in jobs:
         refresh_readiness(job=job, by=by)

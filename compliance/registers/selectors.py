@@ -13,6 +13,11 @@ from compliance.models import Anchor, AnchorLogEntry, Equipment, RegisterChange
 INSPECTION_KINDS = (AnchorLogEntry.Kind.PERIODIC_INSPECTION, AnchorLogEntry.Kind.LOAD_TEST)
 
 
+def failed_test(entry: AnchorLogEntry) -> bool:
+    """A periodic inspection or load test signed as failed: it stops work on the anchor."""
+    return entry.kind in INSPECTION_KINDS and entry.result == AnchorLogEntry.Result.FAIL
+
+
 def status_requirement(anchor: Anchor) -> str:
     return f"anchor-status@anchor:{anchor.pk}"
 
@@ -30,12 +35,17 @@ class AnchorStatus:
 
 
 def anchor_status(anchor: Anchor, interval_days: int) -> AnchorStatus:
-    """From the anchor's prefetched log and certifications."""
+    """From the anchor's prefetched log and certifications. A failed periodic inspection or
+    load test takes the anchor out of service as a removal does: only the owner's signed return
+    to service puts it back (a later passing test alone does not)."""
     entries = sorted(anchor.log.all(), key=lambda e: e.sequence)
     in_service, removed_on, reason = True, None, ""
     for entry in entries:
         if entry.kind == AnchorLogEntry.Kind.REMOVED:
             in_service, removed_on, reason = False, entry.performed_on, entry.details
+        elif failed_test(entry):
+            in_service, removed_on = False, entry.performed_on
+            reason = f"failed its {entry.get_kind_display().lower()}: {entry.details}"
         elif entry.kind == AnchorLogEntry.Kind.RETURNED:
             in_service, removed_on, reason = True, None, ""
     dates = [c.certified_on for c in anchor.certifications.all()]

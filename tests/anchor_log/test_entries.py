@@ -210,6 +210,78 @@ def test_removing_an_anchor_from_service_holds_jobs_that_use_it(building, simple
     assert hold.clearance.log_entry.kind == "returned_to_service"
 
 
+@pytest.mark.parametrize("kind", ["load_test", "periodic_inspection"])
+def test_an_anchor_failing_its_load_test_or_inspection_stops_work_on_it(
+    building, simple_checklists, kind
+):
+    """The owner signed a failed load test ("base plate cracked under the proof load"): it was
+    stored, and the crew went on working from the anchor, then signed the day safe. Only a
+    separate removal from service held anything."""
+    b = building
+    fill_all(b["job"], simple_checklists, b["operator"])
+    start_job(job=b["job"], by=b["operator"])
+    entry = sign(b, kind=kind, result="fail", details="Base plate cracked under the proof load.")
+
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.HELD
+    hold = b["job"].holds.get(log_entry=entry)
+    label = b["drop"].anchor.label
+    word = "load test" if kind == "load_test" else "periodic inspection"
+    assert hold.reason == (
+        f"Anchor {label} failed its {word} on {TODAY():%Y-%m-%d}:"
+        " Base plate cracked under the proof load."
+    )
+    # A new job on the anchor cannot start, and a crew's passing pre-use check clears nothing.
+    other, drop = later_job(b, days=0)
+    drop.anchor = b["drop"].anchor
+    drop.save()
+    fill_all(other, simple_checklists, b["operator"])
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=other, by=b["operator"])
+    assert "anchor_out_of_service" in [r.code for r in caught.value.reasons]
+    fill_all(b["job"], simple_checklists, b["operator"])
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.HELD
+    # The owner's return to service (after a repair and a passing test) clears it.
+    sign(b, kind="repair", details="New base plate fitted.")
+    sign(b, kind=kind, result="pass", details="Proof loaded after the repair; holds.")
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.HELD
+    sign(b, kind="returned_to_service", result="pass", details="Repaired and proof loaded.")
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.CLEARED
+
+
+def test_the_return_to_service_leaves_the_holds_of_closed_days_as_they_were_signed(
+    building, simple_checklists
+):
+    """The anchor's return cleared the hold of every job it had held, closed and signed days
+    included: the genuine record signed "work was stopped" then failed its verification (a
+    row behind it changed after sealing)."""
+    from compliance.jobs.services import close_job
+    from compliance.models import HoldClearance
+    from compliance.records.files import render_signed_pdf
+    from compliance.records.services import sign_daily_record
+
+    b = building
+    fill_all(b["job"], simple_checklists, b["operator"])
+    start_job(job=b["job"], by=b["operator"])
+    sign(b, kind="removed_from_service", details="Base cracked; do not use.")
+    b["job"].refresh_from_db()
+    close_job(job=b["job"], by=b["supervisor"], reason="Anchor removed; day ended.")
+    record = sign_daily_record(
+        job=b["job"], by=b["supervisor"], password=PASSWORD, meaning="reviewed_stopped"
+    )
+    pdf = render_signed_pdf(record)
+    assert verify_pdf(pdf).ok
+
+    sign(b, kind="returned_to_service", result="pass", details="New base, proof loaded.")
+
+    assert not HoldClearance.objects.filter(hold__job=b["job"]).exists()
+    report = verify_pdf(pdf)
+    assert report.ok, report.as_dict()
+
+
 def test_a_job_planning_an_out_of_service_anchor_cannot_start(building, simple_checklists):
     b = building
     sign(b, kind="removed_from_service", details="Corroded.")

@@ -130,6 +130,12 @@ function EntryForm({ data, onSigned }: { data: SiteData; onSigned: () => Promise
             ))}
           </div>
           <FieldErrors id="err-log-result" messages={errors.result} />
+          {result === "fail" && (
+            <p class="muted small" data-testid="log-fail-stops" role="note">
+              A failed {kind === "load_test" ? "load test" : "inspection"} takes this anchor out of service: every open job
+              using it stops work until you sign its return to service.
+            </p>
+          )}
         </fieldset>
       )}
       <div class="field">
