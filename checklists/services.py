@@ -28,6 +28,7 @@ from compliance import clock
 from compliance.anchor_log.services import HeldChains, log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
+from compliance.jobs.holds import reread_for_new_version
 from compliance.jobs.selectors import drop_serves, drops_of
 from compliance.jobs.services import apply_sheet_outcome
 from compliance.models import (
@@ -263,6 +264,7 @@ def publish_version(*, version: ChecklistVersion, by: User | None) -> ChecklistV
         version.published_at = timezone.now()
         version.published_by = by
         version.save()
+        reread_for_new_version(organisation_id=version.checklist.organisation_id, by=by)
     return version
 
 

@@ -167,6 +167,28 @@ def jobs_with_kit(equipment: Equipment) -> list[Job]:
     return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
 
 
+def jobs_under_profile(profile_id: int) -> list[Job]:
+    """Open jobs of today or later at sites under the profile; locked."""
+    return list(
+        Job.objects.select_for_update()
+        .filter(site__profile_id=profile_id, state__in=OPEN_STATES, date__gte=clock.today())
+        .order_by("pk")
+    )
+
+
+def reread_for_new_version(*, organisation_id: int | None, by: User | None) -> None:
+    """A checklist version just published leaves the checks filled against the one before
+    behind: each cleared job of today or later that may read it (the organisation's, or every
+    organisation's for a default checklist) is read again, and goes back to planned until they
+    are filled again. A job at work goes on: it started on the checks of the version then in
+    force, and the new version applies to its next check."""
+    jobs = Job.objects.filter(state=JobState.CLEARED, date__gte=clock.today())
+    if organisation_id is not None:
+        jobs = jobs.filter(organisation_id=organisation_id)
+    for job in jobs.select_for_update().order_by("pk"):
+        refresh_readiness(job=job, by=by)
+
+
 JUDGED_ON_CHANGED = "judged_on"
 """The item key of a hold opened because a figure a check read has changed since."""
 
@@ -183,7 +205,7 @@ STOPS_WORK = {
 of the hold it opens. An anchor removed from service is the owner's log book's own hold."""
 
 
-def reread_readiness(*, jobs: Iterable[Job], by: User) -> None:
+def reread_readiness(*, jobs: Iterable[Job], by: User | None) -> None:
     """A register change (a rating, a date, in or out of service, a certification) may leave a
     cleared job's checks behind, or put right what held or kept back another: each job's state
     is read again. A job at work that it leaves short stops (a safety line re-rated below its
@@ -198,7 +220,7 @@ def reread_readiness(*, jobs: Iterable[Job], by: User) -> None:
             refresh_readiness(job=job, by=by)
 
 
-def hold_for_register_change(*, job: Job, by: User) -> Job:
+def hold_for_register_change(*, job: Job, by: User | None) -> Job:
     """Open a hold for each thing the register now says stops the job (see STOPS_WORK) that no
     open hold already stands for."""
     requirements = job_requirements(job)
@@ -228,7 +250,7 @@ def hold_for_register_change(*, job: Job, by: User) -> Job:
     return transition(job, JobState.HELD, by, "Stop work: the register changed under the job.")
 
 
-def clear_register_holds(*, job: Job, by: User) -> None:
+def clear_register_holds(*, job: Job, by: User | None) -> None:
     """Clear the holds a register change opened once the register no longer says so (the line
     back in service, its inspection recorded, the anchor certified again)."""
     held = [

@@ -9,6 +9,7 @@ from django.conf import settings
 from django.db import transaction
 
 from checklists.services import ensure_published
+from compliance.jobs.holds import jobs_under_profile, reread_readiness
 from compliance.models import JurisdictionProfile, ProfileRevision
 
 
@@ -49,6 +50,9 @@ def load_profiles(directory: Path | None = None) -> list[JurisdictionProfile]:
                     cautions=data["cautions"],
                     content_hash=digest,
                 )
+                # A threshold a check was judged on may read otherwise now: the open jobs under
+                # the profile are read again (a robot at work on a limit since lowered stops).
+                reread_readiness(jobs=jobs_under_profile(profile.pk), by=None)
         profiles.append(profile)
     return profiles
 

@@ -193,3 +193,103 @@ def test_an_inspection_date_moved_past_while_the_robot_works_stops_work(
     job.refresh_from_db()
     assert job.state == JobState.HELD
     assert [h.item_key for h in job.holds.all()] == ["equipment_inspection_overdue"]
+
+
+def _publish_stricter_site_check(versions):
+    """A new version of the site check, published by the loader (the defaults change with a
+    release): its wind limit reads the same profile figure, with one more tick."""
+    from checklists.services import create_draft, publish_version
+    from tests.factories import reading, tick
+
+    items = [
+        tick("zone_closed"),
+        tick("gust_meter_read"),
+        reading("roof_wind", "m/s", {"max": {"profile": "max_wind_ms"}}),
+    ]
+    draft = create_draft(checklist=versions["site"].checklist, items=items, by=None)
+    return publish_version(version=draft, by=None)
+
+
+def test_a_checklist_published_after_the_checks_leaves_a_cleared_job_not_ready(
+    job, simple_checklists, operator
+):
+    """A stricter site check published at noon left the morning's job "cleared" beside its
+    "filled against an older version" blocker; closed without work, it was signed safe."""
+    fill_all(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+
+    _publish_stricter_site_check(simple_checklists)
+
+    job.refresh_from_db()
+    assert job.state == JobState.PLANNED
+    assert "sheet_old_version" in [r.code for r in job_blockers(job)]
+    assert job.transitions.last().reason == "A required check is no longer satisfied."
+
+
+def test_a_checklist_published_while_the_robot_works_does_not_stop_it(
+    job, simple_checklists, operator
+):
+    """Work started on the checks of the version in force; the new version applies to the
+    next check (a register change that leaves the rig unsafe is what stops work)."""
+    from compliance.jobs.services import start_job
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+
+    _publish_stricter_site_check(simple_checklists)
+
+    job.refresh_from_db()
+    assert job.state == JobState.WORKING
+    assert not job.holds.exists()
+
+
+def _reload_profile_with(job, tmp_path, **values):
+    """The profile as a release's fixture file, with some thresholds' values changed, loaded
+    as `manage.py load_defaults` loads it."""
+    import json
+
+    from compliance.registers.profiles import load_profiles
+
+    profile = job.site.profile
+    thresholds = {
+        key: {**t, "value": values.get(key, t["value"])} for key, t in profile.thresholds.items()
+    }
+    data = {
+        "key": profile.key,
+        "name": profile.name,
+        "thresholds": thresholds,
+        "cautions": profile.cautions,
+    }
+    (tmp_path / "profile.json").write_text(json.dumps(data))
+    load_profiles(tmp_path)
+
+
+def test_a_profile_reloaded_with_a_lower_wind_limit_stops_the_robot_at_work(
+    job, simple_checklists, operator, tmp_path
+):
+    """The wind limit lowered below the morning's 6.5 m/s reading by a profile reload: nothing
+    read the open jobs again, and the robot worked on (the next readiness check noticed)."""
+    from compliance.jobs.services import start_job
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+
+    _reload_profile_with(job, tmp_path, max_wind_ms=5.0)
+
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    hold = job.holds.get()
+    assert (hold.requirement, hold.item_key) == ("site-check@site", "judged_on")
+
+
+def test_a_profile_reloaded_with_a_lower_wind_limit_leaves_a_cleared_job_not_ready(
+    job, simple_checklists, operator, tmp_path
+):
+    fill_all(job, simple_checklists, operator)
+
+    _reload_profile_with(job, tmp_path, max_wind_ms=5.0)
+
+    job.refresh_from_db()
+    assert job.state == JobState.PLANNED
+    assert "sheet_judged_on_changed" in [r.code for r in job_blockers(job)]
