@@ -1,5 +1,6 @@
 """Reads that are more than a one-liner: what a job needs, what blocks it, list querysets."""
 
+import datetime as dt
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
@@ -24,7 +25,7 @@ from compliance.models import (
     User,
 )
 from compliance.registers.ratings import rating_labels
-from compliance.registers.selectors import anchor_status, withdrawal
+from compliance.registers.selectors import anchor_status, failed_test, withdrawal
 from compliance.registers.visibility import can_work_at
 
 
@@ -68,6 +69,9 @@ class Requirement:
     changed: tuple[str, object, object] | None = None
     """A figure the newest sheet was judged on that reads otherwise since, as (name, then,
     now): a safety line re-rated from 30 kN to 10 kN after its check passed."""
+    before_return: bool = False
+    """The newest sheet was made before its subject was last returned to service (a line
+    taken out for a cut sheath and put back): it checked the kit as it was then."""
 
     @property
     def outdated(self) -> bool:
@@ -97,7 +101,7 @@ class Requirement:
 def _status_entries() -> QuerySet[AnchorLogEntry]:
     return AnchorLogEntry.objects.filter(
         kind__in=["removed_from_service", "returned_to_service", "periodic_inspection", "load_test"]
-    ).only("id", "anchor_id", "kind", "result", "performed_on", "details", "sequence")
+    ).only("id", "anchor_id", "kind", "result", "performed_on", "details", "sequence", "signed_at")
 
 
 def drops_of(job: Job) -> list[Drop]:
@@ -149,6 +153,41 @@ def _serves(drop: Drop, subject: Subject) -> bool:
     return drop_serves(drop, subject.anchor, subject.equipment)
 
 
+def returned_at(subject: Subject) -> dt.datetime | None:
+    """When the subject was last returned to service: the kit's register says so, an anchor's
+    log book (its prefetched status entries) by the return's signing time."""
+    if subject.equipment is not None:
+        return subject.equipment.returned_at
+    if subject.anchor is not None:
+        return anchor_returned_at(subject.anchor.log.all())
+    return None
+
+
+def anchor_returned_at(entries: Iterable[AnchorLogEntry]) -> dt.datetime | None:
+    """When an anchor was last returned to service, from its log's status entries.
+
+    An entry takes effect when it was signed, or at the end of the day it names if that is
+    earlier (an owner writing up past work in the log book). A return never takes effect
+    before the removal or failed test it ends: a return dated back cannot reach over the checks
+    made before the damage was recorded."""
+    zone = timezone.get_current_timezone()
+
+    def effective(entry: AnchorLogEntry) -> dt.datetime:
+        day_end = dt.datetime.combine(
+            entry.performed_on + dt.timedelta(days=1), dt.time.min, tzinfo=zone
+        )
+        return min(entry.signed_at, day_end)
+
+    stopped: dt.datetime | None = None
+    moment: dt.datetime | None = None
+    for entry in sorted(entries, key=lambda e: e.sequence):
+        if entry.kind == AnchorLogEntry.Kind.REMOVED or failed_test(entry):
+            stopped = effective(entry)
+        elif entry.kind == AnchorLogEntry.Kind.RETURNED:
+            moment = effective(entry) if stopped is None else max(effective(entry), stopped)
+    return moment
+
+
 def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirement]:
     """Which sheets the job needs, and whether the newest sheet for each passes."""
     drops = drops_of(job) if drops is None else drops
@@ -165,9 +204,16 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                 for d in served
                 if sheet is not None and d.added_at is not None and d.added_at > sheet.received_at
             ]
+            returned = returned_at(subject)
+            before_return = (
+                sheet is not None
+                and not later
+                and returned is not None
+                and sheet.made_at < returned
+            )
             changed = (
                 changed_since(sheet.judged_on, job, subject.anchor, subject.equipment, served)
-                if sheet is not None and sheet.judged_on and not later
+                if sheet is not None and sheet.judged_on and not later and not before_return
                 else None
             )
             requirements.append(
@@ -180,12 +226,14 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     and sheet.version_id == version.pk
                     and sheet.blocking_failures == 0
                     and not later
+                    and not before_return
                     and changed is None,
                     latest_sheet_id=sheet.pk if sheet else None,
                     latest_verdict=sheet.verdict if sheet else None,
                     latest_version_id=sheet.version_id if sheet else None,
                     before_drop=later[0] if later else "",
                     changed=changed,
+                    before_return=before_return,
                 )
             )
     return requirements
@@ -365,6 +413,15 @@ def job_blockers(
                     "sheet_before_drop",
                     f"{req.checklist_title} for {_the(req.subject)} was done before drop"
                     f" {req.before_drop} was planned, and judged without it: check it again.",
+                    req.key,
+                )
+            )
+        elif req.before_return:
+            reasons.append(
+                Reason(
+                    "sheet_before_return",
+                    f"{req.checklist_title} for {_the(req.subject)} was filled before it was"
+                    " returned to service: check it again.",
                     req.key,
                 )
             )

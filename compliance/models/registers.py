@@ -220,6 +220,11 @@ class Equipment(models.Model):
     made_on = models.DateField(null=True, blank=True)
     next_inspection_due = models.DateField(null=True, blank=True)
     in_service = models.BooleanField(default=True)
+    returned_at = models.DateTimeField(
+        null=True,
+        blank=True,
+        help_text="When it was last returned to service: a check made before no longer counts.",
+    )
 
     class Meta:
         constraints = [

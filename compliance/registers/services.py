@@ -6,6 +6,7 @@ from typing import IO, Any
 
 from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
 from django.db import IntegrityError, models, transaction
+from django.utils import timezone
 
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
 from compliance.jobs.holds import jobs_using, jobs_with_kit, reread_readiness
@@ -249,11 +250,17 @@ READINESS_FIELDS = {"ratings", "in_service", "next_inspection_due", "made_on"}
 """The register fields a job's readiness reads: changing one reads each open job's again."""
 
 
+RETURN_NEEDS_REASON = (
+    "Say why it is fit to return to service: what was repaired or replaced, and who inspected it."
+)
+
+
 def update_equipment(*, item: Equipment, by: User, reason: str = "", **fields: Any) -> Equipment:
     """Change a register entry: its label, serial, ratings, dates, or whether it is in service.
 
     The kind never changes (its ratings would mean something else); the audit entry keeps
-    each changed field before and after. Taking equipment out of service needs a reason.
+    each changed field before and after. Taking equipment out of service needs a reason, and
+    so does returning it: a check made before its return no longer counts.
     """
     require_register_keeper(by)
     if item.organisation_id != by.organisation_id:
@@ -272,12 +279,20 @@ def update_equipment(*, item: Equipment, by: User, reason: str = "", **fields: A
             return item
         if fields.get("in_service") is False and item.in_service and not reason.strip():
             raise ValidationError({"reason": ["Say why the equipment is taken out of service."]})
+        returning = fields.get("in_service") is True and not item.in_service
+        if returning and not reason.strip():
+            raise ValidationError({"reason": [RETURN_NEEDS_REASON]})
         for name, value in fields.items():
             setattr(item, name, value)
+        saved = sorted(changes)
+        if returning:
+            # The checks made before it came back were of the kit as it was then.
+            item.returned_at = timezone.now()
+            saved.append("returned_at")
         clean_register_row(item, unique={"label": DUPLICATE_EQUIPMENT}, validate_unique=False)
         try:
             with transaction.atomic():
-                item.save(update_fields=sorted(changes))
+                item.save(update_fields=saved)
         except IntegrityError:
             raise ValidationError({"label": [DUPLICATE_EQUIPMENT]}) from None
         if "in_service" in changes:

@@ -206,8 +206,12 @@ def test_removing_an_anchor_from_service_holds_jobs_that_use_it(building, simple
     assert b["job"].state == JobState.HELD
     sign(b, kind="returned_to_service", result="pass", details="New base, proof loaded.")
     b["job"].refresh_from_db()
-    assert b["job"].state == JobState.CLEARED
     assert hold.clearance.log_entry.kind == "returned_to_service"
+    # The anchor's check made before its return was of the anchor as it was: check it again.
+    assert b["job"].state == JobState.PLANNED
+    fill_all(b["job"], simple_checklists, b["operator"])
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.CLEARED
 
 
 @pytest.mark.parametrize("kind", ["load_test", "periodic_inspection"])
@@ -248,6 +252,9 @@ def test_an_anchor_failing_its_load_test_or_inspection_stops_work_on_it(
     b["job"].refresh_from_db()
     assert b["job"].state == JobState.HELD
     sign(b, kind="returned_to_service", result="pass", details="Repaired and proof loaded.")
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.PLANNED
+    fill_all(b["job"], simple_checklists, b["operator"])
     b["job"].refresh_from_db()
     assert b["job"].state == JobState.CLEARED
 

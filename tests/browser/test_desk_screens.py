@@ -404,12 +404,19 @@ def test_register_adds_a_robot_and_takes_a_hose_out_and_back(live_server, demo, 
     axe_clean(page, "the equipment register, a hose out of service")
     desk_shot(page, "desk-equipment-out.png", top="[data-testid=kind-hose]")
 
-    # And back into service.
+    # And back into service, with why it is fit to return (the return asks for it).
+    card.locator("[data-testid=item-return]").click()
+    page.wait_for_selector(f"#err-{hose.pk}-reason")
+    assert Equipment.objects.get(pk=hose.pk).in_service is False
+    page.locator(f"#reason-{hose.pk}").type("New coupling fitted; pressure tested.", delay=20)
     card.locator("[data-testid=item-return]").click()
     page.wait_for_selector("[data-testid=item-H-2][data-in-service=yes]")
     assert Equipment.objects.get(pk=hose.pk).in_service is True
     assert list(changes.order_by("pk").values_list("action", "changes"))[2:] == [
-        ("returned to service", {"in_service": [False, True]})
+        (
+            "returned to service",
+            {"in_service": [False, True], "reason": "New coupling fitted; pressure tested."},
+        )
     ]
 
     # The next inspection date moves.

@@ -165,11 +165,96 @@ def test_kit_taken_out_of_service_while_the_robot_works_stops_work_until_it_retu
         "equipment_out_of_service",
     )
 
-    assert _patch(client, line, {"in_service": True}).status_code == 200
+    returned = _patch(client, line, {"in_service": True, "reason": "New line fitted."})
+    assert returned.status_code == 200, returned.json()
 
     job.refresh_from_db()
-    assert job.state == JobState.CLEARED
     assert not Hold.objects.filter(job=job, clearance__isnull=True).exists()
+    # The line's check was made before it came back: it is checked again before work resumes.
+    assert job.state == JobState.PLANNED
+    fill_all(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
+
+
+def test_kit_returned_to_service_is_checked_again_before_work_resumes(
+    job, simple_checklists, operator, supervisor
+):
+    """A line taken out of service ("sheath cut at 40 m") and flipped back in service with no
+    word of why: the hold cleared and the job went straight back to cleared on the check made
+    before the damage, and work restarted."""
+    from compliance.jobs.services import start_job
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    line = job.drops.get().safety_line
+    client = client_for(supervisor)
+    _patch(client, line, {"in_service": False, "reason": "Sheath cut at 40 m."})
+
+    bare = _patch(client, line, {"in_service": True})
+    assert bare.status_code == 400
+    assert bare.json() == {
+        "reason": [
+            "Say why it is fit to return to service: what was repaired or replaced, and who"
+            " inspected it."
+        ]
+    }
+    line.refresh_from_db()
+    assert line.in_service is False
+
+    assert (
+        _patch(client, line, {"in_service": True, "reason": "New line fitted."}).status_code == 200
+    )
+
+    job.refresh_from_db()
+    assert job.state == JobState.PLANNED
+    key = f"line-check@equipment:{line.pk}"
+    assert [(r.code, r.message) for r in job_blockers(job) if r.requirement == key] == [
+        (
+            "sheet_before_return",
+            f"Line Check for safety line {line.label} was filled before it was returned to"
+            " service: check it again.",
+        )
+    ]
+    assert client_for(operator).post(reverse("job-start", args=[job.pk])).status_code == 409
+
+
+def test_an_anchor_returned_to_service_is_checked_again_before_work_resumes(
+    job, simple_checklists, operator, supervisor
+):
+    import datetime as dt
+
+    from compliance.anchor_log.services import record_entry
+    from compliance.jobs.services import start_job
+    from compliance.records.signing import create_self_signed
+    from tests.factories import PASSWORD
+
+    create_self_signed(organisation=job.organisation)
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    anchor = job.drops.get().anchor
+    today = dt.date.today()
+
+    def sign(kind, details):
+        record_entry(
+            anchor=anchor,
+            by=supervisor,
+            password=PASSWORD,
+            kind=kind,
+            details=details,
+            performed_on=today,
+        )
+
+    sign("removed_from_service", "Base cracked.")
+    sign("returned_to_service", "New base fitted and proof loaded.")
+
+    job.refresh_from_db()
+    assert job.state == JobState.PLANNED
+    key = f"anchor-check@anchor:{anchor.pk}"
+    assert [r.code for r in job_blockers(job) if r.requirement == key] == ["sheet_before_return"]
+    fill_all(job, simple_checklists, operator)
+    job.refresh_from_db()
+    assert job.state == JobState.CLEARED
 
 
 def test_an_inspection_date_moved_past_while_the_robot_works_stops_work(

@@ -129,7 +129,12 @@ def test_update_equipment_keeps_before_and_after_and_needs_a_reason_to_withdraw(
     item.refresh_from_db()
     assert item.in_service
     register_services.update_equipment(item=item, by=keeper, in_service=False, reason="Cup torn.")
-    register_services.update_equipment(item=item, by=keeper, in_service=True)
+    with pytest.raises(ValidationError) as caught:
+        register_services.update_equipment(item=item, by=keeper, in_service=True)
+    assert list(caught.value.message_dict) == ["reason"]
+    register_services.update_equipment(
+        item=item, by=keeper, in_service=True, reason="New cups fitted."
+    )
     actions = list(
         RegisterChange.objects.filter(subject="equipment", object_id=item.pk).values_list(
             "action", flat=True
@@ -343,7 +348,7 @@ def test_equipment_out_of_service_says_why(keeper, django_assert_num_queries):
         "H7": ("Kinked at 40 m.", today),
         "H8": (None, None),
     }
-    client.patch(url, {"in_service": True}, format="json")
+    client.patch(url, {"in_service": True, "reason": "New hose."}, format="json")
     assert client.get(url).json()["out_of_service_reason"] is None
     assert client.get(url).json()["out_of_service_since"] is None
 

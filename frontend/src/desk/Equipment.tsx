@@ -53,6 +53,14 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
     void change({ in_service: false, reason: reason.trim() }, `${item.label} taken out of service.`);
   }
 
+  function putBack(event: Event) {
+    event.preventDefault();
+    if (!reason.trim()) return show({ reason: ["Say why it is fit to return: what was repaired or replaced, and who inspected it."] });
+    void change({ in_service: true, reason: reason.trim() }, `${item.label} returned to service: check it again before it is used.`);
+  }
+
+  const reasonLabel = inService ? "Reason for taking it out of service" : "Why it is fit to return to service";
+
   return (
     <li class="card desk-item" data-testid={`item-${item.label}`} data-in-service={inService ? "yes" : "no"}>
       <div class="desk-item-head">
@@ -74,7 +82,7 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
       {open && (
         <div class="desk-item-forms" ref={form}>
           <ErrorSummary errors={errors} shown={shown} formId={`err-${slug}-form`} head={`${item.label} was not changed. Put these right:`}
-            fields={{ next_inspection_due: { label: "Next inspection due", id: `due-${slug}` }, reason: { label: "Reason for taking it out of service", id: `reason-${slug}` } }} />
+            fields={{ next_inspection_due: { label: "Next inspection due", id: `due-${slug}` }, reason: { label: reasonLabel, id: `reason-${slug}` } }} />
           <form class="desk-inline" onSubmit={(e) => { e.preventDefault(); void change({ next_inspection_due: due || null }, `Next inspection of ${item.label} set.`); }}>
             <div class="field">
               <label for={`due-${slug}`}>Next inspection due</label>
@@ -84,22 +92,24 @@ function ItemCard({ item, onChanged }: { item: Equipment; onChanged: (item: Equi
             </div>
             <button class="btn" type="submit" disabled={busy} data-testid="item-save-due">Save the date</button>
           </form>
-          {inService ? (
-            <form class="desk-inline" onSubmit={takeOut}>
-              <div class="field">
-                <label for={`reason-${slug}`}>Reason for taking it out of service</label>
-                <input id={`reason-${slug}`} type="text" value={reason} onInput={(e) => setReason(e.currentTarget.value)}
-                  {...invalidProps(errors.reason && `err-${slug}-reason`)} autocomplete="off" />
-                <FieldErrors id={`err-${slug}-reason`} messages={errors.reason} />
-              </div>
+          <form class="desk-inline" onSubmit={inService ? takeOut : putBack}>
+            <div class="field">
+              <label for={`reason-${slug}`}>{reasonLabel}</label>
+              <input id={`reason-${slug}`} type="text" value={reason} onInput={(e) => setReason(e.currentTarget.value)}
+                {...invalidProps(errors.reason && `err-${slug}-reason`)} autocomplete="off" />
+              <FieldErrors id={`err-${slug}-reason`} messages={errors.reason} />
+              {!inService && (
+                <p class="muted small">
+                  Its checks made before it comes back no longer count: the crew checks it again before it is used.
+                </p>
+              )}
+            </div>
+            {inService ? (
               <button class="btn" type="submit" disabled={busy} data-testid="item-take-out">Take out of service</button>
-            </form>
-          ) : (
-            <button class="btn" type="button" disabled={busy} data-testid="item-return"
-              onClick={() => void change({ in_service: true }, `${item.label} returned to service.`)}>
-              Return to service
-            </button>
-          )}
+            ) : (
+              <button class="btn" type="submit" disabled={busy} data-testid="item-return">Return to service</button>
+            )}
+          </form>
         </div>
       )}
     </li>
