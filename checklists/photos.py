@@ -13,6 +13,7 @@ from PIL import Image, UnidentifiedImageError
 from checklists.models import CheckSheet, Photo
 from compliance import clock
 from compliance.jobs.holds import locked
+from compliance.jobs.selectors import photo_item_keys
 from compliance.models import DailyRecord, Job, User
 
 MAX_BYTES = 12 * 1024 * 1024
@@ -25,7 +26,9 @@ ACCEPTED = {"JPEG", "PNG", "WEBP"}
 
 def _check_place(*, job: Job, sheet_uuid: uuid.UUID | None, item_key: str) -> None:
     """A photo joins a day whose record is not sealed yet (sealed, a later row would read as
-    tampering), on the job's day, for a sheet of that job and an item of its checklist.
+    tampering), on the job's day, for a sheet of that job and an item of its checklist. One
+    sent without a sheet belongs to the job: it names a photo item of a checklist the job's
+    requirements use, or none (the signed record prints the key under the photo).
 
     A photo carries no time of its own: one taken for a sheet counts as made when its sheet
     does (the phone sends its sheets before their photos, so one sent the next morning keeps
@@ -56,6 +59,10 @@ def _check_place(*, job: Job, sheet_uuid: uuid.UUID | None, item_key: str) -> No
         )
     if sheet is not None and item_key and item_key not in {i["key"] for i in sheet.version.items}:
         raise ValidationError({"item_key": "This sheet's checklist has no item with this key."})
+    if sheet is None and item_key and item_key not in photo_item_keys(job):
+        raise ValidationError(
+            {"item_key": "No checklist this job uses has a photo item with this key."}
+        )
 
 
 def store_photo(

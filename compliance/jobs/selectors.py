@@ -239,6 +239,24 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
     return requirements
 
 
+def photo_item_keys(job: Job) -> set[str]:
+    """The keys of the photo items of the checklists the job's requirements use (the newest
+    published version of each, for the job's subjects, as job_requirements reads them): the
+    items a photo sent without a sheet may name."""
+    drops = Drop.objects.filter(job=job).select_related(
+        "anchor", "safety_anchor", "robot", "tether", "safety_line", "hose"
+    )
+    kinds = {subject.kind for subject in job_subjects(drops)}
+    versions = current_versions(job.organisation_id)
+    return {
+        item["key"]
+        for kind in kinds
+        for version in versions.get(kind, [])
+        for item in version.items
+        if item.get("kind") == "photo"
+    }
+
+
 def open_holds(job: Job) -> list[Hold]:
     return list(Hold.objects.filter(job=job, clearance__isnull=True).select_related("sheet"))
 

@@ -13,7 +13,7 @@ from checklists.models import CheckSheet, Photo
 from compliance.jobs.selectors import job_requirements
 from compliance.models import DropLog, JobTransition, SyncReceipt
 from tests.conftest import PASSING, client_for, fill_all
-from tests.factories import make_drop
+from tests.factories import make_drop, published_checklist
 
 pytestmark = pytest.mark.django_db
 
@@ -206,6 +206,8 @@ def _png(size=(64, 48)) -> io.BytesIO:
 
 def test_photo_upload_is_reencoded_and_idempotent(job, operator, tmp_path, settings):
     settings.MEDIA_ROOT = tmp_path
+    photo = {"key": "anchor_photo", "kind": "photo", "label": "Anchor", "reason": "test"}
+    published_checklist("anchor-photos", "anchor", [photo])  # the item a loose photo names
     client = client_for(operator)
     key = str(uuid.uuid4())
     body = {"client_uuid": key, "job": job.pk, "item_key": "anchor_photo", "image": _png()}
@@ -250,7 +252,7 @@ def test_a_small_file_declaring_too_many_pixels_is_refused_before_decoding(
     assert bomb.tell() < 100_000
     bomb.seek(0)
     bomb.name = "bomb.png"
-    body = {"client_uuid": str(uuid.uuid4()), "job": job.pk, "item_key": "x", "image": bomb}
+    body = {"client_uuid": str(uuid.uuid4()), "job": job.pk, "image": bomb}
     response = client_for(operator).post(reverse("photos"), body, format="multipart")
     assert response.status_code == 400
     assert response.json() == {"image": ["A photo is at most 50 megapixels."]}

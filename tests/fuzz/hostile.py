@@ -509,7 +509,7 @@ def baseline(w: World, method: str, template: str, role: str, fresh: bool = True
         ("POST", "/photos/"): lambda: {
             "client_uuid": str(uuid.uuid4()),
             "job": w.job.pk,
-            "item_key": "condition",
+            "item_key": "",  # a photo without a sheet names a photo item, and these have none
             "image": png_bytes(),
         },
         ("POST", "/records/{id}/addenda/"): lambda: {

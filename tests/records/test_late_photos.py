@@ -1,5 +1,6 @@
 """A photo joins its day's record only while the record is open: before it is sealed, on the
-job's day, for one of the job's sheets and an item of that sheet's checklist."""
+job's day, for one of the job's sheets and an item of that sheet's checklist; a photo sent
+without a sheet names a photo item of a checklist the job uses, or no item."""
 
 import datetime as dt
 import io
@@ -15,7 +16,14 @@ from checklists.services import record_sheet
 from compliance import clock
 from compliance.records.services import sign_daily_record, verify_against_database
 from tests.conftest import PASSING, client_for
-from tests.factories import PASSWORD, JobFactory, make_drop
+from tests.factories import (
+    PASSWORD,
+    JobFactory,
+    OrganisationFactory,
+    make_drop,
+    published_checklist,
+    tick,
+)
 
 pytestmark = pytest.mark.django_db
 
@@ -147,3 +155,52 @@ def test_a_photo_names_a_sheet_of_its_job_and_an_item_of_that_sheet(
     assert response.status_code == 400
     assert response.json() == {"item_key": ["This sheet's checklist has no item with this key."]}
     assert _nothing_stored(tmp_path)
+
+
+def photo_item(key: str) -> dict:
+    return {"key": key, "kind": "photo", "label": key.replace("_", " "), "reason": "test"}
+
+
+NO_PHOTO_ITEM = "No checklist this job uses has a photo item with this key."
+
+
+def test_a_loose_photo_names_a_photo_item_of_a_checklist_its_job_uses(
+    job, simple_checklists, operator, tmp_path
+):
+    """A photo sent without a sheet took any item key, and the signed record prints the key
+    under the photo as the item it shows: a tick's key ("sound") or any words at all."""
+    published_checklist(
+        "anchor-photos", "anchor", [tick("tag_legible"), photo_item("anchor_photo")]
+    )
+    published_checklist(
+        "their-photos", "site", [photo_item("their_photo")], organisation=OrganisationFactory()
+    )
+    with clock.replaying(job.date):
+        # a tick of a checklist the job uses, a tick beside a photo item, another
+        # organisation's photo item, no item at all
+        for key in ("sound", "tag_legible", "their_photo", "no_such_item"):
+            response = _post(operator, job, item_key=key)
+            assert response.status_code == 400, (key, response.json())
+            assert response.json() == {"item_key": [NO_PHOTO_ITEM]}
+        assert _nothing_stored(tmp_path)
+        named = _post(operator, job, item_key="anchor_photo")
+        unnamed = _post(operator, job)
+    assert (named.status_code, unnamed.status_code) == (201, 201)
+    assert sorted(Photo.objects.values_list("item_key", flat=True)) == ["", "anchor_photo"]
+
+
+def test_a_loose_photo_of_a_job_without_drops_names_a_site_photo_item(
+    job, simple_checklists, operator, tmp_path
+):
+    """A job with no drop yet uses only the site's checklists: an anchor's photo item is not
+    one of its items."""
+    bare = JobFactory(site=job.site, supervisor=job.supervisor, date=job.date)
+    published_checklist("anchor-photos", "anchor", [photo_item("anchor_photo")])
+    published_checklist("site-photos", "site", [photo_item("zone_photo")])
+    with clock.replaying(bare.date):
+        response = _post(operator, bare, item_key="anchor_photo")
+        assert response.status_code == 400
+        assert response.json() == {"item_key": [NO_PHOTO_ITEM]}
+        assert _nothing_stored(tmp_path)
+        response = _post(operator, bare, item_key="zone_photo")
+    assert response.status_code == 201, response.json()
