@@ -127,7 +127,13 @@ void refreshCounts();
 startSyncLoop();
 
 if ("serviceWorker" in navigator) {
-  navigator.serviceWorker.register("/sw.js", { scope: "/" }).catch(() => {
+  // The strip says so until the worker has kept the app's files and controls the page: an
+  // operator who signs in and walks up to the roof at once must not find it gone on a reload.
+  const workers = navigator.serviceWorker;
+  const mark = () => setStatus({ kept: !!workers.controller });
+  mark();
+  workers.addEventListener("controllerchange", mark);
+  workers.register("/sw.js", { scope: "/" }).catch(() => {
     /* the app still works online without it */
   });
 }

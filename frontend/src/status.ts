@@ -9,6 +9,9 @@ export interface Status {
   rejected: number;
   lastError: string | null;
   signedOut: boolean;
+  /** Whether the app's files are kept on the phone (its service worker controls the page), so a
+   * reload without signal still opens it; null where the browser cannot keep them. */
+  kept: boolean | null;
 }
 
 let current: Status = {
@@ -20,6 +23,7 @@ let current: Status = {
   rejected: 0,
   lastError: null,
   signedOut: false,
+  kept: null,
 };
 
 const listeners = new Set<() => void>();

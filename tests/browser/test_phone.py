@@ -348,6 +348,34 @@ def test_after_a_reload_without_signal_the_strip_counts_what_waits_though_it_pai
     assert "Last sync never" not in page.inner_text("[data-testid=strip]")
 
 
+def test_the_strip_says_when_the_app_is_not_yet_kept_for_use_without_signal(
+    live_server, demo, browser
+):
+    """Signed in and straight up to the roof: until the service worker has kept the app's
+    files, a reload without signal finds no page, and nothing said so (seen in CI: a reload
+    at once after going offline failed). Here the browser keeps no service worker at all."""
+    blocked = browser.new_context(
+        viewport={"width": 390, "height": 844}, locale="en-GB", service_workers="block"
+    )
+    try:
+        page = blocked.new_page()
+        page.goto(live_server.url + "/")
+        page.wait_for_selector("input[name=username]")
+        page.fill("input[name=username]", "tomas")
+        page.fill("input[name=password]", PASSWORD)
+        page.click("button[type=submit]")
+        page.wait_for_selector("[data-testid=jobs] a")
+        assert page.inner_text("[data-testid=strip-not-kept]") == "Not yet ready without signal"
+    finally:
+        blocked.close()
+
+
+def test_once_the_app_is_kept_the_strip_no_longer_warns(live_server, demo, page):
+    sign_in(page, live_server.url)
+    page.wait_for_selector("[data-testid=strip-not-kept]", state="detached")
+    assert page.locator("[data-testid=strip-not-kept]").count() == 0
+
+
 def test_an_auditor_on_the_phone_reads_and_is_offered_nothing_to_record(live_server, demo, page):
     """An auditor is read-only: the phone offered 'Start work', 'Close work' and 'Save check',
     and a sheet an auditor saved waited to be sent for ever, refused at every try."""

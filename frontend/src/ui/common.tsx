@@ -34,6 +34,11 @@ export function Strip() {
           Signed out: not sending
         </span>
       )}
+      {s.kept === false && (
+        <span class="strip-rejected" data-testid="strip-not-kept">
+          Not yet ready without signal
+        </span>
+      )}
       {s.rejected > 0 && (
         <span class="strip-rejected" data-testid="strip-rejected">
           Not accepted {s.rejected}
