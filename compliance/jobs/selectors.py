@@ -154,8 +154,8 @@ def _serves(drop: Drop, subject: Subject) -> bool:
 
 
 def returned_at(subject: Subject) -> dt.datetime | None:
-    """When the subject was last returned to service: the kit's register says so, an anchor's
-    log book (its prefetched status entries) by the return's signing time."""
+    """When the subject was last returned to service: the kit's register says so, and an
+    anchor's log book does (its prefetched status entries; see anchor_returned_at)."""
     if subject.equipment is not None:
         return subject.equipment.returned_at
     if subject.anchor is not None:
