@@ -31,7 +31,7 @@ from compliance.models import (
 )
 from compliance.records.sealing import canonical_bytes, check_links, seal_of, utc
 from compliance.records.signing import active_credential, sign_seal
-from compliance.registers.selectors import INSPECTION_KINDS
+from compliance.registers.selectors import INSPECTION_KINDS, anchor_status
 from compliance.registers.visibility import can_work_at, owns_site
 
 FORMAT = "parapet.anchor-log-entry/1"
@@ -157,6 +157,24 @@ def _create(
     return entry
 
 
+def _check_return(anchor: Anchor, performed_on: dt.date) -> None:
+    """A return ends a removal (or a failed test): it needs the anchor out of service, and a
+    date on or after the day it went out (a return dated before let a check made while the
+    anchor was out count)."""
+    interval = int(anchor.site.profile.threshold("certification_interval_days"))
+    anchor = Anchor.objects.prefetch_related("certifications", "log").get(pk=anchor.pk)
+    status = anchor_status(anchor, interval)
+    if status.in_service:
+        raise InvalidTransition(
+            f"Anchor {anchor.label} is in service: there is no removal for a return to end."
+        )
+    if status.removed_on is not None and performed_on < status.removed_on:
+        raise InvalidTransition(
+            f"Anchor {anchor.label} went out of service on {status.removed_on:%Y-%m-%d}: its"
+            " return is dated on or after that day."
+        )
+
+
 def record_entry(
     *,
     anchor: Anchor,
@@ -193,6 +211,8 @@ def record_entry(
         raise InvalidTransition("Work cannot be recorded for a future date.")
     credential = active_credential(by.organisation_id)
     with transaction.atomic():
+        if kind == AnchorLogEntry.Kind.RETURNED:
+            _check_return(anchor, performed_on)
         stops = kind == AnchorLogEntry.Kind.REMOVED or (
             kind in INSPECTION_KINDS and result == AnchorLogEntry.Result.FAIL
         )

@@ -114,14 +114,15 @@ SENT_AS_IT_IS = {b"7bit", b"8bit", b"binary"}
 def says_encoded(header: bytes) -> bool:
     """Whether a part's header block has a Content-Transfer-Encoding other than one of the
     identity ones, read as loosely as any reader might: every line of that name (not only the
-    last, which Django reads), any case (RFC 2045 §6.1), folded lines joined, an empty value
-    counted as encoded."""
+    last, which Django reads), any case (RFC 2045 §6.1), an empty value counted as encoded, and
+    a line that starts with a space or a tab read both ways: joined to the line before (a
+    folded header) and on its own, stripped (as Django reads it: joined alone, such a line hid
+    a header Django then obeyed)."""
     lines: list[bytes] = []
     for line in header.splitlines():
         if line[:1] in (b" ", b"\t") and lines:
             lines[-1] += b" " + line.strip()
-        else:
-            lines.append(line)
+        lines.append(line.strip())
     for line in lines:
         name, colon, value = line.partition(b":")
         if (

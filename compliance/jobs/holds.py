@@ -22,7 +22,6 @@ from django.db.models import Q
 from checklists.models import CheckSheet
 from checklists.selectors import superseded
 from checklists.verdicts import ItemResult
-from compliance import clock
 from compliance.jobs.selectors import job_blockers, job_requirements, open_holds
 from compliance.models import (
     OPEN_STATES,
@@ -135,13 +134,13 @@ def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = N
 
 
 def jobs_using(anchor: Anchor) -> list[Job]:
-    """Open jobs of today or later, of any contractor, with a drop hung from the anchor;
-    locked."""
+    """Open jobs of any day, of any contractor, with a drop hung from the anchor; locked (a
+    night shift begun before midnight is still at work, and an open job has no signed record
+    yet)."""
     ids = (
         Job.objects.filter(
             Q(drops__anchor=anchor) | Q(drops__safety_anchor=anchor),
             state__in=OPEN_STATES,
-            date__gte=clock.today(),
         )
         .values_list("pk", flat=True)
         .distinct()
@@ -151,7 +150,7 @@ def jobs_using(anchor: Anchor) -> list[Job]:
 
 
 def jobs_with_kit(equipment: Equipment) -> list[Job]:
-    """Open jobs of today or later with a drop using the piece of kit; locked."""
+    """Open jobs of any day with a drop using the piece of kit; locked."""
     ids = (
         Job.objects.filter(
             Q(drops__robot=equipment)
@@ -159,7 +158,6 @@ def jobs_with_kit(equipment: Equipment) -> list[Job]:
             | Q(drops__safety_line=equipment)
             | Q(drops__hose=equipment),
             state__in=OPEN_STATES,
-            date__gte=clock.today(),
         )
         .values_list("pk", flat=True)
         .distinct()
@@ -168,21 +166,21 @@ def jobs_with_kit(equipment: Equipment) -> list[Job]:
 
 
 def jobs_under_profile(profile_id: int) -> list[Job]:
-    """Open jobs of today or later at sites under the profile; locked."""
+    """Open jobs of any day at sites under the profile; locked."""
     return list(
         Job.objects.select_for_update()
-        .filter(site__profile_id=profile_id, state__in=OPEN_STATES, date__gte=clock.today())
+        .filter(site__profile_id=profile_id, state__in=OPEN_STATES)
         .order_by("pk")
     )
 
 
 def reread_for_new_version(*, organisation_id: int | None, by: User | None) -> None:
     """A checklist version just published leaves the checks filled against the one before
-    behind: each cleared job of today or later that may read it (the organisation's, or every
+    behind: each cleared job that may read it (the organisation's, or every
     organisation's for a default checklist) is read again, and goes back to planned until they
     are filled again. A job at work goes on: it started on the checks of the version then in
     force, and the new version applies to its next check."""
-    jobs = Job.objects.filter(state=JobState.CLEARED, date__gte=clock.today())
+    jobs = Job.objects.filter(state=JobState.CLEARED)
     if organisation_id is not None:
         jobs = jobs.filter(organisation_id=organisation_id)
     for job in jobs.select_for_update().order_by("pk"):

@@ -31,6 +31,11 @@ def load_profiles(directory: Path | None = None) -> list[JurisdictionProfile]:
             json.dumps(data, sort_keys=True, separators=(",", ":")).encode()
         ).hexdigest()
         with transaction.atomic():
+            before = (
+                JurisdictionProfile.objects.filter(key=data["key"])
+                .values_list("thresholds", flat=True)
+                .first()
+            )
             profile, _ = JurisdictionProfile.objects.update_or_create(
                 key=data["key"],
                 defaults={
@@ -50,8 +55,10 @@ def load_profiles(directory: Path | None = None) -> list[JurisdictionProfile]:
                     cautions=data["cautions"],
                     content_hash=digest,
                 )
-                # A threshold a check was judged on may read otherwise now: the open jobs under
-                # the profile are read again (a robot at work on a limit since lowered stops).
+            if before is not None and before != data["thresholds"]:
+                # A threshold a check was judged on may read otherwise now (a new content, or
+                # one the profile held before): the open jobs under the profile are read again,
+                # and a robot at work on a limit since lowered stops.
                 reread_readiness(jobs=jobs_under_profile(profile.pk), by=None)
         profiles.append(profile)
     return profiles

@@ -259,6 +259,54 @@ def test_an_anchor_failing_its_load_test_or_inspection_stops_work_on_it(
     assert b["job"].state == JobState.CLEARED
 
 
+def test_a_night_shift_begun_before_midnight_is_stopped_by_a_failed_load_test(
+    building, simple_checklists
+):
+    """A job started yesterday evening and still at work after midnight was not held by a
+    failed load test on its anchor (only jobs dated today or later were read), and its day
+    was then signed safe."""
+    from compliance.models import Job
+
+    b = building
+    fill_all(b["job"], simple_checklists, b["operator"])
+    start_job(job=b["job"], by=b["operator"])
+    Job.objects.filter(pk=b["job"].pk).update(date=TODAY() - dt.timedelta(days=1))
+
+    sign(b, kind="load_test", result="fail", details="Base plate cracked under the proof load.")
+
+    b["job"].refresh_from_db()
+    assert b["job"].state == JobState.HELD
+
+
+def test_a_return_to_service_needs_an_anchor_out_of_service_and_a_date_after_it_went_out(
+    building, simple_checklists
+):
+    """A return dated the day before the removal it ends let the check made while the anchor
+    was out count (the job started on it); a return for an anchor in service was taken too."""
+    from compliance.errors import InvalidTransition
+
+    b = building
+    label = b["drop"].anchor.label
+    with pytest.raises(InvalidTransition) as in_service:
+        sign(b, kind="returned_to_service", details="Nothing was wrong.")
+    assert str(in_service.value) == (
+        f"Anchor {label} is in service: there is no removal for a return to end."
+    )
+    sign(b, kind="removed_from_service", details="Base cracked.")
+    with pytest.raises(InvalidTransition) as early:
+        sign(
+            b,
+            kind="returned_to_service",
+            details="New base.",
+            performed_on=TODAY() - dt.timedelta(days=1),
+        )
+    assert str(early.value) == (
+        f"Anchor {label} went out of service on {TODAY():%Y-%m-%d}: its return is dated on or"
+        " after that day."
+    )
+    assert AnchorLogEntry.objects.filter(kind="returned_to_service").count() == 0
+
+
 def test_the_return_to_service_leaves_the_holds_of_closed_days_as_they_were_signed(
     building, simple_checklists
 ):

@@ -160,8 +160,21 @@ def test_an_encoded_part_of_a_photo_is_refused_by_name(job, operator, tmp_path, 
         "content-transfer-encoding:base64",
         "Content-Transfer-Encoding: binary; base64",
         "Content-Transfer-Encoding:",
+        # Django strips a line that starts with a space or a tab and reads it as a header of its
+        # own; a reader that joined it to the line before let "MTI=" through as 12 kN.
+        "X-Note: roof\r\n Content-Transfer-Encoding: base64",
+        "X-Note: roof\r\n\tContent-Transfer-Encoding: base64",
     ],
-    ids=["base64-then-binary", "binary-then-base64", "space", "lower", "parameter", "empty"],
+    ids=[
+        "base64-then-binary",
+        "binary-then-base64",
+        "space",
+        "lower",
+        "parameter",
+        "empty",
+        "after-a-space",
+        "after-a-tab",
+    ],
 )
 def test_a_part_saying_it_is_encoded_in_any_spelling_is_refused(job, operator, tmp_path, header):
     """Django reads the last header of a name and only "base64" exactly; another reader may

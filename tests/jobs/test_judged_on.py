@@ -378,3 +378,27 @@ def test_a_profile_reloaded_with_a_lower_wind_limit_leaves_a_cleared_job_not_rea
     job.refresh_from_db()
     assert job.state == JobState.PLANNED
     assert "sheet_judged_on_changed" in [r.code for r in job_blockers(job)]
+
+
+def test_a_profile_reloaded_back_to_a_limit_it_had_before_stops_the_robot_at_work(
+    job, simple_checklists, operator, tmp_path
+):
+    """Limits raised by one reload and put back by the next: the second load made no new
+    revision (the profile had held that content before), so nothing read the open jobs, and
+    a robot started on the raised limit worked on."""
+    from compliance.jobs.services import start_job
+    from compliance.models import Job
+
+    strict = job.site.profile.thresholds["max_wind_ms"]["value"]
+    _reload_profile_with(job, tmp_path)  # the profile's content, as its first revision
+    original = job.site.profile.thresholds
+    _reload_profile_with(job, tmp_path, max_wind_ms=strict + 20)
+    job = Job.objects.get(pk=job.pk)
+    windy = {"site": {"roof_wind": {"value": strict + 5, "unit": "m/s"}}}
+    fill_all(job, simple_checklists, operator, windy)
+    start_job(job=job, by=operator)
+
+    _reload_profile_with(job, tmp_path, max_wind_ms=original["max_wind_ms"]["value"])
+
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
