@@ -8,6 +8,7 @@ from django.db import models
 from django.db.models import Q
 
 from checklists.schema import SUBJECT_KINDS
+from compliance import clock
 from compliance.append_only import AppendOnlyModel, AppendOnlyViolation
 from compliance.models import Anchor, Equipment, Job, Organisation, User
 
@@ -166,13 +167,7 @@ class CheckSheet(AppendOnlyModel):
         right by how far its clock was off when it sent the batch, and never after it was
         received; without both, when it was received. A sheet filled at 05:02 on a phone that
         was offline is older than one filled at 07:02 and sent at once."""
-        if self.device_time is None or self.phone_clock_offset_s is None:
-            return self.received_at
-        try:
-            made = self.device_time - dt.timedelta(seconds=self.phone_clock_offset_s)
-        except OverflowError:
-            return self.received_at
-        return min(made, self.received_at)
+        return clock.time_made(self.device_time, self.phone_clock_offset_s, self.received_at)
 
     @property
     def order_made(self) -> tuple[dt.datetime, int]:

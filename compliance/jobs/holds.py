@@ -66,9 +66,9 @@ def hold_for_failed_items(
 ) -> Job:
     """Open a hold for each failed blocking item of the sheet and put the job on hold. An item
     already holding the job on this requirement keeps its one hold: the new failing sheet is
-    recorded with its entries, and one passing sheet clears the hold either way."""
-    if job.state == JobState.CLOSED:
-        return job
+    recorded with its entries, and one passing sheet clears the hold either way. A closed job
+    (a failure made before it closed, sent after) keeps its state: the open hold is what its
+    day's record shows, and what keeps it from being signed "safe"."""
     failures = list(failures)
     holding = set(
         Hold.objects.filter(
@@ -88,7 +88,7 @@ def hold_for_failed_items(
             if item.key not in holding
         ]
     )
-    if job.state != JobState.HELD:
+    if job.state not in (JobState.HELD, JobState.CLOSED):
         names = ", ".join(i.label for i in failures)
         transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
     return job
