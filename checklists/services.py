@@ -577,7 +577,7 @@ def record_sheet(
     if job.state == JobState.CLOSED and not failed:
         raise InvalidTransition(CLOSED_JOB)
     made_on = clock.day_made(job.date, device_time, phone_clock_offset_s)
-    if made_on != job.date:
+    if made_on != job.date and not failed:
         # A check says nothing of the rig on another day: not a later day's (made today), nor
         # a past day's (made days after the work it was to clear).
         raise ValidationError(
@@ -586,6 +586,12 @@ def record_sheet(
                 f" its day, and this one was made on {made_on.isoformat()}."
             }
         )
+    made_at_receipt = made_on != job.date and device_time is not None
+    if made_at_receipt:
+        # Stop work first: a failure is never refused for its clock (a phone whose clock reset
+        # to 2000 after a battery pull). Its time is kept as sent but not believed: without
+        # the batch's offset it counts as made when received, for holds and the record alike.
+        phone_clock_offset_s = None
     judged = judged_on(version.items, job, anchor, equipment, drops)
     # A sync batch's run gives each record a savepoint of its own and has looked for the uuid
     # under the job's lock: a second savepoint here would only cost two statements.
@@ -612,6 +618,7 @@ def record_sheet(
                 filled_by=by,
                 device_time=device_time,
                 phone_clock_offset_s=phone_clock_offset_s,
+                made_at_receipt=made_at_receipt,
                 verdict=outcome.verdict,
                 blocking_failures=len(outcome.blocking_failures),
                 remarks=remarks,

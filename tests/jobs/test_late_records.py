@@ -16,7 +16,7 @@ from compliance.errors import InvalidTransition
 from compliance.jobs.selectors import job_requirements
 from compliance.jobs.services import close_job, start_job
 from compliance.models import Hold, JobState, SyncReceipt
-from compliance.records.services import OPEN_HOLDS_NOT_SAFE, sign_daily_record
+from compliance.records.services import OPEN_HOLDS_NOT_SAFE, day_content, sign_daily_record
 from compliance.records.signing import create_self_signed
 from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import PASSWORD
@@ -188,3 +188,72 @@ def test_a_failure_for_a_signed_day_is_refused_in_words_that_lead_to_an_addendum
     }
     assert not CheckSheet.objects.filter(client_uuid=record["client_uuid"]).exists()
     assert not SyncReceipt.objects.filter(client_uuid=record["client_uuid"]).exists()
+
+
+# A failure whose phone's clock puts it on another day.
+
+RESET = dt.datetime(2000, 1, 1, 10, 15, tzinfo=dt.UTC)
+"""A phone whose battery was pulled wakes up on 2000-01-01."""
+
+
+def test_a_failure_from_a_phone_whose_clock_reset_is_kept_made_when_received(
+    working, simple_checklists, operator
+):
+    """It was refused as 'made on 2000-01-01' (a check is made on its job's day) and no hold
+    opened, while the same failure sent without sent_at was kept: the day rule refuses a pass,
+    never a failure."""
+    record = line_record(working, simple_checklists, FAILED_LINE, RESET)
+
+    (line,) = send(operator, [record], sent_at=timezone.now())
+
+    assert line["status"] == "applied", line
+    assert line["verdict"] == "fail"
+    sheet = CheckSheet.objects.get(client_uuid=record["client_uuid"])
+    assert sheet.device_time == RESET
+    assert sheet.made_at == sheet.received_at
+    (hold,) = open_holds(working)
+    assert hold.sheet_id == sheet.pk
+    working.refresh_from_db()
+    assert working.state == JobState.HELD
+    (note,) = [n for n in day_content(working)["clock_notes"] if n.startswith(f"sheet {sheet.pk}:")]
+    assert "2000-01-01T10:15:00Z" in note
+    assert "counts as made when the server received it" in note
+
+
+def test_a_pass_from_a_phone_whose_clock_reset_is_still_refused(
+    working, simple_checklists, operator
+):
+    record = line_record(working, simple_checklists, PASSING["safety_line"], RESET)
+
+    (line,) = send(operator, [record], sent_at=timezone.now())
+
+    assert line["status"] == "rejected"
+    assert line["errors"] == {
+        "job": [
+            f"This job is for {working.date.isoformat()}: its pre-start checks are made on its"
+            " day, and this one was made on 2000-01-01."
+        ]
+    }
+    assert not CheckSheet.objects.filter(client_uuid=record["client_uuid"]).exists()
+
+
+def test_a_failure_with_no_time_of_its_own_for_another_day_is_kept_without_a_clock_note(
+    job, simple_checklists, operator
+):
+    """Tomorrow's job, a failure found today and sent without a phone time: kept, holding the
+    job, counted as made when received; there is no phone time to doubt, so no clock note."""
+    type(job).objects.filter(pk=job.pk).update(date=timezone.localdate() + dt.timedelta(days=1))
+    job.refresh_from_db()
+    req = next(r for r in job_requirements(job) if r.subject.kind == "safety_line")
+
+    sheet, created = record_sheet(
+        job=job,
+        version=simple_checklists["safety_line"],
+        by=operator,
+        entries=FAILED_LINE,
+        equipment=req.subject.equipment,
+    )
+
+    assert created and not sheet.made_at_receipt
+    assert [hold.sheet_id for hold in open_holds(job)] == [sheet.pk]
+    assert day_content(job)["clock_notes"] == []
