@@ -257,3 +257,55 @@ def test_a_failure_with_no_time_of_its_own_for_another_day_is_kept_without_a_clo
     assert created and not sheet.made_at_receipt
     assert [hold.sheet_id for hold in open_holds(job)] == [sheet.pk]
     assert day_content(job)["clock_notes"] == []
+
+
+# Which pass clears a hold.
+
+
+def test_an_older_pass_sent_without_sent_at_leaves_a_newer_failure_holding(
+    working, simple_checklists, operator
+):
+    """A pass filled half an hour before the failure, on a phone that was offline, came in a
+    batch without sent_at: counted as made when received, it was 'newer' and cleared the hold,
+    and the job was cleared to start again. Its own clock says it is older: the hold stays
+    until a check made after the failure passes."""
+    now = timezone.now()
+    failure = line_record(working, simple_checklists, FAILED_LINE, now - dt.timedelta(minutes=1))
+    assert send(operator, [failure], sent_at=now)[0]["verdict"] == "fail"
+    stale = line_record(
+        working, simple_checklists, PASSING["safety_line"], now - dt.timedelta(minutes=30)
+    )
+
+    (line,) = send(operator, [stale])
+
+    assert (line["status"], line["verdict"]) == ("applied", "pass")
+    (hold,) = open_holds(working)
+    assert hold.sheet.client_uuid == uuid.UUID(failure["client_uuid"])
+    working.refresh_from_db()
+    assert working.state == JobState.HELD
+
+    fresh = line_record(working, simple_checklists, PASSING["safety_line"], timezone.now())
+    send(operator, [fresh], sent_at=timezone.now())
+    assert open_holds(working) == []
+    working.refresh_from_db()
+    assert working.state == JobState.CLEARED
+
+
+def test_a_pass_from_a_phone_set_right_by_its_batch_clears_a_failure_from_a_fast_phone(
+    working, simple_checklists, operator
+):
+    """Each phone's time is set right by its own batch's clock before the two are compared: a
+    failure from a phone five hours fast is cleared by a pass made after it on a phone that is
+    right, not five hours later."""
+    now = timezone.now()
+    fast = dt.timedelta(hours=5)
+    failure = line_record(
+        working, simple_checklists, FAILED_LINE, now + fast - dt.timedelta(minutes=2)
+    )
+    send(operator, [failure], sent_at=now + fast)
+    assert len(open_holds(working)) == 1
+
+    later = timezone.now()
+    send(operator, [line_record(working, simple_checklists, PASSING["safety_line"], later)], later)
+
+    assert open_holds(working) == []
