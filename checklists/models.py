@@ -8,6 +8,7 @@ from django.db import models
 from django.db.models import Q
 
 from checklists.schema import SUBJECT_KINDS
+from compliance import clock
 from compliance.append_only import AppendOnlyModel, AppendOnlyViolation
 from compliance.models import Anchor, Equipment, Job, Organisation, User
 
@@ -124,6 +125,11 @@ class CheckSheet(AppendOnlyModel):
         null=True, blank=True, help_text="Phone clock minus server clock when the batch was sent."
     )
     received_at = models.DateTimeField(auto_now_add=True)
+    made_at_receipt = models.BooleanField(
+        default=False,
+        help_text="A failure whose phone's time put it on another day than its job's: kept all"
+        " the same, and counted as made when it was received (its phone's time as sent).",
+    )
     verdict = models.CharField(max_length=10, choices=Verdict.choices)
     blocking_failures = models.PositiveIntegerField(default=0)
     remarks = models.TextField(blank=True)
@@ -165,14 +171,10 @@ class CheckSheet(AppendOnlyModel):
         """When the sheet was filled, as near as the server can tell: the phone's time set
         right by how far its clock was off when it sent the batch, and never after it was
         received; without both, when it was received. A sheet filled at 05:02 on a phone that
-        was offline is older than one filled at 07:02 and sent at once."""
-        if self.device_time is None or self.phone_clock_offset_s is None:
-            return self.received_at
-        try:
-            made = self.device_time - dt.timedelta(seconds=self.phone_clock_offset_s)
-        except OverflowError:
-            return self.received_at
-        return min(made, self.received_at)
+        was offline is older than one filled at 07:02 and sent at once. A failure whose time
+        is not believed (``made_at_receipt``) is stored without its batch's offset, so it is
+        taken as made when it was received by every reader of the row."""
+        return clock.time_made(self.device_time, self.phone_clock_offset_s, self.received_at)
 
     @property
     def order_made(self) -> tuple[dt.datetime, int]:

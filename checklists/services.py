@@ -28,8 +28,8 @@ from compliance import clock
 from compliance.anchor_log.services import HeldChains, log_pre_use_check
 from compliance.engineering import CALCULATIONS
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
-from compliance.jobs.holds import reread_for_new_version
-from compliance.jobs.selectors import drop_serves, drops_of
+from compliance.jobs.holds import locked, reread_for_new_version
+from compliance.jobs.selectors import closed_at, day_signed, drop_serves, drops_of
 from compliance.jobs.services import apply_sheet_outcome
 from compliance.models import (
     Anchor,
@@ -484,6 +484,32 @@ def _insert_entries(sheet: CheckSheet, results: Sequence[ItemResult]) -> None:
             copy.write_row(row)
 
 
+CLOSED_JOB = "This job is closed; its sheets can no longer change."
+CLOSED_BEFORE_MADE = (
+    "This job closed before this check was made, so the check is not part of its day: its"
+    " sheets can no longer change. Record the failure on the next job it concerns, which it"
+    " will hold."
+)
+SIGNED_DAY = (
+    "This day's record is already signed, so this failed check cannot be added to it. Tell the"
+    " supervisor: a correction to a signed day is a signed addendum to its record."
+)
+
+
+def _admit_to_closed_day(*, job: Job, failed: bool, made_at: dt.datetime) -> None:
+    """A closed job takes one kind of sheet: a failure made before it closed (found on the
+    roof by a phone that was offline and sent after the close), while its day's record is not
+    signed. It holds the closed day, so the day is not signed "safe" without it. Anything else
+    is refused, the signed day in words that lead to an addendum. The job's row is locked."""
+    if not failed:
+        raise InvalidTransition(CLOSED_JOB)
+    if day_signed(job):
+        raise InvalidTransition(SIGNED_DAY)
+    closed = closed_at(job)
+    if closed is None or made_at >= closed:
+        raise InvalidTransition(CLOSED_BEFORE_MADE)
+
+
 def record_sheet(
     *,
     job: Job,
@@ -530,18 +556,6 @@ def record_sheet(
         raise ValidationError({"version": UNKNOWN_VERSION})
     if version.status != ChecklistVersion.Status.PUBLISHED:
         raise ValidationError({"version": "Sheets can only be filled against a published version."})
-    if job.state == JobState.CLOSED:
-        raise InvalidTransition("This job is closed; its sheets can no longer change.")
-    made_on = clock.day_made(job.date, device_time, phone_clock_offset_s)
-    if made_on != job.date:
-        # A check says nothing of the rig on another day: not a later day's (made today), nor
-        # a past day's (made days after the work it was to clear).
-        raise ValidationError(
-            {
-                "job": f"This job is for {job.date.isoformat()}: its pre-start checks are made on"
-                f" its day, and this one was made on {made_on.isoformat()}."
-            }
-        )
     subject_kind = _subject_for(job, version, anchor, equipment)
     drops = drops_of(job) if drops is None else drops
     if subject_kind != "site" and not any(drop_serves(d, anchor, equipment) for d in drops):
@@ -560,12 +574,40 @@ def record_sheet(
     except EntryError as exc:
         raise ValidationError({exc.field: exc.message}) from None
     _check_storable(outcome)
+    failed = bool(outcome.blocking_failures)
+    if job.state == JobState.CLOSED and not failed:
+        raise InvalidTransition(CLOSED_JOB)
+    made_on = clock.day_made(job.date, device_time, phone_clock_offset_s)
+    if made_on != job.date and not failed:
+        # A check says nothing of the rig on another day: not a later day's (made today), nor
+        # a past day's (made days after the work it was to clear).
+        raise ValidationError(
+            {
+                "job": f"This job is for {job.date.isoformat()}: its pre-start checks are made on"
+                f" its day, and this one was made on {made_on.isoformat()}."
+            }
+        )
+    made_at_receipt = made_on != job.date and device_time is not None
+    if made_at_receipt:
+        # Stop work first: a failure is never refused for its clock (a phone whose clock reset
+        # to 2000 after a battery pull). Its time is kept as sent but not believed: without
+        # the batch's offset it counts as made when received, for holds and the record alike.
+        phone_clock_offset_s = None
     judged = judged_on(version.items, job, anchor, equipment, drops)
     # A sync batch's run gives each record a savepoint of its own and has looked for the uuid
     # under the job's lock: a second savepoint here would only cost two statements.
     savepoint = not (job_locked and uuid_unused)
     try:
         with transaction.atomic(savepoint=savepoint):
+            # Locked before the sheet is written: signing locks the row too, so a sheet lands
+            # in a day before its record is sealed, or is refused.
+            job = job if job_locked else locked(job)
+            if job.state == JobState.CLOSED:
+                _admit_to_closed_day(
+                    job=job,
+                    failed=failed,
+                    made_at=clock.time_made(device_time, phone_clock_offset_s, timezone.now()),
+                )
             sheet = CheckSheet.objects.create(
                 client_uuid=client_uuid,
                 job=job,
@@ -577,6 +619,7 @@ def record_sheet(
                 filled_by=by,
                 device_time=device_time,
                 phone_clock_offset_s=phone_clock_offset_s,
+                made_at_receipt=made_at_receipt,
                 verdict=outcome.verdict,
                 blocking_failures=len(outcome.blocking_failures),
                 remarks=remarks,
@@ -589,7 +632,7 @@ def record_sheet(
                 by=by,
                 drops=drops,
                 defer_readiness=defer_readiness,
-                job_locked=job_locked,
+                job_locked=True,
                 open_hold_requirements=open_hold_requirements,
             )
             if subject_kind == "anchor":

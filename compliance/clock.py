@@ -53,3 +53,18 @@ def day_made(
     if received <= job_date:
         return received
     return timezone.localdate(device_time)
+
+
+def time_made(
+    device_time: dt.datetime | None, phone_clock_offset_s: int | None, received: dt.datetime
+) -> dt.datetime:
+    """When a record from a phone was made, as near as the server can tell: the phone's time
+    set right by how far its clock was off when it sent the batch, and never after it was
+    received; without both, when it was received."""
+    if device_time is None or phone_clock_offset_s is None:
+        return received
+    try:
+        made = device_time - dt.timedelta(seconds=phone_clock_offset_s)
+    except OverflowError:
+        return received
+    return min(made, received)

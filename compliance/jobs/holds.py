@@ -15,6 +15,7 @@
 Every function here runs inside its caller's transaction, with the job's row locked.
 """
 
+import datetime as dt
 from collections.abc import Iterable
 
 from django.db.models import Q
@@ -22,6 +23,7 @@ from django.db.models import Q
 from checklists.models import CheckSheet
 from checklists.selectors import superseded
 from checklists.verdicts import ItemResult
+from compliance import clock
 from compliance.jobs.selectors import job_blockers, job_requirements, open_holds
 from compliance.models import (
     OPEN_STATES,
@@ -65,9 +67,9 @@ def hold_for_failed_items(
 ) -> Job:
     """Open a hold for each failed blocking item of the sheet and put the job on hold. An item
     already holding the job on this requirement keeps its one hold: the new failing sheet is
-    recorded with its entries, and one passing sheet clears the hold either way."""
-    if job.state == JobState.CLOSED:
-        return job
+    recorded with its entries, and one passing sheet clears the hold either way. A closed job
+    (a failure made before it closed, sent after) keeps its state: the open hold is what its
+    day's record shows, and what keeps it from being signed "safe"."""
     failures = list(failures)
     holding = set(
         Hold.objects.filter(
@@ -87,7 +89,7 @@ def hold_for_failed_items(
             if item.key not in holding
         ]
     )
-    if job.state != JobState.HELD:
+    if job.state not in (JobState.HELD, JobState.CLOSED):
         names = ", ".join(i.label for i in failures)
         transition(job, JobState.HELD, by, f"Stop work: blocking item failed ({names}).")
     return job
@@ -97,8 +99,9 @@ def clear_by_passing_sheet(*, job: Job, sheet: CheckSheet, by: User) -> bool:
     """A passing sheet clears the holds sheets opened on its requirement, and only those, when
     it was filled against the checklist's current version (an older one may lack the very item
     that failed) and made after the sheet that opened the hold (a pass filled at 05:02 on a
-    phone that was offline says nothing of the grip that failed at 07:02). Returns whether any
-    such hold stays open."""
+    phone that was offline says nothing of the grip that failed at 07:02), by the made order
+    and by the phones' own times (see _phones_say_older). Returns whether any such hold stays
+    open."""
     holds = list(
         Hold.objects.filter(
             job=job, requirement=sheet.requirement, clearance__isnull=True, sheet__isnull=False
@@ -109,10 +112,32 @@ def clear_by_passing_sheet(*, job: Job, sheet: CheckSheet, by: User) -> bool:
     if superseded(sheet.version):
         return True
     made = sheet.order_made
-    cleared = [hold for hold in holds if hold.sheet.order_made < made]
+    cleared = [
+        hold
+        for hold in holds
+        if hold.sheet.order_made < made and not _phones_say_older(sheet, hold.sheet)
+    ]
     for hold in cleared:
         HoldClearance.objects.create(hold=hold, sheet=sheet, by=by)
     return len(cleared) < len(holds)
+
+
+def _phone_time(sheet: CheckSheet) -> dt.datetime | None:
+    """When the sheet was made by its phone's own time (None without one): set right by its
+    batch's clock where the batch said when it was sent, and never after it was received (a
+    time past the receipt is a clock ahead, not a time of making)."""
+    if sheet.device_time is None:
+        return None
+    return clock.time_made(sheet.device_time, sheet.phone_clock_offset_s or 0, sheet.received_at)
+
+
+def _phones_say_older(passing: CheckSheet, failing: CheckSheet) -> bool:
+    """Whether, both sheets carrying a phone's time, the pass's is earlier than the failure's.
+    A pass sent in a batch without sent_at counts as made when received, which may put it
+    after a failure its own phone says it came before (filled half an hour earlier, offline):
+    when the two disagree, stop work first, the hold stays and a check made since clears it."""
+    said_pass, said_failure = _phone_time(passing), _phone_time(failing)
+    return said_pass is not None and said_failure is not None and said_pass < said_failure
 
 
 def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = None) -> Job:

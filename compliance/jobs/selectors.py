@@ -713,3 +713,18 @@ def ever_reached(job: Job, *states: str) -> bool:
     """Whether the job was in one of `states` at any time (its transitions say so): work
     started (working), or every pre-start check was done and passing (cleared)."""
     return bool(reached(job, *states))
+
+
+def closed_at(job: Job) -> dt.datetime | None:
+    """When the job last moved to closed, by its log (None when its log has no close)."""
+    return (
+        JobTransition.objects.filter(job=job, to_state=JobState.CLOSED)
+        .order_by("-at", "-id")
+        .values_list("at", flat=True)
+        .first()
+    )
+
+
+def day_signed(job: Job) -> bool:
+    """Whether the job's day's record is signed (sealed: nothing may be added to its day)."""
+    return DailyRecord.objects.filter(job=job, kind=DailyRecord.Kind.RECORD).exists()

@@ -202,7 +202,7 @@ def apply_sheet_outcome(
     """
     job = sheet.job if job_locked else locked(sheet.job)
     if outcome.blocking_failures:
-        if open_hold_requirements is not None and job.state != JobState.CLOSED:
+        if open_hold_requirements is not None:
             open_hold_requirements.add(sheet.requirement)
         return hold_for_failed_items(
             job=job, sheet=sheet, failures=outcome.blocking_failures, by=by

@@ -345,7 +345,8 @@ def clock_offset_s(device: dt.datetime | None, received: dt.datetime) -> int | N
 
 
 def clock_notes(sheets: list[CheckSheet], logs: list[DropLog]) -> list[str]:
-    """Plain words for every record whose phone clock was off by more than five minutes.
+    """Plain words for every record whose phone clock was off by more than five minutes, and
+    for every failure whose phone's time was not believed (made_at_receipt).
 
     An offline record reaches the server late, so only a phone time *after* its receipt, or
     one far earlier than the day, shows a wrong clock; both times stay in the record.
@@ -361,6 +362,15 @@ def clock_notes(sheets: list[CheckSheet], logs: list[DropLog]) -> list[str]:
                 "the server's time is the one of record."
             )
     measured = {s.pk for s in sheets if s.phone_clock_offset_s is not None}
+    doubted = [s for s in sheets if s.made_at_receipt]
+    for sheet in doubted:
+        notes.append(
+            f"sheet {sheet.pk}: the phone gave {utc(sheet.device_time)} as the time this failed"
+            " check was made, which is not on the job's day; a failure is kept whatever its"
+            " clock says, and counts as made when the server received it, at"
+            f" {utc(sheet.received_at)}; the server's time is the one of record."
+        )
+    measured |= {s.pk for s in doubted}
     rows = [(f"sheet {s.pk}", s.device_time, s.received_at) for s in sheets if s.pk not in measured]
     rows += [(f"drop log {log.pk}", log.device_time, log.received_at) for log in logs]
     for name, device, received in rows:
