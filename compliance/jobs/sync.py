@@ -11,6 +11,7 @@ applied in its own transaction with its receipt.
 """
 
 import datetime as dt
+import hashlib
 import json
 import math
 import uuid
@@ -31,6 +32,7 @@ from compliance.errors import DomainError, rejection_for
 from compliance.jobs import services
 from compliance.jobs.selectors import drops_of
 from compliance.models import Anchor, Drop, Equipment, Hold, Job, SyncReceipt, User
+from compliance.records.sealing import canonical_bytes
 from compliance.registers.visibility import anchors_visible_to
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
@@ -503,6 +505,39 @@ def _apply_job_run(
         batch.run = None  # whatever ended the run, later records are not applied as its own
 
 
+REUSED_ID = (
+    "This record id was used before for a different record, which stands as it was first"
+    " sent; this one is not stored. Make it again to send it as a new record."
+)
+"""A client uuid sent again with other content (see content_digest)."""
+
+
+def content_digest(record: dict[str, Any]) -> str | None:
+    """SHA-256 of what a record says: its type and data as RFC 8785 canonical JSON (keys in one
+    order, 7 and 7.0 one number). The same record sent again in a later batch has the same,
+    whatever the batch says (its sent_at); None for content with no canonical form (never
+    applied: the checks of apply_record refuse it)."""
+    try:
+        raw = canonical_bytes({"type": record.get("type"), "data": record.get("data")})
+    except (ValueError, TypeError, RecursionError):  # rfc8785's refusals are ValueErrors
+        return None
+    return hashlib.sha256(raw).hexdigest()
+
+
+def _answer_again(
+    line: dict[str, Any], receipt: SyncReceipt, user: User, record: dict[str, Any]
+) -> dict[str, Any]:
+    """The answer to a record whose client uuid has a receipt: the stored answer for the same
+    record sent again; a refusal of this record alone for another person's uuid, or for other
+    content under the uuid (a failure sent under a pass's id was answered 'pass' and lost). A
+    receipt kept before its content was hashed answers as the same record."""
+    if receipt.user_id != user.pk:
+        return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
+    if receipt.content_sha256 and receipt.content_sha256 != content_digest(record):
+        return {**line, "status": "rejected", "errors": {"client_uuid": [REUSED_ID]}}
+    return {**line, "status": receipt.status, "duplicate": True, **receipt.result}
+
+
 def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
     """Apply one client record exactly once and return its result line (see apply_batch)."""
     user = batch.user
@@ -534,9 +569,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         else SyncReceipt.objects.filter(client_uuid=client_uuid).first()
     )
     if receipt is not None:
-        if receipt.user_id != user.pk:
-            return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
-        return {**line, "status": receipt.status, "duplicate": True, **receipt.result}
+        return _answer_again(line, receipt, user, record)
     unknown = sorted(printable(str(k)[:80]) for k in record if k not in ENVELOPE_KEYS)
     if unknown:
         return {**line, "status": "rejected", "errors": {k: ["Unknown field."] for k in unknown}}
@@ -583,6 +616,7 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
                     result=result,
                     device_time=_device_time(data),
                     phone_clock_offset_s=batch.phone_clock_offset_s,
+                    content_sha256=content_digest(record) or "",
                 )
                 if batch.run is not None:
                     batch.run.receipts.append(receipt)  # written with the run's last record
@@ -605,7 +639,5 @@ def apply_record(batch: Batch, record: Any) -> dict[str, Any]:
         receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()
         if receipt is None:
             raise
-        if receipt.user_id != user.pk:
-            return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
-        return {**line, "status": receipt.status, "duplicate": True, **receipt.result}
+        return _answer_again(line, receipt, user, record)
     return {**line, "status": status, **result}

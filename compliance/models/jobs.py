@@ -196,3 +196,9 @@ class SyncReceipt(AppendOnlyModel):
     device_time = models.DateTimeField(null=True, blank=True)
     phone_clock_offset_s = models.BigIntegerField(null=True, blank=True)  # see CheckSheet
     received_at = models.DateTimeField(auto_now_add=True)
+    content_sha256 = models.CharField(
+        max_length=64,
+        blank=True,
+        help_text="SHA-256 of the record's type and data as RFC 8785 JSON: a record sent again"
+        " under its client uuid must match it (empty on receipts kept before it was).",
+    )

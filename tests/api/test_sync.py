@@ -1,16 +1,19 @@
 """The offline queue's endpoint: every record applied once, however often the batch is sent."""
 
 import io
+import json
 import uuid
 
 import pytest
 from django.urls import reverse
+from django.utils import timezone
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from PIL import Image
 
 from checklists.models import CheckSheet, Photo
 from compliance.jobs.selectors import job_requirements
+from compliance.jobs.sync import REUSED_ID
 from compliance.models import DropLog, JobTransition, SyncReceipt
 from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import make_drop, published_checklist
@@ -457,3 +460,73 @@ def test_a_job_action_s_reason_is_a_text_or_refused(
     assert result["status"] == "rejected", result
     assert result["errors"] == {"reason": [words]}
     assert JobTransition.objects.filter(job=job).count() == before
+
+
+def test_a_record_id_sent_again_with_other_content_is_refused_alone(
+    job, simple_checklists, operator
+):
+    """A failure sent under the client uuid of a pass already applied was answered 'applied,
+    duplicate, verdict: pass' (the pass's stored answer), and the failure was lost."""
+    from compliance.models import Hold
+
+    client = client_for(operator)
+    passing = site_record(job, simple_checklists)
+    sync(client, [passing])
+    failing = site_record(
+        job,
+        simple_checklists,
+        {**PASSING["site"], "zone_closed": {"value": "fail"}},
+        key=passing["client_uuid"],
+    )
+    other = site_record(job, simple_checklists)
+
+    results = sync(client, [other, failing])["results"]
+
+    assert results[0]["status"] == "applied" and "duplicate" not in results[0]
+    assert results[1] == {
+        "client_uuid": passing["client_uuid"],
+        "status": "rejected",
+        "errors": {"client_uuid": [REUSED_ID]},
+    }
+    assert CheckSheet.objects.filter(client_uuid=passing["client_uuid"]).get().verdict == "pass"
+    assert not Hold.objects.filter(job=job).exists()
+
+
+def test_a_record_id_used_twice_in_one_batch_for_two_records_refuses_the_second(
+    job, simple_checklists, operator
+):
+    first = site_record(job, simple_checklists)
+    second = site_record(
+        job,
+        simple_checklists,
+        {**PASSING["site"], "roof_wind": {"value": 7.0, "unit": "m/s"}},
+        key=first["client_uuid"],
+    )
+
+    results = sync(client_for(operator), [first, second])["results"]
+
+    assert [r["status"] for r in results] == ["applied", "rejected"]
+    assert results[1]["errors"] == {"client_uuid": [REUSED_ID]}
+
+
+def test_the_same_record_resent_in_a_later_batch_is_a_duplicate_whatever_its_batch_says(
+    job, simple_checklists, operator
+):
+    """The record's own data is what must match, not the batch's (sent_at differs on every
+    send); a number written 7 or 7.0, or keys in another order, are the same record."""
+    client = client_for(operator)
+    record = site_record(job, simple_checklists)
+    record["data"]["entries"] = {
+        "zone_closed": {"value": "pass"},
+        "roof_wind": {"value": 7, "unit": "m/s"},
+    }
+    first = sync(client, [record])["results"][0]
+    again = json.loads(json.dumps(record))
+    again["data"] = dict(reversed(list(again["data"].items())))
+    again["data"]["entries"]["roof_wind"]["value"] = 7.0
+    body = {"records": [again], "sent_at": timezone.now().isoformat()}
+
+    line = client.post(reverse("sync"), body, format="json").json()["results"][0]
+
+    assert line == {**first, "duplicate": True}
+    assert CheckSheet.objects.filter(client_uuid=record["client_uuid"]).count() == 1
