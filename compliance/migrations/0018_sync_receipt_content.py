@@ -5,7 +5,7 @@ from django.db import migrations, models
 
 class Migration(migrations.Migration):
     dependencies = [
-        ("compliance", "0016_drop_added_at"),
+        ("compliance", "0017_equipment_returned_at"),
     ]
 
     operations = [
