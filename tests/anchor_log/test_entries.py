@@ -95,6 +95,18 @@ def later_job(b, days):
     return job, make_drop(job)
 
 
+def refused_start_on_the_anchor(b, versions):
+    """Another job today from the same anchor, every check passed, refuses to start: the
+    anchor is out of service."""
+    other, drop = later_job(b, days=0)
+    drop.anchor = b["drop"].anchor
+    drop.save()
+    fill_all(other, versions, b["operator"])
+    with pytest.raises(JobBlocked) as caught:
+        start_job(job=other, by=b["operator"])
+    assert "anchor_out_of_service" in [r.code for r in caught.value.reasons]
+
+
 def urls(b):
     site = b["site"]
     return [
@@ -236,13 +248,7 @@ def test_an_anchor_failing_its_load_test_or_inspection_stops_work_on_it(
         " Base plate cracked under the proof load."
     )
     # A new job on the anchor cannot start, and a crew's passing pre-use check clears nothing.
-    other, drop = later_job(b, days=0)
-    drop.anchor = b["drop"].anchor
-    drop.save()
-    fill_all(other, simple_checklists, b["operator"])
-    with pytest.raises(JobBlocked) as caught:
-        start_job(job=other, by=b["operator"])
-    assert "anchor_out_of_service" in [r.code for r in caught.value.reasons]
+    refused_start_on_the_anchor(b, simple_checklists)
     fill_all(b["job"], simple_checklists, b["operator"])
     b["job"].refresh_from_db()
     assert b["job"].state == JobState.HELD
@@ -341,13 +347,7 @@ def test_a_job_planning_an_out_of_service_anchor_cannot_start(building, simple_c
     b = building
     sign(b, kind="removed_from_service", details="Corroded.")
     fill_all(b["job"], simple_checklists, b["operator"])
-    other, drop = later_job(b, days=0)
-    drop.anchor = b["drop"].anchor
-    drop.save()
-    fill_all(other, simple_checklists, b["operator"])
-    with pytest.raises(JobBlocked) as caught:
-        start_job(job=other, by=b["operator"])
-    assert "anchor_out_of_service" in [r.code for r in caught.value.reasons]
+    refused_start_on_the_anchor(b, simple_checklists)
 
 
 def test_an_overdue_periodic_inspection_blocks_start(building, simple_checklists):
