@@ -487,6 +487,8 @@ WITHOUT_NOTES = (FIRST_LAYOUT, READABLE_LAYOUT, "parapet.daily-record/4")
 """The formats whose pages leave the job's notes out (they are drawn as they were signed)."""
 WITHOUT_FOUND = (*WITHOUT_NOTES, "parapet.daily-record/5")
 """The formats whose holds print only when the server opened them (drawn as signed)."""
+WITHOUT_JUDGED_ON = (*WITHOUT_FOUND, "parapet.daily-record/6")
+"""The formats sealed before each check's figures were (drawn as signed, without them)."""
 """Records sealed in this format keep the readable layout with every table cell set as a
 paragraph and the plots drawn as reportlab graphics. Later formats draw the same pages with
 plain cells and plots drawn on the canvas, which is what makes them quick to draw and check."""
@@ -510,6 +512,11 @@ class _Look:
     phone offline on the roof) also prints when the check was made: "opened 10:31" alone read
     as if the failure was found hours after it was."""
 
+    judged: bool = False
+    """From /7: each check prints the register, profile and plan figures it was judged on, and
+    the first page lists every one the record's register read otherwise at signing (a line
+    re-rated after its check printed only its new rating, beside a verdict made on the old)."""
+
     @classmethod
     def of(cls, document: dict[str, Any]) -> "_Look":
         record = document.get("record") or {}
@@ -525,6 +532,7 @@ class _Look:
             plain=document.get("format") != READABLE_LAYOUT,
             notes=document.get("format") not in WITHOUT_NOTES,
             found=document.get("format") not in WITHOUT_FOUND,
+            judged=document.get("format") not in WITHOUT_JUDGED_ON,
         )
 
     def cell(self, text: Any, style: ParagraphStyle) -> Any:
@@ -687,6 +695,7 @@ def _cover(
     ]
     if document.get("remarks"):
         story += [_p("Remarks", s["h3"]), *_paras(document["remarks"], s["body"])]
+    story += _changed_since_checked(record, s, look)
     job_notes = (record.get("job") or {}).get("notes")
     if look.notes and isinstance(job_notes, str) and job_notes.strip():
         story += [
@@ -709,6 +718,182 @@ def _subjects(record: dict[str, Any]) -> dict[str, str]:
         for e in record["equipment"]
     }
     return subjects
+
+
+_KIT = ("robot", "tether", "safety_line", "hose")
+_UNIT_WORDS = {
+    "kn": "kN",
+    "n": "N",
+    "kg": "kg",
+    "m": "m",
+    "m2": "m²",
+    "mm": "mm",
+    "ms": "m/s",
+    "s": "s",
+    "h": "h",
+    "d": "d",
+    "kpa": "kPa",
+    "l": "L",
+}
+_UNKNOWN: Any = object()
+"""A figure the record's own snapshot does not hold (a facade zone), so cannot compare."""
+
+
+@dataclass(frozen=True)
+class _Figure:
+    """One figure a check was judged on, as printed: whose it is, what, the value it was judged
+    on and the value the record's register held at signing (_UNKNOWN where it holds none)."""
+
+    drop: str
+    words: str
+    judged: Any
+    at_signing: Any
+    unit: str
+
+    def value(self, value: Any) -> str:
+        if value is None:
+            return "none on record"
+        return f"{_fmt(value)} {self.unit}" if self.unit and _is_number(value) else _fmt(value)
+
+    @property
+    def changed(self) -> bool:
+        if self.at_signing is _UNKNOWN:
+            return False
+        if _is_number(self.judged) and _is_number(self.at_signing):
+            return float(self.judged) != float(self.at_signing)
+        return bool(self.judged != self.at_signing)
+
+    def line(self) -> str:
+        text = f"{self.words} {self.value(self.judged)}"
+        if self.changed:
+            text += f" (the register read {self.value(self.at_signing)} at signing)"
+        return text
+
+
+def _figure_words(ref: str) -> tuple[str, str]:
+    """A register or profile name as words and the unit its suffix names: "mbs_kn" is
+    ("mbs", "kN"), "cleaning_rate_m2_per_h" ("cleaning rate", "m²/h")."""
+    words = ref.split("_")
+    if len(words) >= 3 and words[-2] == "per" and {words[-3], words[-1]} <= _UNIT_WORDS.keys():
+        return " ".join(words[:-3]), f"{_UNIT_WORDS[words[-3]]}/{_UNIT_WORDS[words[-1]]}"
+    if len(words) > 1 and words[-1] in _UNIT_WORDS:
+        return " ".join(words[:-1]), _UNIT_WORDS[words[-1]]
+    return " ".join(words), ""
+
+
+def _judged_figures(
+    record: dict[str, Any], sheet: dict[str, Any], subjects: dict[str, str]
+) -> list[_Figure]:
+    """The figures a /7 sheet was judged on (its sealed `judged_on`, drop by drop), each with
+    what the record's own register snapshot held at signing."""
+    judged = sheet.get("judged_on")
+    if not isinstance(judged, dict):
+        return []
+    drops = {str(d.get("id")): d for d in record.get("drops") or [] if isinstance(d, dict)}
+    kit = {e.get("id"): e for e in record.get("equipment") or [] if isinstance(e, dict)}
+    anchors = {a.get("id"): a for a in record.get("anchors") or [] if isinstance(a, dict)}
+    profile = record.get("profile") or {}
+    thresholds = profile.get("thresholds") if isinstance(profile, dict) else None
+    thresholds = thresholds if isinstance(thresholds, dict) else {}
+    site = record.get("site") if isinstance(record.get("site"), dict) else {}
+    figures: list[_Figure] = []
+    for key in sorted(judged, key=str):
+        names = judged[key]
+        if not isinstance(names, dict):
+            continue
+        drop = drops.get(str(key)) if key != "" else None
+        where = (
+            f"drop {drop.get('label')}"
+            if drop is not None
+            else ("the site" if key == "" else f"drop #{key} (no longer in the plan)")
+        )
+        for name in sorted(names, key=str):
+            kind, _, ref = str(name).partition(".")
+            words, unit = _figure_words(ref)
+            at: Any = _UNKNOWN
+            if kind == "profile":
+                threshold = thresholds.get(ref, _UNKNOWN)
+                if isinstance(threshold, dict):
+                    unit = str(threshold.get("unit") or "")
+                    at = threshold.get("value")
+                owner = "profile"
+            elif kind == "equipment" or kind in _KIT:
+                item_id = sheet.get("equipment") if kind == "equipment" else (drop or {}).get(kind)
+                item = kit.get(item_id)
+                ratings = item.get("ratings") if item is not None else None
+                if isinstance(ratings, dict) and (kind == "equipment" or drop is not None):
+                    at = ratings.get(ref)
+                owner = subjects.get(f"equipment:{item_id}", kind.replace("_", " "))
+            elif kind == "anchor":
+                anchor_id = sheet.get("anchor") or (drop or {}).get("safety_anchor")
+                anchor = anchors.get(anchor_id)
+                if anchor is not None and ref == "rated_capacity_kn":
+                    cert = anchor.get("certification")
+                    at = cert.get("rated_capacity_kn") if isinstance(cert, dict) else None
+                owner = subjects.get(f"anchor:{anchor_id}", "anchor")
+            elif kind == "drop" and ref in ("height_m", "terrain"):
+                at, owner = site.get(ref, _UNKNOWN), "site"
+            elif kind == "drop":
+                if drop is not None and ref == "length_m":
+                    at = drop.get("length_m")
+                owner = where
+            else:
+                owner = kind
+            words = f"{owner} {words}".strip()
+            figures.append(_Figure(where, words, names[name], at, unit))
+    return figures
+
+
+def _judged_on(
+    record: dict[str, Any], sheet: dict[str, Any], subjects: dict[str, str], s: Any
+) -> list[Any]:
+    """A /7 sheet's figures, one paragraph per drop, under its table."""
+    figures = _judged_figures(record, sheet, subjects)
+    if not figures:
+        return []
+    by_drop: dict[str, list[str]] = {}
+    for figure in figures:
+        by_drop.setdefault(figure.drop, []).append(figure.line())
+    return [
+        p
+        for where, lines in by_drop.items()
+        for p in _paras(f"Judged on, for {where}: " + "; ".join(lines) + ".", s["small"])
+    ]
+
+
+def _changed_since_checked(
+    record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look
+) -> list[Any]:
+    """On the first page of a /7 record: every figure a check was judged on that the register
+    read otherwise when the record was signed."""
+    if not look.judged:
+        return []
+    subjects = _subjects(record)
+    rows = [["Check", "Figure", "Judged on", "At signing"]]
+    for sheet in record.get("sheets") or []:
+        for figure in _judged_figures(record, sheet, subjects):
+            if figure.changed:
+                rows.append(
+                    [
+                        look.cell(f"#{sheet.get('id')} {sheet.get('title', '')}", s["small"]),
+                        look.cell(f"{figure.words} ({figure.drop})", s["small"]),
+                        look.cell(figure.value(figure.judged), s["small"]),
+                        look.cell(figure.value(figure.at_signing), s["small"]),
+                    ]
+                )
+    if len(rows) == 1:
+        return []
+    return [
+        _p("Figures changed between a check and signing", s["h3"]),
+        *_paras(
+            "These checks were judged on the figures they read when they were made; when this"
+            " record was signed the register or profile read otherwise. Each verdict holds for"
+            " the figures it was judged on only: whether the rig was safe on the new figures"
+            " was not checked by these checks.",
+            s["small"],
+        ),
+        _table(rows, [50 * mm, 70 * mm, 30 * mm, 30 * mm], plain=look.plain),
+    ]
 
 
 def _concerns(hold: dict[str, Any], subjects: dict[str, str]) -> str:
@@ -888,6 +1073,8 @@ def _sheets(
         block: list[Any] = [head, table]
         if sheet["remarks"]:
             block += _paras(f"Remarks: {sheet['remarks']}", s["small"])
+        if look.judged:
+            block += _judged_on(record, sheet, subjects, s)
         story += [KeepTogether(block), *series, *working]
         shots = [p for p in record["photos"] if p["sheet_uuid"] == sheet["client_uuid"]]
         if shots:

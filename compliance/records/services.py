@@ -55,20 +55,25 @@ from compliance.records.signing import (
 )
 from compliance.text import has_words
 
-FORMAT = "parapet.daily-record/6"
+FORMAT = "parapet.daily-record/7"
 """/3 added each entry's label (the checklist's words) and the time zone the pages print times
 in; /4 holds the same document and is drawn with plain table cells and plots drawn on the
 canvas (quicker to draw, and so to check); /5 holds the same document and also prints the job's
 notes, which every format sealed and none printed; /6 holds the same document and prints, beside
 a hold opened well after its check was made (a phone offline on the roof), when the check was
-made. Records sealed in an older format keep their format, their pages and their checks."""
-RECORD_FORMATS = (
+made; /7 also seals each check's `judged_on` (the register, profile and plan figures it was
+judged on, drop by drop) and prints them, with every one the register read otherwise at signing
+(a line re-rated after its check printed only its new rating). Records sealed in an older
+format keep their format, their pages and their checks."""
+WITHOUT_JUDGED_ON = (
     "parapet.daily-record/2",
     "parapet.daily-record/3",
     "parapet.daily-record/4",
     "parapet.daily-record/5",
-    FORMAT,
+    "parapet.daily-record/6",
 )
+"""The formats sealed before each check's figures were: rebuilt without them to compare."""
+RECORD_FORMATS = (*WITHOUT_JUDGED_ON, FORMAT)
 ADDENDUM_MEANING = (
     "Addendum: corrects or adds to the referenced record; the original stands unchanged."
 )
@@ -147,6 +152,7 @@ def day_content(
     format to build: a /2 record is rebuilt as /2 to be compared with its seal.
     """
     labelled = fmt != "parapet.daily-record/2"
+    judged = fmt not in WITHOUT_JUDGED_ON
     site, profile = job.site, job.site.profile
     drops = drops_of(job)
     sheets = list(
@@ -275,6 +281,7 @@ def day_content(
                 "verdict": s.verdict,
                 "blocking_failures": s.blocking_failures,
                 "remarks": s.remarks,
+                **({"judged_on": s.judged_on} if judged else {}),
                 "entries": [
                     _entry(e, labels)
                     for labels in [_item_labels(s.version.items) if labelled else None]

@@ -416,6 +416,7 @@ RECORD_FORMATS = {
     "parapet.daily-record/4",
     "parapet.daily-record/5",
     "parapet.daily-record/6",
+    "parapet.daily-record/7",
     "parapet.daily-record-addendum/2",
 }
 

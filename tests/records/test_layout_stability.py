@@ -12,8 +12,8 @@ the old formats drawn exactly as before.
 the verifier checks in the same way): a day's record with a failed item, an open
 and a cleared hold, a clock note, a photo (drawn as its empty box), series, calculations and
 a drop plan, a series of 300 readings whose table runs over pages and a remark split over
-rows, drawn in each record format (the formats differ only in how they are drawn); and an
-addendum.
+rows, drawn in each record format (the formats differ in how they are drawn, and from /7 in
+the figures each check was judged on); and an addendum.
 """
 
 import hashlib
@@ -50,6 +50,30 @@ def _found_late(record):
 
 
 FOUND_LATE = _found_late(NOTED)
+
+
+def _judged(record):
+    """The found-late document with the figures its checks were judged on (/7): the anchor's
+    sheet on a capacity of 30 kN where the record's certificate reads 22.2 kN at signing, the
+    robot's sheet on two drops, one of them no longer in the plan."""
+    record = json.loads(json.dumps(record))
+    for sheet in record["sheets"]:
+        sheet["judged_on"] = {"1": {}}
+    record["sheets"][0]["judged_on"] = {
+        "1": {
+            "anchor.rated_capacity_kn": 30,
+            "drop.length_m": 100,
+            "profile.min_anchor_capacity_kn": 12,
+        }
+    }
+    record["sheets"][2]["judged_on"] = {
+        "1": {"equipment.max_wind_ms": 12, "profile.max_wind_ms": 14, "hose.kg_per_m": 0.15},
+        "99": {"equipment.mass_kg": 60, "drop.facade_zone": "edge"},
+    }
+    return record
+
+
+JUDGED = _judged(FOUND_LATE)
 DOCUMENTS = {
     **{
         f"record-{n}": {**FIXTURES["record"], "format": f"parapet.daily-record/{n}"}
@@ -59,6 +83,8 @@ DOCUMENTS = {
     "record-5": {**FIXTURES["record"], "record": NOTED, "format": "parapet.daily-record/5"},
     # /6 prints when a hold's check was made, where it reached the server well after.
     "record-6": {**FIXTURES["record"], "record": FOUND_LATE, "format": "parapet.daily-record/6"},
+    # /7 prints the figures each check was judged on, and those changed by signing.
+    "record-7": {**FIXTURES["record"], "record": JUDGED, "format": "parapet.daily-record/7"},
     "addendum": FIXTURES["addendum"],
 }
 
@@ -68,6 +94,7 @@ PINNED = {
     "record-4": "332a19adf82a43818d73067040eac864800488143d65d5a3f8cade8ca160876f",
     "record-5": "38933f2fa38e8cef9320424e4e9ea1ea3a127ac866877112f248b8913d054c64",
     "record-6": "7850817f8884c7f9dfbdbe148b1d49f8704d0cffc6e4d7ffa3f7082bb3969ab1",
+    "record-7": "0288464d0ab18ae8a78065c45cfc053add1c46dd94980cf11f2038a3c3a37812",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
 }
 
@@ -256,6 +283,22 @@ def test_from_6_a_hold_says_when_its_check_was_made_and_before_it_did_not():
     assert "check was made 2026-03-04 05:01:00" in " ".join(text(DOCUMENTS["record-6"]).split())
     as_five = {**DOCUMENTS["record-6"], "format": "parapet.daily-record/5"}
     assert "check was made" not in " ".join(text(as_five).split())
+
+
+def test_from_7_each_check_prints_the_figures_it_was_judged_on_and_before_it_did_not():
+    def text(document):
+        pdf = render(document, FIXTURES["seal"])
+        return " ".join(
+            " ".join(p.extract_text() for p in PdfReader(io.BytesIO(pdf)).pages).split()
+        )
+
+    seven = text(DOCUMENTS["record-7"])
+    assert "Figures changed between a check and signing" in seven
+    assert "anchor R0-0 rated capacity 30 kN (the register read 22.2 kN at signing)" in seven
+    assert "Judged on, for drop #99 (no longer in the plan): drop #99 (no longer" in seven
+    assert "hose hose-0 0.15 kg/m" in seven
+    as_six = text({**DOCUMENTS["record-7"], "format": "parapet.daily-record/6"})
+    assert "Judged on" not in as_six and "Figures changed" not in as_six
 
 
 def test_a_register_change_s_hold_names_the_kit_it_concerns():
