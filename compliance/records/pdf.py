@@ -515,7 +515,9 @@ class _Look:
     judged: bool = False
     """From /7: each check prints the register, profile and plan figures it was judged on, and
     the first page lists every one the record's register read otherwise at signing (a line
-    re-rated after its check printed only its new rating, beside a verdict made on the old)."""
+    re-rated after its check printed only its new rating, beside a verdict made on the old).
+    From /7 too, a character the record's font has no glyph for prints as its code point
+    ("[U+4E2D]") where it printed as an empty box, which a person could not read back."""
 
     @classmethod
     def of(cls, document: dict[str, Any]) -> "_Look":
@@ -580,8 +582,12 @@ def render(
     """
     s = _styles()
     photos = photos or {}
-    record = document.get("record")
     look = _Look.of(document)
+    sealed, spelled = document, False
+    if look.judged and not json.dumps(document, ensure_ascii=False).isascii():
+        document = _spelled(document)
+        spelled = document != sealed
+    record = document.get("record")
     story: list[Any] = []
     sig = document["signature"]
     if record is None:
@@ -596,6 +602,8 @@ def render(
     signed_at = (
         f"{look.when(sig['signed_at'])} {look.zone_name}" if look.readable else sig["signed_at"]
     )
+    if spelled:
+        story += [Spacer(1, 4 * mm), *_paras(SPELLED_NOTE, s["small"])]
     story += [
         Spacer(1, 6 * mm),
         _p(SEAL_LABEL, s["h3"]),
@@ -610,16 +618,53 @@ def render(
         rightMargin=15 * mm,
         topMargin=15 * mm,
         bottomMargin=20 * mm,
-        title=_title(document),
-        author=sig["name"],
+        title=_title(sealed),
+        author=sealed["signature"]["name"],
         subject=f"Seal {seal}",
         creator="Parapet",
         producer="Parapet",
         invariant=1,
     )
-    attachment = canonical_bytes(document) if attach else None
+    attachment = canonical_bytes(sealed) if attach else None
     doc.build(story, canvasmaker=_canvas_for(seal, attachment))
     return buffer.getvalue()
+
+
+SPELLED_NOTE = (
+    "Some text in this record holds characters the record's font cannot draw: each prints as"
+    " its code point, such as [U+4E2D]. The sealed document attached to this file holds the"
+    " text as it was written."
+)
+
+
+@lru_cache(maxsize=1)
+def _drawable() -> frozenset[int]:
+    """The code points both of the record's fonts have a glyph for."""
+    regular, bold = _register_fonts()
+    return frozenset(pdfmetrics.getFont(regular).face.charToGlyph) & frozenset(
+        pdfmetrics.getFont(bold).face.charToGlyph
+    )
+
+
+def _spelled_text(text: str) -> str:
+    if text.isascii():
+        return text
+    drawable = _drawable()
+    return "".join(
+        ch if ord(ch) < 0x80 or ord(ch) in drawable else f"[U+{ord(ch):04X}]" for ch in text
+    )
+
+
+def _spelled(value: Any) -> Any:
+    """`value` with every character the fonts cannot draw spelled as its code point (from
+    /7, drawn only: the attachment and the seal keep the text as written)."""
+    if isinstance(value, str):
+        return _spelled_text(value)
+    if isinstance(value, dict):
+        return {key: _spelled(inner) for key, inner in value.items()}
+    if isinstance(value, list):
+        return [_spelled(inner) for inner in value]
+    return value
 
 
 def _title(document: dict[str, Any]) -> str:

@@ -53,7 +53,8 @@ FOUND_LATE = _found_late(NOTED)
 
 
 def _judged(record):
-    """The found-late document with the figures its checks were judged on (/7): the anchor's
+    """The found-late document with the figures its checks were judged on (/7) and a remark in
+    two scripts: the anchor's
     sheet on a capacity of 30 kN where the record's certificate reads 22.2 kN at signing, the
     robot's sheet on two drops, one of them no longer in the plan."""
     record = json.loads(json.dumps(record))
@@ -66,6 +67,8 @@ def _judged(record):
             "profile.min_anchor_capacity_kn": 12,
         }
     }
+    # A remark the fonts cannot draw all of: /7 prints the code point where /6 drew a box.
+    record["sheets"][0]["remarks"] = "Weld crack seen by 李 Wei; photo sent."
     record["sheets"][2]["judged_on"] = {
         "1": {"equipment.max_wind_ms": 12, "profile.max_wind_ms": 14, "hose.kg_per_m": 0.15},
         "99": {"equipment.mass_kg": 60, "drop.facade_zone": "edge"},
@@ -94,7 +97,7 @@ PINNED = {
     "record-4": "332a19adf82a43818d73067040eac864800488143d65d5a3f8cade8ca160876f",
     "record-5": "38933f2fa38e8cef9320424e4e9ea1ea3a127ac866877112f248b8913d054c64",
     "record-6": "7850817f8884c7f9dfbdbe148b1d49f8704d0cffc6e4d7ffa3f7082bb3969ab1",
-    "record-7": "0288464d0ab18ae8a78065c45cfc053add1c46dd94980cf11f2038a3c3a37812",
+    "record-7": "dc68000bf5a01c6e0ba9e4ca768ae1c38f5e504aee6873fe4ead8a559d3bffe6",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
 }
 
@@ -299,6 +302,29 @@ def test_from_7_each_check_prints_the_figures_it_was_judged_on_and_before_it_did
     assert "hose hose-0 0.15 kg/m" in seven
     as_six = text({**DOCUMENTS["record-7"], "format": "parapet.daily-record/6"})
     assert "Judged on" not in as_six and "Figures changed" not in as_six
+
+
+def test_from_7_a_character_the_fonts_cannot_draw_prints_as_its_code_point():
+    """DejaVu Sans has no Han glyphs: the remark's name printed as an empty box, so the page
+    a person reads did not say what was sealed. The attachment keeps the text as written."""
+    document = DOCUMENTS["record-7"]
+    pdf = render(document, FIXTURES["seal"])
+    text = " ".join(" ".join(p.extract_text() for p in PdfReader(io.BytesIO(pdf)).pages).split())
+
+    assert "Weld crack seen by [U+674E] Wei; photo sent." in text
+    assert "each prints as its code point, such as [U+4E2D]" in text
+    assert document_of(pdf) == document
+    assert "李" in read_attachment(pdf).decode()
+    as_six = render({**document, "format": "parapet.daily-record/6"}, FIXTURES["seal"])
+    six = " ".join(p.extract_text() for p in PdfReader(io.BytesIO(as_six)).pages)
+    assert "[U+674E]" not in six and "code point" not in six
+
+
+def test_text_the_fonts_draw_whole_is_not_spelled():
+    from compliance.records.pdf import _spelled
+
+    words = {"remark": ["Ré-serrage à 25 N·m, ±2 %, Ø 12 mm, λ 0.8, Ж"], "n": 5}
+    assert _spelled(words) == words
 
 
 def test_a_register_change_s_hold_names_the_kit_it_concerns():
