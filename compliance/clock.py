@@ -15,12 +15,21 @@ from contextvars import ContextVar
 
 from django.utils import timezone
 
+from compliance.timeline import time_made
+
+__all__ = ["day_made", "replayed", "replaying", "time_made", "today"]
+
 _replayed: ContextVar[dt.date | None] = ContextVar("replayed_day", default=None)
 
 
 def today() -> dt.date:
     """The server's local date, or the day being replayed."""
     return _replayed.get() or timezone.localdate()
+
+
+def replayed() -> bool:
+    """Whether an earlier day is being replayed (the demo laying down its history)."""
+    return _replayed.get() is not None
 
 
 @contextmanager
@@ -53,18 +62,3 @@ def day_made(
     if received <= job_date:
         return received
     return timezone.localdate(device_time)
-
-
-def time_made(
-    device_time: dt.datetime | None, phone_clock_offset_s: int | None, received: dt.datetime
-) -> dt.datetime:
-    """When a record from a phone was made, as near as the server can tell: the phone's time
-    set right by how far its clock was off when it sent the batch, and never after it was
-    received; without both, when it was received."""
-    if device_time is None or phone_clock_offset_s is None:
-        return received
-    try:
-        made = device_time - dt.timedelta(seconds=phone_clock_offset_s)
-    except OverflowError:
-        return received
-    return min(made, received)

@@ -209,6 +209,11 @@ CELERY_BEAT_SCHEDULE = {
     "sweep-orphan-pdfs": {"task": "compliance.tasks.sweep_orphan_pdfs", "schedule": 24 * 3600},
     # A render that failed all its retries is queued again from here, not only when asked for.
     "render-missing-pdfs": {"task": "compliance.tasks.render_missing_pdfs", "schedule": 600},
+    # A job at work whose weather check ran out stops within the minute (weather_recheck_min).
+    "stop-work-on-stale-weather": {
+        "task": "compliance.tasks.stop_work_on_stale_weather",
+        "schedule": 60,
+    },
 }
 
 CACHES = {"default": env.cache("CACHE_URL", default="locmemcache://")}

@@ -9,6 +9,7 @@ from django.core.cache import cache
 from django.utils import timezone
 
 from compliance.due.notices import email_new_notices, flag_due, flag_unsigned
+from compliance.jobs import services as job_services
 from compliance.models import DailyRecord
 from compliance.records import files as record_files
 from compliance.records.files import ensure_pdf
@@ -101,6 +102,12 @@ def render_missing_pdfs(older_than_minutes: int = 10, limit: int = 200) -> int:
         .values_list("pk", flat=True)[:limit]
     )
     return sum(queue_render(pk) for pk in ids)
+
+
+@shared_task
+def stop_work_on_stale_weather() -> int:
+    """Hold the jobs at work whose weather was not read again in time."""
+    return job_services.stop_work_on_stale_weather()
 
 
 @shared_task

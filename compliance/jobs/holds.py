@@ -214,6 +214,10 @@ def reread_for_new_version(*, organisation_id: int | None, by: User | None) -> N
 
 JUDGED_ON_CHANGED = "judged_on"
 """The item key of a hold opened because a figure a check read has changed since."""
+WEATHER_DUE = "weather_due"
+"""The item key of a hold opened because the weather was not read again in time."""
+CLEARED_BY_A_NEW_CHECK = {JUDGED_ON_CHANGED, WEATHER_DUE}
+"""Holds that name the check they leave behind, so that a check made since clears them."""
 
 STOPS_WORK = {
     "sheet_judged_on_changed": JUDGED_ON_CHANGED,
@@ -223,6 +227,7 @@ STOPS_WORK = {
     "anchor_certification_expired": "anchor_certification_expired",
     "anchor_capacity_low": "anchor_capacity_low",
     "line_shorter_than_drop": "line_shorter_than_drop",
+    "weather_stale": WEATHER_DUE,
 }
 """What a register change can leave that stops a job at work, by blocker code, and the item key
 of the hold it opens. An anchor removed from service is the owner's log book's own hold."""
@@ -243,9 +248,16 @@ def reread_readiness(*, jobs: Iterable[Job], by: User | None) -> None:
             refresh_readiness(job=job, by=by)
 
 
-def hold_for_register_change(*, job: Job, by: User | None) -> Job:
-    """Open a hold for each thing the register now says stops the job (see STOPS_WORK) that no
-    open hold already stands for."""
+def hold_for_register_change(
+    *,
+    job: Job,
+    by: User | None,
+    codes: Iterable[str] = STOPS_WORK,
+    why: str = "Stop work: the register changed under the job.",
+) -> Job:
+    """Open a hold for each thing the register now says stops the job (see STOPS_WORK; only
+    `codes` of them) that no open hold already stands for."""
+    codes = set(codes)
     requirements = job_requirements(job)
     latest = {r.key: r.latest_sheet_id for r in requirements}
     holding = set(
@@ -253,7 +265,7 @@ def hold_for_register_change(*, job: Job, by: User | None) -> Job:
     )
     opened = []
     for reason in job_blockers(job, requirements=requirements):
-        item_key = STOPS_WORK.get(reason.code)
+        item_key = STOPS_WORK.get(reason.code) if reason.code in codes else None
         if item_key is None or (reason.requirement, item_key) in holding:
             continue
         holding.add((reason.requirement, item_key))
@@ -262,15 +274,32 @@ def hold_for_register_change(*, job: Job, by: User | None) -> Job:
                 job=job,
                 requirement=reason.requirement,
                 item_key=item_key,
-                # A check judged on a changed figure is cleared by a check made since.
-                sheet_id=latest.get(reason.requirement) if item_key == JUDGED_ON_CHANGED else None,
+                # A check judged on a changed figure, or weather read too long ago, is cleared
+                # by a check made since.
+                sheet_id=latest.get(reason.requirement)
+                if item_key in CLEARED_BY_A_NEW_CHECK
+                else None,
                 reason=reason.message,
             )
         )
     if not opened:
         return job
     Hold.objects.bulk_create(opened)
-    return transition(job, JobState.HELD, by, "Stop work: the register changed under the job.")
+    return transition(job, JobState.HELD, by, why)
+
+
+def hold_for_stale_weather(*, job: Job, by: User | None = None) -> Job:
+    """Stop a job at work whose weather check has run out (the profile's
+    `weather_recheck_min`): the hold names that check, and a weather check made since clears
+    it. The job's row is locked by the caller."""
+    if job.state != JobState.WORKING:
+        return job
+    return hold_for_register_change(
+        job=job,
+        by=by,
+        codes=("weather_stale",),
+        why="Stop work: the wind was not read again in time.",
+    )
 
 
 def clear_register_holds(*, job: Job, by: User | None) -> None:

@@ -9,6 +9,7 @@ from django.utils import timezone
 
 from checklists.selectors import changed_since, current_versions, latest_sheets
 from checklists.verdicts import REGISTER_WORDS
+from compliance import clock
 from compliance.errors import Reason
 from compliance.models import (
     OPEN_STATES,
@@ -27,6 +28,7 @@ from compliance.models import (
 from compliance.registers.ratings import rating_labels
 from compliance.registers.selectors import anchor_status, failed_test, withdrawal
 from compliance.registers.visibility import can_work_at
+from compliance.timeline import WEATHER_CHECKLIST, recheck_interval
 
 
 @dataclass(frozen=True)
@@ -72,6 +74,9 @@ class Requirement:
     before_return: bool = False
     """The newest sheet was made before its subject was last returned to service (a line
     taken out for a cut sheath and put back): it checked the kit as it was then."""
+    read_at: dt.datetime | None = None
+    """When the newest weather check was made, where the profile asks for the weather to be
+    read again within a time (`weather_recheck_min`) and that time has run out."""
 
     @property
     def outdated(self) -> bool:
@@ -188,6 +193,21 @@ def anchor_returned_at(entries: Iterable[AnchorLogEntry]) -> dt.datetime | None:
     return moment
 
 
+def weather_recheck(job: Job) -> dt.timedelta | None:
+    """How long a weather check counts for under the job's profile (None: all day, as a
+    profile without `weather_recheck_min` says)."""
+    return recheck_interval(job.site.profile.thresholds)
+
+
+def weather_stale_since(job: Job, made_at: dt.datetime) -> bool:
+    """Whether a weather check made at `made_at` has run out now. A day the demo replays is
+    history laid down as it happened, and is not judged by today's clock."""
+    interval = weather_recheck(job)
+    if interval is None or clock.replayed() or job.state == JobState.CLOSED:
+        return False
+    return timezone.now() - made_at > interval
+
+
 def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirement]:
     """Which sheets the job needs, and whether the newest sheet for each passes."""
     drops = drops_of(job) if drops is None else drops
@@ -216,6 +236,12 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                 if sheet is not None and sheet.judged_on and not later and not before_return
                 else None
             )
+            stale = (
+                sheet is not None
+                and sheet.blocking_failures == 0
+                and version.checklist.key == WEATHER_CHECKLIST
+                and weather_stale_since(job, sheet.made_at)
+            )
             requirements.append(
                 Requirement(
                     checklist_key=version.checklist.key,
@@ -227,13 +253,15 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     and sheet.blocking_failures == 0
                     and not later
                     and not before_return
-                    and changed is None,
+                    and changed is None
+                    and not stale,
                     latest_sheet_id=sheet.pk if sheet else None,
                     latest_verdict=sheet.verdict if sheet else None,
                     latest_version_id=sheet.version_id if sheet else None,
                     before_drop=later[0] if later else "",
                     changed=changed,
                     before_return=before_return,
+                    read_at=sheet.made_at if stale else None,  # type: ignore[union-attr]
                 )
             )
     return requirements
@@ -454,6 +482,17 @@ def job_blockers(
                     f"{req.checklist_title} for {_the(req.subject)} was judged with"
                     f" {whose} {words} at {_figure(then, unit)}; it now reads"
                     f" {_figure(now, unit)}: check it again.",
+                    req.key,
+                )
+            )
+        elif req.read_at is not None:
+            minutes = weather_recheck(job) // dt.timedelta(minutes=1)  # type: ignore[operator]
+            reasons.append(
+                Reason(
+                    "weather_stale",
+                    f"{req.checklist_title} was last read at"
+                    f" {timezone.localtime(req.read_at):%H:%M}, more than {minutes} min ago:"
+                    " read the wind again before work goes on.",
                     req.key,
                 )
             )

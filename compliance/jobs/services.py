@@ -20,11 +20,17 @@ from compliance.errors import (
 from compliance.jobs.holds import (
     clear_by_passing_sheet,
     hold_for_failed_items,
+    hold_for_stale_weather,
     locked,
     refresh_readiness,
     transition,
 )
-from compliance.jobs.selectors import ever_reached, job_blockers, plan_conflicts
+from compliance.jobs.selectors import (
+    ever_reached,
+    job_blockers,
+    plan_conflicts,
+    weather_recheck,
+)
 from compliance.models import (
     Anchor,
     Drop,
@@ -214,6 +220,22 @@ def apply_sheet_outcome(
     if defer_readiness:
         return job
     return refresh_readiness(job=job, by=by, drops=drops)
+
+
+def stop_work_on_stale_weather() -> int:
+    """Hold every job at work whose weather check has run out under its profile
+    (`weather_recheck_min`); run each minute by the beat. Returns how many it held. Each job
+    is locked and read again in its own transaction, so a check arriving meanwhile wins."""
+    held = 0
+    working = Job.objects.filter(state=JobState.WORKING).select_related("site__profile")
+    for candidate in working.order_by("pk"):
+        if weather_recheck(candidate) is None:
+            continue
+        with transaction.atomic():
+            job = locked(candidate)
+            if job.state == JobState.WORKING:
+                held += hold_for_stale_weather(job=job).state == JobState.HELD
+    return held
 
 
 DROP_NOTE_MAX = 500

@@ -47,6 +47,7 @@ from reportlab.platypus import (
 
 from compliance.engineering.working import whole_pct
 from compliance.records.sealing import canonical_bytes
+from compliance.timeline import recheck_interval, weather_gaps
 
 ATTACHMENT_NAME = "daily-record.json"
 SEAL_LABEL = "Seal (SHA-256 of the attached canonical JSON):"
@@ -741,6 +742,7 @@ def _cover(
     if document.get("remarks"):
         story += [_p("Remarks", s["h3"]), *_paras(document["remarks"], s["body"])]
     story += _changed_since_checked(record, s, look)
+    story += _unread_wind(record, s, look)
     job_notes = (record.get("job") or {}).get("notes")
     if look.notes and isinstance(job_notes, str) and job_notes.strip():
         story += [
@@ -938,6 +940,27 @@ def _changed_since_checked(
             s["small"],
         ),
         _table(rows, [50 * mm, 70 * mm, 30 * mm, 30 * mm], plain=look.plain),
+    ]
+
+
+def _unread_wind(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> list[Any]:
+    """On the first page of a /7 record: when work went on with the newest weather check older
+    than the profile allows (compliance.timeline.weather_gaps, from the sealed record)."""
+    if not look.judged:
+        return []
+    gaps = weather_gaps(record)
+    if not gaps:
+        return []
+    interval = recheck_interval((record.get("profile") or {}).get("thresholds"))
+    every = f"{interval // dt.timedelta(minutes=1)} min" if interval else "the profile's time"
+    spans = "; ".join(f"{look.when(a.isoformat())} to {look.when(b.isoformat())}" for a, b in gaps)
+    return [
+        _p("Work went on without a recent wind reading", s["h3"]),
+        *_paras(
+            f"The profile asks for the wind to be read at least every {every} while work goes"
+            f" on. It was not read in time from {spans} ({look.zone_name}).",
+            s["small"],
+        ),
     ]
 
 

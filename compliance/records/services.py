@@ -54,6 +54,7 @@ from compliance.records.signing import (
     sign_seal,
 )
 from compliance.text import has_words
+from compliance.timeline import recheck_interval, weather_gaps
 
 FORMAT = "parapet.daily-record/7"
 """/3 added each entry's label (the checklist's words) and the time zone the pages print times
@@ -476,6 +477,25 @@ NO_HOLD_NOT_READY_AT_CLOSE = (
     f" ready to start): choose “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
 )
 
+WEATHER_GAP_NOT_SAFE = (
+    "Work went on while the wind had not been read within the profile's {minutes} min ({gaps}),"
+    f" so it cannot be signed as “{MEANINGS['reviewed_safe']}” Choose"
+    f" “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
+)
+
+
+def _weather_gap_words(content: dict[str, Any]) -> str | None:
+    """Why a day cannot be "safe" for its weather readings (None when it can)."""
+    gaps = weather_gaps(content)
+    if not gaps:
+        return None
+    interval = recheck_interval(content["profile"]["thresholds"])
+    minutes = f"{interval // dt.timedelta(minutes=1)}" if interval else "?"
+    spans = ", ".join(
+        f"{timezone.localtime(a):%H:%M} to {timezone.localtime(b):%H:%M}" for a, b in gaps
+    )
+    return WEATHER_GAP_NOT_SAFE.format(minutes=minutes, gaps=spans)
+
 
 def sign_daily_record(
     *, job: Job, by: User, password: str, meaning: str, remarks: str = ""
@@ -528,6 +548,9 @@ def sign_daily_record(
             raise InvalidTransition(
                 NOT_READY_AT_CLOSE_NOT_SAFE if was_ready else NEVER_READY_NOT_SAFE
             )
+        unread = _weather_gap_words(content) if meaning == "reviewed_safe" else None
+        if unread:
+            raise InvalidTransition(unread)
         head = _locked_head(job.organisation_id, job.site_id)
         sequence, previous = head.sequence + 1, head.seal
         signed_at = timezone.now()

@@ -1,0 +1,107 @@
+"""When things happened on a job's day, from the times a record holds (no Django: the pages of
+a signed record are drawn from the same rules, by the server and by the verifier alike).
+
+`time_made` is when a phone's record was made, as the server orders records; `weather_gaps`
+is when work went on without the wind read recently enough (the profile's
+`weather_recheck_min`), from a day's record as it is sealed.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections.abc import Mapping
+from typing import Any
+
+WEATHER_CHECKLIST = "weather"
+"""The checklist whose readings go stale as the day goes on (`weather_recheck_min`)."""
+
+WEATHER_GRACE = dt.timedelta(minutes=2)
+"""A gap no longer than this is not one: the beat that stops a job whose weather check ran out
+runs each minute, and the hold is written within the next."""
+
+
+def time_made(
+    device_time: dt.datetime | None, phone_clock_offset_s: int | None, received: dt.datetime
+) -> dt.datetime:
+    """When a record from a phone was made, as near as the server can tell: the phone's time
+    set right by how far its clock was off when it sent the batch, and never after it was
+    received; without both, when it was received."""
+    if device_time is None or phone_clock_offset_s is None:
+        return received
+    try:
+        made = device_time - dt.timedelta(seconds=phone_clock_offset_s)
+    except OverflowError:
+        return received
+    return min(made, received)
+
+
+def recheck_interval(thresholds: Any) -> dt.timedelta | None:
+    """How long a weather check counts for under a profile's thresholds (None: all day)."""
+    entry = thresholds.get("weather_recheck_min") if isinstance(thresholds, Mapping) else None
+    value = entry.get("value") if isinstance(entry, Mapping) else None
+    if not isinstance(value, int | float) or isinstance(value, bool) or not 0 < value < 1e6:
+        return None
+    return dt.timedelta(minutes=float(value))
+
+
+def _moment(stamp: Any) -> dt.datetime | None:
+    if not isinstance(stamp, str):
+        return None
+    try:
+        moment = dt.datetime.fromisoformat(stamp.replace("Z", "+00:00"))
+    except ValueError:
+        return None
+    return moment if moment.tzinfo is not None else moment.replace(tzinfo=dt.UTC)
+
+
+def _offset(value: Any) -> int | None:
+    return value if isinstance(value, int) and not isinstance(value, bool) else None
+
+
+def weather_gaps(record: Mapping[str, Any]) -> list[tuple[dt.datetime, dt.datetime]]:
+    """The stretches of a day's record during which the job was at work and its newest weather
+    check was older than the profile allows (each longer than WEATHER_GRACE), in order.
+
+    Work is the time between a transition to "working" and the next one away from it; the
+    weather checks are every sheet of the weather checklist, by when it was made.
+    """
+    profile = record.get("profile")
+    interval = recheck_interval(profile.get("thresholds") if isinstance(profile, Mapping) else None)
+    if interval is None:
+        return []
+    readings = []
+    for sheet in record.get("sheets") or []:
+        if not isinstance(sheet, Mapping) or sheet.get("checklist") != WEATHER_CHECKLIST:
+            continue
+        received = _moment(sheet.get("received_at"))
+        if received is None:
+            continue
+        made = time_made(
+            _moment(sheet.get("device_time")), _offset(sheet.get("phone_clock_offset_s")), received
+        )
+        readings.append(made)
+    readings.sort()
+    periods: list[tuple[dt.datetime, dt.datetime]] = []
+    began: dt.datetime | None = None
+    for move in record.get("transitions") or []:
+        if not isinstance(move, Mapping):
+            continue
+        at = _moment(move.get("at"))
+        if at is None:
+            continue
+        if move.get("to") == "working" and began is None:
+            began = at
+        elif move.get("from") == "working" and began is not None:
+            periods.append((began, at))
+            began = None
+    gaps: list[tuple[dt.datetime, dt.datetime]] = []
+    for start, end in periods:
+        before = [r for r in readings if r <= start]
+        due = before[-1] + interval if before else start
+        for reading in (r for r in readings if start < r <= end):
+            if reading - due > WEATHER_GRACE and due < end:
+                gaps.append((max(due, start), reading))
+            due = max(due, reading + interval)
+        if end - due > WEATHER_GRACE:
+            gaps.append((max(due, start), end))
+    return [(a, b) for a, b in gaps if b - a > WEATHER_GRACE]
