@@ -417,65 +417,52 @@ def job_blockers(
                     )
                 )
     for req in job_requirements(job, drops) if requirements is None else requirements:
-        if req.latest_sheet_id is None:
-            reasons.append(
-                Reason(
-                    "sheet_missing",
-                    f"{req.checklist_title} for {_the(req.subject)} has not been done.",
-                    req.key,
-                )
-            )
-        elif req.before_drop:
-            reasons.append(
-                Reason(
-                    "sheet_before_drop",
-                    f"{req.checklist_title} for {_the(req.subject)} was done before drop"
-                    f" {req.before_drop} was planned, and judged without it: check it again.",
-                    req.key,
-                )
-            )
-        elif req.before_return:
-            reasons.append(
-                Reason(
-                    "sheet_before_return",
-                    f"{req.checklist_title} for {_the(req.subject)} was filled before it was"
-                    " returned to service: check it again.",
-                    req.key,
-                )
-            )
-        elif req.changed is not None:
-            name, then, now = req.changed
-            kind, _, ref = name.partition(".")
-            whose = "its" if kind == "equipment" else REGISTER_WORDS.get(kind, f"the {kind}'s")
-            words, unit = _figure_words(job, req.subject, kind, ref)
-            reasons.append(
-                Reason(
-                    "sheet_judged_on_changed",
-                    f"{req.checklist_title} for {_the(req.subject)} was judged with"
-                    f" {whose} {words} at {_figure(then, unit)}; it now reads"
-                    f" {_figure(now, unit)}: check it again.",
-                    req.key,
-                )
-            )
-        elif req.outdated:
-            reasons.append(
-                Reason(
-                    "sheet_old_version",
-                    f"{req.checklist_title} for {_the(req.subject)} was filled against an older"
-                    " version of the checklist: fill it again against the current version.",
-                    req.key,
-                )
-            )
-        elif not req.satisfied:
-            reasons.append(
-                Reason(
-                    "sheet_failed",
-                    f"{req.checklist_title} for {_the(req.subject)} failed a blocking item.",
-                    req.key,
-                )
-            )
+        reason = requirement_reason(job, req)
+        if reason is not None:
+            reasons.append(reason)
     return reasons
 
+
+def requirement_reason(job: Job, req: Requirement) -> Reason | None:
+    """Why one requirement keeps the job from starting, in plain words (None when its newest
+    sheet counts)."""
+    subject = f"{req.checklist_title} for {_the(req.subject)}"
+    if req.latest_sheet_id is None:
+        return Reason("sheet_missing", f"{subject} has not been done.", req.key)
+    if req.before_drop:
+        return Reason(
+            "sheet_before_drop",
+            f"{subject} was done before drop {req.before_drop} was planned, and judged without"
+            " it: check it again.",
+            req.key,
+        )
+    if req.before_return:
+        return Reason(
+            "sheet_before_return",
+            f"{subject} was filled before it was returned to service: check it again.",
+            req.key,
+        )
+    if req.changed is not None:
+        name, then, now = req.changed
+        kind, _, ref = name.partition(".")
+        whose = "its" if kind == "equipment" else REGISTER_WORDS.get(kind, f"the {kind}'s")
+        words, unit = _figure_words(job, req.subject, kind, ref)
+        return Reason(
+            "sheet_judged_on_changed",
+            f"{subject} was judged with {whose} {words} at {_figure(then, unit)}; it now reads"
+            f" {_figure(now, unit)}: check it again.",
+            req.key,
+        )
+    if req.outdated:
+        return Reason(
+            "sheet_old_version",
+            f"{subject} was filled against an older version of the checklist: fill it again"
+            " against the current version.",
+            req.key,
+        )
+    if not req.satisfied:
+        return Reason("sheet_failed", f"{subject} failed a blocking item.", req.key)
+    return None
 
 def jobs_for(user: User) -> QuerySet[Job]:
     """The organisation's jobs, each with whether its day's record is signed (in the same
