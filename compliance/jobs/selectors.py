@@ -72,6 +72,9 @@ class Requirement:
     before_return: bool = False
     """The newest sheet was made before its subject was last returned to service (a line
     taken out for a cut sheath and put back): it checked the kit as it was then."""
+    published_at: dt.datetime | None = None
+    """When the version the job needs now was published: one published while the robot was at
+    work is the job's next check (see lapsed_checks)."""
 
     @property
     def outdated(self) -> bool:
@@ -234,6 +237,7 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     before_drop=later[0] if later else "",
                     changed=changed,
                     before_return=before_return,
+                    published_at=version.published_at,
                 )
             )
     return requirements
@@ -464,6 +468,7 @@ def requirement_reason(job: Job, req: Requirement) -> Reason | None:
         return Reason("sheet_failed", f"{subject} failed a blocking item.", req.key)
     return None
 
+
 def jobs_for(user: User) -> QuerySet[Job]:
     """The organisation's jobs, each with whether its day's record is signed (in the same
     query), so a desk list shows the unsigned past days without a request per job."""
@@ -682,9 +687,10 @@ def reached(job: Job, *states: str) -> set[str]:
 READY_STATES = (JobState.CLEARED, JobState.WORKING)
 
 
-def states_in_order(job: Job) -> list[str]:
-    """Every state the job moved into, in order, in one query (a job starts planned)."""
-    return list(JobTransition.objects.filter(job=job).values_list("to_state", flat=True))
+def moves_in_order(job: Job) -> list[tuple[str, dt.datetime]]:
+    """Every state the job moved into and when, in order, in one query (a job starts
+    planned)."""
+    return list(JobTransition.objects.filter(job=job).order_by("id").values_list("to_state", "at"))
 
 
 def ready_when_closed(states: Sequence[str]) -> bool:
@@ -694,6 +700,51 @@ def ready_when_closed(states: Sequence[str]) -> bool:
     not when it closed."""
     held = [state for state in states if state != JobState.CLOSED]
     return bool(held) and held[-1] in READY_STATES
+
+
+LAPSES = ("sheet_failed", "sheet_before_drop", "sheet_before_return", "sheet_judged_on_changed")
+"""A check that no longer counts whenever it happened: the kit or the plan is not what was
+checked (a figure read otherwise, kit returned since, a drop planned since) or it failed."""
+
+NEXT_CHECKS = ("sheet_missing", "sheet_old_version")
+"""A check the job needs now that it may not have needed when it was last ready: a checklist,
+or a version of one, published while the robot was at work applies to its next check."""
+
+
+def lapsed_checks(
+    job: Job, requirements: Iterable[Requirement], moves: Sequence[tuple[str, dt.datetime]]
+) -> list[Reason]:
+    """The day's pre-start checks that no longer count though the job's states say it was
+    ready (cleared or working) when it closed, or is now: a day is not signed "safe" while one
+    stands. ``moves`` is the job's log as (state, when), in order.
+
+    Kit returned to service after the job closed does not count against the day (at close
+    it was in service or its removal held the job). A figure read otherwise counts whenever
+    it changed: a figure wrong all day and one changed since cannot be told apart. A check the
+    job needs only because its version was published after the job was last ready is its next
+    check, not a lapse (a job at work goes on under the version it started with)."""
+    held = [(state, at) for state, at in moves if state != JobState.CLOSED]
+    if not held or held[-1][0] not in READY_STATES:
+        return []
+    ready_since = held[-1][1]
+    closes = [at for state, at in moves if state == JobState.CLOSED]
+    closed = closes[-1] if closes and job.state == JobState.CLOSED else None
+    lapsed = []
+    for req in requirements:
+        reason = requirement_reason(job, req)
+        if reason is None:
+            continue
+        if reason.code in NEXT_CHECKS:
+            if req.published_at is not None and req.published_at > ready_since:
+                continue
+        elif reason.code == "sheet_before_return":
+            back = returned_at(req.subject)
+            if closed is not None and back is not None and back > closed:
+                continue
+        elif reason.code not in LAPSES:
+            continue
+        lapsed.append(reason)
+    return lapsed
 
 
 def ever_reached(job: Job, *states: str) -> bool:
