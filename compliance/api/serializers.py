@@ -476,12 +476,20 @@ class JobDetailSerializer(JobSerializer):
         " held before it closed (or holds now while open): a day left behind by a changed figure"
         " and closed without work is not signed as safe.",
     )
+    lapsed_checks = ReasonSerializer(
+        many=True,
+        read_only=True,
+        help_text="The pre-start checks that no longer count though the job was ready when it"
+        " closed (or is now), with no hold standing for them: a figure a check read changed,"
+        " kit returned to service after its check, a drop planned after it. While one stands"
+        " the day is not signed as safe.",
+    )
 
     class Meta(JobSerializer.Meta):
         fields = [
             *JobSerializer.Meta.fields,
             *("drops", "requirements", "blockers", "holds", "cautions", "work_started"),
-            *("was_ready", "ready_when_closed"),
+            *("was_ready", "ready_when_closed", "lapsed_checks"),
         ]
 
 

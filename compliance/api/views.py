@@ -46,9 +46,10 @@ from compliance.jobs.selectors import (
     READY_STATES,
     job_readiness,
     jobs_for,
+    lapsed_checks,
+    moves_in_order,
     plan_conflicts,
     ready_when_closed,
-    states_in_order,
 )
 from compliance.jobs.sync import MAX_BATCH, apply_batch, printable
 from compliance.models import (
@@ -393,7 +394,8 @@ class EquipmentViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyMode
 
 def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
     readiness = job_readiness(job)
-    states = states_in_order(job)
+    moves = moves_in_order(job)
+    states = [state for state, _ in moves]
     return {
         **s.JobSerializer(job, context=context).data,
         "drops": s.DropSerializer(readiness.drops, many=True, context=context).data,
@@ -406,6 +408,9 @@ def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
         "work_started": JobState.WORKING in states,
         "was_ready": any(state in READY_STATES for state in states),
         "ready_when_closed": ready_when_closed(states),
+        "lapsed_checks": s.ReasonSerializer(
+            [r.as_dict() for r in lapsed_checks(job, readiness.requirements, moves)], many=True
+        ).data,
     }
 
 

@@ -77,6 +77,9 @@ class Requirement:
     read_at: dt.datetime | None = None
     """When the newest weather check was made, where the profile asks for the weather to be
     read again within a time (`weather_recheck_min`) and that time has run out."""
+    published_at: dt.datetime | None = None
+    """When the version the job needs now was published: one published while the robot was at
+    work is the job's next check (see lapsed_checks)."""
 
     @property
     def outdated(self) -> bool:
@@ -262,6 +265,7 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     changed=changed,
                     before_return=before_return,
                     read_at=sheet.made_at if stale else None,  # type: ignore[union-attr]
+                    published_at=version.published_at,
                 )
             )
     return requirements
@@ -445,75 +449,60 @@ def job_blockers(
                     )
                 )
     for req in job_requirements(job, drops) if requirements is None else requirements:
-        if req.latest_sheet_id is None:
-            reasons.append(
-                Reason(
-                    "sheet_missing",
-                    f"{req.checklist_title} for {_the(req.subject)} has not been done.",
-                    req.key,
-                )
-            )
-        elif req.before_drop:
-            reasons.append(
-                Reason(
-                    "sheet_before_drop",
-                    f"{req.checklist_title} for {_the(req.subject)} was done before drop"
-                    f" {req.before_drop} was planned, and judged without it: check it again.",
-                    req.key,
-                )
-            )
-        elif req.before_return:
-            reasons.append(
-                Reason(
-                    "sheet_before_return",
-                    f"{req.checklist_title} for {_the(req.subject)} was filled before it was"
-                    " returned to service: check it again.",
-                    req.key,
-                )
-            )
-        elif req.changed is not None:
-            name, then, now = req.changed
-            kind, _, ref = name.partition(".")
-            whose = "its" if kind == "equipment" else REGISTER_WORDS.get(kind, f"the {kind}'s")
-            words, unit = _figure_words(job, req.subject, kind, ref)
-            reasons.append(
-                Reason(
-                    "sheet_judged_on_changed",
-                    f"{req.checklist_title} for {_the(req.subject)} was judged with"
-                    f" {whose} {words} at {_figure(then, unit)}; it now reads"
-                    f" {_figure(now, unit)}: check it again.",
-                    req.key,
-                )
-            )
-        elif req.read_at is not None:
-            minutes = weather_recheck(job) // dt.timedelta(minutes=1)  # type: ignore[operator]
-            reasons.append(
-                Reason(
-                    "weather_stale",
-                    f"{req.checklist_title} was last read at"
-                    f" {timezone.localtime(req.read_at):%H:%M}, more than {minutes} min ago:"
-                    " read the wind again before work goes on.",
-                    req.key,
-                )
-            )
-        elif req.outdated:
-            reasons.append(
-                Reason(
-                    "sheet_old_version",
-                    f"{req.checklist_title} for {_the(req.subject)} was filled against an older"
-                    " version of the checklist: fill it again against the current version.",
-                    req.key,
-                )
-            )
-        elif not req.satisfied:
-            reasons.append(
-                Reason(
-                    "sheet_failed",
-                    f"{req.checklist_title} for {_the(req.subject)} failed a blocking item.",
-                    req.key,
-                )
-            )
+        reason = requirement_reason(job, req)
+        if reason is not None:
+            reasons.append(reason)
     return reasons
+
+
+def requirement_reason(job: Job, req: Requirement) -> Reason | None:
+    """Why one requirement keeps the job from starting, in plain words (None when its newest
+    sheet counts)."""
+    subject = f"{req.checklist_title} for {_the(req.subject)}"
+    if req.latest_sheet_id is None:
+        return Reason("sheet_missing", f"{subject} has not been done.", req.key)
+    if req.before_drop:
+        return Reason(
+            "sheet_before_drop",
+            f"{subject} was done before drop {req.before_drop} was planned, and judged without"
+            " it: check it again.",
+            req.key,
+        )
+    if req.before_return:
+        return Reason(
+            "sheet_before_return",
+            f"{subject} was filled before it was returned to service: check it again.",
+            req.key,
+        )
+    if req.changed is not None:
+        name, then, now = req.changed
+        kind, _, ref = name.partition(".")
+        whose = "its" if kind == "equipment" else REGISTER_WORDS.get(kind, f"the {kind}'s")
+        words, unit = _figure_words(job, req.subject, kind, ref)
+        return Reason(
+            "sheet_judged_on_changed",
+            f"{subject} was judged with {whose} {words} at {_figure(then, unit)}; it now reads"
+            f" {_figure(now, unit)}: check it again.",
+            req.key,
+        )
+    if req.read_at is not None:
+        minutes = weather_recheck(job) // dt.timedelta(minutes=1)  # type: ignore[operator]
+        return Reason(
+            "weather_stale",
+            f"{req.checklist_title} was last read at {timezone.localtime(req.read_at):%H:%M},"
+            f" more than {minutes} min ago: read the wind again before work goes on.",
+            req.key,
+        )
+    if req.outdated:
+        return Reason(
+            "sheet_old_version",
+            f"{subject} was filled against an older version of the checklist: fill it again"
+            " against the current version.",
+            req.key,
+        )
+    if not req.satisfied:
+        return Reason("sheet_failed", f"{subject} failed a blocking item.", req.key)
+    return None
 
 
 def jobs_for(user: User) -> QuerySet[Job]:
@@ -734,9 +723,10 @@ def reached(job: Job, *states: str) -> set[str]:
 READY_STATES = (JobState.CLEARED, JobState.WORKING)
 
 
-def states_in_order(job: Job) -> list[str]:
-    """Every state the job moved into, in order, in one query (a job starts planned)."""
-    return list(JobTransition.objects.filter(job=job).values_list("to_state", flat=True))
+def moves_in_order(job: Job) -> list[tuple[str, dt.datetime]]:
+    """Every state the job moved into and when, in order, in one query (a job starts
+    planned)."""
+    return list(JobTransition.objects.filter(job=job).order_by("id").values_list("to_state", "at"))
 
 
 def ready_when_closed(states: Sequence[str]) -> bool:
@@ -746,6 +736,51 @@ def ready_when_closed(states: Sequence[str]) -> bool:
     not when it closed."""
     held = [state for state in states if state != JobState.CLOSED]
     return bool(held) and held[-1] in READY_STATES
+
+
+LAPSES = ("sheet_failed", "sheet_before_drop", "sheet_before_return", "sheet_judged_on_changed")
+"""A check that no longer counts whenever it happened: the kit or the plan is not what was
+checked (a figure read otherwise, kit returned since, a drop planned since) or it failed."""
+
+NEXT_CHECKS = ("sheet_missing", "sheet_old_version")
+"""A check the job needs now that it may not have needed when it was last ready: a checklist,
+or a version of one, published while the robot was at work applies to its next check."""
+
+
+def lapsed_checks(
+    job: Job, requirements: Iterable[Requirement], moves: Sequence[tuple[str, dt.datetime]]
+) -> list[Reason]:
+    """The day's pre-start checks that no longer count though the job's states say it was
+    ready (cleared or working) when it closed, or is now: a day is not signed "safe" while one
+    stands. ``moves`` is the job's log as (state, when), in order.
+
+    Kit returned to service after the job closed does not count against the day (at close
+    it was in service or its removal held the job). A figure read otherwise counts whenever
+    it changed: a figure wrong all day and one changed since cannot be told apart. A check the
+    job needs only because its version was published after the job was last ready is its next
+    check, not a lapse (a job at work goes on under the version it started with)."""
+    held = [(state, at) for state, at in moves if state != JobState.CLOSED]
+    if not held or held[-1][0] not in READY_STATES:
+        return []
+    ready_since = held[-1][1]
+    closes = [at for state, at in moves if state == JobState.CLOSED]
+    closed = closes[-1] if closes and job.state == JobState.CLOSED else None
+    lapsed = []
+    for req in requirements:
+        reason = requirement_reason(job, req)
+        if reason is None:
+            continue
+        if reason.code in NEXT_CHECKS:
+            if req.published_at is not None and req.published_at > ready_since:
+                continue
+        elif reason.code == "sheet_before_return":
+            back = returned_at(req.subject)
+            if closed is not None and back is not None and back > closed:
+                continue
+        elif reason.code not in LAPSES:
+            continue
+        lapsed.append(reason)
+    return lapsed
 
 
 def ever_reached(job: Job, *states: str) -> bool:

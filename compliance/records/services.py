@@ -25,9 +25,15 @@ from django.utils import timezone
 
 from checklists.models import CheckSheet, ItemEntry, Photo
 from compliance.celery import app as celery_app
-from compliance.errors import InvalidTransition, NotPermitted
+from compliance.errors import InvalidTransition, NotPermitted, Reason
 from compliance.jobs.holds import SIGNED_HELD
-from compliance.jobs.selectors import READY_STATES, drops_of, ready_when_closed
+from compliance.jobs.selectors import (
+    READY_STATES,
+    drops_of,
+    job_requirements,
+    lapsed_checks,
+    ready_when_closed,
+)
 from compliance.jobs.services import close_job
 from compliance.models import (
     AnchorCertification,
@@ -497,6 +503,32 @@ def _weather_gap_words(content: dict[str, Any]) -> str | None:
     return WEATHER_GAP_NOT_SAFE.format(minutes=minutes, gaps=spans)
 
 
+def _lapsed_words(lapsed: list[Reason]) -> str:
+    """The checks that no longer count, as the job's blockers name them."""
+    checks = (
+        "a pre-start check of this day no longer counts, and no hold stands for it"
+        if len(lapsed) == 1
+        else "pre-start checks of this day no longer count, and no hold stands for them"
+    )
+    return f"{checks}: {' '.join(reason.message for reason in lapsed)}"
+
+
+def lapsed_not_safe(lapsed: list[Reason]) -> str:
+    words = _lapsed_words(lapsed)
+    return (
+        f"{words[0].upper()}{words[1:]} So it cannot be signed as “{MEANINGS['reviewed_safe']}”"
+        f" Choose “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
+    )
+
+
+def no_hold_lapsed(lapsed: list[Reason]) -> str:
+    return (
+        f"No hold is open on this day, so it cannot be signed as “{MEANINGS['reviewed_stopped']}”"
+        f" and {_lapsed_words(lapsed)} Choose “{MEANINGS['reviewed_exceptions']}” and say why in"
+        " the remarks."
+    )
+
+
 def sign_daily_record(
     *, job: Job, by: User, password: str, meaning: str, remarks: str = ""
 ) -> DailyRecord:
@@ -531,14 +563,25 @@ def sign_daily_record(
         content = day_content(job, fmt=FORMAT)
         if open_holds_of(content) and meaning == "reviewed_safe":
             raise InvalidTransition(OPEN_HOLDS_NOT_SAFE)
-        states = [t["to"] for t in content["transitions"]]
+        moves = [(t["to"], dt.datetime.fromisoformat(t["at"])) for t in content["transitions"]]
+        states = [state for state, _ in moves]
         was_ready = any(state in READY_STATES for state in states)
         ready_at_close = ready_when_closed(states)
+        # Ready by its states, and no hold open: a check may still no longer count (a figure it
+        # read changed with no hold opened). Read only for the two meanings that need it.
+        lapsed = (
+            lapsed_checks(job, job_requirements(job), moves)
+            if ready_at_close
+            and not open_holds_of(content)
+            and meaning in ("reviewed_safe", "reviewed_stopped")
+            else []
+        )
         if meaning == "reviewed_stopped" and not open_holds_of(content):
-            # Not ready when it closed, "safe" is refused too: the refusal does not send the
-            # signer there.
+            # Where "safe" is refused too, the refusal does not send the signer there.
             raise InvalidTransition(
-                NO_HOLD_NOT_STOPPED
+                no_hold_lapsed(lapsed)
+                if lapsed
+                else NO_HOLD_NOT_STOPPED
                 if ready_at_close
                 else NO_HOLD_NOT_READY_AT_CLOSE
                 if was_ready
@@ -548,6 +591,8 @@ def sign_daily_record(
             raise InvalidTransition(
                 NOT_READY_AT_CLOSE_NOT_SAFE if was_ready else NEVER_READY_NOT_SAFE
             )
+        if meaning == "reviewed_safe" and lapsed:
+            raise InvalidTransition(lapsed_not_safe(lapsed))
         unread = _weather_gap_words(content) if meaning == "reviewed_safe" else None
         if unread:
             raise InvalidTransition(unread)

@@ -1118,6 +1118,7 @@ export interface components {
             readonly work_started: boolean;
             readonly was_ready: boolean;
             readonly ready_when_closed: boolean;
+            readonly lapsed_checks: components["schemas"]["Reason"][];
         };
         JobRequest: {
             site: number;

@@ -17,12 +17,24 @@ export function readinessOf(job: { was_ready: boolean; ready_when_closed?: boole
   return (job.ready_when_closed ?? job.was_ready) ? "ready" : job.was_ready ? "lost" : "never";
 }
 
+/** A check of the day that no longer counts though the job was ready when it closed, with no
+ * hold standing for it, in the server's words (a figure it read changed, kit returned since). */
+type LapsedCheck = { message: string };
+
+/** The day's lapsed checks; a copy kept on the phone from before the server said so has none,
+ * and the server refuses. */
+export function lapsedOf(job: { lapsed_checks?: readonly LapsedCheck[] }): readonly LapsedCheck[] {
+  return job.lapsed_checks ?? [];
+}
+
 /** Why a meaning cannot be given to this day, in the page's words, or "" when it can: the server
- * refuses "safe to proceed" while a hold is open, and "work was stopped" with none open. */
+ * refuses "safe to proceed" while a hold is open or a check no longer counts, and "work was
+ * stopped" with none open. */
 export function meaningUnavailable(
   code: Meaning,
   holds: readonly { cleared_at: string | null }[],
   ready: Readiness = "ready",
+  lapsed: readonly LapsedCheck[] = [],
 ): string {
   const open = holds.some((h) => !h.cleared_at);
   if (code === "reviewed_safe" && open) return "Not available: the record has open holds.";
@@ -30,10 +42,17 @@ export function meaningUnavailable(
     return "Not available: the pre-start checks were never complete (the job was never ready to start). Choose “Reviewed with exceptions” and say why in the remarks.";
   if (code === "reviewed_safe" && ready === "lost")
     return "Not available: the pre-start checks were no longer complete when the job closed (it had gone back from ready to start). Choose “Reviewed with exceptions” and say why in the remarks.";
+  if (code === "reviewed_safe" && lapsed.length) {
+    const checks =
+      lapsed.length === 1
+        ? "a pre-start check of this day no longer counts, and no hold stands for it"
+        : "pre-start checks of this day no longer count, and no hold stands for them";
+    return `Not available: ${checks}: ${lapsed.map((c) => c.message).join(" ")} Choose “Reviewed with exceptions” and say why in the remarks.`;
+  }
   if (code !== "reviewed_stopped" || open) return "";
   return holds.length
     ? "Not available: the day's holds were cleared. Choose “Reviewed with exceptions” and say in the remarks what stopped work."
-    : ready === "ready"
+    : ready === "ready" && !lapsed.length
       ? "Not available: no stop-work hold this day."
       : "Not available: no stop-work hold this day. Choose “Reviewed with exceptions” and say why in the remarks.";
 }

@@ -3,7 +3,7 @@ import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { ApiError } from "../src/api";
 import { emptyDraft, isEmptyDraft } from "../src/sheet";
-import { canSign, MEANINGS, meaningUnavailable, readinessOf, sealShort } from "../src/signoff";
+import { canSign, lapsedOf, MEANINGS, meaningUnavailable, readinessOf, sealShort } from "../src/signoff";
 import type { User } from "../src/types";
 
 describe("meanings of the signature", () => {
@@ -47,6 +47,23 @@ describe("meaningUnavailable", () => {
     expect(readinessOf({ was_ready: true, ready_when_closed: false })).toBe("lost");
     expect(readinessOf({ was_ready: false, ready_when_closed: false })).toBe("never");
     expect(readinessOf({ was_ready: true, ready_when_closed: true })).toBe("ready");
+  });
+
+  it("does not offer 'safe' for a day ready at close whose check no longer counts, and names it", () => {
+    // Closed from work with the hose's check judged on a rating since changed and no hold:
+    // the page offered "safe" because the job's states said ready.
+    const lapsed = [
+      { message: "Hose Check for hose H1 was judged with its pressure rating at 2500 kPa; it now reads 800 kPa: check it again." },
+    ];
+    const offered = MEANINGS.filter((m) => !meaningUnavailable(m.code, [], "ready", lapsed)).map((m) => m.code);
+    expect(offered).toEqual(["reviewed_exceptions"]);
+    expect(meaningUnavailable("reviewed_safe", [], "ready", lapsed)).toBe(
+      "Not available: a pre-start check of this day no longer counts, and no hold stands for it: Hose Check for hose H1 was judged with its pressure rating at 2500 kPa; it now reads 800 kPa: check it again. Choose “Reviewed with exceptions” and say why in the remarks.",
+    );
+    // "work was stopped" does not send the signer to "safe"
+    expect(meaningUnavailable("reviewed_stopped", [], "ready", lapsed)).toMatch(/Choose “Reviewed with exceptions”/);
+    expect(lapsedOf({ lapsed_checks: lapsed })).toEqual(lapsed);
+    expect(lapsedOf({})).toEqual([]);
   });
 
   it("says why in the page's own words", () => {

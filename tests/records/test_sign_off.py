@@ -292,10 +292,15 @@ def test_the_job_list_says_which_days_are_signed(signed, supervisor, django_asse
     assert detail.json()["record_signed"] is False
 
 
-SIGN_OFF_QUERIES = 19
+SIGN_OFF_QUERIES = 24
 """After the chain's first record: the job locked, the record and state checks, the profile's
 revision found, the rows of the day (drops with their prefetches, sheets, entries, holds,
-transitions, logs, photos, crew), the chain head locked, the record and the head written."""
+transitions, logs, photos, crew), the chain head locked, the record and the head written.
+Signing "safe" also reads the job's requirements (five: the drops with their anchors'
+certifications and log entries, the current checklist versions, the newest sheets), to refuse
+a day whose check no longer counts with no hold standing for it (tests/records/
+test_sign_off_lapsed.py): the day's document does not carry what a check was judged on, when
+kit came back or when a drop was planned, and its builder keeps its own rows."""
 
 
 def _day(job, simple_checklists, operator, days: int, drops: int):
