@@ -69,6 +69,31 @@ def _judged(record):
     }
     # A remark the fonts cannot draw all of: /7 prints the code point where /6 drew a box.
     record["sheets"][0]["remarks"] = "Weld crack seen by 李 Wei; photo sent."
+    # Worked from 07:30 to 09:40 under a profile asking for the wind every 60 min, and no
+    # weather check made: the first page says so.
+    record["profile"]["thresholds"]["weather_recheck_min"] = {
+        "source": "layout test",
+        "unit": "min",
+        "value": 60,
+    }
+    record["transitions"] += [
+        {
+            "at": "2026-03-04T08:30:00Z",
+            "by": None,
+            "by_id": None,
+            "from": "held",
+            "reason": "Held item cleared.",
+            "to": "working",
+        },
+        {
+            "at": "2026-03-04T09:40:00Z",
+            "by": None,
+            "by_id": None,
+            "from": "working",
+            "reason": "Done.",
+            "to": "closed",
+        },
+    ]
     record["sheets"][2]["judged_on"] = {
         "1": {"equipment.max_wind_ms": 12, "profile.max_wind_ms": 14, "hose.kg_per_m": 0.15},
         "99": {"equipment.mass_kg": 60, "drop.facade_zone": "edge"},
@@ -97,7 +122,7 @@ PINNED = {
     "record-4": "332a19adf82a43818d73067040eac864800488143d65d5a3f8cade8ca160876f",
     "record-5": "38933f2fa38e8cef9320424e4e9ea1ea3a127ac866877112f248b8913d054c64",
     "record-6": "7850817f8884c7f9dfbdbe148b1d49f8704d0cffc6e4d7ffa3f7082bb3969ab1",
-    "record-7": "dc68000bf5a01c6e0ba9e4ca768ae1c38f5e504aee6873fe4ead8a559d3bffe6",
+    "record-7": "7e5c79e4949d57aa9f5b56af87d37102d1606938553cf006fd75e0d426cd3b24",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
 }
 
@@ -300,8 +325,13 @@ def test_from_7_each_check_prints_the_figures_it_was_judged_on_and_before_it_did
     assert "anchor R0-0 rated capacity 30 kN (the register read 22.2 kN at signing)" in seven
     assert "Judged on, for drop #99 (no longer in the plan): drop #99 (no longer" in seven
     assert "hose hose-0 0.15 kg/m" in seven
+    assert (
+        "It was not read in time from 2026-03-04 08:30:00 to 2026-03-04 09:40:00"
+        " (Europe/Lisbon)." in seven
+    )
     as_six = text({**DOCUMENTS["record-7"], "format": "parapet.daily-record/6"})
     assert "Judged on" not in as_six and "Figures changed" not in as_six
+    assert "without a recent wind reading" not in as_six
 
 
 def test_from_7_a_character_the_fonts_cannot_draw_prints_as_its_code_point():
