@@ -44,3 +44,21 @@ const SHOWN_APART = new Set(["sheet_missing", "sheet_old_version", "sheet_failed
 export function registerBlockers<T extends { code: string }>(blockers: readonly T[]): T[] {
   return blockers.filter((b) => !SHOWN_APART.has(b.code));
 }
+
+/** The reasons a check that was done must be done again (the wind read too long ago, a figure
+ * it read changed, a drop planned or kit returned since): a check on the phone answers them,
+ * so the phone shows each beside its check, not among what only the office can put right. */
+const CHECK_AGAIN = new Set(["weather_stale", "sheet_judged_on_changed", "sheet_before_drop", "sheet_before_return"]);
+
+/** What the office (the register or the plan) holds against the start, as the phone shows it. */
+export function officeBlockers<T extends { code: string }>(blockers: readonly T[]): T[] {
+  return registerBlockers(blockers).filter((b) => !CHECK_AGAIN.has(b.code));
+}
+
+/** Why the check `requirement` must be done again, in the server's words (null if it need not). */
+export function checkAgainWhy(
+  blockers: readonly { code: string; message: string; requirement?: string | null }[],
+  requirement: string,
+): string | null {
+  return blockers.find((b) => CHECK_AGAIN.has(b.code) && b.requirement === requirement)?.message ?? null;
+}

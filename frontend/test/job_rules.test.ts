@@ -2,7 +2,7 @@
  * refuses, a later day's checks read only, a check kept on the phone named when reopened, and
  * the reasons the server gives for refusing the start that no check on the phone can answer. */
 import { describe, expect, it } from "vitest";
-import { mayClose, opensOn, registerBlockers, waitingSheet } from "../src/job_rules";
+import { checkAgainWhy, mayClose, officeBlockers, opensOn, registerBlockers, waitingSheet } from "../src/job_rules";
 
 describe("opensOn", () => {
   it("names the day of a later job, and nothing for today's or a past one", () => {
@@ -61,5 +61,25 @@ describe("registerBlockers", () => {
       "RB-3 is out of service.",
       "The building owner's access grant does not cover this day.",
     ]);
+  });
+});
+
+describe("checks to make again", () => {
+  const blockers = [
+    {
+      code: "weather_stale",
+      message: "Weather was last read at 07:02, more than 60 min ago: read the wind again before work goes on.",
+      requirement: "weather@site",
+    },
+    { code: "sheet_before_return", message: "Line check for line S-1 was filled before it was returned.", requirement: "line@equipment:4" },
+    { code: "equipment_out_of_service", message: "RB-3 is out of service.", requirement: "equipment:3" },
+  ];
+  it("are not among what only the office can put right: the phone told the crew no check would do", () => {
+    expect(officeBlockers(blockers).map((b) => b.code)).toEqual(["equipment_out_of_service"]);
+  });
+  it("are told beside the check that answers them", () => {
+    expect(checkAgainWhy(blockers, "weather@site")).toMatch(/read the wind again/);
+    expect(checkAgainWhy(blockers, "line@equipment:4")).toMatch(/returned/);
+    expect(checkAgainWhy(blockers, "robot@equipment:3")).toBeNull();
   });
 });

@@ -10,7 +10,7 @@ import { deviceTime } from "../uuid";
 import { holdClearedBy, holdTitle, madeNote, OWNER_CLEARS, REGISTER_CLEARS } from "../holds";
 import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
 import { activeRefusals, errorLines } from "../refusals";
-import { mayClose, opensOn, registerBlockers } from "../job_rules";
+import { checkAgainWhy, mayClose, officeBlockers, opensOn } from "../job_rules";
 import { dropNote, PART_NOTE_MAX, tapGuard, type DropChoice } from "../drops";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { canRecord, canSign, READ_ONLY_WORDS } from "../signoff";
@@ -19,7 +19,9 @@ import { Badge, StateBadge, type SignKind } from "./signs";
 /** Taps on a drop's buttons: one log per tap, whatever the screen re-renders in between. */
 const dropTaps = tapGuard();
 
-function requirementStatus(req: Requirement, mine: OutboxEntry | undefined, opens: string | null): { kind: SignKind; word: string } {
+function requirementStatus(
+  req: Requirement, mine: OutboxEntry | undefined, opens: string | null, again: string | null,
+): { kind: SignKind; word: string } {
   if (opens) return { kind: "mustdo", word: `Opens on ${opens}` };
   if (mine?.status === "waiting") {
     return mine.local_verdict === "fail"
@@ -29,6 +31,7 @@ function requirementStatus(req: Requirement, mine: OutboxEntry | undefined, open
   if (mine?.status === "rejected") return { kind: "caution", word: "Not accepted by the server" };
   if (req.satisfied) return { kind: "safe", word: "Done" };
   if (req.latest_verdict === "fail") return { kind: "held", word: "Failed" };
+  if (again) return { kind: "mustdo", word: "Check again" };
   return { kind: "mustdo", word: "To do" };
 }
 
@@ -93,7 +96,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   const localFails = outbox.filter((e) => e.status === "waiting" && e.local_verdict === "fail");
   const rejected = activeRefusals(outbox);
   const opens = opensOn(job.date, today());
-  const heldBack = registerBlockers(job.blockers);
+  const heldBack = officeBlockers(job.blockers);
   const waitingHere = outbox.filter((e) => e.status === "waiting");
   const signHere = canSign(user) && dayOver && !record;
 
@@ -285,7 +288,8 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         <ul class="list" data-testid="requirements">
           {job.requirements.map((req) => {
             const mine = latestFor(req.key);
-            const s = requirementStatus(req, mine, opens);
+            const again = job.state === "closed" ? null : checkAgainWhy(job.blockers, req.key);
+            const s = requirementStatus(req, mine, opens, again);
             return (
               <li key={req.key}>
                 <a class="card card-link req" href={href({ name: "sheet", id: job.id, requirement: req.key })}
@@ -293,6 +297,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
                   <span class="card-title">{req.title}</span>
                   <span class="muted">{req.subject}</span>
                   <Badge kind={s.kind} word={s.word} />
+                  {again && s.word === "Check again" && <span class="small" data-testid="req-again">{again}</span>}
                 </a>
               </li>
             );
