@@ -26,13 +26,15 @@ ACCEPTED = {"JPEG", "PNG", "WEBP"}
 
 def _check_place(*, job: Job, sheet_uuid: uuid.UUID | None, item_key: str) -> None:
     """A photo joins a day whose record is not sealed yet (sealed, a later row would read as
-    tampering), on the job's day, for a sheet of that job and an item of its checklist. One
+    tampering), for a sheet of that job and an item of its checklist, or on the job's day. One
     sent without a sheet belongs to the job: it names a photo item of a checklist the job's
     requirements use, or none (the signed record prints the key under the photo).
 
-    A photo carries no time of its own: one taken for a sheet counts as made when its sheet
-    does (the phone sends its sheets before their photos, so one sent the next morning keeps
-    its sheet's day); one for no sheet, on the day it is received."""
+    A photo carries no time of its own: one taken for a sheet belongs where its sheet does,
+    whose day was settled when the sheet was accepted (the phone sends its sheets before
+    their photos: a pass made on its day, sent the next morning, keeps its photo; a failure
+    kept after its job's day, counted as made when received, keeps the photo of the damage).
+    One for no sheet is taken on the day it is received, which must be the job's."""
     if DailyRecord.objects.filter(job=job, kind=DailyRecord.Kind.RECORD).exists():
         raise ValidationError(
             {"job": "This day's record is signed: a photo can no longer be added to it."}
@@ -46,15 +48,12 @@ def _check_place(*, job: Job, sheet_uuid: uuid.UUID | None, item_key: str) -> No
         )
         if sheet is None:
             raise ValidationError({"sheet_uuid": "This job has no sheet with this id."})
-    if sheet is not None:
-        made_on = clock.day_made(job.date, sheet.device_time, sheet.phone_clock_offset_s)
-    else:
-        made_on = clock.day_made(job.date, None, None)
-    if made_on != job.date:
+    received = clock.today()
+    if sheet is None and received != job.date:
         raise ValidationError(
             {
                 "job": f"This job is for {job.date.isoformat()}: its photos are taken on its"
-                f" day, and this one was made on {made_on.isoformat()}."
+                f" day, and this one was made on {received.isoformat()}."
             }
         )
     if sheet is not None and item_key and item_key not in {i["key"] for i in sheet.version.items}:

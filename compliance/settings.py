@@ -45,6 +45,8 @@ INSTALLED_APPS = [
 MIDDLEWARE = [
     "django.middleware.security.SecurityMiddleware",
     "compliance.security.ContentSecurityPolicyMiddleware",
+    # Before anything that reads a body (the CSRF check reads a form): see docs/limits.md.
+    "compliance.body_limits.RequestBodyLimitMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
     "django.contrib.sessions.middleware.SessionMiddleware",
     "django.middleware.common.CommonMiddleware",
@@ -66,7 +68,14 @@ SECURE_HSTS_INCLUDE_SUBDOMAINS = not DEBUG
 SECURE_HSTS_PRELOAD = not DEBUG
 SECURE_CONTENT_TYPE_NOSNIFF = True
 X_FRAME_OPTIONS = "DENY"
-DATA_UPLOAD_MAX_MEMORY_SIZE = 5 * 1024 * 1024
+PARAPET_MAX_BODY_BYTES = 16 * 1024 * 1024
+"""The largest request body but a form with a file: a sync batch of 200 records of the longest
+sheets is about 10 MB (docs/limits.md)."""
+PARAPET_MAX_FORM_BYTES = 64 * 1024 * 1024
+"""The largest multipart form: the largest file taken is the verify page's 50 MB export."""
+# DRF reads a JSON body through request.body, which refuses one past this (as an HTML 400): the
+# same number, so the body limit's 413 answers first. It also bounds a form's text parts.
+DATA_UPLOAD_MAX_MEMORY_SIZE = PARAPET_MAX_BODY_BYTES
 FILE_UPLOAD_MAX_MEMORY_SIZE = 5 * 1024 * 1024
 PARAPET_CSP = {
     "default-src": "'self'",

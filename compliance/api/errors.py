@@ -2,14 +2,23 @@
 
 from typing import Any
 
+from django.conf import settings
+from django.core.exceptions import RequestDataTooBig
 from rest_framework import exceptions
 from rest_framework.response import Response
 from rest_framework.views import exception_handler as drf_exception_handler
 
+from compliance.body_limits import MB
 from compliance.errors import answer_for
 
 
 def exception_handler(exc: Exception, context: dict[str, Any]) -> Response | None:
+    if isinstance(exc, RequestDataTooBig):
+        # A form within its limit whose text parts are not (compliance/body_limits.py answers
+        # every other body past its limit before it is read); Django's answer is an HTML page.
+        limit = settings.DATA_UPLOAD_MAX_MEMORY_SIZE
+        words = f"A form's text parts are at most {limit // MB} MB ({limit} bytes) together."
+        return Response({"detail": words}, status=413)
     answer = answer_for(exc)
     if answer is not None:
         code, body = answer

@@ -51,7 +51,7 @@ from compliance.jobs.selectors import (
     plan_conflicts,
     ready_when_closed,
 )
-from compliance.jobs.sync import MAX_BATCH, apply_batch, printable
+from compliance.jobs.sync import MAX_BATCH, apply_batch, printable, record_posted_sheet
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -630,10 +630,15 @@ class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVie
         request=s.SheetInputSerializer, responses={201: s.SheetSerializer, 200: s.SheetSerializer}
     )
     def create(self, request: Request, *args: Any, **kwargs: Any) -> Response:
-        """Record a filled sheet; the same client_uuid sent again returns the stored copy."""
+        """Record a filled sheet; the same sheet sent again under its client_uuid returns the
+        stored copy, and other content under a used client_uuid is refused (400)."""
         data = s.SheetInputSerializer(data=request.data, context=self.get_serializer_context())
         data.is_valid(raise_exception=True)
-        sheet, created = checklist_services.record_sheet(by=request.user, **data.validated_data)
+        # As sent, for the receipt's digest: the fields of a batch record's data.
+        content = {key: value for key, value in request.data.items() if key != "client_uuid"}
+        sheet, created = record_posted_sheet(
+            by=request.user, content=content, **data.validated_data
+        )
         # Read back past the list's ?job= filter: the sheet is stored, whatever the URL says.
         sheet = sheets_for(self.org_id).get(pk=sheet.pk)
         return Response(

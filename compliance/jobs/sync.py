@@ -24,7 +24,7 @@ from django.db import IntegrityError, transaction
 from django.utils import timezone
 from django.utils.dateparse import parse_datetime
 
-from checklists.models import ChecklistVersion
+from checklists.models import ChecklistVersion, CheckSheet
 from checklists.selectors import fillable_versions
 from checklists.services import record_sheet
 from compliance.anchor_log.services import HeldChains
@@ -300,10 +300,15 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
         held_chains=run.chains if in_run and run else None,
     )
     batch.pending_readiness.add(job.pk)
+    return _sheet_answer(sheet)
+
+
+def _sheet_answer(sheet: CheckSheet) -> dict[str, Any]:
+    """What a receipt keeps of an applied sheet, and the sync answers with."""
     return {
         "sheet": sheet.pk,
         "verdict": sheet.verdict,
-        "job": job.pk,
+        "job": sheet.job_id,
         "blocking_failures": sheet.blocking_failures,
     }
 
@@ -524,6 +529,62 @@ def content_digest(record: dict[str, Any]) -> str | None:
     return hashlib.sha256(raw).hexdigest()
 
 
+def reuses_id(receipt: SyncReceipt, record: dict[str, Any]) -> bool:
+    """Whether ``record``, sent under the client uuid of ``receipt``, is another record than
+    the one the receipt was kept for: another kind, or other content. A receipt kept before
+    its content was hashed is taken as the same record of its kind."""
+    if receipt.kind != record.get("type"):
+        return True
+    return bool(receipt.content_sha256) and receipt.content_sha256 != content_digest(record)
+
+
+def record_posted_sheet(
+    *, by: User, content: dict[str, Any], client_uuid: uuid.UUID | None = None, **fields: Any
+) -> tuple[CheckSheet, bool]:
+    """A sheet posted to the sheets endpoint, recorded once per client uuid as a batch's sheet
+    is: with a receipt keeping its content's digest (``content`` is the body as sent, less its
+    client_uuid; the same fields as a batch record's data), in the sheet's transaction. The
+    same record sent again, this way or in a batch, is answered as its duplicate; another
+    record under its id is refused (REUSED_ID under client_uuid) and nothing is stored. A
+    sheet posted before its receipt was kept is answered as the same record. ``fields`` are
+    record_sheet's; returns (sheet, created)."""
+    record = {"type": "sheet", "data": content}
+    client_uuid = client_uuid or uuid.uuid4()
+    try:
+        return _record_posted_sheet(by=by, record=record, client_uuid=client_uuid, **fields)
+    except IntegrityError:
+        # Another request's receipt under this id landed between the read and the insert
+        # (PostgreSQL; SQLite's writers take turns): read again, it is answered from there.
+        return _record_posted_sheet(by=by, record=record, client_uuid=client_uuid, **fields)
+
+
+def _record_posted_sheet(
+    *, by: User, record: dict[str, Any], client_uuid: uuid.UUID, **fields: Any
+) -> tuple[CheckSheet, bool]:
+    with transaction.atomic():
+        receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()
+        if receipt is not None and reuses_id(receipt, record):
+            raise ValidationError({"client_uuid": REUSED_ID})
+        sheet, created = record_sheet(by=by, client_uuid=client_uuid, **fields)
+        if not created:
+            if receipt is None:
+                # Stored meanwhile by another request of the same id: its receipt is there.
+                receipt = SyncReceipt.objects.filter(client_uuid=client_uuid).first()
+                if receipt is not None and reuses_id(receipt, record):
+                    raise ValidationError({"client_uuid": REUSED_ID})
+            return sheet, False
+        SyncReceipt.objects.create(
+            client_uuid=client_uuid,
+            kind="sheet",
+            user=by,
+            status="applied",
+            result=_sheet_answer(sheet),
+            device_time=sheet.device_time,
+            content_sha256=content_digest(record) or "",
+        )
+    return sheet, True
+
+
 def _answer_again(
     line: dict[str, Any], receipt: SyncReceipt, user: User, record: dict[str, Any]
 ) -> dict[str, Any]:
@@ -533,7 +594,7 @@ def _answer_again(
     receipt kept before its content was hashed answers as the same record."""
     if receipt.user_id != user.pk:
         return {**line, "status": "rejected", "errors": {"client_uuid": ["Already used."]}}
-    if receipt.content_sha256 and receipt.content_sha256 != content_digest(record):
+    if reuses_id(receipt, record):
         return {**line, "status": "rejected", "errors": {"client_uuid": [REUSED_ID]}}
     return {**line, "status": receipt.status, "duplicate": True, **receipt.result}
 

@@ -14,8 +14,10 @@ from PIL import Image
 from checklists.models import Photo
 from checklists.services import record_sheet
 from compliance import clock
+from compliance.jobs.services import close_job, start_job
 from compliance.records.services import sign_daily_record, verify_against_database
-from tests.conftest import PASSING, client_for
+from compliance.records.signing import create_self_signed
+from tests.conftest import PASSING, client_for, fill_all
 from tests.factories import (
     PASSWORD,
     JobFactory,
@@ -204,3 +206,107 @@ def test_a_loose_photo_of_a_job_without_drops_names_a_site_photo_item(
         assert _nothing_stored(tmp_path)
         response = _post(operator, bare, item_key="zone_photo")
     assert response.status_code == 201, response.json()
+
+
+# A failure kept after its job's day keeps its photos: the evidence of a failure is not lost.
+
+RESET = dt.datetime(2000, 1, 1, 10, 15, tzinfo=dt.UTC)
+"""A phone whose battery was pulled wakes up on 2000-01-01."""
+
+CUT_SHEATH = {"sheath": {"value": "fail"}}
+
+
+@pytest.fixture
+def night_shift(job, simple_checklists, operator):
+    """Yesterday's job, cleared and working on its day and still working past midnight."""
+    shift = JobFactory(
+        site=job.site, supervisor=job.supervisor, date=timezone.localdate() - dt.timedelta(days=1)
+    )
+    make_drop(shift)
+    with clock.replaying(shift.date):
+        fill_all(shift, simple_checklists, operator)
+        start_job(job=shift, by=operator)
+    shift.refresh_from_db()
+    return shift
+
+
+def _late_failure(job, versions, operator, **clock_fields):
+    """The safety line's failure, received today (after its job's day): kept, holding the job."""
+    sheet, created = record_sheet(
+        job=job,
+        version=versions["safety_line"],
+        by=operator,
+        entries=CUT_SHEATH,
+        equipment=job.drops.get().safety_line,
+        **clock_fields,
+    )
+    assert created and sheet.verdict == "fail"
+    return sheet
+
+
+@pytest.mark.parametrize(
+    "clock_fields",
+    [
+        pytest.param({"device_time": RESET, "phone_clock_offset_s": 0}, id="clock-reset"),
+        pytest.param({}, id="no-phone-time"),
+    ],
+)
+def test_a_photo_of_a_failure_kept_after_its_jobs_day_is_kept_too(
+    night_shift, simple_checklists, operator, clock_fields
+):
+    """The failure was kept (stop work first), counted as made when received, and held the
+    job; the photo of the cut sheath sent right after it was refused as 'made on 2000-01-01'
+    (or on the day it was received), and the evidence of the failure was lost."""
+    sheet = _late_failure(night_shift, simple_checklists, operator, **clock_fields)
+
+    response = _post(operator, night_shift, sheet_uuid=str(sheet.client_uuid), item_key="sheath")
+
+    assert response.status_code == 201, response.json()
+    photo = Photo.objects.get()
+    assert (photo.job_id, photo.sheet_uuid, photo.item_key) == (
+        night_shift.pk,
+        sheet.client_uuid,
+        "sheath",
+    )
+
+
+def test_a_photo_of_a_late_failure_is_still_refused_once_its_day_is_signed(
+    night_shift, simple_checklists, operator, supervisor, tmp_path
+):
+    """The seal is the rule that stays: a later row would read as tampering with the signed
+    record; a correction to a signed day is a signed addendum."""
+    sheet = _late_failure(
+        night_shift, simple_checklists, operator, device_time=RESET, phone_clock_offset_s=0
+    )
+    create_self_signed(organisation=night_shift.organisation)
+    close_job(job=night_shift, by=night_shift.supervisor, reason="Sheath cut; line withdrawn.")
+    signed = sign_daily_record(
+        job=night_shift, by=night_shift.supervisor, password=PASSWORD, meaning="reviewed_stopped"
+    )
+
+    response = _post(operator, night_shift, sheet_uuid=str(sheet.client_uuid), item_key="sheath")
+
+    assert response.status_code == 400
+    assert response.json() == {
+        "job": ["This day's record is signed: a photo can no longer be added to it."]
+    }
+    assert _nothing_stored(tmp_path)
+    assert verify_against_database(signed) == []
+
+
+def test_a_loose_photo_sent_after_a_late_failure_is_still_refused(
+    night_shift, simple_checklists, operator, tmp_path
+):
+    """A photo for no sheet carries no day but the one it is received on."""
+    _late_failure(night_shift, simple_checklists, operator)
+
+    response = _post(operator, night_shift)
+
+    assert response.status_code == 400
+    assert response.json() == {
+        "job": [
+            f"This job is for {night_shift.date.isoformat()}: its photos are taken on its day,"
+            f" and this one was made on {timezone.localdate().isoformat()}."
+        ]
+    }
+    assert _nothing_stored(tmp_path)
