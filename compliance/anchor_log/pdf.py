@@ -16,20 +16,26 @@ from reportlab.platypus import SimpleDocTemplate, Spacer
 from compliance.records.pdf import (
     ATTACHMENT_NAME,
     SEAL_LABEL,
+    SPELLED_NOTE,
     _moment,
     _NumberedCanvas,
     _p,
     _styles,
     _table,
+    spelled_for_drawing,
 )
 from compliance.records.sealing import canonical_bytes
 
 FIRST_FORMAT = "parapet.anchor-log-book/1"
 """Log books signed in this format print their times as stored (UTC, to the microsecond): they
 are drawn so still, as the verifier draws a log book again to compare its pages."""
-FORMAT = "parapet.anchor-log-book/2"
+ZONED_FORMAT = "parapet.anchor-log-book/2"
 """Prints each time in the document's `time_zone` to the minute, with the zone's name."""
-FORMATS = (FIRST_FORMAT, FORMAT)
+FORMAT = "parapet.anchor-log-book/3"
+"""As /2, and a character the fonts cannot draw prints as its code point ("[U+674E]") with a
+note saying so, where /1 and /2 drew an empty box: a certifier's name in Han script could not
+be read back from the signed pages."""
+FORMATS = (FIRST_FORMAT, ZONED_FORMAT, FORMAT)
 CAUTION = (
     "This log book records inspections, tests, repairs and checks of the roof anchors. "
     "Certification of anchors is the work of a licensed professional engineer under the local "
@@ -131,6 +137,9 @@ def _clock(document: dict[str, Any]) -> Callable[[Any], str]:
 
 def render(document: dict[str, Any], seal: str) -> bytes:
     s = _styles()
+    sealed = document
+    if document.get("format") not in (FIRST_FORMAT, ZONED_FORMAT):
+        document = spelled_for_drawing(document)
     when = _clock(document)
     story: list[Any] = [
         _p(f"Anchor log book — {document['site']['name']}", s["title"]),
@@ -176,6 +185,8 @@ def render(document: dict[str, Any], seal: str) -> bytes:
             ]
         )
     story.append(_table(rows, [8 * mm, 15 * mm, 30 * mm, 35 * mm, 55 * mm, 37 * mm]))
+    if document is not sealed and document != sealed:
+        story += [Spacer(1, 3 * mm), _p(SPELLED_NOTE, s["small"])]
     story += [
         Spacer(1, 4 * mm),
         _p("Caution", s["h3"]),
@@ -193,13 +204,13 @@ def render(document: dict[str, Any], seal: str) -> bytes:
         rightMargin=15 * mm,
         topMargin=15 * mm,
         bottomMargin=20 * mm,
-        title=f"Anchor log book — {document['site']['name']}",
+        title=f"Anchor log book — {sealed['site']['name']}",
         creator="Parapet",
         invariant=1,
     )
     doc.build(story, canvasmaker=_NumberedCanvas)
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(buffer.getvalue())))
-    writer.add_attachment(ATTACHMENT_NAME, canonical_bytes(document))
+    writer.add_attachment(ATTACHMENT_NAME, canonical_bytes(sealed))
     out = io.BytesIO()
     writer.write(out)
     return out.getvalue()

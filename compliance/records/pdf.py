@@ -488,6 +488,9 @@ WITHOUT_NOTES = (FIRST_LAYOUT, READABLE_LAYOUT, "parapet.daily-record/4")
 """The formats whose pages leave the job's notes out (they are drawn as they were signed)."""
 WITHOUT_FOUND = (*WITHOUT_NOTES, "parapet.daily-record/5")
 """The formats whose holds print only when the server opened them (drawn as signed)."""
+UNSPELLED_ADDENDA = ("parapet.daily-record-addendum/2",)
+"""The addendum formats drawn with an empty box for a character the fonts cannot draw (as
+signed); from addendum/3 it prints as its code point, as records do from /7."""
 WITHOUT_JUDGED_ON = (*WITHOUT_FOUND, "parapet.daily-record/6")
 """The formats sealed before each check's figures were (drawn as signed, without them)."""
 """Records sealed in this format keep the readable layout with every table cell set as a
@@ -584,10 +587,11 @@ def render(
     s = _styles()
     photos = photos or {}
     look = _Look.of(document)
-    sealed, spelled = document, False
-    if look.judged and not json.dumps(document, ensure_ascii=False).isascii():
-        document = _spelled(document)
-        spelled = document != sealed
+    sealed = document
+    addendum = document.get("record") is None
+    if document.get("format") not in UNSPELLED_ADDENDA if addendum else look.judged:
+        document = spelled_for_drawing(document)
+    spelled = document is not sealed and document != sealed
     record = document.get("record")
     story: list[Any] = []
     sig = document["signature"]
@@ -654,6 +658,14 @@ def _spelled_text(text: str) -> str:
     return "".join(
         ch if ord(ch) < 0x80 or ord(ch) in drawable else f"[U+{ord(ch):04X}]" for ch in text
     )
+
+
+def spelled_for_drawing(document: dict[str, Any]) -> dict[str, Any]:
+    """The document to draw: itself when every character is drawable (checked on its JSON,
+    quick), else a copy with each character the fonts cannot draw spelled as its code point."""
+    if json.dumps(document, ensure_ascii=False).isascii():
+        return document
+    return _spelled(document)  # type: ignore[no-any-return]
 
 
 def _spelled(value: Any) -> Any:

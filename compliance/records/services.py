@@ -84,7 +84,10 @@ RECORD_FORMATS = (*WITHOUT_JUDGED_ON, FORMAT)
 ADDENDUM_MEANING = (
     "Addendum: corrects or adds to the referenced record; the original stands unchanged."
 )
-ADDENDUM_FORMAT = "parapet.daily-record-addendum/2"
+ADDENDUM_FORMAT = "parapet.daily-record-addendum/3"
+"""/3 holds the same document as /2 and prints a character the fonts cannot draw as its code
+point (compliance/records/pdf.py, UNSPELLED_ADDENDA)."""
+ADDENDUM_FORMATS = ("parapet.daily-record-addendum/2", ADDENDUM_FORMAT)
 MEANINGS = {
     "reviewed_safe": "Reviewed: the pre-start checks were complete and work was safe to proceed.",
     "reviewed_stopped": "Reviewed: work was stopped; the open holds are shown in this record.",
@@ -859,7 +862,7 @@ def sealed_column_problems(
         else (doc.get("amends") or {}).get("job")
     )
     sealed_format = doc.get("format")
-    formats = RECORD_FORMATS if record.kind == DailyRecord.Kind.RECORD else (ADDENDUM_FORMAT,)
+    formats = RECORD_FORMATS if record.kind == DailyRecord.Kind.RECORD else ADDENDUM_FORMATS
     pairs = {
         "kind": (sealed_format in formats, True),
         "organisation": ((doc.get("organisation") or {}).get("id"), record.organisation_id),

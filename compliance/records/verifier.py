@@ -418,6 +418,7 @@ RECORD_FORMATS = {
     "parapet.daily-record/6",
     "parapet.daily-record/7",
     "parapet.daily-record-addendum/2",
+    "parapet.daily-record-addendum/3",
 }
 
 

@@ -504,7 +504,7 @@ def test_the_log_book_prints_its_times_in_the_sites_zone_not_as_stored(building,
     text = " ".join(" ".join(page.extract_text() for page in reader.pages).split())
     document = json.loads(reader.attachments["daily-record.json"][0])
 
-    assert document["format"] == "parapet.anchor-log-book/2"
+    assert document["format"] == "parapet.anchor-log-book/3"
     assert document["time_zone"] == "Pacific/Auckland"
     zone = ZoneInfo("Pacific/Auckland")
     for stamp in (

@@ -114,6 +114,12 @@ DOCUMENTS = {
     # /7 prints the figures each check was judged on, and those changed by signing.
     "record-7": {**FIXTURES["record"], "record": JUDGED, "format": "parapet.daily-record/7"},
     "addendum": FIXTURES["addendum"],
+    # addendum/3 prints a character the fonts cannot draw as its code point.
+    "addendum-3": {
+        **FIXTURES["addendum"],
+        "format": "parapet.daily-record-addendum/3",
+        "text": FIXTURES["addendum"]["text"] + " Inspected by 李 Wei.",
+    },
 }
 
 PINNED = {
@@ -124,6 +130,7 @@ PINNED = {
     "record-6": "7850817f8884c7f9dfbdbe148b1d49f8704d0cffc6e4d7ffa3f7082bb3969ab1",
     "record-7": "7e5c79e4949d57aa9f5b56af87d37102d1606938553cf006fd75e0d426cd3b24",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
+    "addendum-3": "034ef7e922d0853c5585abf17b5a5b4972abed940a58d9d79069a80af1919cd9",
 }
 
 
@@ -140,10 +147,20 @@ LOG_BOOKS = {
         "format": "parapet.anchor-log-book/2",
         "time_zone": "Europe/Lisbon",
     },
+    # /3 prints a character the fonts cannot draw as its code point.
+    "log-book-3": {
+        **FIXTURES["log_book"],
+        "format": "parapet.anchor-log-book/3",
+        "time_zone": "Europe/Lisbon",
+        "generated_by": {**FIXTURES["log_book"]["generated_by"], "name": "Owner 李 Wei"},
+    },
 }
+
+
 LOG_BOOK_PINNED = {
     "log-book-1": "187c9e0b742fe7a0b2d67c832ceeef46d94d35cc1da46bf1f4c06baf12cedf90",
     "log-book-2": "953917ed71b1cdc53a33df30b82be5c13e48e66148de3d8d3e30d757fb1c5313",
+    "log-book-3": "f15fb8dcc93b3392c6c279f3ef0f06180e8cb8a4516f7c18c52fccde469a5397",
 }
 
 
@@ -348,6 +365,32 @@ def test_from_7_a_character_the_fonts_cannot_draw_prints_as_its_code_point():
     as_six = render({**document, "format": "parapet.daily-record/6"}, FIXTURES["seal"])
     six = " ".join(p.extract_text() for p in PdfReader(io.BytesIO(as_six)).pages)
     assert "[U+674E]" not in six and "code point" not in six
+
+
+@pytest.mark.parametrize(
+    ("name", "spelled", "as_before"),
+    [
+        ("addendum-3", "Inspected by [U+674E] Wei.", "parapet.daily-record-addendum/2"),
+        ("log-book-3", "Owner [U+674E] Wei", "parapet.anchor-log-book/2"),
+    ],
+)
+def test_an_addendum_and_a_log_book_spell_what_the_fonts_cannot_draw(name, spelled, as_before):
+    from compliance.anchor_log.pdf import render as render_log_book
+
+    document = {**DOCUMENTS, **LOG_BOOKS}[name]
+    draw = render_log_book if name.startswith("log-book") else render
+
+    def text(doc):
+        pdf = draw(doc, FIXTURES["seal"])
+        return pdf, " ".join(
+            " ".join(p.extract_text() for p in PdfReader(io.BytesIO(pdf)).pages).split()
+        )
+
+    pdf, now = text(document)
+    assert spelled in now and "such as [U+4E2D]" in now
+    assert document_of(pdf) == document
+    _, before = text({**document, "format": as_before})
+    assert "[U+674E]" not in before and "code point" not in before
 
 
 def test_text_the_fonts_draw_whole_is_not_spelled():
