@@ -7,6 +7,7 @@ from django.db.models import Exists, OuterRef, Q, QuerySet
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry
 from compliance.engineering.site_plan import facade_position
+from compliance.engineering.working import same_figure
 from compliance.models import Anchor, Drop, Equipment, Job
 
 
@@ -230,6 +231,6 @@ def changed_since(
         now = drop_context(job, anchor, equipment, drop)
         for name, value in was.items():
             current = read_value(now, name)
-            if current != value:
+            if not same_figure(current, value):
                 return name, value, current
     return None

@@ -5,7 +5,7 @@ import difflib
 import json
 import math
 import uuid
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import replace
 from operator import attrgetter
 from typing import Any
@@ -45,6 +45,7 @@ from compliance.registers.services import (
     require_register_keeper,
     save_new_register_row,
 )
+from compliance.timeline import WEATHER_CHECKLIST, WEATHER_RECHECK
 
 
 def _check_calc_names(items: list[dict[str, Any]]) -> None:
@@ -354,11 +355,13 @@ def judged_on(
     anchor: Anchor | None,
     equipment: Equipment | None,
     drops: list[Any],
+    also: Iterable[str] = (),
 ) -> dict[str, dict[str, Any]]:
     """What the sheet's items read from the register, the profile and the plan, for each drop
     its subject serves: kept with the sheet, so that a rating changed since (a safety line
-    re-rated from 30 kN to 10 kN) is seen to leave the sheet's verdict behind."""
-    reads = context_reads(items)
+    re-rated from 30 kN to 10 kN) is seen to leave the sheet's verdict behind. `also` names
+    figures the sheet is judged on that no item reads (how long a weather check counts)."""
+    reads = sorted({*context_reads(items), *also})
     served = served_drops(drops, anchor, equipment) or [None]
     return {
         drop_key(d): read_values(reads, drop_context(job, anchor, equipment, d)) for d in served
@@ -593,7 +596,10 @@ def record_sheet(
         # to 2000 after a battery pull). Its time is kept as sent but not believed: without
         # the batch's offset it counts as made when received, for holds and the record alike.
         phone_clock_offset_s = None
-    judged = judged_on(version.items, job, anchor, equipment, drops)
+    # A weather check counts for the time in force when it was made (its record says so,
+    # and a profile reloaded since leaves it behind like any figure it was judged on).
+    also = (WEATHER_RECHECK,) if version.checklist.key == WEATHER_CHECKLIST else ()
+    judged = judged_on(version.items, job, anchor, equipment, drops, also)
     # A sync batch's run gives each record a savepoint of its own and has looked for the uuid
     # under the job's lock: a second savepoint here would only cost two statements.
     savepoint = not (job_locked and uuid_unused)

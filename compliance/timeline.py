@@ -15,6 +15,9 @@ from typing import Any
 WEATHER_CHECKLIST = "weather"
 """The checklist whose readings go stale as the day goes on (`weather_recheck_min`)."""
 
+WEATHER_RECHECK = "profile.weather_recheck_min"
+"""The figure a weather check is judged on for how long it counts (kept in its `judged_on`)."""
+
 WEATHER_GRACE = dt.timedelta(minutes=2)
 """A gap no longer than this is not one: the beat that stops a job whose weather check ran out
 runs each minute, and the hold is written within the next."""
@@ -35,13 +38,49 @@ def time_made(
     return min(made, received)
 
 
-def recheck_interval(thresholds: Any) -> dt.timedelta | None:
-    """How long a weather check counts for under a profile's thresholds (None: all day)."""
-    entry = thresholds.get("weather_recheck_min") if isinstance(thresholds, Mapping) else None
-    value = entry.get("value") if isinstance(entry, Mapping) else None
+def reading_time(
+    device_time: dt.datetime | None, phone_clock_offset_s: int | None, received: dt.datetime
+) -> dt.datetime:
+    """When a weather reading was taken, for how long ago it was: as `time_made` when the
+    batch's clock is known and agrees (the phone's time set right is not after the receipt);
+    otherwise the earlier of the phone's own time and the receipt. Stop work first: a reading
+    the phone says is three hours old, sent without the batch's time or with one that puts it
+    after its receipt, is not taken as read when it arrived."""
+    if device_time is None:
+        return received
+    if phone_clock_offset_s is not None:
+        try:
+            corrected = device_time - dt.timedelta(seconds=phone_clock_offset_s)
+        except OverflowError:
+            corrected = None
+        if corrected is not None and corrected <= received:
+            return corrected
+    return min(device_time, received)
+
+
+def minutes(value: Any) -> dt.timedelta | None:
+    """A number of minutes as a time, when it is a positive number (None otherwise)."""
     if not isinstance(value, int | float) or isinstance(value, bool) or not 0 < value < 1e6:
         return None
     return dt.timedelta(minutes=float(value))
+
+
+def recheck_interval(thresholds: Any) -> dt.timedelta | None:
+    """How long a weather check counts for under a profile's thresholds (None: all day)."""
+    entry = thresholds.get("weather_recheck_min") if isinstance(thresholds, Mapping) else None
+    return minutes(entry.get("value") if isinstance(entry, Mapping) else None)
+
+
+def _judged_interval(sheet: Mapping[str, Any]) -> dt.timedelta | bool | None:
+    """How long a sealed weather check counts for by its own `judged_on` (the time in force
+    when it was made); False when it kept none (made before checks kept it)."""
+    judged = sheet.get("judged_on")
+    if not isinstance(judged, Mapping):
+        return False
+    for figures in judged.values():
+        if isinstance(figures, Mapping) and WEATHER_RECHECK in figures:
+            return minutes(figures[WEATHER_RECHECK])
+    return False
 
 
 def _moment(stamp: Any) -> dt.datetime | None:
@@ -66,21 +105,22 @@ def weather_gaps(record: Mapping[str, Any]) -> list[tuple[dt.datetime, dt.dateti
     weather checks are every sheet of the weather checklist, by when it was made.
     """
     profile = record.get("profile")
-    interval = recheck_interval(profile.get("thresholds") if isinstance(profile, Mapping) else None)
-    if interval is None:
-        return []
-    readings = []
+    signed = recheck_interval(profile.get("thresholds") if isinstance(profile, Mapping) else None)
+    readings: list[tuple[dt.datetime, dt.timedelta | None]] = []
     for sheet in record.get("sheets") or []:
         if not isinstance(sheet, Mapping) or sheet.get("checklist") != WEATHER_CHECKLIST:
             continue
         received = _moment(sheet.get("received_at"))
         if received is None:
             continue
-        made = time_made(
+        read = reading_time(
             _moment(sheet.get("device_time")), _offset(sheet.get("phone_clock_offset_s")), received
         )
-        readings.append(made)
-    readings.sort()
+        own = _judged_interval(sheet)
+        readings.append((read, signed if own is False else own))  # type: ignore[arg-type]
+    if all(interval is None for _, interval in readings) and (readings or signed is None):
+        return []
+    readings.sort(key=lambda pair: pair[0])
     periods: list[tuple[dt.datetime, dt.datetime]] = []
     began: dt.datetime | None = None
     for move in record.get("transitions") or []:
@@ -95,13 +135,25 @@ def weather_gaps(record: Mapping[str, Any]) -> list[tuple[dt.datetime, dt.dateti
             periods.append((began, at))
             began = None
     gaps: list[tuple[dt.datetime, dt.datetime]] = []
+    never = dt.datetime.max.replace(tzinfo=dt.UTC)
+
+    def lasts(read: dt.datetime, interval: dt.timedelta | None) -> dt.datetime:
+        if interval is None:
+            return never  # read under a profile that kept a reading all day
+        try:
+            return read + interval
+        except OverflowError:
+            return never
+
     for start, end in periods:
-        before = [r for r in readings if r <= start]
-        due = before[-1] + interval if before else start
-        for reading in (r for r in readings if start < r <= end):
-            if reading - due > WEATHER_GRACE and due < end:
-                gaps.append((max(due, start), reading))
-            due = max(due, reading + interval)
-        if end - due > WEATHER_GRACE:
+        before = [lasts(r, i) for r, i in readings if r <= start]
+        due = before[-1] if before else start
+        for read, interval in readings:
+            if not start < read <= end:
+                continue
+            if read - due > WEATHER_GRACE and due < end:
+                gaps.append((max(due, start), read))
+            due = max(due, lasts(read, interval))
+        if due < end and end - due > WEATHER_GRACE:
             gaps.append((max(due, start), end))
     return [(a, b) for a, b in gaps if b - a > WEATHER_GRACE]

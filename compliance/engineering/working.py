@@ -56,3 +56,32 @@ def whole_pct(fraction: float, *, passed: bool) -> str:
     elif whole < 0:
         whole = 0
     return f"{'+' if whole >= 0 else '-'}{abs(whole)} %"
+
+
+FIGURE_TOLERANCE = 1e-9
+"""How far apart, relatively, two register figures may be and still be the same figure: a
+rating typed or stored as 2500.0000000001 is the 2500 kPa it was, not a re-rating."""
+
+
+def _number(value: object) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool)
+
+
+def same_figure(a: object, b: object) -> bool:
+    """Whether two register, profile or plan figures are the same: numbers to within
+    FIGURE_TOLERANCE of each other, anything else equal."""
+    if _number(a) and _number(b):
+        x, y = float(a), float(b)  # type: ignore[arg-type]
+        return x == y or math.isclose(x, y, rel_tol=FIGURE_TOLERANCE, abs_tol=0.0)
+    return a == b
+
+
+def told_apart(a: object, b: object, short: str = "g") -> tuple[str, str]:
+    """Two figures as text that shows they differ: in `short` form, or in full where the
+    short forms would read the same ("30" and "30.0001", not "30" and "30")."""
+    if not (_number(a) and _number(b)):
+        return str(a), str(b)
+    first, second = format(a, short), format(b, short)
+    if first == second and not same_figure(a, b):
+        return repr(a), repr(b)
+    return first, second

@@ -10,6 +10,7 @@ from django.utils import timezone
 from checklists.selectors import changed_since, current_versions, latest_sheets
 from checklists.verdicts import REGISTER_WORDS
 from compliance import clock
+from compliance.engineering.working import told_apart
 from compliance.errors import Reason
 from compliance.models import (
     OPEN_STATES,
@@ -28,7 +29,7 @@ from compliance.models import (
 from compliance.registers.ratings import rating_labels
 from compliance.registers.selectors import anchor_status, failed_test, withdrawal
 from compliance.registers.visibility import can_work_at
-from compliance.timeline import WEATHER_CHECKLIST, recheck_interval
+from compliance.timeline import WEATHER_CHECKLIST, reading_time, recheck_interval
 
 
 @dataclass(frozen=True)
@@ -239,12 +240,14 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                 if sheet is not None and sheet.judged_on and not later and not before_return
                 else None
             )
-            stale = (
-                sheet is not None
+            read = (
+                reading_time(sheet.device_time, sheet.phone_clock_offset_s, sheet.received_at)
+                if sheet is not None
                 and sheet.blocking_failures == 0
                 and version.checklist.key == WEATHER_CHECKLIST
-                and weather_stale_since(job, sheet.made_at)
+                else None
             )
+            stale = read is not None and weather_stale_since(job, read)
             requirements.append(
                 Requirement(
                     checklist_key=version.checklist.key,
@@ -264,7 +267,7 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     before_drop=later[0] if later else "",
                     changed=changed,
                     before_return=before_return,
-                    read_at=sheet.made_at if stale else None,  # type: ignore[union-attr]
+                    read_at=read if stale else None,
                     published_at=version.published_at,
                 )
             )
@@ -293,11 +296,12 @@ def open_holds(job: Job) -> list[Hold]:
     return list(Hold.objects.filter(job=job, clearance__isnull=True).select_related("sheet"))
 
 
-def _figure(value: object, unit: str = "") -> str:
+def _figure(text: str, unit: str, value: object) -> str:
+    """A figure's text (told_apart) with its unit; "nothing" where there is none."""
     if value is None:
         return "nothing"
     if isinstance(value, float | int) and not isinstance(value, bool):
-        return f"{value:g} {unit}" if unit else f"{value:g}"
+        return f"{text} {unit}" if unit else text
     return str(value)
 
 
@@ -479,10 +483,11 @@ def requirement_reason(job: Job, req: Requirement) -> Reason | None:
         kind, _, ref = name.partition(".")
         whose = "its" if kind == "equipment" else REGISTER_WORDS.get(kind, f"the {kind}'s")
         words, unit = _figure_words(job, req.subject, kind, ref)
+        was, reads = told_apart(then, now)
         return Reason(
             "sheet_judged_on_changed",
-            f"{subject} was judged with {whose} {words} at {_figure(then, unit)}; it now reads"
-            f" {_figure(now, unit)}: check it again.",
+            f"{subject} was judged with {whose} {words} at {_figure(was, unit, then)}; it now"
+            f" reads {_figure(reads, unit, now)}: check it again.",
             req.key,
         )
     if req.read_at is not None:

@@ -13,6 +13,7 @@ import itertools
 import json
 import math
 import re
+import unicodedata
 from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import lru_cache
@@ -45,9 +46,9 @@ from reportlab.platypus import (
     TableStyle,
 )
 
-from compliance.engineering.working import whole_pct
+from compliance.engineering.working import same_figure, told_apart, whole_pct
 from compliance.records.sealing import canonical_bytes
-from compliance.timeline import recheck_interval, weather_gaps
+from compliance.timeline import WEATHER_CHECKLIST, reading_time, recheck_interval, weather_gaps
 
 ATTACHMENT_NAME = "daily-record.json"
 SEAL_LABEL = "Seal (SHA-256 of the attached canonical JSON):"
@@ -636,7 +637,8 @@ def render(
 
 
 SPELLED_NOTE = (
-    "Some text in this record holds characters the record's font cannot draw: each prints as"
+    "Some text in this record holds characters the record's font cannot draw, or that a page"
+    " would not show (such as a right-to-left override or a zero-width space): each prints as"
     " its code point, such as [U+4E2D]. The sealed document attached to this file holds the"
     " text as it was written."
 )
@@ -651,13 +653,28 @@ def _drawable() -> frozenset[int]:
     )
 
 
+UNSHOWN = frozenset(("Cc", "Cf", "Co", "Cs", "Zl", "Zp"))
+"""Unicode categories a page would not show truthfully: controls and format characters (a
+right-to-left override turns "NOT VERIFIED" round on screens that honour it, while the page
+prints it as sent; a zero-width space hides between letters) and private use. Characters
+unassigned in this Python's Unicode tables are not named here: the fonts (the project's own
+files) have no glyph for them, so they are spelled the same wherever the record is drawn."""
+
+
+def _shown(ch: str, drawable: frozenset[int]) -> bool:
+    code = ord(ch)
+    if code < 0x80:
+        return True
+    # Past U+FFFF reportlab writes the text map of the page wrong (copy and search find other
+    # characters), though the font may draw it.
+    return code <= 0xFFFF and code in drawable and unicodedata.category(ch) not in UNSHOWN
+
+
 def _spelled_text(text: str) -> str:
     if text.isascii():
         return text
     drawable = _drawable()
-    return "".join(
-        ch if ord(ch) < 0x80 or ord(ch) in drawable else f"[U+{ord(ch):04X}]" for ch in text
-    )
+    return "".join(ch if _shown(ch, drawable) else f"[U+{ord(ch):04X}]" for ch in text)
 
 
 def spelled_for_drawing(document: dict[str, Any]) -> dict[str, Any]:
@@ -809,24 +826,28 @@ class _Figure:
     at_signing: Any
     unit: str
 
-    def value(self, value: Any) -> str:
+    def value(self, value: Any, text: str | None = None) -> str:
         if value is None:
             return "none on record"
-        return f"{_fmt(value)} {self.unit}" if self.unit and _is_number(value) else _fmt(value)
+        text = _fmt(value) if text is None else text
+        return f"{text} {self.unit}" if self.unit and _is_number(value) else text
 
     @property
     def changed(self) -> bool:
-        if self.at_signing is _UNKNOWN:
-            return False
+        return self.at_signing is not _UNKNOWN and not same_figure(self.judged, self.at_signing)
+
+    def both(self) -> tuple[str, str]:
+        """The figure judged on and the one at signing, told apart where they differ."""
         if _is_number(self.judged) and _is_number(self.at_signing):
-            return float(self.judged) != float(self.at_signing)
-        return bool(self.judged != self.at_signing)
+            then, now = told_apart(self.judged, self.at_signing, ".4g")
+            return self.value(self.judged, then), self.value(self.at_signing, now)
+        return self.value(self.judged), self.value(self.at_signing)
 
     def line(self) -> str:
-        text = f"{self.words} {self.value(self.judged)}"
-        if self.changed:
-            text += f" (the register read {self.value(self.at_signing)} at signing)"
-        return text
+        if not self.changed:
+            return f"{self.words} {self.value(self.judged)}"
+        then, now = self.both()
+        return f"{self.words} {then} (the register read {now} at signing)"
 
 
 def _figure_words(ref: str) -> tuple[str, str]:
@@ -932,12 +953,13 @@ def _changed_since_checked(
     for sheet in record.get("sheets") or []:
         for figure in _judged_figures(record, sheet, subjects):
             if figure.changed:
+                then, now = figure.both()
                 rows.append(
                     [
                         look.cell(f"#{sheet.get('id')} {sheet.get('title', '')}", s["small"]),
                         look.cell(f"{figure.words} ({figure.drop})", s["small"]),
-                        look.cell(figure.value(figure.judged), s["small"]),
-                        look.cell(figure.value(figure.at_signing), s["small"]),
+                        look.cell(then, s["small"]),
+                        look.cell(now, s["small"]),
                     ]
                 )
     if len(rows) == 1:
@@ -953,6 +975,25 @@ def _changed_since_checked(
         ),
         _table(rows, [50 * mm, 70 * mm, 30 * mm, 30 * mm], plain=look.plain),
     ]
+
+
+def _read_at(sheet: dict[str, Any], look: _Look) -> str:
+    """From /7, beside a weather check received a minute or more after it counts as read:
+    when that was (the time its gaps are reckoned from, compliance.timeline.reading_time)."""
+    if not look.judged or sheet.get("checklist") != WEATHER_CHECKLIST:
+        return ""
+    received = _moment(sheet.get("received_at"))
+    offset = sheet.get("phone_clock_offset_s")
+    if received is None:
+        return ""
+    read = reading_time(
+        _moment(sheet.get("device_time")),
+        offset if isinstance(offset, int) and not isinstance(offset, bool) else None,
+        received,
+    )
+    if received - read < LATE:
+        return ""
+    return f", counted as read {look.when(read.isoformat())}"
 
 
 def _unread_wind(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Look) -> list[Any]:
@@ -1113,7 +1154,7 @@ def _sheets(
         head = _p(
             f"#{sheet['id']} {sheet['title']} v{sheet['version']} — {subjects.get(ref, 'site')} — "
             f"{sheet['verdict'].upper()} — by {sheet['filled_by']}, "
-            f"received {look.when(sheet['received_at'])}",
+            f"received {look.when(sheet['received_at'])}" + _read_at(sheet, look),
             s["h3"],
         )
         entries = sorted(

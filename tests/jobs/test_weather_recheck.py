@@ -188,3 +188,58 @@ def test_the_beat_runs_it_each_minute(settings):
     entry = settings.CELERY_BEAT_SCHEDULE["stop-work-on-stale-weather"]
     assert entry == {"task": "compliance.tasks.stop_work_on_stale_weather", "schedule": 60}
     assert tasks.stop_work_on_stale_weather.name == entry["task"]
+
+
+def _read_at(job, weather, by, device_time, offset):
+    record_sheet(
+        job=job,
+        version=weather,
+        by=by,
+        entries={"roof_wind": {"value": 5.0, "unit": "m/s"}},
+        device_time=device_time,
+        phone_clock_offset_s=offset,
+    )
+    job.refresh_from_db()
+
+
+def test_a_reading_the_phone_says_is_hours_old_is_not_fresh_for_lack_of_the_batch_s_time(
+    job, weather, operator
+):
+    """Sent without the batch's time, the reading counted as made when it arrived: a wind read
+    2 h 50 min before cleared the job and started it."""
+    _read_at(job, weather, operator, timezone.now() - dt.timedelta(minutes=170), None)
+
+    with pytest.raises(JobBlocked) as blocked:
+        start_job(job=job, by=operator)
+
+    assert [r.code for r in blocked.value.reasons] == ["weather_stale"]
+
+
+def test_a_batch_time_that_puts_the_reading_after_its_receipt_is_not_believed(
+    job, weather, operator
+):
+    """The phone's clock set back between reading and sending: its batch said it was sent five
+    hours ago, which puts the reading two hours from now; the phone's own time says three
+    hours ago, and that is what counts (stop work first)."""
+    _read_at(job, weather, operator, timezone.now() - dt.timedelta(hours=3), -5 * 3600)
+
+    with pytest.raises(JobBlocked) as blocked:
+        start_job(job=job, by=operator)
+
+    assert [r.code for r in blocked.value.reasons] == ["weather_stale"]
+
+
+def test_an_honest_phone_two_hours_slow_is_set_right_and_starts(job, weather, operator):
+    """Read five minutes ago on a phone two hours slow, its batch saying so."""
+    _read_at(job, weather, operator, timezone.now() - dt.timedelta(minutes=125), -2 * 3600)
+
+    assert start_job(job=job, by=operator).state == JobState.WORKING
+
+
+def test_a_weather_check_keeps_how_long_it_counts_for(job, weather, operator):
+    """Kept with what it was judged on: a reading counts for the time in force when it was
+    made, whatever the profile says later, and a profile reloaded with another time leaves it
+    behind like any figure it was judged on."""
+    sheet = read_wind(job, weather, operator)
+
+    assert sheet.judged_on[str(job.drops.get().pk)]["profile.weather_recheck_min"] == 60

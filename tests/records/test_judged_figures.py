@@ -128,3 +128,67 @@ def test_a_changed_judged_figure_in_the_database_is_found(
         )
 
     assert any("judged_on" in path for path in daily_records.verify_against_database(record))
+
+
+def test_a_rating_stored_a_hair_apart_is_the_same_rating(
+    closed_job, supervisor, settings, tmp_path
+):
+    """2500.0000000001 kPa is the 2500 kPa the check read: the day read "judged with 2500 kPa;
+    it now reads 2500 kPa: check it again" and safe was refused."""
+    settings.MEDIA_ROOT = tmp_path
+    hose = _hose(closed_job)
+    update_equipment(
+        item=hose,
+        by=supervisor,
+        reason="Typed again.",
+        ratings={**hose.ratings, "rating_kpa": hose.ratings["rating_kpa"] + 1e-10},
+    )
+
+    record = sign_daily_record(
+        job=closed_job, by=supervisor, password=PASSWORD, meaning="reviewed_safe"
+    )
+
+    assert "Figures changed" not in text_of(render_signed_pdf(record))
+
+
+def test_a_small_real_change_prints_figures_that_differ(closed_job, supervisor, settings, tmp_path):
+    settings.MEDIA_ROOT = tmp_path
+    hose = _hose(closed_job)
+    judged = hose.ratings["rating_kpa"]
+    update_equipment(
+        item=hose,
+        by=supervisor,
+        reason="Re-rated.",
+        ratings={**hose.ratings, "rating_kpa": judged + 0.001},
+    )
+
+    record = sign_daily_record(
+        job=closed_job,
+        by=supervisor,
+        password=PASSWORD,
+        meaning="reviewed_exceptions",
+        remarks="Re-rated.",
+    )
+
+    text = _flat(text_of(render_signed_pdf(record)))
+    assert f"(the register read {judged + 0.001!r} kPa at signing)" in text
+
+
+@pytest.mark.parametrize(
+    ("a", "b", "same", "texts"),
+    [
+        (2500, 2500.0000000001, True, ("2500", "2500")),
+        (2500, 2500.0, True, ("2500", "2500")),
+        (30, 30.0001, False, ("30", "30.0001")),
+        (30, 10, False, ("30", "10")),
+        ("II", "III", False, ("II", "III")),
+        (True, 1, True, ("True", "1")),
+    ],
+)
+def test_figures_are_compared_to_within_a_hair_and_printed_apart_when_they_differ(
+    a, b, same, texts
+):
+    from compliance.engineering.working import same_figure, told_apart
+
+    assert same_figure(a, b) is same
+    assert told_apart(a, b) == texts

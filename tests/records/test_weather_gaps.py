@@ -166,7 +166,7 @@ def day(db, clock_at):
     create_self_signed(organisation=job.organisation)
     operator = UserFactory(organisation=job.organisation, role="operator")
 
-    def read_wind():
+    def read_wind(minutes_before=0):
         from checklists.services import record_sheet
 
         record_sheet(
@@ -174,7 +174,7 @@ def day(db, clock_at):
             version=weather,
             by=operator,
             entries={"roof_wind": {"value": 5.0, "unit": "m/s"}},
-            device_time=timezone.now(),
+            device_time=timezone.now() - dt.timedelta(minutes=minutes_before),
             phone_clock_offset_s=0,
         )
         job.refresh_from_db()
@@ -185,7 +185,7 @@ def day(db, clock_at):
 def test_a_day_worked_past_its_wind_reading_is_not_signed_safe(day, clock_at, settings, tmp_path):
     settings.MEDIA_ROOT = tmp_path
     job, operator, read_wind = day
-    read_wind()  # 11:00
+    read_wind(minutes_before=10)  # read at 10:50 offline, received at 11:00
     clock_at(1)
     start_job(job=job, by=operator)  # 11:01, no beat running
     clock_at(99)
@@ -194,7 +194,7 @@ def test_a_day_worked_past_its_wind_reading_is_not_signed_safe(day, clock_at, se
     with pytest.raises(InvalidTransition) as refused:
         sign_daily_record(job=job, by=job.supervisor, password=PASSWORD, meaning="reviewed_safe")
 
-    assert "not been read within the profile's 60 min (12:00 to 12:40)" in str(refused.value)
+    assert "not been read within the profile's 60 min (11:50 to 12:40)" in str(refused.value)
     record = sign_daily_record(
         job=job,
         by=job.supervisor,
@@ -204,7 +204,9 @@ def test_a_day_worked_past_its_wind_reading_is_not_signed_safe(day, clock_at, se
     )
     first_page = " ".join(text_of(render_signed_pdf(record)).split("\f")[0].split())
     assert "Work went on without a recent wind reading" in first_page
-    assert "It was not read in time from 2026" in first_page and "12:00:00 to" in first_page
+    assert "It was not read in time from 2026" in first_page and "11:50:00 to" in first_page
+    # The sheet says when it counts as read, which is where the gap is reckoned from.
+    assert "counted as read" in " ".join(text_of(render_signed_pdf(record)).split())
 
 
 def test_a_day_the_beat_stopped_in_time_is_signed_safe(day, clock_at):
@@ -226,3 +228,57 @@ def test_a_day_the_beat_stopped_in_time_is_signed_safe(day, clock_at):
     )
 
     assert record.meaning.startswith("Reviewed: the pre-start checks were complete")
+
+
+def test_each_reading_counts_for_the_time_in_force_when_it_was_made():
+    """The profile at signing keeps a reading 10 h; the reading itself was judged on 60 min:
+    a day worked past it is not made safe by a later reload."""
+    record = _record([0], WORKED, thresholds={"weather_recheck_min": {"value": 600}})
+    record["sheets"][0]["judged_on"] = {"1": {"profile.weather_recheck_min": 60}}
+
+    assert _spans(weather_gaps(record)) == [(60, 150)]
+
+
+def test_a_reading_judged_under_no_time_counts_all_day():
+    record = _record([0], WORKED)
+    record["sheets"][0]["judged_on"] = {"1": {"profile.weather_recheck_min": None}}
+
+    assert weather_gaps(record) == []
+
+
+def test_a_reading_sent_without_the_batch_s_time_counts_from_the_phone_s_time():
+    """Received at 07:45 without the batch's time, the phone saying 07:00: due at 08:00."""
+    record = _record([0], WORKED)
+    record["sheets"][0] |= {"phone_clock_offset_s": None, "received_at": _at(45)}
+
+    assert _spans(weather_gaps(record)) == [(60, 150)]
+
+
+def test_a_profile_loosened_after_the_day_does_not_make_it_safe(day, clock_at, settings, tmp_path):
+    """The reading's own time stands: safe is refused (here first because the check was
+    judged on a time that reads otherwise now), and the record says when the wind went unread
+    by the 60 min the reading was judged on, not the 600 of the profile at signing."""
+    settings.MEDIA_ROOT = tmp_path
+    job, operator, read_wind = day
+    read_wind()
+    clock_at(1)
+    start_job(job=job, by=operator)
+    clock_at(99)
+    close_job(job=job, by=operator)
+    profile = job.site.profile
+    profile.thresholds = {**profile.thresholds, **{"weather_recheck_min": {"value": 600}}}
+    profile.save()
+
+    with pytest.raises(InvalidTransition) as refused:
+        sign_daily_record(job=job, by=job.supervisor, password=PASSWORD, meaning="reviewed_safe")
+
+    assert "wind again" in str(refused.value) or "weather" in str(refused.value).lower()
+    record = sign_daily_record(
+        job=job,
+        by=job.supervisor,
+        password=PASSWORD,
+        meaning="reviewed_exceptions",
+        remarks="The profile was reloaded after the day.",
+    )
+    first_page = " ".join(text_of(render_signed_pdf(record)).split("\f")[0].split())
+    assert "It was not read in time from" in first_page and "12:00:00 to" in first_page
