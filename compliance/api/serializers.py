@@ -485,11 +485,18 @@ class JobDetailSerializer(JobSerializer):
         " the day is not signed as safe.",
     )
 
+    unread_wind = serializers.CharField(
+        read_only=True,
+        help_text="For a day that has ended: when work went on without a recent wind reading"
+        " (the profile's weather_recheck_min), in words; empty when it did not. While it says"
+        " something the day is not signed as safe.",
+    )
+
     class Meta(JobSerializer.Meta):
         fields = [
             *JobSerializer.Meta.fields,
             *("drops", "requirements", "blockers", "holds", "cautions", "work_started"),
-            *("was_ready", "ready_when_closed", "lapsed_checks"),
+            *("was_ready", "ready_when_closed", "lapsed_checks", "unread_wind"),
         ]
 
 

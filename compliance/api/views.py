@@ -50,6 +50,7 @@ from compliance.jobs.selectors import (
     moves_in_order,
     plan_conflicts,
     ready_when_closed,
+    unread_wind,
 )
 from compliance.jobs.sync import MAX_BATCH, apply_batch, printable, record_posted_sheet
 from compliance.models import (
@@ -411,6 +412,7 @@ def job_detail_data(job: Job, context: dict[str, Any]) -> dict[str, Any]:
         "lapsed_checks": s.ReasonSerializer(
             [r.as_dict() for r in lapsed_checks(job, readiness.requirements, moves)], many=True
         ).data,
+        "unread_wind": unread_wind(job, moves),
     }
 
 

@@ -7,6 +7,7 @@ from dataclasses import dataclass
 from django.db.models import Exists, OuterRef, Prefetch, QuerySet, prefetch_related_objects
 from django.utils import timezone
 
+from checklists.models import CheckSheet
 from checklists.selectors import changed_since, current_versions, latest_sheets
 from checklists.verdicts import REGISTER_WORDS
 from compliance import clock
@@ -29,7 +30,7 @@ from compliance.models import (
 from compliance.registers.ratings import rating_labels
 from compliance.registers.selectors import anchor_status, failed_test, withdrawal
 from compliance.registers.visibility import can_work_at
-from compliance.timeline import WEATHER_CHECKLIST, reading_time, recheck_interval
+from compliance.timeline import WEATHER_CHECKLIST, reading_time, recheck_interval, weather_gaps
 
 
 @dataclass(frozen=True)
@@ -732,6 +733,44 @@ def moves_in_order(job: Job) -> list[tuple[str, dt.datetime]]:
     """Every state the job moved into and when, in order, in one query (a job starts
     planned)."""
     return list(JobTransition.objects.filter(job=job).order_by("id").values_list("to_state", "at"))
+
+
+def unread_wind(job: Job, moves: Sequence[tuple[str, dt.datetime]]) -> str:
+    """For a day that has ended (closed, or held at its end), when work went on without a
+    recent wind reading, in words ("" when it did not): what refuses "safe" at signing
+    (compliance.timeline.weather_gaps, reckoned from the same rows the record seals). One
+    query, for such a day only."""
+    if job.state not in (JobState.CLOSED, JobState.HELD):
+        return ""
+    sheets = CheckSheet.objects.filter(job=job, version__checklist__key=WEATHER_CHECKLIST)
+    before = JobState.PLANNED
+    transitions = []
+    for state, at in moves:
+        transitions.append({"from": before, "to": state, "at": at.isoformat()})
+        before = state
+    day = {
+        "profile": {"thresholds": job.site.profile.thresholds},
+        "sheets": [
+            {
+                "checklist": WEATHER_CHECKLIST,
+                "device_time": row["device_time"].isoformat() if row["device_time"] else None,
+                "phone_clock_offset_s": row["phone_clock_offset_s"],
+                "received_at": row["received_at"].isoformat(),
+                "judged_on": row["judged_on"],
+            }
+            for row in sheets.values(
+                "device_time", "phone_clock_offset_s", "received_at", "judged_on"
+            )
+        ],
+        "transitions": transitions,
+    }
+    gaps = weather_gaps(day)
+    if not gaps:
+        return ""
+    spans = ", ".join(
+        f"{timezone.localtime(a):%H:%M} to {timezone.localtime(b):%H:%M}" for a, b in gaps
+    )
+    return f"Work went on without a recent wind reading ({spans})."
 
 
 def ready_when_closed(states: Sequence[str]) -> bool:

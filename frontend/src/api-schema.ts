@@ -1119,6 +1119,7 @@ export interface components {
             readonly was_ready: boolean;
             readonly ready_when_closed: boolean;
             readonly lapsed_checks: components["schemas"]["Reason"][];
+            readonly unread_wind: string;
         };
         JobRequest: {
             site: number;

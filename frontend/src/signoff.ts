@@ -28,13 +28,15 @@ export function lapsedOf(job: { lapsed_checks?: readonly LapsedCheck[] }): reado
 }
 
 /** Why a meaning cannot be given to this day, in the page's words, or "" when it can: the server
- * refuses "safe to proceed" while a hold is open or a check no longer counts, and "work was
- * stopped" with none open. */
+ * refuses "safe to proceed" while a hold is open, a check no longer counts or work went on
+ * without a recent wind reading (`unreadWind`, the job's `unread_wind`), and "work was stopped"
+ * with none open. */
 export function meaningUnavailable(
   code: Meaning,
   holds: readonly { cleared_at: string | null }[],
   ready: Readiness = "ready",
   lapsed: readonly LapsedCheck[] = [],
+  unreadWind = "",
 ): string {
   const open = holds.some((h) => !h.cleared_at);
   if (code === "reviewed_safe" && open) return "Not available: the record has open holds.";
@@ -49,6 +51,8 @@ export function meaningUnavailable(
         : "pre-start checks of this day no longer count, and no hold stands for them";
     return `Not available: ${checks}: ${lapsed.map((c) => c.message).join(" ")} Choose “Reviewed with exceptions” and say why in the remarks.`;
   }
+  if (code === "reviewed_safe" && unreadWind)
+    return `Not available: ${unreadWind} Choose “Reviewed with exceptions” and say why in the remarks.`;
   if (code !== "reviewed_stopped" || open) return "";
   return holds.length
     ? "Not available: the day's holds were cleared. Choose “Reviewed with exceptions” and say in the remarks what stopped work."

@@ -29,6 +29,16 @@ describe("meaningUnavailable", () => {
     expect(offered([open, cleared])).toEqual(["reviewed_stopped", "reviewed_exceptions"]);
   });
 
+  it("does not offer 'safe' for a day worked past its wind reading, and says when", () => {
+    // The server refused it (work went on without a recent wind reading) after the password.
+    const unread = "Work went on without a recent wind reading (12:00 to 12:40).";
+    const left = MEANINGS.filter((m) => !meaningUnavailable(m.code, [], "ready", [], unread)).map((m) => m.code);
+    expect(left).toEqual(["reviewed_exceptions"]);
+    expect(meaningUnavailable("reviewed_safe", [], "ready", [], unread)).toBe(
+      "Not available: Work went on without a recent wind reading (12:00 to 12:40). Choose “Reviewed with exceptions” and say why in the remarks.",
+    );
+  });
+
   it("does not offer 'safe' for a day whose checks were never complete", () => {
     // The server refused it (never ready to start) only after the password was typed.
     const never = MEANINGS.filter((m) => !meaningUnavailable(m.code, [], "never")).map((m) => m.code);

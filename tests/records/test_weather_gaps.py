@@ -9,7 +9,10 @@ gap shows, and the signer must say why.
 import datetime as dt
 
 import pytest
+from django.db import connection
+from django.test.utils import CaptureQueriesContext
 from django.utils import timezone
+from rest_framework.test import APIClient
 
 from compliance.errors import InvalidTransition
 from compliance.jobs.services import close_job, start_job, stop_work_on_stale_weather
@@ -282,3 +285,33 @@ def test_a_profile_loosened_after_the_day_does_not_make_it_safe(day, clock_at, s
     )
     first_page = " ".join(text_of(render_signed_pdf(record)).split("\f")[0].split())
     assert "It was not read in time from" in first_page and "12:00:00 to" in first_page
+
+
+QUERIES_WHILE_WORKING = 9
+"""A job's detail while it is at work (tests/api/test_query_counts.py pins it on a larger day)."""
+
+
+def test_the_job_detail_says_so_before_the_password_is_typed(day, clock_at):
+    """The sign page offered "safe" and the server refused it only after the password."""
+    job, operator, read_wind = day
+    read_wind()
+    clock_at(1)
+    start_job(job=job, by=operator)
+    client = APIClient()
+    client.force_authenticate(job.supervisor)
+    url = f"/api/v1/jobs/{job.pk}/"
+    with CaptureQueriesContext(connection) as reads:
+        assert client.get(url).json()["unread_wind"] == ""  # at work: the beat's business
+    assert len(reads) == QUERIES_WHILE_WORKING
+    clock_at(99)
+    close_job(job=job, by=operator)
+
+    with CaptureQueriesContext(connection) as reads:
+        response = client.get(url)
+
+    assert response.status_code == 200
+    # One more read than the same job's detail at work: the day's weather checks.
+    assert len(reads) == QUERIES_WHILE_WORKING + 1
+    assert response.json()["unread_wind"] == (
+        "Work went on without a recent wind reading (12:00 to 12:40)."
+    )

@@ -152,7 +152,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
     if (!job || busy) return;
     const found: string[] = [];
     if (!meaning) found.push("Choose what your signature means.");
-    else if (meaningUnavailable(meaning, job.holds, readinessOf(job), lapsedOf(job))) found.push(meaningUnavailable(meaning, job.holds, readinessOf(job), lapsedOf(job)));
+    else if (meaningUnavailable(meaning, job.holds, readinessOf(job), lapsedOf(job), job.unread_wind ?? "")) found.push(meaningUnavailable(meaning, job.holds, readinessOf(job), lapsedOf(job), job.unread_wind ?? ""));
     if (meaning === "reviewed_exceptions" && !remarks.trim()) found.push("Write the exceptions in the remarks: the meaning points to them.");
     if (!password) found.push("Re-enter your password to sign.");
     if (found.length) {
@@ -239,7 +239,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
         <fieldset class="choices" data-testid="meanings">
           <legend>What your signature means</legend>
           {MEANINGS.map((m) => {
-            const blocked = meaningUnavailable(m.code, job.holds, readinessOf(job), lapsedOf(job));
+            const blocked = meaningUnavailable(m.code, job.holds, readinessOf(job), lapsedOf(job), job.unread_wind ?? "");
             const chosen = meaning === m.code;
             return (
               <label key={m.code} class={`choice${chosen ? " choice-on" : ""}${blocked ? " choice-off" : ""}`} data-testid={`meaning-${m.code}`}>
