@@ -64,29 +64,15 @@ def _check_place(*, job: Job, sheet_uuid: uuid.UUID | None, item_key: str) -> No
         )
 
 
-def store_photo(
-    *,
-    by: User,
-    job: Job,
-    image: UploadedFile,
-    client_uuid: uuid.UUID,
-    sheet_uuid: uuid.UUID | None = None,
-    item_key: str = "",
-) -> tuple[Photo, bool]:
-    """Store a photo once per client uuid; return (photo, created). A photo already stored is
-    answered as it is; a new one is checked against its job, sheet and item (_check_place) and
-    nothing is stored when it is refused."""
-    if not by.can_write:
-        raise ValidationError({"job": "Auditors have read-only access."})
-    existing = Photo.objects.filter(client_uuid=client_uuid).first()
-    if existing is not None:
-        if existing.organisation_id != by.organisation_id:
-            raise ValidationError({"client_uuid": "Already used."})
-        return existing, False
-    if job.organisation_id != by.organisation_id:
-        raise ValidationError({"job": "Unknown job."})
-    # Refused early without reading the image; checked again under the job's lock below.
-    _check_place(job=job, sheet_uuid=sheet_uuid, item_key=item_key)
+REUSED_PHOTO_ID = (
+    "This photo id is already used for another photo: a photo sent again keeps its own id,"
+    " job, sheet, item and image."
+)
+
+
+def _encoded(image: UploadedFile) -> tuple[Image.Image, bytes]:
+    """The photo as stored: checked, at most MAX_SIDE_PX a side, JPEG (a 400 naming `image`
+    for anything else)."""
     if image.size is None or image.size > MAX_BYTES:
         raise ValidationError({"image": f"A photo is at most {MAX_BYTES // (1024 * 1024)} MB."})
     try:
@@ -105,7 +91,46 @@ def store_photo(
     picture.thumbnail((MAX_SIDE_PX, MAX_SIDE_PX))
     out = io.BytesIO()
     picture.save(out, format="JPEG", quality=85, optimize=True)
-    data = out.getvalue()
+    return picture, out.getvalue()
+
+
+def store_photo(
+    *,
+    by: User,
+    job: Job,
+    image: UploadedFile,
+    client_uuid: uuid.UUID,
+    sheet_uuid: uuid.UUID | None = None,
+    item_key: str = "",
+) -> tuple[Photo, bool]:
+    """Store a photo once per client uuid; return (photo, created). A photo sent again (the
+    same job, sheet, item and image) is answered as stored; another photo under a used id is
+    refused, naming `client_uuid`. A new one is checked against its job, sheet and item
+    (_check_place) and nothing is stored when it is refused."""
+    if not by.can_write:
+        raise ValidationError({"job": "Auditors have read-only access."})
+    existing = Photo.objects.filter(client_uuid=client_uuid).first()
+    if existing is not None:
+        if existing.organisation_id != by.organisation_id:
+            raise ValidationError({"client_uuid": "Already used."})
+        if (existing.job_id, existing.sheet_uuid, existing.item_key) != (
+            job.pk,
+            sheet_uuid,
+            item_key[:80],
+        ):
+            raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]})
+    else:
+        if job.organisation_id != by.organisation_id:
+            raise ValidationError({"job": "Unknown job."})
+        # Refused early without reading the image; checked again under the job's lock below.
+        _check_place(job=job, sheet_uuid=sheet_uuid, item_key=item_key)
+    picture, data = _encoded(image)
+    if existing is not None:
+        # The same photo sent again (its answer lost) is the one stored; another image under
+        # its id was answered as stored, and the new one silently dropped.
+        if hashlib.sha256(data).hexdigest() != existing.sha256:
+            raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]})
+        return existing, False
     try:
         with transaction.atomic():
             # Signing locks the job's row too: a photo lands before the seal, or is refused.

@@ -18,6 +18,11 @@ WEATHER_CHECKLIST = "weather"
 WEATHER_RECHECK = "profile.weather_recheck_min"
 """The figure a weather check is judged on for how long it counts (kept in its `judged_on`)."""
 
+OFFSET_ROUNDING = dt.timedelta(seconds=2)
+"""How far past its receipt a phone's time set right may fall and still agree with it: the
+batch's offset is kept in whole seconds and the phone's time to the second, so a reading sent
+the moment it is saved can be set right a second past its arrival."""
+
 WEATHER_GRACE = dt.timedelta(minutes=2)
 """A gap no longer than this is not one: the beat that stops a job whose weather check ran out
 runs each minute, and the hold is written within the next."""
@@ -53,8 +58,8 @@ def reading_time(
             corrected = device_time - dt.timedelta(seconds=phone_clock_offset_s)
         except OverflowError:
             corrected = None
-        if corrected is not None and corrected <= received:
-            return corrected
+        if corrected is not None and corrected <= received + OFFSET_ROUNDING:
+            return min(corrected, received)
     return min(device_time, received)
 
 
@@ -157,3 +162,23 @@ def weather_gaps(record: Mapping[str, Any]) -> list[tuple[dt.datetime, dt.dateti
         if due < end and end - due > WEATHER_GRACE:
             gaps.append((max(due, start), end))
     return [(a, b) for a, b in gaps if b - a > WEATHER_GRACE]
+
+
+def interval_words(record: Mapping[str, Any]) -> str:
+    """How long the record's weather readings counted for, in words ("60 min", "60 or 120
+    min" when the profile changed during the day), from what each was judged on (else the
+    profile at signing); "" when none had a time."""
+    profile = record.get("profile")
+    signed = recheck_interval(profile.get("thresholds") if isinstance(profile, Mapping) else None)
+    times = set()
+    for sheet in record.get("sheets") or []:
+        if isinstance(sheet, Mapping) and sheet.get("checklist") == WEATHER_CHECKLIST:
+            own = _judged_interval(sheet)
+            times.add(signed if own is False else own)
+    if not times:
+        times.add(signed)
+    shown = sorted(t for t in times if t is not None)
+    if not shown:
+        return ""
+    texts = [f"{t / dt.timedelta(minutes=1):g}" for t in shown]
+    return (" or ".join(texts) if len(texts) < 3 else ", ".join(texts)) + " min"

@@ -48,7 +48,7 @@ from reportlab.platypus import (
 
 from compliance.engineering.working import same_figure, told_apart, whole_pct
 from compliance.records.sealing import canonical_bytes
-from compliance.timeline import WEATHER_CHECKLIST, reading_time, recheck_interval, weather_gaps
+from compliance.timeline import WEATHER_CHECKLIST, interval_words, reading_time, weather_gaps
 
 ATTACHMENT_NAME = "daily-record.json"
 SEAL_LABEL = "Seal (SHA-256 of the attached canonical JSON):"
@@ -664,23 +664,31 @@ files) have no glyph for them, so they are spelled the same wherever the record 
 def _shown(ch: str, drawable: frozenset[int]) -> bool:
     code = ord(ch)
     if code < 0x80:
-        return True
+        return ch in "\n\t" or 0x20 <= code < 0x7F
     # Past U+FFFF reportlab writes the text map of the page wrong (copy and search find other
     # characters), though the font may draw it.
     return code <= 0xFFFF and code in drawable and unicodedata.category(ch) not in UNSHOWN
 
 
 def _spelled_text(text: str) -> str:
-    if text.isascii():
+    if text.isascii() and not ASCII_CONTROLS.search(text):
         return text
     drawable = _drawable()
     return "".join(ch if _shown(ch, drawable) else f"[U+{ord(ch):04X}]" for ch in text)
 
 
+ASCII_CONTROLS = re.compile("[\x00-\x08\x0b-\x1f\x7f]")
+"""The ASCII controls a page would draw as boxes or as nothing (a carriage return, a
+backspace), spelled too; a line break and a tab are text's own."""
+ESCAPED_CONTROLS = re.compile(r"\\u00[01][0-9a-fA-F]|\\[rbf]|\x7f")
+"""How json.dumps writes such a control (a line break and a tab excepted, as \\n and \\t)."""
+
+
 def spelled_for_drawing(document: dict[str, Any]) -> dict[str, Any]:
     """The document to draw: itself when every character is drawable (checked on its JSON,
     quick), else a copy with each character the fonts cannot draw spelled as its code point."""
-    if json.dumps(document, ensure_ascii=False).isascii():
+    dumped = json.dumps(document, ensure_ascii=False)
+    if dumped.isascii() and not ESCAPED_CONTROLS.search(dumped):
         return document
     return _spelled(document)  # type: ignore[no-any-return]
 
@@ -1004,14 +1012,14 @@ def _unread_wind(record: dict[str, Any], s: dict[str, ParagraphStyle], look: _Lo
     gaps = weather_gaps(record)
     if not gaps:
         return []
-    interval = recheck_interval((record.get("profile") or {}).get("thresholds"))
-    every = f"{interval // dt.timedelta(minutes=1)} min" if interval else "the profile's time"
+    every = interval_words(record) or "the profile's time"
     spans = "; ".join(f"{look.when(a.isoformat())} to {look.when(b.isoformat())}" for a, b in gaps)
     return [
         _p("Work went on without a recent wind reading", s["h3"]),
         *_paras(
-            f"The profile asks for the wind to be read at least every {every} while work goes"
-            f" on. It was not read in time from {spans} ({look.zone_name}).",
+            "The profile asks for the wind to be read again while work goes on, each reading"
+            f" counting for the time in force when it was read ({every}). It was not read in"
+            f" time from {spans} ({look.zone_name}).",
             s["small"],
         ),
     ]

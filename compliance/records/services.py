@@ -60,7 +60,7 @@ from compliance.records.signing import (
     sign_seal,
 )
 from compliance.text import has_words
-from compliance.timeline import recheck_interval, weather_gaps
+from compliance.timeline import interval_words, weather_gaps
 
 FORMAT = "parapet.daily-record/7"
 """/3 added each entry's label (the checklist's words) and the time zone the pages print times
@@ -487,7 +487,8 @@ NO_HOLD_NOT_READY_AT_CLOSE = (
 )
 
 WEATHER_GAP_NOT_SAFE = (
-    "Work went on while the wind had not been read within the profile's {minutes} min ({gaps}),"
+    "Work went on while the wind had not been read again within the {minutes} a reading"
+    " counted for ({gaps}),"
     f" so it cannot be signed as “{MEANINGS['reviewed_safe']}” Choose"
     f" “{MEANINGS['reviewed_exceptions']}” and say why in the remarks."
 )
@@ -498,8 +499,7 @@ def _weather_gap_words(content: dict[str, Any]) -> str | None:
     gaps = weather_gaps(content)
     if not gaps:
         return None
-    interval = recheck_interval(content["profile"]["thresholds"])
-    minutes = f"{interval // dt.timedelta(minutes=1)}" if interval else "?"
+    minutes = interval_words(content) or "time"
     spans = ", ".join(
         f"{timezone.localtime(a):%H:%M} to {timezone.localtime(b):%H:%M}" for a, b in gaps
     )

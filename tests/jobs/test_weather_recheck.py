@@ -243,3 +243,16 @@ def test_a_weather_check_keeps_how_long_it_counts_for(job, weather, operator):
     sheet = read_wind(job, weather, operator)
 
     assert sheet.judged_on[str(job.drops.get().pk)]["profile.weather_recheck_min"] == 60
+
+
+def test_a_reading_sent_the_second_it_is_saved_is_not_stopped_by_the_offset_s_rounding(
+    job, weather, operator
+):
+    """A phone exactly 2 h slow sends its reading at once: the batch's offset, kept in whole
+    seconds, sets it right a second past its arrival, which read as a clock in disagreement
+    and put the reading two hours back."""
+    now = timezone.now().replace(microsecond=0)
+    _read_at(job, weather, operator, now - dt.timedelta(hours=2), -7201)
+
+    assert job.state == JobState.CLEARED
+    assert start_job(job=job, by=operator).state == JobState.WORKING

@@ -87,6 +87,32 @@ def test_a_photo_stored_before_the_seal_is_answered_again_after_it(
     assert verify_against_database(record) == []
 
 
+@pytest.mark.parametrize("other", ["image", "item_key", "sheet_uuid"])
+def test_another_photo_under_a_used_id_is_refused_naming_it(closed_job, operator, other):
+    """Another image sent under a photo's id was answered 200 with the stored photo, and the
+    new image silently dropped."""
+    sheet = closed_job.sheets.get(subject_kind="anchor", anchor=closed_job.drops.get().anchor)
+    body = {"sheet_uuid": str(sheet.client_uuid), "item_key": "sound"}
+    key = str(uuid.uuid4())
+    with clock.replaying(closed_job.date):
+        first = _post(operator, closed_job, client_uuid=key, **body)
+        assert first.status_code == 201, first.json()
+        blue = io.BytesIO()
+        Image.new("RGB", (64, 48), (20, 30, 200)).save(blue, format="PNG")
+        blue.seek(0)
+        blue.name = "other.png"
+        changed = {
+            "image": {"image": blue},
+            "item_key": {"item_key": "tag_capacity"},
+            "sheet_uuid": {"sheet_uuid": str(uuid.uuid4())},
+        }[other]
+        again = _post(operator, closed_job, client_uuid=key, **{**body, **changed})
+
+    assert again.status_code == 400
+    assert list(again.json()) == ["client_uuid"]
+    assert Photo.objects.count() == 1
+
+
 def test_a_photo_is_refused_on_any_day_but_the_jobs(closed_job, operator, tmp_path):
     """A loose photo counts as made the day it is received; the job's day has passed (and a
     later job's has not come)."""

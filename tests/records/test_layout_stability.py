@@ -128,7 +128,7 @@ PINNED = {
     "record-4": "332a19adf82a43818d73067040eac864800488143d65d5a3f8cade8ca160876f",
     "record-5": "38933f2fa38e8cef9320424e4e9ea1ea3a127ac866877112f248b8913d054c64",
     "record-6": "7850817f8884c7f9dfbdbe148b1d49f8704d0cffc6e4d7ffa3f7082bb3969ab1",
-    "record-7": "5359dfaf36b85b36010a16a6a306cf5770e759a3118d7542e9ee1109edb69324",
+    "record-7": "51f16ed5063b66f89ee39009c6001e8f218d03256fbc41c59ff58b9156e61844",
     "addendum": "331918f152612e551496d4f4acf005eae23ad3ec2cc0be17e9a2a3ddb56f6cd0",
     "addendum-3": "d5e81ae7625f748097eeb51e1e16043ea4951d6bb0491148dcaafd160454c5a5",
 }
@@ -402,12 +402,25 @@ def test_an_addendum_and_a_log_book_spell_what_the_fonts_cannot_draw(name, spell
         ("soft\u00adhyphen", "soft[U+00AD]hyphen"),
         ("grip \U0001f600", "grip [U+1F600]"),  # past U+FFFF: the page's text map goes wrong
         ("line\u2028break", "line[U+2028]break"),
+        # ASCII controls: a carriage return printed as a space, backspaces as boxes.
+        ("All fine\rNOT: wind 20 m/s\x08", "All fine[U+000D]NOT: wind 20 m/s[U+0008]"),
+        ("\x01\x7f", "[U+0001][U+007F]"),
+        ("two\nlines\tand a tab", "two\nlines\tand a tab"),
     ],
 )
 def test_characters_a_page_would_not_show_truthfully_are_spelled(text, drawn):
     from compliance.records.pdf import _spelled
 
     assert _spelled(text) == drawn
+
+
+def test_a_document_whose_only_odd_character_is_an_ascii_control_is_spelled():
+    from compliance.records.pdf import spelled_for_drawing
+
+    document = {"remarks": "All fine\rNOT: wind 20 m/s", "n": 1}
+
+    assert spelled_for_drawing(document)["remarks"] == "All fine[U+000D]NOT: wind 20 m/s"
+    assert spelled_for_drawing({"remarks": "two\nlines"}) == {"remarks": "two\nlines"}
 
 
 def test_text_the_fonts_draw_whole_is_not_spelled():

@@ -197,7 +197,9 @@ def test_a_day_worked_past_its_wind_reading_is_not_signed_safe(day, clock_at, se
     with pytest.raises(InvalidTransition) as refused:
         sign_daily_record(job=job, by=job.supervisor, password=PASSWORD, meaning="reviewed_safe")
 
-    assert "not been read within the profile's 60 min (11:50 to 12:40)" in str(refused.value)
+    assert "read again within the 60 min a reading counted for (11:50 to 12:40)" in str(
+        refused.value
+    )
     record = sign_daily_record(
         job=job,
         by=job.supervisor,
@@ -315,3 +317,25 @@ def test_the_job_detail_says_so_before_the_password_is_typed(day, clock_at):
     assert response.json()["unread_wind"] == (
         "Work went on without a recent wind reading (12:00 to 12:40)."
     )
+
+
+@pytest.mark.parametrize(
+    ("judged", "words"),
+    [
+        ([60], "60 min"),
+        ([60, 120], "60 or 120 min"),
+        ([0.5], "0.5 min"),
+        ([30.5, 60, 120], "30.5, 60, 120 min"),
+        ([None], ""),
+    ],
+)
+def test_the_time_a_reading_counted_for_is_told_as_it_was_judged(judged, words):
+    """The sentence said "every 120 min" (the profile at signing) of gaps judged on 60, and
+    "0 min" of half a minute."""
+    from compliance.timeline import interval_words
+
+    record = _record([0] * len(judged), WORKED, thresholds={"weather_recheck_min": {"value": 120}})
+    for sheet, minutes in zip(record["sheets"], judged, strict=False):
+        sheet["judged_on"] = {"1": {"profile.weather_recheck_min": minutes}}
+
+    assert interval_words(record) == words
