@@ -131,7 +131,8 @@ def timed(call: Callable[[], Any], repeat: int) -> tuple[float, Any]:
 
 
 def plain_tables(document: dict[str, Any], paragraphs: bool) -> bytes:
-    """reportlab alone: one heading and one 4-column table per sheet, nothing else."""
+    """reportlab alone: one heading and one 4-column table per sheet and, from record format
+    /7, which prints them, one paragraph of the figures the sheet was judged on; nothing else."""
     styles = getSampleStyleSheet()
     small = styles["BodyText"].clone("small", fontSize=7, leading=8)
     story: list[Any] = []
@@ -155,7 +156,10 @@ def plain_tables(document: dict[str, Any], paragraphs: bool) -> bytes:
                 [("GRID", (0, 0), (-1, -1), 0.25, colors.grey), ("FONTSIZE", (0, 0), (-1, -1), 7)]
             )
         )
-        story += [table, Spacer(1, 3 * mm)]
+        story.append(table)
+        if sheet.get("judged_on"):
+            story.append(Paragraph(f"Judged on: {json.dumps(sheet['judged_on'])}", small))
+        story.append(Spacer(1, 3 * mm))
     buffer = io.BytesIO()
     SimpleDocTemplate(buffer, pagesize=A4).build(story)
     return buffer.getvalue()
