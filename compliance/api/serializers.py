@@ -441,6 +441,12 @@ class RequirementSerializer(serializers.Serializer):
     latest_version = serializers.IntegerField(
         allow_null=True, help_text="The version the newest sheet was filled against."
     )
+    read_again_by = serializers.DateTimeField(
+        allow_null=True,
+        help_text="For a weather check that counts now under a profile that limits how long"
+        " (weather_recheck_min): when it runs out. A job at work is stopped then unless the"
+        " wind is read again.",
+    )
 
 
 class ReasonSerializer(serializers.Serializer):

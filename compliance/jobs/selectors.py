@@ -79,6 +79,9 @@ class Requirement:
     read_at: dt.datetime | None = None
     """When the newest weather check was made, where the profile asks for the weather to be
     read again within a time (`weather_recheck_min`) and that time has run out."""
+    read_again_by: dt.datetime | None = None
+    """When the newest weather check runs out (made, set right, plus the profile's
+    `weather_recheck_min`), for a weather check that counts now; the phone shows it."""
     published_at: dt.datetime | None = None
     """When the version the job needs now was published: one published while the robot was at
     work is the job's next check (see lapsed_checks)."""
@@ -105,6 +108,7 @@ class Requirement:
             "latest_sheet": self.latest_sheet_id,
             "latest_verdict": self.latest_verdict,
             "latest_version": self.latest_version_id,
+            "read_again_by": self.read_again_by,
         }
 
 
@@ -249,6 +253,7 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                 else None
             )
             stale = read is not None and weather_stale_since(job, read)
+            interval = weather_recheck(job) if read is not None and not stale else None
             requirements.append(
                 Requirement(
                     checklist_key=version.checklist.key,
@@ -269,6 +274,7 @@ def job_requirements(job: Job, drops: list[Drop] | None = None) -> list[Requirem
                     changed=changed,
                     before_return=before_return,
                     read_at=read if stale else None,
+                    read_again_by=read + interval if read and interval else None,
                     published_at=version.published_at,
                 )
             )

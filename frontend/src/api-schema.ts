@@ -1460,6 +1460,8 @@ export interface components {
             latest_sheet: number | null;
             latest_verdict: string | null;
             latest_version: number | null;
+            /** Format: date-time */
+            read_again_by: string | null;
         };
         /** @enum {string} */
         ResultEnum: "pass" | "fail" | "none";

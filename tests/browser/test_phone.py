@@ -213,6 +213,9 @@ def test_start_log_drops_and_a_rejected_record_stays_visible(live_server, demo, 
     page.click("[data-testid=start]")
     wait_state(page, "working")
     assert Job.objects.get(pk=job.pk).state == "working"
+    # The weather check says when the wind must be read again, before the beat stops the job.
+    read_by = page.inner_text(f"{req_selector('weather@site')} [data-testid=req-read-by]")
+    assert read_by.startswith("Read the wind again by ")
     page.click(".drop:has-text('North 1') button:has-text('Log drop done')")
     page.click(".drop:has-text('North 1') [data-testid=drop-whole]")
     page.wait_for_selector(".drop:has-text('North 1') :text('Logged done')")

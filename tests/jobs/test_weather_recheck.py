@@ -256,3 +256,22 @@ def test_a_reading_sent_the_second_it_is_saved_is_not_stopped_by_the_offset_s_ro
 
     assert job.state == JobState.CLEARED
     assert start_job(job=job, by=operator).state == JobState.WORKING
+
+
+def test_the_phone_is_told_when_to_read_the_wind_again(job, weather, operator):
+    from compliance.jobs.selectors import job_requirements
+
+    sheet = read_wind(job, weather, operator, minutes_ago=30)
+
+    (weather_check,) = job_requirements(job)
+    assert weather_check.read_again_by == sheet.made_at + dt.timedelta(minutes=60)
+    assert weather_check.as_dict()["read_again_by"] == weather_check.read_again_by
+
+
+def test_without_a_recheck_time_there_is_no_time_to_read_again(weather):
+    from compliance.jobs.selectors import job_requirements
+
+    job = _job(recheck=None)
+    read_wind(job, weather, UserFactory(organisation=job.organisation, role="operator"))
+
+    assert [r.read_again_by for r in job_requirements(job)] == [None]

@@ -35,6 +35,13 @@ function requirementStatus(
   return { kind: "mustdo", word: "To do" };
 }
 
+/** For a weather check that counts now, when to read the wind again: at work the job is stopped
+ * then unless it is (the server's beat holds it within the minute). */
+function readAgainBy(req: Requirement, state: string): string {
+  if (!req.read_again_by || !req.satisfied || state === "closed" || state === "held") return "";
+  return `Read the wind again by ${timeOf(req.read_again_by)}: work stops then until it is read.`;
+}
+
 export function JobScreen({ id, user }: { id: number; user: User }) {
   const version = useDataVersion();
   const status = useStatus();
@@ -298,6 +305,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
                   <span class="muted">{req.subject}</span>
                   <Badge kind={s.kind} word={s.word} />
                   {again && s.word === "Check again" && <span class="small" data-testid="req-again">{again}</span>}
+                  {readAgainBy(req, job.state) && <span class="small" data-testid="req-read-by">{readAgainBy(req, job.state)}</span>}
                 </a>
               </li>
             );
