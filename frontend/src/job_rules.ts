@@ -62,3 +62,18 @@ export function checkAgainWhy(
 ): string | null {
   return blockers.find((b) => CHECK_AGAIN.has(b.code) && b.requirement === requirement)?.message ?? null;
 }
+
+/** Whether a weather check that counted has run out by the phone's clock (`nowMs`): the server
+ * stops a job at work within the minute after, and the phone must not show it as done until
+ * it hears so. */
+export function windLapsed(req: { read_again_by?: string | null; satisfied: boolean }, nowMs: number): boolean {
+  if (!req.read_again_by || !req.satisfied) return false;
+  const by = Date.parse(req.read_again_by);
+  return !Number.isNaN(by) && by <= nowMs;
+}
+
+/** When the phone must look again: the first read-again time still to come, in ms (null if none). */
+export function nextReadAgain(reqs: readonly { read_again_by?: string | null }[], nowMs: number): number | null {
+  const times = reqs.map((r) => (r.read_again_by ? Date.parse(r.read_again_by) : NaN)).filter((t) => !Number.isNaN(t) && t > nowMs);
+  return times.length ? Math.min(...times) : null;
+}

@@ -2,7 +2,16 @@
  * refuses, a later day's checks read only, a check kept on the phone named when reopened, and
  * the reasons the server gives for refusing the start that no check on the phone can answer. */
 import { describe, expect, it } from "vitest";
-import { checkAgainWhy, mayClose, officeBlockers, opensOn, registerBlockers, waitingSheet } from "../src/job_rules";
+import {
+  checkAgainWhy,
+  mayClose,
+  nextReadAgain,
+  officeBlockers,
+  opensOn,
+  registerBlockers,
+  waitingSheet,
+  windLapsed,
+} from "../src/job_rules";
 
 describe("opensOn", () => {
   it("names the day of a later job, and nothing for today's or a past one", () => {
@@ -81,5 +90,22 @@ describe("checks to make again", () => {
     expect(checkAgainWhy(blockers, "weather@site")).toMatch(/read the wind again/);
     expect(checkAgainWhy(blockers, "line@equipment:4")).toMatch(/returned/);
     expect(checkAgainWhy(blockers, "robot@equipment:3")).toBeNull();
+  });
+});
+
+describe("a wind reading's time", () => {
+  const at = Date.parse("2026-12-05T14:59:00Z");
+  const weather = { read_again_by: "2026-12-05T14:59:00Z", satisfied: true };
+  it("runs out by the phone's clock, so a screen left open stops showing it done", () => {
+    expect(windLapsed(weather, at - 1)).toBe(false);
+    expect(windLapsed(weather, at)).toBe(true);
+    expect(windLapsed({ ...weather, satisfied: false }, at + 1)).toBe(false);
+    expect(windLapsed({ read_again_by: null, satisfied: true }, at + 1)).toBe(false);
+  });
+  it("tells the screen when to look again: the first time still to come", () => {
+    const later = { read_again_by: "2026-12-05T15:30:00Z" };
+    expect(nextReadAgain([weather, later, { read_again_by: null }], at - 5)).toBe(at);
+    expect(nextReadAgain([weather, later], at)).toBe(Date.parse("2026-12-05T15:30:00Z"));
+    expect(nextReadAgain([weather], at)).toBeNull();
   });
 });

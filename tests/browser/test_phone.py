@@ -451,3 +451,63 @@ def test_save_with_items_unanswered_takes_the_focus_to_the_first_and_says_how_ma
         "Not saved: 4 still to answer. The first is: Anchor tag matches the register and the"
         " certificate is in date."
     ), said
+
+
+def _read_the_wind(job, seconds_ago: float) -> None:
+    """The weather check, passing, made `seconds_ago` on the phone's set-right clock."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from checklists.selectors import current_versions
+    from checklists.services import record_sheet
+    from compliance.demo import scenario_path
+
+    readings = json.loads(scenario_path().read_text(encoding="utf-8"))["readings"]["weather"]
+    (version,) = [
+        v
+        for vs in current_versions(job.organisation_id).values()
+        for v in vs
+        if v.checklist.key == "weather"
+    ]
+    entries = {
+        i["key"]: {"value": "pass"}
+        if i["kind"] == "tick"
+        else {"value": readings[i["key"]], "unit": i["unit"]}
+        for i in version.items
+        if i["kind"] in ("tick", "reading")
+    }
+    record_sheet(
+        job=job,
+        version=version,
+        by=job.crew.get(username="tomas"),
+        entries=entries,
+        device_time=timezone.now() - dt.timedelta(seconds=seconds_ago),
+        phone_clock_offset_s=0,
+    )
+
+
+def test_a_screen_left_open_at_work_stops_showing_the_wind_done_when_it_runs_out(
+    live_server, demo, page
+):
+    """The job screen showed the weather check "Done" past its read-again time, and the job
+    working after the server had stopped it: it looked again only when records waited."""
+    from compliance.jobs import services
+    from compliance.models import Job
+
+    job = demo
+    off_loop(fill_passing_except, job, {"weather@site"})
+    off_loop(_read_the_wind, job, 60 * 60 - 12)  # runs out 12 s from now
+    off_loop(lambda: services.start_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
+    sign_in(page, live_server.url)
+    page.click(f"[data-testid=job-{job.id}]")
+    wait_state(page, "working")
+    weather = req_selector("weather@site")
+    page.wait_for_selector(f"{weather} [data-testid=req-read-by]")
+
+    page.wait_for_selector(f"{weather}[data-status=mustdo]", timeout=30000)
+    assert "The wind reading ran out at" in page.inner_text(f"{weather} [data-testid=req-again]")
+    assert not page.query_selector(f"{weather} [data-testid=req-read-by]")
+    # The beat stops the job on the server; the screen hears it without a tap.
+    assert off_loop(services.stop_work_on_stale_weather) == 1
+    wait_state(page, "held", timeout=40000)

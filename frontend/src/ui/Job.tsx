@@ -10,7 +10,7 @@ import { deviceTime } from "../uuid";
 import { holdClearedBy, holdTitle, madeNote, OWNER_CLEARS, REGISTER_CLEARS } from "../holds";
 import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
 import { activeRefusals, errorLines } from "../refusals";
-import { checkAgainWhy, mayClose, officeBlockers, opensOn } from "../job_rules";
+import { checkAgainWhy, mayClose, nextReadAgain, officeBlockers, opensOn, windLapsed } from "../job_rules";
 import { dropNote, PART_NOTE_MAX, tapGuard, type DropChoice } from "../drops";
 import { dateTimeOf, href, timeOf, useDataVersion, useStatus } from "./hooks";
 import { canRecord, canSign, READ_ONLY_WORDS } from "../signoff";
@@ -29,6 +29,7 @@ function requirementStatus(
       : { kind: "caution", word: "Saved on this phone, waiting to send" };
   }
   if (mine?.status === "rejected") return { kind: "caution", word: "Not accepted by the server" };
+  if (again && req.satisfied) return { kind: "mustdo", word: "Check again" };  // the wind ran out
   if (req.satisfied) return { kind: "safe", word: "Done" };
   if (req.latest_verdict === "fail") return { kind: "held", word: "Failed" };
   if (again) return { kind: "mustdo", word: "Check again" };
@@ -37,9 +38,17 @@ function requirementStatus(
 
 /** For a weather check that counts now, when to read the wind again: at work the job is stopped
  * then unless it is (the server's beat holds it within the minute). */
-function readAgainBy(req: Requirement, state: string): string {
+function readAgainBy(req: Requirement, state: string, nowMs: number): string {
   if (!req.read_again_by || !req.satisfied || state === "closed" || state === "held") return "";
-  return `Read the wind again by ${timeOf(req.read_again_by)}: work stops then until it is read.`;
+  if (windLapsed(req, nowMs)) return "";
+  return `Read the wind again by ${timeOf(req.read_again_by)}.`;
+}
+
+/** Why a weather check that counted no longer does by the phone's clock, in words ("" if it
+ * still counts). */
+function windRanOut(req: Requirement, state: string, nowMs: number): string {
+  if (state === "closed" || !windLapsed(req, nowMs)) return "";
+  return `The wind reading ran out at ${timeOf(req.read_again_by ?? null)}: read it again.`;
 }
 
 export function JobScreen({ id, user }: { id: number; user: User }) {
@@ -59,6 +68,9 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   const [busy, setBusy] = useState(false);
   const [record, setRecord] = useState<DailyRecord | null>(null);
   const [dropOpen, setDropOpen] = useState<{ drop: number; choice: DropChoice | null; note: string; problem: string } | null>(null);
+  // The phone's clock, read again when a weather check runs out (a screen left open at work
+  // showed the check "Done" past its time, and the job working after the server stopped it).
+  const [nowMs, setNowMs] = useState(Date.now());
 
   useEffect(() => {
     (async () => {
@@ -86,6 +98,24 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       if (copy) setJob(copy);
     })();
   }, [version, id]);
+
+  useEffect(() => {
+    if (!job || job.state === "closed") return;
+    const next = nextReadAgain(job.requirements, Date.now());
+    const lapsed = job.requirements.some((r) => windLapsed(r, Date.now()));
+    // At a reading's time, show it run out; while one has run out at work, ask the server
+    // again every 20 s (the beat stops the job within the minute; offline the kept copy).
+    const wait = lapsed && job.state === "working" ? 2e4 : next && next - Date.now() + 1e3;
+    if (!wait) return;
+    const timer = setTimeout(() => {
+      setNowMs(Date.now());
+      if (lapsed)
+        loadJob(id)
+          .then((loaded) => setJob(loaded.value))
+          .catch(() => undefined);
+    }, Math.min(wait, 2e9));
+    return () => clearTimeout(timer);
+  }, [job, nowMs, id]);
 
   // Whether the day's record is signed: only asked once the day can be signed.
   const dayOver = job?.state === "closed" || job?.state === "held";
@@ -246,7 +276,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
                   <p class="muted small" data-testid="hold-register-clears">Since {timeOf(h.opened_at)}. {REGISTER_CLEARS}</p>
                 ) : (
                   <>
-                    <p class="muted small">Since {timeOf(h.opened_at)}{madeNote(h, timeOf)}. A new passing check after the repair clears it.</p>
+                    <p class="muted small">Since {timeOf(h.opened_at)}{madeNote(h, timeOf)}. {h.item_key === "weather_due" ? "Reading the wind again clears it." : "A new passing check after the repair clears it."}</p>
                     <a class="btn" href={href({ name: "sheet", id: job.id, requirement: h.requirement })}>Re-check</a>
                   </>
                 )}
@@ -295,7 +325,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         <ul class="list" data-testid="requirements">
           {job.requirements.map((req) => {
             const mine = latestFor(req.key);
-            const again = job.state === "closed" ? null : checkAgainWhy(job.blockers, req.key);
+            const again = job.state === "closed" ? null : checkAgainWhy(job.blockers, req.key) || windRanOut(req, job.state, nowMs) || null;
             const s = requirementStatus(req, mine, opens, again);
             return (
               <li key={req.key}>
@@ -305,7 +335,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
                   <span class="muted">{req.subject}</span>
                   <Badge kind={s.kind} word={s.word} />
                   {again && s.word === "Check again" && <span class="small" data-testid="req-again">{again}</span>}
-                  {readAgainBy(req, job.state) && <span class="small" data-testid="req-read-by">{readAgainBy(req, job.state)}</span>}
+                  {readAgainBy(req, job.state, nowMs) && <span class="small" data-testid="req-read-by">{readAgainBy(req, job.state, nowMs)}</span>}
                 </a>
               </li>
             );
