@@ -129,6 +129,8 @@ def test_wrong_password_signs_nothing_then_a_held_day_is_signed_as_stopped(
     page.wait_for_selector("[data-testid=sign-error]:has-text('Not signed')")
     assert "password" in page.inner_text("[data-testid=sign-error]")
     assert page.input_value("[data-testid=sign-password]") == ""
+    # The focus is back in the emptied box, not on the page.
+    page.wait_for_function("document.activeElement?.dataset?.testid === 'sign-password'")
     assert DailyRecord.objects.count() == before
     assert DailyRecord.objects.filter(job=job).count() == 0
     assert Job.objects.get(pk=job.pk).state == "held"

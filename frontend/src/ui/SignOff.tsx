@@ -3,7 +3,7 @@
  * moment of signing and picks what the signature means; the server seals the record and chains
  * it. Signing needs signal and is never queued: the re-authentication happens now or not at all.
  */
-import { useEffect, useState } from "preact/hooks";
+import { useEffect, useRef, useState } from "preact/hooks";
 import { api, ApiError, OfflineError } from "../api";
 import { keepRecord, loadJob, loadRecordOf } from "../repo";
 import { cachePut, outboxAll } from "../storage";
@@ -80,6 +80,13 @@ export function SignOff({ id, user }: { id: number; user: User }) {
   const [meaning, setMeaning] = useState<Meaning | null>(null);
   const [remarks, setRemarks] = useState("");
   const [password, setPassword] = useState("");
+  // A refused signature puts the focus back in the emptied password box (it went to the page,
+  // and the signer had to find the box again).
+  const passwordAt = useRef<HTMLInputElement>(null);
+  const [refusedAt, setRefusedAt] = useState(0);
+  useEffect(() => {
+    if (refusedAt) passwordAt.current?.focus();
+  }, [refusedAt]);
   const [problems, setProblems] = useState<string[]>([]);
   const [busy, setBusy] = useState(false);
   const [justSigned, setJustSigned] = useState(false);
@@ -179,6 +186,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
       dataChanged();
     } catch (e) {
       setPassword("");
+      setRefusedAt(Date.now());
       if (e instanceof OfflineError) setProblems(["No connection: signing needs signal, because your password is checked by the server at this moment. Nothing was signed or queued."]);
       else if (e instanceof ApiError && e.status === 400) setProblems(errorLines(e.body));
       else if (e instanceof ApiError) setProblems([`Not signed: ${e.message}`]);
@@ -268,7 +276,7 @@ export function SignOff({ id, user }: { id: number; user: User }) {
 
         <label class="field">
           <span>Your password (re-enter it to sign)</span>
-          <input type="password" name="password" autocomplete="current-password" value={password}
+          <input type="password" name="password" autocomplete="current-password" value={password} ref={passwordAt}
             onInput={(e) => setPassword((e.target as HTMLInputElement).value)} data-testid="sign-password" />
         </label>
 
