@@ -88,14 +88,16 @@ def _judged_interval(sheet: Mapping[str, Any]) -> dt.timedelta | bool | None:
     return False
 
 
-def _moment(stamp: Any) -> dt.datetime | None:
+def moment(stamp: Any) -> dt.datetime | None:
+    """A stored ISO time as an aware datetime (UTC where it names no zone); None if it is not
+    one."""
     if not isinstance(stamp, str):
         return None
     try:
-        moment = dt.datetime.fromisoformat(stamp.replace("Z", "+00:00"))
+        when = dt.datetime.fromisoformat(stamp.replace("Z", "+00:00"))
     except ValueError:
         return None
-    return moment if moment.tzinfo is not None else moment.replace(tzinfo=dt.UTC)
+    return when if when.tzinfo is not None else when.replace(tzinfo=dt.UTC)
 
 
 def _offset(value: Any) -> int | None:
@@ -115,11 +117,11 @@ def weather_gaps(record: Mapping[str, Any]) -> list[tuple[dt.datetime, dt.dateti
     for sheet in record.get("sheets") or []:
         if not isinstance(sheet, Mapping) or sheet.get("checklist") != WEATHER_CHECKLIST:
             continue
-        received = _moment(sheet.get("received_at"))
+        received = moment(sheet.get("received_at"))
         if received is None:
             continue
         read = reading_time(
-            _moment(sheet.get("device_time")), _offset(sheet.get("phone_clock_offset_s")), received
+            moment(sheet.get("device_time")), _offset(sheet.get("phone_clock_offset_s")), received
         )
         own = _judged_interval(sheet)
         readings.append((read, signed if own is False else own))  # type: ignore[arg-type]
@@ -131,7 +133,7 @@ def weather_gaps(record: Mapping[str, Any]) -> list[tuple[dt.datetime, dt.dateti
     for move in record.get("transitions") or []:
         if not isinstance(move, Mapping):
             continue
-        at = _moment(move.get("at"))
+        at = moment(move.get("at"))
         if at is None:
             continue
         if move.get("to") == "working" and began is None:

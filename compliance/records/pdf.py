@@ -49,6 +49,7 @@ from reportlab.platypus import (
 from compliance.engineering.working import same_figure, told_apart, whole_pct
 from compliance.records.sealing import canonical_bytes
 from compliance.timeline import WEATHER_CHECKLIST, interval_words, reading_time, weather_gaps
+from compliance.timeline import moment as _moment
 
 ATTACHMENT_NAME = "daily-record.json"
 SEAL_LABEL = "Seal (SHA-256 of the attached canonical JSON):"
@@ -1058,16 +1059,6 @@ def _checks_made(record: dict[str, Any]) -> dict[Any, dt.datetime]:
         except (OverflowError, TypeError):
             continue
     return made
-
-
-def _moment(stamp: Any) -> dt.datetime | None:
-    if not isinstance(stamp, str):
-        return None
-    try:
-        moment = dt.datetime.fromisoformat(stamp.replace("Z", "+00:00"))
-    except ValueError:
-        return None
-    return moment if moment.tzinfo is not None else moment.replace(tzinfo=dt.UTC)
 
 
 def _opened(hold: dict[str, Any], made: dict[Any, dt.datetime], look: _Look) -> str:
