@@ -35,9 +35,9 @@ def _media(settings, tmp_path):
     settings.MEDIA_ROOT = tmp_path
 
 
-def _png() -> io.BytesIO:
+def _png(colour: tuple[int, int, int] = (200, 30, 30)) -> io.BytesIO:
     data = io.BytesIO()
-    Image.new("RGB", (64, 48), (200, 30, 30)).save(data, format="PNG")
+    Image.new("RGB", (64, 48), colour).save(data, format="PNG")
     data.seek(0)
     data.name = "defect.png"
     return data
@@ -97,12 +97,8 @@ def test_another_photo_under_a_used_id_is_refused_naming_it(closed_job, operator
     with clock.replaying(closed_job.date):
         first = _post(operator, closed_job, client_uuid=key, **body)
         assert first.status_code == 201, first.json()
-        blue = io.BytesIO()
-        Image.new("RGB", (64, 48), (20, 30, 200)).save(blue, format="PNG")
-        blue.seek(0)
-        blue.name = "other.png"
         changed = {
-            "image": {"image": blue},
+            "image": {"image": _png((20, 30, 200))},
             "item_key": {"item_key": "tag_capacity"},
             "sheet_uuid": {"sheet_uuid": str(uuid.uuid4())},
         }[other]
