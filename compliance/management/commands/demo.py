@@ -34,6 +34,9 @@ def run_due(
         due[name] = now + float(entry["schedule"])
         try:
             run(str(entry["task"]))
+        # What can fail: the task's own error, or SQLite busy while the server writes. Caught
+        # whole because the thread must live on (a beat that died would never stop work
+        # again); it is logged, and the task runs again at its next time.
         except Exception:
             logger.exception("The demo's periodic task %s failed.", entry["task"])
         ran.append(name)
