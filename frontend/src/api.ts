@@ -28,24 +28,35 @@ export class OfflineError extends Error {
 }
 
 /**
- * Counts sign-ins on this page. A request remembers the count it was sent under: an answer of
- * "not signed in" to a request sent before the latest sign-in (a slow first sync, say) speaks
- * of the state before it and never ends the new session.
+ * Counts sign-ins and sign-outs on this page. A request remembers the count it was sent under:
+ * an answer of "not signed in" to a request sent before the latest sign-in (a slow first sync,
+ * say) speaks of the state before it and never ends the new session.
  */
 let sessionEpoch = 0;
+/**
+ * The count a sign-out started: no one is signed in under it, so a "not signed in" heard for a
+ * request sent then (a screen still open asks again while the sign-out runs) ends nothing. Were
+ * it heard as a lapse, the sign-in form came back filled in with the name of who just left.
+ */
+let signedOutEpoch = -1;
+
+/** The session a request is sent under, for answers read outside `request` (the desk's files). */
+export function currentSession(): number {
+  return sessionEpoch;
+}
 
 /** The server answered with an error status; `body` is its parsed JSON, if any. */
 export class ApiError extends Error {
   readonly status: number;
   readonly body: Record<string, unknown>;
-  /** Sent before the latest sign-in: a lapse it reports is about the session before. */
+  /** Sent before the latest sign-in, or after signing out: a lapse it reports ends no session. */
   readonly fromEarlierSession: boolean;
   constructor(status: number, body: Record<string, unknown>, epoch: number = sessionEpoch) {
     super(typeof body.detail === "string" ? body.detail : `The server answered ${status}.`);
     this.name = "ApiError";
     this.status = status;
     this.body = body;
-    this.fromEarlierSession = epoch !== sessionEpoch;
+    this.fromEarlierSession = epoch !== sessionEpoch || epoch === signedOutEpoch;
   }
   /**
    * The session is gone (expired, or signed out on another tab). A 403 alone is not enough:
@@ -176,11 +187,19 @@ export const api = {
   },
   /**
    * Signing out starts a new session epoch before asking the server: an answer to a request
-   * sent before it ("not signed in") is then about the session being left, not a lapse.
+   * sent before it or while no one is signed in ("not signed in") is then about the session
+   * being left, not a lapse.
    */
   logout: async () => {
     sessionEpoch += 1;
-    await request<void>("auth/logout/", { method: "POST", json: {} });
+    signedOutEpoch = sessionEpoch;
+    try {
+      await request<void>("auth/logout/", { method: "POST", json: {} });
+    } catch (error) {
+      // Never reached the server: still signed in, and a lapse is heard again.
+      if (error instanceof OfflineError) sessionEpoch += 1;
+      throw error;
+    }
   },
   me: () => request<User>("me/"),
   jobs: (date: string) =>

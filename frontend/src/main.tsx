@@ -49,7 +49,9 @@ function App() {
   const [user, setUser] = useState<User | null | undefined>(undefined);
   // The user whose session ended without signing out: the records waiting are theirs.
   const [lapsed, setLapsed] = useState<User | null>(null);
-  // Set while signing out: a "not signed in" heard then is the sign-out itself, not a lapse.
+  // Set from signing out to the next sign-in: a "not signed in" heard then is the sign-out
+  // itself, not a lapse. An effect queued before the sign-out runs only at the next render, by
+  // which time the sign-out has ended; it must still find this set.
   const leaving = useRef(false);
 
   useEffect(() => {
@@ -76,21 +78,20 @@ function App() {
     if (waiting && !confirm(`${waiting === 1 ? "1 record is" : `${waiting} records are`} not sent yet. They stay on this phone and go after the next sign-in. Sign out?`)) return;
     leaving.current = true;
     try {
-      try {
-        await api.logout();
-      } catch (e) {
-        if (!(e instanceof ApiError)) return alert("Signing out needs a connection.");
+      await api.logout();
+    } catch (e) {
+      if (!(e instanceof ApiError)) {
+        leaving.current = false;
+        return alert("Signing out needs a connection.");
       }
-      await clearCache();
-      if ("caches" in window) await caches.delete("parapet-api");
-      // The next person starts from an empty form, with no notice meant for a lapsed session.
-      setLapsed(null);
-      setUser(null);
-      setStatus({ signedOut: false, lastError: null });
-      go({ name: "jobs" });
-    } finally {
-      leaving.current = false;
     }
+    await clearCache();
+    if ("caches" in window) await caches.delete("parapet-api");
+    // The next person starts from an empty form, with no notice meant for a lapsed session.
+    setLapsed(null);
+    setUser(null);
+    setStatus({ signedOut: false, lastError: null });
+    go({ name: "jobs" });
   }
 
   let screen;
@@ -99,6 +100,7 @@ function App() {
     screen = (
       <SignIn lapsed={lapsed} waiting={status.waiting + status.photosWaiting} onSignedIn={(u) => {
         const resumed = lapsed !== null;
+        leaving.current = false;
         setLapsed(null);
         setUser(u);
         setStatus({ signedOut: false, lastError: null });

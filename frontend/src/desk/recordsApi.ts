@@ -3,7 +3,7 @@
  * export just built and stores nothing, so an auditor may make it; a stored record is checked
  * where the server keeps it (GET records/{id}/verify/).
  */
-import { ApiError, OfflineError, request } from "../api";
+import { ApiError, currentSession, OfflineError, request } from "../api";
 import type { components } from "../api-schema";
 import { setStatus } from "../status";
 import type { ChecklistVersion, DailyRecord, Page, Site } from "../types";
@@ -40,6 +40,7 @@ export type FileAnswer =
 
 /** GET a file (a PDF or a ZIP); a 202 means the server is still preparing it. */
 async function file(path: string, accept: string, fallbackName: string): Promise<FileAnswer> {
+  const session = currentSession();
   const controller = new AbortController();
   const timer = setTimeout(() => controller.abort(), 120000);
   let response: Response;
@@ -70,7 +71,7 @@ async function file(path: string, accept: string, fallbackName: string): Promise
     return { kind: "pending", retryAfter: response.headers.get("Retry-After"), detail: String(parsed?.detail ?? "") };
   }
   if (response.status >= 500 && parsed === null) throw new OfflineError();
-  const error = new ApiError(response.status, parsed ?? {});
+  const error = new ApiError(response.status, parsed ?? {}, session);
   if (error.endsSession) setStatus({ signedOut: true, lastError: "Signed out: sign in again to read the records." });
   throw error;
 }
