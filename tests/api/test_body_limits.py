@@ -286,3 +286,53 @@ def test_a_form_s_text_parts_over_the_body_limit_are_refused_in_the_api_s_words(
         "detail": f"A form's text parts are at most 16 MB ({BODY_LIMIT} bytes) together."
     }
     assert stored(tmp_path) == before
+
+
+def many_parts(count: int, *, files: bool = False) -> bytes:
+    """A multipart form of `count` small parts (text fields, or files)."""
+    parts = []
+    for n in range(count):
+        if files:
+            disposition = f'name="f{n}"; filename="f{n}.txt"\r\nContent-Type: text/plain'
+        else:
+            disposition = f'name="f{n}"'
+        parts.append(f"--{BOUNDARY}\r\nContent-Disposition: form-data; {disposition}\r\n\r\nx\r\n")
+    return ("".join(parts) + f"--{BOUNDARY}--\r\n").encode()
+
+
+@pytest.mark.parametrize("files", [False, True], ids=["fields", "files"])
+def test_a_form_of_more_parts_than_the_server_reads_is_refused_in_the_api_s_words(
+    job, operator, tmp_path, files
+):
+    """Django stops reading a form past DATA_UPLOAD_MAX_NUMBER_FIELDS fields (or
+    DATA_UPLOAD_MAX_NUMBER_FILES files); its refusal was an HTML page, not the API's."""
+    limit = (
+        settings.DATA_UPLOAD_MAX_NUMBER_FILES if files else settings.DATA_UPLOAD_MAX_NUMBER_FIELDS
+    )
+    before = stored(tmp_path)
+
+    response = client_for(operator).post(
+        reverse("photos"), data=many_parts(limit + 1, files=files), content_type=FORM
+    )
+
+    assert response.status_code == 400
+    kind = "files" if files else "fields"
+    assert response.json() == {
+        "detail": f"A form holds at most {limit} {kind}; this one holds more."
+    }
+    assert stored(tmp_path) == before
+
+
+def test_a_urlencoded_body_of_too_many_fields_is_refused_in_the_api_s_words(job, operator):
+    """The API reads no urlencoded form: its count of fields is never reached."""
+    limit = settings.DATA_UPLOAD_MAX_NUMBER_FIELDS
+    body = "&".join(f"f{n}=x" for n in range(limit + 1))
+
+    response = client_for(operator).post(
+        reverse("sheet-list"), data=body, content_type="application/x-www-form-urlencoded"
+    )
+
+    assert response.status_code == 415
+    assert response.json() == {
+        "detail": 'Unsupported media type "application/x-www-form-urlencoded" in request.'
+    }
