@@ -190,6 +190,15 @@ def jobs_with_kit(equipment: Equipment) -> list[Job]:
     return list(Job.objects.select_for_update().filter(pk__in=list(ids)).order_by("pk"))
 
 
+def jobs_at_site(*, organisation_id: int, site_id: int) -> list[Job]:
+    """The organisation's open jobs of any day at the site; locked."""
+    return list(
+        Job.objects.select_for_update()
+        .filter(organisation_id=organisation_id, site_id=site_id, state__in=OPEN_STATES)
+        .order_by("pk")
+    )
+
+
 def jobs_under_profile(profile_id: int) -> list[Job]:
     """Open jobs of any day at sites under the profile; locked."""
     return list(
@@ -226,8 +235,10 @@ STOPS_WORK = {
     "anchor_uncertified": "anchor_uncertified",
     "anchor_certification_expired": "anchor_certification_expired",
     "anchor_capacity_low": "anchor_capacity_low",
+    "anchor_inspection_overdue": "anchor_inspection_overdue",
     "line_shorter_than_drop": "line_shorter_than_drop",
     "weather_stale": WEATHER_DUE,
+    "no_grant_for_day": "no_grant",
 }
 """What a register change can leave that stops a job at work, by blocker code, and the item key
 of the hold it opens. An anchor removed from service is the owner's log book's own hold."""
@@ -300,6 +311,22 @@ def hold_for_stale_weather(*, job: Job, by: User | None = None) -> Job:
         codes=("weather_stale",),
         why="Stop work: the wind was not read again in time.",
     )
+
+
+def hold_for_ended_grant(*, jobs: Iterable[Job], by: User) -> None:
+    """The owner ended a contractor's access (`jobs`: its open jobs at the site, locked): a
+    robot at work there stops, and a job not at work is read again (a cleared one is no longer
+    ready). The hold clears when the owner grants access for the day again."""
+    for job in jobs:
+        if job.state == JobState.WORKING:
+            hold_for_register_change(
+                job=job,
+                by=by,
+                codes=("no_grant_for_day",),
+                why="Stop work: the building's owner ended access to the site.",
+            )
+        else:
+            refresh_readiness(job=job, by=by)
 
 
 def clear_register_holds(*, job: Job, by: User | None) -> None:

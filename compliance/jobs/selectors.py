@@ -28,7 +28,12 @@ from compliance.models import (
     User,
 )
 from compliance.registers.ratings import rating_labels
-from compliance.registers.selectors import anchor_status, failed_test, withdrawal
+from compliance.registers.selectors import (
+    anchor_status,
+    failed_test,
+    grant_requirement,
+    withdrawal,
+)
 from compliance.registers.visibility import can_work_at
 from compliance.timeline import WEATHER_CHECKLIST, reading_time, recheck_interval, weather_gaps
 
@@ -366,7 +371,11 @@ def job_blockers(
     interval_days = int(profile.threshold("certification_interval_days"))
     if not can_work_at(job.organisation_id, job.site, job.date):
         reasons.append(
-            Reason("no_grant_for_day", "The building owner's access grant does not cover this day.")
+            Reason(
+                "no_grant_for_day",
+                "The building owner's access grant does not cover this day.",
+                grant_requirement(job.site_id),
+            )
         )
     # Anchors and equipment apart: an anchor and a robot may share a primary key.
     seen: set[tuple[str, int]] = set()

@@ -9,7 +9,13 @@ from django.db import IntegrityError, models, transaction
 from django.utils import timezone
 
 from compliance.errors import InvalidTransition, NotPermitted, require_writer
-from compliance.jobs.holds import jobs_using, jobs_with_kit, reread_readiness
+from compliance.jobs.holds import (
+    hold_for_ended_grant,
+    jobs_at_site,
+    jobs_using,
+    jobs_with_kit,
+    reread_readiness,
+)
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -89,14 +95,17 @@ def give_grant(
         )
         grant.full_clean()
         grant.save()
+        # A job held or kept back for want of access may go on (holds "no_grant" clear).
+        reread_readiness(jobs=jobs_at_site(organisation_id=contractor.pk, site_id=site.pk), by=by)
     return grant
 
 
 def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> SiteGrantEnd:
     """End a grant now: the contractor loses the site, its anchors and its log book at once.
 
-    Its jobs there no longer start (``no_grant_for_day``); the grant keeps its dates, and the
-    end row records who ended it, when and why.
+    Its jobs there no longer start (``no_grant_for_day``), and a robot of its at work there
+    stops (a hold the owner's next grant for the day clears); the grant keeps its dates, and
+    the end row records who ended it, when and why.
     """
     require_writer(by)
     if not owns_site(by.organisation_id, grant.site):
@@ -110,6 +119,9 @@ def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> SiteGrantEnd:
         end = SiteGrantEnd(grant=grant, ended_by=by, reason=reason)
         end.full_clean()
         end.save()
+        hold_for_ended_grant(
+            jobs=jobs_at_site(organisation_id=grant.contractor_id, site_id=grant.site_id), by=by
+        )
     return end
 
 

@@ -12,6 +12,8 @@ interface RequirementWords {
 }
 
 const ANCHOR_STATUS = /^anchor-status@anchor:(\d+)$/;
+/** The owner ended the crew's access to the site ("access-grant@site:ID"). */
+const GRANT = /^access-grant@site:\d+$/;
 /** A hold a register change opened names the kit or anchor itself: "equipment:5". */
 const REGISTER = /^(anchor|equipment):(\d+)$/;
 
@@ -28,6 +30,7 @@ export function holdTitle(requirements: readonly RequirementWords[], key: string
     if (!anchor) return "An anchor out of service";
     return `${capital(anchor.subject)} out of service`;
   }
+  if (GRANT.test(key)) return "Access to the building withdrawn";
   const register = REGISTER.exec(key);
   if (register) {
     const id = Number(register[2]);
@@ -38,15 +41,17 @@ export function holdTitle(requirements: readonly RequirementWords[], key: string
 }
 
 export function holdClearedBy(key: string): "owner" | "register" | "recheck" {
-  if (ANCHOR_STATUS.test(key)) return "owner";
+  if (ANCHOR_STATUS.test(key) || GRANT.test(key)) return "owner";
   return REGISTER.test(key) ? "register" : "recheck";
 }
 
 export const REGISTER_CLEARS =
   "The register stopped this work. Putting the register right clears it: the supervisor returns the kit to service or records its inspection, and for an anchor the building's owner records its certificate. No check on this phone clears it.";
 
-export const OWNER_CLEARS =
-  "Only the building's owner clears this, by returning the anchor to service in its log book after the repair. No check on this phone clears it.";
+/** How the owner clears a hold only the owner clears. */
+export function ownerClears(key: string): string {
+  return `Only the building's owner clears this, by ${GRANT.test(key) ? "granting access for the day again" : "returning the anchor to service in its log book after the repair"}. No check on this phone clears it.`;
+}
 
 interface HoldTimes {
   opened_at: string;

@@ -1,6 +1,6 @@
 /** What a hold is called and who clears it, in the words the phone shows. */
 import { describe, expect, it } from "vitest";
-import { holdClearedBy, holdTitle } from "../src/holds";
+import { holdClearedBy, holdTitle, ownerClears } from "../src/holds";
 
 const requirements = [
   { key: "anchor-pre-use@anchor:3", title: "Roof anchor pre-use check", subject: "anchor R3", anchor: 3 },
@@ -35,5 +35,14 @@ describe("holdClearedBy", () => {
     expect(holdClearedBy("anchor:3")).toBe("register");
     expect(holdTitle(requirements, "equipment:5")).toBe("Safety line S-1: the register");
     expect(holdTitle(requirements, "anchor:3")).toBe("Anchor R3: the register");
+  });
+
+  it("leaves access the owner withdrew to the owner: no re-check and no register puts it right", () => {
+    // The owner ended the crew's grant while the robot worked: read as a check's hold, it said
+    // "A new passing check after the repair clears it" and offered a Re-check.
+    expect(holdClearedBy("access-grant@site:4")).toBe("owner");
+    expect(holdTitle(requirements, "access-grant@site:4")).toBe("Access to the building withdrawn");
+    expect(ownerClears("access-grant@site:4")).toMatch(/^Only the building's owner clears this, by granting access/);
+    expect(ownerClears("anchor-status@anchor:3")).toMatch(/returning the anchor to service/);
   });
 });

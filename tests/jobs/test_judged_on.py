@@ -402,3 +402,35 @@ def test_a_profile_reloaded_back_to_a_limit_it_had_before_stops_the_robot_at_wor
 
     job.refresh_from_db()
     assert job.state == JobState.HELD
+
+
+def test_a_profile_reloaded_with_a_shorter_inspection_interval_stops_the_robot_at_work(
+    job, simple_checklists, operator, tmp_path
+):
+    """The anchors were inspected 100 days ago; a reload that makes an inspection due every 30
+    days leaves them overdue. A cleared job did not start on that (anchor_inspection_overdue),
+    but a robot already on the facade worked on."""
+    from compliance.jobs.services import start_job
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+
+    _reload_profile_with(job, tmp_path, certification_interval_days=30)
+
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    holds = sorted((h.requirement, h.item_key) for h in job.holds.all())
+    anchors = job.drops.get()
+    assert holds == sorted(
+        [
+            (f"anchor:{anchors.anchor_id}", "anchor_inspection_overdue"),
+            (f"anchor:{anchors.safety_anchor_id}", "anchor_inspection_overdue"),
+        ]
+    )
+    assert job.transitions.last().reason == "Stop work: the register changed under the job."
+
+    # Put back, the holds clear and the job may start again once the crew says so.
+    _reload_profile_with(job, tmp_path, certification_interval_days=365)
+    job.refresh_from_db()
+    assert [h.item_key for h in job.holds.filter(clearance__isnull=True)] == []
+    assert job.state == JobState.CLEARED

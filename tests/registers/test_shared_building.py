@@ -499,3 +499,60 @@ def test_a_synced_sheet_on_another_tenants_version_answers_alike(shared, foreign
     assert response.status_code == 200
     errors = [r.get("errors") for r in response.json()["results"]]
     assert errors == [{"version": ["Unknown checklist version."]}] * 3
+
+
+def test_a_crew_at_work_stops_when_the_owner_ends_its_grant_and_a_new_grant_clears_it(shared):
+    """The owner withdrew access while the north crew's robot was on the facade: its job was
+    refused a start from then on, but the robot at work went on. The other crew at work under
+    its own grant goes on."""
+    from compliance.jobs.services import start_job
+    from compliance.registers.services import end_grant, give_grant
+
+    b = shared
+    north, south = b["north"], b["south"]
+    for crew in (north, south):
+        start_job(job=crew["job"], by=crew["operator"])
+    grant = SiteGrant.objects.get(site=b["site"], contractor=north["org"])
+
+    end_grant(grant=grant, by=b["manager"], reason="Facade works suspended by the owner.")
+
+    north["job"].refresh_from_db()
+    south["job"].refresh_from_db()
+    assert north["job"].state == JobState.HELD
+    assert south["job"].state == JobState.WORKING
+    hold = north["job"].holds.get()
+    assert (hold.requirement, hold.item_key) == (f"access-grant@site:{b['site'].pk}", "no_grant")
+    assert hold.reason == "The building owner's access grant does not cover this day."
+    assert north["job"].transitions.last().reason == (
+        "Stop work: the building's owner ended access to the site."
+    )
+    detail = client_for(north["supervisor"]).get(reverse("job-detail", args=[north["job"].pk]))
+    assert detail.status_code == 200
+    assert [h["requirement"] for h in detail.json()["holds"]] == [hold.requirement]
+
+    give_grant(
+        site=b["site"],
+        contractor=north["org"],
+        starts_on=TODAY(),
+        ends_on=TODAY() + dt.timedelta(days=3),
+        by=b["manager"],
+    )
+
+    north["job"].refresh_from_db()
+    assert HoldClearance.objects.filter(hold=hold).exists()
+    assert north["job"].state == JobState.CLEARED
+
+
+def test_an_ended_grant_sends_a_cleared_job_back_to_planned(shared):
+    from compliance.registers.services import end_grant
+
+    b = shared
+    north = b["north"]
+    grant = SiteGrant.objects.get(site=b["site"], contractor=north["org"])
+
+    end_grant(grant=grant, by=b["manager"])
+
+    north["job"].refresh_from_db()
+    assert north["job"].state == JobState.PLANNED
+    assert not north["job"].holds.exists()
+    assert b["south"]["job"].state == JobState.CLEARED

@@ -7,7 +7,7 @@ import { refreshCounts, requestSync } from "../sync";
 import { dataChanged } from "../status";
 import type { DailyRecord, JobDetail, Reason, Requirement, User } from "../types";
 import { deviceTime } from "../uuid";
-import { holdClearedBy, holdTitle, madeNote, OWNER_CLEARS, REGISTER_CLEARS } from "../holds";
+import { holdClearedBy, holdTitle, madeNote, ownerClears, REGISTER_CLEARS } from "../holds";
 import { BottomBar, CautionLine, Header, loadWords, plainReason } from "./common";
 import { activeRefusals, errorLines } from "../refusals";
 import { checkAgainWhy, mayClose, nextReadAgain, officeBlockers, opensOn, windLapsed } from "../job_rules";
@@ -271,7 +271,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
                 <p><strong>{holdTitle(job.requirements, h.requirement)}</strong></p>
                 <p data-testid="hold-reason">{plainReason(h.reason)}</p>
                 {holdClearedBy(h.requirement) === "owner" ? (
-                  <p class="muted small" data-testid="hold-owner-clears">Since {timeOf(h.opened_at)}. {OWNER_CLEARS}</p>
+                  <p class="muted small" data-testid="hold-owner-clears">Since {timeOf(h.opened_at)}. {ownerClears(h.requirement)}</p>
                 ) : holdClearedBy(h.requirement) === "register" ? (
                   <p class="muted small" data-testid="hold-register-clears">Since {timeOf(h.opened_at)}. {REGISTER_CLEARS}</p>
                 ) : (
