@@ -94,6 +94,10 @@ def _encoded(image: UploadedFile) -> tuple[Image.Image, bytes]:
     return picture, out.getvalue()
 
 
+def _stored(client_uuid: uuid.UUID) -> Photo | None:
+    return Photo.objects.filter(client_uuid=client_uuid).first()
+
+
 def store_photo(
     *,
     by: User,
@@ -109,26 +113,20 @@ def store_photo(
     (_check_place) and nothing is stored when it is refused."""
     if not by.can_write:
         raise ValidationError({"job": "Auditors have read-only access."})
-    existing = Photo.objects.filter(client_uuid=client_uuid).first()
+    existing = _stored(client_uuid)
     if existing is not None:
-        if existing.organisation_id != by.organisation_id:
-            raise ValidationError({"client_uuid": "Already used."})
-        if (existing.job_id, existing.sheet_uuid, existing.item_key) != (
-            job.pk,
-            sheet_uuid,
-            item_key[:80],
-        ):
-            raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]})
+        _same_place(existing, by=by, job=job, sheet_uuid=sheet_uuid, item_key=item_key)
     else:
         if job.organisation_id != by.organisation_id:
             raise ValidationError({"job": "Unknown job."})
         # Refused early without reading the image; checked again under the job's lock below.
         _check_place(job=job, sheet_uuid=sheet_uuid, item_key=item_key)
     picture, data = _encoded(image)
+    digest = hashlib.sha256(data).hexdigest()
     if existing is not None:
         # The same photo sent again (its answer lost) is the one stored; another image under
         # its id was answered as stored, and the new one silently dropped.
-        if hashlib.sha256(data).hexdigest() != existing.sha256:
+        if digest != existing.sha256:
             raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]})
         return existing, False
     try:
@@ -143,12 +141,37 @@ def store_photo(
                 sheet_uuid=sheet_uuid,
                 item_key=item_key[:80],
                 uploaded_by=by,
-                sha256=hashlib.sha256(data).hexdigest(),
+                sha256=digest,
                 width=picture.width,
                 height=picture.height,
             )
             photo.image.save(f"{client_uuid}.jpg", ContentFile(data), save=False)
-            photo.save()
+            try:
+                photo.save()
+            except IntegrityError:
+                # Its row refused, the file does not stay in storage without one.
+                photo.image.storage.delete(photo.image.name)
+                raise
     except IntegrityError:
-        return Photo.objects.get(client_uuid=client_uuid), False
+        # Another request under the same id stored its photo first: this one is compared with
+        # it as a photo sent again is.
+        existing = Photo.objects.get(client_uuid=client_uuid)
+        _same_place(existing, by=by, job=job, sheet_uuid=sheet_uuid, item_key=item_key)
+        if digest != existing.sha256:
+            raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]}) from None
+        return existing, False
     return photo, True
+
+
+def _same_place(
+    existing: Photo, *, by: User, job: Job, sheet_uuid: uuid.UUID | None, item_key: str
+) -> None:
+    """A photo sent again under its id names its own organisation, job, sheet and item."""
+    if existing.organisation_id != by.organisation_id:
+        raise ValidationError({"client_uuid": "Already used."})
+    if (existing.job_id, existing.sheet_uuid, existing.item_key) != (
+        job.pk,
+        sheet_uuid,
+        item_key[:80],
+    ):
+        raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]})

@@ -109,6 +109,41 @@ def test_another_photo_under_a_used_id_is_refused_naming_it(closed_job, operator
     assert Photo.objects.count() == 1
 
 
+@pytest.mark.parametrize("same", [True, False], ids=["same-photo", "other-image"])
+def test_a_photo_whose_id_is_taken_in_a_race_is_compared_as_one_sent_again(
+    closed_job, operator, monkeypatch, tmp_path, same
+):
+    """Two requests under one id at once: the second's lookup saw no row, and its insert then
+    met the first's. It was answered as the stored photo whatever it held, and its file stayed
+    in storage without a row; it is compared as a photo sent again is, and leaves no file."""
+    import checklists.photos as photos
+
+    sheet = closed_job.sheets.get(subject_kind="anchor", anchor=closed_job.drops.get().anchor)
+    body = {"sheet_uuid": str(sheet.client_uuid), "item_key": "sound"}
+    key = str(uuid.uuid4())
+    with clock.replaying(closed_job.date):
+        first = _post(operator, closed_job, client_uuid=key, **body)
+        assert first.status_code == 201, first.json()
+        real = photos._stored
+
+        def unseen(client_uuid):  # the lookup ran before the other request's insert
+            monkeypatch.setattr(photos, "_stored", real)
+            return None
+
+        monkeypatch.setattr(photos, "_stored", unseen)
+        image = _png() if same else _png((20, 30, 200))
+        again = _post(operator, closed_job, client_uuid=key, image=image, **body)
+
+    if same:
+        assert again.status_code == 200
+        assert again.json() == first.json()
+    else:
+        assert again.status_code == 400
+        assert again.json() == {"client_uuid": [photos.REUSED_PHOTO_ID]}
+    assert Photo.objects.count() == 1
+    assert [p.name for p in tmp_path.rglob("*") if p.is_file()] == [f"{key}.jpg"]
+
+
 def test_a_photo_is_refused_on_any_day_but_the_jobs(closed_job, operator, tmp_path):
     """A loose photo counts as made the day it is received; the job's day has passed (and a
     later job's has not come)."""
