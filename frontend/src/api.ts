@@ -119,6 +119,9 @@ export async function request<T>(path: string, opts: Options = {}): Promise<T> {
   } finally {
     clearTimeout(timer);
   }
+  // The service worker's copy of an earlier answer: the phone's own copy (src/repo.ts) says
+  // when the server gave it, and the screens say it is not the server's answer now.
+  if (response.headers.has("X-Parapet-Kept")) throw new OfflineError();
   if (response.status === 204) return undefined as T;
   let parsed: unknown = null;
   try {

@@ -13,6 +13,8 @@ import { NetworkFirst } from "workbox-strategies";
 declare const self: ServiceWorkerGlobalScope & { __WB_MANIFEST: (string | { url: string; revision: string | null })[] };
 
 const SHELL = "/static/app/index.html";
+/** Marks an API answer the worker kept from before (src/api.ts reads it as no connection). */
+const KEPT_HEADER = "X-Parapet-Kept";
 
 self.skipWaiting();
 clientsClaim();
@@ -35,6 +37,18 @@ registerRoute(
   new NetworkFirst({
     cacheName: "parapet-api",
     networkTimeoutSeconds: 6,
-    plugins: [new ExpirationPlugin({ maxEntries: 300, maxAgeSeconds: 14 * 24 * 3600 })],
+    plugins: [
+      new ExpirationPlugin({ maxEntries: 300, maxAgeSeconds: 14 * 24 * 3600 }),
+      // A kept answer says so: read as the server's answer now, a job's state from hours ago
+      // was shown as "State from the server" after a reload without signal.
+      {
+        cachedResponseWillBeUsed: async ({ cachedResponse }) => {
+          if (!cachedResponse) return cachedResponse;
+          const headers = new Headers(cachedResponse.headers);
+          headers.set(KEPT_HEADER, "1");
+          return new Response(cachedResponse.body, { status: cachedResponse.status, statusText: cachedResponse.statusText, headers });
+        },
+      },
+    ],
   }),
 );

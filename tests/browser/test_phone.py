@@ -96,6 +96,9 @@ def test_hold_then_offline_recheck_clears_the_job(live_server, demo, context, pa
     shot(page, "job-held.png")
     job.refresh_from_db()
     assert job.state == "held"
+    # A held job offers no start the server would refuse; the bar says what to do instead.
+    assert page.locator("[data-testid=start]").count() == 0
+    assert "clear the holds" in page.inner_text("[data-testid=held-note]")
 
     # Offline: a passing re-check with a photo is kept on the phone.
     context.set_offline(True)
@@ -121,6 +124,9 @@ def test_hold_then_offline_recheck_clears_the_job(live_server, demo, context, pa
     page.reload()
     wait_waiting(page, 2)
     wait_state(page, "held")
+    # The state kept is said to be the server's earlier answer, not its answer now (the
+    # service worker's copy was read as the server's: "State from the server.").
+    page.wait_for_selector(".state-card :text('Offline: the state the server gave at')")
     page.wait_for_selector(f"{req_selector(ANCHOR_R1)}:has-text('waiting to send')")
     assert Job.objects.get(pk=job.pk).state == "held"
     page.goto(base + "/#/")

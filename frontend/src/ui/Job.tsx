@@ -417,7 +417,10 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         {canRecord(user) && opens && job.state !== "closed" && (
           <span class="bar-note" data-testid="opens-on">Opens on {opens}</span>
         )}
-        {canRecord(user) && !opens && job.state !== "working" && job.state !== "closed" && (
+        {canRecord(user) && !opens && job.state === "held" && (
+          <span class="bar-note" data-testid="held-note">Stopped: clear the holds above to start</span>
+        )}
+        {canRecord(user) && !opens && job.state !== "working" && job.state !== "closed" && job.state !== "held" && (
           <button class="btn btn-primary" type="button" onClick={start} disabled={busy || !status.online}
             data-testid="start" title={status.online ? "" : "Needs a connection"}>
             {status.online ? "Start work" : "Start (needs signal)"}
