@@ -29,9 +29,9 @@ from compliance.models import (
 )
 from compliance.registers.ratings import rating_labels
 from compliance.registers.selectors import (
+    GRANT_REQUIREMENT,
     anchor_status,
     failed_test,
-    grant_requirement,
     withdrawal,
 )
 from compliance.registers.visibility import can_work_at
@@ -374,7 +374,7 @@ def job_blockers(
             Reason(
                 "no_grant_for_day",
                 "The building owner's access grant does not cover this day.",
-                grant_requirement(job.site_id),
+                GRANT_REQUIREMENT,
             )
         )
     # Anchors and equipment apart: an anchor and a robot may share a primary key.

@@ -22,10 +22,9 @@ def status_requirement(anchor: Anchor) -> str:
     return f"anchor-status@anchor:{anchor.pk}"
 
 
-def grant_requirement(site_id: int) -> str:
-    """What a hold for access withdrawn names: the owner's grant at the site, which only the
-    owner puts right (a new grant covering the day)."""
-    return f"access-grant@site:{site_id}"
+GRANT_REQUIREMENT = "access-grant@site"
+"""What a hold for access withdrawn names: the owner's grant at the job's site (a job is at one
+site), which only the owner puts right (a new grant covering the day)."""
 
 
 @dataclass(frozen=True)

@@ -12,8 +12,8 @@ interface RequirementWords {
 }
 
 const ANCHOR_STATUS = /^anchor-status@anchor:(\d+)$/;
-/** The owner ended the crew's access to the site ("access-grant@site:ID"). */
-const GRANT = /^access-grant@site:\d+$/;
+/** The owner ended the crew's access to the job's site. */
+const GRANT = /^access-grant@site$/;
 /** A hold a register change opened names the kit or anchor itself: "equipment:5". */
 const REGISTER = /^(anchor|equipment):(\d+)$/;
 

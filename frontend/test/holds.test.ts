@@ -40,9 +40,9 @@ describe("holdClearedBy", () => {
   it("leaves access the owner withdrew to the owner: no re-check and no register puts it right", () => {
     // The owner ended the crew's grant while the robot worked: read as a check's hold, it said
     // "A new passing check after the repair clears it" and offered a Re-check.
-    expect(holdClearedBy("access-grant@site:4")).toBe("owner");
-    expect(holdTitle(requirements, "access-grant@site:4")).toBe("Access to the building withdrawn");
-    expect(ownerClears("access-grant@site:4")).toMatch(/^Only the building's owner clears this, by granting access/);
+    expect(holdClearedBy("access-grant@site")).toBe("owner");
+    expect(holdTitle(requirements, "access-grant@site")).toBe("Access to the building withdrawn");
+    expect(ownerClears("access-grant@site")).toMatch(/^Only the building's owner clears this, by granting access/);
     expect(ownerClears("anchor-status@anchor:3")).toMatch(/returning the anchor to service/);
   });
 });

@@ -439,3 +439,7 @@ def test_a_register_change_s_hold_names_the_kit_it_concerns():
     assert _concerns({"requirement": "equipment:5"}, subjects) == "safety line S-1"
     assert _concerns({"requirement": "anchor-pre-use@anchor:2"}, subjects) == "anchor R2"
     assert _concerns({"requirement": "weather@site"}, subjects) == "the site"
+    # Access the owner withdrew concerns the job's site.
+    from compliance.registers.selectors import GRANT_REQUIREMENT
+
+    assert _concerns({"requirement": GRANT_REQUIREMENT}, subjects) == "the site"
