@@ -609,6 +609,9 @@ class SheetInputSerializer(StrictInput, serializers.Serializer):
     device_time = serializers.DateTimeField(required=False, allow_null=True)
     remarks = serializers.CharField(required=False, allow_blank=True, max_length=4000)
     entries = serializers.DictField(child=serializers.JSONField())
+    # The sender's clock when it sent the sheet, as a sync batch's `sent_at`: how far the
+    # sender's clock is off is kept with the sheet and stated on the record.
+    sent_at = serializers.DateTimeField(required=False, allow_null=True)
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

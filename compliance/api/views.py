@@ -52,7 +52,13 @@ from compliance.jobs.selectors import (
     ready_when_closed,
     unread_wind,
 )
-from compliance.jobs.sync import MAX_BATCH, apply_batch, printable, record_posted_sheet
+from compliance.jobs.sync import (
+    MAX_BATCH,
+    apply_batch,
+    clock_offset,
+    printable,
+    record_posted_sheet,
+)
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -636,10 +642,17 @@ class SheetViewSet(OrgScoped, mixins.CreateModelMixin, viewsets.ReadOnlyModelVie
         stored copy, and other content under a used client_uuid is refused (400)."""
         data = s.SheetInputSerializer(data=request.data, context=self.get_serializer_context())
         data.is_valid(raise_exception=True)
-        # As sent, for the receipt's digest: the fields of a batch record's data.
-        content = {key: value for key, value in request.data.items() if key != "client_uuid"}
+        fields = dict(data.validated_data)
+        offset = clock_offset(fields.pop("sent_at", None))
+        # As sent, for the receipt's digest: the fields of a batch record's data (when it was
+        # sent is the batch's, not the record's: a sheet sent again later is the same record).
+        content = {
+            key: value
+            for key, value in request.data.items()
+            if key not in ("client_uuid", "sent_at")
+        }
         sheet, created = record_posted_sheet(
-            by=request.user, content=content, **data.validated_data
+            by=request.user, content=content, phone_clock_offset_s=offset, **fields
         )
         # Read back past the list's ?job= filter: the sheet is stored, whatever the URL says.
         sheet = sheets_for(self.org_id).get(pk=sheet.pk)

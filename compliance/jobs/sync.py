@@ -404,8 +404,7 @@ def apply_batch(
     clock is kept with every record, so a phone whose clock is wrong can be told from a phone
     that was offline.
     """
-    offset = None if sent_at is None else round((sent_at - timezone.now()).total_seconds())
-    batch = Batch(user=user, phone_clock_offset_s=offset)
+    batch = Batch(user=user, phone_clock_offset_s=clock_offset(sent_at))
     # The receipts of records sent before, all in one read; a record that another request
     # applies meanwhile still meets the receipt's unique client uuid (see apply_record). The
     # records of a job's run are looked up again under the job's lock, so this read covers
@@ -536,6 +535,12 @@ def reuses_id(receipt: SyncReceipt, record: dict[str, Any]) -> bool:
     if receipt.kind != record.get("type"):
         return True
     return bool(receipt.content_sha256) and receipt.content_sha256 != content_digest(record)
+
+
+def clock_offset(sent_at: dt.datetime | None) -> int | None:
+    """How far the sender's clock was off when it sent (its `sent_at` less the server's time),
+    in whole seconds; None when it did not say."""
+    return None if sent_at is None else round((sent_at - timezone.now()).total_seconds())
 
 
 def record_posted_sheet(

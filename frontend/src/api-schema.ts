@@ -1505,6 +1505,8 @@ export interface components {
             entries: {
                 [key: string]: unknown;
             };
+            /** Format: date-time */
+            sent_at?: string | null;
         };
         SignInputRequest: {
             password: string;

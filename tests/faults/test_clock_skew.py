@@ -190,3 +190,48 @@ def test_a_hold_says_when_its_check_was_made_by_the_server_s_clock(
     found = dt.datetime.fromisoformat(hold["found_at"])
     opened = dt.datetime.fromisoformat(hold["opened_at"])
     assert abs((opened - found) - dt.timedelta(minutes=30)) < dt.timedelta(seconds=5)
+
+
+def test_a_sheet_posted_alone_says_when_it_was_sent_as_a_batch_does(
+    job, simple_checklists, operator
+):
+    """A script posting to /sheets/ could not say when it sent: a phone 5 h slow read as a sheet
+    filled offline 5 h before, and the slow clock went unstated. `sent_at` is taken as in a
+    batch; the same sheet sent again later, with a later `sent_at`, is the same record."""
+    phone_now = timezone.now() - SKEW
+    body = {
+        "client_uuid": str(uuid.uuid4()),
+        "job": job.pk,
+        "version": simple_checklists["site"].pk,
+        "entries": PASSING["site"],
+        "device_time": (phone_now - dt.timedelta(minutes=1)).isoformat(),
+    }
+    client = client_for(operator)
+    response = client.post(
+        reverse("sheet-list"), {**body, "sent_at": phone_now.isoformat()}, format="json"
+    )
+    assert response.status_code == 201, response.json()
+    stored = CheckSheet.objects.get(client_uuid=body["client_uuid"])
+    assert stored.phone_clock_offset_s == pytest.approx(-SKEW.total_seconds(), abs=60)
+    assert clock_notes_about(job, sheet_in_record(job, body["client_uuid"])["id"])
+
+    later = (phone_now + dt.timedelta(minutes=3)).isoformat()
+    again = client.post(reverse("sheet-list"), {**body, "sent_at": later}, format="json")
+    assert again.status_code == 200, again.json()
+    assert again.json()["id"] == response.json()["id"]
+
+
+@pytest.mark.parametrize("sent_at", ["yesterday", "", 5])
+def test_a_sheet_posted_with_an_unreadable_sent_at_is_refused_naming_it(
+    job, simple_checklists, operator, sent_at
+):
+    body = {
+        "job": job.pk,
+        "version": simple_checklists["site"].pk,
+        "entries": PASSING["site"],
+        "sent_at": sent_at,
+    }
+    response = client_for(operator).post(reverse("sheet-list"), body, format="json")
+    assert response.status_code == 400
+    assert list(response.json()) == ["sent_at"]
+    assert not CheckSheet.objects.exists()
