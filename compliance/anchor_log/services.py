@@ -21,7 +21,12 @@ from django.utils import timezone
 
 from checklists.models import CheckSheet, ItemEntry
 from compliance.errors import InvalidTransition, NotPermitted
-from compliance.jobs.holds import clear_for_returned_anchor, hold_for_removed_anchor, jobs_using
+from compliance.jobs.holds import (
+    clear_for_returned_anchor,
+    hold_for_removed_anchor,
+    jobs_using,
+    reread_readiness,
+)
 from compliance.models import (
     Anchor,
     AnchorLogEntry,
@@ -216,7 +221,10 @@ def record_entry(
         stops = kind == AnchorLogEntry.Kind.REMOVED or (
             kind in INSPECTION_KINDS and result == AnchorLogEntry.Result.FAIL
         )
-        moves_jobs = stops or kind == AnchorLogEntry.Kind.RETURNED
+        # A passing inspection or load test moves the anchor's next inspection: a job held or
+        # kept back as overdue may go on.
+        passed = kind in INSPECTION_KINDS and result == AnchorLogEntry.Result.PASS
+        moves_jobs = stops or passed or kind == AnchorLogEntry.Kind.RETURNED
         jobs = jobs_using(anchor) if moves_jobs else []  # locked before the chain: lock order
         entry = _create(
             anchor=anchor,
@@ -235,6 +243,8 @@ def record_entry(
             hold_for_removed_anchor(jobs=jobs, anchor=anchor, entry=entry, by=by)
         elif kind == AnchorLogEntry.Kind.RETURNED:
             clear_for_returned_anchor(jobs=jobs, anchor=anchor, entry=entry, by=by)
+        elif passed:
+            reread_readiness(jobs=jobs, by=by)
     return entry
 
 

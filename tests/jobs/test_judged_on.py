@@ -434,3 +434,39 @@ def test_a_profile_reloaded_with_a_shorter_inspection_interval_stops_the_robot_a
     job.refresh_from_db()
     assert [h.item_key for h in job.holds.filter(clearance__isnull=True)] == []
     assert job.state == JobState.CLEARED
+
+
+def test_a_passing_inspection_in_the_log_book_clears_the_overdue_hold(
+    job, simple_checklists, operator, supervisor, tmp_path
+):
+    """The owner inspected the overdue anchors and signed it in the log book: the jobs stayed
+    held for good (start refused on the holds alone) until some unrelated change read them."""
+    from django.utils import timezone
+
+    from compliance.anchor_log.services import record_entry
+    from compliance.jobs.services import start_job
+    from compliance.records.signing import create_self_signed
+    from tests.factories import PASSWORD
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    _reload_profile_with(job, tmp_path, certification_interval_days=30)
+    job.refresh_from_db()
+    assert job.state == JobState.HELD
+    create_self_signed(organisation=job.site.organisation)
+    drop = job.drops.get()
+
+    for n, anchor in enumerate((drop.anchor, drop.safety_anchor)):
+        record_entry(
+            anchor=anchor,
+            by=supervisor,
+            password=PASSWORD,
+            kind="periodic_inspection",
+            result="pass",
+            details="Inspected: sound, fixings tight.",
+            performed_on=timezone.localdate(),
+        )
+        job.refresh_from_db()
+        still_held = [h.item_key for h in job.holds.filter(clearance__isnull=True)]
+        assert still_held == ([] if n else ["anchor_inspection_overdue"])
+    assert job.state == JobState.CLEARED
