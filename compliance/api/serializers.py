@@ -28,7 +28,11 @@ from compliance.models import (
 from compliance.registers.bounds import MAX_RATED_CAPACITY_KN, MAX_SITE_HEIGHT_M, STOREYS
 from compliance.registers.ratings import EQUIPMENT_KINDS
 from compliance.registers.selectors import withdrawal
-from compliance.registers.visibility import anchors_visible_to, sites_visible_to
+from compliance.registers.visibility import (
+    anchors_checkable_by,
+    anchors_visible_to,
+    sites_visible_to,
+)
 
 
 class UserSerializer(serializers.ModelSerializer):
@@ -621,7 +625,7 @@ class SheetInputSerializer(StrictInput, serializers.Serializer):
             "site__profile"
         )
         self.fields["version"].queryset = fillable_versions(org)
-        self.fields["anchor"].queryset = anchors_visible_to(org)
+        self.fields["anchor"].queryset = anchors_checkable_by(org)
         self.fields["equipment"].queryset = Equipment.objects.filter(organisation_id=org)
 
 

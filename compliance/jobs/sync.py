@@ -33,7 +33,7 @@ from compliance.jobs import services
 from compliance.jobs.selectors import drops_of
 from compliance.models import Anchor, Drop, Equipment, Hold, Job, SyncReceipt, User
 from compliance.records.sealing import canonical_bytes
-from compliance.registers.visibility import anchors_visible_to
+from compliance.registers.visibility import anchors_checkable_by
 
 RECORD_KINDS = ("sheet", "drop_log", "job_action")
 MAX_BATCH = 200
@@ -92,7 +92,7 @@ class Batch:
                     ids.add(data[name])
         sources = {
             "version": fillable_versions(org),
-            "anchor": anchors_visible_to(org),
+            "anchor": anchors_checkable_by(org),
             "equipment": Equipment.objects.filter(organisation_id=org),
         }
         for name, ids in wanted.items():
@@ -265,7 +265,7 @@ def _apply_sheet(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) -> 
     )
     if version is None:
         raise RecordRejected({"version": ["Required."]})
-    anchor = batch.lookup(Anchor, lambda: anchors_visible_to(org), data.get("anchor"), "anchor")
+    anchor = batch.lookup(Anchor, lambda: anchors_checkable_by(org), data.get("anchor"), "anchor")
     equipment = batch.lookup(
         Equipment,
         lambda: Equipment.objects.filter(organisation_id=org),

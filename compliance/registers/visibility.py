@@ -9,7 +9,7 @@ import datetime as dt
 from django.db.models import Exists, OuterRef, Q, QuerySet
 from django.utils import timezone
 
-from compliance.models import Anchor, Organisation, Site, SiteGrant
+from compliance.models import Anchor, Drop, Organisation, Site, SiteGrant
 
 
 def live_grants(day: dt.date) -> QuerySet[SiteGrant]:
@@ -28,6 +28,19 @@ def sites_visible_to(organisation_id: int | None, day: dt.date | None = None) ->
 
 def anchors_visible_to(organisation_id: int | None, day: dt.date | None = None) -> QuerySet[Anchor]:
     return Anchor.objects.filter(site__in=sites_visible_to(organisation_id, day))
+
+
+def anchors_checkable_by(organisation_id: int | None) -> QuerySet[Anchor]:
+    """The anchors a crew may send a check of: those it sees today, and those its own jobs'
+    drops hang from, whatever its access now (a crack found before the owner ended its grant,
+    sent once back in signal, is kept, with its hold and the owner's log book entry; the
+    sheet's own rules still want the anchor on that job's drops)."""
+    drops = Drop.objects.filter(job__organisation_id=organisation_id)
+    return Anchor.objects.filter(
+        Q(site__in=sites_visible_to(organisation_id))
+        | Q(pk__in=drops.values("anchor"))
+        | Q(pk__in=drops.values("safety_anchor"))
+    )
 
 
 def can_work_at(organisation_id: int | None, site: Site, day: dt.date) -> bool:

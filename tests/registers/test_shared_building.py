@@ -556,3 +556,71 @@ def test_an_ended_grant_sends_a_cleared_job_back_to_planned(shared):
     assert north["job"].state == JobState.PLANNED
     assert not north["job"].holds.exists()
     assert b["south"]["job"].state == JobState.CLEARED
+
+
+def _anchor_failure(job, anchor, versions, when) -> dict:
+    return {
+        "job": job.pk,
+        "version": versions["anchor"].pk,
+        "anchor": anchor.pk,
+        "entries": {"sound": {"value": "fail"}, "tag_capacity": {"value": 22.2, "unit": "kN"}},
+        "device_time": when.isoformat(),
+    }
+
+
+@pytest.mark.parametrize("way", ["sync", "sheets"])
+def test_an_anchor_failure_found_before_the_grant_ended_is_kept(shared, way):
+    """The crew found a cracked anchor and sent it once back in signal, after the owner had
+    ended its access: 'Unknown anchor.', and the failure, its hold and the owner's log book
+    entry were lost. An anchor its own job's drops hang from is the crew's to report."""
+    from compliance.jobs.services import start_job
+    from compliance.registers.services import end_grant
+
+    b = shared
+    north = b["north"]
+    start_job(job=north["job"], by=north["operator"])
+    found = timezone.now() - dt.timedelta(minutes=20)
+    end_grant(grant=SiteGrant.objects.get(site=b["site"], contractor=north["org"]), by=b["manager"])
+    body = _anchor_failure(north["job"], b["anchor"], b["checklists"], found)
+    client = client_for(north["operator"])
+    if way == "sync":
+        key = str(uuid.uuid4())
+        response = client.post(
+            reverse("sync"),
+            {"records": [{"type": "sheet", "client_uuid": key, "data": body}]},
+            format="json",
+        )
+        assert response.status_code == 200
+        assert response.json()["results"][0]["status"] == "applied", response.json()
+    else:
+        key = str(uuid.uuid4())
+        response = client.post(reverse("sheet-list"), {**body, "client_uuid": key}, format="json")
+        assert response.status_code == 201, response.json()
+
+    sheet = CheckSheet.objects.get(client_uuid=key)
+    assert sheet.verdict == "fail"
+    held = north["job"].holds.filter(sheet=sheet)
+    assert held.count() == 1
+    assert AnchorLogEntry.objects.filter(
+        anchor=b["anchor"], kind="pre_use_check", result="fail"
+    ).exists()
+
+
+def test_an_anchor_of_no_drop_of_the_crew_stays_unknown_once_access_ends(shared):
+    """Only the anchors its own drops hang from: another anchor of the building is as unknown
+    as before, in the same words as an id that does not exist."""
+    from compliance.registers.services import end_grant
+    from tests.factories import AnchorFactory
+
+    b = shared
+    north = b["north"]
+    other = AnchorFactory(site=b["site"])
+    end_grant(grant=SiteGrant.objects.get(site=b["site"], contractor=north["org"]), by=b["manager"])
+    for anchor_id in (other.pk, 10**9):
+        body = _anchor_failure(north["job"], other, b["checklists"], timezone.now())
+        response = client_for(north["operator"]).post(
+            reverse("sheet-list"), {**body, "anchor": anchor_id}, format="json"
+        )
+        assert response.status_code == 400
+        assert list(response.json()) == ["anchor"]
+    assert not CheckSheet.objects.filter(anchor=other).exists()
