@@ -47,7 +47,7 @@ interface CacheEntry {
 
 /** A sheet being filled, kept as the operator goes so a reload or a closed tab loses nothing. */
 export interface DraftEntry {
-  /** `${job}:${requirement}` */
+  /** `${user}:${job}:${requirement}` */
   key: string;
   job: number;
   requirement: string;
@@ -164,7 +164,9 @@ export async function clearCache(): Promise<void> {
   await (await db()).clear("cache");
 }
 
-export const draftKey = (job: number, requirement: string) => `${job}:${requirement}`;
+/** A draft is its writer's: restored to them alone (the next person on the phone signs what they
+ * save, and another's answers would go on the record under their name). */
+export const draftKey = (user: number, job: number, requirement: string) => `${user}:${job}:${requirement}`;
 
 export async function draftGet(key: string): Promise<DraftEntry | null> {
   return (await (await db()).get("drafts", key)) ?? null;

@@ -87,6 +87,42 @@ def test_a_half_filled_sheet_survives_a_reload_and_goes_when_saved(live_server, 
     assert page.input_value("[data-testid=reading-tag_capacity]") == ""
 
 
+def test_a_half_filled_sheet_is_restored_only_to_the_person_who_filled_it(live_server, demo, page):
+    """Tomas answered part of a check and signed out; Rhea signed in on the same phone and
+    opened it: "Restored the answers kept on this phone", his ticks and his remark, which saved
+    would have gone on the record under her name."""
+    from compliance.models import Anchor
+
+    job = demo
+    anchor_r1 = f"anchor-pre-use@anchor:{Anchor.objects.get(site=job.site, label='R1').pk}"
+    sheet = f"/#/job/{job.id}/sheet/{anchor_r1}"
+    base = live_server.url
+    sign_in_as(page, base, "tomas")
+    page.goto(base + sheet)
+    page.wait_for_selector("[data-testid=items]")
+    page.click("[data-testid=tick-visual_condition-pass]")
+    page.fill("[data-testid=remarks]", "Tag faded but legible.")
+    wait_draft_kept(page)
+
+    page.goto(base + "/#/")
+    page.click("[data-testid=sign-out]")
+    sign_in_as(page, base, "rhea")
+    page.goto(base + sheet)
+    page.wait_for_selector("[data-testid=items]")
+    page.wait_for_selector("[data-testid=still-needed][data-draft=none]")  # drafts read
+    assert page.query_selector("[data-testid=draft-restored]") is None
+    assert pressed(page, "tick-visual_condition-pass") == "false"
+    assert page.input_value("[data-testid=remarks]") == ""
+
+    page.goto(base + "/#/")
+    page.click("[data-testid=sign-out]")
+    sign_in_as(page, base, "tomas")
+    page.goto(base + sheet)
+    page.wait_for_selector("[data-testid=draft-restored]")
+    assert pressed(page, "tick-visual_condition-pass") == "true"
+    assert page.input_value("[data-testid=remarks]") == "Tag faded but legible."
+
+
 def test_timed_decay_capture_records_samples_and_draws_the_curve(live_server, demo, page):
     from checklists.models import CheckSheet
     from compliance.demo import scenario_path

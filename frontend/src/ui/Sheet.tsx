@@ -52,7 +52,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
   // A check of this requirement saved on this phone and not sent yet: the server does not know it.
   const [waiting, setWaiting] = useState<OutboxEntry | null>(null);
   // Drafts: restored once the checklist version is known, then kept as the operator goes.
-  const key = draftKey(id, requirement);
+  const key = draftKey(user.id, id, requirement);
   // A read-only person (an auditor) reads the sheet: nothing is typed, so nothing is kept.
   const writer = canRecord(user);
   const [draftState, setDraftState] = useState<{ ready: boolean; restoredAt: string; keptAt: string; other: string }>(
@@ -527,7 +527,7 @@ export function SheetScreen({ id, requirement, user }: { id: number; requirement
       <CautionLine job={job.id} />
       <BottomBar>
         {writer && (
-          <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : "none"} data-kept-at={draftState.keptAt}>
+          <span class="bar-note" data-testid="still-needed" data-draft={draftState.keptAt ? "kept" : draftState.ready ? "none" : ""} data-kept-at={draftState.keptAt}>
             {needed.length ? `${needed.length} still to answer` : failed.length ? "Saving records a stop work" : "Ready to save"}
           </span>
         )}
