@@ -140,8 +140,12 @@ def _phones_say_older(passing: CheckSheet, failing: CheckSheet) -> bool:
     return said_pass is not None and said_failure is not None and said_pass < said_failure
 
 
-def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = None) -> Job:
-    """Move a held or planned job to cleared (or back to planned) from what it now has."""
+def refresh_readiness(
+    *, job: Job, by: User | None, drops: list[Drop] | None = None, why: str = ""
+) -> Job:
+    """Move a held or planned job to cleared (or back to planned) from what it now has; `why`,
+    when given, is the job log's reason for a move (what changed, where the generic words would
+    name a check that did not)."""
     if job.state not in (JobState.PLANNED, JobState.HELD, JobState.CLEARED):
         return job
     holds = open_holds(job)
@@ -150,11 +154,15 @@ def refresh_readiness(*, job: Job, by: User | None, drops: list[Drop] | None = N
     ready = not job_blockers(job, drops, holds=holds)
     if job.state == JobState.HELD:
         target = JobState.CLEARED if ready else JobState.PLANNED
-        return transition(job, target, by, "Every hold cleared.")
+        return transition(job, target, by, why or "Every hold cleared.")
     if job.state == JobState.PLANNED and ready:
-        return transition(job, JobState.CLEARED, by, "Every required pre-start check passed.")
+        return transition(
+            job, JobState.CLEARED, by, why or "Every required pre-start check passed."
+        )
     if job.state == JobState.CLEARED and not ready:
-        return transition(job, JobState.PLANNED, by, "A required check is no longer satisfied.")
+        return transition(
+            job, JobState.PLANNED, by, why or "A required check is no longer satisfied."
+        )
     return job
 
 
@@ -244,7 +252,7 @@ STOPS_WORK = {
 of the hold it opens. An anchor removed from service is the owner's log book's own hold."""
 
 
-def reread_readiness(*, jobs: Iterable[Job], by: User | None) -> None:
+def reread_readiness(*, jobs: Iterable[Job], by: User | None, why: str = "") -> None:
     """A register change (a rating, a date, in or out of service, a certification) may leave a
     cleared job's checks behind, or put right what held or kept back another: each job's state
     is read again. A job at work that it leaves short stops (a safety line re-rated below its
@@ -256,7 +264,7 @@ def reread_readiness(*, jobs: Iterable[Job], by: User | None) -> None:
             hold_for_register_change(job=job, by=by)
         else:
             clear_register_holds(job=job, by=by)
-            refresh_readiness(job=job, by=by)
+            refresh_readiness(job=job, by=by, why=why)
 
 
 def hold_for_register_change(
@@ -326,7 +334,7 @@ def hold_for_ended_grant(*, jobs: Iterable[Job], by: User) -> None:
                 why="Stop work: the building's owner ended access to the site.",
             )
         else:
-            refresh_readiness(job=job, by=by)
+            refresh_readiness(job=job, by=by, why="The building's owner ended access to the site.")
 
 
 def clear_register_holds(*, job: Job, by: User | None) -> None:

@@ -34,7 +34,7 @@ from compliance.registers.selectors import (
     failed_test,
     withdrawal,
 )
-from compliance.registers.visibility import can_work_at
+from compliance.registers.visibility import access_words, can_work_at
 from compliance.timeline import WEATHER_CHECKLIST, reading_time, recheck_interval, weather_gaps
 
 
@@ -373,7 +373,7 @@ def job_blockers(
         reasons.append(
             Reason(
                 "no_grant_for_day",
-                "The building owner's access grant does not cover this day.",
+                access_words(job.organisation_id, job.site, job.date),
                 GRANT_REQUIREMENT,
             )
         )

@@ -96,7 +96,11 @@ def give_grant(
         grant.full_clean()
         grant.save()
         # A job held or kept back for want of access may go on (holds "no_grant" clear).
-        reread_readiness(jobs=jobs_at_site(organisation_id=contractor.pk, site_id=site.pk), by=by)
+        reread_readiness(
+            jobs=jobs_at_site(organisation_id=contractor.pk, site_id=site.pk),
+            by=by,
+            why="The building's owner granted access to the site.",
+        )
     return grant
 
 

@@ -9,7 +9,7 @@ import datetime as dt
 from django.db.models import Exists, OuterRef, Q, QuerySet
 from django.utils import timezone
 
-from compliance.models import Anchor, Drop, Organisation, Site, SiteGrant
+from compliance.models import Anchor, Drop, Organisation, Site, SiteGrant, SiteGrantEnd
 
 
 def live_grants(day: dt.date) -> QuerySet[SiteGrant]:
@@ -47,6 +47,31 @@ def can_work_at(organisation_id: int | None, site: Site, day: dt.date) -> bool:
     if site.organisation_id == organisation_id:
         return True
     return live_grants(day).filter(site=site, contractor_id=organisation_id).exists()
+
+
+def access_words(organisation_id: int | None, site: Site, day: dt.date) -> str:
+    """Why the organisation may not work at the site on the day, in words: the owner ended a
+    grant that covered it (who, when and the reason given, as the day's record keeps them), or
+    no grant covers it."""
+    ended = (
+        SiteGrantEnd.objects.filter(
+            grant__site=site,
+            grant__contractor_id=organisation_id,
+            grant__starts_on__lte=day,
+            grant__ends_on__gte=day,
+        )
+        .select_related("ended_by")
+        .order_by("-ended_at", "-pk")
+        .first()
+    )
+    if ended is None:
+        return "The building owner's access grant does not cover this day."
+    when = timezone.localtime(ended.ended_at)
+    reason = ended.reason.strip()
+    return (
+        f"The building's owner ended access to the site on {when:%Y-%m-%d} at {when:%H:%M}"
+        f" ({ended.ended_by.display_name})" + (f": {reason}" if reason else ".")
+    )
 
 
 def owns_site(organisation_id: int | None, site: Site) -> bool:

@@ -141,6 +141,10 @@ def test_hold_then_offline_recheck_clears_the_job(live_server, demo, context, pa
     wait_waiting(page, 0)
     wait_state(page, "cleared")
     assert "Done" in page.inner_text(req_selector(ANCHOR_R1))
+    # Signal back, the card no longer says the state is an earlier answer (it did until the
+    # screen was left, user trial).
+    page.wait_for_selector(".state-card :text('State from the server.')")
+    assert "Offline:" not in page.inner_text(".state-card")
     job.refresh_from_db()
     assert job.state == "cleared"
 
@@ -512,8 +516,43 @@ def test_a_screen_left_open_at_work_stops_showing_the_wind_done_when_it_runs_out
     page.wait_for_selector(f"{weather} [data-testid=req-read-by]")
 
     page.wait_for_selector(f"{weather}[data-status=mustdo]", timeout=30000)
-    assert "The wind reading ran out at" in page.inner_text(f"{weather} [data-testid=req-again]")
+    # In the phone's words, or the server's once the screen has asked it again (it does every
+    # 20 s at work).
+    again = page.inner_text(f"{weather} [data-testid=req-again]")
+    assert "The wind reading ran out at" in again or "read the wind again" in again, again
     assert not page.query_selector(f"{weather} [data-testid=req-read-by]")
     # The beat stops the job on the server; the screen hears it without a tap.
     assert off_loop(services.stop_work_on_stale_weather) == 1
     wait_state(page, "held", timeout=40000)
+
+
+def _end_the_crews_grant(job) -> None:
+    from compliance.models import SiteGrant, User
+    from compliance.registers.services import end_grant
+
+    grant = SiteGrant.objects.get(site=job.site, contractor=job.organisation)
+    owner = User.objects.get(username="pat")
+    end_grant(grant=grant, by=owner, reason="Facade lift maintenance from noon.")
+
+
+def test_a_stop_made_elsewhere_reaches_a_job_screen_left_open_at_work(live_server, demo, page):
+    """The owner ended the crew's access while the robot worked: the open job screen went on
+    saying "Working", with Pause and Log drop done, until the operator left it (user trial)."""
+    from compliance.jobs import services
+    from compliance.models import Job
+
+    job = demo
+    off_loop(fill_passing_except, job, set())
+    off_loop(lambda: services.start_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
+    sign_in(page, live_server.url)
+    page.click(f"[data-testid=job-{job.id}]")
+    wait_state(page, "working")
+
+    off_loop(_end_the_crews_grant, job)
+
+    wait_state(page, "held", timeout=30000)
+    holds = page.inner_text("[data-testid=holds]")
+    assert "Access to the building withdrawn" in holds
+    assert "Facade lift maintenance from noon." in holds
+    assert "Only the building's owner clears this" in holds
+    assert page.locator("[data-testid=pause]").count() == 0

@@ -522,7 +522,13 @@ def test_a_crew_at_work_stops_when_the_owner_ends_its_grant_and_a_new_grant_clea
     assert south["job"].state == JobState.WORKING
     hold = north["job"].holds.get()
     assert (hold.requirement, hold.item_key) == ("access-grant@site", "no_grant")
-    assert hold.reason == "The building owner's access grant does not cover this day."
+    # Who ended it, when and why, as the day's record keeps it.
+    ended = SiteGrant.objects.get(pk=grant.pk).end
+    at = timezone.localtime(ended.ended_at)
+    assert hold.reason == (
+        f"The building's owner ended access to the site on {at:%Y-%m-%d} at {at:%H:%M}"
+        f" ({b['manager'].display_name}): Facade works suspended by the owner."
+    )
     assert north["job"].transitions.last().reason == (
         "Stop work: the building's owner ended access to the site."
     )
@@ -541,6 +547,9 @@ def test_a_crew_at_work_stops_when_the_owner_ends_its_grant_and_a_new_grant_clea
     north["job"].refresh_from_db()
     assert HoldClearance.objects.filter(hold=hold).exists()
     assert north["job"].state == JobState.CLEARED
+    assert north["job"].transitions.last().reason == (
+        "The building's owner granted access to the site."
+    )
 
 
 def test_an_ended_grant_sends_a_cleared_job_back_to_planned(shared):
@@ -556,6 +565,25 @@ def test_an_ended_grant_sends_a_cleared_job_back_to_planned(shared):
     assert north["job"].state == JobState.PLANNED
     assert not north["job"].holds.exists()
     assert b["south"]["job"].state == JobState.CLEARED
+    # The job log says why (it said "A required check is no longer satisfied.", and on the
+    # next grant "Every required pre-start check passed.", though no check had changed).
+    assert north["job"].transitions.last().reason == (
+        "The building's owner ended access to the site."
+    )
+    from compliance.registers.services import give_grant
+
+    give_grant(
+        site=b["site"],
+        contractor=north["org"],
+        starts_on=TODAY(),
+        ends_on=TODAY(),
+        by=b["manager"],
+    )
+    north["job"].refresh_from_db()
+    assert north["job"].state == JobState.CLEARED
+    assert north["job"].transitions.last().reason == (
+        "The building's owner granted access to the site."
+    )
 
 
 def _anchor_failure(job, anchor, versions, when) -> dict:

@@ -72,17 +72,22 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   // showed the check "Done" past its time, and the job working after the server stopped it).
   const [nowMs, setNowMs] = useState(Date.now());
 
+  // Ask the server; offline, the copy kept on this phone, said to be one.
+  const refresh = () =>
+    loadJob(id).then((loaded) => {
+      setJob(loaded.value);
+      setKept(loaded.fromCache ? loaded.savedAt : "");
+    });
+
   useEffect(() => {
-    (async () => {
-      try {
-        const loaded = await loadJob(id);
-        setJob(loaded.value);
-        setKept(loaded.fromCache ? loaded.savedAt : "");
-      } catch (e) {
-        setError(loadWords(e));
-      }
-    })();
+    refresh().catch((e) => setError(loadWords(e)));
   }, [id]);
+
+  // Signal back over a kept copy, or records sent: ask again (it went on saying "Offline" until
+  // the screen was left).
+  useEffect(() => {
+    if (status.online && kept) refresh().catch(() => undefined);
+  }, [status.online, version]);
 
   useEffect(() => {
     const el = answerAt.current;
@@ -102,17 +107,15 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   useEffect(() => {
     if (!job || job.state === "closed") return;
     const next = nextReadAgain(job.requirements, Date.now());
-    const lapsed = job.requirements.some((r) => windLapsed(r, Date.now()));
-    // At a reading's time, show it run out; while one has run out at work, ask the server
-    // again every 20 s (the beat stops the job within the minute; offline the kept copy).
-    const wait = lapsed && job.state === "working" ? 2e4 : next && next - Date.now() + 1e3;
+    const working = job.state === "working";
+    // At a reading's time, show it run out; at work, ask the server again every 20 s: a stop
+    // made elsewhere (the owner, the register, the beat on a lapsed wind reading) reaches an
+    // open screen (it said "Working" until the operator left it). Offline, the kept copy.
+    const wait = working ? 2e4 : next && next - Date.now() + 1e3;
     if (!wait) return;
     const timer = setTimeout(() => {
       setNowMs(Date.now());
-      if (lapsed)
-        loadJob(id)
-          .then((loaded) => setJob(loaded.value))
-          .catch(() => undefined);
+      if (working) refresh().catch(() => undefined);
     }, Math.min(wait, 2e9));
     return () => clearTimeout(timer);
   }, [job, nowMs, id]);
