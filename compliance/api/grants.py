@@ -30,6 +30,7 @@ class GrantSerializer(StrictInput, serializers.ModelSerializer):
     )
     contractor_name = serializers.CharField(source="contractor.name", read_only=True)
     ended_at = serializers.DateTimeField(source="end.ended_at", read_only=True, default=None)
+    ended_reason = serializers.CharField(source="end.reason", read_only=True, default=None)
     starts_on = PlausibleDateField()
     ends_on = PlausibleDateField()
 
@@ -44,6 +45,7 @@ class GrantSerializer(StrictInput, serializers.ModelSerializer):
             "ends_on",
             "granted_at",
             "ended_at",
+            "ended_reason",
         ]
         read_only_fields = ["site", "granted_at"]
 
@@ -80,11 +82,21 @@ def site_grants(request: Request, pk: int) -> Response:
     return Response(GrantSerializer(grants, many=True).data)
 
 
+class EndedGrantSerializer(GrantSerializer):
+    """A grant just ended, with how many of the contractor's jobs at work at the site stopped
+    (a count only: the owner reads none of the contractor's jobs)."""
+
+    work_stopped = serializers.IntegerField(read_only=True)
+
+    class Meta(GrantSerializer.Meta):
+        fields = [*GrantSerializer.Meta.fields, "work_stopped"]
+
+
 class EndGrantInput(StrictInput, serializers.Serializer):
     reason = serializers.CharField(required=False, allow_blank=True, max_length=2000)
 
 
-@extend_schema(request=EndGrantInput, responses=GrantSerializer)
+@extend_schema(request=EndGrantInput, responses=EndedGrantSerializer)
 @api_view(["POST"])
 @permission_classes([OrganisationMember])
 def end_site_grant(request: Request, pk: int, grant_pk: int) -> Response:
@@ -95,6 +107,6 @@ def end_site_grant(request: Request, pk: int, grant_pk: int) -> Response:
     grant = get_object_or_404(SiteGrant.objects.filter(site=site), pk=grant_pk)
     data = EndGrantInput(data=request.data)
     data.is_valid(raise_exception=True)
-    end_grant(grant=grant, by=request.user, reason=data.validated_data.get("reason", ""))
+    ended = end_grant(grant=grant, by=request.user, reason=data.validated_data.get("reason", ""))
     grant = SiteGrant.objects.select_related("contractor", "end").get(pk=grant.pk)
-    return Response(GrantSerializer(grant).data)
+    return Response({**GrantSerializer(grant).data, "work_stopped": ended.work_stopped})

@@ -321,20 +321,24 @@ def hold_for_stale_weather(*, job: Job, by: User | None = None) -> Job:
     )
 
 
-def hold_for_ended_grant(*, jobs: Iterable[Job], by: User) -> None:
+def hold_for_ended_grant(*, jobs: Iterable[Job], by: User) -> int:
     """The owner ended a contractor's access (`jobs`: its open jobs at the site, locked): a
     robot at work there stops, and a job not at work is read again (a cleared one is no longer
-    ready). The hold clears when the owner grants access for the day again."""
+    ready). The hold clears when the owner grants access for the day again. Returns how many
+    jobs at work were stopped."""
+    stopped = 0
     for job in jobs:
         if job.state == JobState.WORKING:
-            hold_for_register_change(
+            job = hold_for_register_change(
                 job=job,
                 by=by,
                 codes=("no_grant_for_day",),
                 why="Stop work: the building's owner ended access to the site.",
             )
+            stopped += job.state == JobState.HELD
         else:
             refresh_readiness(job=job, by=by, why="The building's owner ended access to the site.")
+    return stopped
 
 
 def clear_register_holds(*, job: Job, by: User | None) -> None:

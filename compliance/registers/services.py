@@ -2,6 +2,7 @@
 in one transaction with its audit entry; these services are the only writers of those rows."""
 
 import datetime as dt
+from dataclasses import dataclass
 from typing import IO, Any
 
 from django.core.exceptions import NON_FIELD_ERRORS, ValidationError
@@ -104,7 +105,15 @@ def give_grant(
     return grant
 
 
-def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> SiteGrantEnd:
+@dataclass(frozen=True)
+class GrantEnded:
+    """A grant's end, and how many of the contractor's jobs at work at the site it stopped."""
+
+    end: SiteGrantEnd
+    work_stopped: int
+
+
+def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> GrantEnded:
     """End a grant now: the contractor loses the site, its anchors and its log book at once.
 
     Its jobs there no longer start (``no_grant_for_day``), and a robot of its at work there
@@ -123,10 +132,10 @@ def end_grant(*, grant: SiteGrant, by: User, reason: str = "") -> SiteGrantEnd:
         end = SiteGrantEnd(grant=grant, ended_by=by, reason=reason)
         end.full_clean()
         end.save()
-        hold_for_ended_grant(
+        stopped = hold_for_ended_grant(
             jobs=jobs_at_site(organisation_id=grant.contractor_id, site_id=grant.site_id), by=by
         )
-    return end
+    return GrantEnded(end=end, work_stopped=stopped)
 
 
 def require_register_keeper(user: User) -> None:

@@ -997,6 +997,22 @@ export interface components {
         EndGrantInputRequest: {
             reason?: string;
         };
+        EndedGrant: {
+            readonly id: number;
+            readonly site: number;
+            contractor: number;
+            readonly contractor_name: string;
+            /** Format: date */
+            starts_on: string;
+            /** Format: date */
+            ends_on: string;
+            /** Format: date-time */
+            readonly granted_at: string;
+            /** Format: date-time */
+            readonly ended_at: string;
+            readonly ended_reason: string;
+            readonly work_stopped: number;
+        };
         Equipment: {
             readonly id: number;
             kind: components["schemas"]["EquipmentKindEnum"];
@@ -1043,6 +1059,7 @@ export interface components {
             readonly granted_at: string;
             /** Format: date-time */
             readonly ended_at: string;
+            readonly ended_reason: string;
         };
         GrantRequest: {
             contractor: number;
@@ -3086,7 +3103,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": components["schemas"]["Grant"];
+                    "application/json": components["schemas"]["EndedGrant"];
                 };
             };
         };

@@ -96,6 +96,14 @@ def page(context, request):
     assert not errors, f"JavaScript errors on the page: {errors}"
 
 
+def draft_key(job, requirement: str, username: str = "tomas") -> str:
+    """The key of a sheet's draft on the phone: its writer's, the job's and the requirement's
+    (frontend/src/storage.ts draftKey)."""
+    from compliance.models import User
+
+    return f"{off_loop(lambda: User.objects.get(username=username).pk)}:{job.id}:{requirement}"
+
+
 def off_loop(fn, *args):
     """Run database set-up in its own thread: Playwright's sync API keeps an event loop running
     on this one, and the demo's PDF signing calls asyncio.run()."""

@@ -294,12 +294,25 @@ def test_manager_records_a_certificate_and_gives_and_ends_a_grant(page, live_ser
     desk_shot(page, "desk-owner-grants.png")
 
     page.type(f"#end-{grant.pk}-reason", "Work finished early.", delay=TYPE_MS)
+    # Ending access acts at once, on a robot that may be on the facade: the owner is asked
+    # first (it ended on one click), and a "no" ends nothing.
+    asked: list[str] = []
+    page.once("dialog", lambda d: (asked.append(d.message), d.dismiss()))
+    page.click(f"[data-testid=end-grant-{grant.pk}] [data-testid=end-grant-submit]")
+    assert asked and "stops at once" in asked[0]
+    assert not SiteGrantEnd.objects.filter(grant=grant).exists()
+    page.once("dialog", lambda d: d.accept())
     page.click(f"[data-testid=end-grant-{grant.pk}] [data-testid=end-grant-submit]")
     page.wait_for_selector(
         f"[data-testid=grant-{grant.pk}] [data-testid=grant-state]:has-text('Ended')"
     )
     ended = SiteGrantEnd.objects.get(grant=grant)
     assert (ended.ended_by.username, ended.reason) == (MANAGER, "Work finished early.")
+    # What it did, and why, stay on the screen.
+    assert page.inner_text("[data-testid=grant-ended]") == (
+        f"Access ended for {other.name}. None of their jobs was at work here."
+    )
+    assert "Work finished early." in page.inner_text(f"[data-testid=grant-{grant.pk}]")
     # The demo contractor's grant is untouched.
     assert SiteGrant.objects.filter(site=site, end__isnull=True).count() == 1
 

@@ -98,7 +98,7 @@ def test_hold_then_offline_recheck_clears_the_job(live_server, demo, context, pa
     assert job.state == "held"
     # A held job offers no start the server would refuse; the bar says what to do instead.
     assert page.locator("[data-testid=start]").count() == 0
-    assert "clear the holds" in page.inner_text("[data-testid=held-note]")
+    assert page.inner_text("[data-testid=held-note]") == "Stopped: see the holds above"
 
     # Offline: a passing re-check with a photo is kept on the phone.
     context.set_offline(True)
@@ -556,3 +556,15 @@ def test_a_stop_made_elsewhere_reaches_a_job_screen_left_open_at_work(live_serve
     assert "Facade lift maintenance from noon." in holds
     assert "Only the building's owner clears this" in holds
     assert page.locator("[data-testid=pause]").count() == 0
+    # What the operator does now; and the hold is not said again among what the office puts
+    # right ("the supervisor changes the plan or the register" beside "only the owner").
+    assert "bring it down safely" in page.inner_text("[data-testid=holds-do]")
+    assert page.locator("[data-testid=blockers]").count() == 0
+    assert page.inner_text("[data-testid=held-note]") == "Stopped: see the holds above"
+    # Closing the held day: the reason's box opens far above the bar, in view with the focus.
+    page.click("[data-testid=close]")
+    page.wait_for_function("() => document.activeElement?.tagName === 'TEXTAREA'")
+    assert page.evaluate(
+        "() => { const r = document.activeElement.getBoundingClientRect();"
+        " return r.top >= 0 && r.bottom <= window.innerHeight; }"
+    )

@@ -8,7 +8,7 @@ import time
 
 import pytest
 
-from tests.browser.conftest import sign_in_as
+from tests.browser.conftest import draft_key, sign_in_as
 
 pytestmark = pytest.mark.browser
 
@@ -100,7 +100,7 @@ def test_every_default_reading_typed_at_a_persons_pace_is_recorded_whole(live_se
             assert field.input_value() == text, (checklist, key)
             assert focused_testid(page) == f"reading-{key}", (checklist, key)
         typed_at = page.evaluate("Date.now()")
-        assert kept_readings(page, f"{job.id}:{req_key}", typed_at) == typed, checklist
+        assert kept_readings(page, draft_key(job, req_key), typed_at) == typed, checklist
         page.keyboard.press("Tab")
         for key in keys:
             verdict = page.get_attribute(f"[data-testid=item-{key}]", "data-verdict")

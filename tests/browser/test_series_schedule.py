@@ -7,7 +7,7 @@ import datetime as dt
 
 import pytest
 
-from tests.browser.conftest import sign_in_as
+from tests.browser.conftest import draft_key, sign_in_as
 
 pytestmark = pytest.mark.browser
 
@@ -138,7 +138,7 @@ def test_readings_wait_for_their_time_and_keep_the_monotonic_offsets(live_server
     assert page.get_attribute(SERIES, "data-verdict") == "recorded"
     page.clock.run_for(500)  # the draft is written 400 ms after the last change
     expected = {"decay_series": [[0, 62], [11.3, 61.8], [20.5, 61.5]]}
-    assert kept_series(page, f"{job.id}:{req_key}", expected) == expected
+    assert kept_series(page, draft_key(job, req_key), expected) == expected
 
     page.click("[data-testid=series-stop]")
     page.click("[data-testid=tick-cups_clean-pass]")
@@ -208,7 +208,8 @@ def test_start_again_asks_before_clearing_a_finished_test(live_server, demo, pag
     assert len(messages) == 2
     assert samples(page) == []
     page.clock.run_for(500)
-    assert kept_series(page, f"{job.id}:{req_key}", {"decay_series": []}) == {"decay_series": []}
+    kept = kept_series(page, draft_key(job, req_key), {"decay_series": []})
+    assert kept == {"decay_series": []}
 
 
 LIVE_TEXT = """sel => [...document.querySelector(sel).querySelectorAll(

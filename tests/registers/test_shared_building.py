@@ -652,3 +652,44 @@ def test_an_anchor_of_no_drop_of_the_crew_stays_unknown_once_access_ends(shared)
         assert response.status_code == 400
         assert list(response.json()) == ["anchor"]
     assert not CheckSheet.objects.filter(anchor=other).exists()
+
+
+def test_the_owner_is_told_what_ending_access_stopped_and_the_reason_stays_on_the_grant(shared):
+    """The owner ended access with a reason: the answer said only "Ended". Nothing told the
+    owner a robot of that crew had been stopped on the building, and the reason showed nowhere
+    (user trial). The answer counts the crew's jobs at work there that stopped; the grant keeps
+    the reason. No more than a count: the owner reads none of the crew's jobs."""
+    from compliance.jobs.services import start_job
+
+    b = shared
+    north, south = b["north"], b["south"]
+    start_job(job=north["job"], by=north["operator"])
+    start_job(job=south["job"], by=south["operator"])
+    owner = client_for(b["manager"])
+    grants = {g.contractor_id: g for g in SiteGrant.objects.filter(site=b["site"])}
+
+    response = owner.post(
+        reverse("site-grant-end", args=[b["site"].pk, grants[north["org"].pk].pk]),
+        {"reason": "Lift maintenance from noon."},
+        format="json",
+    )
+
+    assert response.status_code == 200, response.json()
+    assert response.json()["work_stopped"] == 1
+    assert response.json()["ended_reason"] == "Lift maintenance from noon."
+    listed = owner.get(reverse("site-grants", args=[b["site"].pk])).json()
+    reasons = {g["contractor"]: g["ended_reason"] for g in listed}
+    assert reasons == {north["org"].pk: "Lift maintenance from noon.", south["org"].pk: None}
+
+    # The other crew's grant, its job paused first: nothing at work there stopped.
+    from compliance.jobs.services import pause_job
+
+    pause_job(job=south["job"], by=south["operator"], reason="Lunch.")
+    response = owner.post(
+        reverse("site-grant-end", args=[b["site"].pk, grants[south["org"].pk].pk]),
+        {},
+        format="json",
+    )
+    assert response.status_code == 200, response.json()
+    assert response.json()["work_stopped"] == 0
+    assert response.json()["ended_reason"] == ""

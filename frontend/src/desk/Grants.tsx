@@ -16,7 +16,16 @@ function grantState(g: Grant, today: string): { sign: SignKind; word: string } {
   return { sign: "safe", word: "In force" };
 }
 
-function EndGrant({ site, grant, onEnded }: { site: number; grant: Grant; onEnded: () => Promise<void> }) {
+/** What ending a grant did, for the owner: it stops the contractor's robots at work there. */
+function endedWords(name: string, stopped: number): string {
+  const jobs =
+    stopped === 0
+      ? "None of their jobs was at work here."
+      : `${stopped === 1 ? "1 job" : `${stopped} jobs`} of theirs at work here stopped at once; their crew is told to bring the robot down safely.`;
+  return `Access ended for ${name}. ${jobs}`;
+}
+
+function EndGrant({ site, grant, onEnded }: { site: number; grant: Grant; onEnded: (words: string) => Promise<void> }) {
   const [reason, setReason] = useState("");
   const { errors, setErrors, show, shown, form } = useFormErrors();
   const [busy, setBusy] = useState(false);
@@ -25,11 +34,13 @@ function EndGrant({ site, grant, onEnded }: { site: number; grant: Grant; onEnde
   async function submit(event: Event) {
     event.preventDefault();
     if (!reason.trim()) return show({ reason: ["Say why the grant ends."] });
+    // It acts at once, on a robot that may be on the facade: asked first (it ended on one click).
+    if (!confirm(`End access for ${grant.contractor_name} now? Any robot of theirs at work at this site stops at once.`)) return;
     setBusy(true);
     setErrors({});
     try {
-      await desk.endGrant(site, grant.id, reason.trim());
-      await onEnded();
+      const ended = await desk.endGrant(site, grant.id, reason.trim());
+      await onEnded(endedWords(grant.contractor_name, ended.work_stopped));
     } catch (e) {
       show(fieldErrors(e));
       setBusy(false);
@@ -128,6 +139,7 @@ export function DeskGrants({ siteId }: { siteId?: number }) {
   const { data, empty, error } = useSite(siteId);
   const [grants, setGrants] = useState<Grant[] | null>(null);
   const [grantError, setGrantError] = useState("");
+  const [ended, setEnded] = useState("");
   const site = data?.site.id;
 
   async function load() {
@@ -148,6 +160,7 @@ export function DeskGrants({ siteId }: { siteId?: number }) {
     <>
       <SiteTitle title="Access grants" page="grants" data={data} />
       {grantError && <p class="error" role="alert" data-testid="grants-error">{grantError}</p>}
+      {ended && <p class="note" role="status" data-testid="grant-ended">{ended}</p>}
       {!grants && !grantError && <p class="muted">Loading the grants…</p>}
       {grants && (
         <div class="desk-columns">
@@ -163,8 +176,10 @@ export function DeskGrants({ siteId }: { siteId?: number }) {
                         <strong class="card-title">{g.contractor_name}</strong>
                         <Badge kind={state.sign} word={state.word} testid="grant-state" />
                       </div>
-                      <span>{g.starts_on} to {g.ends_on}{g.ended_at ? `; ended on ${g.ended_at.slice(0, 10)}` : ""}</span>
-                      {!g.ended_at && g.ends_on >= today && <EndGrant site={data.site.id} grant={g} onEnded={load} />}
+                      <span>{g.starts_on} to {g.ends_on}{g.ended_at ? `; ended on ${g.ended_at.slice(0, 10)}${g.ended_reason ? `: ${g.ended_reason}` : ""}` : ""}</span>
+                      {!g.ended_at && g.ends_on >= today && (
+                        <EndGrant site={data.site.id} grant={g} onEnded={async (words) => { setEnded(words); await load(); }} />
+                      )}
                     </li>
                   );
                 })}

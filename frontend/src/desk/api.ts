@@ -79,8 +79,9 @@ export const desk = {
   },
   grants: (site: number) => request<Grant[]>(`sites/${site}/grants/`),
   grant: (site: number, data: GrantInput) => request<Grant>(`sites/${site}/grants/`, { method: "POST", json: data }),
+  /** End a grant now; the answer counts the contractor's jobs at work at the site it stopped. */
   endGrant: (site: number, grant: number, reason: string) =>
-    request<Grant>(`sites/${site}/grants/${grant}/end/`, { method: "POST", json: { reason } }),
+    request<Grant & { work_stopped: number }>(`sites/${site}/grants/${grant}/end/`, { method: "POST", json: { reason } }),
   equipment: (kind?: string) => all<Equipment>(kind ? `equipment/?kind=${encodeURIComponent(kind)}` : "equipment/"),
   /** The kinds and their ratings field by field (a plain list; the schema calls it paginated). */
   kinds: async () => {

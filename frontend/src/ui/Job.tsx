@@ -89,6 +89,12 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
     if (status.online && kept) refresh().catch(() => undefined);
   }, [status.online, version]);
 
+  // The reason's box opens far above the bar's button: brought into view, the focus in it.
+  const closeAt = useRef<HTMLTextAreaElement>(null);
+  useEffect(() => {
+    if (closing) closeAt.current?.focus();
+  }, [closing]);
+
   useEffect(() => {
     const el = answerAt.current;
     if (!el || !answer) return;
@@ -136,7 +142,8 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
   const localFails = outbox.filter((e) => e.status === "waiting" && e.local_verdict === "fail");
   const rejected = activeRefusals(outbox);
   const opens = opensOn(job.date, today());
-  const heldBack = officeBlockers(job.blockers);
+  // What an open hold already says is not said twice.
+  const heldBack = officeBlockers(job.blockers).filter((b) => !openHolds.some((h) => h.requirement === b.requirement));
   const waitingHere = outbox.filter((e) => e.status === "waiting");
   const signHere = canSign(user) && dayOver && !record;
 
@@ -232,7 +239,6 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         )}
         <p class="muted small">
           {kept ? `Offline: the state the server gave at ${timeOf(kept)}.` : error ? "" : "State from the server."}
-          {" "}The server is the authority on verdicts and state.
         </p>
         {waitingHere.length > 0 && (
           <p class="note" data-testid="job-waiting">
@@ -268,6 +274,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
       {openHolds.length > 0 && (
         <section class="card alert" data-testid="holds">
           <h2><Badge kind="held" word="Stop work: open holds" /></h2>
+          <p data-testid="holds-do">Keep the robot off the facade (if it is up, bring it down safely) and tell the supervisor.</p>
           <ul class="plain">
             {openHolds.map((h) => (
               <li key={h.id} class="hold">
@@ -313,7 +320,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
           <ul class="plain">
             {heldBack.map((b, n) => <li key={n}><p>{b.message}</p></li>)}
           </ul>
-          <p class="muted small">No check on this phone puts these right: the supervisor changes the plan or the register first.</p>
+          <p class="muted small">No check on this phone puts these right: the supervisor changes the plan or the register, or the owner the access, first.</p>
         </section>
       )}
 
@@ -389,7 +396,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
         <form class="card" onSubmit={close} data-testid="close-form">
           <label class="field">
             <span>Why is work closing? {job.state === "held" ? "(needed for a held job)" : "(optional)"}</span>
-            <textarea rows={3} value={closeReason} onInput={(e) => setCloseReason((e.target as HTMLTextAreaElement).value)} />
+            <textarea rows={3} ref={closeAt} value={closeReason} onInput={(e) => setCloseReason((e.target as HTMLTextAreaElement).value)} />
           </label>
           <div class="row">
             <button class="btn btn-primary" type="submit">Close work</button>
@@ -421,7 +428,7 @@ export function JobScreen({ id, user }: { id: number; user: User }) {
           <span class="bar-note" data-testid="opens-on">Opens on {opens}</span>
         )}
         {canRecord(user) && !opens && job.state === "held" && (
-          <span class="bar-note" data-testid="held-note">Stopped: clear the holds above to start</span>
+          <span class="bar-note" data-testid="held-note">Stopped: see the holds above</span>
         )}
         {canRecord(user) && !opens && job.state !== "working" && job.state !== "closed" && job.state !== "held" && (
           <button class="btn btn-primary" type="button" onClick={start} disabled={busy || !status.online}

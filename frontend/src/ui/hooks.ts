@@ -99,7 +99,8 @@ export function timeOf(iso: string | null): string {
   if (!iso) return "never";
   const d = new Date(iso);
   if (Number.isNaN(d.getTime())) return "never";
-  return d.toLocaleTimeString([], { hour: "2-digit", minute: "2-digit" });
+  // 24-hour, as the server's words and the records give times.
+  return d.toLocaleTimeString([], { hour: "2-digit", minute: "2-digit", hourCycle: "h23" });
 }
 
 /** Date and time in the phone's own words, e.g. "3 Dec 2026, 17:42". */
@@ -107,5 +108,5 @@ export function dateTimeOf(iso: string | null): string {
   if (!iso) return "never";
   const d = new Date(iso);
   if (Number.isNaN(d.getTime())) return "never";
-  return d.toLocaleString([], { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit" });
+  return d.toLocaleString([], { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", hourCycle: "h23" });
 }
