@@ -21,7 +21,9 @@ MAX_SIDE_PX = 2048
 MAX_PIXELS = 50_000_000
 """A phone camera's largest photos are about 48 megapixels; a small file declaring more is a
 decompression bomb (an 88-megapixel PNG of 30 KB took 370 MB to decode)."""
-ACCEPTED = {"JPEG", "PNG", "WEBP"}
+ACCEPTED = {"JPEG", "MPO", "PNG", "WEBP"}
+"""MPO is a JPEG holding more than one picture (some phone cameras write it); its first picture
+is stored."""
 
 
 def _check_place(*, job: Job, sheet_uuid: uuid.UUID | None, item_key: str) -> None:
@@ -148,8 +150,8 @@ def store_photo(
             photo.image.save(f"{client_uuid}.jpg", ContentFile(data), save=False)
             try:
                 photo.save()
-            except IntegrityError:
-                # Its row refused, the file does not stay in storage without one.
+            except BaseException:
+                # Its row refused (or the request stopped), the file does not stay without one.
                 photo.image.storage.delete(photo.image.name)
                 raise
     except IntegrityError:

@@ -43,7 +43,8 @@ def _image_kind(data: bytes) -> str | None:
             image.verify()
     except (UnidentifiedImageError, OSError, SyntaxError, ValueError, Image.DecompressionBombError):
         return None
-    return {"PNG": "png", "JPEG": "jpg"}.get(kind or "")
+    # MPO: a JPEG holding more than one picture, as some phone cameras write it.
+    return {"PNG": "png", "JPEG": "jpg", "MPO": "jpg"}.get(kind or "")
 
 
 def check_document(upload: IO[bytes]) -> CheckedDocument:

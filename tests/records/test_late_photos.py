@@ -144,6 +144,54 @@ def test_a_photo_whose_id_is_taken_in_a_race_is_compared_as_one_sent_again(
     assert [p.name for p in tmp_path.rglob("*") if p.is_file()] == [f"{key}.jpg"]
 
 
+def test_a_multi_picture_jpeg_is_stored_as_its_first_picture(closed_job, operator):
+    """Some phone cameras write JPEGs holding more than one picture (the Multi-Picture format):
+    they were refused as "not a JPEG, PNG or WebP image"."""
+    sheet = closed_job.sheets.get(subject_kind="anchor", anchor=closed_job.drops.get().anchor)
+    out = io.BytesIO()
+    first, second = (Image.new("RGB", (64, 48), c) for c in ((200, 30, 30), (30, 30, 200)))
+    first.save(out, format="MPO", save_all=True, append_images=[second])
+    out.seek(0)
+    out.name = "defect.jpg"
+    with clock.replaying(closed_job.date):
+        response = _post(
+            operator, closed_job, image=out, sheet_uuid=str(sheet.client_uuid), item_key="sound"
+        )
+    assert response.status_code == 201, response.json()
+    stored = Photo.objects.get()
+    with Image.open(stored.image) as kept:
+        assert (kept.format, kept.size) == ("JPEG", (64, 48))
+        assert kept.getpixel((10, 10))[0] > 150  # the first picture, the red one
+
+
+def test_a_photo_whose_row_fails_to_save_leaves_no_file(closed_job, operator, tmp_path):
+    """Only a duplicate id took its file away; any other failure of the row's insert left the
+    file in storage with no row to name it."""
+    from django.db import OperationalError
+
+    import checklists.photos as photos
+
+    sheet = closed_job.sheets.get(subject_kind="anchor", anchor=closed_job.drops.get().anchor)
+
+    def refused(self, *args, **kwargs):
+        raise OperationalError("disk I/O error")
+
+    with clock.replaying(closed_job.date), pytest.raises(OperationalError):
+        with pytest.MonkeyPatch.context() as patch:
+            patch.setattr(photos.Photo, "save", refused)
+            from django.core.files.uploadedfile import SimpleUploadedFile
+
+            photos.store_photo(
+                by=operator,
+                job=closed_job,
+                image=SimpleUploadedFile("defect.png", _png().getvalue()),
+                client_uuid=uuid.uuid4(),
+                sheet_uuid=sheet.client_uuid,
+                item_key="sound",
+            )
+    assert _nothing_stored(tmp_path)
+
+
 def test_a_photo_is_refused_on_any_day_but_the_jobs(closed_job, operator, tmp_path):
     """A loose photo counts as made the day it is received; the job's day has passed (and a
     later job's has not come)."""

@@ -103,6 +103,25 @@ def test_a_png_is_kept_as_a_png(tower):
     assert got["Content-Type"] == "image/png"
 
 
+def mpo_bytes() -> bytes:
+    """A JPEG holding more than one picture (the Multi-Picture format some phone cameras write):
+    its first picture is a plain JPEG."""
+    out = io.BytesIO()
+    first, second = (Image.new("RGB", (40, 30), c) for c in ((200, 30, 30), (30, 30, 200)))
+    first.save(out, format="MPO", save_all=True, append_images=[second])
+    return out.getvalue()
+
+
+def test_a_multi_picture_jpeg_is_kept_as_a_jpeg(tower):
+    """A phone camera's photo of the certificate was refused as not an image."""
+    data = mpo_bytes()
+    answer = post(tower["manager"], tower["anchor"], SimpleUploadedFile("cert.jpg", data))
+    assert answer.status_code == 201, answer.json()
+    assert stored_files() == [f"certificates/{hashlib.sha256(data).hexdigest()}.jpg"]
+    got = client_for(tower["manager"]).get(answer.json()["document_url"])
+    assert got["Content-Type"] == "image/jpeg"
+
+
 @pytest.mark.parametrize(
     "name,data",
     [
