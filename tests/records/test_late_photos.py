@@ -176,19 +176,23 @@ def test_a_photo_whose_row_fails_to_save_leaves_no_file(closed_job, operator, tm
     def refused(self, *args, **kwargs):
         raise OperationalError("disk I/O error")
 
-    with clock.replaying(closed_job.date), pytest.raises(OperationalError):
-        with pytest.MonkeyPatch.context() as patch:
-            patch.setattr(photos.Photo, "save", refused)
-            from django.core.files.uploadedfile import SimpleUploadedFile
+    from django.core.files.uploadedfile import SimpleUploadedFile
 
-            photos.store_photo(
-                by=operator,
-                job=closed_job,
-                image=SimpleUploadedFile("defect.png", _png().getvalue()),
-                client_uuid=uuid.uuid4(),
-                sheet_uuid=sheet.client_uuid,
-                item_key="sound",
-            )
+    image = SimpleUploadedFile("defect.png", _png().getvalue())
+    with (
+        clock.replaying(closed_job.date),
+        pytest.raises(OperationalError),
+        pytest.MonkeyPatch.context() as patch,
+    ):
+        patch.setattr(photos.Photo, "save", refused)
+        photos.store_photo(
+            by=operator,
+            job=closed_job,
+            image=image,
+            client_uuid=uuid.uuid4(),
+            sheet_uuid=sheet.client_uuid,
+            item_key="sound",
+        )
     assert _nothing_stored(tmp_path)
 
 
