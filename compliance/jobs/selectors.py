@@ -861,3 +861,9 @@ def closed_at(job: Job) -> dt.datetime | None:
 def day_signed(job: Job) -> bool:
     """Whether the job's day's record is signed (sealed: nothing may be added to its day)."""
     return DailyRecord.objects.filter(job=job, kind=DailyRecord.Kind.RECORD).exists()
+
+
+def was_working_at(job: Job, moment: dt.datetime) -> bool:
+    """Whether the job was at work at the moment, by its state log."""
+    last = job.transitions.filter(at__lte=moment).order_by("-at", "-id").first()
+    return last is not None and last.to_state == JobState.WORKING

@@ -6,6 +6,7 @@ from typing import Any
 
 from django.core.exceptions import ValidationError
 from django.db import transaction
+from django.utils import timezone
 
 from checklists.models import CheckSheet
 from checklists.verdicts import SheetOutcome
@@ -29,10 +30,12 @@ from compliance.jobs.selectors import (
     ever_reached,
     job_blockers,
     plan_conflicts,
+    was_working_at,
     weather_recheck,
 )
 from compliance.models import (
     Anchor,
+    DailyRecord,
     Drop,
     DropLog,
     Equipment,
@@ -241,6 +244,24 @@ def stop_work_on_stale_weather() -> int:
 DROP_NOTE_MAX = 500
 
 
+def drop_refusal(job: Job, device_time: Any, phone_clock_offset_s: int | None) -> str:
+    """Why a drop done cannot be logged on the job now ("" when it can). A drop is done while
+    its job is at work; one the phone says was done then, its clock set right by its batch's
+    (a crew offline on the facade finds signal after a hold), is kept until the day's record is
+    signed. Without the batch's clock the phone's time alone is not taken."""
+    if job.state == JobState.WORKING:
+        return ""
+    refusal = f"Drops are logged while the job is working; it is {job.state}."
+    if device_time is None or phone_clock_offset_s is None:
+        return refusal
+    made = clock.time_made(device_time, phone_clock_offset_s, timezone.now())
+    if not was_working_at(job, made):
+        return refusal
+    if DailyRecord.objects.filter(job=job, kind=DailyRecord.Kind.RECORD).exists():
+        return "This day's record is signed: a drop can no longer be added to it."
+    return ""
+
+
 def log_drop(
     *,
     drop: Drop,
@@ -258,10 +279,9 @@ def log_drop(
         raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
     with transaction.atomic():
         job = locked(drop.job)
-        if job.state != JobState.WORKING:
-            raise InvalidTransition(
-                f"Drops are logged while the job is working; it is {job.state}."
-            )
+        refusal = drop_refusal(job, device_time, phone_clock_offset_s)
+        if refusal:
+            raise InvalidTransition(refusal)
         done_on = clock.day_made(job.date, device_time, phone_clock_offset_s)
         if done_on != job.date:
             raise ValidationError(

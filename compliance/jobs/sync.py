@@ -325,10 +325,9 @@ def _apply_drop_log(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) 
         raise RecordRejected({"drop": ["Required."]})
     batch.settle(drop.job_id)
     drop.job.refresh_from_db()
-    if drop.job.state != "working":
-        raise RecordRejected(
-            {"drop": [f"Drops are logged while the job is working; it is {drop.job.state}."]}
-        )
+    refusal = services.drop_refusal(drop.job, _device_time(data), batch.phone_clock_offset_s)
+    if refusal:
+        raise RecordRejected({"drop": [refusal]})
     note = data.get("note", "")
     if not isinstance(note, str) or len(note) > services.DROP_NOTE_MAX:
         raise RecordRejected({"note": [f"A text of at most {services.DROP_NOTE_MAX} characters."]})

@@ -530,3 +530,75 @@ def test_the_same_record_resent_in_a_later_batch_is_a_duplicate_whatever_its_bat
 
     assert line == {**first, "duplicate": True}
     assert CheckSheet.objects.filter(client_uuid=record["client_uuid"]).count() == 1
+
+
+def _drop_done(drop, at, key=None) -> dict:
+    return {
+        "type": "drop_log",
+        "client_uuid": key or str(uuid.uuid4()),
+        "data": {"drop": drop.pk, "note": "Whole drop done.", "device_time": at.isoformat()},
+    }
+
+
+def test_a_drop_done_at_work_and_sent_after_the_hold_is_kept(
+    job, simple_checklists, operator, supervisor
+):
+    """The crew finished a drop, offline on the facade, and the job was held before the phone
+    found signal: the drop done was refused ("Drops are logged while the job is working"), and
+    the day's record lost work that was done. A drop the phone says was done while the job was
+    at work, its clock set right by the batch's, is kept until the day is signed; one done
+    after the hold is not."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from compliance.jobs.services import close_job, start_job
+
+    fill_all(job, simple_checklists, operator)
+    start_job(job=job, by=operator)
+    done_at_work = timezone.now()
+    client = client_for(operator)
+    failed = {**PASSING["site"], "zone_closed": {"value": "fail"}}
+    sync(client, [site_record(job, simple_checklists, failed)])  # stop work
+    job.refresh_from_db()
+    assert job.state == "held"
+    after_hold = timezone.now()
+    drop = job.drops.get()
+    sent_at = timezone.now().isoformat()  # the phone's clock is right
+
+    body = client.post(
+        reverse("sync"),
+        {
+            "records": [_drop_done(drop, done_at_work), _drop_done(drop, after_hold)],
+            "sent_at": sent_at,
+        },
+        format="json",
+    ).json()
+    kept, refused = body["results"]
+    assert kept["status"] == "applied", kept
+    assert refused["status"] == "rejected"
+    assert "drop" in refused["errors"]
+    assert DropLog.objects.filter(drop=drop).count() == 1
+
+    # Without the batch's clock the phone's time alone is not taken.
+    alone = client.post(
+        reverse("sync"), {"records": [_drop_done(drop, done_at_work)]}, format="json"
+    ).json()["results"][0]
+    assert alone["status"] == "rejected"
+
+    # Once the day is signed, nothing joins it.
+    close_job(job=job, by=supervisor, reason="Wind too strong to resume.")
+    from compliance.records.services import sign_daily_record
+    from compliance.records.signing import create_self_signed
+    from tests.factories import PASSWORD
+
+    create_self_signed(organisation=job.organisation)
+    sign_daily_record(job=job, by=supervisor, password=PASSWORD, meaning="reviewed_stopped")
+    late = client.post(
+        reverse("sync"),
+        {"records": [_drop_done(drop, done_at_work)], "sent_at": timezone.now().isoformat()},
+        format="json",
+    ).json()["results"][0]
+    assert late["status"] == "rejected"
+    assert DropLog.objects.filter(drop=drop).count() == 1
+    assert dt.timedelta(0) <= after_hold - done_at_work
