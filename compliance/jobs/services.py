@@ -244,20 +244,35 @@ def stop_work_on_stale_weather() -> int:
 DROP_NOTE_MAX = 500
 
 
-def drop_refusal(job: Job, device_time: Any, phone_clock_offset_s: int | None) -> str:
+def drop_refusal(
+    job: Job, device_time: Any, phone_clock_offset_s: int | None, *, drop: Drop | None = None
+) -> str:
     """Why a drop done cannot be logged on the job now ("" when it can). A drop is done while
-    its job is at work; one the phone says was done then, its clock set right by its batch's
-    (a crew offline on the facade finds signal after a hold), is kept until the day's record is
-    signed. Without the batch's clock the phone's time alone is not taken."""
-    if job.state == JobState.WORKING:
-        return ""
-    refusal = f"Drops are logged while the job is working; it is {job.state}."
+    its job is at work, after it was planned: the phone's time set right by its batch's clock
+    (a crew offline on the facade finds signal after a hold), or without the batch's clock when
+    it is received. One done at work and received after the job stopped is kept until the day's
+    record is signed."""
     if device_time is None or phone_clock_offset_s is None:
-        return refusal
+        # Taken as done when received: at work now, or not at all.
+        if job.state == JobState.WORKING:
+            return ""
+        return f"Drops are logged while the job is working; it is {job.state}."
     made = clock.time_made(device_time, phone_clock_offset_s, timezone.now())
     if not was_working_at(job, made):
-        return refusal
-    if DailyRecord.objects.filter(job=job, kind=DailyRecord.Kind.RECORD).exists():
+        if job.state == JobState.WORKING:
+            return (
+                f"The job was not at work at {timezone.localtime(made):%Y-%m-%d %H:%M}, when"
+                " the phone says this drop was done."
+            )
+        return f"Drops are logged while the job is working; it is {job.state}."
+    if drop is not None and drop.added_at is not None and made < drop.added_at:
+        return (
+            f"This drop was planned at {timezone.localtime(drop.added_at):%H:%M}, after the"
+            " time the phone gives for it."
+        )
+    if job.state != JobState.WORKING and (
+        DailyRecord.objects.filter(job=job, kind=DailyRecord.Kind.RECORD).exists()
+    ):
         return "This day's record is signed: a drop can no longer be added to it."
     return ""
 
@@ -279,7 +294,7 @@ def log_drop(
         raise ValidationError({"note": [f"A text of at most {DROP_NOTE_MAX} characters."]})
     with transaction.atomic():
         job = locked(drop.job)
-        refusal = drop_refusal(job, device_time, phone_clock_offset_s)
+        refusal = drop_refusal(job, device_time, phone_clock_offset_s, drop=drop)
         if refusal:
             raise InvalidTransition(refusal)
         done_on = clock.day_made(job.date, device_time, phone_clock_offset_s)

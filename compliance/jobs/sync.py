@@ -325,7 +325,9 @@ def _apply_drop_log(batch: Batch, data: dict[str, Any], client_uuid: uuid.UUID) 
         raise RecordRejected({"drop": ["Required."]})
     batch.settle(drop.job_id)
     drop.job.refresh_from_db()
-    refusal = services.drop_refusal(drop.job, _device_time(data), batch.phone_clock_offset_s)
+    refusal = services.drop_refusal(
+        drop.job, _device_time(data), batch.phone_clock_offset_s, drop=drop
+    )
     if refusal:
         raise RecordRejected({"drop": [refusal]})
     note = data.get("note", "")

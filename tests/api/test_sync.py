@@ -602,3 +602,50 @@ def test_a_drop_done_at_work_and_sent_after_the_hold_is_kept(
     assert late["status"] == "rejected"
     assert DropLog.objects.filter(drop=drop).count() == 1
     assert dt.timedelta(0) <= after_hold - done_at_work
+
+
+def test_a_drop_is_kept_only_for_a_time_the_job_was_at_work_and_the_drop_was_planned(
+    job, simple_checklists, operator, supervisor
+):
+    """The time test applied only once the job had stopped: at work, a drop the phone said was
+    done ten hours before the start was kept, and the signed record said so. And a drop planned
+    during a pause took a time from before it was planned (re-attack round)."""
+    import datetime as dt
+
+    from django.utils import timezone
+
+    from compliance.jobs.services import add_drop, pause_job, start_job
+
+    fill_all(job, simple_checklists, operator)
+    before_start = timezone.now() - dt.timedelta(hours=10)
+    start_job(job=job, by=operator)
+    at_work = timezone.now()
+    client = client_for(operator)
+    drop = job.drops.get()
+    sent_at = timezone.now().isoformat()
+
+    def send(d, at):
+        return client.post(
+            reverse("sync"), {"records": [_drop_done(d, at)], "sent_at": sent_at}, format="json"
+        ).json()["results"][0]
+
+    assert send(drop, before_start)["status"] == "rejected"
+    assert send(drop, at_work)["status"] == "applied"
+
+    pause_job(job=job, by=operator, reason="Lunch.")
+    later = add_drop(
+        job=job,
+        by=supervisor,
+        robot=drop.robot,
+        anchor=drop.anchor,
+        safety_anchor=drop.safety_anchor,
+        tether=drop.tether,
+        safety_line=drop.safety_line,
+        hose=drop.hose,
+        label="North 2",
+        length_m=drop.length_m,
+    )
+    refused = send(later, at_work)
+    assert refused["status"] == "rejected"
+    assert "drop" in refused["errors"]
+    assert DropLog.objects.count() == 1

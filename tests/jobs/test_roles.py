@@ -239,6 +239,7 @@ def test_a_drop_done_on_another_day_is_not_logged_to_the_job(job, simple_checkli
     """A job started on its day and left working: the next day's drops were logged to it, as
     if yesterday's checks covered them."""
     import datetime as dt
+    from unittest import mock
 
     from django.utils import timezone
 
@@ -249,7 +250,14 @@ def test_a_drop_done_on_another_day_is_not_logged_to_the_job(job, simple_checkli
 
     job.date = timezone.localdate() - dt.timedelta(days=1)
     job.save()
-    with clock.replaying(job.date):
+    # Started yesterday, as its job log says (a drop is kept only for a time the job was at
+    # work); the replay sets the day, the clock the times stored.
+    started = timezone.now() - dt.timedelta(days=1, minutes=5)
+    job.drops.update(added_at=started - dt.timedelta(hours=1))  # planned before its checks
+    with (
+        clock.replaying(job.date),
+        mock.patch("django.utils.timezone.now", return_value=started),
+    ):
         fill_all(job, simple_checklists, operator)
         start_job(job=job, by=operator)
     drop = job.drops.get()
