@@ -47,6 +47,7 @@ from compliance.models import (
 )
 from compliance.registers.visibility import can_work_at
 from compliance.text import has_words
+from compliance.timeline import OFFSET_ROUNDING
 
 PLANNERS_ONLY = "Only a supervisor or an admin plans jobs and their drops."
 
@@ -258,14 +259,17 @@ def drop_refusal(
             return ""
         return f"Drops are logged while the job is working; it is {job.state}."
     made = clock.time_made(device_time, phone_clock_offset_s, timezone.now())
-    if not was_working_at(job, made):
+    # The phone gives whole seconds and the batch's offset is kept in whole seconds: a drop
+    # logged within a second of the start may read as made just before it.
+    leeway = OFFSET_ROUNDING
+    if not (was_working_at(job, made) or was_working_at(job, made + leeway)):
         if job.state == JobState.WORKING:
             return (
                 f"The job was not at work at {timezone.localtime(made):%Y-%m-%d %H:%M}, when"
                 " the phone says this drop was done."
             )
         return f"Drops are logged while the job is working; it is {job.state}."
-    if drop is not None and drop.added_at is not None and made < drop.added_at:
+    if drop is not None and drop.added_at is not None and made + leeway < drop.added_at:
         return (
             f"This drop was planned at {timezone.localtime(drop.added_at):%H:%M}, after the"
             " time the phone gives for it."

@@ -232,12 +232,17 @@ def test_start_log_drops_and_a_rejected_record_stays_visible(live_server, demo, 
     wait_waiting(page, 0)
     assert DropLog.objects.filter(drop__job=job, drop__label="North 1").count() == 1
 
-    # Logged offline while the supervisor paused the job on the server: the server refuses it.
+    # Logged offline after the supervisor paused the job on the server (the phone, offline,
+    # still shows it at work): the server refuses it. One done before the pause is kept
+    # (tests/api/test_sync.py).
     context.set_offline(True)
+    off_loop(lambda: services.pause_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
+    # Some seconds later: the phone gives whole seconds, so a drop within a second or two of a
+    # pause may count as done before it.
+    page.wait_for_timeout(3000)
     page.click(".drop:has-text('North 2') button:has-text('Log drop done')")
     page.click(".drop:has-text('North 2') [data-testid=drop-whole]")
     wait_waiting(page, 1)
-    off_loop(lambda: services.pause_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
     context.set_offline(False)
     page.wait_for_selector("[data-testid=strip-rejected]")
     wait_state(page, "cleared")

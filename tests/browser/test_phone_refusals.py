@@ -80,14 +80,17 @@ def test_a_drop_is_logged_once_with_the_words_the_operator_chose(live_server, de
     )
     assert notes == ["Part of the drop: Top half, down to level 20"]
 
-    # A refusal (logged offline while the supervisor paused the job) can be dismissed. The
+    # A refusal (logged offline after the supervisor paused the job) can be dismissed. The
     # first log of North 1 was moments ago: a tap within a few seconds of it is not taken.
     page.wait_for_timeout(4500)
     context.set_offline(True)
+    off_loop(lambda: services.pause_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
+    # Some seconds later: the phone gives whole seconds, so a drop within a second or two of a
+    # pause may count as done before it.
+    page.wait_for_timeout(3000)
     page.click(f"{north1} button:has-text('Log drop done')")
     page.click(f"{north1} [data-testid=drop-whole]")
     wait_waiting(page, 1)
-    off_loop(lambda: services.pause_job(job=Job.objects.get(pk=job.pk), by=job.supervisor))
     context.set_offline(False)
     page.wait_for_selector("[data-testid=rejected]")
     page.wait_for_selector("[data-testid=strip-rejected]")
