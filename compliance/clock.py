@@ -56,9 +56,14 @@ def day_made(
         return received
     if phone_clock_offset_s is not None:
         try:
-            return timezone.localdate(device_time - dt.timedelta(seconds=phone_clock_offset_s))
+            made = device_time - dt.timedelta(seconds=phone_clock_offset_s)
         except OverflowError:
-            return timezone.localdate(device_time)
+            made = device_time
+        if not replayed():
+            # Never after it was received (time_made's rule): a phone's time set right that
+            # says tomorrow is not tomorrow's check made today.
+            made = min(made, timezone.now())
+        return timezone.localdate(made)
     if received <= job_date:
         return received
     return timezone.localdate(device_time)

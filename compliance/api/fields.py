@@ -169,3 +169,21 @@ def query_period(params: Mapping[str, str]) -> tuple[dt.date | None, dt.date | N
     if start and end and end < start:
         raise serializers.ValidationError({"end": ["Must not be before start."]})
     return start, end
+
+
+class ZonedDateTimeField(serializers.DateTimeField):
+    """A date and time with its UTC offset. One without (or a date, or an ISO week date) is
+    refused, not read in the server's zone: a phone's clock offset taken from it would be the
+    server's zone's distance from the phone's."""
+
+    default_error_messages = {"naive": "A date and time with its offset, such as +01:00 or Z."}
+
+    def to_internal_value(self, value: Any) -> dt.datetime:
+        if isinstance(value, str):
+            try:
+                parsed = dt.datetime.fromisoformat(value.strip())
+            except ValueError:
+                parsed = None
+            if parsed is None or parsed.tzinfo is None:
+                self.fail("naive")
+        return super().to_internal_value(value)

@@ -11,7 +11,13 @@ from rest_framework import serializers
 
 from checklists.models import Checklist, ChecklistVersion, CheckSheet, ItemEntry, Verdict
 from checklists.selectors import UNKNOWN_VERSION, fillable_versions
-from compliance.api.fields import FiniteFloatField, IdField, PlausibleDateField, StrictInput
+from compliance.api.fields import (
+    FiniteFloatField,
+    IdField,
+    PlausibleDateField,
+    StrictInput,
+    ZonedDateTimeField,
+)
 from compliance.models import (
     Anchor,
     AnchorCertification,
@@ -615,7 +621,7 @@ class SheetInputSerializer(StrictInput, serializers.Serializer):
     entries = serializers.DictField(child=serializers.JSONField())
     # The sender's clock when it sent the sheet, as a sync batch's `sent_at`: how far the
     # sender's clock is off is kept with the sheet and stated on the record.
-    sent_at = serializers.DateTimeField(required=False, allow_null=True)
+    sent_at = ZonedDateTimeField(required=False, allow_null=True)
 
     def __init__(self, *args: Any, **kwargs: Any) -> None:
         super().__init__(*args, **kwargs)

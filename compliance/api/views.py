@@ -29,6 +29,7 @@ from compliance.api import serializers as s
 from compliance.api.fields import (
     ParsedJSON,
     StrictInput,
+    ZonedDateTimeField,
     query_day,
     query_id,
     query_period,
@@ -141,7 +142,7 @@ class SyncInput(StrictInput, serializers.Serializer):
     # Each record as parsed: apply_record refuses a bad one alone (null, not an object, holding
     # 1e400), where a JSONField would refuse the whole batch.
     records = serializers.ListField(child=ParsedJSON(allow_null=True), max_length=MAX_BATCH)
-    sent_at = serializers.DateTimeField(required=False, allow_null=True)
+    sent_at = ZonedDateTimeField(required=False, allow_null=True)
     text_checked_later = ("records",)
 
 

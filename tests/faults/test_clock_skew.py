@@ -235,3 +235,55 @@ def test_a_sheet_posted_with_an_unreadable_sent_at_is_refused_naming_it(
     assert response.status_code == 400
     assert list(response.json()) == ["sent_at"]
     assert not CheckSheet.objects.exists()
+
+
+def test_a_sheet_the_phone_dates_tomorrow_is_not_tomorrow_s_check_today(
+    simple_checklists, operator
+):
+    """The phone's time set right by its batch's clock was taken whatever it said: a check
+    dated tomorrow 00:30 by a phone whose clock was right, sent today, satisfied tomorrow's
+    job (re-attack round). A record is never made after it is received."""
+    from tests.factories import JobFactory, make_drop
+
+    tomorrow = timezone.localdate() + dt.timedelta(days=1)
+    job = JobFactory(date=tomorrow, organisation=operator.organisation)
+    make_drop(job)
+    midnight_after = timezone.make_aware(
+        dt.datetime.combine(tomorrow, dt.time(0, 30)), timezone.get_current_timezone()
+    )
+    body = {
+        "job": job.pk,
+        "version": simple_checklists["site"].pk,
+        "entries": PASSING["site"],
+        "device_time": midnight_after.isoformat(),
+        "sent_at": timezone.now().isoformat(),
+    }
+    response = client_for(operator).post(reverse("sheet-list"), body, format="json")
+    assert response.status_code == 400, response.json()
+    assert not CheckSheet.objects.filter(job=job).exists()
+
+
+@pytest.mark.parametrize("sent_at", ["2026-12-05T17:50:00", "2026-W49-6", "2026-12-05"])
+@pytest.mark.parametrize("way", ["sync", "sheets"])
+def test_a_sent_at_without_its_offset_is_refused_naming_it(
+    job, simple_checklists, operator, sent_at, way
+):
+    """A naive time was read in the server's zone, and an ISO week date as midnight UTC: both
+    stored a wrong clock offset with the records instead of a 400 (re-attack round). A phone's
+    own times already had to carry their offset."""
+    body = {
+        "job": job.pk,
+        "version": simple_checklists["site"].pk,
+        "entries": PASSING["site"],
+    }
+    client = client_for(operator)
+    if way == "sync":
+        record = {"type": "sheet", "client_uuid": str(uuid.uuid4()), "data": body}
+        response = client.post(
+            reverse("sync"), {"records": [record], "sent_at": sent_at}, format="json"
+        )
+    else:
+        response = client.post(reverse("sheet-list"), {**body, "sent_at": sent_at}, format="json")
+    assert response.status_code == 400
+    assert list(response.json()) == ["sent_at"]
+    assert not CheckSheet.objects.exists()
