@@ -126,11 +126,7 @@ def store_photo(
     picture, data = _encoded(image)
     digest = hashlib.sha256(data).hexdigest()
     if existing is not None:
-        # The same photo sent again (its answer lost) is the one stored; another image under
-        # its id was answered as stored, and the new one silently dropped.
-        if digest != existing.sha256:
-            raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]})
-        return existing, False
+        return _sent_again(existing, digest), False
     try:
         with transaction.atomic():
             # Signing locks the job's row too: a photo lands before the seal, or is refused.
@@ -151,7 +147,8 @@ def store_photo(
             try:
                 photo.save()
             except BaseException:
-                # Its row refused (or the request stopped), the file does not stay without one.
+                # Whatever stops the row (its id taken meanwhile, a database error, the worker
+                # stopped), the file does not stay without one; the failure goes on as it was.
                 photo.image.storage.delete(photo.image.name)
                 raise
     except IntegrityError:
@@ -159,10 +156,16 @@ def store_photo(
         # it as a photo sent again is.
         existing = Photo.objects.get(client_uuid=client_uuid)
         _same_place(existing, by=by, job=job, sheet_uuid=sheet_uuid, item_key=item_key)
-        if digest != existing.sha256:
-            raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]}) from None
-        return existing, False
+        return _sent_again(existing, digest), False
     return photo, True
+
+
+def _sent_again(existing: Photo, digest: str) -> Photo:
+    """The same photo sent again (its answer lost) is the one stored; another image under its
+    id was answered as stored, and the new one silently dropped: it is refused."""
+    if digest != existing.sha256:
+        raise ValidationError({"client_uuid": [REUSED_PHOTO_ID]})
+    return existing
 
 
 def _same_place(
